@@ -1,0 +1,214 @@
+import { z } from 'zod';
+
+/**
+ * The exchange file: one JSON document holding a whole binned model (regions with their
+ * binning and data, processes, nominal templates with variances, floating normalisations,
+ * systematics with their effects and groups). Import, export, the fit engine and the
+ * command line all read this one schema. Documented in docs/exchange-file.md.
+ */
+
+export const EXCHANGE_FORMAT = 'plumbline.model';
+export const EXCHANGE_VERSION = 1;
+
+/** Keys name things inside one model: short, stable, URL-safe. */
+export const keySchema = z
+  .string()
+  .min(1, 'must not be empty')
+  .max(64, 'must be at most 64 characters')
+  .regex(/^[A-Za-z][A-Za-z0-9_.-]*$/, 'must start with a letter and use only letters, digits, "_", "." or "-"');
+
+const finite = z.number({ error: 'must be a finite number' });
+const nonNegative = finite.min(0, 'must not be negative');
+const positive = finite.gt(0, 'must be greater than 0');
+
+export const regionRoleSchema = z.enum(['signal', 'control', 'validation']);
+export type RegionRole = z.infer<typeof regionRoleSchema>;
+
+export const exchangeRegionSchema = z.strictObject({
+  key: keySchema,
+  label: z.string().max(200).optional(),
+  role: regionRoleSchema,
+  observable: z.strictObject({ name: z.string().min(1).max(100), unit: z.string().max(30) }),
+  /** Bin edges e_0 < … < e_B (B bins). */
+  edges: z.array(finite).min(2, 'needs at least two edges (one bin)').max(2001),
+  /** Observed counts per bin; absent when the data are withheld (blinded signal region) or not yet taken. */
+  observed: z.array(nonNegative).optional(),
+});
+export type ExchangeRegion = z.infer<typeof exchangeRegionSchema>;
+
+export const exchangeProcessSchema = z.strictObject({
+  key: keySchema,
+  label: z.string().max(200).optional(),
+  /** Signal processes are multiplied by the signal strength μ. */
+  kind: z.enum(['signal', 'background']),
+  /** Display colour (#rrggbb); optional. */
+  colour: z.string().regex(/^#[0-9a-fA-F]{6}$/).optional(),
+});
+export type ExchangeProcess = z.infer<typeof exchangeProcessSchema>;
+
+export const boundedParameterSchema = z
+  .strictObject({ start: finite, min: finite, max: finite })
+  .check((ctx) => {
+    const { start, min, max } = ctx.value;
+    if (!(min < max)) ctx.issues.push({ code: 'custom', message: 'min must be below max', path: ['min'], input: min });
+    else if (start < min || start > max) ctx.issues.push({ code: 'custom', message: 'start must lie within [min, max]', path: ['start'], input: start });
+  });
+
+export const exchangeFloatingNormSchema = z.strictObject({
+  key: keySchema,
+  label: z.string().max(200).optional(),
+  start: finite.default(1),
+  min: finite.default(0),
+  max: finite.default(10),
+  /** The (region, process) templates this factor multiplies. */
+  targets: z.array(z.strictObject({ region: keySchema, process: keySchema })).min(1, 'must multiply at least one template'),
+});
+export type ExchangeFloatingNorm = z.infer<typeof exchangeFloatingNormSchema>;
+
+export const exchangeTemplateSchema = z.strictObject({
+  region: keySchema,
+  process: keySchema,
+  nominal: z.array(nonNegative),
+  /** Variance of the nominal from limited simulation (sum of squared weights), per bin. */
+  variance: z.array(nonNegative).optional(),
+});
+export type ExchangeTemplate = z.infer<typeof exchangeTemplateSchema>;
+
+export const scaleEffectSchema = z.strictObject({
+  region: keySchema,
+  process: keySchema,
+  kind: z.literal('scale'),
+  /** Yield ratio to nominal at θ = +1 and θ = −1 (e.g. 1.04 and 0.97). */
+  up: positive,
+  down: positive,
+});
+
+export const shapeEffectSchema = z.strictObject({
+  region: keySchema,
+  process: keySchema,
+  kind: z.literal('shape'),
+  /** Varied templates at θ = +1 and θ = −1, per bin. */
+  up: z.array(nonNegative),
+  down: z.array(nonNegative),
+});
+
+export const effectSchema = z.discriminatedUnion('kind', [scaleEffectSchema, shapeEffectSchema]);
+export type Effect = z.infer<typeof effectSchema>;
+export type ScaleEffect = z.infer<typeof scaleEffectSchema>;
+export type ShapeEffect = z.infer<typeof shapeEffectSchema>;
+
+export const exchangeSystematicSchema = z.strictObject({
+  key: keySchema,
+  label: z.string().max(200).optional(),
+  group: z.string().max(64).optional(),
+  description: z.string().max(10_000).optional(),
+  effects: z.array(effectSchema),
+});
+export type ExchangeSystematic = z.infer<typeof exchangeSystematicSchema>;
+
+const exchangeModelShape = z.strictObject({
+  format: z.literal(EXCHANGE_FORMAT),
+  version: z.literal(EXCHANGE_VERSION),
+  name: z.string().min(1).max(200),
+  signalStrength: boundedParameterSchema.default({ start: 1, min: -10, max: 20 }),
+  regions: z.array(exchangeRegionSchema).min(1, 'needs at least one region'),
+  processes: z.array(exchangeProcessSchema).min(1, 'needs at least one process'),
+  floatingNorms: z.array(exchangeFloatingNormSchema).default([]),
+  templates: z.array(exchangeTemplateSchema),
+  systematics: z.array(exchangeSystematicSchema).default([]),
+});
+
+type ModelShape = z.infer<typeof exchangeModelShape>;
+type Issue = { message: string; path: (string | number)[] };
+
+function duplicates(keys: string[], base: (string | number)[], issues: Issue[]) {
+  const seen = new Set<string>();
+  keys.forEach((k, i) => {
+    if (seen.has(k)) issues.push({ message: `duplicate key "${k}"`, path: [...base, i, 'key'] });
+    seen.add(k);
+  });
+}
+
+/** Cross-references and bin counts: everything a single field cannot check alone. */
+export function modelConsistencyIssues(m: ModelShape): Issue[] {
+  const issues: Issue[] = [];
+  duplicates(m.regions.map((r) => r.key), ['regions'], issues);
+  duplicates(m.processes.map((p) => p.key), ['processes'], issues);
+  duplicates(m.floatingNorms.map((f) => f.key), ['floatingNorms'], issues);
+  duplicates(m.systematics.map((s) => s.key), ['systematics'], issues);
+
+  const bins = new Map<string, number>();
+  m.regions.forEach((r, i) => {
+    for (let b = 1; b < r.edges.length; b++) {
+      if (!(r.edges[b] > r.edges[b - 1])) {
+        issues.push({ message: `bin edges must increase strictly (edge ${b} is not above edge ${b - 1})`, path: ['regions', i, 'edges', b] });
+        break;
+      }
+    }
+    const nBins = r.edges.length - 1;
+    bins.set(r.key, nBins);
+    if (r.observed && r.observed.length !== nBins)
+      issues.push({ message: `has ${r.observed.length} observed counts but the region has ${nBins} bins`, path: ['regions', i, 'observed'] });
+  });
+  const processes = new Set(m.processes.map((p) => p.key));
+
+  const pairIssue = (region: string, process: string, path: (string | number)[]) => {
+    if (!bins.has(region)) issues.push({ message: `unknown region "${region}"`, path: [...path, 'region'] });
+    if (!processes.has(process)) issues.push({ message: `unknown process "${process}"`, path: [...path, 'process'] });
+  };
+  const lengthIssue = (values: number[] | undefined, region: string, path: (string | number)[]) => {
+    const n = bins.get(region);
+    if (values && n !== undefined && values.length !== n)
+      issues.push({ message: `has ${values.length} values but region "${region}" has ${n} bins`, path });
+  };
+
+  const templatePairs = new Set<string>();
+  m.templates.forEach((t, i) => {
+    const path = ['templates', i];
+    pairIssue(t.region, t.process, path);
+    const pair = `${t.region}\u0000${t.process}`;
+    if (templatePairs.has(pair)) issues.push({ message: `a second template for region "${t.region}" and process "${t.process}"`, path });
+    templatePairs.add(pair);
+    lengthIssue(t.nominal, t.region, [...path, 'nominal']);
+    lengthIssue(t.variance, t.region, [...path, 'variance']);
+  });
+  const hasTemplate = (region: string, process: string) => templatePairs.has(`${region}\u0000${process}`);
+
+  const normTargets = new Set<string>();
+  m.floatingNorms.forEach((f, i) => {
+    if (!(f.min < f.max)) issues.push({ message: 'min must be below max', path: ['floatingNorms', i, 'min'] });
+    else if (f.start < f.min || f.start > f.max) issues.push({ message: 'start must lie within [min, max]', path: ['floatingNorms', i, 'start'] });
+    f.targets.forEach((t, j) => {
+      const path = ['floatingNorms', i, 'targets', j];
+      pairIssue(t.region, t.process, path);
+      const pair = `${t.region}\u0000${t.process}`;
+      if (normTargets.has(pair)) issues.push({ message: `region "${t.region}", process "${t.process}" already has a floating normalisation`, path });
+      normTargets.add(pair);
+    });
+  });
+
+  m.systematics.forEach((s, i) => {
+    const seen = new Set<string>();
+    s.effects.forEach((e, j) => {
+      const path = ['systematics', i, 'effects', j];
+      pairIssue(e.region, e.process, path);
+      if (bins.has(e.region) && processes.has(e.process) && !hasTemplate(e.region, e.process))
+        issues.push({ message: `region "${e.region}" has no template for process "${e.process}" to vary`, path });
+      const pair = `${e.region}\u0000${e.process}\u0000${e.kind}`;
+      if (seen.has(pair)) issues.push({ message: `a second ${e.kind} effect on region "${e.region}", process "${e.process}"`, path });
+      seen.add(pair);
+      if (e.kind === 'shape') {
+        lengthIssue(e.up, e.region, [...path, 'up']);
+        lengthIssue(e.down, e.region, [...path, 'down']);
+      }
+    });
+  });
+  return issues;
+}
+
+export const exchangeModelSchema = exchangeModelShape.check((ctx) => {
+  for (const issue of modelConsistencyIssues(ctx.value)) ctx.issues.push({ code: 'custom', input: ctx.value, ...issue });
+});
+export type ExchangeModel = z.infer<typeof exchangeModelSchema>;
+/** The document as written (defaults not yet applied). */
+export type ExchangeModelInput = z.input<typeof exchangeModelSchema>;
