@@ -1,0 +1,325 @@
+
+import {
+  boolean,
+  doublePrecision,
+  index,
+  integer,
+  json,
+  jsonb,
+  pgEnum,
+  pgTable,
+  primaryKey,
+  serial,
+  text,
+  timestamp,
+  uniqueIndex,
+  varchar,
+} from 'drizzle-orm/pg-core';
+
+/**
+ * The single source of truth for the data model. Migrations in drizzle/ are generated from
+ * this file (`npm run db:generate`); insert and patch schemas derive from it.
+ */
+
+const createdAt = () => timestamp('created_at', { withTimezone: true, mode: 'date' }).notNull().defaultNow();
+
+export const memberRole = pgEnum('member_role', ['convener', 'analyst', 'contact', 'reader']);
+export const regionRole = pgEnum('region_role', ['signal', 'control', 'validation']);
+export const processKind = pgEnum('process_kind', ['signal', 'background']);
+export const effectKind = pgEnum('effect_kind', ['scale', 'shape']);
+export const entryState = pgEnum('entry_state', ['draft', 'submitted', 'accepted', 'sent_back', 'retired']);
+export const blindingState = pgEnum('blinding_state', ['blinded', 'unblinding_requested', 'unblinded']);
+export const fitState = pgEnum('fit_state', ['queued', 'running', 'succeeded', 'failed', 'cancelled']);
+export const questionState = pgEnum('question_state', ['open', 'answered', 'resolved']);
+
+export const users = pgTable('users', {
+  id: serial('id').primaryKey(),
+  email: varchar('email', { length: 254 }).notNull().unique(),
+  name: varchar('name', { length: 120 }).notNull(),
+  /** scrypt: "scrypt$N$r$p$salt$hash", all base64 */
+  passwordHash: text('password_hash').notNull(),
+  isAdmin: boolean('is_admin').notNull().default(false),
+  createdAt: createdAt(),
+});
+
+export const analyses = pgTable('analyses', {
+  id: serial('id').primaryKey(),
+  slug: varchar('slug', { length: 64 }).notNull().unique(),
+  name: varchar('name', { length: 200 }).notNull(),
+  description: text('description').notNull().default(''),
+  blinding: blindingState('blinding').notNull().default('blinded'),
+  /** Signal strength μ: start and bounds (MODEL.md §1). */
+  muStart: doublePrecision('mu_start').notNull().default(1),
+  muMin: doublePrecision('mu_min').notNull().default(-10),
+  muMax: doublePrecision('mu_max').notNull().default(20),
+  /** Constraint below this is flagged over-constrained (MODEL.md §6). */
+  overConstraintThreshold: doublePrecision('over_constraint_threshold').notNull().default(0.5),
+  createdAt: createdAt(),
+});
+
+export const memberships = pgTable(
+  'memberships',
+  {
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    userId: integer('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+    role: memberRole('role').notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [primaryKey({ columns: [t.analysisId, t.userId] })],
+);
+
+export const invitations = pgTable('invitations', {
+  id: serial('id').primaryKey(),
+  analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+  email: varchar('email', { length: 254 }).notNull(),
+  role: memberRole('role').notNull(),
+  /** SHA-256 of the token sent by e-mail; the token itself is never stored. */
+  tokenHash: varchar('token_hash', { length: 64 }).notNull().unique(),
+  invitedById: integer('invited_by_id').notNull().references(() => users.id),
+  createdAt: createdAt(),
+  acceptedAt: timestamp('accepted_at', { withTimezone: true }),
+});
+
+export const regions = pgTable(
+  'regions',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    key: varchar('key', { length: 64 }).notNull(),
+    label: varchar('label', { length: 200 }).notNull().default(''),
+    role: regionRole('role').notNull(),
+    observable: varchar('observable', { length: 100 }).notNull(),
+    unit: varchar('unit', { length: 30 }).notNull().default(''),
+    edges: jsonb('edges').$type<number[]>().notNull(),
+    /** Observed counts per bin, null until data are recorded. Never sent while blinded for signal regions. */
+    observed: jsonb('observed').$type<number[] | null>(),
+    position: integer('position').notNull().default(0),
+  },
+  (t) => [uniqueIndex('regions_analysis_key').on(t.analysisId, t.key)],
+);
+
+export const processes = pgTable(
+  'processes',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    key: varchar('key', { length: 64 }).notNull(),
+    label: varchar('label', { length: 200 }).notNull().default(''),
+    kind: processKind('kind').notNull(),
+    colour: varchar('colour', { length: 7 }),
+    position: integer('position').notNull().default(0),
+  },
+  (t) => [uniqueIndex('processes_analysis_key').on(t.analysisId, t.key)],
+);
+
+export const floatingNorms = pgTable(
+  'floating_norms',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    key: varchar('key', { length: 64 }).notNull(),
+    label: varchar('label', { length: 200 }).notNull().default(''),
+    start: doublePrecision('start').notNull().default(1),
+    min: doublePrecision('min').notNull().default(0),
+    max: doublePrecision('max').notNull().default(10),
+  },
+  (t) => [uniqueIndex('floating_norms_analysis_key').on(t.analysisId, t.key)],
+);
+
+export const templates = pgTable(
+  'templates',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    regionId: integer('region_id').notNull().references(() => regions.id, { onDelete: 'cascade' }),
+    processId: integer('process_id').notNull().references(() => processes.id, { onDelete: 'cascade' }),
+    nominal: jsonb('nominal').$type<number[]>().notNull(),
+    variance: jsonb('variance').$type<number[] | null>(),
+    /** The floating normalisation multiplying this template, if any. */
+    floatingNormId: integer('floating_norm_id').references(() => floatingNorms.id, { onDelete: 'set null' }),
+  },
+  (t) => [uniqueIndex('templates_region_process').on(t.regionId, t.processId)],
+);
+
+export const groups = pgTable(
+  'groups',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    name: varchar('name', { length: 64 }).notNull(),
+    position: integer('position').notNull().default(0),
+  },
+  (t) => [uniqueIndex('groups_analysis_name').on(t.analysisId, t.name)],
+);
+
+/** A register entry: one systematic uncertainty, one nuisance parameter in the fit. */
+export const entries = pgTable(
+  'entries',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    key: varchar('key', { length: 64 }).notNull(),
+    label: varchar('label', { length: 200 }).notNull(),
+    groupId: integer('group_id').references(() => groups.id, { onDelete: 'set null' }),
+    ownerId: integer('owner_id').references(() => users.id, { onDelete: 'set null' }),
+    description: text('description').notNull().default(''),
+    justification: text('justification').notNull().default(''),
+    references: jsonb('references').$type<string[]>().notNull().default([]),
+    state: entryState('state').notNull().default('draft'),
+    /** Incremented on every change; clients send it back to detect concurrent edits. */
+    version: integer('version').notNull().default(1),
+    createdAt: createdAt(),
+    updatedAt: timestamp('updated_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [uniqueIndex('entries_analysis_key').on(t.analysisId, t.key), index('entries_owner').on(t.ownerId)],
+);
+
+export type EffectWarning = { code: string; message: string; bins?: number[] };
+
+export const effects = pgTable(
+  'effects',
+  {
+    id: serial('id').primaryKey(),
+    entryId: integer('entry_id').notNull().references(() => entries.id, { onDelete: 'cascade' }),
+    regionId: integer('region_id').notNull().references(() => regions.id, { onDelete: 'cascade' }),
+    processId: integer('process_id').notNull().references(() => processes.id, { onDelete: 'cascade' }),
+    kind: effectKind('kind').notNull(),
+    /** scale: ratio κ (a number); shape: varied template (number per bin). */
+    up: jsonb('up').$type<number | number[]>().notNull(),
+    down: jsonb('down').$type<number | number[]>().notNull(),
+    warnings: jsonb('warnings').$type<EffectWarning[]>().notNull().default([]),
+    uploadId: integer('upload_id').references(() => uploads.id, { onDelete: 'set null' }),
+  },
+  (t) => [uniqueIndex('effects_entry_region_process_kind').on(t.entryId, t.regionId, t.processId, t.kind)],
+);
+
+/** Raw uploaded files kept for provenance. */
+export const uploads = pgTable('uploads', {
+  id: serial('id').primaryKey(),
+  analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+  entryId: integer('entry_id').references(() => entries.id, { onDelete: 'cascade' }),
+  userId: integer('user_id').notNull().references(() => users.id),
+  filename: varchar('filename', { length: 255 }).notNull(),
+  mediaType: varchar('media_type', { length: 100 }).notNull(),
+  sha256: varchar('sha256', { length: 64 }).notNull(),
+  size: integer('size').notNull(),
+  content: text('content').notNull(),
+  createdAt: createdAt(),
+});
+
+/** Every change to an entry or to the model: who, when, what (before/after). */
+export const revisions = pgTable(
+  'revisions',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    entryId: integer('entry_id').references(() => entries.id, { onDelete: 'cascade' }),
+    authorId: integer('author_id').references(() => users.id, { onDelete: 'set null' }),
+    action: varchar('action', { length: 40 }).notNull(),
+    summary: text('summary').notNull(),
+    before: jsonb('before'),
+    after: jsonb('after'),
+    createdAt: createdAt(),
+  },
+  (t) => [index('revisions_entry').on(t.entryId)],
+);
+
+/** A frozen, numbered, immutable snapshot of the whole model (the exchange document). */
+export const modelVersions = pgTable(
+  'model_versions',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    number: integer('number').notNull(),
+    note: text('note').notNull().default(''),
+    model: jsonb('model').notNull(),
+    sha256: varchar('sha256', { length: 64 }).notNull(),
+    forApproval: boolean('for_approval').notNull().default(false),
+    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex('model_versions_analysis_number').on(t.analysisId, t.number)],
+);
+
+export const fits = pgTable(
+  'fits',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    modelVersionId: integer('model_version_id').notNull().references(() => modelVersions.id),
+    label: varchar('label', { length: 200 }).notNull().default(''),
+    options: jsonb('options').notNull(),
+    state: fitState('state').notNull().default('queued'),
+    progress: doublePrecision('progress').notNull().default(0),
+    stage: varchar('stage', { length: 100 }).notNull().default(''),
+    /** Why a fit failed or was cancelled, in words a person can act on. */
+    failure: text('failure'),
+    result: jsonb('result'),
+    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+    startedAt: timestamp('started_at', { withTimezone: true }),
+    finishedAt: timestamp('finished_at', { withTimezone: true }),
+  },
+  (t) => [index('fits_analysis').on(t.analysisId)],
+);
+
+export const questions = pgTable(
+  'questions',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    entryId: integer('entry_id').notNull().references(() => entries.id, { onDelete: 'cascade' }),
+    fitId: integer('fit_id').references(() => fits.id, { onDelete: 'set null' }),
+    authorId: integer('author_id').references(() => users.id, { onDelete: 'set null' }),
+    title: varchar('title', { length: 200 }).notNull(),
+    body: text('body').notNull(),
+    state: questionState('state').notNull().default('open'),
+    createdAt: createdAt(),
+    resolvedAt: timestamp('resolved_at', { withTimezone: true }),
+    resolvedById: integer('resolved_by_id').references(() => users.id, { onDelete: 'set null' }),
+  },
+  (t) => [index('questions_entry').on(t.entryId)],
+);
+
+export const answers = pgTable('answers', {
+  id: serial('id').primaryKey(),
+  questionId: integer('question_id').notNull().references(() => questions.id, { onDelete: 'cascade' }),
+  authorId: integer('author_id').references(() => users.id, { onDelete: 'set null' }),
+  body: text('body').notNull(),
+  createdAt: createdAt(),
+});
+
+/** The blinding log: every request, approval and refusal, with who and when. */
+export const blindingEvents = pgTable('blinding_events', {
+  id: serial('id').primaryKey(),
+  analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+  userId: integer('user_id').references(() => users.id, { onDelete: 'set null' }),
+  action: varchar('action', { length: 20 }).notNull(),
+  note: text('note').notNull().default(''),
+  createdAt: createdAt(),
+});
+
+/** Every e-mail the product sends, as sent; admins read it on the Outbox screen. */
+export const outbox = pgTable('outbox', {
+  id: serial('id').primaryKey(),
+  analysisId: integer('analysis_id').references(() => analyses.id, { onDelete: 'set null' }),
+  to: text('to').notNull(),
+  subject: text('subject').notNull(),
+  body: text('body').notNull(),
+  messageId: text('message_id'),
+  delivered: boolean('delivered').notNull().default(false),
+  error: text('error'),
+  createdAt: createdAt(),
+});
+
+/** express-session store (connect-pg-simple's layout, created by our migrations). */
+export const sessions = pgTable(
+  'session',
+  {
+    sid: varchar('sid').primaryKey(),
+    sess: json('sess').notNull(),
+    expire: timestamp('expire', { precision: 6, mode: 'date' }).notNull(),
+  },
+  (t) => [index('IDX_session_expire').on(t.expire)],
+);
+
