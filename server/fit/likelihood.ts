@@ -1,0 +1,46 @@
+import type { CompiledModel } from './compiled-model';
+import { evaluateYields, type Workspace } from './yields';
+
+/**
+ * MODEL.md §4, −ln L up to a constant so that a perfect fit scores 0:
+ *   NLL = Σ_rb [ν − n + n ln(n/ν)] + Σ_i θ_i²/2 + Σ_rb (γ_rb − 1)² / (2σ_rb²)
+ * with n ln(n/ν) := 0 for n = 0. A bin with ν ≤ 0 and n > 0 gives +Infinity (never NaN), so
+ * a line search can step back from it.
+ */
+
+/** Poisson part of one bin (Baker & Cousins, NIM 221 (1984) 437: the saturated-model term). */
+export function poissonTerm(nu: number, n: number): number {
+  if (n > 0) return nu > 0 ? nu - n + n * Math.log(n / nu) : Infinity;
+  return nu > 0 ? nu : 0;
+}
+
+/** Σ over bins in the fit of the Poisson term at the yields held in the workspace. */
+export function poissonSum(m: CompiledModel, data: Float64Array, ws: Workspace): number {
+  let sum = 0;
+  for (let b = 0; b < m.nBins; b++) if (m.binInFit[b]) sum += poissonTerm(ws.nu[b], data[b]);
+  return sum;
+}
+
+/** Gaussian constraint terms of θ and γ. */
+export function constraintSum(m: CompiledModel, phi: Float64Array, gamma: Float64Array, gammaHeld: Uint8Array): number {
+  let sum = 0;
+  for (let i = m.thetaStart; i < m.nDense; i++) sum += 0.5 * phi[i] * phi[i];
+  for (let g = 0; g < m.nGamma; g++) {
+    if (gammaHeld[g]) continue;
+    const d = (gamma[g] - 1) / m.gammaSigma[g];
+    sum += 0.5 * d * d;
+  }
+  return sum;
+}
+
+export function negativeLogLikelihood(
+  m: CompiledModel,
+  data: Float64Array,
+  gammaHeld: Uint8Array,
+  phi: Float64Array,
+  gamma: Float64Array,
+  ws: Workspace,
+): number {
+  evaluateYields(m, phi, gamma, ws);
+  return poissonSum(m, data, ws) + constraintSum(m, phi, gamma, gammaHeld);
+}

@@ -1,0 +1,167 @@
+import type { ExchangeModel } from '@shared/schemas/exchange';
+import { EXCHANGE_FORMAT, EXCHANGE_VERSION } from '@shared/schemas/exchange';
+
+/**
+ * Deterministic synthetic models for benchmarks and tests: falling background spectra, a
+ * signal peak, control regions enriched in the backgrounds that float, 1–10 % scale effects,
+ * few-% shape effects and template variances; data drawn from the model at μ = 1 with a
+ * seeded generator.
+ */
+
+export type SyntheticSize = 'tiny' | 'small' | 'medium' | 'large';
+
+export interface SyntheticSpec {
+  regions: number;
+  signalRegions: number;
+  bins: number;
+  processes: number;
+  systematics: number;
+  floatingNorms: number;
+  /** Fraction of templates that carry a variance (1 = every template, so γ in every bin). */
+  varianceFraction: number;
+}
+
+export const SYNTHETIC_SIZES: Record<SyntheticSize, SyntheticSpec> = {
+  tiny: { regions: 1, signalRegions: 1, bins: 1, processes: 2, systematics: 0, floatingNorms: 0, varianceFraction: 0 },
+  small: { regions: 3, signalRegions: 1, bins: 10, processes: 4, systematics: 20, floatingNorms: 2, varianceFraction: 0.5 },
+  medium: { regions: 6, signalRegions: 2, bins: 25, processes: 6, systematics: 80, floatingNorms: 2, varianceFraction: 0.5 },
+  large: { regions: 10, signalRegions: 3, bins: 40, processes: 8, systematics: 250, floatingNorms: 3, varianceFraction: 1 },
+};
+
+/** mulberry32: a small seeded PRNG with uniform output in [0, 1) (common practice, no source). */
+export function createRandom(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+function gaussian(rand: () => number): number {
+  const u = Math.max(rand(), 1e-300);
+  return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * rand());
+}
+
+/** Poisson draw: multiplication method below 30, rounded normal above (ample for a benchmark). */
+function poisson(rand: () => number, mean: number): number {
+  if (mean <= 0) return 0;
+  if (mean < 30) {
+    const limit = Math.exp(-mean);
+    let k = 0;
+    let p = rand();
+    while (p > limit) {
+      k++;
+      p *= rand();
+    }
+    return k;
+  }
+  return Math.max(0, Math.round(mean + Math.sqrt(mean) * gaussian(rand)));
+}
+
+const GROUPS = ['jets', 'leptons', 'theory', 'flavour', 'luminosity'];
+
+export function syntheticModel(size: SyntheticSize | SyntheticSpec, seed = 1): ExchangeModel {
+  const spec = typeof size === 'string' ? SYNTHETIC_SIZES[size] : size;
+  const rand = createRandom(seed);
+  const B = spec.bins;
+  const regions = Array.from({ length: spec.regions }, (_, r) => ({
+    key: `${r < spec.signalRegions ? 'SR' : 'CR'}${r}`,
+    role: (r < spec.signalRegions ? 'signal' : 'control') as 'signal' | 'control',
+    observable: { name: 'mass', unit: 'GeV' },
+    edges: Array.from({ length: B + 1 }, (_, j) => 100 + 10 * j),
+    observed: [] as number[],
+  }));
+  const processes = Array.from({ length: spec.processes }, (_, p) => ({
+    key: p === 0 ? 'signal' : `bkg${p}`,
+    kind: (p === 0 ? 'signal' : 'background') as 'signal' | 'background',
+  }));
+
+  // Nominal templates: a peak for the signal, falling spectra for the backgrounds.
+  const templates = [];
+  const nominal = new Map<string, number[]>();
+  for (let r = 0; r < spec.regions; r++) {
+    const isSignal = r < spec.signalRegions;
+    for (let p = 0; p < spec.processes; p++) {
+      const values: number[] = [];
+      for (let j = 0; j < B; j++) {
+        const x = B === 1 ? 0.5 : j / (B - 1);
+        let v: number;
+        if (p === 0) {
+          const peak = Math.exp(-0.5 * ((x - 0.5) / 0.1) ** 2) * (B === 1 ? 10 : 40);
+          v = isSignal ? peak : 0.02 * peak;
+        } else {
+          const amplitude = (B === 1 ? 50 : 400) / p;
+          const enriched = !isSignal && p <= spec.floatingNorms && r % spec.floatingNorms === p - 1 ? 5 : 1;
+          v = amplitude * enriched * Math.exp(-x * (1 + 0.5 * p)) * (0.8 + 0.4 * rand());
+        }
+        values.push(v);
+      }
+      const key = `${regions[r].key}\u0000${processes[p].key}`;
+      nominal.set(key, values);
+      const withVariance = rand() < spec.varianceFraction || (spec.varianceFraction >= 1 && p > 0);
+      // Variance of a template filled with events of weight 0.05–0.3.
+      const weight = 0.05 + 0.25 * rand();
+      templates.push({
+        region: regions[r].key,
+        process: processes[p].key,
+        nominal: values,
+        ...(withVariance ? { variance: values.map((v) => v * weight) } : {}),
+      });
+    }
+  }
+
+  const floatingNorms = Array.from({ length: spec.floatingNorms }, (_, f) => ({
+    key: `k_bkg${f + 1}`,
+    start: 1,
+    min: 0,
+    max: 10,
+    targets: regions.map((r) => ({ region: r.key, process: `bkg${f + 1}` })),
+  }));
+
+  // Systematics: each touches 1–3 processes in every region; 70 % scale, 20 % shape, 10 % both.
+  const systematics = [];
+  for (let i = 0; i < spec.systematics; i++) {
+    const nTouched = 1 + Math.floor(rand() * Math.min(3, spec.processes));
+    const touched = new Set<number>();
+    while (touched.size < nTouched) touched.add(Math.floor(rand() * spec.processes));
+    const kind = rand();
+    const effects = [];
+    for (const p of touched) {
+      const size = 0.01 + 0.09 * rand();
+      const asym = 1 + 0.3 * (rand() - 0.5);
+      const slope = 0.02 + 0.04 * rand();
+      for (const region of regions) {
+        const nom = nominal.get(`${region.key}\u0000${processes[p].key}`)!;
+        if (kind < 0.8) effects.push({ region: region.key, process: processes[p].key, kind: 'scale' as const, up: 1 + size, down: 1 / (1 + size * asym) });
+        if (kind >= 0.7) {
+          const up = nom.map((v, j) => v * (1 + slope * (B === 1 ? 1 : (2 * j) / (B - 1) - 1)));
+          const down = nom.map((v, j) => v * (1 - slope * 0.9 * (B === 1 ? 1 : (2 * j) / (B - 1) - 1)));
+          effects.push({ region: region.key, process: processes[p].key, kind: 'shape' as const, up, down });
+        }
+      }
+    }
+    systematics.push({ key: `syst${i}`, group: GROUPS[i % GROUPS.length], effects });
+  }
+
+  // Data: Poisson draws at μ = 1 and nominal nuisance parameters.
+  for (const region of regions) {
+    const totals = new Array(B).fill(0);
+    for (const p of processes) nominal.get(`${region.key}\u0000${p.key}`)!.forEach((v, j) => (totals[j] += v));
+    region.observed = totals.map((t) => poisson(rand, t));
+  }
+
+  return {
+    format: EXCHANGE_FORMAT,
+    version: EXCHANGE_VERSION,
+    name: `synthetic ${typeof size === 'string' ? size : 'custom'} (seed ${seed})`,
+    signalStrength: { start: 1, min: -10, max: 20 },
+    regions,
+    processes,
+    floatingNorms,
+    templates,
+    systematics,
+  };
+}

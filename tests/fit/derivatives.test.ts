@@ -1,0 +1,98 @@
+import { Matrix } from 'ml-matrix';
+import { describe, expect, it } from 'vitest';
+import { computeDerivatives, createDerivatives } from '../../server/fit/derivatives';
+import { negativeLogLikelihood } from '../../server/fit/likelihood';
+import { buildProblem, startPoint } from '../../server/fit/problem';
+import { createRandom, syntheticModel } from '../../server/fit/synthetic';
+import { createWorkspace } from '../../server/fit/yields';
+import { expectClose } from './helpers';
+
+const options = { dataset: 'observed' as const, asimovMu: 1, controlOnly: false, excludeRegions: [] };
+
+/** A random point: θ in [−1.6, 1.6] so both sides of the interpolation's ±1 seams are used. */
+function randomSetup(seed: number) {
+  const problem = buildProblem(syntheticModel({ regions: 3, signalRegions: 1, bins: 5, processes: 3, systematics: 6, floatingNorms: 1, varianceFraction: 0.7 }, seed), options);
+  const m = problem.model;
+  const rand = createRandom(seed + 100);
+  const { phi, gamma } = startPoint(m);
+  phi[0] = 0.5 + rand();
+  for (let i = 1; i < m.thetaStart; i++) phi[i] = 0.8 + 0.4 * rand();
+  for (let i = m.thetaStart; i < m.nDense; i++) phi[i] = 3.2 * (rand() - 0.5);
+  for (let g = 0; g < m.nGamma; g++) gamma[g] = 0.9 + 0.2 * rand();
+  return { problem, m, phi, gamma };
+}
+
+/** Full point x = (φ, γ) ↦ NLL. */
+function nllAt(setup: ReturnType<typeof randomSetup>, x: Float64Array): number {
+  const { m, problem } = setup;
+  const ws = createWorkspace(m);
+  return negativeLogLikelihood(m, problem.data, problem.gammaHeld, x.subarray(0, m.nDense), x.subarray(m.nDense), ws);
+}
+
+function gradientAt(setup: ReturnType<typeof randomSetup>, x: Float64Array): Float64Array {
+  const { m, problem } = setup;
+  const ws = createWorkspace(m);
+  const d = createDerivatives(m);
+  const phi = Float64Array.from(x.subarray(0, m.nDense));
+  const gamma = Float64Array.from(x.subarray(m.nDense));
+  negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws);
+  computeDerivatives(m, problem.data, phi, gamma, new Uint8Array(m.nGamma).fill(1), ws, d, false);
+  const out = new Float64Array(x.length);
+  out.set(d.g);
+  out.set(d.gGamma, m.nDense);
+  return out;
+}
+
+describe('analytic derivatives', () => {
+  for (const seed of [3, 11, 29]) {
+    it(`match central finite differences of the NLL on random model ${seed} (gradient; common practice, no source)`, () => {
+      const setup = randomSetup(seed);
+      const x = new Float64Array([...setup.phi, ...setup.gamma]);
+      const g = gradientAt(setup, x);
+      for (let i = 0; i < x.length; i++) {
+        const h = 1e-6;
+        const xp = Float64Array.from(x);
+        const xm = Float64Array.from(x);
+        xp[i] += h;
+        xm[i] -= h;
+        const fd = (nllAt(setup, xp) - nllAt(setup, xm)) / (2 * h);
+        expectClose(g[i], fd, 1e-6, 1e-6);
+      }
+    });
+
+    it(`give the γ-eliminated Hessian equal to the Schur complement of the finite-difference Hessian (random model ${seed})`, () => {
+      const setup = randomSetup(seed);
+      const { m, problem, phi, gamma } = setup;
+      const P = m.nDense;
+      const N = P + m.nGamma;
+      const x = new Float64Array([...phi, ...gamma]);
+      // Full Hessian by central differences of the analytic gradient.
+      const full = Matrix.zeros(N, N);
+      for (let i = 0; i < N; i++) {
+        const h = 1e-5;
+        const xp = Float64Array.from(x);
+        const xm = Float64Array.from(x);
+        xp[i] += h;
+        xm[i] -= h;
+        const gp = gradientAt(setup, xp);
+        const gm = gradientAt(setup, xm);
+        for (let j = 0; j < N; j++) full.set(j, i, (gp[j] - gm[j]) / (2 * h));
+      }
+      const Hpp = full.subMatrix(0, P - 1, 0, P - 1);
+      const Hpg = full.subMatrix(0, P - 1, P, N - 1);
+      const Hgg = full.subMatrix(P, N - 1, P, N - 1);
+      // The γ block is diagonal: each γ touches one bin.
+      for (let a = 0; a < m.nGamma; a++) for (let b = 0; b < m.nGamma; b++) if (a !== b) expect(Math.abs(Hgg.get(a, b))).toBeLessThan(1e-4);
+      const Dinv = Matrix.zeros(m.nGamma, m.nGamma);
+      for (let a = 0; a < m.nGamma; a++) Dinv.set(a, a, 1 / Hgg.get(a, a));
+      const schur = Hpp.sub(Hpg.mmul(Dinv).mmul(Hpg.transpose()));
+
+      const ws = createWorkspace(m);
+      const d = createDerivatives(m);
+      negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws);
+      computeDerivatives(m, problem.data, phi, gamma, new Uint8Array(m.nGamma).fill(1), ws, d, true);
+      for (let i = 0; i < P; i++) for (let j = 0; j < P; j++) expectClose(d.H[i * P + j], schur.get(i, j), 1e-5, 1e-4);
+      for (let a = 0; a < m.nGamma; a++) expectClose(d.D[a], Hgg.get(a, a), 1e-5, 1e-4);
+    });
+  }
+});
