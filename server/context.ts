@@ -1,0 +1,11 @@
+import type { PGlite } from '@electric-sql/pglite';
+import type { Config } from './config';
+import type { Db } from './db/client';
+
+/** What every route and service may reach: built once in createApp. */
+export type AppContext = {
+  db: Db;
+  client: PGlite;
+  config: Config;
+  log: (line: string) => void;
+};

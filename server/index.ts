@@ -1,0 +1,71 @@
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import { randomBytes } from 'node:crypto';
+import path from 'node:path';
+import express from 'express';
+import { createApp } from './app';
+import { ConfigError, loadConfig, type Config } from './config';
+import { DataDirLockedError, openDatabase, projectRoot } from './db/client';
+import { seedDemo } from './seed/demo';
+
+/** Without SESSION_SECRET, a random secret is kept in the data folder so sessions survive restarts. */
+function sessionSecret(config: Config) {
+  if (config.sessionSecret) return config.sessionSecret;
+  const file = path.join(config.dataDir, 'session-secret');
+  if (!existsSync(file)) writeFileSync(file, randomBytes(32).toString('hex'), { mode: 0o600 });
+  return readFileSync(file, 'utf8').trim();
+}
+
+async function serveClient(app: express.Express, config: Config) {
+  if (config.NODE_ENV === 'development') {
+    const { createServer } = await import('vite');
+    const vite = await createServer({
+      root: projectRoot,
+      server: { middlewareMode: true, watch: { ignored: ['**/data/**', '**/test-output/**'] } },
+      appType: 'spa',
+    });
+    app.use(vite.middlewares);
+    return () => vite.close();
+  }
+  const dist = path.join(projectRoot, 'dist/client');
+  if (!existsSync(path.join(dist, 'index.html'))) throw new ConfigError(`The client is not built (${dist} is missing). Run "npm run build" first.`);
+  app.use(express.static(dist, { index: false, maxAge: '1h' }));
+  app.get('/{*splat}', (_req, res) => res.sendFile(path.join(dist, 'index.html')));
+  return async () => {};
+}
+
+async function main() {
+  if (process.argv.includes('--dev')) process.env.NODE_ENV = 'development';
+  const base = loadConfig();
+  const database = await openDatabase(base.dataDir);
+  const config = { ...base, sessionSecret: sessionSecret(base) };
+  const seed = await seedDemo(database.db);
+  const { app } = createApp(database, config);
+  const closeClient = await serveClient(app, config);
+
+  const server = app.listen(config.PORT, config.HOST, () => {
+    const address = server.address();
+    const port = typeof address === 'object' && address ? address.port : config.PORT;
+    console.log(`Plumbline is running at http://localhost:${port} (${config.NODE_ENV}; data in ${config.dataDir})`);
+    if (seed.seeded) console.log('The invented demo scenario was written into the new database.');
+    console.log(`Demo accounts (password for all: ${seed.password}):`);
+    for (const a of seed.accounts) console.log(`  ${a.email.padEnd(26)} ${a.note}`);
+  });
+
+  let stopping = false;
+  const stop = async () => {
+    if (stopping) return;
+    stopping = true;
+    server.close();
+    await closeClient();
+    await database.close();
+    process.exit(0);
+  };
+  process.on('SIGINT', stop);
+  process.on('SIGTERM', stop);
+}
+
+main().catch((e) => {
+  if (e instanceof ConfigError || e instanceof DataDirLockedError) console.error(e.message);
+  else console.error(e);
+  process.exit(1);
+});

@@ -1,0 +1,43 @@
+import { z } from 'zod';
+import type { AppContext } from '../context';
+import { accessOf, type authorizer } from '../auth/authorize';
+import { createAnalysis, getOverview, listAnalyses } from '../services/analyses.service';
+import { addMember, changeRole, listMembers, removeMember } from '../services/members.service';
+import { getModel } from '../services/model.service';
+import { listEntries } from '../services/register.service';
+import { route, type ApiRoute } from './route';
+
+const userIdParam = z.coerce.number({ error: 'the user id in the address must be a number' }).int().positive();
+
+export const analysesRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>): ApiRoute[] => [
+  route('get', '/api/analyses', auth.signedIn, async (req, res) => {
+    res.json(await listAnalyses(ctx, req.user!));
+  }),
+  route('post', '/api/analyses', auth.admin, async (req, res) => {
+    res.status(201).json(await createAnalysis(ctx, req.body));
+  }),
+  route('get', '/api/analyses/:slug', auth.may('analysis.read'), async (req, res) => {
+    res.json(await getOverview(ctx, accessOf(req)));
+  }),
+
+  route('get', '/api/analyses/:slug/members', auth.may('analysis.read'), async (req, res) => {
+    res.json(await listMembers(ctx, accessOf(req)));
+  }),
+  route('post', '/api/analyses/:slug/members', auth.may('members.manage'), async (req, res) => {
+    res.status(201).json(await addMember(ctx, accessOf(req), req.body));
+  }),
+  route('patch', '/api/analyses/:slug/members/:userId', auth.may('members.manage'), async (req, res) => {
+    res.json(await changeRole(ctx, accessOf(req), userIdParam.parse(req.params.userId), req.body));
+  }),
+  route('delete', '/api/analyses/:slug/members/:userId', auth.may('members.manage'), async (req, res) => {
+    await removeMember(ctx, accessOf(req), userIdParam.parse(req.params.userId));
+    res.status(204).end();
+  }),
+
+  route('get', '/api/analyses/:slug/model', auth.may('analysis.read'), async (req, res) => {
+    res.json(await getModel(ctx, accessOf(req)));
+  }),
+  route('get', '/api/analyses/:slug/entries', auth.may('analysis.read'), async (req, res) => {
+    res.json(await listEntries(ctx, accessOf(req)));
+  }),
+];

@@ -1,0 +1,34 @@
+import { count } from 'drizzle-orm';
+import { hashPassword } from '../auth/passwords';
+import type { Db } from '../db/client';
+import { analyses, memberships, users } from '../db/schema';
+import { importModel } from '../services/exchange-import.service';
+import { demoScenario, type DemoAccount } from './scenario';
+
+export type SeedOutcome = { seeded: boolean; accounts: DemoAccount[]; password: string };
+
+/** Writes the invented demo (accounts, two analyses with their models and registers) into an empty database. */
+export async function seedDemo(db: Db): Promise<SeedOutcome> {
+  const scenario = demoScenario();
+  const [{ n }] = await db.select({ n: count() }).from(users);
+  if (n > 0) return { seeded: false, accounts: scenario.accounts, password: scenario.password };
+
+  const passwordHash = await hashPassword(scenario.password);
+  const userRows = await db
+    .insert(users)
+    .values(scenario.accounts.map((a) => ({ email: a.email, name: a.name, isAdmin: a.isAdmin, passwordHash })))
+    .returning();
+  const idOf = new Map(userRows.map((u) => [u.email, u.id]));
+  const admin = userRows.find((u) => u.isAdmin)!;
+
+  for (const demo of scenario.analyses) {
+    const [analysis] = await db
+      .insert(analyses)
+      .values({ slug: demo.slug, name: demo.name, description: demo.description, blinding: demo.blinded ? 'blinded' : 'unblinded' })
+      .returning();
+    await db.insert(memberships).values(demo.members.map((m) => ({ analysisId: analysis.id, userId: idOf.get(m.email)!, role: m.role })));
+    const entryMeta = Object.fromEntries(Object.entries(demo.entries).map(([key, m]) => [key, { ...m, ownerId: idOf.get(m.owner) ?? null }]));
+    await importModel(db, analysis.id, demo.model, { authorId: admin.id, entryMeta });
+  }
+  return { seeded: true, accounts: scenario.accounts, password: scenario.password };
+}

@@ -1,0 +1,131 @@
+import { count, eq } from 'drizzle-orm';
+import { exchangeModelSchema, type ExchangeModel, type ExchangeModelInput } from '@shared/schemas/exchange';
+import type { EntryState } from '@shared/schemas/api';
+import { scaleWarnings, shapeWarnings } from '@shared/validation/variation-warnings';
+import type { Db } from '../db/client';
+import { effects, entries, floatingNorms, groups, processes, regions, revisions, templates } from '../db/schema';
+import { conflict, unprocessable, zodIssues } from '../errors';
+
+export type EntryMeta = { ownerId?: number | null; state?: EntryState; justification?: string; references?: string[] };
+
+type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
+
+/** Parses an exchange document with the shared schema; a bad one is refused with the failing paths. */
+export function parseExchange(document: unknown): ExchangeModel {
+  const parsed = exchangeModelSchema.safeParse(document);
+  if (!parsed.success) throw unprocessable('The model file is not valid', zodIssues(parsed.error));
+  return parsed.data;
+}
+
+/**
+ * Writes a whole model into an analysis that has none yet, in one transaction: regions, processes,
+ * floating normalisations, templates, groups, register entries with their effects and warnings,
+ * and a revision per entry. Nothing is written if any step fails.
+ */
+export async function importModel(
+  db: Db,
+  analysisId: number,
+  document: ExchangeModelInput | unknown,
+  options: { authorId: number | null; entryMeta?: Record<string, EntryMeta> },
+) {
+  const model = parseExchange(document);
+  return db.transaction(async (tx) => {
+    const [{ n }] = await tx.select({ n: count() }).from(regions).where(eq(regions.analysisId, analysisId));
+    if (n > 0) throw conflict('This analysis already has a model. Import into a new analysis.');
+    return writeModel(tx, analysisId, model, options);
+  });
+}
+
+async function writeModel(tx: Tx, analysisId: number, model: ExchangeModel, options: { authorId: number | null; entryMeta?: Record<string, EntryMeta> }) {
+  const regionRows = await tx
+    .insert(regions)
+    .values(
+      model.regions.map((r, i) => ({
+        analysisId,
+        key: r.key,
+        label: r.label ?? '',
+        role: r.role,
+        observable: r.observable.name,
+        unit: r.observable.unit,
+        edges: r.edges,
+        observed: r.observed ?? null,
+        position: i,
+      })),
+    )
+    .returning();
+  const processRows = await tx
+    .insert(processes)
+    .values(model.processes.map((p, i) => ({ analysisId, key: p.key, label: p.label ?? '', kind: p.kind, colour: p.colour ?? null, position: i })))
+    .returning();
+  const normRows = model.floatingNorms.length
+    ? await tx
+        .insert(floatingNorms)
+        .values(model.floatingNorms.map((f) => ({ analysisId, key: f.key, label: f.label ?? '', start: f.start, min: f.min, max: f.max })))
+        .returning()
+    : [];
+  const regionId = new Map(regionRows.map((r) => [r.key, r.id]));
+  const processId = new Map(processRows.map((p) => [p.key, p.id]));
+  const normOf = new Map<string, number>();
+  model.floatingNorms.forEach((f, i) => f.targets.forEach((t) => normOf.set(`${t.region}/${t.process}`, normRows[i].id)));
+
+  if (model.templates.length)
+    await tx.insert(templates).values(
+      model.templates.map((t) => ({
+        analysisId,
+        regionId: regionId.get(t.region)!,
+        processId: processId.get(t.process)!,
+        nominal: t.nominal,
+        variance: t.variance ?? null,
+        floatingNormId: normOf.get(`${t.region}/${t.process}`) ?? null,
+      })),
+    );
+  const nominalOf = new Map(model.templates.map((t) => [`${t.region}/${t.process}`, t.nominal]));
+
+  const groupNames = [...new Set(model.systematics.map((s) => s.group).filter((g): g is string => !!g))];
+  const groupRows = groupNames.length
+    ? await tx
+        .insert(groups)
+        .values(groupNames.map((name, i) => ({ analysisId, name, position: i })))
+        .returning()
+    : [];
+  const groupId = new Map(groupRows.map((g) => [g.name, g.id]));
+
+  for (const s of model.systematics) {
+    const meta = options.entryMeta?.[s.key] ?? {};
+    const [entry] = await tx
+      .insert(entries)
+      .values({
+        analysisId,
+        key: s.key,
+        label: s.label ?? s.key,
+        groupId: s.group ? groupId.get(s.group)! : null,
+        ownerId: meta.ownerId ?? null,
+        description: s.description ?? '',
+        justification: meta.justification ?? '',
+        references: meta.references ?? [],
+        state: meta.state ?? 'draft',
+      })
+      .returning();
+    if (s.effects.length)
+      await tx.insert(effects).values(
+        s.effects.map((e) => ({
+          entryId: entry.id,
+          regionId: regionId.get(e.region)!,
+          processId: processId.get(e.process)!,
+          kind: e.kind,
+          up: e.up,
+          down: e.down,
+          warnings: e.kind === 'scale' ? scaleWarnings(e.up, e.down) : shapeWarnings(nominalOf.get(`${e.region}/${e.process}`)!, e.up, e.down),
+        })),
+      );
+    await tx.insert(revisions).values({
+      analysisId,
+      entryId: entry.id,
+      authorId: options.authorId,
+      action: 'imported',
+      summary: `Imported with ${s.effects.length} effect${s.effects.length === 1 ? '' : 's'} from the model file "${model.name}".`,
+      after: { key: s.key, label: s.label, group: s.group, state: meta.state ?? 'draft', effects: s.effects.length },
+    });
+  }
+  return { regions: regionRows.length, processes: processRows.length, entries: model.systematics.length };
+}

@@ -1,0 +1,33 @@
+import type { Model } from '@shared/schemas/api';
+import type { Access } from '../auth/authorize';
+import type { AppContext } from '../context';
+import { loadModelRows } from '../db/model.repository';
+import { isWithheld, visibleObserved } from './blinding.service';
+
+export async function getModel(ctx: AppContext, access: Access): Promise<Model> {
+  const rows = await loadModelRows(ctx.db, access.analysis.id);
+  const regionKey = new Map(rows.regions.map((r) => [r.id, r.key]));
+  const processKey = new Map(rows.processes.map((p) => [p.id, p.key]));
+  const normKey = new Map(rows.floatingNorms.map((f) => [f.id, f.key]));
+  return {
+    regions: rows.regions.map((r) => ({
+      key: r.key,
+      label: r.label,
+      role: r.role,
+      observable: r.observable,
+      unit: r.unit,
+      edges: r.edges,
+      observed: visibleObserved(access.analysis, r),
+      withheld: isWithheld(access.analysis, r),
+    })),
+    processes: rows.processes.map((p) => ({ key: p.key, label: p.label, kind: p.kind, colour: p.colour })),
+    floatingNorms: rows.floatingNorms.map((f) => ({ key: f.key, label: f.label, start: f.start, min: f.min, max: f.max })),
+    templates: rows.templates.map((t) => ({
+      region: regionKey.get(t.regionId)!,
+      process: processKey.get(t.processId)!,
+      nominal: t.nominal,
+      variance: t.variance,
+      floatingNorm: t.floatingNormId ? normKey.get(t.floatingNormId)! : null,
+    })),
+  };
+}

@@ -1,0 +1,193 @@
+import { mkdtempSync, rmSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import request from 'supertest';
+import { count } from 'drizzle-orm';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { createApp } from '../../server/app';
+import { testConfig } from '../../server/config';
+import { openDatabase, DataDirLockedError } from '../../server/db/client';
+import { analyses, users } from '../../server/db/schema';
+import { seedDemo } from '../../server/seed/demo';
+import { Client, createTestApp, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
+
+const sessionCookie = (res: request.Response) => ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith('plumbline.sid='));
+
+describe('signing in', () => {
+  let t: TestApp;
+  beforeAll(async () => {
+    t = await createTestApp();
+  });
+  afterAll(async () => t.close());
+
+  it('signs in with the right password and returns the user with their analyses and roles', async () => {
+    const res = await new Client(t.app).signIn(DEMO.contact);
+    expect(res.status).toBe(200);
+    expect(res.body.user).toMatchObject({ email: DEMO.contact, isAdmin: false });
+    expect(res.body.memberships).toEqual(expect.arrayContaining([{ slug: 'vireon-search', name: expect.any(String), role: 'contact' }]));
+    expect(res.body.user.passwordHash).toBeUndefined();
+  });
+
+  it('refuses a wrong password and an unknown e-mail with the same 401 message', async () => {
+    const wrong = await new Client(t.app).signIn(DEMO.contact, 'not-the-password');
+    const unknown = await new Client(t.app).signIn('nobody@lantern.example');
+    expect(wrong.status).toBe(401);
+    expect(unknown.status).toBe(401);
+    expect(wrong.body.error.message).toBe(unknown.body.error.message);
+    expect(wrong.body.error.message).toMatch(/e-mail and password/);
+  });
+
+  it('issues a new session id at sign-in, so a planted session cannot be taken over', async () => {
+    const client = new Client(t.app);
+    const first = await client.agent.get('/api/auth/csrf');
+    const before = sessionCookie(first)!.split(';')[0];
+    const res = await client.signIn(DEMO.reader);
+    const after = sessionCookie(res)!.split(';')[0];
+    expect(after).not.toBe(before);
+  });
+
+  it('sets the session cookie httpOnly and SameSite', async () => {
+    const res = await new Client(t.app).signIn(DEMO.reader);
+    expect(sessionCookie(res)).toMatch(/HttpOnly/);
+    expect(sessionCookie(res)).toMatch(/SameSite=Lax/);
+  });
+
+  it('destroys the session at sign-out: the old cookie no longer signs anyone in', async () => {
+    const client = await signedIn(t.app, DEMO.reader);
+    expect((await client.get('/api/auth/me')).status).toBe(200);
+    const out = await client.send('post', '/api/auth/sign-out');
+    expect(out.status).toBe(204);
+    expect((await client.get('/api/auth/me')).status).toBe(401);
+  });
+
+  it('sends security headers', async () => {
+    const res = await request(t.app).get('/api/auth/csrf');
+    expect(res.headers['content-security-policy']).toContain("default-src 'self'");
+    expect(res.headers['x-content-type-options']).toBe('nosniff');
+    expect(res.headers['x-powered-by']).toBeUndefined();
+  });
+});
+
+describe('bad requests get a 4xx JSON message and write nothing', () => {
+  let t: TestApp;
+  let admin: Client;
+  const analysisCount = async () => (await t.database.db.select({ n: count() }).from(analyses))[0].n;
+  beforeAll(async () => {
+    t = await createTestApp({ BODY_LIMIT_BYTES: 4096 });
+    admin = await signedIn(t.app, DEMO.admin);
+  });
+  afterAll(async () => t.close());
+
+  it('refuses a state-changing request without a CSRF token', async () => {
+    const before = await analysisCount();
+    const res = await admin.agent.post('/api/analyses').send({ slug: 'no-token', name: 'No token' });
+    expect(res.status).toBe(403);
+    expect(res.body.error).toMatchObject({ code: 'csrf', message: expect.stringMatching(/security token/) });
+    expect(await analysisCount()).toBe(before);
+  });
+
+  it('refuses a CSRF token from another session', async () => {
+    const other = new Client(t.app);
+    const foreign = await other.csrf();
+    const res = await admin.agent.post('/api/analyses').set('x-csrf-token', foreign).send({ slug: 'foreign-token', name: 'x' });
+    expect(res.status).toBe(403);
+  });
+
+  it('refuses malformed JSON with a message about the syntax', async () => {
+    const token = await admin.csrf();
+    const res = await admin.agent.post('/api/analyses').set('x-csrf-token', token).set('content-type', 'application/json').send('{"slug": "broken",');
+    expect(res.status).toBe(400);
+    expect(res.body.error.message).toMatch(/not valid JSON/);
+  });
+
+  it('refuses unknown fields, naming them', async () => {
+    const before = await analysisCount();
+    const res = await admin.send('post', '/api/analyses', { slug: 'extra-field', name: 'Extra', colour: 'red' });
+    expect(res.status).toBe(400);
+    expect(res.body.error.message).toMatch(/colour/);
+    expect(await analysisCount()).toBe(before);
+  });
+
+  it('refuses a field of the wrong form, giving its path', async () => {
+    const res = await admin.send('post', '/api/analyses', { slug: 'Not A Slug!', name: 'x' });
+    expect(res.status).toBe(400);
+    expect(res.body.error.issues[0].path).toEqual(['slug']);
+    expect(res.body.error.message).toMatch(/slug: must be lower-case/);
+  });
+
+  it('refuses a body over the size limit with 413', async () => {
+    const before = await analysisCount();
+    const res = await admin.send('post', '/api/analyses', { slug: 'huge', name: 'x', description: 'x'.repeat(10_000) });
+    expect(res.status).toBe(413);
+    expect(res.body.error.message).toMatch(/too large/);
+    expect(await analysisCount()).toBe(before);
+  });
+
+  it('refuses an account with a short password or a taken e-mail', async () => {
+    const before = (await t.database.db.select({ n: count() }).from(users))[0].n;
+    const short = await admin.send('post', '/api/users', { email: 'short@lantern.example', name: 'S', password: 'short' });
+    expect(short.status).toBe(400);
+    expect(short.body.error.message).toMatch(/password: must be at least 10 characters/);
+    const taken = await admin.send('post', '/api/users', { email: DEMO.reader, name: 'Again', password: 'long-enough-pw' });
+    expect(taken.status).toBe(409);
+    expect((await t.database.db.select({ n: count() }).from(users))[0].n).toBe(before);
+  });
+
+  it('answers an unknown API route with a 404 that names it', async () => {
+    const res = await admin.get('/api/nothing-here');
+    expect(res.status).toBe(404);
+    expect(res.body.error.message).toContain('GET /api/nothing-here');
+  });
+
+  it('keeps the last convener: demoting them is refused', async () => {
+    const members = (await admin.get('/api/analyses/vireon-search/members')).body as { userId: number; role: string }[];
+    const convener = members.find((m) => m.role === 'convener')!;
+    const res = await admin.send('patch', `/api/analyses/vireon-search/members/${convener.userId}`, { role: 'reader' });
+    expect(res.status).toBe(409);
+    expect(res.body.error.message).toMatch(/only convener/);
+  });
+});
+
+describe('sign-in rate limit', () => {
+  it('answers 429 once an address has used up its sign-in attempts', async () => {
+    const t = await createTestApp({ SIGN_IN_LIMIT: 3 });
+    const statuses: number[] = [];
+    for (let i = 0; i < 4; i++) statuses.push((await new Client(t.app).signIn(DEMO.reader, 'wrong-password')).status);
+    expect(statuses).toEqual([401, 401, 401, 429]);
+    await t.close();
+  });
+});
+
+describe('a data folder', () => {
+  it('keeps sessions across a restart of the server', async () => {
+    const dir = mkdtempSync(path.join(os.tmpdir(), 'plumbline-'));
+    try {
+      const config = testConfig();
+      let database = await openDatabase(dir);
+      await seedDemo(database.db);
+      const client = await signedIn(createApp(database, config, () => {}).app, DEMO.reader);
+      const cookie = (await client.get('/api/auth/me')).request.cookies;
+      await database.close();
+
+      database = await openDatabase(dir);
+      const res = await request(createApp(database, config, () => {}).app).get('/api/auth/me').set('Cookie', cookie);
+      expect(res.status).toBe(200);
+      expect(res.body.user.email).toBe(DEMO.reader);
+      await database.close();
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
+  it('cannot be opened by a second server while the first holds it', async () => {
+    const dir = mkdtempSync(path.join(os.tmpdir(), 'plumbline-'));
+    const first = await openDatabase(dir);
+    // the lock names a live process other than this one
+    const { writeFileSync } = await import('node:fs');
+    writeFileSync(path.join(dir, 'plumbline.lock'), String(process.ppid));
+    await expect(openDatabase(dir)).rejects.toThrow(DataDirLockedError);
+    await expect(openDatabase(dir)).rejects.toThrow(/Another Plumbline server/);
+    await first.close();
+    rmSync(dir, { recursive: true, force: true });
+  });
+});
