@@ -1,0 +1,68 @@
+import type { ReactNode } from 'react';
+import { createBrowserRouter, Outlet } from 'react-router';
+import { AppShell, RequireAdmin } from '../components/layout/app-shell';
+import { AnalysisLayout } from '../components/layout/analysis-layout';
+import { NotFound, RootError, RouteError } from '../components/errors/route-error';
+import { SignInRoute } from './routes/sign-in';
+import { AnalysesRoute } from './routes/analyses';
+import { OverviewRoute } from './routes/analysis/overview';
+import { RegisterRoute } from './routes/analysis/register';
+import { EntryRoute } from './routes/analysis/entry';
+import { ModelRoute } from './routes/analysis/model';
+import { GroupsRoute } from './routes/analysis/groups';
+import { FitsRoute } from './routes/analysis/fits';
+import { FitResultRoute } from './routes/analysis/fit-result';
+import { QuestionsRoute } from './routes/analysis/questions';
+import { MembersRoute } from './routes/analysis/members';
+import { AccountsRoute } from './routes/admin/accounts';
+import { OutboxRoute } from './routes/admin/outbox';
+
+/** Each screen has its own error boundary, so a failing screen leaves the navigation usable. */
+const screen = (element: ReactNode) => ({ element, errorElement: <RouteError /> });
+
+export const routes = [
+  {
+    element: <Outlet />,
+    errorElement: <RootError />,
+    children: [
+      { path: '/sign-in', ...screen(<SignInRoute />) },
+      {
+        element: <AppShell />,
+        errorElement: <RouteError />,
+        children: [
+          { index: true, ...screen(<AnalysesRoute />) },
+          {
+            path: 'a/:slug',
+            element: <AnalysisLayout />,
+            errorElement: <RouteError />,
+            children: [
+              { index: true, ...screen(<OverviewRoute />) },
+              { path: 'register', ...screen(<RegisterRoute />) },
+              { path: 'entries/:key', ...screen(<EntryRoute />) },
+              { path: 'model', ...screen(<ModelRoute />) },
+              { path: 'groups', ...screen(<GroupsRoute />) },
+              { path: 'fits', ...screen(<FitsRoute />) },
+              { path: 'fits/:fitId/:tab?', ...screen(<FitResultRoute />) },
+              { path: 'questions', ...screen(<QuestionsRoute />) },
+              { path: 'members', ...screen(<MembersRoute />) },
+            ],
+          },
+          {
+            path: 'admin',
+            element: <RequireAdmin />,
+            errorElement: <RouteError />,
+            children: [
+              { path: 'accounts', ...screen(<AccountsRoute />) },
+              { path: 'outbox', ...screen(<OutboxRoute />) },
+            ],
+          },
+          { path: '*', element: <NotFound /> },
+        ],
+      },
+    ],
+  },
+];
+
+export function createRouter() {
+  return createBrowserRouter(routes);
+}

@@ -1,0 +1,31 @@
+import { useParams } from 'react-router';
+import { PageHeader, Panel } from '../../../components/ui/page';
+import { QueryView } from '../../../components/ui/query-view';
+import { useCan } from '../../../features/analyses/use-can';
+import { useMembers } from '../../../features/members/api/get-members';
+import { AddMemberForm } from '../../../features/members/components/add-member-form';
+import { MembersTable } from '../../../features/members/components/members-table';
+
+export function MembersRoute() {
+  const { slug = '' } = useParams();
+  const members = useMembers(slug);
+  const canManage = useCan(slug)('members.manage');
+  return (
+    <>
+      <PageHeader
+        title="Members"
+        description={canManage ? 'Who works on this analysis and in which role. You may add members, change their roles and remove them.' : 'Who works on this analysis and in which role.'}
+      />
+      <div className="flex flex-col gap-5">
+        {canManage && (
+          <Panel title="Add a member">
+            <AddMemberForm slug={slug} />
+          </Panel>
+        )}
+        <QueryView query={members} loadingLabel="Loading members…">
+          {(list) => <MembersTable slug={slug} members={list} canManage={canManage} />}
+        </QueryView>
+      </div>
+    </>
+  );
+}

@@ -1,0 +1,22 @@
+import { useParams } from 'react-router';
+import { useAnalysis } from '../../../features/analyses/api/get-analysis';
+import { AnalysisOverview } from '../../../features/analyses/components/analysis-overview';
+import { useMe } from '../../../features/auth/api/get-me';
+import { PageHeader } from '../../../components/ui/page';
+import { QueryView } from '../../../components/ui/query-view';
+
+export function OverviewRoute() {
+  const { slug = '' } = useParams();
+  const analysis = useAnalysis(slug);
+  const me = useMe();
+  return (
+    <QueryView query={analysis}>
+      {(o) => (
+        <>
+          <PageHeader title={o.analysis.name} description={o.analysis.description || undefined} />
+          <AnalysisOverview overview={o} isAdmin={me.data?.user.isAdmin ?? false} />
+        </>
+      )}
+    </QueryView>
+  );
+}

@@ -1,0 +1,67 @@
+import { NavLink, Outlet, useParams } from 'react-router';
+import { useAnalysis } from '../../features/analyses/api/get-analysis';
+import { BlindingBadge } from '../../features/analyses/components/blinding-badge';
+import { RoleBadge } from '../../features/analyses/components/role-badge';
+import { useMe } from '../../features/auth/api/get-me';
+import { ErrorNotice } from '../ui/error-notice';
+import { Loading } from '../ui/loading';
+
+const SECTIONS = [
+  { to: '', label: 'Overview', end: true },
+  { to: 'register', label: 'Register' },
+  { to: 'model', label: 'Model' },
+  { to: 'groups', label: 'Groups' },
+  { to: 'fits', label: 'Fits' },
+  { to: 'questions', label: 'Questions' },
+  { to: 'members', label: 'Members' },
+] as const;
+
+const sideLink = ({ isActive }: { isActive: boolean }) =>
+  `flex items-center rounded-md border-l-2 px-3 py-1.5 text-sm ${
+    isActive ? 'border-teal bg-paper-raised font-semibold text-ink' : 'border-transparent text-ink-soft hover:bg-paper-sunk hover:text-ink'
+  }`;
+
+/** An analysis: its name and blinding state always in view, its screens in a left navigation. */
+export function AnalysisLayout() {
+  const { slug = '' } = useParams();
+  const analysis = useAnalysis(slug);
+  const me = useMe();
+  const overview = analysis.data;
+
+  return (
+    <div className="flex min-h-[calc(100vh-3rem)]">
+      <aside className="w-52 shrink-0 border-r border-rule bg-paper-sunk/40 px-3 py-4">
+        <nav aria-label="Analysis">
+          <p className="mb-2 truncate px-3 text-2xs font-semibold tracking-wider text-ink-muted uppercase" title={overview?.analysis.name ?? slug}>
+            {overview?.analysis.name ?? slug}
+          </p>
+          <ul className="flex flex-col gap-0.5">
+            {SECTIONS.map((s) => (
+              <li key={s.label}>
+                <NavLink to={`/a/${slug}${s.to ? `/${s.to}` : ''}`} end={'end' in s} className={sideLink}>
+                  {s.label}
+                </NavLink>
+              </li>
+            ))}
+          </ul>
+        </nav>
+      </aside>
+      <div className="min-w-0 flex-1">
+        <div className="flex flex-wrap items-center gap-3 border-b border-rule bg-paper-raised/50 px-6 py-2">
+          <span className="text-sm font-semibold text-ink">{overview?.analysis.name ?? slug}</span>
+          {overview && <BlindingBadge blinding={overview.analysis.blinding} />}
+          {overview && <RoleBadge role={overview.role} isAdmin={me.data?.user.isAdmin} />}
+        </div>
+        <main id="main" className="px-6 py-5">
+          {analysis.isPending ? (
+            <Loading label="Loading the analysis…" />
+          ) : analysis.isError ? (
+            <ErrorNotice error={analysis.error} onRetry={() => void analysis.refetch()} />
+          ) : (
+            <Outlet />
+          )}
+        </main>
+      </div>
+    </div>
+  );
+}

@@ -1,0 +1,16 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import type { CreateUser, User } from '@shared/schemas/api';
+import { api } from '../../../lib/api-client';
+import { usersQueryKey } from './get-users';
+
+export function createUser(body: CreateUser): Promise<User> {
+  return api.post<User>('/api/users', body);
+}
+
+export function useCreateUser() {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: createUser,
+    onSuccess: () => void queryClient.invalidateQueries({ queryKey: usersQueryKey }),
+  });
+}
