@@ -8,6 +8,7 @@ const alias = { '@shared': `${root}shared` };
 export default defineConfig({
   resolve: { alias },
   test: {
+    reporters: ['default', './tests/closing-line-reporter.ts'],
     projects: [
       {
         resolve: { alias },
@@ -15,7 +16,7 @@ export default defineConfig({
       },
       {
         resolve: { alias },
-        test: { name: 'e2e', include: ['tests/e2e/**/*.test.ts'], testTimeout: 120_000, hookTimeout: 120_000, fileParallelism: false },
+        test: { name: 'e2e', include: ['tests/e2e/**/*.test.ts'], globalSetup: ['tests/e2e/global-setup.ts'], testTimeout: 120_000, hookTimeout: 120_000, fileParallelism: false },
       },
     ],
   },

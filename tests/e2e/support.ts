@@ -1,0 +1,84 @@
+import { spawn, type ChildProcess } from 'node:child_process';
+import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { chromium, type BrowserContext, type Page } from 'playwright-core';
+
+export const SCREENSHOTS = path.resolve('test-output/screenshots');
+export const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+
+export type RunningServer = { url: string; dataDir: string; process: ChildProcess; output: () => string; stop: () => Promise<void> };
+
+/** Starts the real server (production build, fresh data folder, ephemeral port) and waits until it listens. */
+export async function startServer(env: Record<string, string> = {}): Promise<RunningServer> {
+  const dataDir = mkdtempSync(path.join(os.tmpdir(), 'plumbline-e2e-'));
+  const child = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
+    env: { ...process.env, NODE_ENV: 'production', PORT: '0', PLUMBLINE_DATA_DIR: dataDir, ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  let output = '';
+  child.stdout!.on('data', (d) => (output += d));
+  child.stderr!.on('data', (d) => (output += d));
+  const url = await new Promise<string>((resolve, reject) => {
+    const timer = setTimeout(() => reject(new Error(`server did not start in 60 s:\n${output}`)), 60_000);
+    const check = () => {
+      const m = output.match(/running at (http:\/\/localhost:\d+)/);
+      if (m) {
+        clearTimeout(timer);
+        resolve(m[1]);
+      }
+    };
+    child.stdout!.on('data', check);
+    child.on('exit', (code) => reject(new Error(`server exited with ${code}:\n${output}`)));
+  });
+  return {
+    url,
+    dataDir,
+    process: child,
+    output: () => output,
+    stop: async () => {
+      if (child.exitCode === null) {
+        const exited = new Promise((r) => child.once('exit', r));
+        child.kill('SIGTERM');
+        await exited;
+      }
+      rmSync(dataDir, { recursive: true, force: true });
+    },
+  };
+}
+
+export type Browser = { context: BrowserContext; page: Page; close: () => Promise<void> };
+
+/** Debian's chromium, headless, with a fresh profile and no background traffic. */
+export async function launchBrowser(): Promise<Browser> {
+  const profile = mkdtempSync(path.join(os.tmpdir(), 'plumbline-chromium-'));
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: CHROMIUM,
+    headless: true,
+    viewport: { width: 1400, height: 900 },
+    args: ['--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync'],
+  });
+  const page = context.pages()[0] ?? (await context.newPage());
+  return {
+    context,
+    page,
+    close: async () => {
+      await context.close();
+      rmSync(profile, { recursive: true, force: true });
+    },
+  };
+}
+
+export async function screenshot(page: Page, name: string) {
+  mkdirSync(SCREENSHOTS, { recursive: true });
+  const file = path.join(SCREENSHOTS, `${name}.png`);
+  await page.screenshot({ path: file, fullPage: true });
+  return file;
+}
+
+export async function signIn(page: Page, url: string, email: string, password = 'lantern-demo-2026') {
+  await page.goto(`${url}/sign-in`);
+  await page.getByLabel(/e-mail/i).fill(email);
+  await page.getByLabel(/password/i).fill(password);
+  await page.getByRole('button', { name: /sign in/i }).click();
+}
