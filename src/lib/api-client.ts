@@ -49,6 +49,12 @@ const STATE_CHANGING: ReadonlySet<Method> = new Set(['POST', 'PATCH', 'PUT', 'DE
 // ---- CSRF token: fetched once, shared by concurrent requests, dropped when the session changes.
 let csrfToken: string | null = null;
 let csrfPending: Promise<string> | null = null;
+let csrfIssuedCount = 0;
+
+/** How many tokens the server has handed out in response headers; tells callers whether one arrived. */
+export function csrfTokensIssued(): number {
+  return csrfIssuedCount;
+}
 
 async function fetchCsrfToken(): Promise<string> {
   const body = await send<{ token: string }>('GET', '/api/auth/csrf');
@@ -107,6 +113,13 @@ async function send<T>(method: Method, url: string, body?: unknown, headers: Rec
     });
   } catch {
     throw new ApiRequestError(0, 'Could not reach the Plumbline server. Check your connection and try again.', 'network');
+  }
+
+  // The server hands out the new session's token with the sign-in response.
+  const issued = res.ok ? res.headers.get('x-csrf-token') : null;
+  if (issued) {
+    csrfToken = issued;
+    csrfIssuedCount += 1;
   }
 
   if (res.status === 204) return undefined as T;

@@ -16,9 +16,11 @@ export function AnalysesRoute() {
         description={isAdmin ? 'Every analysis on this Plumbline. As an admin you may open any of them and manage its members.' : 'The analyses you are a member of.'}
       />
       <div className={isAdmin ? 'grid gap-6 lg:grid-cols-[1fr_20rem]' : ''}>
-        <QueryView query={analyses} loadingLabel="Loading analyses…">
-          {(list) => <AnalysesList analyses={list} isAdmin={isAdmin} />}
-        </QueryView>
+        <div className="min-w-0 self-start">
+          <QueryView query={analyses} loadingLabel="Loading analyses…">
+            {(list) => <AnalysesList analyses={list} isAdmin={isAdmin} />}
+          </QueryView>
+        </div>
         {isAdmin && (
           <Panel title="New analysis" className="self-start">
             <CreateAnalysisForm />

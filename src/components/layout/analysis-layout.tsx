@@ -1,4 +1,4 @@
-import { NavLink, Outlet, useParams } from 'react-router';
+import { Link, NavLink, Outlet, useParams } from 'react-router';
 import { useAnalysis } from '../../features/analyses/api/get-analysis';
 import { BlindingBadge } from '../../features/analyses/components/blinding-badge';
 import { RoleBadge } from '../../features/analyses/components/role-badge';
@@ -32,7 +32,7 @@ export function AnalysisLayout() {
     <div className="flex min-h-[calc(100vh-3rem)]">
       <aside className="w-52 shrink-0 border-r border-rule bg-paper-sunk/40 px-3 py-4">
         <nav aria-label="Analysis">
-          <p className="mb-2 truncate px-3 text-2xs font-semibold tracking-wider text-ink-muted uppercase" title={overview?.analysis.name ?? slug}>
+          <p className="mb-2 px-3 text-xs leading-snug font-semibold text-ink-muted">
             {overview?.analysis.name ?? slug}
           </p>
           <ul className="flex flex-col gap-0.5">
@@ -56,7 +56,12 @@ export function AnalysisLayout() {
           {analysis.isPending ? (
             <Loading label="Loading the analysis…" />
           ) : analysis.isError ? (
-            <ErrorNotice error={analysis.error} onRetry={() => void analysis.refetch()} />
+            <div className="flex flex-col gap-3">
+              <ErrorNotice error={analysis.error} onRetry={() => void analysis.refetch()} />
+              <Link to="/" className="text-sm font-medium text-teal-ink hover:underline">
+                Back to the analyses
+              </Link>
+            </div>
           ) : (
             <Outlet />
           )}

@@ -2,6 +2,7 @@ import { Link, NavLink, Navigate, Outlet, useLocation, useNavigate } from 'react
 import type { Me } from '@shared/schemas/api';
 import { useMe } from '../../features/auth/api/get-me';
 import { useSignOut } from '../../features/auth/api/sign-out';
+import { ApiRequestError } from '../../lib/api-client';
 import { ErrorNotice } from '../ui/error-notice';
 import { Loading } from '../ui/loading';
 import { Mark } from './mark';
@@ -89,7 +90,7 @@ export function RequireAdmin() {
   if (!me.data?.user.isAdmin)
     return (
       <main id="main" className="mx-auto max-w-2xl px-6 py-12">
-        <ErrorNotice error={new Error('This page is for admins: your account does not allow it.')} />
+        <ErrorNotice error={new ApiRequestError(403, 'Accounts and the outbox are managed by admins, and your account is not an admin.')} />
       </main>
     );
   return <Outlet />;

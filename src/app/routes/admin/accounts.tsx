@@ -10,9 +10,11 @@ export function AccountsRoute() {
     <main id="main" className="mx-auto max-w-6xl px-6 py-6">
       <PageHeader title="Accounts" description="Everyone who can sign in to this Plumbline. Roles are given per analysis, on its Members page." />
       <div className="grid gap-6 lg:grid-cols-[1fr_20rem]">
-        <QueryView query={users} loadingLabel="Loading accounts…">
-          {(list) => <UsersTable users={list} />}
-        </QueryView>
+        <div className="min-w-0 self-start">
+          <QueryView query={users} loadingLabel="Loading accounts…">
+            {(list) => <UsersTable users={list} />}
+          </QueryView>
+        </div>
         <Panel title="Create an account" className="self-start">
           <CreateUserForm />
         </Panel>

@@ -1,6 +1,7 @@
 import { useParams } from 'react-router';
 import { PageHeader, Panel } from '../../../components/ui/page';
 import { QueryView } from '../../../components/ui/query-view';
+import { useMe } from '../../../features/auth/api/get-me';
 import { useCan } from '../../../features/analyses/use-can';
 import { useMembers } from '../../../features/members/api/get-members';
 import { AddMemberForm } from '../../../features/members/components/add-member-form';
@@ -10,6 +11,7 @@ export function MembersRoute() {
   const { slug = '' } = useParams();
   const members = useMembers(slug);
   const canManage = useCan(slug)('members.manage');
+  const me = useMe();
   return (
     <>
       <PageHeader
@@ -23,7 +25,7 @@ export function MembersRoute() {
           </Panel>
         )}
         <QueryView query={members} loadingLabel="Loading members…">
-          {(list) => <MembersTable slug={slug} members={list} canManage={canManage} />}
+          {(list) => <MembersTable slug={slug} members={list} canManage={canManage} myUserId={me.data?.user.id} />}
         </QueryView>
       </div>
     </>

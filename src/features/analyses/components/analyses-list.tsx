@@ -17,7 +17,7 @@ export function AnalysesList({ analyses, isAdmin }: { analyses: AnalysisSummary[
       </EmptyState>
     );
   return (
-    <ul aria-label="Analyses" className="grid gap-3 md:grid-cols-2">
+    <ul aria-label="Analyses" className="grid content-start items-start gap-3 self-start md:grid-cols-2">
       {analyses.map((a) => (
         <li key={a.slug} className="group relative rounded-lg border border-rule bg-paper-raised px-4 py-3 hover:border-teal/60">
           <div className="flex items-start justify-between gap-3">

@@ -1,12 +1,13 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { Me, SignIn } from '@shared/schemas/api';
-import { api, resetCsrfToken } from '../../../lib/api-client';
+import { api, csrfTokensIssued, resetCsrfToken } from '../../../lib/api-client';
 import { meQueryKey } from './get-me';
 
 export async function signIn(body: SignIn): Promise<Me> {
+  const issuedBefore = csrfTokensIssued();
   const me = await api.post<Me>('/api/auth/sign-in', body);
-  // The server issues a new session, and with it a new token.
-  resetCsrfToken();
+  // Sign-in starts a new session with a new token: keep the one the response carried, else fetch it afresh.
+  if (csrfTokensIssued() === issuedBefore) resetCsrfToken();
   return me;
 }
 

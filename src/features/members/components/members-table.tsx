@@ -57,7 +57,7 @@ function RemoveButton({ slug, member }: { slug: string; member: Member }) {
   );
 }
 
-export function MembersTable({ slug, members, canManage }: { slug: string; members: Member[]; canManage: boolean }) {
+export function MembersTable({ slug, members, canManage, myUserId }: { slug: string; members: Member[]; canManage: boolean; myUserId?: number }) {
   const sorted = [...members].sort((a, b) => ROLE_ORDER[a.role] - ROLE_ORDER[b.role] || a.name.localeCompare(b.name));
   return (
     <div className="overflow-x-auto rounded-lg border border-rule bg-paper-raised">
@@ -78,7 +78,10 @@ export function MembersTable({ slug, members, canManage }: { slug: string; membe
         <tbody>
           {sorted.map((m) => (
             <tr key={m.userId}>
-              <th scope="row" className={`${tdClass} text-left font-medium`}>{m.name}</th>
+              <th scope="row" className={`${tdClass} text-left font-medium`}>
+                {m.name}
+                {m.userId === myUserId && <span className="ml-1.5 text-xs font-normal text-ink-muted">(you)</span>}
+              </th>
               <td className={tdClass}>{m.email}</td>
               <td className={tdClass}>{canManage ? <RoleSelect slug={slug} member={m} /> : ROLE_LABELS[m.role]}</td>
               <td className={tdClass}>{formatDate(m.since)}</td>

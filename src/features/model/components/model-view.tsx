@@ -75,7 +75,7 @@ export function ModelView({ model }: { model: Model }) {
                 <th scope="col" className={thClass}>Observable</th>
                 <th scope="col" className={thClass}>Unit</th>
                 <th scope="col" className={thClass}>Binning</th>
-                <th scope="col" className={`${thClass} text-right`}>Expected (pre-fit)</th>
+                <th scope="col" className={`${thClass} text-right whitespace-nowrap`}>Expected (pre-fit)</th>
                 <th scope="col" className={`${thClass} text-right`}>Observed</th>
               </tr>
             </thead>
@@ -93,15 +93,15 @@ export function ModelView({ model }: { model: Model }) {
                         {r.role}
                       </Badge>
                     </td>
-                    <td className={tdClass}>{r.observable}</td>
-                    <td className={tdClass}>{r.unit || <span className="text-ink-muted" title="Dimensionless observable">none</span>}</td>
+                    <td className={`${tdClass} whitespace-nowrap`}>{r.observable}</td>
+                    <td className={`${tdClass} whitespace-nowrap`}>{r.unit || <span className="text-ink-muted" title="Dimensionless observable">none</span>}</td>
                     <td className={tdClass}>
                       <Binning region={r} />
                     </td>
-                    <td className={`${tdClass} text-right tabular-nums`} title="Sum of the nominal templates of every process in this region, before the fit">
+                    <td className={`${tdClass} text-right whitespace-nowrap tabular-nums`} title="Sum of the nominal templates of every process in this region, before the fit">
                       {exp === null ? <span className="text-ink-muted">no templates</span> : `${formatCount(Math.round(exp * 10) / 10)} events`}
                     </td>
-                    <td className={`${tdClass} text-right`}>
+                    <td className={`${tdClass} text-right whitespace-nowrap`}>
                       <Observed region={r} />
                     </td>
                   </tr>

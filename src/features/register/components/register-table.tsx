@@ -122,6 +122,8 @@ function makeColumns(slug: string) {
 }
 
 const NUMERIC = new Set(['largestEffect', 'warnings']);
+/** Short values stay on one line so rows stay one line high; labels and process lists may wrap. */
+const NOWRAP = new Set(['key', 'group', 'owner', 'state', 'largestEffect', 'warnings']);
 
 export function RegisterTable({ slug, entries }: { slug: string; entries: EntrySummary[] }) {
   const [columns] = useState(() => makeColumns(slug));
@@ -180,7 +182,7 @@ export function RegisterTable({ slug, entries }: { slug: string; entries: EntryS
                       key={header.id}
                       scope="col"
                       aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : 'none'}
-                      className={`${thClass} ${NUMERIC.has(header.column.id) ? 'text-right' : ''}`}
+                      className={`${thClass} whitespace-nowrap ${NUMERIC.has(header.column.id) ? 'text-right' : ''}`}
                     >
                       {header.isPlaceholder ? null : (
                         <button
@@ -190,8 +192,8 @@ export function RegisterTable({ slug, entries }: { slug: string; entries: EntryS
                           title="Sort by this column"
                         >
                           <table.FlexRender header={header} />
-                          <span aria-hidden className="w-2.5 text-teal-ink">
-                            {sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : ''}
+                          <span aria-hidden className={`w-2.5 text-2xs ${sorted ? 'text-teal-ink' : 'text-rule-strong'}`}>
+                            {sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}
                           </span>
                         </button>
                       )}
@@ -205,7 +207,10 @@ export function RegisterTable({ slug, entries }: { slug: string; entries: EntryS
             {rows.map((row) => (
               <tr key={row.id} className="hover:bg-paper-sunk/50">
                 {row.getAllCells().map((cell) => (
-                  <td key={cell.id} className={`${tdClass} ${NUMERIC.has(cell.column.id) ? 'text-right' : ''}`}>
+                  <td
+                    key={cell.id}
+                    className={`${tdClass} ${NUMERIC.has(cell.column.id) ? 'text-right' : ''} ${NOWRAP.has(cell.column.id) ? 'whitespace-nowrap' : ''}`}
+                  >
                     <table.FlexRender cell={cell} />
                   </td>
                 ))}
