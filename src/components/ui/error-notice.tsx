@@ -45,15 +45,21 @@ export function ErrorNotice({ error, onRetry, compact = false }: { error: unknow
   );
 }
 
-/** A one-line error above a form; field-level issues are shown next to their fields. */
+/**
+ * A one-line error above a form; field-level issues are shown next to their fields.
+ * A refusal (4xx) is told in the server's own words; a role refusal, a lost connection
+ * or a server fault gets its heading too.
+ */
 export function FormError({ error }: { error: unknown }) {
   if (!error) return null;
   const d = describeError(error);
-  const hasFieldIssues = isApiRequestError(error) && error.issues.length > 0;
+  const api = isApiRequestError(error) ? error : null;
+  const ownWords = api && api.status >= 400 && api.status < 500 && !api.isForbidden;
+  const text = ownWords ? api.message : d.detail && d.detail !== d.title ? `${d.title}. ${d.detail}` : d.title;
   return (
     <p role="alert" className="rounded-md border border-danger/30 bg-danger-soft/60 px-3 py-2 text-sm text-danger">
-      {d.title === 'The request was refused' ? d.detail : `${d.title}. ${d.detail === d.title ? '' : d.detail}`}
-      {hasFieldIssues && ' See the fields below.'}
+      {text}
+      {api && api.issues.length > 0 && ' See the fields below.'}
     </p>
   );
 }
