@@ -139,6 +139,8 @@ export const scanPointSchema = z.strictObject({ value: num, q: num });
 
 export const parameterScanSchema = z.strictObject({
   parameter: z.string(),
+  /** Why no scan could be made (the fit failed); null otherwise. */
+  failure: z.string().nullable(),
   bestFit: num,
   error: nullableNum,
   points: z.array(scanPointSchema),

@@ -1,0 +1,175 @@
+import type { FitProblem } from './compiled-model';
+import { cholesky, choleskyInverse, choleskySolve } from './cholesky';
+import { computeDerivatives } from './derivatives';
+import { negativeLogLikelihood } from './likelihood';
+import type { Scratch } from './minimiser';
+
+/**
+ * Covariance at the minimum, V = H⁻¹ (MODEL.md §5). The Hessian is the γ-reduced one over the
+ * parameters not held, so V is exactly the (μ, k, θ) block of the full inverse (Schur
+ * complement). Everything a refit needs to start from the minimum is kept with it: this is
+ * the fit context that impacts, scans and limits share, serially or on worker threads.
+ */
+export interface FitContext {
+  problem: FitProblem;
+  phi: Float64Array;
+  gamma: Float64Array;
+  nll: number;
+  /** Dense parameters in V (not held). */
+  free: Int32Array;
+  /** V over all dense parameters (row-major, nDense²; zero rows for held ones). */
+  V: Float64Array;
+  /** h_b = ∂²NLL/∂γ_b∂φ rows and D_b = ∂²NLL/∂γ_b² at the minimum. */
+  Bt: Float64Array;
+  D: Float64Array;
+  eliminate: Uint8Array;
+  /** The unreduced (μ, k) block of H (before eliminating γ), for the statistical-only σ_μ. */
+  pkBlock: Float64Array;
+  /** (H_φφ)⁻¹_μμ: σ_μ² with every γ fixed (the template-statistics group impact). */
+  varMuGammaFixed: number | null;
+}
+
+export type CurvatureOutcome =
+  | { ok: true; context: FitContext; conditionNumber: number }
+  | { ok: false; message: string; partners: number[] };
+
+/** One Hessian at the minimum over every parameter not held, inverted by Cholesky. */
+export function curvatureAt(problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch): CurvatureOutcome {
+  const m = problem.model;
+  const P = m.nDense;
+  const { ws, d } = scratch;
+  const nll = negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws);
+  const eliminate = new Uint8Array(m.nGamma);
+  for (let g = 0; g < m.nGamma; g++) eliminate[g] = problem.gammaHeld[g] ? 0 : 1;
+  computeDerivatives(m, problem.data, phi, gamma, eliminate, ws, d, true, true);
+  const freeList: number[] = [];
+  for (let i = 0; i < P; i++) if (!problem.held[i]) freeList.push(i);
+  const free = Int32Array.from(freeList);
+  const n = free.length;
+  const Hf = new Float64Array(n * n);
+  for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) Hf[a * n + b] = d.H[free[a] * P + free[b]];
+  const { L, failedAt } = cholesky(Hf, n, 1e-10);
+  if (failedAt >= 0) {
+    const partners = degeneratePartners(Hf, L, n, failedAt).map((a) => free[a]);
+    const names = [free[failedAt], ...partners].map((i) => m.names[i]);
+    return {
+      ok: false,
+      partners: [free[failedAt], ...partners],
+      message:
+        partners.length > 0
+          ? `The Hessian is not positive definite at the minimum: ${names.join(', ')} move together with no change in the likelihood, so the data cannot tell their effects apart.`
+          : `The Hessian is not positive definite at the minimum: ${names[0]} has no effect on the likelihood.`,
+    };
+  }
+  const Vf = choleskyInverse(L, n);
+  const V = new Float64Array(P * P);
+  for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) V[free[a] * P + free[b]] = Vf[a * n + b];
+
+  // Unreduced H_φφ = H̃ + Σ h hᵀ/D: its (μ, k) block, and its inverse's μμ element.
+  const schur = d.schur!;
+  const nPk = m.thetaStart;
+  const pkBlock = new Float64Array(nPk * nPk);
+  for (let i = 0; i < nPk; i++) for (let j = 0; j < nPk; j++) pkBlock[i * nPk + j] = d.H[i * P + j] + schur[i * P + j];
+  let varMuGammaFixed: number | null = null;
+  if (!problem.held[0] && m.nGamma > 0) {
+    const Hu = new Float64Array(n * n);
+    for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) Hu[a * n + b] = Hf[a * n + b] + schur[free[a] * P + free[b]];
+    const cu = cholesky(Hu, n, 1e-10);
+    if (cu.failedAt < 0) {
+      const e = new Float64Array(n);
+      e[0] = 1; // μ is free[0] when not held
+      choleskySolve(cu.L, n, e);
+      varMuGammaFixed = e[0];
+    }
+  }
+  const context: FitContext = {
+    problem,
+    phi: Float64Array.from(phi),
+    gamma: Float64Array.from(gamma),
+    nll,
+    free,
+    V,
+    Bt: Float64Array.from(d.Bt),
+    D: Float64Array.from(d.D),
+    eliminate,
+    pkBlock,
+    varMuGammaFixed,
+  };
+  return { ok: true, context, conditionNumber: conditionNumber(Hf, L, n) };
+}
+
+/**
+ * The pivot j failed: column j is (nearly) a combination of the columns before it. Solving
+ * H₁₁ x = H₁ⱼ with the partial factor names the parameters it combines, largest first.
+ */
+function degeneratePartners(H: Float64Array, L: Float64Array, n: number, j: number): number[] {
+  if (j === 0) return [];
+  const x = new Float64Array(j);
+  for (let i = 0; i < j; i++) x[i] = H[i * n + j];
+  const Lj = new Float64Array(j * j);
+  for (let a = 0; a < j; a++) for (let b = 0; b <= a; b++) Lj[a * j + b] = L[a * n + b];
+  choleskySolve(Lj, j, x);
+  const weight = (i: number) => Math.abs(x[i]) * Math.sqrt(H[i * n + i] / H[j * n + j]);
+  return [...Array(j).keys()].filter((i) => weight(i) > 0.05).sort((a, b) => weight(b) - weight(a)).slice(0, 5);
+}
+
+/**
+ * Condition number λmax/λmin of H scaled to unit diagonal (D^-½ H D^-½), so it measures
+ * near-degeneracy rather than the parameters' units. λmax by power iteration, λmin by
+ * inverse iteration with the factor (common practice, no source): an estimate, good to a
+ * few per cent, which is all a report needs.
+ */
+export function conditionNumber(H: Float64Array, L: Float64Array, n: number): number {
+  if (n === 0) return 1;
+  const s = new Float64Array(n);
+  for (let i = 0; i < n; i++) s[i] = 1 / Math.sqrt(H[i * n + i]);
+  const power = (apply: (x: Float64Array, y: Float64Array) => void): number => {
+    let x = new Float64Array(n).fill(1 / Math.sqrt(n));
+    let y = new Float64Array(n);
+    let lambda = 0;
+    for (let it = 0; it < 100; it++) {
+      apply(x, y);
+      let norm = 0;
+      for (let i = 0; i < n; i++) norm += y[i] * y[i];
+      norm = Math.sqrt(norm);
+      if (!(norm > 0)) return 0;
+      const converged = Math.abs(norm - lambda) < 1e-6 * norm;
+      lambda = norm;
+      for (let i = 0; i < n; i++) y[i] /= norm;
+      [x, y] = [y, x];
+      if (converged && it > 5) break;
+    }
+    return lambda;
+  };
+  const maxEig = power((x, y) => {
+    for (let i = 0; i < n; i++) {
+      let acc = 0;
+      for (let j = 0; j < n; j++) acc += H[i * n + j] * s[j] * x[j];
+      y[i] = acc * s[i];
+    }
+  });
+  // (D^-½ H D^-½)⁻¹ x = D^½ H⁻¹ D^½ x.
+  const maxInv = power((x, y) => {
+    for (let i = 0; i < n; i++) y[i] = x[i] / s[i];
+    choleskySolve(L, n, y);
+    for (let i = 0; i < n; i++) y[i] /= s[i];
+  });
+  return maxEig * maxInv;
+}
+
+/** Var(γ_g) = 1/D + (h/D)ᵀ V (h/D), from the block inverse of the full Hessian. */
+export function gammaVariance(ctx: FitContext, g: number): number | null {
+  if (!ctx.eliminate[g]) return null;
+  const P = ctx.problem.model.nDense;
+  const Dg = ctx.D[g];
+  const row = g * P;
+  let quad = 0;
+  for (const i of ctx.free) {
+    const hi = ctx.Bt[row + i];
+    if (hi === 0) continue;
+    let acc = 0;
+    for (const j of ctx.free) acc += ctx.V[i * P + j] * ctx.Bt[row + j];
+    quad += hi * acc;
+  }
+  return 1 / Dg + quad / (Dg * Dg);
+}

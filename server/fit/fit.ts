@@ -1,0 +1,344 @@
+import type { ExchangeModel } from '@shared/schemas/exchange';
+import { fitOptionsSchema, type FitOptionsInput, type FitResult, type NuisanceReport } from '@shared/schemas/fit';
+import type { FitProblem } from './compiled-model';
+import { curvatureAt, gammaVariance, type FitContext } from './covariance';
+import { FitCancelledError, FitInputError, throwIfAborted } from './errors';
+import { postfitYields, prefitYields } from './expected-yields';
+import { informationBreakdown } from './information';
+import type { Job } from './jobs';
+import { clippedSampleBins, createScratch, minimise, type MinimiseResult } from './minimiser';
+import { correlationMatrix, errorOf, groupImpact, isAtBound, nuisanceTable, parameterTable, statOnlyError } from './parameters-report';
+import { runJobs, type FitPool } from './pool';
+import { asimovData, buildProblem, startPoint } from './problem';
+import { assembleScan, scanJobs } from './scan';
+import { discovery, goodnessOfFit } from './significance';
+
+export interface FitControl {
+  onProgress?: (fraction: number, stage: string) => void;
+  signal?: AbortSignal;
+  pool?: FitPool;
+}
+
+const LIMIT_CL = 0.95;
+const BANDS = [-2, -1, 0, 1, 2] as const;
+
+/**
+ * Fits a model (MODEL.md §5) and computes everything the review screens show (§6–7).
+ * Contract breaks throw FitInputError; cancellation rejects with FitCancelledError; a fit
+ * that does not converge resolves with status 'failed' and its convergence report.
+ */
+export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInput = {}, control: FitControl = {}): Promise<FitResult> {
+  const started = performance.now();
+  const parsed = fitOptionsSchema.safeParse(optionsInput);
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0];
+    throw new FitInputError(`invalid fit option ${issue.path.join('.')}: ${issue.message}`, issue.path as (string | number)[]);
+  }
+  const options = parsed.data;
+  const { signal, pool } = control;
+  const progress = (fraction: number, stage: string) => control.onProgress?.(Math.min(1, fraction), stage);
+  throwIfAborted(signal);
+
+  const problem = buildProblem(model, options);
+  const m = problem.model;
+  const warnings: string[] = [];
+  for (let i = 0; i < m.nDense; i++) {
+    if (problem.held[i] && !(i === 0 && options.controlOnly)) warnings.push(`${m.names[i]} affects no bin in the fit and is held at its start value.`);
+  }
+  progress(0, 'fit');
+  const scratch = createScratch(problem);
+  const start = startPoint(m);
+  const min = minimise(problem, start.phi, start.gamma, scratch, { signal });
+  if (min.status === 'cancelled') throw new FitCancelledError();
+  const clipped = clippedSampleBins(problem, scratch.ws).map(({ sample, bin }) => ({
+    region: m.regions[m.sampleRegion[sample]].key,
+    bin,
+    process: m.processes[m.sampleProcess[sample]].key,
+  }));
+  if (clipped.length > 0) {
+    const names = clipped.slice(0, 10).map((c) => `${c.region} bin ${c.bin} (${c.process})`);
+    warnings.push(
+      `The expected yield is clipped at zero in ${clipped.length} bin(s): ${names.join(', ')}${clipped.length > 10 ? ', …' : ''}.` +
+        (min.status === 'edge' ? ' The minimum sits on that edge: the fit held it there and stopped without meeting the decrement limit.' : ''),
+    );
+  }
+  if (min.message && min.status !== 'failed') warnings.push(`Newton: ${min.message}.`);
+
+  const base = { started, options, problem, warnings, min, clipped };
+  if (min.status === 'failed') return failedResult(base, min.message ?? 'the fit did not converge');
+  throwIfAborted(signal);
+  const curvature = curvatureAt(problem, min.phi, min.gamma, scratch);
+  if (!curvature.ok) return failedResult(base, curvature.message);
+  const ctx = curvature.context;
+  progress(0.25, 'covariance');
+
+  const muFree = !problem.held[0];
+  const P = m.nDense;
+  const contexts: FitContext[] = [ctx];
+  const jobs: Job[] = [];
+  const push = (job: Job) => jobs.push(job) - 1;
+
+  // Asimov datasets for the expected significance (μ = 1) and the limit (μ = 0).
+  const asimovContext = (mu: number, what: string): number | null => {
+    throwIfAborted(signal);
+    const pa: FitProblem = { ...problem, data: asimovData(m, mu) };
+    const sa = createScratch(pa);
+    const s0 = startPoint(m);
+    const r = minimise(pa, s0.phi, s0.gamma, sa, { signal });
+    if (r.status === 'cancelled') throw new FitCancelledError();
+    if (r.status === 'failed') {
+      warnings.push(`The fit to the Asimov dataset for the ${what} failed: ${r.message}.`);
+      return null;
+    }
+    const c = curvatureAt(pa, r.phi, r.gamma, sa);
+    if (!c.ok) {
+      warnings.push(`The ${what} is not available: ${c.message}`);
+      return null;
+    }
+    return contexts.push(c.context) - 1;
+  };
+  const expectedCtx = muFree && options.expected ? asimovContext(1, 'expected significance') : null;
+  const limitCtx = muFree && options.limit ? asimovContext(0, 'expected limit') : null;
+  progress(0.35, 'asimov');
+
+  // Refits.
+  const zeroAllowed = m.lower[0] <= 0 && m.upper[0] >= 0;
+  const q0Job = muFree && zeroAllowed && ctx.phi[0] > 0 ? push({ kind: 'fix', context: 0, index: 0, value: 0 }) : null;
+  const expectedJob = expectedCtx !== null && zeroAllowed && contexts[expectedCtx].phi[0] > 0 ? push({ kind: 'fix', context: expectedCtx, index: 0, value: 0 }) : null;
+  const impactJobs = new Map<number, { post: [number, number]; pre: [number, number] }>();
+  if (options.impacts === 'full' && muFree) {
+    for (let i = m.thetaStart; i < P; i++) {
+      if (problem.held[i]) continue;
+      const sigma = errorOf(ctx, i)!;
+      const at = (v: number) => push({ kind: 'fix', context: 0, index: i, value: Math.min(m.upper[i], Math.max(m.lower[i], v)) });
+      const th = ctx.phi[i];
+      impactJobs.set(i, { post: [at(th + sigma), at(th - sigma)], pre: [at(th + 1), at(th - 1)] });
+    }
+  }
+  let scanPlan: { grid: number[]; first: number } | null = null;
+  if (options.scan && muFree) {
+    const { grid, jobs: sj } = scanJobs(ctx, 0, 0, options.scanPoints);
+    scanPlan = { grid, first: jobs.length };
+    sj.forEach(push);
+  }
+  const limitJobs =
+    limitCtx !== null
+      ? {
+          observed: push({ kind: 'observed-limit', context: 0, asimov: limitCtx, cl: LIMIT_CL }),
+          bands: BANDS.map((n) => push({ kind: 'expected-limit', context: limitCtx, n, cl: LIMIT_CL })),
+        }
+      : null;
+
+  const results = await runJobs(contexts, jobs, { pool, signal, onProgress: (f) => progress(0.35 + 0.6 * f, 'refits') });
+  throwIfAborted(signal);
+
+  // Per-parameter tables.
+  const parameters = parameterTable(ctx);
+  const nuisance = nuisanceTable(ctx, options.overConstraintThreshold);
+  const muHat = ctx.phi[0];
+  const delta = (k: number, what: string): number => {
+    const r = results[k];
+    if (!r.ok || r.mu === null) {
+      warnings.push(`The refit for ${what} did not converge; its impact is reported as 0.`);
+      return 0;
+    }
+    return r.mu - muHat;
+  };
+  for (const [i, plan] of impactJobs) {
+    const row = nuisance[i - m.thetaStart];
+    row.postfitImpact = { up: delta(plan.post[0], `${m.names[i]} at +1σ̂`), down: delta(plan.post[1], `${m.names[i]} at −1σ̂`) };
+    row.prefitImpact = { up: delta(plan.pre[0], `${m.names[i]} at +1`), down: delta(plan.pre[1], `${m.names[i]} at −1`) };
+  }
+  rank(nuisance);
+
+  // Grouped impacts and the statistical / systematic split.
+  const groupedImpacts: FitResult['groupedImpacts'] = [];
+  if (muFree) {
+    const groups = new Map<string, number[]>();
+    for (let i = m.thetaStart; i < P; i++) {
+      if (problem.held[i]) continue;
+      const g = m.groups[i] ?? 'ungrouped';
+      groups.set(g, [...(groups.get(g) ?? []), i]);
+    }
+    for (const [group, members] of groups) {
+      const impact = groupImpact(ctx, members);
+      if (impact !== null) groupedImpacts.push({ group, impact, parameters: members.map((i) => m.names[i]) });
+    }
+    if (ctx.varMuGammaFixed !== null) {
+      const impact = Math.sqrt(Math.max(0, ctx.V[0] - ctx.varMuGammaFixed));
+      groupedImpacts.push({ group: 'template statistics', impact, parameters: [] });
+    }
+    groupedImpacts.sort((a, b) => b.impact - a.impact);
+  }
+  const sigmaMu = errorOf(ctx, 0);
+  const stat = statOnlyError(ctx);
+  const syst = sigmaMu !== null && stat !== null ? Math.sqrt(Math.max(0, sigmaMu * sigmaMu - stat * stat)) : null;
+
+  // Scan and intervals.
+  const scan = scanPlan ? assembleScan(ctx, 0, scanPlan.grid, results.slice(scanPlan.first, scanPlan.first + scanPlan.grid.length + 4), warnings) : null;
+  const offsets = (c: { low: number | null; high: number | null } | null) => (c ? { low: c.low === null ? null : c.low - muHat, high: c.high === null ? null : c.high - muHat } : null);
+
+  // Significance, expected significance, limit.
+  const qFrom = (k: number | null, c: FitContext, what: string): number | null => {
+    if (k === null) return 0;
+    const r = results[k];
+    if (!r.ok || r.nll === null) {
+      warnings.push(`The conditional fit at μ = 0 for the ${what} did not converge.`);
+      return null;
+    }
+    return 2 * (r.nll - c.nll);
+  };
+  const q0 = muFree && zeroAllowed ? qFrom(q0Job, ctx, 'discovery significance') : null;
+  const q0Expected = expectedCtx !== null && zeroAllowed ? qFrom(expectedJob, contexts[expectedCtx], 'expected significance') : null;
+  let limit: NonNullable<FitResult['summary']>['limit'] = null;
+  if (limitJobs) {
+    const value = (k: number, what: string) => {
+      const r = results[k];
+      if (!r.ok || r.message) warnings.push(`${what}: ${r.message ?? 'not available'}.`);
+      return r.ok ? r.value : null;
+    };
+    const bands = limitJobs.bands.map((k, j) => value(k, `Expected limit at ${BANDS[j]}σ`));
+    limit = {
+      cl: LIMIT_CL,
+      observed: value(limitJobs.observed, 'Observed limit'),
+      expected: { minus2: bands[0], minus1: bands[1], median: bands[2], plus1: bands[3], plus2: bands[4] },
+    };
+  }
+
+  // Gammas.
+  const gammaList = Array.from({ length: m.nGamma }, (_, g) => {
+    const b = m.gammaBin[g];
+    const region = m.regions[m.binRegion[b]];
+    const variance = gammaVariance(ctx, g);
+    return {
+      name: `gamma_${region.key}_${b - region.firstBin}`,
+      region: region.key,
+      bin: b - region.firstBin,
+      value: ctx.gamma[g],
+      error: variance === null ? null : Math.sqrt(Math.max(0, variance)),
+      prior: m.gammaSigma[g],
+      fixed: problem.gammaHeld[g] === 1,
+      atBound: !problem.gammaHeld[g] && isAtBound(ctx.gamma[g], 0, 10),
+    };
+  });
+  const freeGammas = gammaList.filter((g) => !g.fixed);
+  const atBound = [
+    ...parameters.filter((p) => p.atBound).map((p) => p.name),
+    ...gammaList.filter((g) => g.atBound).map((g) => g.name),
+  ];
+  for (const name of atBound) warnings.push(`${name} is at a bound of its range; its σ describes the curvature there only.`);
+
+  const gof = goodnessOfFit(m, problem.data, scratch.ws.nu, problem.held);
+  throwIfAborted(signal);
+  const result: FitResult = {
+    status: 'converged',
+    model: { name: m.name, regionsInFit: m.regions.filter((r) => r.inFit).map((r) => r.key) },
+    options,
+    convergence: {
+      iterations: min.iterations,
+      decrement: finiteOrNull(min.decrement),
+      nll: ctx.nll,
+      parametersAtBound: atBound,
+      clippedBins: clipped,
+      conditionNumber: finiteOrNull(curvature.conditionNumber),
+      warnings,
+      failure: null,
+      seconds: (performance.now() - started) / 1000,
+    },
+    parameters,
+    nuisance,
+    gammas: {
+      count: m.nGamma,
+      maxAbsPull: freeGammas.length ? Math.max(...freeGammas.map((g) => Math.abs(g.value - 1) / g.prior)) : null,
+      list: gammaList,
+    },
+    correlation: correlationMatrix(ctx),
+    summary: {
+      mu: {
+        value: muHat,
+        fixed: !muFree,
+        error: sigmaMu,
+        interval68: scan ? offsets(scan.crossings68) : null,
+        interval95: scan ? offsets(scan.crossings95) : null,
+        stat,
+        syst,
+      },
+      discovery: q0 === null ? null : discovery(q0),
+      expected: q0Expected === null ? null : { asimovMu: 1, ...discovery(q0Expected) },
+      limit,
+      goodnessOfFit: gof,
+    },
+    groupedImpacts,
+    scan,
+    information: informationBreakdown(ctx),
+    yields: { prefit: prefitYields(m), postfit: postfitYields(ctx) },
+    data: dataSection(problem, options),
+  };
+  progress(1, 'done');
+  return result;
+}
+
+/** Orders by the largest post-fit |Δμ| (falling back to the quick impact without refits). */
+function rank(rows: NuisanceReport[]): void {
+  const key = (r: NuisanceReport) => (r.postfitImpact ? Math.max(Math.abs(r.postfitImpact.up), Math.abs(r.postfitImpact.down)) : r.quickImpact === null ? null : Math.abs(r.quickImpact));
+  const ranked = rows.filter((r) => !r.fixed && key(r) !== null).sort((a, b) => key(b)! - key(a)!);
+  ranked.forEach((r, k) => (r.rank = k + 1));
+}
+
+function finiteOrNull(x: number): number | null {
+  return Number.isFinite(x) ? x : null;
+}
+
+function dataSection(problem: FitProblem, options: FitResult['options']): FitResult['data'] {
+  const m = problem.model;
+  return {
+    dataset: options.dataset,
+    asimovMu: options.dataset === 'asimov' ? options.asimovMu : null,
+    regions: m.regions.map((r) => ({
+      region: r.key,
+      inFit: r.inFit,
+      values: options.dataset === 'asimov' || r.inFit ? Array.from(problem.data.subarray(r.firstBin, r.firstBin + r.nBins)) : r.observed,
+    })),
+  };
+}
+
+interface FailureBase {
+  started: number;
+  options: FitResult['options'];
+  problem: FitProblem;
+  warnings: string[];
+  min: MinimiseResult;
+  clipped: FitResult['convergence']['clippedBins'];
+}
+
+/** A failed fit: its report, the pre-fit yields and the data, and nothing from the minimum. */
+function failedResult(base: FailureBase, failure: string): FitResult {
+  const { problem, options, min } = base;
+  const m = problem.model;
+  return {
+    status: 'failed',
+    model: { name: m.name, regionsInFit: m.regions.filter((r) => r.inFit).map((r) => r.key) },
+    options,
+    convergence: {
+      iterations: min.iterations,
+      decrement: finiteOrNull(min.decrement),
+      nll: null,
+      parametersAtBound: [],
+      clippedBins: base.clipped,
+      conditionNumber: null,
+      warnings: base.warnings,
+      failure,
+      seconds: (performance.now() - base.started) / 1000,
+    },
+    parameters: [],
+    nuisance: [],
+    gammas: { count: m.nGamma, maxAbsPull: null, list: [] },
+    correlation: null,
+    summary: null,
+    groupedImpacts: [],
+    scan: null,
+    information: [],
+    yields: { prefit: prefitYields(m), postfit: null },
+    data: dataSection(problem, options),
+  };
+}

@@ -1,0 +1,198 @@
+import { clsValue, expectedLimitFactor } from './cls';
+import { conditionalFit } from './conditional-fit';
+import type { FitContext } from './covariance';
+import { createScratch, type Scratch } from './minimiser';
+
+/**
+ * The independent refits of a fit, as plain data so they can run in this thread or on a
+ * worker: each job names the context (a minimum with its covariance) it starts from. A job
+ * depends on nothing but its context, so the serial and parallel paths give the same numbers.
+ */
+export type Job =
+  /** φ_index fixed at value: returns the NLL and μ of the conditional minimum. */
+  | { kind: 'fix'; context: number; index: number; value: number }
+  /** Where 2ΔNLL = level on one side of the minimum (null past the bound). */
+  | { kind: 'crossing'; context: number; index: number; level: number; direction: 1 | -1 }
+  /** Expected CLs limit at N σ of the background-only distribution (Asimov context). */
+  | { kind: 'expected-limit'; context: number; n: number; cl: number }
+  /** Observed CLs limit (observed context, background-only Asimov context). */
+  | { kind: 'observed-limit'; context: number; asimov: number; cl: number };
+
+export interface JobResult {
+  ok: boolean;
+  value: number | null;
+  nll: number | null;
+  mu: number | null;
+  message: string | null;
+}
+
+export class JobRunner {
+  private scratch = new Map<number, Scratch>();
+  constructor(private readonly contexts: FitContext[]) {}
+
+  private scratchFor(c: number): Scratch {
+    let s = this.scratch.get(c);
+    if (!s) {
+      s = createScratch(this.contexts[c].problem);
+      this.scratch.set(c, s);
+    }
+    return s;
+  }
+
+  /** 2ΔNLL with φ_index fixed at value (null if the conditional fit failed). */
+  private q(c: number, index: number, value: number): number | null {
+    const ctx = this.contexts[c];
+    if (value === ctx.phi[index]) return 0;
+    const r = conditionalFit(ctx, index, value, this.scratchFor(c));
+    return r.ok ? Math.max(0, 2 * (r.nll - ctx.nll)) : null;
+  }
+
+  run(job: Job): JobResult {
+    switch (job.kind) {
+      case 'fix': {
+        const ctx = this.contexts[job.context];
+        if (job.value === ctx.phi[job.index]) return { ok: true, value: job.value, nll: ctx.nll, mu: ctx.phi[0], message: null };
+        const r = conditionalFit(ctx, job.index, job.value, this.scratchFor(job.context));
+        return r.ok ? { ok: true, value: job.value, nll: r.nll, mu: r.phi[0], message: r.message } : failed(r.message);
+      }
+      case 'crossing':
+        return this.crossing(job.context, job.index, job.level, job.direction);
+      case 'expected-limit':
+        return this.expectedLimit(job.context, job.n, job.cl);
+      case 'observed-limit':
+        return this.observedLimit(job.context, job.asimov, job.cl);
+    }
+  }
+
+  /**
+   * Bracket, then solve √q(x) = √level by the Illinois variant of regula falsi (√q is close to
+   * linear in x, so few conditional fits are needed; Dowell & Jarratt, BIT 11 (1971) 168).
+   */
+  private crossing(c: number, index: number, level: number, dir: 1 | -1): JobResult {
+    const ctx = this.contexts[c];
+    const m = ctx.problem.model;
+    const P = m.nDense;
+    const x0 = ctx.phi[index];
+    const sigma = Math.sqrt(ctx.V[index * P + index]);
+    const bound = dir > 0 ? m.upper[index] : m.lower[index];
+    const target = Math.sqrt(level);
+    const f = (x: number): number | null => {
+      const q = this.q(c, index, x);
+      return q === null ? null : Math.sqrt(q) - target;
+    };
+    let lo = x0;
+    let flo = -target;
+    let dist = sigma * target;
+    let hi = clampTo(x0 + dir * dist, x0, bound);
+    let fhi = f(hi);
+    for (let k = 0; fhi !== null && fhi < 0; k++) {
+      if (hi === bound || k > 30) return { ok: true, value: null, nll: null, mu: null, message: `no crossing of ${level} before the bound ${bound}` };
+      lo = hi;
+      flo = fhi;
+      dist *= 1.6;
+      hi = clampTo(x0 + dir * dist, x0, bound);
+      fhi = f(hi);
+    }
+    if (fhi === null) return failed('a conditional fit failed while bracketing the crossing');
+    const root = illinois(f, lo, flo, hi, fhi, 1e-6 * Math.max(sigma, 1e-12));
+    return root === null ? failed('a conditional fit failed while locating the crossing') : { ok: true, value: root, nll: null, mu: null, message: null };
+  }
+
+  /** μ = σ_A(μ) K with σ_A(μ)² = μ²/q_μ,A on the background-only Asimov dataset, by fixed-point iteration. */
+  private expectedLimit(c: number, n: number, cl: number): JobResult {
+    const ctx = this.contexts[c];
+    const m = ctx.problem.model;
+    const K = expectedLimitFactor(n, 1 - cl);
+    let mu = Math.sqrt(ctx.V[0]) * K + ctx.phi[0];
+    for (let it = 0; it < 40; it++) {
+      if (!(mu > ctx.phi[0]) || mu > m.upper[0]) return { ok: true, value: null, nll: null, mu: null, message: 'the expected limit lies beyond the upper bound of μ' };
+      const qa = this.q(c, 0, mu);
+      if (qa === null || !(qa > 0)) return failed('a conditional fit on the Asimov dataset failed');
+      const sigma = (mu - ctx.phi[0]) / Math.sqrt(qa);
+      const next = ctx.phi[0] + sigma * K;
+      if (Math.abs(next - mu) < 1e-7 * sigma) return { ok: true, value: next, nll: null, mu: null, message: null };
+      mu = next;
+    }
+    return failed('the expected limit did not settle');
+  }
+
+  /** Solves CLs(μ) = 1 − cl for μ above max(μ̂, 0). */
+  private observedLimit(c: number, a: number, cl: number): JobResult {
+    const ctx = this.contexts[c];
+    const asimov = this.contexts[a];
+    const m = ctx.problem.model;
+    const alpha = 1 - cl;
+    const muHat = ctx.phi[0];
+    // q̃_μ uses μ = 0 as the reference when μ̂ < 0.
+    let reference = 0;
+    if (muHat < 0) {
+      const q0 = this.q(c, 0, 0);
+      if (q0 === null) return failed('the conditional fit at μ = 0 failed');
+      reference = q0;
+    }
+    const cls = (mu: number): number | null => {
+      const q = this.q(c, 0, mu);
+      const qa = this.q(a, 0, mu);
+      if (q === null || qa === null) return null;
+      const qTilde = muHat > mu ? 0 : q - reference;
+      return clsValue(qTilde, qa);
+    };
+    const sigma = Math.sqrt(ctx.V[0]);
+    let lo = Math.max(muHat, 0, asimov.phi[0]);
+    let flo = 1 - alpha;
+    let step = 2 * sigma;
+    let hi = Math.min(m.upper[0], lo + step);
+    let chi = cls(hi);
+    for (let k = 0; chi !== null && chi > alpha; k++) {
+      if (hi >= m.upper[0] || k > 30) return { ok: true, value: null, nll: null, mu: null, message: 'the observed limit lies beyond the upper bound of μ' };
+      lo = hi;
+      flo = chi - alpha;
+      step *= 2;
+      hi = Math.min(m.upper[0], lo + step);
+      chi = cls(hi);
+    }
+    if (chi === null) return failed('a conditional fit failed while bracketing the limit');
+    const g = (mu: number) => {
+      const v = cls(mu);
+      return v === null ? null : v - alpha;
+    };
+    const root = illinois(g, lo, flo, hi, chi - alpha, 1e-6 * sigma);
+    return root === null ? failed('a conditional fit failed while locating the limit') : { ok: true, value: root, nll: null, mu: null, message: null };
+  }
+}
+
+function failed(message: string | null): JobResult {
+  return { ok: false, value: null, nll: null, mu: null, message };
+}
+
+function clampTo(x: number, from: number, bound: number): number {
+  return bound > from ? Math.min(x, bound) : Math.max(x, bound);
+}
+
+/** Root of f in [a, b] with f(a), f(b) of opposite signs (Illinois regula falsi). */
+function illinois(f: (x: number) => number | null, a: number, fa: number, b: number, fb: number, xtol: number): number | null {
+  if (fa === 0) return a;
+  if (fb === 0) return b;
+  let side = 0;
+  let previous = Infinity;
+  for (let it = 0; it < 100; it++) {
+    const x = (a * fb - b * fa) / (fb - fa);
+    const fx = f(x);
+    if (fx === null) return null;
+    if (fx === 0 || Math.abs(b - a) < xtol || Math.abs(x - previous) < xtol) return x;
+    previous = x;
+    if (Math.sign(fx) === Math.sign(fb)) {
+      b = x;
+      fb = fx;
+      if (side === -1) fa /= 2;
+      side = -1;
+    } else {
+      a = x;
+      fa = fx;
+      if (side === 1) fb /= 2;
+      side = 1;
+    }
+    if (Math.abs(fx) < 1e-10) return x;
+  }
+  return (a + b) / 2;
+}

@@ -1,0 +1,94 @@
+import os from 'node:os';
+import { Piscina } from 'piscina';
+import type { FitContext } from './covariance';
+import { FitCancelledError } from './errors';
+import type { WorkerTask } from './fit-worker';
+import { JobRunner, type Job, type JobResult } from './jobs';
+
+/**
+ * Refits on worker threads (piscina). A pool outlives one fit: the API keeps one and passes
+ * it to every fitModel call. The worker entry is a TypeScript file in development and tests
+ * (loaded through tsx) and can be pointed at a bundled .js file in production.
+ */
+export interface FitPool {
+  readonly threads: number;
+  runBatch(task: WorkerTask, signal?: AbortSignal): Promise<JobResult[]>;
+  destroy(): Promise<void>;
+}
+
+export interface FitPoolOptions {
+  /** Worker threads; default os.availableParallelism(). */
+  threads?: number;
+  /** Worker module (path or file URL); default fit-worker.ts/.js beside this module. */
+  workerFile?: string | URL;
+}
+
+export function createFitPool(options: FitPoolOptions = {}): FitPool {
+  const threads = Math.max(1, options.threads ?? os.availableParallelism());
+  const here = new URL(import.meta.url);
+  const ext = here.pathname.endsWith('.ts') ? '.ts' : '.js';
+  const workerFile = options.workerFile ?? new URL(`./fit-worker${ext}`, here);
+  const filename = workerFile instanceof URL ? workerFile.href : workerFile;
+  // A .ts worker needs the tsx loader unless the parent already runs under it.
+  const execArgv = [...process.execArgv];
+  if (filename.endsWith('.ts') && !execArgv.some((a) => a.includes('tsx'))) execArgv.push('--import', 'tsx');
+  const piscina = new Piscina({ filename, minThreads: threads, maxThreads: threads, execArgv, idleTimeout: 60_000 });
+  return {
+    threads,
+    async runBatch(task, signal) {
+      try {
+        return (await piscina.run(task, { signal })) as JobResult[];
+      } catch (error) {
+        if (signal?.aborted) throw new FitCancelledError();
+        throw error;
+      }
+    },
+    destroy: () => piscina.destroy(),
+  };
+}
+
+export interface RunJobsControl {
+  pool?: FitPool;
+  signal?: AbortSignal;
+  onProgress?: (doneFraction: number) => void;
+}
+
+/**
+ * Runs jobs in this thread or, with a pool, in interleaved batches (about four per thread so
+ * the threads stay busy and progress moves). Results come back in job order.
+ */
+export async function runJobs(contexts: FitContext[], jobs: Job[], control: RunJobsControl = {}): Promise<JobResult[]> {
+  const { pool, signal, onProgress } = control;
+  if (jobs.length === 0) return [];
+  if (signal?.aborted) throw new FitCancelledError();
+  if (!pool) {
+    const runner = new JobRunner(contexts);
+    const results: JobResult[] = [];
+    let lastYield = Date.now();
+    for (const job of jobs) {
+      results.push(runner.run(job));
+      onProgress?.(results.length / jobs.length);
+      if (Date.now() - lastYield > 25) {
+        // Let the event loop deliver an abort (and other requests) between refits.
+        await new Promise((resolve) => setImmediate(resolve));
+        lastYield = Date.now();
+      }
+      if (signal?.aborted) throw new FitCancelledError();
+    }
+    return results;
+  }
+  const nBatches = Math.min(jobs.length, pool.threads * 4);
+  const batches: number[][] = Array.from({ length: nBatches }, () => []);
+  jobs.forEach((_, i) => batches[i % nBatches].push(i));
+  const results: JobResult[] = new Array(jobs.length);
+  let done = 0;
+  await Promise.all(
+    batches.map(async (indices) => {
+      const out = await pool.runBatch({ contexts, jobs: indices.map((i) => jobs[i]) }, signal);
+      indices.forEach((i, k) => (results[i] = out[k]));
+      done += indices.length;
+      onProgress?.(done / jobs.length);
+    }),
+  );
+  return results;
+}
