@@ -6,7 +6,7 @@ import { FitCancelledError, FitInputError, throwIfAborted } from './errors';
 import { postfitYields, prefitYields } from './expected-yields';
 import { informationBreakdown } from './information';
 import type { Job } from './jobs';
-import { clippedSampleBins, createScratch, minimise, type MinimiseResult } from './minimiser';
+import { clippedSampleBins, createScratch, EDGE_TOLERANCE, minimise, type MinimiseResult } from './minimiser';
 import { correlationMatrix, errorOf, groupImpact, isAtBound, nuisanceTable, parameterTable, statOnlyError } from './parameters-report';
 import { runJobs, type FitPool } from './pool';
 import { asimovData, buildProblem, startPoint } from './problem';
@@ -50,7 +50,7 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   const start = startPoint(m);
   const min = minimise(problem, start.phi, start.gamma, scratch, { signal });
   if (min.status === 'cancelled') throw new FitCancelledError();
-  const clipped = clippedSampleBins(problem, scratch.ws).map(({ sample, bin }) => ({
+  const clipped = clippedSampleBins(problem, scratch.ws, min.status === 'edge' ? EDGE_TOLERANCE : 0).map(({ sample, bin }) => ({
     region: m.regions[m.sampleRegion[sample]].key,
     bin,
     process: m.processes[m.sampleProcess[sample]].key,

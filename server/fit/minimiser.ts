@@ -204,21 +204,29 @@ export function project(problem: FitProblem, phi: Float64Array, gamma: Float64Ar
   }
 }
 
-/** Sample-bins in the fit whose additive template is at or below zero (the clip is active). */
-export function clippedSampleBins(problem: FitProblem, ws: Workspace): { sample: number; bin: number }[] {
+/**
+ * Sample-bins in the fit whose additive template is at or below zero (the clip is active), or,
+ * with `edge` > 0, within that fraction of its nominal above zero (on the edge).
+ */
+export function clippedSampleBins(problem: FitProblem, ws: Workspace, edge = 0): { sample: number; bin: number }[] {
   const m = problem.model;
   const out: { sample: number; bin: number }[] = [];
   for (let s = 0; s < m.nSamples; s++) {
     if (!m.sampleInFit[s]) continue;
     const sb0 = m.sampleBinStart[s];
     for (let j = 0; j < m.sampleNBins[s]; j++) {
+      const A = ws.A[sb0 + j];
+      const nominal = m.nominal[sb0 + j];
       // A template that is zero at nominal and untouched is not a clip.
-      if (ws.A[sb0 + j] < 0 || (ws.A[sb0 + j] === 0 && m.nominal[sb0 + j] > 0)) out.push({ sample: s, bin: j });
+      if (A < 0 || (nominal > 0 && A <= edge * nominal)) out.push({ sample: s, bin: j });
     }
   }
   return out;
 }
 
+/** How close to zero, relative to the nominal, a template counts as sitting on the clip edge. */
+export const EDGE_TOLERANCE = 1e-4;
+
 function hasClippedBins(problem: FitProblem, ws: Workspace): boolean {
-  return clippedSampleBins(problem, ws).length > 0;
+  return clippedSampleBins(problem, ws, EDGE_TOLERANCE).length > 0;
 }
