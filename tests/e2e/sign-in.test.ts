@@ -59,7 +59,7 @@ describe('signing in and opening an analysis in the browser', () => {
     await signIn(page, server.url, 'mira@lantern.example');
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
     await page.goto(`${server.url}/a/vireon-search/members`);
-    await page.getByRole('cell', { name: 'Rafe Orlowyn' }).waitFor();
+    await page.getByRole('rowheader', { name: /Rafe Orlowyn/ }).waitFor();
     await expect(page.getByRole('button', { name: /add member/i }).count()).resolves.toBe(1);
     await screenshot(page, 'members-convener');
 
@@ -67,7 +67,7 @@ describe('signing in and opening an analysis in the browser', () => {
     await signIn(page, server.url, 'rafe@lantern.example');
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
     await page.goto(`${server.url}/a/vireon-search/members`);
-    await page.getByRole('cell', { name: 'Mira Quellbright' }).waitFor();
+    await page.getByRole('rowheader', { name: /Mira Quellbright/ }).waitFor();
     await expect(page.getByRole('button', { name: /add member/i }).count()).resolves.toBe(0);
     await screenshot(page, 'members-reader');
   });

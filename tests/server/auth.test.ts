@@ -9,7 +9,7 @@ import { testConfig } from '../../server/config';
 import { openDatabase, DataDirLockedError } from '../../server/db/client';
 import { analyses, users } from '../../server/db/schema';
 import { seedDemo } from '../../server/seed/demo';
-import { Client, createTestApp, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
+import { Client, createTestApp, DEMO, signedIn, type TestApp } from './helpers';
 
 const sessionCookie = (res: request.Response) => ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith('plumbline.sid='));
 
