@@ -9,7 +9,8 @@ import { minimise, type Scratch } from './minimiser';
  * limits). With γ profiled in closed form, the function left is F(φ) = min_γ NLL(φ, γ), whose
  * Hessian at the minimum is the Schur complement already inverted in V.
  *  - Start from the linear response φ = φ̂ + V[:,i] Δ / V_ii, the exact minimiser of the
- *    quadratic model with φ_i = φ̂_i + Δ.
+ *    quadratic model with φ_i = φ̂_i + Δ (or the same step from a nearby conditional minimum
+ *    when a root search moves the fixed value a little).
  *  - Step with the already factorised Hessian: with φ_i removed, the inverse Hessian is
  *    V − V[:,i] V[i,:] / V_ii; each step costs one gradient (∇F = ∂NLL/∂φ at γ̂(φ)) and a
  *    matrix-vector product. The inverse is refined by BFGS updates from the steps taken
@@ -31,7 +32,14 @@ export interface ConditionalResult {
 
 const MAX_STEPS = 40;
 
-export function conditionalFit(ctx: FitContext, index: number, value: number, scratch: Scratch, tolerance = 1e-9): ConditionalResult {
+/** A conditional minimum already found for the same parameter, to start a nearby one from. */
+export interface WarmStart {
+  value: number;
+  phi: Float64Array;
+  gamma: Float64Array;
+}
+
+export function conditionalFit(ctx: FitContext, index: number, value: number, scratch: Scratch, tolerance = 1e-9, warm: WarmStart | null = null): ConditionalResult {
   const { problem, V } = ctx;
   const m = problem.model;
   const P = m.nDense;
@@ -40,10 +48,11 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
   const idx = Int32Array.from([...ctx.free].filter((p) => p !== index));
   const n = idx.length;
 
-  const phi = Float64Array.from(ctx.phi);
-  const gamma = Float64Array.from(ctx.gamma);
+  // From the minimum, or from a nearby conditional minimum (root searches), along V[:,i].
+  const phi = Float64Array.from(warm ? warm.phi : ctx.phi);
+  const gamma = Float64Array.from(warm ? warm.gamma : ctx.gamma);
   const Vii = V[index * P + index];
-  const delta = value - ctx.phi[index];
+  const delta = value - (warm ? warm.value : ctx.phi[index]);
   for (let a = 0; a < n; a++) phi[idx[a]] += (V[idx[a] * P + index] * delta) / Vii;
   phi[index] = value;
 

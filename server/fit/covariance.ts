@@ -27,6 +27,8 @@ export interface FitContext {
   pkBlock: Float64Array;
   /** (H_φφ)⁻¹_μμ: σ_μ² with every γ fixed (the template-statistics group impact). */
   varMuGammaFixed: number | null;
+  /** V h_g per γ (see covarianceTimesCoupling), filled on first use; not sent to workers. */
+  VBt?: Float64Array;
 }
 
 export type CurvatureOutcome =
@@ -157,19 +159,38 @@ export function conditionNumber(H: Float64Array, L: Float64Array, n: number): nu
   return maxEig * maxInv;
 }
 
+/**
+ * Y = V Bᵀ: row g holds V h_g (nGamma × nDense), computed once per context with contiguous dot
+ * products; γ variances and post-fit yield uncertainties both need it.
+ */
+export function covarianceTimesCoupling(ctx: FitContext): Float64Array {
+  if (ctx.VBt) return ctx.VBt;
+  const m = ctx.problem.model;
+  const P = m.nDense;
+  const G = m.nGamma;
+  const Y = new Float64Array(G * P);
+  for (let g = 0; g < G; g++) {
+    if (!ctx.eliminate[g]) continue;
+    const row = g * P;
+    for (let i = 0; i < P; i++) {
+      const vi = i * P;
+      let acc = 0;
+      for (let k = 0; k < P; k++) acc += ctx.V[vi + k] * ctx.Bt[row + k];
+      Y[row + i] = acc;
+    }
+  }
+  ctx.VBt = Y;
+  return Y;
+}
+
 /** Var(γ_g) = 1/D + (h/D)ᵀ V (h/D), from the block inverse of the full Hessian. */
 export function gammaVariance(ctx: FitContext, g: number): number | null {
   if (!ctx.eliminate[g]) return null;
   const P = ctx.problem.model.nDense;
+  const Y = covarianceTimesCoupling(ctx);
   const Dg = ctx.D[g];
   const row = g * P;
   let quad = 0;
-  for (const i of ctx.free) {
-    const hi = ctx.Bt[row + i];
-    if (hi === 0) continue;
-    let acc = 0;
-    for (const j of ctx.free) acc += ctx.V[i * P + j] * ctx.Bt[row + j];
-    quad += hi * acc;
-  }
+  for (let i = 0; i < P; i++) quad += ctx.Bt[row + i] * Y[row + i];
   return 1 / Dg + quad / (Dg * Dg);
 }

@@ -48,6 +48,7 @@ export interface Derivatives {
   ell: Float64Array;
   ell2: Float64Array;
   omega: Float64Array;
+  blocks: Partial<Record<'Hl' | 'Sl' | 'gl' | 'hl', Float64Array>>;
 }
 
 export function createDerivatives(m: CompiledModel): Derivatives {
@@ -73,6 +74,7 @@ export function createDerivatives(m: CompiledModel): Derivatives {
     ell: new Float64Array(P),
     ell2: new Float64Array(P),
     omega: new Float64Array(maxBins),
+    blocks: {},
   };
 }
 
@@ -219,16 +221,24 @@ export function computeDerivatives(
   const { gb, rb, h, gReduced, D, Bt } = d;
   const schur = wantSchur ? d.schur : null;
   gReduced.set(g);
+  // Per region, the rank-one updates run on a compact L×L block over the region's parameters
+  // (contiguous memory), added into H once per region.
   for (const region of m.regions) {
     if (!region.inFit) continue;
     const list = region.parameters;
     const L = list.length;
+    const Hl = localBlock(d, 'Hl', L * L);
+    const Sl = schur ? localBlock(d, 'Sl', L * L) : null;
+    const gl = localBlock(d, 'gl', L);
+    const hl = localBlock(d, 'hl', L);
     for (let j = 0; j < region.nBins; j++) {
       const b = region.firstBin + j;
       const al = alpha[b];
       const gi = m.binGamma[b];
       const elim = gi >= 0 && eliminate[gi] === 1;
+      if (!elim && al === 0) continue;
       binGradient(m, ws, gamma, region.samples, j, b, gb, elim ? rb : null);
+      for (let ii = 0; ii < L; ii++) gl[ii] = gb[list[ii]];
       if (elim) {
         const s2 = m.gammaSigma[gi] * m.gammaSigma[gi];
         const dg = dNuDGamma[b];
@@ -240,37 +250,47 @@ export function computeDerivatives(
         const bt = gi * P;
         for (let ii = 0; ii < L; ii++) {
           const p = list[ii];
-          const hp = al * dg * gb[p] + wb * rb[p];
+          const hp = al * dg * gl[ii] + wb * rb[p];
+          hl[ii] = hp;
           h[p] = hp;
           Bt[bt + p] = hp;
           gReduced[p] -= hp * gg;
         }
         for (let ii = 0; ii < L; ii++) {
-          const p = list[ii];
-          const x = al * gb[p];
-          const y = h[p] * invD;
-          const row = p * P;
-          for (let jj = ii; jj < L; jj++) {
-            const q = list[jj];
-            H[row + q] += x * gb[q] - y * h[q];
-          }
-          if (schur) for (let jj = ii; jj < L; jj++) schur[row + list[jj]] += y * h[list[jj]];
+          const x = al * gl[ii];
+          const y = hl[ii] * invD;
+          const row = ii * L;
+          for (let jj = ii; jj < L; jj++) Hl[row + jj] += x * gl[jj] - y * hl[jj];
+          if (Sl) for (let jj = ii; jj < L; jj++) Sl[row + jj] += y * hl[jj];
         }
-      } else if (al > 0) {
+      } else {
         for (let ii = 0; ii < L; ii++) {
-          const p = list[ii];
-          const x = al * gb[p];
-          const row = p * P;
-          for (let jj = ii; jj < L; jj++) {
-            const q = list[jj];
-            H[row + q] += x * gb[q];
-          }
+          const x = al * gl[ii];
+          const row = ii * L;
+          for (let jj = ii; jj < L; jj++) Hl[row + jj] += x * gl[jj];
         }
+      }
+    }
+    for (let ii = 0; ii < L; ii++) {
+      const row = list[ii] * P;
+      for (let jj = ii; jj < L; jj++) {
+        H[row + list[jj]] += Hl[ii * L + jj];
+        if (Sl && schur) schur[row + list[jj]] += Sl[ii * L + jj];
       }
     }
   }
   mirrorUpper(H, P);
   if (schur) mirrorUpper(schur, P);
+}
+
+/** A zeroed scratch block of the given size, kept on the derivatives object between calls. */
+function localBlock(d: Derivatives, key: 'Hl' | 'Sl' | 'gl' | 'hl', size: number): Float64Array {
+  let block = d.blocks[key];
+  if (!block || block.length < size) {
+    block = new Float64Array(size);
+    d.blocks[key] = block;
+  } else block.fill(0, 0, size);
+  return block;
 }
 
 function mirrorUpper(M: Float64Array, P: number): void {

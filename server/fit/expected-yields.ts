@@ -1,7 +1,7 @@
 import type { z } from 'zod';
 import type { regionYieldsSchema } from '@shared/schemas/fit';
 import type { CompiledModel } from './compiled-model';
-import type { FitContext } from './covariance';
+import { covarianceTimesCoupling, type FitContext } from './covariance';
 import { createWorkspace, evaluateYields, type Workspace } from './yields';
 
 type RegionYields = z.infer<typeof regionYieldsSchema>;
@@ -116,6 +116,7 @@ export function postfitYields(ctx: FitContext): RegionYields[] {
   const idx: number[] = [];
   const val: number[] = [];
   const y = new Float64Array(P);
+  const VBt = covarianceTimesCoupling(ctx);
   const tot = new Float64Array(P);
 
   /** Jᵀ V J over the sparse (idx, val), plus the prior part of held parameters. */
@@ -145,12 +146,8 @@ export function postfitYields(ctx: FitContext): RegionYields[] {
       let sHh = 0;
       if (elim) {
         const row = gi * P;
-        for (const i of free) {
-          let acc = 0;
-          for (const k of free) acc += V[i * P + k] * Bt[row + k];
-          y[i] = acc;
-        }
-        for (const i of free) sHh += Bt[row + i] * y[i];
+        y.set(VBt.subarray(row, row + P));
+        for (let i = 0; i < P; i++) sHh += Bt[row + i] * y[i];
       }
       const gammaVar = (jg: number) => (gi < 0 ? 0 : elim ? 0 : jg * jg * m.gammaSigma[gi] ** 2);
       tot.fill(0);

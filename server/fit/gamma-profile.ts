@@ -1,5 +1,5 @@
 import type { CompiledModel } from './compiled-model';
-import { evaluateYields, type Workspace } from './yields';
+import { applyGammas, evaluateYields, type Workspace } from './yields';
 
 /**
  * γ profiled in closed form (Conway, arXiv:1103.0354, Barlow–Beeston lite): in bin b, with m
@@ -38,5 +38,5 @@ export function profileGammas(model: CompiledModel, data: Float64Array, gammaHel
     }
     gamma[g] = gammaRoot(carrying, rest, data[b], model.gammaSigma[g]);
   }
-  evaluateYields(model, phi, gamma, ws);
+  applyGammas(model, gamma, ws);
 }

@@ -1,5 +1,5 @@
 import { clsValue, expectedLimitFactor } from './cls';
-import { conditionalFit } from './conditional-fit';
+import { conditionalFit, type WarmStart } from './conditional-fit';
 import type { FitContext } from './covariance';
 import { createScratch, type Scratch } from './minimiser';
 
@@ -39,15 +39,25 @@ export class JobRunner {
     return s;
   }
 
+  /**
+   * Within one job, the last conditional minimum per context warm-starts the next fit of a
+   * root search. It is cleared between jobs, so a job's result does not depend on which jobs
+   * ran before it on the same thread (serial and parallel paths agree exactly).
+   */
+  private warm = new Map<number, WarmStart>();
+
   /** 2ΔNLL with φ_index fixed at value (null if the conditional fit failed). */
   private q(c: number, index: number, value: number): number | null {
     const ctx = this.contexts[c];
     if (value === ctx.phi[index]) return 0;
-    const r = conditionalFit(ctx, index, value, this.scratchFor(c));
-    return r.ok ? Math.max(0, 2 * (r.nll - ctx.nll)) : null;
+    const r = conditionalFit(ctx, index, value, this.scratchFor(c), 1e-9, this.warm.get(c) ?? null);
+    if (!r.ok) return null;
+    this.warm.set(c, { value, phi: r.phi, gamma: r.gamma });
+    return Math.max(0, 2 * (r.nll - ctx.nll));
   }
 
   run(job: Job): JobResult {
+    this.warm.clear();
     switch (job.kind) {
       case 'fix': {
         const ctx = this.contexts[job.context];

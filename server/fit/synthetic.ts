@@ -126,7 +126,9 @@ export function syntheticModel(size: SyntheticSize | SyntheticSpec, seed = 1): E
   for (let i = 0; i < spec.systematics; i++) {
     const nTouched = 1 + Math.floor(rand() * Math.min(3, spec.processes));
     const touched = new Set<number>();
-    while (touched.size < nTouched) touched.add(Math.floor(rand() * spec.processes));
+    // The signal carries few systematics (a tenth of them), as in a typical analysis.
+    const first = spec.processes > 1 && rand() > 0.1 ? 1 : 0;
+    while (touched.size < Math.min(nTouched, spec.processes - first)) touched.add(first + Math.floor(rand() * (spec.processes - first)));
     const kind = rand();
     const effects = [];
     for (const p of touched) {

@@ -44,8 +44,7 @@ const u = new Float64Array(3);
 
 /** Fills the workspace at (φ, γ). With `all` false, samples outside the fit are skipped. */
 export function evaluateYields(m: CompiledModel, phi: Float64Array, gamma: Float64Array, ws: Workspace, all = false): void {
-  const { E, c, cMu, cK, A, nuSample, nu, shapeCoef, scaleD1, scaleD2 } = ws;
-  nu.fill(0);
+  const { E, c, cMu, cK, A, shapeCoef, scaleD1, scaleD2 } = ws;
   for (let s = 0; s < m.nSamples; s++) {
     if (!all && !m.sampleInFit[s]) continue;
     // Scale effects: log-space interpolation.
@@ -79,7 +78,19 @@ export function evaluateYields(m: CompiledModel, phi: Float64Array, gamma: Float
       const off = m.shapeOffset[e];
       for (let j = 0; j < nb; j++) A[sb0 + j] += theta * m.shapeHd[off + j] + u[0] * m.shapeHs[off + j];
     }
+  }
+  applyGammas(m, gamma, ws, all);
+}
+
+/** ν_sb = c E A⁺ γ and ν_b = Σ_s ν_sb from the per-sample factors already in the workspace. */
+export function applyGammas(m: CompiledModel, gamma: Float64Array, ws: Workspace, all = false): void {
+  const { E, c, A, nuSample, nu } = ws;
+  nu.fill(0);
+  for (let s = 0; s < m.nSamples; s++) {
+    if (!all && !m.sampleInFit[s]) continue;
     const f = E[s] * c[s];
+    const nb = m.sampleNBins[s];
+    const sb0 = m.sampleBinStart[s];
     const b0 = m.sampleFirstBin[s];
     for (let j = 0; j < nb; j++) {
       const a = A[sb0 + j];
