@@ -136,11 +136,11 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   const parameters = parameterTable(ctx);
   const nuisance = nuisanceTable(ctx, options.overConstraintThreshold);
   const muHat = ctx.phi[0];
-  const delta = (k: number, what: string): number => {
+  const delta = (k: number, what: string): number | null => {
     const r = results[k];
     if (!r.ok || r.mu === null) {
-      warnings.push(`The refit for ${what} did not converge; its impact is reported as 0.`);
-      return 0;
+      warnings.push(`The refit for ${what} did not converge; its impact is left empty.`);
+      return null;
     }
     return r.mu - muHat;
   };
@@ -280,7 +280,8 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
 
 /** Orders by the largest post-fit |Δμ| (falling back to the quick impact without refits). */
 function rank(rows: NuisanceReport[]): void {
-  const key = (r: NuisanceReport) => (r.postfitImpact ? Math.max(Math.abs(r.postfitImpact.up), Math.abs(r.postfitImpact.down)) : r.quickImpact === null ? null : Math.abs(r.quickImpact));
+  const key = (r: NuisanceReport) =>
+    r.postfitImpact ? Math.max(Math.abs(r.postfitImpact.up ?? 0), Math.abs(r.postfitImpact.down ?? 0)) : r.quickImpact === null ? null : Math.abs(r.quickImpact);
   const ranked = rows.filter((r) => !r.fixed && key(r) !== null).sort((a, b) => key(b)! - key(a)!);
   ranked.forEach((r, k) => (r.rank = k + 1));
 }

@@ -35,7 +35,8 @@ const nullableNum = z.number().nullable();
 
 export const parameterKindSchema = z.enum(['poi', 'normalisation', 'nuisance']);
 
-export const impactPairSchema = z.strictObject({ up: num, down: num });
+/** Δμ for the two directions; null where that refit did not converge (a warning says so). */
+export const impactPairSchema = z.strictObject({ up: nullableNum, down: nullableNum });
 
 export const fitParameterSchema = z.strictObject({
   name: z.string(),

@@ -80,9 +80,9 @@ describe('impacts', () => {
     const r = await fitModel(m, { dataset: 'asimov', asimovMu: 1, impacts: 'full', expected: false });
     for (const row of r.nuisance) {
       const { up, down } = row.postfitImpact!;
-      expect(Math.abs(up)).toBeGreaterThan(1e-3);
-      expectClose(up, -down, 2e-2);
-      expectClose(row.prefitImpact!.up, -row.prefitImpact!.down, 2e-2);
+      expect(Math.abs(up!)).toBeGreaterThan(1e-3);
+      expectClose(up, -down!, 2e-2);
+      expectClose(row.prefitImpact!.up, -row.prefitImpact!.down!, 2e-2);
     }
   });
 
@@ -113,7 +113,7 @@ describe('impacts', () => {
     m.systematics.forEach((s, i) => (s.group = `g${i}`));
     const r = await fitModel(m, { impacts: 'full', expected: false });
     const ranked = r.nuisance.filter((n) => n.rank !== null).sort((a, b) => a.rank! - b.rank!);
-    const size = (n: (typeof ranked)[number]) => Math.max(Math.abs(n.postfitImpact!.up), Math.abs(n.postfitImpact!.down));
+    const size = (n: (typeof ranked)[number]) => Math.max(Math.abs(n.postfitImpact!.up!), Math.abs(n.postfitImpact!.down!));
     for (let k = 1; k < ranked.length; k++) expect(size(ranked[k - 1])).toBeGreaterThanOrEqual(size(ranked[k]));
     for (const g of r.groupedImpacts.filter((g) => g.parameters.length === 1)) {
       const row = r.nuisance.find((n) => n.name === g.parameters[0])!;
