@@ -2,12 +2,12 @@ import type { FitContext } from './covariance';
 import { JobRunner, type Job, type JobResult } from './jobs';
 
 /** Worker-thread entry: runs a batch of refits against the contexts sent with it. */
-export interface WorkerTask {
+export interface WorkerBatch {
   contexts: FitContext[];
   jobs: Job[];
 }
 
-export default function runBatch(task: WorkerTask): JobResult[] {
-  const runner = new JobRunner(task.contexts);
-  return task.jobs.map((job) => runner.run(job));
+export default function runBatch(batch: WorkerBatch): JobResult[] {
+  const runner = new JobRunner(batch.contexts);
+  return batch.jobs.map((job) => runner.run(job));
 }

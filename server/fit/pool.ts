@@ -2,7 +2,7 @@ import os from 'node:os';
 import { Piscina } from 'piscina';
 import type { FitContext } from './covariance';
 import { FitCancelledError } from './errors';
-import type { WorkerTask } from './fit-worker';
+import type { WorkerBatch } from './fit-worker';
 import { JobRunner, type Job, type JobResult } from './jobs';
 
 /**
@@ -12,7 +12,7 @@ import { JobRunner, type Job, type JobResult } from './jobs';
  */
 export interface FitPool {
   readonly threads: number;
-  runBatch(task: WorkerTask, signal?: AbortSignal): Promise<JobResult[]>;
+  runBatch(batch: WorkerBatch, signal?: AbortSignal): Promise<JobResult[]>;
   destroy(): Promise<void>;
 }
 
@@ -35,9 +35,9 @@ export function createFitPool(options: FitPoolOptions = {}): FitPool {
   const piscina = new Piscina({ filename, minThreads: threads, maxThreads: threads, execArgv, idleTimeout: 60_000 });
   return {
     threads,
-    async runBatch(task, signal) {
+    async runBatch(batch, signal) {
       try {
-        return (await piscina.run(task, { signal })) as JobResult[];
+        return (await piscina.run(batch, { signal })) as JobResult[];
       } catch (error) {
         if (signal?.aborted) throw new FitCancelledError();
         throw error;
