@@ -4,6 +4,7 @@ import { AppShell, RequireAdmin } from '../components/layout/app-shell';
 import { AnalysisLayout } from '../components/layout/analysis-layout';
 import { NotFound, RootError, RouteError } from '../components/errors/route-error';
 import { SignInRoute } from './routes/sign-in';
+import { InvitationRoute } from './routes/invitation';
 import { AnalysesRoute } from './routes/analyses';
 import { OverviewRoute } from './routes/analysis/overview';
 import { RegisterRoute } from './routes/analysis/register';
@@ -26,6 +27,7 @@ export const routes = [
     errorElement: <RootError />,
     children: [
       { path: '/sign-in', ...screen(<SignInRoute />) },
+      { path: '/invite/:token', ...screen(<InvitationRoute />) },
       {
         element: <AppShell />,
         errorElement: <RouteError />,

@@ -105,11 +105,13 @@ function statusMessage(status: number): string {
 async function send<T>(method: Method, url: string, body?: unknown, headers: Record<string, string> = {}): Promise<T> {
   let res: Response;
   try {
+    // A FormData body goes as multipart; the browser writes its Content-Type with the boundary.
+    const multipart = body instanceof FormData;
     res = await fetch(url, {
       method,
       credentials: 'same-origin',
-      headers: { Accept: 'application/json', ...(body !== undefined ? { 'Content-Type': 'application/json' } : {}), ...headers },
-      body: body !== undefined ? JSON.stringify(body) : undefined,
+      headers: { Accept: 'application/json', ...(body !== undefined && !multipart ? { 'Content-Type': 'application/json' } : {}), ...headers },
+      body: body === undefined ? undefined : multipart ? body : JSON.stringify(body),
     });
   } catch {
     throw new ApiRequestError(0, 'Could not reach the Plumbline server. Check your connection and try again.', 'network');
@@ -168,4 +170,11 @@ export const api = {
   patch: <T>(url: string, body: unknown) => apiRequest<T>('PATCH', url, body),
   put: <T>(url: string, body: unknown) => apiRequest<T>('PUT', url, body),
   delete: <T = void>(url: string) => apiRequest<T>('DELETE', url),
+  /** A multipart POST (file uploads): the same CSRF header and error handling as every mutation. */
+  upload: <T>(url: string, form: FormData) => apiRequest<T>('POST', url, form),
 };
+
+/** The path of an analysis-scoped endpoint, with the slug and every further segment encoded. */
+export function analysisPath(slug: string, ...segments: (string | number)[]): string {
+  return ['/api/analyses', slug, ...segments].map((s, i) => (i === 0 ? s : encodeURIComponent(String(s)))).join('/');
+}

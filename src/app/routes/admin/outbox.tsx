@@ -7,7 +7,7 @@ export function OutboxRoute() {
   const outbox = useOutbox();
   return (
     <main id="main" className="mx-auto max-w-6xl px-6 py-6">
-      <PageHeader title="Outbox" description="E-mail Plumbline has sent or queued." />
+      <PageHeader title="Outbox" description="E-mail Plumbline has sent or queued, newest first. Open a subject to read the message." />
       <QueryView query={outbox} loadingLabel="Loading the outbox…">
         {(messages) => <OutboxList messages={messages} />}
       </QueryView>

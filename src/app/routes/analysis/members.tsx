@@ -4,7 +4,7 @@ import { QueryView } from '../../../components/ui/query-view';
 import { useMe } from '../../../features/auth/api/get-me';
 import { useCan } from '../../../features/analyses/use-can';
 import { useMembers } from '../../../features/members/api/get-members';
-import { AddMemberForm } from '../../../features/members/components/add-member-form';
+import { InviteMemberForm } from '../../../features/members/components/invite-member-form';
 import { MembersTable } from '../../../features/members/components/members-table';
 
 export function MembersRoute() {
@@ -16,12 +16,12 @@ export function MembersRoute() {
     <>
       <PageHeader
         title="Members"
-        description={canManage ? 'Who works on this analysis and in which role. You may add members, change their roles and remove them.' : 'Who works on this analysis and in which role.'}
+        description={canManage ? 'Who works on this analysis and in which role. You may invite people by e-mail, change roles and remove members.' : 'Who works on this analysis and in which role.'}
       />
       <div className="flex flex-col gap-5">
         {canManage && (
-          <Panel title="Add a member">
-            <AddMemberForm slug={slug} />
+          <Panel title="Invite by e-mail">
+            <InviteMemberForm slug={slug} />
           </Panel>
         )}
         <QueryView query={members} loadingLabel="Loading members…">

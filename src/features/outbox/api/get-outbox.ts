@@ -1,11 +1,8 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
+import type { OutboxMessage } from '@shared/schemas/register';
 import { api } from '../../../lib/api-client';
 
-/**
- * A message Plumbline has queued for sending. The outbox is empty until e-mail is built,
- * so the client reads only the fields every message will certainly carry, and only if present.
- */
-export type OutboxMessage = { id?: number; to?: string; subject?: string; createdAt?: string; sentAt?: string | null };
+export type { OutboxMessage };
 
 export const outboxQueryKey = ['outbox'] as const;
 

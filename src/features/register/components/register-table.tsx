@@ -1,34 +1,42 @@
-import { useState } from 'react';
+import { memo, useDeferredValue, useMemo, useState, type ReactNode } from 'react';
 import { Link } from 'react-router';
 import {
   columnFilteringFeature,
+  columnVisibilityFeature,
+  constructFilterFn,
   createColumnHelper,
   createFilteredRowModel,
   createSortedRowModel,
-  filterFn_includesString,
   globalFilteringFeature,
   rowSortingFeature,
   sortFn_alphanumeric,
+  sortFn_basic,
   sortFn_text,
   tableFeatures,
   useTable,
+  type ColumnFiltersState,
+  type ColumnVisibilityState,
   type SortingState,
 } from '@tanstack/react-table';
-import type { EntrySummary } from '@shared/schemas/api';
+import type { EntryState, EntrySummary } from '@shared/schemas/api';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { formatPercent } from '../../../lib/format';
-import { ENTRY_STATES } from '../entry-states';
+import { ENTRY_STATE_META, ENTRY_STATES } from '../entry-states';
 import { EntryStateBadge } from './entry-state-badge';
+
+/** Equality on the column's value; '' is a real choice ("no group", "unassigned"), only undefined clears it. */
+const exact = constructFilterFn({ filter: (data, wanted) => data === wanted, autoRemove: (v) => v === undefined || v === null });
 
 const features = tableFeatures({
   rowSortingFeature,
   columnFilteringFeature,
   globalFilteringFeature,
+  columnVisibilityFeature,
   sortedRowModel: createSortedRowModel(),
   filteredRowModel: createFilteredRowModel(),
-  sortFns: { alphanumeric: sortFn_alphanumeric, text: sortFn_text },
-  filterFns: { includesString: filterFn_includesString },
+  sortFns: { alphanumeric: sortFn_alphanumeric, text: sortFn_text, basic: sortFn_basic },
+  filterFns: { exact },
 });
 
 const col = createColumnHelper<typeof features, EntrySummary>();
@@ -40,11 +48,32 @@ function searchText(e: EntrySummary): string {
     .toLowerCase();
 }
 
+/** Search text per entry, computed once per list rather than once per keystroke. */
+const searchIndex = new WeakMap<EntrySummary, string>();
+function indexed(e: EntrySummary): string {
+  let s = searchIndex.get(e);
+  if (s === undefined) {
+    s = searchText(e);
+    searchIndex.set(e, s);
+  }
+  return s;
+}
+
+function ListCell({ items, noun }: { items: string[]; noun: [string, string] }) {
+  if (!items.length) return <span className="text-ink-muted">none yet</span>;
+  return (
+    <span title={`Affects ${items.length} ${items.length === 1 ? noun[0] : noun[1]}: ${items.join(', ')}`} className="text-xs">
+      {items.join(', ')}
+    </span>
+  );
+}
+
 function makeColumns(slug: string) {
   return col.columns([
     col.accessor('key', {
       header: 'Key',
       sortFn: 'alphanumeric',
+      enableHiding: false,
       cell: (c) => (
         <Link to={`/a/${slug}/entries/${encodeURIComponent(c.getValue())}`} className="font-mono text-xs font-medium text-teal-ink hover:underline">
           {c.getValue()}
@@ -56,12 +85,14 @@ function makeColumns(slug: string) {
       id: 'group',
       header: 'Group',
       sortFn: 'text',
+      filterFn: 'exact',
       cell: (c) => c.getValue() || <span className="text-ink-muted">none</span>,
     }),
     col.accessor((e) => e.owner?.name ?? '', {
       id: 'owner',
       header: 'Owner',
       sortFn: 'text',
+      filterFn: 'exact',
       cell: (c) => {
         const owner = c.row.original.owner;
         return owner ? <span title={owner.email}>{owner.name}</span> : <span className="text-ink-muted">unassigned</span>;
@@ -70,20 +101,19 @@ function makeColumns(slug: string) {
     col.accessor((e) => e.processes.length, {
       id: 'processes',
       header: 'Processes',
-      cell: (c) => {
-        const ps = c.row.original.processes;
-        return ps.length ? (
-          <span title={`Affects ${ps.length} process${ps.length === 1 ? '' : 'es'}: ${ps.join(', ')}`} className="text-xs">
-            {ps.join(', ')}
-          </span>
-        ) : (
-          <span className="text-ink-muted">none yet</span>
-        );
-      },
+      sortFn: 'basic',
+      cell: (c) => <ListCell items={c.row.original.processes} noun={['process', 'processes']} />,
+    }),
+    col.accessor((e) => e.regions.length, {
+      id: 'regions',
+      header: 'Regions',
+      sortFn: 'basic',
+      cell: (c) => <ListCell items={c.row.original.regions} noun={['region', 'regions']} />,
     }),
     col.accessor((e) => e.largestEffectPct ?? undefined, {
       id: 'largestEffect',
       header: 'Largest effect',
+      sortFn: 'basic',
       sortUndefined: 'last',
       cell: (c) => {
         const v = c.row.original.largestEffectPct;
@@ -98,13 +128,16 @@ function makeColumns(slug: string) {
         );
       },
     }),
-    col.accessor((e) => ENTRY_STATES.indexOf(e.state), {
+    col.accessor((e) => e.state, {
       id: 'state',
       header: 'State',
+      filterFn: 'exact',
+      sortFn: (a, b) => ENTRY_STATES.indexOf(a.original.state) - ENTRY_STATES.indexOf(b.original.state),
       cell: (c) => <EntryStateBadge state={c.row.original.state} />,
     }),
     col.accessor('warnings', {
       header: 'Warnings',
+      sortFn: 'basic',
       cell: (c) => {
         const n = c.getValue();
         return n > 0 ? (
@@ -121,38 +154,152 @@ function makeColumns(slug: string) {
   ]);
 }
 
+const COLUMN_LABELS: Record<string, string> = {
+  key: 'Key',
+  label: 'Label',
+  group: 'Group',
+  owner: 'Owner',
+  processes: 'Processes',
+  regions: 'Regions',
+  largestEffect: 'Largest effect',
+  state: 'State',
+  warnings: 'Warnings',
+};
 const NUMERIC = new Set(['largestEffect', 'warnings']);
-/** Short values stay on one line so rows stay one line high; labels and process lists may wrap. */
+/** Short values stay on one line so rows stay one line high; labels and lists may wrap. */
 const NOWRAP = new Set(['key', 'group', 'owner', 'state', 'largestEffect', 'warnings']);
+/** Sentinel of the "any" choice of a filter select (every real value, '' included, is a choice). */
+const ANY = '\u0000any';
 
-export function RegisterTable({ slug, entries }: { slug: string; entries: EntrySummary[] }) {
-  const [columns] = useState(() => makeColumns(slug));
+const selectClass = 'rounded-md border border-rule-strong bg-paper-raised px-2 py-1.5 text-sm';
+
+function FilterSelect({ id, label, value, onChange, options }: { id: string; label: string; value: string; onChange: (v: string) => void; options: { value: string; label: string }[] }) {
+  return (
+    <div className="flex flex-col gap-1">
+      <label htmlFor={id} className="text-xs font-semibold text-ink-soft">
+        {label}
+      </label>
+      <select id={id} value={value} onChange={(e) => onChange(e.target.value)} className={`${selectClass} max-w-48`}>
+        <option value={ANY}>Any</option>
+        {options.map((o) => (
+          <option key={o.value} value={o.value}>
+            {o.label}
+          </option>
+        ))}
+      </select>
+    </div>
+  );
+}
+
+type Table = ReturnType<typeof useTable<typeof features, EntrySummary>>;
+
+function ColumnMenu({ table }: { table: Table }) {
+  const hideable = table.getAllLeafColumns().filter((c) => c.getCanHide());
+  return (
+    <details className="relative">
+      <summary className="flex h-8.5 cursor-pointer list-none items-center gap-1 rounded-md border border-rule-strong bg-paper-raised px-3 text-sm font-medium hover:bg-paper-sunk">
+        Columns <span aria-hidden className="text-2xs text-ink-muted">▾</span>
+      </summary>
+      <fieldset className="absolute right-0 z-10 mt-1 w-48 rounded-md border border-rule-strong bg-paper-raised px-3 py-2 shadow-md">
+        <legend className="sr-only">Columns shown</legend>
+        {hideable.map((c) => (
+          <label key={c.id} className="flex items-center gap-2 py-0.5 text-sm">
+            <input type="checkbox" className="size-4 accent-teal" checked={c.getIsVisible()} onChange={(e) => c.toggleVisibility(e.target.checked)} />
+            {COLUMN_LABELS[c.id] ?? c.id}
+          </label>
+        ))}
+      </fieldset>
+    </details>
+  );
+}
+
+/** The table body on its own: it re-renders only when the rows or the visible columns change, not on every keystroke. */
+const Body = memo(function Body({ table, rows, colSpan, emptyText }: { table: Table; rows: ReturnType<Table['getRowModel']>['rows']; colSpan: number; emptyText: string; visibility: string }) {
+  return (
+    <tbody>
+      {rows.map((row) => (
+        <tr key={row.id} className="hover:bg-paper-sunk/50">
+          {row.getVisibleCells().map((cell) => (
+            <td key={cell.id} className={`${tdClass} ${NUMERIC.has(cell.column.id) ? 'text-right' : ''} ${NOWRAP.has(cell.column.id) ? 'whitespace-nowrap' : ''}`}>
+              <table.FlexRender cell={cell} />
+            </td>
+          ))}
+        </tr>
+      ))}
+      {rows.length === 0 && (
+        <tr>
+          <td colSpan={colSpan} className={`${tdClass} py-6 text-center text-ink-muted`}>
+            {emptyText}
+          </td>
+        </tr>
+      )}
+    </tbody>
+  );
+});
+
+export function RegisterTable({ slug, entries, actions }: { slug: string; entries: EntrySummary[]; actions?: ReactNode }) {
+  const columns = useMemo(() => makeColumns(slug), [slug]);
   const [sorting, setSorting] = useState<SortingState>([{ id: 'key', desc: false }]);
-  const [globalFilter, setGlobalFilter] = useState('');
+  const [text, setText] = useState('');
+  // Typing stays responsive with hundreds of entries: the table follows the text a moment later.
+  const globalFilter = useDeferredValue(text);
+  const [columnFilters, setColumnFilters] = useState<ColumnFiltersState>([]);
+  const [columnVisibility, setColumnVisibility] = useState<ColumnVisibilityState>({});
+
+  const choices = useMemo(() => {
+    const groups = new Set<string>();
+    const owners = new Set<string>();
+    let ungrouped = false;
+    let unassigned = false;
+    for (const e of entries) {
+      if (e.group) groups.add(e.group);
+      else ungrouped = true;
+      if (e.owner) owners.add(e.owner.name);
+      else unassigned = true;
+    }
+    const sorted = (s: Set<string>) => [...s].sort((a, b) => a.localeCompare(b)).map((v) => ({ value: v, label: v }));
+    return {
+      group: [...sorted(groups), ...(ungrouped ? [{ value: '', label: '(no group)' }] : [])],
+      owner: [...sorted(owners), ...(unassigned ? [{ value: '', label: '(unassigned)' }] : [])],
+      state: ENTRY_STATES.map((s: EntryState) => ({ value: s, label: ENTRY_STATE_META[s].label })),
+    };
+  }, [entries]);
 
   const table = useTable({
     features,
     columns,
     data: entries,
-    state: { sorting, globalFilter },
+    state: { sorting, globalFilter, columnFilters, columnVisibility },
     onSortingChange: setSorting,
-    onGlobalFilterChange: setGlobalFilter,
-    globalFilterFn: (row, _columnId, value: string) => searchText(row.original).includes(value.trim().toLowerCase()),
+    onColumnFiltersChange: setColumnFilters,
+    onColumnVisibilityChange: setColumnVisibility,
+    globalFilterFn: (row, _columnId, value: string) => indexed(row.original).includes(value.trim().toLowerCase()),
     getColumnCanGlobalFilter: (column) => column.id === 'key',
   });
 
   const rows = table.getRowModel().rows;
+  const filterValue = (id: string) => {
+    const f = columnFilters.find((c) => c.id === id);
+    return f === undefined ? ANY : String(f.value);
+  };
+  const setFilter = (id: string) => (v: string) =>
+    setColumnFilters((fs) => [...fs.filter((f) => f.id !== id), ...(v === ANY ? [] : [{ id, value: v }])]);
+  const visibleCount = table.getVisibleLeafColumns().length;
+  const filtered = globalFilter.trim() !== '' || columnFilters.length > 0;
 
   if (entries.length === 0)
     return (
-      <EmptyState title="The register is empty">
-        <p>Register entries, one per systematic uncertainty, will be listed here once analysts create them.</p>
-      </EmptyState>
+      <div className="flex flex-col gap-3">
+        {actions && <div className="flex justify-end">{actions}</div>}
+        <EmptyState title="The register is empty">
+          <p>Register entries, one per systematic uncertainty, will be listed here once analysts create them.</p>
+        </EmptyState>
+      </div>
     );
 
   return (
     <div>
-      <div className="mb-3 flex flex-wrap items-end justify-between gap-3">
+      <div className="mb-3 flex flex-wrap items-end gap-3">
         <div className="flex flex-col gap-1">
           <label htmlFor="register-filter" className="text-xs font-semibold text-ink-soft">
             Filter entries
@@ -160,16 +307,23 @@ export function RegisterTable({ slug, entries }: { slug: string; entries: EntryS
           <input
             id="register-filter"
             type="search"
-            value={globalFilter}
-            onChange={(e) => setGlobalFilter(e.target.value)}
+            value={text}
+            onChange={(e) => setText(e.target.value)}
             placeholder="key, label, group, owner, process, state…"
-            className="w-80 rounded-md border border-rule-strong bg-paper-raised px-2.5 py-1.5 text-sm"
+            className="w-72 rounded-md border border-rule-strong bg-paper-raised px-2.5 py-1.5 text-sm"
           />
         </div>
-        <p className="text-xs text-ink-muted" aria-live="polite">
-          Showing {rows.length} of {entries.length} entries
-        </p>
+        <FilterSelect id="register-group" label="Group" value={filterValue('group')} onChange={setFilter('group')} options={choices.group} />
+        <FilterSelect id="register-owner" label="Owner" value={filterValue('owner')} onChange={setFilter('owner')} options={choices.owner} />
+        <FilterSelect id="register-state" label="State" value={filterValue('state')} onChange={setFilter('state')} options={choices.state} />
+        <div className="ml-auto flex items-end gap-2">
+          <ColumnMenu table={table} />
+          {actions}
+        </div>
       </div>
+      <p className="mb-1.5 text-xs text-ink-muted" aria-live="polite">
+        Showing {rows.length} of {entries.length} entries
+      </p>
       <div className="overflow-x-auto rounded-lg border border-rule bg-paper-raised">
         <table className={tableClass} aria-label="Register entries">
           <thead>
@@ -203,27 +357,13 @@ export function RegisterTable({ slug, entries }: { slug: string; entries: EntryS
               </tr>
             ))}
           </thead>
-          <tbody>
-            {rows.map((row) => (
-              <tr key={row.id} className="hover:bg-paper-sunk/50">
-                {row.getAllCells().map((cell) => (
-                  <td
-                    key={cell.id}
-                    className={`${tdClass} ${NUMERIC.has(cell.column.id) ? 'text-right' : ''} ${NOWRAP.has(cell.column.id) ? 'whitespace-nowrap' : ''}`}
-                  >
-                    <table.FlexRender cell={cell} />
-                  </td>
-                ))}
-              </tr>
-            ))}
-            {rows.length === 0 && (
-              <tr>
-                <td colSpan={table.getAllLeafColumns().length} className={`${tdClass} py-6 text-center text-ink-muted`}>
-                  No entry matches “{globalFilter}”.
-                </td>
-              </tr>
-            )}
-          </tbody>
+          <Body
+            table={table}
+            rows={rows}
+            colSpan={visibleCount}
+            visibility={JSON.stringify(columnVisibility)}
+            emptyText={filtered ? `No entry matches${globalFilter.trim() ? ` “${globalFilter.trim()}”` : ''} with these filters.` : 'No entries.'}
+          />
         </table>
       </div>
     </div>
