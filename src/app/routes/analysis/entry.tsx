@@ -1,36 +1,81 @@
+import { useMemo } from 'react';
 import { Link, useParams } from 'react-router';
-import { EmptyState } from '../../../components/ui/empty-state';
-import { PageHeader } from '../../../components/ui/page';
+import { PageHeader, Panel } from '../../../components/ui/page';
+import { QueryView } from '../../../components/ui/query-view';
 import { useEntries } from '../../../features/register/api/get-entries';
 import { EntryStateBadge } from '../../../features/register/components/entry-state-badge';
+import { useEntry } from '../../../features/entry/api/get-entry';
+import { EntryMetadata } from '../../../features/entry/components/entry-metadata';
+import { ReviewPanel } from '../../../features/entry/components/review-panel';
+import { EffectsList } from '../../../features/entry/components/effects-list';
+import { VariationUpload } from '../../../features/entry/components/variation-upload';
+import { RevisionHistory } from '../../../features/entry/components/revision-history';
+import type { RegionInfo } from '../../../features/entry/components/effect-card';
+import { useMembers } from '../../../features/members/api/get-members';
+import { useModel } from '../../../features/model/api/get-model';
+import { formatDateTime } from '../../../lib/format';
 
 export function EntryRoute() {
   const { slug = '', key = '' } = useParams();
-  // The register list is usually cached already; it names the entry and its state.
+  const entry = useEntry(slug, key);
+  const members = useMembers(slug);
+  const model = useModel(slug);
   const entries = useEntries(slug);
-  const entry = entries.data?.find((e) => e.key === key);
+
+  const regions = useMemo(() => new Map<string, RegionInfo>((model.data?.regions ?? []).map((r) => [r.key, { label: r.label, observable: r.observable, unit: r.unit }])), [model.data]);
+  const processLabels = useMemo(() => new Map((model.data?.processes ?? []).map((p) => [p.key, p.label])), [model.data]);
+  const groups = useMemo(() => [...new Set((entries.data ?? []).map((e) => e.group).filter((g): g is string => !!g))].sort(), [entries.data]);
+
+  const back = (
+    <Link to={`/a/${slug}/register`} className="text-sm font-medium text-teal-ink hover:underline">
+      Back to the register
+    </Link>
+  );
+
   return (
-    <>
-      <PageHeader
-        title={
-          <span className="flex flex-wrap items-center gap-3">
-            {entry?.label ?? key}
-            {entry && <EntryStateBadge state={entry.state} />}
-          </span>
-        }
-        description={<span className="font-mono">{key}</span>}
-        actions={
-          <Link to={`/a/${slug}/register`} className="text-sm font-medium text-teal-ink hover:underline">
-            Back to the register
-          </Link>
-        }
-      />
-      <EmptyState title="Entry details" notBuilt>
-        <p>
-          This page will hold the entry's description, justification and references; its owner and group; the up/down variation previews over nominal per
-          bin for every region and process it affects; its validation warnings; the full revision history with author and time; and the questions raised on it.
-        </p>
-      </EmptyState>
-    </>
+    <QueryView query={entry} loadingLabel="Loading the entry…">
+      {(e) => (
+        <>
+          <PageHeader
+            title={
+              <span className="flex flex-wrap items-center gap-3">
+                {e.label}
+                <EntryStateBadge state={e.state} />
+              </span>
+            }
+            description={
+              <>
+                <span className="font-mono">{e.key}</span>
+                <span className="ml-3" title={`Version ${e.version} of this entry`}>
+                  updated {formatDateTime(e.updatedAt)}
+                </span>
+              </>
+            }
+            actions={back}
+          />
+          <div className="grid gap-5 xl:grid-cols-[1fr_22rem]">
+            <Panel title="Details">
+              <EntryMetadata slug={slug} entry={e} members={members.data ?? []} groups={groups} />
+            </Panel>
+            <Panel title="Review" className="self-start">
+              <ReviewPanel slug={slug} entry={e} />
+            </Panel>
+          </div>
+          <div className="mt-5 flex flex-col gap-5">
+            <Panel title={`Effects (${e.effects.length})`}>
+              <EffectsList slug={slug} entry={e} regions={regions} processLabels={processLabels} />
+            </Panel>
+            {e.can.upload && (
+              <Panel title="Upload variations">
+                <VariationUpload slug={slug} entryKey={e.key} regions={regions} processLabels={processLabels} />
+              </Panel>
+            )}
+            <Panel title={`Revision history (${e.revisions.length})`}>
+              <RevisionHistory revisions={e.revisions} />
+            </Panel>
+          </div>
+        </>
+      )}
+    </QueryView>
   );
 }

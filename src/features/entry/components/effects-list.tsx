@@ -1,0 +1,80 @@
+import { useState } from 'react';
+import type { EntryDetail } from '@shared/schemas/register';
+import { Button } from '../../../components/ui/button';
+import { FormError } from '../../../components/ui/error-notice';
+import { formatDateTime } from '../../../lib/format';
+import { useDeleteEffect } from '../api/delete-effect';
+import { EffectCard, type RegionInfo } from './effect-card';
+import { VariationLegend } from './variation-chart';
+
+type Effect = EntryDetail['effects'][number];
+
+function Provenance({ upload }: { upload: Effect['upload'] }) {
+  if (!upload) return <p className="text-2xs text-ink-muted">Entered without a file (imported or typed).</p>;
+  return (
+    <p className="text-2xs break-all text-ink-muted">
+      From <span className="font-medium text-ink-soft">{upload.filename}</span>, {formatDateTime(upload.createdAt)}
+      <br />
+      <span title="SHA-256 of the uploaded file, kept for provenance" className="font-mono">
+        SHA-256 {upload.sha256}
+      </span>
+    </p>
+  );
+}
+
+function RemoveEffect({ slug, entryKey, effect }: { slug: string; entryKey: string; effect: Effect }) {
+  const [confirming, setConfirming] = useState(false);
+  const remove = useDeleteEffect(slug, entryKey);
+  const name = `${effect.region} × ${effect.process} (${effect.kind})`;
+  return (
+    <div className="flex flex-col gap-1">
+      {confirming ? (
+        <div className="flex flex-wrap items-center gap-1.5">
+          <span className="text-xs">Remove the {effect.kind} effect on {effect.region} × {effect.process}?</span>
+          <Button size="sm" variant="danger" busy={remove.isPending} onClick={() => remove.mutate(effect.id)}>
+            Remove
+          </Button>
+          <Button size="sm" variant="ghost" onClick={() => setConfirming(false)}>
+            Keep
+          </Button>
+        </div>
+      ) : (
+        <Button size="sm" variant="ghost" className="self-start" aria-label={`Remove effect ${name}`} onClick={() => setConfirming(true)}>
+          Remove effect
+        </Button>
+      )}
+      <FormError error={remove.error} />
+    </div>
+  );
+}
+
+/** The entry's effects, per region × process, each with its preview, warnings and provenance. */
+export function EffectsList({ slug, entry, regions, processLabels }: { slug: string; entry: EntryDetail; regions: Map<string, RegionInfo>; processLabels: Map<string, string> }) {
+  if (!entry.effects.length)
+    return <p className="text-sm text-ink-muted">No variations yet. {entry.can.upload ? 'Upload a file below to add them.' : 'Its owner uploads them.'}</p>;
+  const sorted = [...entry.effects].sort((a, b) => a.region.localeCompare(b.region) || a.process.localeCompare(b.process) || a.kind.localeCompare(b.kind));
+  return (
+    <div className="flex flex-col gap-2">
+      <VariationLegend />
+      <div className="grid gap-3 md:grid-cols-2 xl:grid-cols-3">
+        {sorted.map((e) => (
+          <EffectCard
+            key={e.id}
+            region={e.region}
+            process={e.process}
+            v={e}
+            warnings={e.warnings}
+            regionInfo={regions.get(e.region)}
+            processLabel={processLabels.get(e.process)}
+            footer={
+              <>
+                <Provenance upload={e.upload} />
+                {entry.can.upload && <RemoveEffect slug={slug} entryKey={entry.key} effect={e} />}
+              </>
+            }
+          />
+        ))}
+      </div>
+    </div>
+  );
+}
