@@ -3,6 +3,7 @@ import helmet from 'helmet';
 import type { Config } from './config';
 import type { AppContext } from './context';
 import type { Database } from './db/client';
+import type { Mailer } from './mail/mailer';
 import { authorizer } from './auth/authorize';
 import { csrf } from './auth/csrf';
 import { createPassport } from './auth/passport';
@@ -13,12 +14,16 @@ import { authRoutes } from './routes/auth.routes';
 import { outboxRoutes } from './routes/outbox.routes';
 import type { ApiRoute } from './routes/route';
 import { usersRoutes } from './routes/users.routes';
+import { registerRoutes } from './routes/register.routes';
+import { modelRoutes } from './routes/model.routes';
+import { invitationsRoutes } from './routes/invitations.routes';
 
 export type App = { app: Express; routes: ApiRoute[]; ctx: AppContext };
 
 /** Builds the Express app without listening: tests drive it with supertest, server/index.ts listens. */
-export function createApp(database: Database, config: Config, log: (line: string) => void = console.log): App {
-  const ctx: AppContext = { db: database.db, client: database.client, config, log };
+export function createApp(database: Database, config: Config, deps: { mailer: Mailer; log?: (line: string) => void }): App {
+  const log = deps.log ?? console.log;
+  const ctx: AppContext = { db: database.db, client: database.client, config, mailer: deps.mailer, log };
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
@@ -37,7 +42,12 @@ export function createApp(database: Database, config: Config, log: (line: string
   );
   const passport = createPassport(ctx.db);
   const auth = authorizer(ctx.db);
-  const routes: ApiRoute[] = [...authRoutes(ctx, passport as never), ...usersRoutes(ctx, auth), ...analysesRoutes(ctx, auth), ...outboxRoutes(ctx, auth)];
+  const routes: ApiRoute[] = [...authRoutes(ctx, passport as never), ...usersRoutes(ctx, auth), ...analysesRoutes(ctx, auth),
+    ...modelRoutes(ctx, auth),
+    ...registerRoutes(ctx, auth),
+    ...invitationsRoutes(ctx, auth),
+    ...outboxRoutes(ctx, auth),
+  ];
 
   app.use(
     '/api',
@@ -49,6 +59,6 @@ export function createApp(database: Database, config: Config, log: (line: string
   );
   for (const r of routes) app[r.method](r.path, ...r.handlers);
   app.all('/api/{*splat}', (req, _res, next) => next(new AppError(404, `There is no API route ${req.method} ${req.originalUrl}.`, 'not_found')));
-  app.use(errorHandler());
+  app.use(errorHandler(log));
   return { app, routes, ctx };
 }

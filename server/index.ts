@@ -5,6 +5,7 @@ import express from 'express';
 import { createApp } from './app';
 import { ConfigError, loadConfig, type Config } from './config';
 import { DataDirLockedError, openDatabase, projectRoot } from './db/client';
+import { createMailer } from './mail/mailer';
 import { seedDemo } from './seed/demo';
 
 /** Without SESSION_SECRET, a random secret is kept in the data folder so sessions survive restarts. */
@@ -39,13 +40,15 @@ async function main() {
   const database = await openDatabase(base.dataDir);
   const config = { ...base, sessionSecret: sessionSecret(base) };
   const seed = await seedDemo(database.db);
-  const { app } = createApp(database, config);
+  const mailer = await createMailer(database.db, config);
+  const { app } = createApp(database, config, { mailer });
   const closeClient = await serveClient(app, config);
 
   const server = app.listen(config.PORT, config.HOST, () => {
     const address = server.address();
     const port = typeof address === 'object' && address ? address.port : config.PORT;
     console.log(`Plumbline is running at http://localhost:${port} (${config.NODE_ENV}; data in ${config.dataDir})`);
+    console.log(`E-mail is ${mailer.describe()}.`);
     if (seed.seeded) console.log('The invented demo scenario was written into the new database.');
     console.log(`Demo accounts (password for all: ${seed.password}):`);
     for (const a of seed.accounts) console.log(`  ${a.email.padEnd(26)} ${a.note}`);
@@ -57,6 +60,7 @@ async function main() {
     stopping = true;
     server.close();
     await closeClient();
+    await mailer.close();
     await database.close();
     process.exit(0);
   };

@@ -4,7 +4,7 @@ import { forbidden, notFound, unauthorised } from '../errors';
 import type { Db } from '../db/client';
 import { findAnalysisAccess, type AnalysisRow } from '../db/analyses.repository';
 
-export type Access = { analysis: AnalysisRow; role: MemberRole | null; isAdmin: boolean; userId: number };
+export type Access = { analysis: AnalysisRow; role: MemberRole | null; isAdmin: boolean; userId: number; userName: string };
 
 declare global {
   // eslint-disable-next-line @typescript-eslint/no-namespace
@@ -38,7 +38,7 @@ export function authorizer(db: Db) {
       const { analysis, role } = found;
       if (role === null && !req.user.isAdmin) return next(forbidden('You are not a member of this analysis. Ask its convener to add you.'));
       if (!can(role, req.user.isAdmin, action)) return next(forbidden());
-      req.access = { analysis, role, isAdmin: req.user.isAdmin, userId: req.user.id };
+      req.access = { analysis, role, isAdmin: req.user.isAdmin, userId: req.user.id, userName: req.user.name };
       next();
     };
 

@@ -13,3 +13,22 @@ export async function loadModelRows(db: Db, analysisId: number) {
   return { regions: regionRows, processes: processRows, floatingNorms: normRows, templates: templateRows };
 }
 export type ModelRows = Awaited<ReturnType<typeof loadModelRows>>;
+
+/** Look-ups by key over a model's rows, for validating uploads and building views. */
+export function indexModel(rows: ModelRows) {
+  const regions = new Map(rows.regions.map((r) => [r.key, r]));
+  const processes = new Map(rows.processes.map((p) => [p.key, p]));
+  const regionById = new Map(rows.regions.map((r) => [r.id, r]));
+  const processById = new Map(rows.processes.map((p) => [p.id, p]));
+  const templates = new Map(rows.templates.map((t) => [`${regionById.get(t.regionId)!.key}/${processById.get(t.processId)!.key}`, t]));
+  return {
+    rows,
+    regions,
+    processes,
+    regionById,
+    processById,
+    template: (region: string, process: string) => templates.get(`${region}/${process}`),
+    bins: (region: string) => regions.get(region)!.edges.length - 1,
+  };
+}
+export type ModelIndex = ReturnType<typeof indexModel>;

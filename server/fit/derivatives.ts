@@ -40,15 +40,12 @@ export interface Derivatives {
   w: Float64Array;
   alpha: Float64Array;
   dNuDGamma: Float64Array;
-  gb: Float64Array;
-  rb: Float64Array;
-  h: Float64Array;
   a: Float64Array;
   a2: Float64Array;
   ell: Float64Array;
   ell2: Float64Array;
   omega: Float64Array;
-  blocks: Partial<Record<'Hl' | 'Sl' | 'gl' | 'hl', Float64Array>>;
+  basis: Basis;
 }
 
 export function createDerivatives(m: CompiledModel): Derivatives {
@@ -66,15 +63,104 @@ export function createDerivatives(m: CompiledModel): Derivatives {
     w: new Float64Array(m.nBins),
     alpha: new Float64Array(m.nBins),
     dNuDGamma: new Float64Array(m.nBins),
-    gb: new Float64Array(P),
-    rb: new Float64Array(P),
-    h: new Float64Array(P),
     a: new Float64Array(P),
     a2: new Float64Array(P),
     ell: new Float64Array(P),
     ell2: new Float64Array(P),
     omega: new Float64Array(maxBins),
-    blocks: {},
+    basis: createBasis(m),
+  };
+}
+
+/** Per region in the fit: the columns of B (see accumulateRegion) and where they land. */
+interface RegionBasis {
+  region: number;
+  /** The region's dense parameters (sorted) and their number. */
+  list: Int32Array;
+  L: number;
+  samples: Int32Array;
+  /** Columns: one per sample, then one per θ with a shape effect in the region. */
+  nCols: number;
+  /** Local index (into list) of each shape column's θ. */
+  shapeLocal: Int32Array;
+}
+
+interface Basis {
+  regions: RegionBasis[];
+  /** Per shape effect: its column in the region's basis. */
+  shapeColumn: Int32Array;
+  /** Per scale effect, and per sample for μ and k: the local index in the region's list (−1: none). */
+  scaleLocal: Int32Array;
+  sampleMuLocal: Int32Array;
+  sampleKLocal: Int32Array;
+  // Scratch sized for the largest region.
+  y: Float64Array;
+  z: Float64Array;
+  eta: Float64Array;
+  M: Float64Array;
+  SM: Float64Array;
+  colPtr: Int32Array;
+  colIdx: Int32Array;
+  colVal: Float64Array;
+  C: Float64Array;
+  Hl: Float64Array;
+}
+
+function createBasis(m: CompiledModel): Basis {
+  const shapeColumn = new Int32Array(m.shapeParam.length).fill(-1);
+  const scaleLocal = new Int32Array(m.scaleParam.length).fill(-1);
+  const sampleMuLocal = new Int32Array(m.nSamples).fill(-1);
+  const sampleKLocal = new Int32Array(m.nSamples).fill(-1);
+  const regions: RegionBasis[] = [];
+  let maxCols = 1;
+  let maxL = 1;
+  let maxNz = 1;
+  m.regions.forEach((region, r) => {
+    if (!region.inFit) return;
+    const list = region.parameters;
+    const local = new Map<number, number>();
+    list.forEach((p, i) => local.set(p, i));
+    const samples = Int32Array.from(region.samples.filter((s) => m.sampleInFit[s]));
+    const shapeParams: number[] = [];
+    const shapeCol = new Map<number, number>();
+    let nz = 0;
+    for (const s of samples) {
+      if (m.sampleSignal[s]) sampleMuLocal[s] = local.get(0)!;
+      if (m.sampleNorm[s] >= 0) sampleKLocal[s] = local.get(m.sampleNorm[s])!;
+      nz += 2 + m.scalePtr[s + 1] - m.scalePtr[s];
+      for (let e = m.scalePtr[s]; e < m.scalePtr[s + 1]; e++) scaleLocal[e] = local.get(m.scaleParam[e])!;
+      for (let e = m.shapePtr[s]; e < m.shapePtr[s + 1]; e++) {
+        const p = m.shapeParam[e];
+        if (!shapeCol.has(p)) {
+          shapeCol.set(p, samples.length + shapeParams.length);
+          shapeParams.push(p);
+        }
+        shapeColumn[e] = shapeCol.get(p)!;
+      }
+    }
+    const nCols = samples.length + shapeParams.length;
+    nz += shapeParams.length;
+    regions.push({ region: r, list, L: list.length, samples, nCols, shapeLocal: Int32Array.from(shapeParams.map((p) => local.get(p)!)) });
+    maxCols = Math.max(maxCols, nCols);
+    maxL = Math.max(maxL, list.length);
+    maxNz = Math.max(maxNz, nz);
+  });
+  return {
+    regions,
+    shapeColumn,
+    scaleLocal,
+    sampleMuLocal,
+    sampleKLocal,
+    y: new Float64Array(maxCols),
+    z: new Float64Array(maxCols),
+    eta: new Float64Array(maxCols),
+    M: new Float64Array(maxCols * maxCols),
+    SM: new Float64Array(maxCols * maxCols),
+    colPtr: new Int32Array(maxCols + 1),
+    colIdx: new Int32Array(maxNz),
+    colVal: new Float64Array(maxNz),
+    C: new Float64Array(maxCols * maxL),
+    Hl: new Float64Array(maxL * maxL),
   };
 }
 
@@ -218,79 +304,200 @@ export function computeDerivatives(
   }
 
   if (!hessian) return;
-  const { gb, rb, h, gReduced, D, Bt } = d;
   const schur = wantSchur ? d.schur : null;
-  gReduced.set(g);
-  // Per region, the rank-one updates run on a compact L×L block over the region's parameters
-  // (contiguous memory), added into H once per region.
-  for (const region of m.regions) {
-    if (!region.inFit) continue;
-    const list = region.parameters;
-    const L = list.length;
-    const Hl = localBlock(d, 'Hl', L * L);
-    const Sl = schur ? localBlock(d, 'Sl', L * L) : null;
-    const gl = localBlock(d, 'gl', L);
-    const hl = localBlock(d, 'hl', L);
-    for (let j = 0; j < region.nBins; j++) {
-      const b = region.firstBin + j;
-      const al = alpha[b];
-      const gi = m.binGamma[b];
-      const elim = gi >= 0 && eliminate[gi] === 1;
-      if (!elim && al === 0) continue;
-      binGradient(m, ws, gamma, region.samples, j, b, gb, elim ? rb : null);
-      for (let ii = 0; ii < L; ii++) gl[ii] = gb[list[ii]];
-      if (elim) {
-        const s2 = m.gammaSigma[gi] * m.gammaSigma[gi];
-        const dg = dNuDGamma[b];
-        const Dg = al * dg * dg + 1 / s2;
-        const invD = 1 / Dg;
-        D[gi] = Dg;
-        const gg = gGamma[gi] * invD;
-        const wb = w[b];
-        const bt = gi * P;
-        for (let ii = 0; ii < L; ii++) {
-          const p = list[ii];
-          const hp = al * dg * gl[ii] + wb * rb[p];
-          hl[ii] = hp;
-          h[p] = hp;
-          Bt[bt + p] = hp;
-          gReduced[p] -= hp * gg;
-        }
-        for (let ii = 0; ii < L; ii++) {
-          const x = al * gl[ii];
-          const y = hl[ii] * invD;
-          const row = ii * L;
-          for (let jj = ii; jj < L; jj++) Hl[row + jj] += x * gl[jj] - y * hl[jj];
-          if (Sl) for (let jj = ii; jj < L; jj++) Sl[row + jj] += y * hl[jj];
-        }
-      } else {
-        for (let ii = 0; ii < L; ii++) {
-          const x = al * gl[ii];
-          const row = ii * L;
-          for (let jj = ii; jj < L; jj++) Hl[row + jj] += x * gl[jj];
-        }
-      }
-    }
-    for (let ii = 0; ii < L; ii++) {
-      const row = list[ii] * P;
-      for (let jj = ii; jj < L; jj++) {
-        H[row + list[jj]] += Hl[ii * L + jj];
-        if (Sl && schur) schur[row + list[jj]] += Sl[ii * L + jj];
-      }
-    }
-  }
+  d.gReduced.set(g);
+  for (const rb of d.basis.regions) accumulateRegion(m, gamma, eliminate, ws, d, rb, schur);
   mirrorUpper(H, P);
   if (schur) mirrorUpper(schur, P);
 }
 
-/** A zeroed scratch block of the given size, kept on the derivatives object between calls. */
-function localBlock(d: Derivatives, key: 'Hl' | 'Sl' | 'gl' | 'hl', size: number): Float64Array {
-  let block = d.blocks[key];
-  if (!block || block.length < size) {
-    block = new Float64Array(size);
-    d.blocks[key] = block;
-  } else block.fill(0, 0, size);
-  return block;
+/**
+ * The rank-one terms of one region, Σ_b [α_b ∇ν_b∇ν_bᵀ − h_b h_bᵀ/D_b], in a small basis.
+ * With Q_sb = E_s A⁺_sb γ_sb and v_s = c_s ℓ_s + (∂c_s/∂μ) e_μ + (∂c_s/∂k) e_k (ℓ_s = ∇ln E_s,
+ * the same for every bin of the sample),
+ *   ∇ν_b = Σ_s Q_sb v_s + Σ_{shape θ} (Σ_s c_s E_s γ_sb ∂A_sb/∂θ) e_θ,
+ * so every ∇ν_b, and likewise h_b, lies in the span of B = [v_s … | e_θ …]: one column per
+ * sample of the region plus one per θ with a shape effect there (≈ 80 columns for ≈ 250
+ * parameters). Per bin only the coefficients y_b (∇ν_b = B y_b) enter a small d×d matrix
+ * M = Σ_b [α_b y_b y_bᵀ − η_b η_bᵀ/D_b]; the region then adds B M Bᵀ once, through C = M Bᵀ,
+ * at a cost of (nonzeros of B) × (parameters of the region) instead of one L² outer product
+ * per bin.
+ */
+function accumulateRegion(
+  m: CompiledModel,
+  gamma: Float64Array,
+  eliminate: Uint8Array,
+  ws: Workspace,
+  d: Derivatives,
+  rb: RegionBasis,
+  schur: Float64Array | null,
+): void {
+  const P = m.nDense;
+  const { H, gReduced, D, Bt, w, alpha, dNuDGamma, gGamma, basis } = d;
+  const { list, L, samples, nCols: nc, shapeLocal } = rb;
+  const nS = samples.length;
+  const { y, z, eta, M, SM, colPtr, colIdx, colVal, C, Hl } = basis;
+
+  // Sample columns v_s, by local parameter index within the region.
+  let nz = 0;
+  for (let si = 0; si < nS; si++) {
+    const s = samples[si];
+    colPtr[si] = nz;
+    const c = ws.c[s];
+    if (basis.sampleMuLocal[s] >= 0) {
+      colIdx[nz] = basis.sampleMuLocal[s];
+      colVal[nz++] = ws.cMu[s];
+    }
+    if (basis.sampleKLocal[s] >= 0) {
+      colIdx[nz] = basis.sampleKLocal[s];
+      colVal[nz++] = ws.cK[s];
+    }
+    for (let e = m.scalePtr[s]; e < m.scalePtr[s + 1]; e++) {
+      colIdx[nz] = basis.scaleLocal[e];
+      colVal[nz++] = c * ws.scaleD1[e];
+    }
+  }
+  for (let k = 0; k < nc - nS; k++) {
+    colPtr[nS + k] = nz;
+    colIdx[nz] = shapeLocal[k];
+    colVal[nz++] = 1;
+  }
+  colPtr[nc] = nz;
+
+  M.fill(0, 0, nc * nc);
+  if (schur) SM.fill(0, 0, nc * nc);
+  const region = m.regions[rb.region];
+  for (let j = 0; j < region.nBins; j++) {
+    const b = region.firstBin + j;
+    const al = alpha[b];
+    const gi = m.binGamma[b];
+    const elim = gi >= 0 && eliminate[gi] === 1;
+    if (!elim && al === 0) continue;
+    y.fill(0, 0, nc);
+    if (elim) z.fill(0, 0, nc);
+    let allCarry = true;
+    // Coefficients of ∇ν_b (y) and of ∂∇ν_b/∂γ_b (z, templates that carry a variance).
+    for (let si = 0; si < nS; si++) {
+      const s = samples[si];
+      const sb = m.sampleBinStart[s] + j;
+      const A = ws.A[sb];
+      if (A <= 0) continue;
+      const carries = gi >= 0 && m.carriesVariance[sb] === 1;
+      if (!carries) allCarry = false;
+      const gam = carries ? gamma[gi] : 1;
+      const E = ws.E[s];
+      y[si] = gam * E * A;
+      const withZ = elim && carries;
+      if (withZ) z[si] = E * A;
+      const cE = ws.c[s] * E;
+      for (let e = m.shapePtr[s]; e < m.shapePtr[s + 1]; e++) {
+        const off = m.shapeOffset[e] + j;
+        const x = cE * (m.shapeHd[off] + ws.shapeCoef[4 * e + 2] * m.shapeHs[off]);
+        const col = basis.shapeColumn[e];
+        y[col] += gam * x;
+        if (withZ) z[col] += x;
+      }
+    }
+    if (elim) {
+      // h_b = α_b (∂ν_b/∂γ_b) ∇ν_b + w_b ∂∇ν_b/∂γ_b, D_b = α_b (∂ν_b/∂γ_b)² + 1/σ_b².
+      const s2 = m.gammaSigma[gi] * m.gammaSigma[gi];
+      const dg = dNuDGamma[b];
+      const Dg = al * dg * dg + 1 / s2;
+      const invD = 1 / Dg;
+      D[gi] = Dg;
+      const wb = w[b];
+      for (let i = 0; i < nc; i++) eta[i] = al * dg * y[i] + wb * z[i];
+      if (allCarry && gamma[gi] > 0) {
+        // Every template of the bin carries the γ: ∂∇ν_b/∂γ_b = ∇ν_b/γ_b, so η = κ y and the
+        // two outer products are one, (α − κ²/D) y yᵀ.
+        const kappa = al * dg + wb / gamma[gi];
+        rankOne(M, nc, y, al - kappa * kappa * invD);
+        if (schur) rankOne(SM, nc, y, kappa * kappa * invD);
+      } else {
+        for (let i = 0; i < nc; i++) {
+          const x = al * y[i];
+          const q = eta[i] * invD;
+          if (x === 0 && q === 0) continue;
+          const row = i * nc;
+          for (let k = i; k < nc; k++) M[row + k] += x * y[k] - q * eta[k];
+        }
+        if (schur) for (let i = 0; i < nc; i++) if (eta[i] !== 0) rankOneRow(SM, nc, eta, i, eta[i] * invD);
+      }
+      // h_b = B η_b in the dense parameters: the γ coupling row, and g̃ −= h_b g_γb / D_b.
+      const bt = gi * P;
+      for (let i = 0; i < nc; i++) {
+        const x = eta[i];
+        if (x === 0) continue;
+        for (let t = colPtr[i]; t < colPtr[i + 1]; t++) Bt[bt + list[colIdx[t]]] += x * colVal[t];
+      }
+      const gg = gGamma[gi] * invD;
+      for (let ii = 0; ii < L; ii++) gReduced[list[ii]] -= Bt[bt + list[ii]] * gg;
+    } else rankOne(M, nc, y, al);
+  }
+  addBasisProduct(M, nc, L, colPtr, colIdx, colVal, C, H, P, list, Hl);
+  if (schur) addBasisProduct(SM, nc, L, colPtr, colIdx, colVal, C, schur, P, list, Hl);
+}
+
+/** Upper triangle of M += f x xᵀ. */
+function rankOne(M: Float64Array, nc: number, x: Float64Array, f: number): void {
+  if (f === 0) return;
+  for (let i = 0; i < nc; i++) if (x[i] !== 0) rankOneRow(M, nc, x, i, f * x[i]);
+}
+
+/** Row i of the upper triangle of M += (f x_i) xᵀ. */
+function rankOneRow(M: Float64Array, nc: number, x: Float64Array, i: number, fi: number): void {
+  const row = i * nc;
+  for (let k = i; k < nc; k++) M[row + k] += fi * x[k];
+}
+
+/**
+ * Upper triangle of target += B M Bᵀ over the region's L parameters, M symmetric (upper
+ * triangle given) and B in compressed columns with local row indices: first C = M Bᵀ (row j
+ * of C is Σ_i M_ji B[:,i]), then row q of B M Bᵀ is Σ_j B_qj C_j. When the region touches
+ * every parameter the rows go straight into the target; otherwise through a local block.
+ */
+function addBasisProduct(
+  M: Float64Array,
+  nc: number,
+  L: number,
+  colPtr: Int32Array,
+  colIdx: Int32Array,
+  colVal: Float64Array,
+  C: Float64Array,
+  target: Float64Array,
+  P: number,
+  list: Int32Array,
+  Hl: Float64Array,
+): void {
+  for (let i = 0; i < nc; i++) for (let k = i + 1; k < nc; k++) M[k * nc + i] = M[i * nc + k];
+  C.fill(0, 0, nc * L);
+  for (let jc = 0; jc < nc; jc++) {
+    const crow = jc * L;
+    const mrow = jc * nc;
+    for (let i = 0; i < nc; i++) {
+      const mji = M[mrow + i];
+      if (mji === 0) continue;
+      for (let t = colPtr[i]; t < colPtr[i + 1]; t++) C[crow + colIdx[t]] += mji * colVal[t];
+    }
+  }
+  const direct = L === P;
+  const out = direct ? target : Hl;
+  if (!direct) Hl.fill(0, 0, L * L);
+  for (let jc = 0; jc < nc; jc++) {
+    const crow = jc * L;
+    for (let t = colPtr[jc]; t < colPtr[jc + 1]; t++) {
+      const bq = colVal[t];
+      const q = colIdx[t];
+      const hrow = q * L;
+      for (let p = q; p < L; p++) out[hrow + p] += bq * C[crow + p];
+    }
+  }
+  if (direct) return;
+  for (let ii = 0; ii < L; ii++) {
+    const row = list[ii] * P;
+    const lrow = ii * L;
+    for (let jj = ii; jj < L; jj++) target[row + list[jj]] += Hl[lrow + jj];
+  }
 }
 
 function mirrorUpper(M: Float64Array, P: number): void {

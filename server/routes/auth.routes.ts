@@ -8,7 +8,7 @@ import { AppError, unauthorised } from '../errors';
 import { csrf } from '../auth/csrf';
 import { route, type ApiRoute } from './route';
 
-async function me(ctx: AppContext, user: Express.User): Promise<Me> {
+export async function me(ctx: AppContext, user: Express.User): Promise<Me> {
   return { user, memberships: await membershipsOf(ctx.db, user.id) };
 }
 

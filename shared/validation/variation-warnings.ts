@@ -20,7 +20,6 @@ export function shapeWarnings(nominal: number[], up: number[], down: number[]): 
   const over100: number[] = [];
   const emptyNominal: number[] = [];
   let zero = true;
-  const ratios: number[] = [];
   nominal.forEach((n, b) => {
     const du = up[b] - n;
     const dd = down[b] - n;
@@ -31,7 +30,6 @@ export function shapeWarnings(nominal: number[], up: number[], down: number[]): 
     }
     if (du * dd > 0) sameSide.push(b);
     if (Math.abs(du) > n || Math.abs(dd) > n) over100.push(b);
-    ratios.push(up[b] / n, down[b] / n);
   });
   if (zero) return [{ code: 'zero-effect', message: 'Up and down equal the nominal in every bin: this variation has no effect (candidate for pruning).' }];
   if (sameSide.length)
@@ -40,15 +38,28 @@ export function shapeWarnings(nominal: number[], up: number[], down: number[]): 
     warnings.push({ code: 'over-100-percent', message: `The variation exceeds 100 % of the nominal in bin ${binList(over100)}.`, bins: over100 });
   if (emptyNominal.length)
     warnings.push({ code: 'empty-nominal', message: `The nominal is 0 but the variation is not in bin ${binList(emptyNominal)}.`, bins: emptyNominal });
-  const upRatios = ratios.filter((_, i) => i % 2 === 0);
-  const downRatios = ratios.filter((_, i) => i % 2 === 1);
-  const flat = (rs: number[]) => rs.length > 1 && Math.max(...rs) - Math.min(...rs) < FLAT_TOLERANCE;
-  if (!emptyNominal.length && flat(upRatios) && flat(downRatios))
+  const flat = flatRatios(nominal, up, down);
+  if (!emptyNominal.length && flat)
     warnings.push({
       code: 'flat-shape',
-      message: `The shape effect is flat (up ×${upRatios[0].toFixed(4)}, down ×${downRatios[0].toFixed(4)} in every bin): it is better entered as a scale effect.`,
+      message: `The shape effect is flat (up ×${flat.up.toFixed(4)}, down ×${flat.down.toFixed(4)} in every bin): it is better entered as a scale effect.`,
     });
   return warnings;
+}
+
+/**
+ * The ratios of a shape effect whose up/nominal and down/nominal are the same in every bin with a
+ * non-zero nominal (within FLAT_TOLERANCE), or null. Needs at least two such bins.
+ */
+export function flatRatios(nominal: number[], up: number[], down: number[]): { up: number; down: number } | null {
+  const filled = nominal.map((_, b) => b).filter((b) => nominal[b] > 0);
+  if (filled.length < 2) return null;
+  const ru = filled.map((b) => up[b] / nominal[b]);
+  const rd = filled.map((b) => down[b] / nominal[b]);
+  const spread = (rs: number[]) => Math.max(...rs) - Math.min(...rs);
+  if (spread(ru) >= FLAT_TOLERANCE || spread(rd) >= FLAT_TOLERANCE) return null;
+  const total = filled.reduce((s, b) => s + nominal[b], 0);
+  return { up: filled.reduce((s, b) => s + up[b], 0) / total, down: filled.reduce((s, b) => s + down[b], 0) / total };
 }
 
 /** Warnings for a scale effect given as ratios κ+ and κ−. */

@@ -9,6 +9,7 @@ import { testConfig } from '../../server/config';
 import { openDatabase, DataDirLockedError } from '../../server/db/client';
 import { analyses, users } from '../../server/db/schema';
 import { seedDemo } from '../../server/seed/demo';
+import { createMailer } from '../../server/mail/mailer';
 import { Client, createTestApp, DEMO, signedIn, type TestApp } from './helpers';
 
 const sessionCookie = (res: request.Response) => ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith('plumbline.sid='));
@@ -165,14 +166,18 @@ describe('a data folder', () => {
       const config = testConfig();
       let database = await openDatabase(dir);
       await seedDemo(database.db);
-      const client = await signedIn(createApp(database, config, () => {}).app, DEMO.reader);
+      let mailer = await createMailer(database.db, config, () => {});
+      const client = await signedIn(createApp(database, config, { mailer, log: () => {} }).app, DEMO.reader);
       const cookie = (await client.get('/api/auth/me')).request.cookies;
+      await mailer.close();
       await database.close();
 
       database = await openDatabase(dir);
-      const res = await request(createApp(database, config, () => {}).app).get('/api/auth/me').set('Cookie', cookie);
+      mailer = await createMailer(database.db, config, () => {});
+      const res = await request(createApp(database, config, { mailer, log: () => {} }).app).get('/api/auth/me').set('Cookie', cookie);
       expect(res.status).toBe(200);
       expect(res.body.user.email).toBe(DEMO.reader);
+      await mailer.close();
       await database.close();
     } finally {
       rmSync(dir, { recursive: true, force: true });

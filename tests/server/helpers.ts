@@ -4,6 +4,7 @@ import { createApp, type App } from '../../server/app';
 import { testConfig, type Config } from '../../server/config';
 import { openDatabase, type Database } from '../../server/db/client';
 import { hashPassword } from '../../server/auth/passwords';
+import { createMailer, type Mailer } from '../../server/mail/mailer';
 import { users } from '../../server/db/schema';
 import { seedDemo } from '../../server/seed/demo';
 import { DEMO_PASSWORD } from '../../server/seed/scenario';
@@ -19,15 +20,25 @@ export const DEMO = {
 } as const;
 export const PASSWORD = DEMO_PASSWORD;
 
-export type TestApp = App & { database: Database; close: () => Promise<void> };
+export type TestApp = App & { database: Database; mailer: Mailer; close: () => Promise<void> };
 
 /** A real app on an in-memory PGlite with migrations applied and the demo seeded (plus one account that belongs to no analysis). */
 export async function createTestApp(overrides: Partial<Config> = {}): Promise<TestApp> {
   const database = await openDatabase();
   await seedDemo(database.db);
   await database.db.insert(users).values({ email: DEMO.outsider, name: 'Ona Outsider', passwordHash: await hashPassword(PASSWORD) });
-  const app = createApp(database, testConfig(overrides), () => {});
-  return { ...app, database, close: () => database.close() };
+  const config = testConfig(overrides);
+  const mailer = await createMailer(database.db, config, () => {});
+  const app = createApp(database, config, { mailer, log: () => {} });
+  return {
+    ...app,
+    database,
+    mailer,
+    close: async () => {
+      await mailer.close();
+      await database.close();
+    },
+  };
 }
 
 /** A cookie-keeping client that sends a fresh CSRF token with every state-changing request. */

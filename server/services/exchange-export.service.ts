@@ -1,0 +1,78 @@
+import { asc, eq, ne, and } from 'drizzle-orm';
+import { EXCHANGE_FORMAT, EXCHANGE_VERSION, type ExchangeModel } from '@shared/schemas/exchange';
+import type { AnalysisRow } from '../db/analyses.repository';
+import type { DbOrTx } from '../db/revisions.repository';
+import { indexModel, loadModelRows } from '../db/model.repository';
+import { effects, entries, groups } from '../db/schema';
+import { isWithheld } from './blinding.service';
+
+/**
+ * The whole model of an analysis as an exchange document: the inverse of importModel, so an
+ * export of an import gives back the same document. Retired entries are left out (they are not
+ * part of the fit). With `withhold`, blinded signal-region data are omitted: every export that
+ * leaves the server sets it; a frozen model version, which stays on the server, does not.
+ */
+export async function buildExchange(db: DbOrTx, analysis: AnalysisRow, opts: { withhold: boolean }): Promise<ExchangeModel> {
+  const model = indexModel(await loadModelRows(db, analysis.id));
+  const { rows } = model;
+  const label = (l: string, fallback = '') => (l && l !== fallback ? { label: l } : {});
+
+  const entryRows = await db
+    .select({ entry: entries, group: groups.name })
+    .from(entries)
+    .leftJoin(groups, eq(groups.id, entries.groupId))
+    .where(and(eq(entries.analysisId, analysis.id), ne(entries.state, 'retired')))
+    .orderBy(asc(entries.id));
+  const effectRows = entryRows.length
+    ? await db
+        .select()
+        .from(effects)
+        .innerJoin(entries, eq(entries.id, effects.entryId))
+        .where(eq(entries.analysisId, analysis.id))
+        .orderBy(asc(effects.id))
+    : [];
+
+  const normTargets = new Map<number, { region: string; process: string }[]>();
+  for (const t of rows.templates)
+    if (t.floatingNormId)
+      normTargets.set(t.floatingNormId, [...(normTargets.get(t.floatingNormId) ?? []), { region: model.regionById.get(t.regionId)!.key, process: model.processById.get(t.processId)!.key }]);
+
+  return {
+    format: EXCHANGE_FORMAT,
+    version: EXCHANGE_VERSION,
+    name: analysis.name,
+    signalStrength: { start: analysis.muStart, min: analysis.muMin, max: analysis.muMax },
+    regions: rows.regions.map((r) => ({
+      key: r.key,
+      ...label(r.label),
+      role: r.role,
+      observable: { name: r.observable, unit: r.unit },
+      edges: r.edges,
+      ...(r.observed && !(opts.withhold && isWithheld(analysis, r)) ? { observed: r.observed } : {}),
+    })),
+    processes: rows.processes.map((p) => ({ key: p.key, ...label(p.label), kind: p.kind, ...(p.colour ? { colour: p.colour } : {}) })),
+    floatingNorms: rows.floatingNorms
+      .filter((f) => normTargets.has(f.id))
+      .map((f) => ({ key: f.key, ...label(f.label), start: f.start, min: f.min, max: f.max, targets: normTargets.get(f.id)! })),
+    templates: rows.templates.map((t) => ({
+      region: model.regionById.get(t.regionId)!.key,
+      process: model.processById.get(t.processId)!.key,
+      nominal: t.nominal,
+      ...(t.variance ? { variance: t.variance } : {}),
+    })),
+    systematics: entryRows.map(({ entry, group }) => ({
+      key: entry.key,
+      ...label(entry.label, entry.key),
+      ...(group ? { group } : {}),
+      ...(entry.description ? { description: entry.description } : {}),
+      effects: effectRows
+        .filter((e) => e.effects.entryId === entry.id)
+        .map(({ effects: e }) => {
+          const where = { region: model.regionById.get(e.regionId)!.key, process: model.processById.get(e.processId)!.key };
+          return e.kind === 'scale'
+            ? { ...where, kind: 'scale' as const, up: e.up as number, down: e.down as number }
+            : { ...where, kind: 'shape' as const, up: e.up as number[], down: e.down as number[] };
+        }),
+    })),
+  };
+}

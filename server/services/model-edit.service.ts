@@ -1,0 +1,321 @@
+import { and, count, eq, max } from 'drizzle-orm';
+import type { Region, Process } from '@shared/schemas/api';
+import {
+  floatingNormInputSchema,
+  modelCsvKindSchema,
+  observedInputSchema,
+  processInputSchema,
+  processPatchSchema,
+  regionInputSchema,
+  regionPatchSchema,
+  templateInputSchema,
+  type ModelUploadResult,
+} from '@shared/schemas/register';
+import type { Access } from '../auth/authorize';
+import type { AppContext } from '../context';
+import { indexModel, loadModelRows, type ModelIndex } from '../db/model.repository';
+import { addRevision, type DbOrTx } from '../db/revisions.repository';
+import { effects, floatingNorms, processes, regions, templates } from '../db/schema';
+import { conflict, notFound, unprocessable } from '../errors';
+import { numberCell, readCsv } from '../uploads/csv';
+import { readUpload } from '../uploads/upload';
+import { isWithheld, visibleObserved } from './blinding.service';
+
+/**
+ * The analysts' model editor. Every change is refused whole when it would leave the model
+ * inconsistent (templates or variations of the wrong length, effects on a removed template),
+ * and every accepted change is recorded as a revision of the model.
+ */
+
+const regionView = (access: Access, r: typeof regions.$inferSelect): Region => ({
+  key: r.key,
+  label: r.label,
+  role: r.role,
+  observable: r.observable,
+  unit: r.unit,
+  edges: r.edges,
+  observed: visibleObserved(access.analysis, r),
+  withheld: isWithheld(access.analysis, r),
+});
+const processView = (p: typeof processes.$inferSelect): Process => ({ key: p.key, label: p.label, kind: p.kind, colour: p.colour });
+
+const modelRevision = (db: DbOrTx, access: Access, action: string, summary: string, before?: unknown, after?: unknown) =>
+  addRevision(db, { analysisId: access.analysis.id, entryId: null, authorId: access.userId, action, summary, before, after });
+
+function edgesIssue(edges: number[]) {
+  for (let b = 1; b < edges.length; b++)
+    if (!(edges[b] > edges[b - 1])) return unprocessable('Bin edges must increase strictly', [{ path: ['edges', b], message: `edge ${b + 1} (${edges[b]}) is not above edge ${b} (${edges[b - 1]})` }]);
+  return null;
+}
+
+async function findRegion(db: DbOrTx, access: Access, key: string) {
+  const [r] = await db.select().from(regions).where(and(eq(regions.analysisId, access.analysis.id), eq(regions.key, key)));
+  if (!r) throw notFound(`Region "${key}"`);
+  return r;
+}
+async function findProcess(db: DbOrTx, access: Access, key: string) {
+  const [p] = await db.select().from(processes).where(and(eq(processes.analysisId, access.analysis.id), eq(processes.key, key)));
+  if (!p) throw notFound(`Process "${key}"`);
+  return p;
+}
+const effectCount = async (db: DbOrTx, column: typeof effects.regionId | typeof effects.processId, id: number) =>
+  (await db.select({ n: count() }).from(effects).where(eq(column, id)))[0].n;
+
+export async function createRegion(ctx: AppContext, access: Access, body: unknown): Promise<Region> {
+  const input = regionInputSchema.parse(body);
+  const bad = edgesIssue(input.edges);
+  if (bad) throw bad;
+  const [dup] = await ctx.db.select({ id: regions.id }).from(regions).where(and(eq(regions.analysisId, access.analysis.id), eq(regions.key, input.key)));
+  if (dup) throw conflict(`A region with the key "${input.key}" already exists.`);
+  return ctx.db.transaction(async (tx) => {
+    const [{ top }] = await tx.select({ top: max(regions.position) }).from(regions).where(eq(regions.analysisId, access.analysis.id));
+    const [r] = await tx.insert(regions).values({ analysisId: access.analysis.id, ...input, position: (top ?? -1) + 1 }).returning();
+    await modelRevision(tx, access, 'region.created', `Added the ${r.role} region "${r.key}" with ${r.edges.length - 1} bins.`, undefined, input);
+    return regionView(access, r);
+  });
+}
+
+export async function updateRegion(ctx: AppContext, access: Access, key: string, body: unknown): Promise<Region> {
+  const input = regionPatchSchema.parse(body);
+  const region = await findRegion(ctx.db, access, key);
+  if (input.edges) {
+    const bad = edgesIssue(input.edges);
+    if (bad) throw bad;
+    const bins = input.edges.length - 1;
+    if (bins !== region.edges.length - 1) {
+      const [{ n }] = await ctx.db.select({ n: count() }).from(templates).where(eq(templates.regionId, region.id));
+      if (n > 0 || region.observed)
+        throw conflict(`Region "${key}" has ${n} template${n === 1 ? '' : 's'}${region.observed ? ' and observed data' : ''} with ${region.edges.length - 1} bins. Change the edges without changing the bin count, or remove them first.`);
+    }
+  }
+  return ctx.db.transaction(async (tx) => {
+    const [r] = await tx.update(regions).set(input).where(eq(regions.id, region.id)).returning();
+    await modelRevision(tx, access, 'region.edited', `Changed ${Object.keys(input).join(', ')} of region "${key}".`, { ...region, observed: undefined }, { ...r, observed: undefined });
+    return regionView(access, r);
+  });
+}
+
+export async function deleteRegion(ctx: AppContext, access: Access, key: string) {
+  const region = await findRegion(ctx.db, access, key);
+  const n = await effectCount(ctx.db, effects.regionId, region.id);
+  if (n > 0) throw conflict(`${n} register effect${n === 1 ? '' : 's'} vary templates of region "${key}". Remove them from their entries first.`);
+  await ctx.db.transaction(async (tx) => {
+    await tx.delete(regions).where(eq(regions.id, region.id));
+    await modelRevision(tx, access, 'region.deleted', `Removed region "${key}" and its templates.`, { key, role: region.role, edges: region.edges });
+  });
+}
+
+export async function setObserved(ctx: AppContext, access: Access, key: string, body: unknown): Promise<Region> {
+  const { observed } = observedInputSchema.parse(body);
+  const region = await findRegion(ctx.db, access, key);
+  const bins = region.edges.length - 1;
+  if (observed && observed.length !== bins) throw unprocessable(`Region "${key}" has ${bins} bins but ${observed.length} observed counts were given`, [{ path: ['observed'], message: `needs ${bins} values` }]);
+  return ctx.db.transaction(async (tx) => {
+    const [r] = await tx.update(regions).set({ observed }).where(eq(regions.id, region.id)).returning();
+    // the revision records that data changed, not the counts themselves (they may be blinded)
+    await modelRevision(tx, access, 'data.recorded', observed ? `Recorded observed data in region "${key}" (${bins} bins).` : `Cleared the observed data of region "${key}".`);
+    return regionView(access, r);
+  });
+}
+
+export async function createProcess(ctx: AppContext, access: Access, body: unknown): Promise<Process> {
+  const input = processInputSchema.parse(body);
+  const [dup] = await ctx.db.select({ id: processes.id }).from(processes).where(and(eq(processes.analysisId, access.analysis.id), eq(processes.key, input.key)));
+  if (dup) throw conflict(`A process with the key "${input.key}" already exists.`);
+  return ctx.db.transaction(async (tx) => {
+    const [{ top }] = await tx.select({ top: max(processes.position) }).from(processes).where(eq(processes.analysisId, access.analysis.id));
+    const [p] = await tx.insert(processes).values({ analysisId: access.analysis.id, ...input, position: (top ?? -1) + 1 }).returning();
+    await modelRevision(tx, access, 'process.created', `Added the ${p.kind} process "${p.key}".`, undefined, input);
+    return processView(p);
+  });
+}
+
+export async function updateProcess(ctx: AppContext, access: Access, key: string, body: unknown): Promise<Process> {
+  const input = processPatchSchema.parse(body);
+  const process = await findProcess(ctx.db, access, key);
+  return ctx.db.transaction(async (tx) => {
+    const [p] = await tx.update(processes).set(input).where(eq(processes.id, process.id)).returning();
+    await modelRevision(tx, access, 'process.edited', `Changed ${Object.keys(input).join(', ')} of process "${key}".`, process, p);
+    return processView(p);
+  });
+}
+
+export async function deleteProcess(ctx: AppContext, access: Access, key: string) {
+  const process = await findProcess(ctx.db, access, key);
+  const n = await effectCount(ctx.db, effects.processId, process.id);
+  if (n > 0) throw conflict(`${n} register effect${n === 1 ? '' : 's'} vary templates of process "${key}". Remove them from their entries first.`);
+  await ctx.db.transaction(async (tx) => {
+    await tx.delete(processes).where(eq(processes.id, process.id));
+    await modelRevision(tx, access, 'process.deleted', `Removed process "${key}" and its templates.`, { key, kind: process.kind });
+  });
+}
+
+export async function createFloatingNorm(ctx: AppContext, access: Access, body: unknown) {
+  const input = floatingNormInputSchema.parse(body);
+  if (!(input.min < input.max) || input.start < input.min || input.start > input.max)
+    throw unprocessable('The start value must lie within [min, max], and min must be below max', [{ path: ['start'], message: 'must lie within [min, max]' }]);
+  const [dup] = await ctx.db.select({ id: floatingNorms.id }).from(floatingNorms).where(and(eq(floatingNorms.analysisId, access.analysis.id), eq(floatingNorms.key, input.key)));
+  if (dup) throw conflict(`A floating normalisation with the key "${input.key}" already exists.`);
+  return ctx.db.transaction(async (tx) => {
+    const [f] = await tx.insert(floatingNorms).values({ analysisId: access.analysis.id, ...input }).returning();
+    await modelRevision(tx, access, 'norm.created', `Added the floating normalisation "${f.key}".`, undefined, input);
+    return { key: f.key, label: f.label, start: f.start, min: f.min, max: f.max };
+  });
+}
+
+export async function deleteFloatingNorm(ctx: AppContext, access: Access, key: string) {
+  const [f] = await ctx.db.select().from(floatingNorms).where(and(eq(floatingNorms.analysisId, access.analysis.id), eq(floatingNorms.key, key)));
+  if (!f) throw notFound(`Floating normalisation "${key}"`);
+  await ctx.db.transaction(async (tx) => {
+    await tx.delete(floatingNorms).where(eq(floatingNorms.id, f.id));
+    await modelRevision(tx, access, 'norm.deleted', `Removed the floating normalisation "${key}"; its templates no longer float.`, f);
+  });
+}
+
+export async function putTemplate(ctx: AppContext, access: Access, regionKey: string, processKey: string, body: unknown) {
+  const input = templateInputSchema.parse(body);
+  const region = await findRegion(ctx.db, access, regionKey);
+  const process = await findProcess(ctx.db, access, processKey);
+  const bins = region.edges.length - 1;
+  const issues = (['nominal', 'variance'] as const)
+    .filter((k) => input[k] && input[k]!.length !== bins)
+    .map((k) => ({ path: [k], message: `has ${input[k]!.length} values but region "${regionKey}" has ${bins} bins` }));
+  if (issues.length) throw unprocessable(`The template does not match the binning of region "${regionKey}"`, issues);
+  let floatingNormId: number | null = null;
+  if (input.floatingNorm) {
+    const [f] = await ctx.db.select().from(floatingNorms).where(and(eq(floatingNorms.analysisId, access.analysis.id), eq(floatingNorms.key, input.floatingNorm)));
+    if (!f) throw unprocessable(`There is no floating normalisation "${input.floatingNorm}"`, [{ path: ['floatingNorm'], message: 'unknown key' }]);
+    floatingNormId = f.id;
+  }
+  return ctx.db.transaction(async (tx) => {
+    const [old] = await tx.select().from(templates).where(and(eq(templates.regionId, region.id), eq(templates.processId, process.id)));
+    const values = { nominal: input.nominal, variance: input.variance, floatingNormId };
+    if (old) await tx.update(templates).set(values).where(eq(templates.id, old.id));
+    else await tx.insert(templates).values({ analysisId: access.analysis.id, regionId: region.id, processId: process.id, ...values });
+    await modelRevision(tx, access, 'template.saved', `${old ? 'Replaced' : 'Added'} the template of process "${processKey}" in region "${regionKey}".`, old ? { nominal: old.nominal } : undefined, { nominal: input.nominal });
+    return { region: regionKey, process: processKey, nominal: input.nominal, variance: input.variance, floatingNorm: input.floatingNorm };
+  });
+}
+
+export async function deleteTemplate(ctx: AppContext, access: Access, regionKey: string, processKey: string) {
+  const region = await findRegion(ctx.db, access, regionKey);
+  const process = await findProcess(ctx.db, access, processKey);
+  const [t] = await ctx.db.select().from(templates).where(and(eq(templates.regionId, region.id), eq(templates.processId, process.id)));
+  if (!t) throw notFound(`The template of process "${processKey}" in region "${regionKey}"`);
+  const [{ n }] = await ctx.db.select({ n: count() }).from(effects).where(and(eq(effects.regionId, region.id), eq(effects.processId, process.id)));
+  if (n > 0) throw conflict(`${n} register effect${n === 1 ? '' : 's'} vary this template. Remove them from their entries first.`);
+  await ctx.db.transaction(async (tx) => {
+    await tx.delete(templates).where(eq(templates.id, t.id));
+    await modelRevision(tx, access, 'template.deleted', `Removed the template of process "${processKey}" in region "${regionKey}".`, { nominal: t.nominal });
+  });
+}
+
+type TemplateChange = { region: string; process: string; nominal: number[]; variance: number[] | null };
+
+function readTemplatesCsv(text: string, filename: string, model: ModelIndex): TemplateChange[] {
+  const { rows, problems } = readCsv(text, filename, { required: ['region', 'process', 'bin', 'nominal'], optional: ['variance'] });
+  const groups = new Map<string, { region: string; process: string; nominal: number[]; variance: number[]; filled: Set<number>; withVariance: number; rows: number }>();
+  for (const row of rows) {
+    const region = row.get('region');
+    const process = row.get('process');
+    if (!model.regions.has(region)) problems.at(row.line, 'region', `no region "${region}" in this analysis`);
+    if (!model.processes.has(process)) problems.at(row.line, 'process', `no process "${process}" in this analysis`);
+    if (!model.regions.has(region) || !model.processes.has(process)) continue;
+    const bins = model.bins(region);
+    const id = `${region}/${process}`;
+    if (!groups.has(id)) groups.set(id, { region, process, nominal: Array(bins).fill(0), variance: Array(bins).fill(0), filled: new Set(), withVariance: 0, rows: 0 });
+    const g = groups.get(id)!;
+    g.rows++;
+    const bin = numberCell(problems, row, 'bin', { integer: true });
+    if (bin === null) {
+      if (row.get('bin') === '') problems.at(row.line, 'bin', 'is empty');
+      continue;
+    }
+    if (bin < 1 || bin > bins) {
+      problems.at(row.line, 'bin', `${bin} is outside region "${region}", which has bins 1 to ${bins}`);
+      continue;
+    }
+    if (g.filled.has(bin)) problems.at(row.line, 'bin', `bin ${bin} of region "${region}", process "${process}" appears twice`);
+    g.filled.add(bin);
+    const nominal = numberCell(problems, row, 'nominal', { min: 0 });
+    if (row.get('nominal') === '') problems.at(row.line, 'nominal', 'is empty');
+    const variance = numberCell(problems, row, 'variance', { min: 0 });
+    if (row.get('variance') !== '') g.withVariance++;
+    if (nominal !== null) g.nominal[bin - 1] = nominal;
+    if (variance !== null) g.variance[bin - 1] = variance;
+  }
+  for (const g of groups.values()) {
+    const bins = model.bins(g.region);
+    if (g.filled.size && g.filled.size !== bins) problems.at(null, null, `region "${g.region}" has ${bins} bins but the file gives ${g.filled.size} for process "${g.process}"`);
+    if (g.withVariance && g.withVariance !== g.rows) problems.at(null, 'variance', `is given in ${g.withVariance} of ${g.rows} rows of region "${g.region}", process "${g.process}": give it in every row or none`);
+  }
+  problems.throwIfAny();
+  return [...groups.values()].map((g) => ({ region: g.region, process: g.process, nominal: g.nominal, variance: g.withVariance ? g.variance : null }));
+}
+
+function readObservedCsv(text: string, filename: string, model: ModelIndex) {
+  const { rows, problems } = readCsv(text, filename, { required: ['region', 'bin', 'observed'] });
+  const groups = new Map<string, { counts: number[]; filled: Set<number> }>();
+  for (const row of rows) {
+    const region = row.get('region');
+    if (!model.regions.has(region)) {
+      problems.at(row.line, 'region', `no region "${region}" in this analysis`);
+      continue;
+    }
+    const bins = model.bins(region);
+    if (!groups.has(region)) groups.set(region, { counts: Array(bins).fill(0), filled: new Set() });
+    const g = groups.get(region)!;
+    const bin = numberCell(problems, row, 'bin', { integer: true });
+    if (bin === null) continue;
+    if (bin < 1 || bin > bins) {
+      problems.at(row.line, 'bin', `${bin} is outside region "${region}", which has bins 1 to ${bins}`);
+      continue;
+    }
+    if (g.filled.has(bin)) problems.at(row.line, 'bin', `bin ${bin} of region "${region}" appears twice`);
+    g.filled.add(bin);
+    const n = numberCell(problems, row, 'observed', { min: 0 });
+    if (row.get('observed') === '') problems.at(row.line, 'observed', 'is empty');
+    if (n !== null) g.counts[bin - 1] = n;
+  }
+  for (const [region, g] of groups) if (g.filled.size !== model.bins(region)) problems.at(null, null, `region "${region}" has ${model.bins(region)} bins but the file gives ${g.filled.size}`);
+  problems.throwIfAny();
+  return [...groups.entries()].map(([region, g]) => ({ region, counts: g.counts }));
+}
+
+/** A CSV of templates or observed counts: previewed (save = false) or saved in one transaction. */
+export async function uploadModelCsv(ctx: AppContext, access: Access, kindRaw: unknown, file: Express.Multer.File | undefined, save: boolean): Promise<ModelUploadResult> {
+  const kind = modelCsvKindSchema.parse(kindRaw);
+  const upload = readUpload(file);
+  const model = indexModel(await loadModelRows(ctx.db, access.analysis.id));
+  if (kind === 'templates') {
+    const changes = readTemplatesCsv(upload.text, upload.filename, model);
+    if (save)
+      await ctx.db.transaction(async (tx) => {
+        for (const c of changes) {
+          const regionId = model.regions.get(c.region)!.id;
+          const processId = model.processes.get(c.process)!.id;
+          const old = model.template(c.region, c.process);
+          if (old) await tx.update(templates).set({ nominal: c.nominal, variance: c.variance }).where(eq(templates.id, old.id));
+          else await tx.insert(templates).values({ analysisId: access.analysis.id, regionId, processId, nominal: c.nominal, variance: c.variance });
+        }
+        await modelRevision(tx, access, 'templates.uploaded', `Uploaded "${upload.filename}" (SHA-256 ${upload.sha256.slice(0, 12)}…): ${changes.length} template${changes.length === 1 ? '' : 's'}.`, undefined, {
+          sha256: upload.sha256,
+          templates: changes.map((c) => `${c.region}/${c.process}`),
+        });
+      });
+    return { saved: save, kind, changes: changes.map((c) => ({ region: c.region, process: c.process, bins: c.nominal.length, total: c.nominal.reduce((a, b) => a + b, 0) })) };
+  }
+  const changes = readObservedCsv(upload.text, upload.filename, model);
+  if (save)
+    await ctx.db.transaction(async (tx) => {
+      for (const c of changes) await tx.update(regions).set({ observed: c.counts }).where(eq(regions.id, model.regions.get(c.region)!.id));
+      await modelRevision(tx, access, 'data.uploaded', `Uploaded observed data "${upload.filename}" (SHA-256 ${upload.sha256.slice(0, 12)}…) for ${changes.map((c) => c.region).join(', ')}.`);
+    });
+  // a blinded signal region's totals are not echoed back
+  return {
+    saved: save,
+    kind,
+    changes: changes.map((c) => ({ region: c.region, process: null, bins: c.counts.length, total: isWithheld(access.analysis, model.regions.get(c.region)!) ? null : c.counts.reduce((a, b) => a + b, 0) })),
+  };
+}
+

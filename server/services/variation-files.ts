@@ -1,0 +1,205 @@
+import { variationJsonSchema, type VariationOptions } from '@shared/schemas/register';
+import { flatRatios, scaleWarnings, shapeWarnings, type VariationWarning } from '@shared/validation/variation-warnings';
+import type { ModelIndex } from '../db/model.repository';
+import { FileProblems, numberCell, readCsv } from '../uploads/csv';
+import { looksLikeJson, type UploadedFile } from '../uploads/upload';
+
+/**
+ * Variation files: CSV (columns region,process,kind,bin,up,down; docs/uploads.md) or JSON
+ * ({effects: [...]}, the exchange file's effect objects). Both are read into one form, checked
+ * against the analysis's model, then transformed by the chosen options. Any problem refuses
+ * the whole file.
+ */
+
+type Where = { line: number | null; column: string | null };
+export type RawEffect = {
+  region: string;
+  process: string;
+  kind: 'scale' | 'shape';
+  up: number | number[];
+  /** null: one-sided, needs the mirror option */
+  down: number | number[] | null;
+  where: Where;
+};
+export type ReadyEffect = {
+  region: string;
+  process: string;
+  kind: 'scale' | 'shape';
+  up: number | number[];
+  down: number | number[];
+  nominal: number[];
+  edges: number[];
+  warnings: VariationWarning[];
+  transformed: string[];
+};
+
+export const VARIATION_COLUMNS = ['region', 'process', 'kind', 'bin', 'up', 'down'];
+
+function readCsvVariations(file: UploadedFile, model: ModelIndex, problems: FileProblems): RawEffect[] {
+  const { rows } = readCsv(file.text, file.filename, { required: VARIATION_COLUMNS });
+  const groups = new Map<string, { region: string; process: string; kind: 'scale' | 'shape'; rows: typeof rows }>();
+  for (const row of rows) {
+    const region = row.get('region');
+    const process = row.get('process');
+    const kind = row.get('kind').toLowerCase();
+    let ok = true;
+    if (!model.regions.has(region)) {
+      problems.at(row.line, 'region', `no region "${region}" in this analysis (regions: ${[...model.regions.keys()].join(', ')})`);
+      ok = false;
+    }
+    if (!model.processes.has(process)) {
+      problems.at(row.line, 'process', `no process "${process}" in this analysis (processes: ${[...model.processes.keys()].join(', ')})`);
+      ok = false;
+    }
+    if (kind !== 'scale' && kind !== 'shape') {
+      problems.at(row.line, 'kind', `"${kind}" is neither "scale" nor "shape"`);
+      ok = false;
+    }
+    if (!ok) continue;
+    if (!model.template(region, process)) {
+      problems.at(row.line, 'process', `region "${region}" has no template for process "${process}" to vary`);
+      continue;
+    }
+    const id = `${region}/${process}/${kind}`;
+    if (!groups.has(id)) groups.set(id, { region, process, kind: kind as 'scale' | 'shape', rows: [] });
+    groups.get(id)!.rows.push(row);
+  }
+
+  const effects: RawEffect[] = [];
+  for (const g of groups.values()) {
+    const first = g.rows[0];
+    if (g.kind === 'scale') {
+      g.rows.slice(1).forEach((r) => problems.at(r.line, 'region', `a second scale row for region "${g.region}", process "${g.process}" (first in row ${first.line})`));
+      if (first.get('bin') !== '') problems.at(first.line, 'bin', 'leave the bin empty in a scale row: a ratio applies to every bin');
+      const up = numberCell(problems, first, 'up', { positive: true });
+      const down = numberCell(problems, first, 'down', { positive: true });
+      if (first.get('up') === '') problems.at(first.line, 'up', 'is empty: give the ratio at +1σ (e.g. 1.04)');
+      if (up !== null) effects.push({ region: g.region, process: g.process, kind: 'scale', up, down, where: { line: first.line, column: null } });
+      continue;
+    }
+    const bins = model.bins(g.region);
+    const up = new Array<number>(bins).fill(NaN);
+    const down = new Array<number>(bins).fill(NaN);
+    const seen = new Map<number, number>();
+    let withDown = 0;
+    for (const r of g.rows) {
+      const bin = numberCell(problems, r, 'bin', { integer: true });
+      if (r.get('bin') === '') problems.at(r.line, 'bin', 'is empty: a shape row gives one bin (1 to ' + bins + ')');
+      if (bin === null) continue;
+      if (bin < 1 || bin > bins) {
+        problems.at(r.line, 'bin', `${bin} is outside region "${g.region}", which has bins 1 to ${bins}`);
+        continue;
+      }
+      if (seen.has(bin)) {
+        problems.at(r.line, 'bin', `bin ${bin} of region "${g.region}", process "${g.process}" appears twice (also row ${seen.get(bin)})`);
+        continue;
+      }
+      seen.set(bin, r.line);
+      const u = numberCell(problems, r, 'up', { min: 0 });
+      if (r.get('up') === '') problems.at(r.line, 'up', 'is empty: give the yield at +1σ in this bin');
+      const d = numberCell(problems, r, 'down', { min: 0 });
+      if (r.get('down') !== '') withDown++;
+      if (u !== null) up[bin - 1] = u;
+      if (d !== null) down[bin - 1] = d;
+    }
+    const missing = [...Array(bins).keys()].map((b) => b + 1).filter((b) => !seen.has(b));
+    if (missing.length && seen.size > 0) {
+        problems.at(null, null, `region "${g.region}" has ${bins} bins but the file gives ${seen.size} for process "${g.process}" (missing bin ${missing.slice(0, 10).join(', ')}${missing.length > 10 ? ', …' : ''})`);
+    }
+    if (withDown > 0 && withDown < g.rows.length)
+      problems.at(first.line, 'down', `is given in ${withDown} of ${g.rows.length} rows of region "${g.region}", process "${g.process}": give it in every row, or in none for a one-sided variation`);
+    effects.push({ region: g.region, process: g.process, kind: 'shape', up, down: withDown ? down : null, where: { line: first.line, column: null } });
+  }
+  return effects;
+}
+
+function readJsonVariations(file: UploadedFile, model: ModelIndex, problems: FileProblems): RawEffect[] {
+  let doc: unknown;
+  try {
+    doc = JSON.parse(file.text);
+  } catch (e) {
+    problems.at(null, null, `the file is not valid JSON (${(e as Error).message})`);
+    return [];
+  }
+  const parsed = variationJsonSchema.safeParse(doc);
+  if (!parsed.success) {
+    for (const i of parsed.error.issues) problems.at(null, i.path.join('.') || 'file', i.message);
+    return [];
+  }
+  const effects: RawEffect[] = [];
+  parsed.data.effects.forEach((e, i) => {
+    const where = { line: null, column: `effects.${i}` };
+    if (!model.regions.has(e.region)) return problems.at(null, `effects.${i}.region`, `no region "${e.region}" in this analysis`);
+    if (!model.processes.has(e.process)) return problems.at(null, `effects.${i}.process`, `no process "${e.process}" in this analysis`);
+    if (!model.template(e.region, e.process)) return problems.at(null, `effects.${i}.process`, `region "${e.region}" has no template for process "${e.process}" to vary`);
+    if (e.kind === 'shape') {
+      const bins = model.bins(e.region);
+      for (const side of ['up', 'down'] as const) {
+        const values = e[side];
+        if (values && values.length !== bins) problems.at(null, `effects.${i}.${side}`, `has ${values.length} values but region "${e.region}" has ${bins} bins`);
+      }
+    }
+    effects.push({ region: e.region, process: e.process, kind: e.kind, up: e.up, down: e.down ?? null, where });
+  });
+  return effects;
+}
+
+const mirrorShape = (nominal: number[], up: number[]) => nominal.map((n, b) => Math.max(0, 2 * n - up[b]));
+
+/** Applies the options and computes each effect's warnings. */
+function prepare(raw: RawEffect, options: Required<VariationOptions>, model: ModelIndex, problems: FileProblems): ReadyEffect | null {
+  const nominal = model.template(raw.region, raw.process)!.nominal;
+  const edges = model.regions.get(raw.region)!.edges;
+  const transformed: string[] = [];
+  let { kind, up } = raw;
+  let down = raw.down;
+  if (down === null) {
+    if (!options.mirror) {
+      problems.at(raw.where.line, raw.where.line ? 'down' : `${raw.where.column}.down`, `no down variation for region "${raw.region}", process "${raw.process}": give it, or choose the option to mirror one-sided variations`);
+      return null;
+    }
+    // mirror: a scale ratio κ becomes 1/κ (symmetric in log space); a template ν+ becomes 2ν0 − ν+ (clipped at 0)
+    down = kind === 'scale' ? 1 / (up as number) : mirrorShape(nominal, up as number[]);
+    transformed.push(kind === 'scale' ? 'down mirrored as 1/up' : 'down mirrored as 2 × nominal − up');
+  } else if (options.symmetrise) {
+    if (kind === 'scale') {
+      const k = Math.exp((Math.log(up as number) - Math.log(down as number)) / 2);
+      up = k;
+      down = 1 / k;
+    } else {
+      const u = up as number[];
+      const d = down as number[];
+      up = nominal.map((n, b) => n + (u[b] - d[b]) / 2);
+      down = nominal.map((n, b) => Math.max(0, n - (u[b] - d[b]) / 2));
+    }
+    transformed.push('symmetrised: nominal ± half the up−down difference');
+  }
+  if (kind === 'shape' && options.flatToScale) {
+    const flat = flatRatios(nominal, up as number[], down as number[]);
+    if (flat) {
+      kind = 'scale';
+      up = flat.up;
+      down = flat.down;
+      transformed.push(`flat shape stored as a scale effect (×${flat.up.toFixed(4)} / ×${flat.down.toFixed(4)})`);
+    }
+  }
+  const warnings = kind === 'scale' ? scaleWarnings(up as number, down as number) : shapeWarnings(nominal, up as number[], down as number[]);
+  return { region: raw.region, process: raw.process, kind, up, down, nominal, edges, warnings, transformed };
+}
+
+/** Reads, checks and transforms a variation file; throws (422, every problem named) if anything is wrong. */
+export function readVariationFile(file: UploadedFile, model: ModelIndex, options: Required<VariationOptions>): ReadyEffect[] {
+  const problems = new FileProblems(file.filename);
+  const raw = looksLikeJson(file) ? readJsonVariations(file, model, problems) : readCsvVariations(file, model, problems);
+  problems.throwIfAny();
+  const ready = raw.map((r) => prepare(r, options, model, problems)).filter((r): r is ReadyEffect => r !== null);
+  const seen = new Set<string>();
+  for (const e of ready) {
+    const id = `${e.region}/${e.process}/${e.kind}`;
+    if (seen.has(id)) problems.at(null, null, `two ${e.kind} effects on region "${e.region}", process "${e.process}" (a flat shape turned into a scale effect collides with a scale row)`);
+    seen.add(id);
+  }
+  if (!ready.length && !problems.any) problems.at(null, null, 'has no variations');
+  problems.throwIfAny();
+  return ready;
+}

@@ -1,0 +1,70 @@
+import Papa from 'papaparse';
+import { unprocessable } from '../errors';
+
+export type CsvRow = { line: number; get: (column: string) => string };
+
+/** Collects every problem of a file, so a person can fix them all at once; the upload is refused if any. */
+export class FileProblems {
+  readonly list: { path: (string | number)[]; message: string; line: number }[] = [];
+  constructor(private readonly filename: string) {}
+  at(line: number | null, column: string | null, message: string) {
+    const where = [line !== null ? `Row ${line}` : null, column ? `column "${column}"` : null].filter(Boolean).join(', ');
+    if (this.list.length < 200)
+      this.list.push({ path: [...(line !== null ? ['row', line] : []), ...(column ? [column] : [])], message: where ? `${where}: ${message}` : message, line: line ?? Infinity });
+  }
+  get any() {
+    return this.list.length > 0;
+  }
+  throwIfAny() {
+    if (!this.any) return;
+    // in file order, problems of the file as a whole last
+    this.list.sort((a, b) => a.line - b.line);
+    const shown = this.list.slice(0, 5).map((p) => p.message);
+    const more = this.list.length > 5 ? ` (and ${this.list.length - 5} more problems)` : '';
+    const issues = this.list.map(({ path, message }) => ({ path, message }));
+    throw unprocessable(`Nothing was saved. "${this.filename}" has ${this.list.length === 1 ? 'a problem' : `${this.list.length} problems`}: ${shown.join('; ')}${more}.`, issues);
+  }
+}
+
+/**
+ * Reads a CSV with a header row. Column names are matched without case or surrounding spaces; the
+ * file is refused when a required column is missing or an unknown one is present. Row numbers
+ * count the header as row 1, as a spreadsheet shows them.
+ */
+export function readCsv(text: string, filename: string, columns: { required: string[]; optional?: string[] }) {
+  const problems = new FileProblems(filename);
+  const parsed = Papa.parse<string[]>(text, { skipEmptyLines: 'greedy' });
+  for (const e of parsed.errors.slice(0, 20)) problems.at(e.row !== undefined ? e.row + 1 : null, null, `the CSV cannot be read (${e.message})`);
+  problems.throwIfAny();
+  const [header, ...body] = parsed.data;
+  const names = (header ?? []).map((h) => h.trim().toLowerCase());
+  const allowed = [...columns.required, ...(columns.optional ?? [])];
+  const expected = `Expected the header: ${allowed.join(',')}`;
+  const missing = columns.required.filter((c) => !names.includes(c));
+  if (missing.length) problems.at(1, null, `missing column${missing.length > 1 ? 's' : ''} ${missing.map((m) => `"${m}"`).join(', ')}. ${expected}`);
+  names.forEach((n, i) => {
+    if (!allowed.includes(n)) problems.at(1, n || `#${i + 1}`, `unknown column. ${expected}`);
+    else if (names.indexOf(n) !== i) problems.at(1, n, 'appears twice');
+  });
+  if (!body.length) problems.at(null, null, 'has a header but no data rows');
+  problems.throwIfAny();
+  const index = new Map(names.map((n, i) => [n, i]));
+  const rows: CsvRow[] = body.map((cells, i) => ({ line: i + 2, get: (c: string) => (index.has(c) ? (cells[index.get(c)!] ?? '').trim() : '') }));
+  return { rows, problems };
+}
+
+/** A number cell: refuses text, NaN and infinities with the row and column. Returns null for an empty cell. */
+export function numberCell(problems: FileProblems, row: CsvRow, column: string, rule: { min?: number; positive?: boolean; integer?: boolean } = {}): number | null {
+  const raw = row.get(column);
+  if (raw === '') return null;
+  const value = Number(raw);
+  if (!/^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(raw) || !Number.isFinite(value)) {
+    problems.at(row.line, column, `"${raw.slice(0, 40)}" is not a finite number`);
+    return null;
+  }
+  if (rule.integer && !Number.isInteger(value)) problems.at(row.line, column, `${raw} is not a whole number`);
+  else if (rule.positive && !(value > 0)) problems.at(row.line, column, `${raw} must be greater than 0`);
+  else if (rule.min !== undefined && value < rule.min) problems.at(row.line, column, `${raw} must not be negative`);
+  else return value;
+  return null;
+}

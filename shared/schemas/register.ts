@@ -1,0 +1,239 @@
+import { z } from 'zod';
+import { memberRoleSchema, entryStateSchema } from './api';
+import { keySchema, regionRoleSchema } from './exchange';
+
+/** Contracts of the register, the model editor, variation uploads, groups, invitations and the outbox. */
+
+const finite = z.number({ error: 'must be a finite number' });
+const nonNegative = finite.min(0, 'must not be negative');
+const text = (max: number) => z.string().max(max, `must be at most ${max} characters`);
+
+// ---- model editing (analysts)
+const regionFields = {
+  key: keySchema,
+  label: text(200),
+  role: regionRoleSchema,
+  observable: z.string().trim().min(1, 'is required').max(100),
+  unit: text(30),
+  edges: z.array(finite).min(2, 'needs at least two edges (one bin)').max(2001),
+};
+export const regionInputSchema = z.strictObject({ ...regionFields, label: regionFields.label.default(''), unit: regionFields.unit.default('') });
+export type RegionInput = z.input<typeof regionInputSchema>;
+/** Patches carry no defaults: a field left out keeps its value. */
+export const regionPatchSchema = z.strictObject(regionFields).omit({ key: true }).partial();
+export type RegionPatch = z.infer<typeof regionPatchSchema>;
+
+export const observedInputSchema = z.strictObject({ observed: z.array(nonNegative).nullable() });
+
+const processFields = {
+  key: keySchema,
+  label: text(200),
+  kind: z.enum(['signal', 'background']),
+  colour: z.string().regex(/^#[0-9a-fA-F]{6}$/, 'must be a colour like #2e6f95').nullable(),
+};
+export const processInputSchema = z.strictObject({ ...processFields, label: processFields.label.default(''), colour: processFields.colour.default(null) });
+export type ProcessInput = z.input<typeof processInputSchema>;
+export const processPatchSchema = z.strictObject(processFields).omit({ key: true }).partial();
+
+export const floatingNormInputSchema = z.strictObject({
+  key: keySchema,
+  label: text(200).default(''),
+  start: finite.default(1),
+  min: finite.default(0),
+  max: finite.default(10),
+});
+export type FloatingNormInput = z.input<typeof floatingNormInputSchema>;
+
+export const templateInputSchema = z.strictObject({
+  nominal: z.array(nonNegative),
+  variance: z.array(nonNegative).nullable().default(null),
+  floatingNorm: keySchema.nullable().default(null),
+});
+export type TemplateInput = z.input<typeof templateInputSchema>;
+
+/** CSV uploads of the model: which table the file fills. Columns in docs/uploads.md. */
+export const modelCsvKindSchema = z.enum(['templates', 'observed']);
+export type ModelCsvKind = z.infer<typeof modelCsvKindSchema>;
+
+export const modelUploadResultSchema = z.object({
+  saved: z.boolean(),
+  kind: modelCsvKindSchema,
+  /** what the file sets: one line per (region, process) or region */
+  changes: z.array(z.object({ region: z.string(), process: z.string().nullable(), bins: z.number(), /** null for a blinded signal region */ total: z.number().nullable() })),
+});
+export type ModelUploadResult = z.infer<typeof modelUploadResultSchema>;
+
+// ---- register entries
+const entryFields = {
+  key: keySchema,
+  label: z.string().trim().min(1, 'is required').max(200),
+  group: z.string().trim().max(64).nullable(),
+  ownerId: z.number().int().positive().nullable(),
+  description: text(10_000),
+  justification: text(10_000),
+  references: z.array(z.string().trim().min(1).max(500)).max(50),
+};
+export const entryInputSchema = z.strictObject({
+  ...entryFields,
+  group: entryFields.group.default(null),
+  ownerId: entryFields.ownerId.default(null),
+  description: entryFields.description.default(''),
+  justification: entryFields.justification.default(''),
+  references: entryFields.references.default([]),
+});
+export type EntryInput = z.input<typeof entryInputSchema>;
+
+export const entryPatchSchema = z
+  .strictObject(entryFields)
+  .omit({ key: true })
+  .partial()
+  .extend({
+    /** the version the editor started from; a newer one on the server means someone else changed the entry */
+    version: z.number().int().positive(),
+  });
+export type EntryPatch = z.input<typeof entryPatchSchema>;
+
+/** Review steps: submit (owner or analyst), accept / send back (convener), retire / reopen. */
+export const reviewActionSchema = z.strictObject({
+  action: z.enum(['submit', 'accept', 'send_back', 'retire', 'reopen']),
+  comment: text(5000).default(''),
+});
+export type ReviewAction = z.input<typeof reviewActionSchema>;
+
+export const variationWarningSchema = z.object({ code: z.string(), message: z.string(), bins: z.array(z.number()).optional() });
+export type VariationWarningView = z.infer<typeof variationWarningSchema>;
+
+export const effectViewSchema = z.object({
+  id: z.number(),
+  region: z.string(),
+  process: z.string(),
+  kind: z.enum(['scale', 'shape']),
+  up: z.union([z.number(), z.array(z.number())]),
+  down: z.union([z.number(), z.array(z.number())]),
+  /** the template the variation is relative to, for the per-bin preview */
+  nominal: z.array(z.number()),
+  edges: z.array(z.number()),
+  warnings: z.array(variationWarningSchema),
+  upload: z.object({ id: z.number(), filename: z.string(), sha256: z.string(), createdAt: z.string() }).nullable(),
+});
+export type EffectView = z.infer<typeof effectViewSchema>;
+
+export const revisionSchema = z.object({
+  id: z.number(),
+  action: z.string(),
+  summary: z.string(),
+  author: z.object({ id: z.number(), name: z.string() }).nullable(),
+  createdAt: z.string(),
+  before: z.unknown().optional(),
+  after: z.unknown().optional(),
+});
+export type Revision = z.infer<typeof revisionSchema>;
+
+export const entryDetailSchema = z.object({
+  key: z.string(),
+  label: z.string(),
+  group: z.string().nullable(),
+  owner: z.object({ id: z.number(), name: z.string(), email: z.string() }).nullable(),
+  description: z.string(),
+  justification: z.string(),
+  references: z.array(z.string()),
+  state: entryStateSchema,
+  version: z.number(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+  effects: z.array(effectViewSchema),
+  revisions: z.array(revisionSchema),
+  /** what the caller may do with this entry (edit, upload, submit, accept, sendBack, retire, reopen) */
+  can: z.object({
+    edit: z.boolean(),
+    upload: z.boolean(),
+    submit: z.boolean(),
+    accept: z.boolean(),
+    sendBack: z.boolean(),
+    retire: z.boolean(),
+    reopen: z.boolean(),
+    reassign: z.boolean(),
+  }),
+});
+export type EntryDetail = z.infer<typeof entryDetailSchema>;
+
+// ---- variation uploads
+export const variationOptionsSchema = z.strictObject({
+  /** one-sided variations (no down given): take down as the mirror image of up */
+  mirror: z.boolean().default(false),
+  /** two-sided variations: replace up/down by their symmetric average (nominal ± half the difference) */
+  symmetrise: z.boolean().default(false),
+  /** shape effects whose ratio to nominal is flat: store them as scale effects */
+  flatToScale: z.boolean().default(false),
+});
+export type VariationOptions = z.input<typeof variationOptionsSchema>;
+
+export const variationPreviewSchema = z.object({
+  saved: z.boolean(),
+  filename: z.string(),
+  sha256: z.string(),
+  effects: z.array(
+    z.object({
+      region: z.string(),
+      process: z.string(),
+      kind: z.enum(['scale', 'shape']),
+      up: z.union([z.number(), z.array(z.number())]),
+      down: z.union([z.number(), z.array(z.number())]),
+      nominal: z.array(z.number()),
+      edges: z.array(z.number()),
+      warnings: z.array(variationWarningSchema),
+      /** what the options changed ("mirrored", "symmetrised", "converted to a scale effect") */
+      transformed: z.array(z.string()),
+      /** an existing effect of the same kind on this template is replaced */
+      replaces: z.boolean(),
+    }),
+  ),
+});
+export type VariationPreview = z.infer<typeof variationPreviewSchema>;
+
+/** The JSON form of a variation upload: the exchange file's effect objects. */
+export const variationJsonSchema = z.strictObject({
+  effects: z
+    .array(
+      z.discriminatedUnion('kind', [
+        z.strictObject({ region: keySchema, process: keySchema, kind: z.literal('scale'), up: finite.gt(0, 'must be greater than 0'), down: finite.gt(0, 'must be greater than 0').optional() }),
+        z.strictObject({ region: keySchema, process: keySchema, kind: z.literal('shape'), up: z.array(nonNegative), down: z.array(nonNegative).optional() }),
+      ]),
+    )
+    .min(1, 'needs at least one effect'),
+});
+
+// ---- groups
+export const groupSchema = z.object({ id: z.number(), name: z.string(), position: z.number(), entries: z.array(z.string()) });
+export type Group = z.infer<typeof groupSchema>;
+export const groupsViewSchema = z.object({ groups: z.array(groupSchema), ungrouped: z.array(z.string()) });
+export type GroupsView = z.infer<typeof groupsViewSchema>;
+export const groupInputSchema = z.strictObject({ name: z.string().trim().min(1, 'is required').max(64) });
+export const moveEntrySchema = z.strictObject({ groupId: z.number().int().positive().nullable() });
+
+// ---- invitations
+export const invitationInputSchema = z.strictObject({
+  email: z.email({ error: 'must be an e-mail address' }).max(254).transform((s) => s.toLowerCase()),
+  role: memberRoleSchema,
+});
+export const invitationViewSchema = z.object({ analysis: z.string(), analysisSlug: z.string(), email: z.string(), role: memberRoleSchema, invitedBy: z.string() });
+export type InvitationView = z.infer<typeof invitationViewSchema>;
+export const acceptInvitationSchema = z.strictObject({
+  name: z.string().trim().min(1, 'is required').max(120),
+  password: z.string().min(10, 'must be at least 10 characters').max(200),
+});
+/** Inviting an e-mail that already has an account adds the member at once. */
+export const inviteOutcomeSchema = z.object({ outcome: z.enum(['added', 'invited']), email: z.string() });
+
+// ---- outbox
+export const outboxMessageSchema = z.object({
+  id: z.number(),
+  to: z.string(),
+  subject: z.string(),
+  body: z.string(),
+  delivered: z.boolean(),
+  error: z.string().nullable(),
+  createdAt: z.string(),
+  analysis: z.string().nullable(),
+});
+export type OutboxMessage = z.infer<typeof outboxMessageSchema>;
