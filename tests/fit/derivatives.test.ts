@@ -6,6 +6,7 @@ import { buildProblem, startPoint } from '../../server/fit/problem';
 import { createRandom, syntheticModel } from '../../server/fit/synthetic';
 import { createWorkspace } from '../../server/fit/yields';
 import { expectClose } from './helpers';
+import { createReferenceDerivatives, referenceDerivatives } from './reference-derivatives';
 
 const options = { dataset: 'observed' as const, asimovMu: 1, controlOnly: false, excludeRegions: [] };
 
@@ -93,6 +94,70 @@ describe('analytic derivatives', () => {
       computeDerivatives(m, problem.data, phi, gamma, new Uint8Array(m.nGamma).fill(1), ws, d, true);
       for (let i = 0; i < P; i++) for (let j = 0; j < P; j++) expectClose(d.H[i * P + j], schur.get(i, j), 1e-5, 1e-4);
       for (let a = 0; a < m.nGamma; a++) expectClose(d.D[a], Hgg.get(a, a), 1e-5, 1e-4);
+    });
+  }
+});
+
+describe('the γ-reduced Hessian assembled in the per-region basis', () => {
+  /**
+   * Random models whose templates carry scale and shape effects of the same θ, some γ held
+   * (not eliminated), and shape variations scaled up until some templates are clipped at zero.
+   */
+  function stressSetup(seed: number, shapeScale: number) {
+    const model = syntheticModel({ regions: 4, signalRegions: 2, bins: 7, processes: 4, systematics: 30, floatingNorms: 2, varianceFraction: 0.6 }, seed);
+    // A third of the systematics act in the first region only, so regions differ in the parameters they touch.
+    model.systematics.forEach((syst, i) => {
+      if (i % 3 === 0) syst.effects = syst.effects.filter((e) => e.region === model.regions[0].key);
+    });
+    const problem = buildProblem(model, options);
+    const m = problem.model;
+    for (let k = 0; k < m.shapeHd.length; k++) {
+      m.shapeHd[k] *= shapeScale;
+      m.shapeHs[k] *= shapeScale;
+    }
+    const rand = createRandom(seed + 7);
+    const { phi, gamma } = startPoint(m);
+    phi[0] = seed % 2 === 0 ? 0 : 0.3 + rand();
+    for (let i = 1; i < m.thetaStart; i++) phi[i] = 0.7 + 0.6 * rand();
+    for (let i = m.thetaStart; i < m.nDense; i++) phi[i] = 3.2 * (rand() - 0.5);
+    for (let g = 0; g < m.nGamma; g++) gamma[g] = 0.8 + 0.4 * rand();
+    const eliminate = new Uint8Array(m.nGamma);
+    for (let g = 0; g < m.nGamma; g++) eliminate[g] = rand() < 0.8 ? 1 : 0;
+    return { problem, m, phi, gamma, eliminate };
+  }
+
+  for (const [seed, shapeScale] of [
+    [5, 1],
+    [8, 1],
+    [13, 25],
+    [21, 40],
+  ] as const) {
+    it(`equals the per-bin dense assembly (random model ${seed}, shape effects ×${shapeScale})`, () => {
+      const { problem, m, phi, gamma, eliminate } = stressSetup(seed, shapeScale);
+      const P = m.nDense;
+      const ws = createWorkspace(m);
+      negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws);
+      let clipped = 0;
+      for (let k = 0; k < ws.A.length; k++) if (ws.A[k] <= 0) clipped++;
+      if (shapeScale > 1) expect(clipped).toBeGreaterThan(0);
+
+      expect(m.regions.some((r) => r.inFit && r.parameters.length < m.nDense)).toBe(true);
+      const d = createDerivatives(m);
+      computeDerivatives(m, problem.data, phi, gamma, eliminate, ws, d, true, true);
+      const ref = createReferenceDerivatives(m);
+      referenceDerivatives(m, problem.data, phi, gamma, eliminate, ws, ref, true, true);
+      const scale = (i: number, j: number) => Math.sqrt(Math.abs(ref.H[i * P + i] * ref.H[j * P + j]));
+      for (let i = 0; i < P; i++) {
+        for (let j = 0; j < P; j++) {
+          expectClose(d.H[i * P + j], ref.H[i * P + j], 0, 1e-11 * scale(i, j));
+          expectClose(d.schur![i * P + j], ref.schur![i * P + j], 0, 1e-11 * scale(i, j));
+        }
+        expectClose(d.gReduced[i], ref.gReduced[i], 1e-10, 1e-10 * Math.sqrt(Math.abs(ref.H[i * P + i])));
+      }
+      for (let g = 0; g < m.nGamma; g++) {
+        expectClose(d.D[g], ref.D[g], 1e-12);
+        for (let i = 0; i < P; i++) expectClose(d.Bt[g * P + i], ref.Bt[g * P + i], 1e-10, 1e-12 * Math.sqrt(Math.abs(ref.H[i * P + i] * ref.D[g])));
+      }
     });
   }
 });
