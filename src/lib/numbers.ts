@@ -1,6 +1,6 @@
 /** Parsing the number lists people type or paste: bin edges, templates, observed counts. */
 
-export type ParsedList = { values: number[]; error?: undefined } | { values?: undefined; error: string };
+export type ParsedList = { values: number[]; error: null } | { values: null; error: string };
 
 /**
  * Split on commas, semicolons, tabs, spaces or new lines (what a spreadsheet column or a
@@ -15,10 +15,10 @@ export function parseNumberList(text: string): ParsedList {
   const values: number[] = [];
   for (let i = 0; i < pieces.length; i++) {
     const v = Number(pieces[i]);
-    if (!Number.isFinite(v)) return { error: `value ${i + 1} (“${pieces[i]}”) is not a number` };
+    if (!Number.isFinite(v)) return { values: null, error: `value ${i + 1} (“${pieces[i]}”) is not a number` };
     values.push(v);
   }
-  return { values };
+  return { values, error: null };
 }
 
 /** A number list written back for editing. */

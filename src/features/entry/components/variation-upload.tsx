@@ -10,14 +10,15 @@ import { EffectCard, type RegionInfo } from './effect-card';
 import { VariationLegend } from './variation-chart';
 
 const CSV_EXAMPLE = `region,process,kind,bin,up,down
-SR_low,halo,scale,,1.04,0.97
-SR_low,drift,shape,1,102.4,97.1
-SR_low,drift,shape,2,88.0,84.9
-SR_low,drift,shape,3,41.3,39.2`;
+CR-shower,showerpair,scale,,1.045,0.962
+CR-shower,continuum,shape,1,249.53,264.97
+CR-shower,continuum,shape,2,161.94,169.03
+…one row per bin…
+CR-shower,continuum,shape,8,12.08,11.37`;
 
 const JSON_EXAMPLE = `{"effects":[
-  {"region":"SR_low","process":"halo","kind":"scale","up":1.04,"down":0.97},
-  {"region":"SR_low","process":"drift","kind":"shape","up":[102.4,88.0,41.3],"down":[97.1,84.9,39.2]}
+  {"region":"CR-shower","process":"showerpair","kind":"scale","up":1.045,"down":0.962},
+  {"region":"CR-shower","process":"continuum","kind":"shape","up":[249.53,161.94,…,12.08]}
 ]}`;
 
 const NO_OPTIONS: Required<VariationOptions> = { mirror: false, symmetrise: false, flatToScale: false };
@@ -83,12 +84,12 @@ export function VariationUpload({ slug, entryKey, regions, processLabels, onSave
           <FileField label="Variation file (CSV or JSON)" accept=".csv,.json,text/csv,application/json" file={file} onFile={chooseFile} inputKey={inputKey} />
           <fieldset className="flex flex-col gap-2">
             <legend className="mb-1 text-xs font-semibold text-ink-soft">Options</legend>
-            <CheckboxField label="Mirror one-sided variations" checked={options.mirror} onChange={setOption('mirror')} hint="Where no down is given, take down as the mirror image of up about the nominal." />
+            <CheckboxField label="Mirror one-sided variations" checked={options.mirror} onChange={setOption('mirror')} hint="Where no down is given, derive it from up: a template as its mirror image about the nominal, a ratio κ as 1/κ." />
             <CheckboxField
               label="Symmetrise two-sided variations"
               checked={options.symmetrise}
               onChange={setOption('symmetrise')}
-              hint="Replace up and down by nominal ± half their difference."
+              hint="Replace up and down by the nominal ± half their difference (ratios: symmetric in log)."
             />
             <CheckboxField label="Store flat shape effects as scale effects" checked={options.flatToScale} onChange={setOption('flatToScale')} hint="A shape effect with the same ratio in every bin becomes one ratio for up and one for down." />
           </fieldset>
@@ -117,7 +118,7 @@ export function VariationUpload({ slug, entryKey, regions, processLabels, onSave
             </p>
           </FormatReminder>
           <FormatReminder title="JSON form" example={JSON_EXAMPLE}>
-            <p>An object with an <code>effects</code> list, each effect as in the exchange file; <code>down</code> may be left out for a one-sided variation.</p>
+            <p>An object with an <code>effects</code> list, each effect as in the exchange file; <code>down</code> may be left out for a one-sided variation. Full description and example files: docs/uploads.md.</p>
           </FormatReminder>
         </div>
       </div>

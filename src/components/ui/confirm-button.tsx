@@ -1,0 +1,57 @@
+import { useState } from 'react';
+import { Button } from './button';
+import { FormError } from './error-notice';
+
+/** A destructive action asked twice: the button, then "question? Confirm / Keep", with the refusal shown beneath. */
+export function ConfirmButton({
+  label,
+  question,
+  confirmLabel,
+  onConfirm,
+  busy,
+  error,
+  onCancel,
+  ariaLabel,
+}: {
+  label: string;
+  question: string;
+  confirmLabel: string;
+  onConfirm: () => void;
+  busy?: boolean;
+  error?: unknown;
+  onCancel?: () => void;
+  ariaLabel?: string;
+}) {
+  const [asking, setAsking] = useState(false);
+  return (
+    <div className="flex flex-col items-end gap-1">
+      {asking ? (
+        <div className="flex flex-wrap items-center justify-end gap-1.5">
+          <span className="text-xs text-ink-soft">{question}</span>
+          <Button size="sm" variant="danger" busy={busy} onClick={onConfirm}>
+            {confirmLabel}
+          </Button>
+          <Button
+            size="sm"
+            variant="ghost"
+            onClick={() => {
+              setAsking(false);
+              onCancel?.();
+            }}
+          >
+            Keep
+          </Button>
+        </div>
+      ) : (
+        <Button size="sm" variant="ghost" aria-label={ariaLabel} onClick={() => setAsking(true)}>
+          {label}
+        </Button>
+      )}
+      {error ? (
+        <div className="max-w-sm text-left">
+          <FormError error={error} />
+        </div>
+      ) : null}
+    </div>
+  );
+}

@@ -1,0 +1,40 @@
+import { useState } from 'react';
+import { Button, buttonClass } from '../../../components/ui/button';
+import { UploadError } from '../../../components/ui/error-notice';
+import { FileField } from '../../../components/ui/file-field';
+import { exchangeDownloadUrl, useImportExchange } from '../api/import-exchange';
+
+/** Download the whole model as one exchange file (JSON). */
+export function ExportModelLink({ slug }: { slug: string }) {
+  return (
+    <a href={exchangeDownloadUrl(slug)} download={`${slug}.model.json`} className={buttonClass('secondary')} title="The whole model as one exchange file; blinded signal-region data are left out">
+      Export model (JSON)
+    </a>
+  );
+}
+
+/** Import an exchange file into an analysis that has no model yet. */
+export function ImportModel({ slug }: { slug: string }) {
+  const [file, setFile] = useState<File | null>(null);
+  const imp = useImportExchange(slug);
+  return (
+    <div className="flex flex-col gap-3">
+      <p className="text-sm text-ink-soft">
+        Start from an exchange file: regions with their binning and data, processes, templates, floating normalisations and the systematics with their effects and groups. See{' '}
+        <span className="font-medium">docs/exchange-file.md</span> for its format.
+      </p>
+      <div className="flex flex-wrap items-end gap-3">
+        <FileField label="Model file (JSON)" accept=".json,application/json" file={file} onFile={(f) => { setFile(f); imp.reset(); }} />
+        <Button variant="primary" disabled={!file} busy={imp.isPending} onClick={() => file && imp.mutate(file)}>
+          Import model file
+        </Button>
+      </div>
+      <UploadError error={imp.error} />
+      {imp.data && (
+        <p role="status" className="rounded-md border border-teal/30 bg-teal-soft/60 px-3 py-2 text-sm text-teal-ink">
+          Imported {imp.data.regions} regions, {imp.data.processes} processes and {imp.data.entries} register entries.
+        </p>
+      )}
+    </div>
+  );
+}
