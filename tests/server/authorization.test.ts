@@ -1,6 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { createHash } from 'node:crypto';
+import { and, eq } from 'drizzle-orm';
 import { hashPassword } from '../../server/auth/passwords';
-import { users } from '../../server/db/schema';
+import { analyses, effects, entries, groups, invitations, memberships, processes, regions, users } from '../../server/db/schema';
 import { Client, createTestApp, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
 
 /**
@@ -19,7 +21,7 @@ const EMAIL: Record<Exclude<Who, 'signedOut'>, string> = {
   outsider: DEMO.outsider,
 };
 
-type Call = { path: string; body?: unknown };
+type Call = { path: string; body?: unknown; file?: { name: string; content: string } };
 type Row = {
   /** builds the concrete request; may create what the call needs first */
   call: (t: TestApp, who: Who, n: number) => Promise<Call> | Call;
@@ -32,6 +34,9 @@ const SLUG = 'vireon-search';
 const all = (status: number): Record<Who, number> => ({ signedOut: status, reader: status, contact: status, analyst: status, convener: status, admin: status, outsider: status });
 const signedInOnly = (ok: number) => ({ ...all(ok), signedOut: 401 });
 const adminOnly = (ok: number) => ({ ...all(403), signedOut: 401, admin: ok });
+const analystOnly = (ok: number) => ({ ...all(403), signedOut: 401, analyst: ok });
+/** the entry's owner (the contact) and analysts */
+const editors = (ok: number) => ({ ...all(403), signedOut: 401, analyst: ok, contact: ok });
 const members = (ok: number) => ({ signedOut: 401, reader: ok, contact: ok, analyst: ok, convener: ok, admin: ok, outsider: 403 });
 const managers = (ok: number) => ({ signedOut: 401, reader: 403, contact: 403, analyst: 403, convener: ok, admin: ok, outsider: 403 });
 
@@ -49,6 +54,55 @@ async function freshMember(t: TestApp) {
   expect(res.status).toBe(201);
   return u;
 }
+
+const ids = async (t: TestApp) => {
+  const db = t.database.db;
+  const [a] = await db.select().from(analyses).where(eq(analyses.slug, SLUG));
+  const [juno] = await db.select().from(users).where(eq(users.email, DEMO.contact));
+  const [otto] = await db.select().from(users).where(eq(users.email, DEMO.analyst));
+  const [cr] = await db.select().from(regions).where(and(eq(regions.analysisId, a.id), eq(regions.key, 'CR-shower')));
+  const [sp] = await db.select().from(processes).where(and(eq(processes.analysisId, a.id), eq(processes.key, 'showerpair')));
+  return { analysisId: a.id, juno: juno.id, otto: otto.id, region: cr.id, process: sp.id };
+};
+/** a draft entry owned by the systematics contact, with one scale effect */
+async function freshEntry(t: TestApp) {
+  created += 1;
+  const { analysisId, juno, region, process } = await ids(t);
+  const [e] = await t.database.db.insert(entries).values({ analysisId, key: `fixture_${created}`, label: `Fixture ${created}`, ownerId: juno }).returning();
+  const [effect] = await t.database.db.insert(effects).values({ entryId: e.id, regionId: region, processId: process, kind: 'scale', up: 1.1, down: 0.9 }).returning();
+  return { key: e.key, effectId: effect.id };
+}
+async function freshGroup(t: TestApp) {
+  created += 1;
+  const [g] = await t.database.db.insert(groups).values({ analysisId: (await ids(t)).analysisId, name: `fixture group ${created}` }).returning();
+  return g.id;
+}
+async function freshInvitation(t: TestApp) {
+  created += 1;
+  const token = `fixture-token-${created}`;
+  const { analysisId, otto } = await ids(t);
+  await t.database.db.insert(invitations).values({ analysisId, email: `invited${created}@lantern.example`, role: 'reader', tokenHash: createHash('sha256').update(token).digest('hex'), invitedById: otto });
+  return token;
+}
+/** an analysis with no model yet, where the demo analyst is an analyst */
+async function emptyAnalysis(t: TestApp) {
+  created += 1;
+  const [a] = await t.database.db.insert(analyses).values({ slug: `empty-${created}`, name: `Empty ${created}` }).returning();
+  await t.database.db.insert(memberships).values({ analysisId: a.id, userId: (await ids(t)).otto, role: 'analyst' });
+  return a.slug;
+}
+async function freshRegion(t: TestApp) {
+  created += 1;
+  const [r] = await t.database.db.insert(regions).values({ analysisId: (await ids(t)).analysisId, key: `R${created}`, role: 'control', observable: 'm', edges: [0, 1, 2] }).returning();
+  return r.key;
+}
+async function freshProcess(t: TestApp) {
+  created += 1;
+  const [p] = await t.database.db.insert(processes).values({ analysisId: (await ids(t)).analysisId, key: `p${created}`, kind: 'background' }).returning();
+  return p.key;
+}
+const VARIATION_CSV = 'region,process,kind,bin,up,down\nCR-shower,showerpair,scale,,1.05,0.95\n';
+const A = `/api/analyses/${SLUG}`;
 
 export const MATRIX: Record<string, Row> = {
   'GET /api/auth/csrf': { call: () => ({ path: '/api/auth/csrf' }), expect: all(200) },
@@ -83,6 +137,68 @@ export const MATRIX: Record<string, Row> = {
   'GET /api/analyses/:slug/model': { call: () => ({ path: `/api/analyses/${SLUG}/model` }), expect: members(200) },
   'GET /api/analyses/:slug/entries': { call: () => ({ path: `/api/analyses/${SLUG}/entries` }), expect: members(200) },
   'GET /api/outbox': { call: () => ({ path: '/api/outbox' }), expect: adminOnly(200) },
+
+  // the model editor: analysts
+  'POST /api/analyses/:slug/regions': { call: (_t, who, n) => ({ path: `${A}/regions`, body: { key: `new_${who}_${n}`, role: 'control', observable: 'm', edges: [0, 1, 2] } }), expect: analystOnly(201) },
+  'PATCH /api/analyses/:slug/regions/:key': { call: () => ({ path: `${A}/regions/VR-mid`, body: { label: 'Validation region' } }), expect: analystOnly(200) },
+  'DELETE /api/analyses/:slug/regions/:key': { call: async (t) => ({ path: `${A}/regions/${await freshRegion(t)}` }), expect: analystOnly(204) },
+  'PUT /api/analyses/:slug/regions/:key/observed': { call: async (t) => ({ path: `${A}/regions/${await freshRegion(t)}/observed`, body: { observed: [3, 4] } }), expect: analystOnly(200) },
+  'POST /api/analyses/:slug/processes': { call: (_t, who, n) => ({ path: `${A}/processes`, body: { key: `new_${who}_${n}`, kind: 'background' } }), expect: analystOnly(201) },
+  'PATCH /api/analyses/:slug/processes/:key': { call: () => ({ path: `${A}/processes/halo`, body: { label: 'Beam halo' } }), expect: analystOnly(200) },
+  'DELETE /api/analyses/:slug/processes/:key': { call: async (t) => ({ path: `${A}/processes/${await freshProcess(t)}` }), expect: analystOnly(204) },
+  'POST /api/analyses/:slug/floating-norms': { call: (_t, who, n) => ({ path: `${A}/floating-norms`, body: { key: `k_${who}_${n}` } }), expect: analystOnly(201) },
+  'DELETE /api/analyses/:slug/floating-norms/:key': {
+    call: async (t, who, n) => {
+      const [{ id }] = await t.database.db.select({ id: analyses.id }).from(analyses).where(eq(analyses.slug, SLUG));
+      const { floatingNorms } = await import('../../server/db/schema');
+      await t.database.db.insert(floatingNorms).values({ analysisId: id, key: `kdel_${who}_${n}` });
+      return { path: `${A}/floating-norms/kdel_${who}_${n}` };
+    },
+    expect: analystOnly(204),
+  },
+  'PUT /api/analyses/:slug/templates/:region/:process': { call: async (t) => ({ path: `${A}/templates/${await freshRegion(t)}/halo`, body: { nominal: [1, 2] } }), expect: analystOnly(200) },
+  'DELETE /api/analyses/:slug/templates/:region/:process': {
+    call: async (t) => {
+      const region = await freshRegion(t);
+      const admin = await signedIn(t.app, DEMO.analyst);
+      expect((await admin.send('put', `${A}/templates/${region}/halo`, { nominal: [1, 2] })).status).toBe(200);
+      return { path: `${A}/templates/${region}/halo` };
+    },
+    expect: analystOnly(204),
+  },
+  'POST /api/analyses/:slug/model/csv': { call: () => ({ path: `${A}/model/csv?kind=observed`, file: { name: 'data.csv', content: 'region,bin,observed\nVR-mid,1,3\nVR-mid,2,3\nVR-mid,3,3\nVR-mid,4,3\nVR-mid,5,3\nVR-mid,6,3\nVR-mid,7,3\nVR-mid,8,3\n' } }), expect: analystOnly(200) },
+  'GET /api/analyses/:slug/exchange': { call: () => ({ path: `${A}/exchange` }), expect: members(200) },
+  'POST /api/analyses/:slug/exchange': {
+    call: async (t, who) => ({
+      path: who === 'analyst' ? `/api/analyses/${await emptyAnalysis(t)}/exchange` : `${A}/exchange`,
+      file: { name: 'model.json', content: JSON.stringify({ format: 'plumbline.model', version: 1, name: 'm', regions: [{ key: 'R', role: 'control', observable: { name: 'x', unit: '' }, edges: [0, 1] }], processes: [{ key: 'p', kind: 'background' }], templates: [{ region: 'R', process: 'p', nominal: [1] }] }) },
+    }),
+    expect: analystOnly(201),
+  },
+
+  // the register
+  'POST /api/analyses/:slug/entries': { call: (_t, who, n) => ({ path: `${A}/entries`, body: { key: `e_${who}_${n}`, label: 'New entry' } }), expect: analystOnly(201) },
+  'GET /api/analyses/:slug/entries/:key': { call: () => ({ path: `${A}/entries/flare_escale` }), expect: members(200) },
+  'PATCH /api/analyses/:slug/entries/:key': { call: async (t) => ({ path: `${A}/entries/${(await freshEntry(t)).key}`, body: { label: 'Changed', version: 1 } }), expect: editors(200) },
+  'POST /api/analyses/:slug/entries/:key/review': { call: async (t) => ({ path: `${A}/entries/${(await freshEntry(t)).key}/review`, body: { action: 'submit' } }), expect: editors(200) },
+  'POST /api/analyses/:slug/entries/:key/variations': { call: async (t) => ({ path: `${A}/entries/${(await freshEntry(t)).key}/variations`, file: { name: 'v.csv', content: VARIATION_CSV } }), expect: editors(200) },
+  'DELETE /api/analyses/:slug/entries/:key/effects/:effectId': {
+    call: async (t) => {
+      const e = await freshEntry(t);
+      return { path: `${A}/entries/${e.key}/effects/${e.effectId}` };
+    },
+    expect: editors(200),
+  },
+  'PUT /api/analyses/:slug/entries/:key/group': { call: async (t) => ({ path: `${A}/entries/${(await freshEntry(t)).key}/group`, body: { groupId: null } }), expect: analystOnly(200) },
+  'GET /api/analyses/:slug/groups': { call: () => ({ path: `${A}/groups` }), expect: members(200) },
+  'POST /api/analyses/:slug/groups': { call: (_t, who, n) => ({ path: `${A}/groups`, body: { name: `group ${who} ${n}` } }), expect: analystOnly(201) },
+  'PATCH /api/analyses/:slug/groups/:groupId': { call: async (t, who) => ({ path: `${A}/groups/${await freshGroup(t)}`, body: { name: `renamed by ${who} ${created}` } }), expect: analystOnly(200) },
+  'DELETE /api/analyses/:slug/groups/:groupId': { call: async (t) => ({ path: `${A}/groups/${await freshGroup(t)}` }), expect: analystOnly(204) },
+
+  // invitations: conveners and admins invite; the link itself is the credential
+  'POST /api/analyses/:slug/invitations': { call: (_t, who, n) => ({ path: `${A}/invitations`, body: { email: `guest-${who}-${n}@lantern.example`, role: 'reader' } }), expect: managers(201) },
+  'GET /api/invitations/:token': { call: async (t) => ({ path: `/api/invitations/${await freshInvitation(t)}` }), expect: all(200) },
+  'POST /api/invitations/:token/accept': { call: async (t) => ({ path: `/api/invitations/${await freshInvitation(t)}/accept`, body: { name: 'Guest', password: 'a-long-password' } }), expect: all(201), resetsSession: true },
 };
 
 describe('authorisation of every API route', () => {
@@ -107,9 +223,14 @@ describe('authorisation of every API route', () => {
     const [method, template] = name.split(' ');
     it.each(WHO)(`${name} answers %s with the status the permission table gives`, async (who) => {
       const client = await clientFor(who);
-      const { path, body } = await row.call(t, who, WHO.indexOf(who));
+      const { path, body, file } = await row.call(t, who, WHO.indexOf(who));
       expect(path.startsWith(template.split('/:')[0])).toBe(true);
-      const res = method === 'GET' ? await client.get(path) : await client.send(method.toLowerCase() as 'post', path, body);
+      const res =
+        method === 'GET'
+          ? await client.get(path)
+          : file
+            ? await client.upload(path, file)
+            : await client.send(method.toLowerCase() as 'post', path, body);
       expect({ who, status: res.status }).toEqual({ who, status: row.expect[who] });
       if (res.status === 401 || res.status === 403) {
         expect(res.headers['content-type']).toMatch(/json/);

@@ -61,6 +61,13 @@ export class Client {
     const req = this.agent[method](path).set('x-csrf-token', this.token);
     return body === undefined ? req : req.send(body as object);
   }
+  /** A multipart upload (field "file", plus form fields) with the CSRF token. */
+  async upload(path: string, file: { name: string; content: string | Buffer }, fields: Record<string, string> = {}) {
+    await this.csrf();
+    let req = this.agent.post(path).set('x-csrf-token', this.token);
+    for (const [k, v] of Object.entries(fields)) req = req.field(k, v);
+    return req.attach('file', Buffer.isBuffer(file.content) ? file.content : Buffer.from(file.content), file.name);
+  }
   async signIn(email: string, password = PASSWORD) {
     return this.send('post', '/api/auth/sign-in', { email, password });
   }
@@ -71,4 +78,26 @@ export async function signedIn(app: Express, email: string) {
   const res = await client.signIn(email);
   if (res.status !== 200) throw new Error(`sign-in as ${email} failed: ${res.status} ${JSON.stringify(res.body)}`);
   return client;
+}
+
+/**
+ * Everything a refused request must leave untouched: row counts of every table that requests
+ * write, and the full contents of the register and model tables.
+ */
+export async function dbSnapshot(t: TestApp): Promise<string> {
+  const { rows } = await t.database.client.query<{ snapshot: string }>(`
+    select json_build_object(
+      'effects', (select json_agg(e order by e.id) from effects e),
+      'entries', (select json_agg(json_build_object('id', n.id, 'state', n.state, 'version', n.version, 'label', n.label, 'owner', n.owner_id, 'group', n.group_id) order by n.id) from entries n),
+      'templates', (select json_agg(t order by t.id) from templates t),
+      'regions', (select json_agg(r order by r.id) from regions r),
+      'processes', (select json_agg(p order by p.id) from processes p),
+      'groups', (select json_agg(g order by g.id) from groups g),
+      'uploads', (select count(*) from uploads),
+      'revisions', (select count(*) from revisions),
+      'memberships', (select count(*) from memberships),
+      'users', (select count(*) from users),
+      'analyses', (select count(*) from analyses)
+    )::text as snapshot`);
+  return rows[0].snapshot;
 }

@@ -1,0 +1,168 @@
+import { desc } from 'drizzle-orm';
+import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { outbox } from '../../server/db/schema';
+import { createTestApp, dbSnapshot, DEMO, signedIn, type Client, type TestApp } from './helpers';
+
+const A = '/api/analyses/vireon-search';
+
+describe('register entries and their review', () => {
+  let t: TestApp;
+  let analyst: Client;
+  let contact: Client;
+  let convener: Client;
+  let reader: Client;
+  let juno: number;
+  /** mail sent since the last call, as (recipient, subject) pairs */
+  let seen = 0;
+  async function mail() {
+    await t.mailer.idle();
+    const rows = await t.database.db.select().from(outbox).orderBy(desc(outbox.id));
+    const fresh = rows.filter((r) => r.id > seen);
+    seen = Math.max(seen, ...rows.map((r) => r.id));
+    return fresh.map((r) => ({ to: r.to, subject: r.subject, body: r.body, delivered: r.delivered }));
+  }
+
+  beforeAll(async () => {
+    t = await createTestApp();
+    [analyst, contact, convener, reader] = await Promise.all([DEMO.analyst, DEMO.contact, DEMO.convener, DEMO.reader].map((e) => signedIn(t.app, e)));
+    juno = (await contact.get('/api/auth/me')).body.user.id;
+  });
+  beforeEach(async () => {
+    await mail();
+  });
+  afterAll(async () => t.close());
+
+  it('lets an analyst create an entry with an owner and a new group; it starts as a draft with a revision', async () => {
+    const res = await analyst.send('post', `${A}/entries`, {
+      key: 'flare_timing',
+      label: 'Flare timing calibration',
+      group: 'timing',
+      ownerId: juno,
+      description: 'Offset of the flare arrival time.',
+      justification: 'Timing scan of 2026.',
+      references: ['https://notes.lantern.example/ltn/2001'],
+    });
+    expect(res.status).toBe(201);
+    expect(res.body).toMatchObject({ key: 'flare_timing', state: 'draft', group: 'timing', owner: { email: DEMO.contact }, version: 1, effects: [] });
+    expect(res.body.revisions).toEqual([expect.objectContaining({ action: 'created', author: expect.objectContaining({ name: 'Otto Brannholm' }) })]);
+    expect(res.body.can).toMatchObject({ edit: true, upload: true, submit: true, accept: false });
+  });
+
+  it('refuses a duplicate key and an owner who is not a member, writing nothing', async () => {
+    const before = await dbSnapshot(t);
+    const dup = await analyst.send('post', `${A}/entries`, { key: 'lumi', label: 'Again' });
+    expect(dup.status).toBe(409);
+    expect(dup.body.error.message).toMatch(/already has an entry with the key "lumi"/);
+    const admin = (await (await signedIn(t.app, DEMO.admin)).get('/api/auth/me')).body.user.id;
+    const stranger = await analyst.send('post', `${A}/entries`, { key: 'new_one', label: 'New', ownerId: admin });
+    expect(stranger.status).toBe(422);
+    expect(stranger.body.error.issues[0].path).toEqual(['ownerId']);
+    expect(await dbSnapshot(t)).toBe(before);
+  });
+
+  it('shows each role what it may do with an entry', async () => {
+    const can = async (c: Client, key: string) => (await c.get(`${A}/entries/${key}`)).body.can;
+    expect(await can(contact, 'flare_escale')).toMatchObject({ edit: true, upload: true, reassign: false, accept: false });
+    expect(await can(contact, 'cascade_fake')).toMatchObject({ edit: false, upload: false });
+    expect(await can(convener, 'flare_iso')).toMatchObject({ edit: false, accept: true, sendBack: true, retire: true });
+    expect(await can(reader, 'flare_escale')).toEqual({ edit: false, upload: false, submit: false, accept: false, sendBack: false, retire: false, reopen: false, reassign: false });
+  });
+
+  it('lets the owner edit metadata but not reassign the entry or edit another contact\u2019s entry', async () => {
+    const entry = (await contact.get(`${A}/entries/flare_timing`)).body;
+    const ok = await contact.send('patch', `${A}/entries/flare_timing`, { justification: 'Timing scan of 2026, version 2.', version: entry.version });
+    expect(ok.status).toBe(200);
+    expect(ok.body.revisions[0]).toMatchObject({ action: 'edited', summary: 'Changed justification.', author: { name: 'Juno Feldspire' } });
+    expect(ok.body.revisions[0].before.justification).toBe('Timing scan of 2026.');
+    const reassign = await contact.send('patch', `${A}/entries/flare_timing`, { ownerId: null, version: ok.body.version });
+    expect(reassign.status).toBe(403);
+    const foreign = await contact.send('patch', `${A}/entries/cascade_fake`, { label: 'Mine now', version: 1 });
+    expect(foreign.status).toBe(403);
+  });
+
+  it('refuses an edit made from a stale version, naming both versions', async () => {
+    const before = await dbSnapshot(t);
+    const res = await analyst.send('patch', `${A}/entries/flare_timing`, { label: 'Stale', version: 1 });
+    expect(res.status).toBe(409);
+    expect(res.body.error.message).toMatch(/Someone else changed "flare_timing".*version 2, yours 1/);
+    expect(await dbSnapshot(t)).toBe(before);
+  });
+
+  it('walks the review: submit e-mails the conveners, send back needs a comment and e-mails the owner, accept e-mails the owner', async () => {
+    const submitted = await contact.send('post', `${A}/entries/flare_timing/review`, { action: 'submit' });
+    expect(submitted.status).toBe(200);
+    expect(submitted.body.state).toBe('submitted');
+    expect(await mail()).toEqual([{ to: DEMO.convener, subject: '[vireon-search] flare_timing awaits review', body: expect.stringContaining('/a/vireon-search/entries/flare_timing'), delivered: true }]);
+
+    const noComment = await convener.send('post', `${A}/entries/flare_timing/review`, { action: 'send_back' });
+    expect(noComment.status).toBe(400);
+    expect(noComment.body.error.message).toMatch(/needs a comment/);
+
+    const back = await convener.send('post', `${A}/entries/flare_timing/review`, { action: 'send_back', comment: 'Please add the timing scan plot.' });
+    expect(back.body.state).toBe('sent_back');
+    const [sentBack] = await mail();
+    expect(sentBack).toMatchObject({ to: DEMO.contact, subject: '[vireon-search] flare_timing was sent back' });
+    expect(sentBack.body).toContain('Please add the timing scan plot.');
+
+    await contact.send('post', `${A}/entries/flare_timing/review`, { action: 'submit' });
+    await mail();
+    const accepted = await convener.send('post', `${A}/entries/flare_timing/review`, { action: 'accept' });
+    expect(accepted.body.state).toBe('accepted');
+    expect((await mail()).map((m) => [m.to, m.subject])).toEqual([[DEMO.contact, '[vireon-search] flare_timing was accepted']]);
+    expect(accepted.body.revisions.slice(0, 4).map((r: { action: string }) => r.action)).toEqual(['review.accept', 'review.submit', 'review.send_back', 'review.submit']);
+  });
+
+  it('refuses review steps out of order or by the wrong role', async () => {
+    const again = await convener.send('post', `${A}/entries/flare_timing/review`, { action: 'accept' });
+    expect(again.status).toBe(409);
+    expect(again.body.error.message).toMatch(/"flare_timing" is accepted; "accept" applies only to an entry that is submitted/);
+    const byContact = await contact.send('post', `${A}/entries/flare_iso/review`, { action: 'accept' });
+    expect(byContact.status).toBe(403);
+  });
+
+  it('returns an accepted entry to review when it is edited, and tells the conveners', async () => {
+    const entry = (await contact.get(`${A}/entries/flare_timing`)).body;
+    const res = await contact.send('patch', `${A}/entries/flare_timing`, { description: 'Offset and drift of the flare arrival time.', version: entry.version });
+    expect(res.body.state).toBe('submitted');
+    expect(res.body.revisions[0].summary).toMatch(/returns to review/);
+    expect((await mail()).map((m) => m.subject)).toEqual(['[vireon-search] flare_timing awaits review']);
+  });
+
+  it('retires and reopens an entry; a retired entry is read-only and left out of the model export', async () => {
+    expect((await analyst.send('post', `${A}/entries/flare_timing/review`, { action: 'retire' })).body.state).toBe('retired');
+    const locked = await contact.send('patch', `${A}/entries/flare_timing`, { label: 'x', version: 99 });
+    expect(locked.status).toBe(403);
+    expect(locked.body.error.message).toMatch(/retired/);
+    const exported = (await analyst.get(`${A}/exchange`)).body;
+    expect(exported.systematics.map((s: { key: string }) => s.key)).not.toContain('flare_timing');
+    expect((await analyst.send('post', `${A}/entries/flare_timing/review`, { action: 'reopen' })).body.state).toBe('draft');
+  });
+
+  it('removes an effect with a revision, and refuses a reader', async () => {
+    const entry = (await contact.get(`${A}/entries/flare_escale`)).body;
+    const target = entry.effects[0];
+    expect((await reader.send('delete', `${A}/entries/flare_escale/effects/${target.id}`)).status).toBe(403);
+    const res = await contact.send('delete', `${A}/entries/flare_escale/effects/${target.id}`);
+    expect(res.status).toBe(200);
+    expect(res.body.effects).toHaveLength(entry.effects.length - 1);
+    expect(res.body.revisions[0]).toMatchObject({ action: 'effect.removed', summary: expect.stringContaining(`region "${target.region}", process "${target.process}"`) });
+    expect(res.body.state).toBe('submitted');
+  });
+
+  it('moves entries between groups, renames and deletes groups, keeping every entry', async () => {
+    const created = await analyst.send('post', `${A}/groups`, { name: 'timing and tracking' });
+    expect(created.status).toBe(201);
+    const dup = await analyst.send('post', `${A}/groups`, { name: 'theory' });
+    expect(dup.status).toBe(409);
+    const moved = await analyst.send('put', `${A}/entries/vertex_eff/group`, { groupId: created.body.id });
+    expect(moved.body.groups.find((g: { id: number }) => g.id === created.body.id).entries).toEqual(['vertex_eff']);
+    const renamed = await analyst.send('patch', `${A}/groups/${created.body.id}`, { name: 'vertexing' });
+    expect(renamed.body.name).toBe('vertexing');
+    expect((await analyst.get(`${A}/entries/vertex_eff`)).body.revisions[0]).toMatchObject({ action: 'group.changed', summary: 'Moved from "tracking" to "timing and tracking".' });
+    expect((await analyst.send('delete', `${A}/groups/${created.body.id}`)).status).toBe(204);
+    const view = (await analyst.get(`${A}/groups`)).body;
+    expect(view.ungrouped).toContain('vertex_eff');
+    const all = [...view.ungrouped, ...view.groups.flatMap((g: { entries: string[] }) => g.entries)];
+    expect(all).toHaveLength(41);
+  });
+});
