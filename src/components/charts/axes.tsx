@@ -45,7 +45,7 @@ export function LeftAxis({ scale, x, ticks = 5, title, format }: { scale: Scale;
         </g>
       ))}
       {title && (
-        <text transform={`translate(${x - 38},${Math.min(y0, y1)}) rotate(-90)`} textAnchor="end" style={{ fontSize: 11, fill: theme.ink }}>
+        <text transform={`translate(${x - 44},${Math.min(y0, y1)}) rotate(-90)`} textAnchor="end" style={{ fontSize: 11, fill: theme.ink }}>
           {title}
         </text>
       )}

@@ -203,8 +203,8 @@ function NewGroupForm({ slug }: { slug: string }) {
     create.mutate(name.trim(), { onSuccess: () => setName('') });
   };
   return (
-    <form onSubmit={submit} aria-label="New group" className="flex flex-wrap items-end gap-2">
-      <TextField label="New group" placeholder="e.g. jets, leptons, theory" value={name} onChange={(e) => setName(e.target.value)} className="w-64" />
+    <form onSubmit={submit} aria-label="Create a group" className="flex flex-wrap items-end gap-2">
+      <TextField label="New group name" placeholder="e.g. jets, leptons, theory" value={name} onChange={(e) => setName(e.target.value)} className="w-64" />
       <Button type="submit" variant="primary" busy={create.isPending} disabled={!name.trim()}>
         Add group
       </Button>
@@ -237,7 +237,7 @@ export function GroupsBoard({ slug, view, entries, editable }: { slug: string; v
     const next = ids[Math.max(0, Math.min(ids.length - 1, at + step))];
     const rect = next ? context.droppableRects.get(next) : undefined;
     if (!rect) return currentCoordinates;
-    return { x: rect.left + 6, y: rect.top + 48 };
+    return { x: rect.left + 6, y: rect.top + 64 };
   };
 
   const sensors = useSensors(useSensor(PointerSensor, { activationConstraint: { distance: 4 } }), useSensor(KeyboardSensor, { coordinateGetter: columnJump }));

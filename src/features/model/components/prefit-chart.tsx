@@ -8,9 +8,9 @@ import { processColour, theme } from '../../../lib/palette';
 import { garwoodInterval } from '../../../lib/poisson';
 
 const W = 560;
-const M = { left: 52, right: 12, top: 10 };
+const M = { left: 60, right: 12, top: 10 };
 const MAIN_H = 190;
-const GAP = 8;
+const GAP = 16;
 const RATIO_H = 72;
 const AXIS_H = 34;
 const H = M.top + MAIN_H + GAP + RATIO_H + AXIS_H;
@@ -120,7 +120,7 @@ export function PrefitChart({ model, region }: { model: Model; region: Region })
 
   return (
     <figure className="flex flex-col gap-2">
-      <svg viewBox={`0 0 ${W} ${H}`} className="h-auto w-full max-w-[40rem]" role="img" aria-label={label}>
+      <svg viewBox={`0 0 ${W} ${H}`} className="h-auto w-full max-w-[46rem]" role="img" aria-label={label}>
         <GridLines scale={y} x0={M.left} x1={W - M.right} />
         {stacked.map((s, i) => (
           <path key={d.layers[i].key} d={layerArea(stepPoints((b) => s[b][0], (b) => s[b][1])) ?? ''} fill={d.layers[i].colour} stroke={theme.paperRaised} strokeWidth={0.6} />
@@ -134,8 +134,8 @@ export function PrefitChart({ model, region }: { model: Model; region: Region })
         />
         {withheld && (
           <g>
-            <rect x={M.left + 8} y={M.top + 6} width={196} height={22} rx={4} fill={theme.paperRaised} stroke={theme.amber} />
-            <text x={M.left + 106} y={M.top + 21} textAnchor="middle" style={{ fontSize: 11, fill: '#7c4c05', fontWeight: 600 }}>
+            <rect x={W - M.right - 204} y={M.top + 6} width={196} height={22} rx={4} fill={theme.paperRaised} stroke={theme.amber} />
+            <text x={W - M.right - 106} y={M.top + 21} textAnchor="middle" style={{ fontSize: 11, fill: '#7c4c05', fontWeight: 600 }}>
               data withheld while blinded
             </text>
           </g>
@@ -176,12 +176,12 @@ export function PrefitChart({ model, region }: { model: Model; region: Region })
           );
         })}
         {withheld && (
-          <text x={(M.left + W - M.right) / 2} y={ratioTop + RATIO_H / 2 - 6} textAnchor="middle" style={{ fontSize: 10, fill: theme.inkMuted }}>
+          <text x={(M.left + W - M.right) / 2} y={ratioTop + 12} textAnchor="middle" style={{ fontSize: 10, fill: theme.inkMuted }}>
             no ratio while the data are withheld
           </text>
         )}
         <LeftAxis scale={ry} x={M.left} ticks={3} format={(v) => v.toFixed(1)} />
-        <text transform={`translate(${M.left - 38},${ratioTop + RATIO_H}) rotate(-90)`} style={{ fontSize: 10, fill: theme.ink }}>
+        <text transform={`translate(${M.left - 44},${ratioTop + RATIO_H}) rotate(-90)`} style={{ fontSize: 10, fill: theme.ink }}>
           Obs. / exp.
         </text>
         <BottomAxis scale={x} y={ratioTop + RATIO_H} title={`${region.observable}${unit}`} format={formatEdge} />

@@ -62,7 +62,7 @@ function indexed(e: EntrySummary): string {
 function ListCell({ items, noun }: { items: string[]; noun: [string, string] }) {
   if (!items.length) return <span className="text-ink-muted">none yet</span>;
   return (
-    <span title={`Affects ${items.length} ${items.length === 1 ? noun[0] : noun[1]}: ${items.join(', ')}`} className="text-xs">
+    <span title={`Affects ${items.length} ${items.length === 1 ? noun[0] : noun[1]}: ${items.join(', ')}`} className="block max-w-[12rem] truncate text-xs">
       {items.join(', ')}
     </span>
   );
