@@ -1,11 +1,15 @@
 /**
  * Fit-engine benchmark: deterministic synthetic models (server/fit/synthetic.ts, seed 1) of four
  * sizes; per size the fit time and Newton iterations, the full-impacts wall time (every nuisance
- * parameter, post-fit, both directions, on the worker pool), the μ scan time and peak memory.
+ * parameter, post-fit, both directions, on the worker pool) with the mean work per refit, the μ
+ * scan time, everything end to end (with the time per stage) and peak memory. With --repeat N
+ * the fit, impacts and scan are timed N times: best and median are printed. The load average is
+ * printed before and after, since the machine may be shared.
  * Targets on a 2-core machine: large fit < 0.5 s, large full impacts < 5 s, peak RSS < 500 MB.
  *
- *   npm run bench:fit [-- --sizes tiny,small --threads 2]
+ *   npm run bench:fit [-- --sizes tiny,small --threads 2 --repeat 3]
  */
+import { readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
 import { createFitPool, fitModel, syntheticModel, type SyntheticSize } from '../server/fit';
 import { curvatureAt } from '../server/fit/covariance';
@@ -15,12 +19,27 @@ import { runJobs } from '../server/fit/pool';
 import { scanJobs } from '../server/fit/scan';
 import type { Job } from '../server/fit/jobs';
 
-const { values } = parseArgs({ options: { sizes: { type: 'string', default: 'tiny,small,medium,large' }, threads: { type: 'string' } } });
+const { values } = parseArgs({ options: { sizes: { type: 'string', default: 'tiny,small,medium,large' }, threads: { type: 'string' }, repeat: { type: 'string', default: '1' } } });
 const sizes = values.sizes!.split(',') as SyntheticSize[];
+const repeat = Math.max(1, Number(values.repeat));
+const loadAverage = () => {
+  try {
+    return readFileSync('/proc/loadavg', 'utf8').split(' ').slice(0, 3).join(' ');
+  } catch {
+    return 'n/a';
+  }
+};
+console.log(`load average before: ${loadAverage()}`);
+/** "best / median" of a list of seconds. */
+const bestMedian = (xs: number[]) => {
+  const sorted = [...xs].sort((a, b) => a - b);
+  const median = sorted[Math.floor((sorted.length - 1) / 2)];
+  return xs.length === 1 ? sorted[0].toFixed(3) : `${sorted[0].toFixed(3)} / ${median.toFixed(3)}`;
+};
 const pool = createFitPool(values.threads ? { threads: Number(values.threads) } : {});
 let peakRss = process.memoryUsage().rss;
 const sampler = setInterval(() => (peakRss = Math.max(peakRss, process.memoryUsage().rss)), 20);
-const seconds = (t: number) => ((performance.now() - t) / 1000).toFixed(3);
+const elapsed = (t: number) => (performance.now() - t) / 1000;
 
 const rows: Record<string, string | number>[] = [];
 for (const size of sizes) {
@@ -29,20 +48,20 @@ for (const size of sizes) {
   const problem = buildProblem(model, base);
   const m = problem.model;
 
-  // The fit alone: Newton from the start values plus the covariance at the minimum (twice: the
-  // first run includes the JIT warming up; the second is what a server in steady state sees).
-  let fitTime = '';
-  let coldTime = '';
+  // The fit alone: Newton from the start values plus the covariance at the minimum (the first
+  // run includes the JIT warming up; the others are what a server in steady state sees).
+  const fitTimes: number[] = [];
+  let coldTime = 0;
   let iterations = 0;
   let context = null;
-  for (let rep = 0; rep < 2; rep++) {
+  for (let rep = 0; rep <= repeat; rep++) {
     const t = performance.now();
     const scratch = createScratch(problem);
     const s0 = startPoint(m);
     const r = minimise(problem, s0.phi, s0.gamma, scratch);
     const c = curvatureAt(problem, r.phi, r.gamma, scratch);
-    if (rep === 0) coldTime = seconds(t);
-    else fitTime = seconds(t);
+    if (rep === 0) coldTime = elapsed(t);
+    else fitTimes.push(elapsed(t));
     iterations = r.iterations;
     if (!c.ok) throw new Error(`${size}: ${c.message}`);
     context = c.context;
@@ -56,41 +75,67 @@ for (const size of sizes) {
     const sigma = Math.sqrt(ctx.V[i * m.nDense + i]);
     for (const sgn of [1, -1]) jobs.push({ kind: 'fix', context: 0, index: i, value: Math.min(5, Math.max(-5, ctx.phi[i] + sgn * sigma)) });
   }
-  let t = performance.now();
-  const impacts = await runJobs([ctx], jobs, { pool });
-  const impactTime = jobs.length ? seconds(t) : '-';
+  const impactTimes: number[] = [];
+  const scanTimes: number[] = [];
+  let impacts: Awaited<ReturnType<typeof runJobs>> = [];
+  for (let rep = 0; rep < repeat; rep++) {
+    let t = performance.now();
+    impacts = await runJobs([ctx], jobs, { pool });
+    impactTimes.push(elapsed(t));
+    // μ scan: 21 points and the four crossings, on the pool.
+    t = performance.now();
+    const scan = scanJobs(ctx, 0, 0, 21);
+    await runJobs([ctx], scan.jobs, { pool });
+    scanTimes.push(elapsed(t));
+  }
   const failedImpacts = impacts.filter((r) => !r.ok).length;
+  const mean = (f: (w: NonNullable<(typeof impacts)[number]['work']>) => number) =>
+    impacts.length ? (impacts.reduce((acc, r) => acc + (r.work ? f(r.work) : 0), 0) / impacts.length).toFixed(2) : '-';
 
-  // μ scan: 21 points and the four crossings, on the pool.
-  t = performance.now();
-  const scan = scanJobs(ctx, 0, 0, 21);
-  await runJobs([ctx], scan.jobs, { pool });
-  const scanTime = seconds(t);
-
-  // Everything the API computes by default plus full impacts, scan and limit, end to end.
-  t = performance.now();
-  const full = await fitModel(model, { impacts: 'full', scan: true, limit: true }, { pool });
-  const endToEnd = seconds(t);
+  // Everything the API computes by default plus full impacts, scan and limit, end to end, with
+  // the time of each stage (fit, covariance, the Asimov fits, the refits, the tables after them).
+  let t = performance.now();
+  const stages: Record<string, number> = {};
+  let stage = 'fit';
+  let stageStart = t;
+  const full = await fitModel(model, { impacts: 'full', scan: true, limit: true }, {
+    pool,
+    onProgress: (_, next) => {
+      if (next === stage) return;
+      stages[stage] = (stages[stage] ?? 0) + elapsed(stageStart);
+      stage = next;
+      stageStart = performance.now();
+    },
+  });
+  const endToEnd = elapsed(t);
+  const stageText = Object.entries(stages)
+    .map(([k, v]) => `${k} ${v.toFixed(2)}`)
+    .join(', ');
 
   peakRss = Math.max(peakRss, process.memoryUsage().rss);
   rows.push({
     size,
     bins: m.nBins,
     parameters: `${m.nDense}+${m.nGamma}γ`,
-    'fit s': fitTime,
-    'fit cold s': coldTime,
+    'fit s': bestMedian(fitTimes),
+    'fit cold s': coldTime.toFixed(3),
     iterations,
     refits: jobs.length,
-    'impacts s': impactTime,
+    'impacts s': jobs.length ? bestMedian(impactTimes) : '-',
+    'steps/refit': mean((w) => w.steps + w.normalisationSteps),
+    'gradients/refit': mean((w) => w.gradients),
+    'Newton fall-backs': impacts.filter((r) => r.work?.refreshed).length,
     'failed refits': failedImpacts,
-    'scan s': scanTime,
-    'all outputs s': endToEnd,
+    'scan s': bestMedian(scanTimes),
+    'all outputs s': endToEnd.toFixed(3),
     status: full.status,
     'peak RSS MB': (peakRss / 2 ** 20).toFixed(0),
   });
+  console.log(`${size}: all outputs by stage (s): ${stageText}`);
   console.log(rows.at(-1));
 }
 clearInterval(sampler);
 await pool.destroy();
 console.table(rows);
-console.log(`threads: ${pool.threads}; peak RSS of this process: ${(peakRss / 2 ** 20).toFixed(0)} MB (worker threads share it)`);
+console.log(`load average after: ${loadAverage()}`);
+console.log(`threads: ${pool.threads}; times are best / median of ${repeat} (one run: that run); peak RSS of this process: ${(peakRss / 2 ** 20).toFixed(0)} MB (worker threads share it)`);

@@ -1,5 +1,6 @@
 import type { FitContext } from './covariance';
-import { computeDerivatives } from './derivatives';
+import { cholesky, choleskySolve } from './cholesky';
+import { computeDerivatives, normalisationHessian } from './derivatives';
 import { profileGammas } from './gamma-profile';
 import { constraintSum, poissonSum } from './likelihood';
 import { minimise, type Scratch } from './minimiser';
@@ -11,6 +12,14 @@ import { minimise, type Scratch } from './minimiser';
  *  - Start from the linear response φ = φ̂ + V[:,i] Δ / V_ii, the exact minimiser of the
  *    quadratic model with φ_i = φ̂_i + Δ (or the same step from a nearby conditional minimum
  *    when a root search moves the fixed value a little).
+ *  - Settle the unconstrained normalisations (μ, k) first, by Newton on their own small block
+ *    of the Hessian at the current point. A yield is k·exp(Σ I(θ)): when θ_i moves, the k that
+ *    keeps the well-measured yields in place follows a curve, not the straight line of the
+ *    linear response. Off that curve the gradient points across a narrow valley whose walls
+ *    have turned with the move; stepping with the minimum's Hessian then throws the weakly
+ *    constrained directions far off (steps cut to 1/64 by the line search, ≈ 15–25 steps in
+ *    all). Putting k back on the curve removes that stiff residual at the cost of a few
+ *    O(bins × samples) evaluations.
  *  - Step with the already factorised Hessian: with φ_i removed, the inverse Hessian is
  *    V − V[:,i] V[i,:] / V_ii; each step costs one gradient (∇F = ∂NLL/∂φ at γ̂(φ)) and a
  *    matrix-vector product. The inverse is refined by BFGS updates from the steps taken
@@ -26,6 +35,9 @@ export interface ConditionalResult {
   gamma: Float64Array;
   /** Quasi-Newton steps taken with the minimum's Hessian, and whether a fresh Hessian was needed. */
   chordSteps: number;
+  /** Newton steps on the normalisations, and gradient evaluations in all. */
+  normalisationSteps: number;
+  gradients: number;
   refreshed: boolean;
   message: string | null;
 }
@@ -56,12 +68,14 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
   for (let a = 0; a < n; a++) phi[idx[a]] += (V[idx[a] * P + index] * delta) / Vii;
   phi[index] = value;
 
+  let normalisationSteps = 0;
+  let gradients = 0;
   const fallback = (steps: number): ConditionalResult => {
     for (let i = 0; i < P; i++) phi[i] = Math.min(m.upper[i], Math.max(m.lower[i], phi[i]));
     phi[index] = value;
     const r = minimise(conditional, phi, gamma, scratch, { tolerance });
     const ok = r.status === 'converged' || r.status === 'edge';
-    return { ok, nll: r.nll, phi: r.phi, gamma: r.gamma, chordSteps: steps, refreshed: true, message: ok ? null : r.message };
+    return { ok, nll: r.nll, phi: r.phi, gamma: r.gamma, chordSteps: steps, normalisationSteps, gradients: gradients + r.iterations + 1, refreshed: true, message: ok ? null : r.message };
   };
   if (outOfBounds(conditional, phi)) return fallback(0);
 
@@ -70,36 +84,118 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
     profileGammas(m, problem.data, problem.gammaHeld, p, g, ws);
     return poissonSum(m, problem.data, ws) + constraintSum(m, p, g, problem.gammaHeld);
   };
-  const gradient = (p: Float64Array, g: Float64Array, out: Float64Array) => {
+  const gradient = (p: Float64Array, g: Float64Array, out: Float64Array | null) => {
+    gradients++;
     computeDerivatives(m, problem.data, p, g, ctx.eliminate, ws, d, false);
-    for (let a = 0; a < n; a++) out[a] = d.g[idx[a]];
+    if (out) for (let a = 0; a < n; a++) out[a] = d.g[idx[a]];
   };
 
   let F = profiled(phi, gamma);
   if (!Number.isFinite(F)) return fallback(0);
-  // Inverse Hessian with φ_i removed: V − V[:,i] V[i,:] / V_ii.
-  const Hinv = new Float64Array(n * n);
-  for (let a = 0; a < n; a++) {
-    const va = V[idx[a] * P + index] / Vii;
-    for (let b = 0; b < n; b++) Hinv[a * n + b] = V[idx[a] * P + idx[b]] - va * V[index * P + idx[b]];
+
+  // Newton on the free normalisations alone (see above).
+  let gradientIsCurrent = false;
+  const norms = Int32Array.from([...idx].filter((p) => p < m.thetaStart));
+  const q = norms.length;
+  if (q > 0) {
+    const Hq = new Float64Array(q * q);
+    const gq = new Float64Array(q);
+    const rq = new Float64Array(q);
+    const dq = new Float64Array(q);
+    for (let it = 0; it < 8; it++) {
+      gradient(phi, gamma, null);
+      gradientIsCurrent = true;
+      normalisationHessian(m, gamma, ctx.eliminate, ws, d, norms, Hq, gq, rq);
+      const { L, failedAt } = cholesky(Hq, q);
+      if (failedAt >= 0) break;
+      for (let a = 0; a < q; a++) dq[a] = -d.g[norms[a]];
+      choleskySolve(L, q, dq);
+      let decq = 0;
+      for (let a = 0; a < q; a++) decq -= 0.5 * d.g[norms[a]] * dq[a];
+      if (!(decq > tolerance)) break;
+      let alpha = 1;
+      let accepted = false;
+      for (let ls = 0; ls < 10; ls++) {
+        trialPhi.set(phi);
+        for (let a = 0; a < q; a++) trialPhi[norms[a]] += alpha * dq[a];
+        if (!outOfBounds(conditional, trialPhi)) {
+          trialGamma.set(gamma);
+          const Ft = profiled(trialPhi, trialGamma);
+          if (Number.isFinite(Ft) && Ft <= F - 2e-4 * alpha * decq + 1e-12 * (1 + Math.abs(F))) {
+            accepted = true;
+            F = Ft;
+            break;
+          }
+        }
+        alpha *= 0.5;
+      }
+      if (!accepted) {
+        profiled(phi, gamma); // the yields of the current point, for the gradient below
+        gradientIsCurrent = false;
+        break;
+      }
+      phi.set(trialPhi);
+      gamma.set(trialGamma);
+      gradientIsCurrent = false;
+      normalisationSteps++;
+      // Newton converges quadratically here: after a step with a small decrement the next one
+      // would be far below the tolerance, so the quasi-Newton loop takes over.
+      if (decq < 1e-4) break;
+    }
   }
+  // Inverse Hessian: H₀ = V − V[:,i] V[i,:] / V_ii over the free set (φ_i removed), refined
+  // by BFGS from the steps taken, applied in product form (the two-loop recursion keeping every
+  // pair, which is the same matrix as the dense update): one n² product with V per step
+  // instead of building and updating an n × n inverse.
+  const vi = new Float64Array(n);
+  for (let a = 0; a < n; a++) vi[a] = V[idx[a] * P + index] / Vii;
+  const applyH0 = (x: Float64Array, out: Float64Array) => {
+    let vx = 0;
+    for (let a = 0; a < n; a++) vx += V[index * P + idx[a]] * x[a];
+    for (let a = 0; a < n; a++) {
+      const row = idx[a] * P;
+      let acc = 0;
+      for (let b = 0; b < n; b++) acc += V[row + idx[b]] * x[b];
+      out[a] = acc - vi[a] * vx;
+    }
+  };
+  const pairs: { s: Float64Array; y: Float64Array; rho: number }[] = [];
+  const coef = new Float64Array(MAX_STEPS + 1);
+  const qv = new Float64Array(n);
+  const applyHinv = (x: Float64Array, out: Float64Array) => {
+    qv.set(x);
+    for (let k = pairs.length - 1; k >= 0; k--) {
+      const { s: sk, y: yk, rho } = pairs[k];
+      let a = 0;
+      for (let t = 0; t < n; t++) a += sk[t] * qv[t];
+      a *= rho;
+      coef[k] = a;
+      for (let t = 0; t < n; t++) qv[t] -= a * yk[t];
+    }
+    applyH0(qv, out);
+    for (let k = 0; k < pairs.length; k++) {
+      const { s: sk, y: yk, rho } = pairs[k];
+      let b = 0;
+      for (let t = 0; t < n; t++) b += yk[t] * out[t];
+      b *= rho;
+      for (let t = 0; t < n; t++) out[t] += (coef[k] - b) * sk[t];
+    }
+  };
   let g = new Float64Array(n);
   let gNew = new Float64Array(n);
   const step = new Float64Array(n);
-  const Hy = new Float64Array(n);
-  gradient(phi, gamma, g);
+  if (gradientIsCurrent) for (let a = 0; a < n; a++) g[a] = d.g[idx[a]];
+  else gradient(phi, gamma, g);
 
   for (let it = 0; ; it++) {
+    applyHinv(g, step);
     let dec = 0;
     for (let a = 0; a < n; a++) {
-      let acc = 0;
-      const row = a * n;
-      for (let b = 0; b < n; b++) acc += Hinv[row + b] * g[b];
-      step[a] = -acc;
-      dec += g[a] * acc;
+      dec += g[a] * step[a];
+      step[a] = -step[a];
     }
     dec *= 0.5;
-    if (dec < tolerance) return { ok: true, nll: F, phi, gamma, chordSteps: it, refreshed: false, message: null };
+    if (dec < tolerance) return { ok: true, nll: F, phi, gamma, chordSteps: it, normalisationSteps, gradients, refreshed: false, message: null };
     if (it >= MAX_STEPS || !(dec >= 0)) return fallback(it);
 
     // Backtracking on F along the step.
@@ -126,29 +222,16 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
     gamma.set(trialGamma);
     gradient(phi, gamma, gNew);
 
-    // BFGS update of the inverse Hessian with s = α·step, y = ∇F_new − ∇F.
+    // BFGS pair s = α·step, y = ∇F_new − ∇F, kept when the curvature sᵀy is positive.
+    const sk = new Float64Array(n);
+    const yk = new Float64Array(n);
     let sy = 0;
-    for (let a = 0; a < n; a++) sy += alpha * step[a] * (gNew[a] - g[a]);
-    if (sy > 0) {
-      const rho = 1 / sy;
-      let yHy = 0;
-      for (let a = 0; a < n; a++) {
-        let acc = 0;
-        const row = a * n;
-        for (let b = 0; b < n; b++) acc += Hinv[row + b] * (gNew[b] - g[b]);
-        Hy[a] = acc;
-        yHy += (gNew[a] - g[a]) * acc;
-      }
-      const coef = rho * rho * yHy + rho;
-      for (let a = 0; a < n; a++) {
-        const sa = alpha * step[a];
-        const row = a * n;
-        for (let b = 0; b < n; b++) {
-          const sb = alpha * step[b];
-          Hinv[row + b] += coef * sa * sb - rho * (Hy[a] * sb + sa * Hy[b]);
-        }
-      }
+    for (let a = 0; a < n; a++) {
+      sk[a] = alpha * step[a];
+      yk[a] = gNew[a] - g[a];
+      sy += sk[a] * yk[a];
     }
+    if (sy > 0) pairs.push({ s: sk, y: yk, rho: 1 / sy });
     [g, gNew] = [gNew, g];
   }
 }

@@ -11,6 +11,8 @@ import type { Scratch } from './minimiser';
  * the fit context that impacts, scans and limits share, serially or on worker threads.
  */
 export interface FitContext {
+  /** Unique per context, so a worker can recognise one it has already prepared. */
+  key: string;
   problem: FitProblem;
   phi: Float64Array;
   gamma: Float64Array;
@@ -30,6 +32,8 @@ export interface FitContext {
   /** V h_g per γ (see covarianceTimesCoupling), filled on first use; not sent to workers. */
   VBt?: Float64Array;
 }
+
+let contextCount = 0;
 
 export type CurvatureOutcome =
   | { ok: true; context: FitContext; conditionNumber: number }
@@ -85,6 +89,7 @@ export function curvatureAt(problem: FitProblem, phi: Float64Array, gamma: Float
     }
   }
   const context: FitContext = {
+    key: `${process.pid}-${++contextCount}-${Math.random().toString(36).slice(2)}`,
     problem,
     phi: Float64Array.from(phi),
     gamma: Float64Array.from(gamma),

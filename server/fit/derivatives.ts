@@ -94,6 +94,7 @@ interface Basis {
   sampleMuLocal: Int32Array;
   sampleKLocal: Int32Array;
   // Scratch sized for the largest region.
+  normPos: Int32Array;
   y: Float64Array;
   z: Float64Array;
   eta: Float64Array;
@@ -151,6 +152,7 @@ function createBasis(m: CompiledModel): Basis {
     scaleLocal,
     sampleMuLocal,
     sampleKLocal,
+    normPos: new Int32Array(m.thetaStart),
     y: new Float64Array(maxCols),
     z: new Float64Array(maxCols),
     eta: new Float64Array(maxCols),
@@ -237,17 +239,18 @@ export function computeDerivatives(
       const u1 = ws.shapeCoef[4 * e + 2];
       const u2 = ws.shapeCoef[4 * e + 3];
       const off = m.shapeOffset[e];
-      let sa = 0;
-      let sa2 = 0;
+      const shapeHd = m.shapeHd;
+      const shapeHs = m.shapeHs;
+      // Σ ω ∂A/∂θ = Σ ω hd + u' Σ ω hs and Σ ω ∂²A/∂θ² = u'' Σ ω hs (ω = 0 on clipped bins).
+      let shd = 0;
+      let shs = 0;
       for (let j = 0; j < nb; j++) {
         const om = omega[j];
-        if (om === 0) continue;
-        const hs = m.shapeHs[off + j];
-        sa += om * (m.shapeHd[off + j] + u1 * hs);
-        sa2 += om * u2 * hs;
+        shd += om * shapeHd[off + j];
+        shs += om * shapeHs[off + j];
       }
-      a[p] += sa;
-      a2[p] += sa2;
+      a[p] += shd + u1 * shs;
+      a2[p] += u2 * shs;
     }
     for (let e = m.scalePtr[s]; e < m.scalePtr[s + 1]; e++) {
       ell[m.scaleParam[e]] += ws.scaleD1[e];
@@ -561,6 +564,75 @@ export function binGradient(
       const p = m.scaleParam[e];
       gb[p] += gam * x;
       if (r) r[p] += x;
+    }
+  }
+}
+
+/**
+ * The γ-reduced Hessian restricted to a few of the unconstrained parameters μ and k (`list`,
+ * dense indices below thetaStart), written into Hq (q × q, row-major). It needs only the
+ * per-bin weights a gradient evaluation leaves in `d`. μ and k enter each yield linearly, so
+ * ∂²ν/∂μ² = ∂²ν/∂k² = 0 and ∂²ν/∂μ∂k = E A⁺ γ for a signal template that floats; the rest is
+ * Σ_b [α_b ∂_pν_b ∂_qν_b − h_bp h_bq / D_b] as in the full Hessian, at O(bins × samples).
+ */
+export function normalisationHessian(
+  m: CompiledModel,
+  gamma: Float64Array,
+  eliminate: Uint8Array,
+  ws: Workspace,
+  d: Derivatives,
+  list: Int32Array,
+  Hq: Float64Array,
+  gq: Float64Array,
+  rq: Float64Array,
+): void {
+  const q = list.length;
+  Hq.fill(0, 0, q * q);
+  const { w, alpha, dNuDGamma } = d;
+  // Position of each dense index in list (−1 when not in it), for μ and the k.
+  const pos = d.basis.normPos;
+  pos.fill(-1);
+  for (let a = 0; a < q; a++) pos[list[a]] = a;
+  for (const region of m.regions) {
+    if (!region.inFit) continue;
+    for (let j = 0; j < region.nBins; j++) {
+      const b = region.firstBin + j;
+      const gi = m.binGamma[b];
+      const elim = gi >= 0 && eliminate[gi] === 1;
+      gq.fill(0, 0, q);
+      rq.fill(0, 0, q);
+      for (const s of region.samples) {
+        const sb = m.sampleBinStart[s] + j;
+        const A = ws.A[sb];
+        if (A <= 0) continue;
+        const carries = gi >= 0 && m.carriesVariance[sb] === 1;
+        const gam = carries ? gamma[gi] : 1;
+        const Q = ws.E[s] * A;
+        const pm = m.sampleSignal[s] ? pos[0] : -1;
+        const pk = m.sampleNorm[s] >= 0 ? pos[m.sampleNorm[s]] : -1;
+        if (pm >= 0) {
+          gq[pm] += gam * ws.cMu[s] * Q;
+          if (carries) rq[pm] += ws.cMu[s] * Q;
+        }
+        if (pk >= 0) {
+          gq[pk] += gam * ws.cK[s] * Q;
+          if (carries) rq[pk] += ws.cK[s] * Q;
+        }
+        if (pm >= 0 && pk >= 0) {
+          const x = w[b] * gam * Q;
+          Hq[pm * q + pk] += x;
+          Hq[pk * q + pm] += x;
+        }
+      }
+      const al = alpha[b];
+      for (let a = 0; a < q; a++) for (let c = 0; c < q; c++) Hq[a * q + c] += al * gq[a] * gq[c];
+      if (elim) {
+        const s2 = m.gammaSigma[gi] * m.gammaSigma[gi];
+        const dg = dNuDGamma[b];
+        const invD = 1 / (al * dg * dg + 1 / s2);
+        for (let a = 0; a < q; a++) rq[a] = al * dg * gq[a] + w[b] * rq[a];
+        for (let a = 0; a < q; a++) for (let c = 0; c < q; c++) Hq[a * q + c] -= rq[a] * rq[c] * invD;
+      }
     }
   }
 }

@@ -24,16 +24,22 @@ export interface JobResult {
   nll: number | null;
   mu: number | null;
   message: string | null;
+  /** Work done by a 'fix' refit: quasi-Newton steps, normalisation steps, gradients, Newton fall-back. */
+  work?: { steps: number; normalisationSteps: number; gradients: number; refreshed: boolean };
 }
 
 export class JobRunner {
   private scratch = new Map<number, Scratch>();
-  constructor(private readonly contexts: FitContext[]) {}
+  /** `scratchOf` lets a worker keep one scratch per context across batches. */
+  constructor(
+    private readonly contexts: FitContext[],
+    private readonly scratchOf: (ctx: FitContext) => Scratch = (ctx) => createScratch(ctx.problem),
+  ) {}
 
   private scratchFor(c: number): Scratch {
     let s = this.scratch.get(c);
     if (!s) {
-      s = createScratch(this.contexts[c].problem);
+      s = this.scratchOf(this.contexts[c]);
       this.scratch.set(c, s);
     }
     return s;
@@ -63,7 +69,8 @@ export class JobRunner {
         const ctx = this.contexts[job.context];
         if (job.value === ctx.phi[job.index]) return { ok: true, value: job.value, nll: ctx.nll, mu: ctx.phi[0], message: null };
         const r = conditionalFit(ctx, job.index, job.value, this.scratchFor(job.context));
-        return r.ok ? { ok: true, value: job.value, nll: r.nll, mu: r.phi[0], message: r.message } : failed(r.message);
+        const work = { steps: r.chordSteps, normalisationSteps: r.normalisationSteps, gradients: r.gradients, refreshed: r.refreshed };
+        return r.ok ? { ok: true, value: job.value, nll: r.nll, mu: r.phi[0], message: r.message, work } : { ...failed(r.message), work };
       }
       case 'crossing':
         return this.crossing(job.context, job.index, job.level, job.direction);

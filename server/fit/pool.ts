@@ -53,9 +53,34 @@ export interface RunJobsControl {
   onProgress?: (doneFraction: number) => void;
 }
 
+const BATCHES_PER_THREAD = 12;
+
+/** A copy of the context whose typed arrays live in SharedArrayBuffers (made once per context). */
+const sharedCopies = new WeakMap<FitContext, FitContext>();
+function sharedContext(ctx: FitContext): FitContext {
+  let copy = sharedCopies.get(ctx);
+  if (!copy) {
+    copy = toShared({ ...ctx, VBt: undefined }) as FitContext;
+    sharedCopies.set(ctx, copy);
+  }
+  return copy;
+}
+
+function toShared(x: unknown): unknown {
+  if (ArrayBuffer.isView(x) && !(x instanceof DataView)) {
+    const bytes = new Uint8Array(new SharedArrayBuffer(x.byteLength));
+    bytes.set(new Uint8Array(x.buffer, x.byteOffset, x.byteLength));
+    const View = x.constructor as new (buffer: ArrayBufferLike) => ArrayBufferView;
+    return new View(bytes.buffer);
+  }
+  if (Array.isArray(x)) return x.map(toShared);
+  if (x !== null && typeof x === 'object') return Object.fromEntries(Object.entries(x).map(([k, v]) => [k, toShared(v)]));
+  return x;
+}
+
 /**
- * Runs jobs in this thread or, with a pool, in interleaved batches (about four per thread so
- * the threads stay busy and progress moves). Results come back in job order.
+ * Runs jobs in this thread or, with a pool, in interleaved batches (several per thread so the
+ * threads stay busy and progress moves). Results come back in job order.
  */
 export async function runJobs(contexts: FitContext[], jobs: Job[], control: RunJobsControl = {}): Promise<JobResult[]> {
   const { pool, signal, onProgress } = control;
@@ -77,14 +102,18 @@ export async function runJobs(contexts: FitContext[], jobs: Job[], control: RunJ
     }
     return results;
   }
-  const nBatches = Math.min(jobs.length, pool.threads * 4);
+  // Small interleaved batches keep both threads busy to the end even when a few refits need
+  // the Newton fall-back; the contexts' arrays live in shared memory, so sending them with
+  // every batch copies only their small fields, and each worker prepares a context once.
+  const nBatches = Math.min(jobs.length, pool.threads * BATCHES_PER_THREAD);
   const batches: number[][] = Array.from({ length: nBatches }, () => []);
   jobs.forEach((_, i) => batches[i % nBatches].push(i));
+  const shared = contexts.map(sharedContext);
   const results: JobResult[] = new Array(jobs.length);
   let done = 0;
   await Promise.all(
     batches.map(async (indices) => {
-      const out = await pool.runBatch({ contexts, jobs: indices.map((i) => jobs[i]) }, signal);
+      const out = await pool.runBatch({ contexts: shared, jobs: indices.map((i) => jobs[i]) }, signal);
       indices.forEach((i, k) => (results[i] = out[k]));
       done += indices.length;
       onProgress?.(done / jobs.length);

@@ -67,16 +67,20 @@ export function evaluateYields(m: CompiledModel, phi: Float64Array, gamma: Float
     // Shape effects: additive per bin.
     const nb = m.sampleNBins[s];
     const sb0 = m.sampleBinStart[s];
-    for (let j = 0; j < nb; j++) A[sb0 + j] = m.nominal[sb0 + j];
+    const nominal = m.nominal;
+    for (let j = 0; j < nb; j++) A[sb0 + j] = nominal[sb0 + j];
+    const shapeHd = m.shapeHd;
+    const shapeHs = m.shapeHs;
     for (let e = m.shapePtr[s]; e < m.shapePtr[s + 1]; e++) {
       const theta = phi[m.shapeParam[e]];
       evenPart(theta, u);
+      const u0 = u[0];
       shapeCoef[4 * e] = theta;
-      shapeCoef[4 * e + 1] = u[0];
+      shapeCoef[4 * e + 1] = u0;
       shapeCoef[4 * e + 2] = u[1];
       shapeCoef[4 * e + 3] = u[2];
       const off = m.shapeOffset[e];
-      for (let j = 0; j < nb; j++) A[sb0 + j] += theta * m.shapeHd[off + j] + u[0] * m.shapeHs[off + j];
+      for (let j = 0; j < nb; j++) A[sb0 + j] += theta * shapeHd[off + j] + u0 * shapeHs[off + j];
     }
   }
   applyGammas(m, gamma, ws, all);
