@@ -72,19 +72,21 @@ export function UploadError({ error }: { error: unknown }) {
   if (!error) return null;
   const api = isApiRequestError(error) ? error : null;
   if (!api || api.status < 400 || api.status >= 500 || api.isForbidden) return <FormError error={error} />;
+  // The message usually names every problem already; list only the issues it leaves out.
+  const extra = api.issues.filter((i) => !api.message.includes(i.message));
   return (
     <div role="alert" className="rounded-md border border-danger/30 bg-danger-soft/60 px-3 py-2 text-sm text-danger">
-      <p className="font-semibold">Nothing was saved: the file was refused.</p>
+      <p className="font-semibold">The file was refused; nothing was saved.</p>
       <p className="mt-0.5 whitespace-pre-wrap">{api.message}</p>
-      {api.issues.length > 0 && (
+      {extra.length > 0 && (
         <ul className="mt-1 list-disc pl-5 text-xs">
-          {api.issues.slice(0, 20).map((i, n) => (
+          {extra.slice(0, 20).map((i, n) => (
             <li key={n}>
               {i.path.length > 0 && <span className="font-mono">{i.path.join('.')}: </span>}
               {i.message}
             </li>
           ))}
-          {api.issues.length > 20 && <li>… and {api.issues.length - 20} more</li>}
+          {extra.length > 20 && <li>… and {extra.length - 20} more</li>}
         </ul>
       )}
     </div>

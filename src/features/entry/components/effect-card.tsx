@@ -68,8 +68,15 @@ export function EffectCard({
       </header>
       <p className="text-xs text-ink-muted" title={title}>
         {describeSize(v)}
+        {regionInfo && (
+          <>
+            {' · '}
+            {regionInfo.observable}
+            {regionInfo.unit ? ` in ${regionInfo.unit}` : ''}
+          </>
+        )}
       </p>
-      <VariationChart v={v} unit={regionInfo?.unit} observable={regionInfo?.observable} warnBins={warnBins} label={`Variation of ${title}`} />
+      <VariationChart v={v} unit={regionInfo?.unit} warnBins={warnBins} label={`Variation of ${title}`} />
       <Warnings warnings={warnings} />
       {footer}
     </article>

@@ -3,19 +3,17 @@ import type { Revision } from '@shared/schemas/register';
 import { formatDateTime } from '../../../lib/format';
 
 const ACTION_WORDS: Record<string, string> = {
-  create: 'created',
-  edit: 'edited',
-  update: 'edited',
-  upload: 'uploaded variations',
-  variations: 'uploaded variations',
-  review: 'review',
-  submit: 'submitted',
-  accept: 'accepted',
-  send_back: 'sent back',
-  retire: 'retired',
-  reopen: 'reopened',
-  group: 'moved to another group',
-  delete_effect: 'removed an effect',
+  created: 'created',
+  edited: 'edited',
+  imported: 'imported',
+  'variations.uploaded': 'variations uploaded',
+  'effect.removed': 'effect removed',
+  'group.changed': 'group changed',
+  'review.submit': 'submitted',
+  'review.accept': 'accepted',
+  'review.send_back': 'sent back',
+  'review.retire': 'retired',
+  'review.reopen': 'reopened',
 };
 
 const show = (v: unknown) => (v === undefined ? '—' : typeof v === 'string' ? v || '(empty)' : JSON.stringify(v, null, 1));
@@ -74,7 +72,7 @@ export function RevisionHistory({ revisions }: { revisions: Revision[] }) {
                 {formatDateTime(r.createdAt)}
               </time>
               <span className="text-sm font-medium">{r.author?.name ?? 'Plumbline'}</span>
-              <span className="text-xs font-semibold tracking-wide text-ink-soft uppercase">{ACTION_WORDS[r.action] ?? r.action.replace(/_/g, ' ')}</span>
+              <span className="text-xs font-semibold tracking-wide text-ink-soft uppercase">{ACTION_WORDS[r.action] ?? r.action.replace(/[._]/g, ' ')}</span>
             </div>
             <p className="text-sm text-ink-soft">{r.summary}</p>
             {hasChange && (

@@ -6,7 +6,7 @@ import { theme } from '../../../lib/palette';
 
 const W = 320;
 const H = 128;
-const M = { left: 44, right: 8, top: 8, bottom: 24 };
+const M = { left: 44, right: 16, top: 8, bottom: 20 };
 
 export type VariationShape = {
   kind: 'scale' | 'shape';
@@ -44,7 +44,7 @@ const round2 = (x: number) => Math.round(x * 100) / 100;
  * A small preview of one variation: up and down over the nominal per bin, with a line at 1.
  * Bins named by a warning are shaded amber.
  */
-export function VariationChart({ v, unit = '', observable, warnBins = [], label }: { v: VariationShape; unit?: string; observable?: string; warnBins?: number[]; label: string }) {
+export function VariationChart({ v, unit = '', warnBins = [], label }: { v: VariationShape; unit?: string; warnBins?: number[]; label: string }) {
   const bins = v.edges.length - 1;
   if (bins < 1) return null;
   const { up, down } = variationRatios(v);
@@ -69,10 +69,7 @@ export function VariationChart({ v, unit = '', observable, warnBins = [], label 
       <path d={step(up)} fill="none" stroke={theme.teal} strokeWidth={1.8} />
       <path d={step(down)} fill="none" stroke={theme.plum} strokeWidth={1.8} strokeDasharray="5 3" />
       <LeftAxis scale={y} x={M.left} ticks={4} format={(r) => r.toFixed(m < 0.05 ? 3 : 2)} />
-      <BottomAxis scale={x} y={H - M.bottom} ticks={5} format={formatEdge} />
-      <text x={W - M.right} y={H - 1} textAnchor="end" style={{ fontSize: 9, fill: theme.inkMuted }}>
-        {observable ? `${observable}${unit ? ` [${unit}]` : ''}` : unit}
-      </text>
+      <BottomAxis scale={x} y={H - M.bottom} ticks={4} format={formatEdge} />
       {Array.from({ length: bins }, (_, b) => (
         <rect key={b} x={x(v.edges[b])} y={M.top} width={Math.max(0, x(v.edges[b + 1]) - x(v.edges[b]))} height={H - M.top - M.bottom} fill="transparent">
           <title>{binTitle(v, b, up[b], down[b], unit)}</title>
