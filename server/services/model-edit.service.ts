@@ -1,5 +1,6 @@
 import { and, count, eq, max } from 'drizzle-orm';
 import type { Region, Process } from '@shared/schemas/api';
+import { processView, regionView } from './model.service';
 import {
   floatingNormInputSchema,
   modelCsvKindSchema,
@@ -19,25 +20,13 @@ import { effects, floatingNorms, processes, regions, templates } from '../db/sch
 import { conflict, notFound, unprocessable } from '../errors';
 import { numberCell, readCsv } from '../uploads/csv';
 import { readUpload } from '../uploads/upload';
-import { isWithheld, visibleObserved } from './blinding.service';
+import { isWithheld } from './blinding.service';
 
 /**
  * The analysts' model editor. Every change is refused whole when it would leave the model
  * inconsistent (templates or variations of the wrong length, effects on a removed template),
  * and every accepted change is recorded as a revision of the model.
  */
-
-const regionView = (access: Access, r: typeof regions.$inferSelect): Region => ({
-  key: r.key,
-  label: r.label,
-  role: r.role,
-  observable: r.observable,
-  unit: r.unit,
-  edges: r.edges,
-  observed: visibleObserved(access.analysis, r),
-  withheld: isWithheld(access.analysis, r),
-});
-const processView = (p: typeof processes.$inferSelect): Process => ({ key: p.key, label: p.label, kind: p.kind, colour: p.colour });
 
 const modelRevision = (db: DbOrTx, access: Access, action: string, summary: string, before?: unknown, after?: unknown) =>
   addRevision(db, { analysisId: access.analysis.id, entryId: null, authorId: access.userId, action, summary, before, after });

@@ -1,8 +1,21 @@
-import type { Model } from '@shared/schemas/api';
+import type { Model, Process, Region } from '@shared/schemas/api';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { loadModelRows } from '../db/model.repository';
+import { loadModelRows, type ModelRows } from '../db/model.repository';
 import { isWithheld, visibleObserved } from './blinding.service';
+
+/** A region as clients see it: its observed counts go through the blinding rule. */
+export const regionView = (access: Access, r: ModelRows['regions'][number]): Region => ({
+  key: r.key,
+  label: r.label,
+  role: r.role,
+  observable: r.observable,
+  unit: r.unit,
+  edges: r.edges,
+  observed: visibleObserved(access.analysis, r),
+  withheld: isWithheld(access.analysis, r),
+});
+export const processView = (p: ModelRows['processes'][number]): Process => ({ key: p.key, label: p.label, kind: p.kind, colour: p.colour });
 
 export async function getModel(ctx: AppContext, access: Access): Promise<Model> {
   const rows = await loadModelRows(ctx.db, access.analysis.id);
@@ -10,17 +23,8 @@ export async function getModel(ctx: AppContext, access: Access): Promise<Model> 
   const processKey = new Map(rows.processes.map((p) => [p.id, p.key]));
   const normKey = new Map(rows.floatingNorms.map((f) => [f.id, f.key]));
   return {
-    regions: rows.regions.map((r) => ({
-      key: r.key,
-      label: r.label,
-      role: r.role,
-      observable: r.observable,
-      unit: r.unit,
-      edges: r.edges,
-      observed: visibleObserved(access.analysis, r),
-      withheld: isWithheld(access.analysis, r),
-    })),
-    processes: rows.processes.map((p) => ({ key: p.key, label: p.label, kind: p.kind, colour: p.colour })),
+    regions: rows.regions.map((r) => regionView(access, r)),
+    processes: rows.processes.map(processView),
     floatingNorms: rows.floatingNorms.map((f) => ({ key: f.key, label: f.label, start: f.start, min: f.min, max: f.max })),
     templates: rows.templates.map((t) => ({
       region: regionKey.get(t.regionId)!,

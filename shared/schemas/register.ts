@@ -103,8 +103,8 @@ export type ReviewAction = z.input<typeof reviewActionSchema>;
 export const variationWarningSchema = z.object({ code: z.string(), message: z.string(), bins: z.array(z.number()).optional() });
 export type VariationWarningView = z.infer<typeof variationWarningSchema>;
 
-export const effectViewSchema = z.object({
-  id: z.number(),
+/** A variation as the screens draw it: with the nominal and binning it is relative to. */
+const effectShownSchema = z.object({
   region: z.string(),
   process: z.string(),
   kind: z.enum(['scale', 'shape']),
@@ -114,6 +114,10 @@ export const effectViewSchema = z.object({
   nominal: z.array(z.number()),
   edges: z.array(z.number()),
   warnings: z.array(variationWarningSchema),
+});
+
+export const effectViewSchema = effectShownSchema.extend({
+  id: z.number(),
   upload: z.object({ id: z.number(), filename: z.string(), sha256: z.string(), createdAt: z.string() }).nullable(),
 });
 export type EffectView = z.infer<typeof effectViewSchema>;
@@ -173,15 +177,7 @@ export const variationPreviewSchema = z.object({
   filename: z.string(),
   sha256: z.string(),
   effects: z.array(
-    z.object({
-      region: z.string(),
-      process: z.string(),
-      kind: z.enum(['scale', 'shape']),
-      up: z.union([z.number(), z.array(z.number())]),
-      down: z.union([z.number(), z.array(z.number())]),
-      nominal: z.array(z.number()),
-      edges: z.array(z.number()),
-      warnings: z.array(variationWarningSchema),
+    effectShownSchema.extend({
       /** what the options changed ("mirrored", "symmetrised", "converted to a scale effect") */
       transformed: z.array(z.string()),
       /** an existing effect of the same kind on this template is replaced */
