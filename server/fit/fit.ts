@@ -5,7 +5,7 @@ import { curvatureAt, gammaVariance, type FitContext } from './covariance';
 import { FitCancelledError, FitInputError, throwIfAborted } from './errors';
 import { postfitYields, prefitYields } from './expected-yields';
 import { informationBreakdown } from './information';
-import type { Job } from './jobs';
+import type { Job, JobResult } from './jobs';
 import { clippedSampleBins, createScratch, EDGE_TOLERANCE, minimise, type MinimiseResult } from './minimiser';
 import { correlationMatrix, errorOf, groupImpact, isAtBound, nuisanceTable, parameterTable, statOnlyError } from './parameters-report';
 import { runJobs, type FitPool } from './pool';
@@ -105,14 +105,16 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   const zeroAllowed = m.lower[0] <= 0 && m.upper[0] >= 0;
   const q0Job = muFree && zeroAllowed && ctx.phi[0] > 0 ? push({ kind: 'fix', context: 0, index: 0, value: 0 }) : null;
   const expectedJob = expectedCtx !== null && zeroAllowed && contexts[expectedCtx].phi[0] > 0 ? push({ kind: 'fix', context: expectedCtx, index: 0, value: 0 }) : null;
-  const impactJobs = new Map<number, { post: [number, number]; pre: [number, number] }>();
+  // One job per parameter and direction: θ̂ ± σ̂ (post-fit), then θ̂ ± 1 (pre-fit) from there.
+  const impactJobs = new Map<number, { up: number; down: number }>();
   if (options.impacts === 'full' && muFree) {
     for (let i = m.thetaStart; i < P; i++) {
       if (problem.held[i]) continue;
       const sigma = errorOf(ctx, i)!;
-      const at = (v: number) => push({ kind: 'fix', context: 0, index: i, value: Math.min(m.upper[i], Math.max(m.lower[i], v)) });
+      const clip = (v: number) => Math.min(m.upper[i], Math.max(m.lower[i], v));
       const th = ctx.phi[i];
-      impactJobs.set(i, { post: [at(th + sigma), at(th - sigma)], pre: [at(th + 1), at(th - 1)] });
+      const at = (sign: 1 | -1) => push({ kind: 'fix', context: 0, index: i, value: clip(th + sign * sigma), next: clip(th + sign) });
+      impactJobs.set(i, { up: at(1), down: at(-1) });
     }
   }
   let scanPlan: { grid: number[]; first: number } | null = null;
@@ -136,8 +138,7 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   const parameters = parameterTable(ctx);
   const nuisance = nuisanceTable(ctx, options.overConstraintThreshold);
   const muHat = ctx.phi[0];
-  const delta = (k: number, what: string): number | null => {
-    const r = results[k];
+  const delta = (r: JobResult, what: string): number | null => {
     if (!r.ok || r.mu === null) {
       warnings.push(`The refit for ${what} did not converge; its impact is left empty.`);
       return null;
@@ -146,8 +147,9 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   };
   for (const [i, plan] of impactJobs) {
     const row = nuisance[i - m.thetaStart];
-    row.postfitImpact = { up: delta(plan.post[0], `${m.names[i]} at +1σ̂`), down: delta(plan.post[1], `${m.names[i]} at −1σ̂`) };
-    row.prefitImpact = { up: delta(plan.pre[0], `${m.names[i]} at +1`), down: delta(plan.pre[1], `${m.names[i]} at −1`) };
+    const [up, down] = [results[plan.up], results[plan.down]];
+    row.postfitImpact = { up: delta(up, `${m.names[i]} at +1σ̂`), down: delta(down, `${m.names[i]} at −1σ̂`) };
+    row.prefitImpact = { up: delta(up.next!, `${m.names[i]} at +1`), down: delta(down.next!, `${m.names[i]} at −1`) };
   }
   rank(nuisance);
 

@@ -9,8 +9,12 @@ import { createScratch, type Scratch } from './minimiser';
  * depends on nothing but its context, so the serial and parallel paths give the same numbers.
  */
 export type Job =
-  /** φ_index fixed at value: returns the NLL and μ of the conditional minimum. */
-  | { kind: 'fix'; context: number; index: number; value: number }
+  /**
+   * φ_index fixed at value: returns the NLL and μ of the conditional minimum. With `next`, the
+   * same parameter is then fixed at that value too, starting from the first conditional minimum
+   * (post- and pre-fit impacts of one direction: θ̂ + σ̂ and θ̂ + 1 are close).
+   */
+  | { kind: 'fix'; context: number; index: number; value: number; next?: number }
   /** Where 2ΔNLL = level on one side of the minimum (null past the bound). */
   | { kind: 'crossing'; context: number; index: number; level: number; direction: 1 | -1 }
   /** Expected CLs limit at N σ of the background-only distribution (Asimov context). */
@@ -26,6 +30,8 @@ export interface JobResult {
   message: string | null;
   /** Work done by a 'fix' refit: quasi-Newton steps, normalisation steps, gradients, Newton fall-back. */
   work?: { steps: number; normalisationSteps: number; gradients: number; refreshed: boolean };
+  /** The result at the job's `next` value. */
+  next?: JobResult;
 }
 
 export class JobRunner {
@@ -66,11 +72,10 @@ export class JobRunner {
     this.warm.clear();
     switch (job.kind) {
       case 'fix': {
-        const ctx = this.contexts[job.context];
-        if (job.value === ctx.phi[job.index]) return { ok: true, value: job.value, nll: ctx.nll, mu: ctx.phi[0], message: null };
-        const r = conditionalFit(ctx, job.index, job.value, this.scratchFor(job.context));
-        const work = { steps: r.chordSteps, normalisationSteps: r.normalisationSteps, gradients: r.gradients, refreshed: r.refreshed };
-        return r.ok ? { ok: true, value: job.value, nll: r.nll, mu: r.phi[0], message: r.message, work } : { ...failed(r.message), work };
+        const first = this.fix(job.context, job.index, job.value, null);
+        if (job.next === undefined) return first.result;
+        const next = this.fix(job.context, job.index, job.next, first.warm);
+        return { ...first.result, next: next.result };
       }
       case 'crossing':
         return this.crossing(job.context, job.index, job.level, job.direction);
@@ -79,6 +84,16 @@ export class JobRunner {
       case 'observed-limit':
         return this.observedLimit(job.context, job.asimov, job.cl);
     }
+  }
+
+  /** One conditional fit with φ_index = value, optionally from a nearby conditional minimum. */
+  private fix(c: number, index: number, value: number, warm: WarmStart | null): { result: JobResult; warm: WarmStart | null } {
+    const ctx = this.contexts[c];
+    if (value === ctx.phi[index]) return { result: { ok: true, value, nll: ctx.nll, mu: ctx.phi[0], message: null }, warm: null };
+    const r = conditionalFit(ctx, index, value, this.scratchFor(c), 1e-9, warm);
+    const work = { steps: r.chordSteps, normalisationSteps: r.normalisationSteps, gradients: r.gradients, refreshed: r.refreshed };
+    if (!r.ok) return { result: { ...failed(r.message), work }, warm: null };
+    return { result: { ok: true, value, nll: r.nll, mu: r.phi[0], message: r.message, work }, warm: { value, phi: r.phi, gamma: r.gamma } };
   }
 
   /**
