@@ -1,4 +1,4 @@
-import { useNavigate, useParams } from 'react-router';
+import { Link, useNavigate, useParams } from 'react-router';
 import { ROLE_LABELS } from '@shared/permissions';
 import { Mark } from '../../components/layout/mark';
 import { ErrorNotice } from '../../components/ui/error-notice';
@@ -29,7 +29,12 @@ export function InvitationRoute() {
           {invitation.isPending ? (
             <Loading label="Reading the invitation…" />
           ) : invitation.isError ? (
-            <ErrorNotice error={invitation.error} />
+            <div className="flex flex-col gap-3">
+              <ErrorNotice error={invitation.error} />
+              <Link to={me.data ? '/' : '/sign-in'} className="text-sm font-medium text-teal-ink hover:underline">
+                {me.data ? 'Go to your analyses' : 'Sign in to Plumbline'}
+              </Link>
+            </div>
           ) : (
             <>
               <dl className="mb-4 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">

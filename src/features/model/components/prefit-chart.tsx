@@ -8,7 +8,7 @@ import { processColour, theme } from '../../../lib/palette';
 import { garwoodInterval } from '../../../lib/poisson';
 
 const W = 560;
-const M = { left: 60, right: 12, top: 10 };
+const M = { left: 60, right: 22, top: 10 };
 const MAIN_H = 190;
 const GAP = 16;
 const RATIO_H = 72;
