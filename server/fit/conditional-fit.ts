@@ -144,9 +144,9 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
     }
   }
   // Inverse Hessian: H₀ = V − V[:,i] V[i,:] / V_ii over the free set (φ_i removed), refined
-  // by BFGS from the steps taken, applied in product form (the two-loop recursion keeping every
-  // pair, which is the same matrix as the dense update): one n² product with V per step
-  // instead of building and updating an n × n inverse.
+  // by BFGS from the steps taken and applied in product form: the two-loop recursion (Nocedal
+  // & Wright, §7.2) keeping every pair, which is the same matrix as the dense update. One n²
+  // product with V per step instead of building and updating an n × n inverse.
   const vi = new Float64Array(n);
   for (let a = 0; a < n; a++) vi[a] = V[idx[a] * P + index] / Vii;
   const applyH0 = (x: Float64Array, out: Float64Array) => {
