@@ -104,7 +104,7 @@ export function EntryMetadata({ slug, entry, members, groups }: { slug: string; 
       {conflict && (
         <div role="alert" className="rounded-md border border-amber/40 bg-amber-soft/70 px-3 py-2 text-sm text-amber-ink">
           <p className="font-semibold">Someone else changed this entry while you were editing.</p>
-          <p>{conflict.message} The page now shows their version; make your change again on top of it.</p>
+          <p>{conflict.message} The page now shows their version.</p>
         </div>
       )}
       {notice && (

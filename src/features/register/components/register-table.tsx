@@ -204,7 +204,13 @@ function ColumnMenu({ table }: { table: Table }) {
         <legend className="sr-only">Columns shown</legend>
         {hideable.map((c) => (
           <label key={c.id} className="flex items-center gap-2 py-0.5 text-sm">
-            <input type="checkbox" className="size-4 accent-teal" checked={c.getIsVisible()} onChange={(e) => c.toggleVisibility(e.target.checked)} />
+            <input
+              type="checkbox"
+              className="size-4 accent-teal"
+              aria-label={`Show column ${COLUMN_LABELS[c.id] ?? c.id}`}
+              checked={c.getIsVisible()}
+              onChange={(e) => c.toggleVisibility(e.target.checked)}
+            />
             {COLUMN_LABELS[c.id] ?? c.id}
           </label>
         ))}
