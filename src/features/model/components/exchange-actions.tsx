@@ -14,7 +14,7 @@ export function ExportModelLink({ slug }: { slug: string }) {
 }
 
 /** Import an exchange file into an analysis that has no model yet. */
-export function ImportModel({ slug }: { slug: string }) {
+export function ImportModel({ slug, onImported }: { slug: string; onImported?: (summary: string) => void }) {
   const [file, setFile] = useState<File | null>(null);
   const imp = useImportExchange(slug);
   return (
@@ -25,7 +25,12 @@ export function ImportModel({ slug }: { slug: string }) {
       </p>
       <div className="flex flex-wrap items-end gap-3">
         <FileField label="Model file (JSON)" accept=".json,application/json" file={file} onFile={(f) => { setFile(f); imp.reset(); }} />
-        <Button variant="primary" disabled={!file} busy={imp.isPending} onClick={() => file && imp.mutate(file)}>
+        <Button
+          variant="primary"
+          disabled={!file}
+          busy={imp.isPending}
+          onClick={() => file && imp.mutate(file, { onSuccess: (r) => onImported?.(`Imported ${file.name}: ${r.regions} regions, ${r.processes} processes and ${r.entries} register entries.`) })}
+        >
           Import model file
         </Button>
       </div>

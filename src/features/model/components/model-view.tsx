@@ -133,6 +133,7 @@ function PrefitPanel({ model }: { model: Model }) {
 
 export function ModelView({ slug, model, canEdit }: { slug: string; model: Model; canEdit: boolean }) {
   const [editor, setEditor] = useState<Editor | null>(null);
+  const [imported, setImported] = useState<string | null>(null);
   const close = () => setEditor(null);
   const isEmpty = model.regions.length === 0 && model.processes.length === 0;
   const is = (e: Editor) => JSON.stringify(e) === JSON.stringify(editor);
@@ -153,9 +154,15 @@ export function ModelView({ slug, model, canEdit }: { slug: string; model: Model
     <div className="flex flex-col gap-5">
       {isEmpty && canEdit && (
         <Panel title="Start the model">
-          <ImportModel slug={slug} />
+          <ImportModel slug={slug} onImported={setImported} />
           <p className="mt-3 border-t border-rule pt-3 text-sm text-ink-soft">Or build it by hand: add regions and processes below, then their templates.</p>
         </Panel>
+      )}
+
+      {imported && !isEmpty && (
+        <p role="status" className="rounded-md border border-teal/30 bg-teal-soft/60 px-3 py-2 text-sm text-teal-ink">
+          {imported}
+        </p>
       )}
 
       {model.regions.length > 0 && model.templates.length > 0 && <PrefitPanel model={model} />}
@@ -203,8 +210,14 @@ export function ModelView({ slug, model, canEdit }: { slug: string; model: Model
                     <Fragment key={r.key}>
                       <tr>
                         <th scope="row" className={`${tdClass} text-left font-normal`}>
-                          <span className="font-medium">{r.label || r.key}</span>
-                          <span className="ml-2 font-mono text-xs text-ink-muted">{r.key}</span>
+                          {r.label ? (
+                            <>
+                              <span className="font-medium">{r.label}</span>
+                              <span className="ml-2 font-mono text-xs text-ink-muted">{r.key}</span>
+                            </>
+                          ) : (
+                            <span className="font-mono text-xs font-medium">{r.key}</span>
+                          )}
                         </th>
                         <td className={tdClass}>
                           <Badge tone={ROLE_TONE[r.role]} title={ROLE_MEANING[r.role]}>
@@ -213,7 +226,7 @@ export function ModelView({ slug, model, canEdit }: { slug: string; model: Model
                         </td>
                         <td className={`${tdClass} whitespace-nowrap`}>{r.observable}</td>
                         <td className={`${tdClass} whitespace-nowrap`}>{r.unit || <span className="text-ink-muted" title="Dimensionless observable">none</span>}</td>
-                        <td className={tdClass}>
+                        <td className={`${tdClass} min-w-48`}>
                           <Binning region={r} />
                         </td>
                         <td className={`${tdClass} text-right whitespace-nowrap tabular-nums`} title="Sum of the nominal templates of every process in this region, before the fit">
@@ -298,8 +311,8 @@ export function ModelView({ slug, model, canEdit }: { slug: string; model: Model
                         <th scope="row" className={`${tdClass} text-left font-normal`}>
                           <span className="inline-flex items-center gap-2">
                             <span aria-hidden className="inline-block size-3 rounded-sm border border-ink/15" style={{ background: processColour(i, p.colour) }} />
-                            <span className="font-medium">{p.label || p.key}</span>
-                            <span className="font-mono text-xs text-ink-muted">{p.key}</span>
+                            {p.label && <span className="font-medium">{p.label}</span>}
+                            <span className={`font-mono text-xs ${p.label ? 'text-ink-muted' : 'font-medium'}`}>{p.key}</span>
                           </span>
                         </th>
                         <td className={tdClass}>
@@ -389,8 +402,8 @@ export function ModelView({ slug, model, canEdit }: { slug: string; model: Model
                     return (
                       <tr key={f.key}>
                         <th scope="row" className={`${tdClass} text-left font-normal`}>
-                          <span className="font-medium">{f.label || f.key}</span>
-                          <span className="ml-2 font-mono text-xs text-ink-muted">{f.key}</span>
+                          {f.label && <span className="mr-2 font-medium">{f.label}</span>}
+                          <span className={`font-mono text-xs ${f.label ? 'text-ink-muted' : 'font-medium'}`}>{f.key}</span>
                         </th>
                         <td className={`${tdClass} text-right tabular-nums`} title="Factor on the nominal yield where the fit starts">
                           ×{f.start}
