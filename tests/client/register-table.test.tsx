@@ -1,5 +1,5 @@
 // @vitest-environment happy-dom
-import { afterEach, describe, expect, it } from 'vitest';
+import { afterEach, describe, expect, it, vi } from 'vitest';
 import { cleanup, render, screen, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { createMemoryRouter, RouterProvider } from 'react-router';
@@ -75,5 +75,46 @@ describe('the register table', () => {
     await user.clear(filter);
     await user.type(filter, 'nothing like this');
     expect(within(table).getByText(/No entry matches/)).toBeTruthy();
+  });
+
+  it('filters by group, owner and state with the selects, "no group" and "unassigned" included', async () => {
+    const user = userEvent.setup();
+    const table = renderTable();
+    await user.selectOptions(screen.getByLabelText('Group', { selector: 'select' }), 'calorimetry');
+    expect(keysInOrder(table)).toEqual(['flare_escale']);
+    await user.selectOptions(screen.getByLabelText('Group', { selector: 'select' }), 'Any');
+    await user.selectOptions(screen.getByLabelText('Owner', { selector: 'select' }), '(unassigned)');
+    expect(keysInOrder(table)).toEqual(['halo_veto']);
+    await user.selectOptions(screen.getByLabelText('Owner', { selector: 'select' }), 'Any');
+    await user.selectOptions(screen.getByLabelText('State', { selector: 'select' }), 'Accepted');
+    expect(keysInOrder(table)).toEqual(['lumi']);
+    expect(screen.getByText('Showing 1 of 3 entries')).toBeTruthy();
+  });
+
+  it('hides and shows columns from the column menu', async () => {
+    const user = userEvent.setup();
+    const table = renderTable();
+    expect(within(table).getByRole('columnheader', { name: /Regions/ })).toBeTruthy();
+    await user.click(screen.getByRole('checkbox', { name: 'Show column Regions' }));
+    expect(within(table).queryByRole('columnheader', { name: /Regions/ })).toBeNull();
+    expect(within(table).getAllByRole('row')[1].querySelectorAll('td')).toHaveLength(8);
+    await user.click(screen.getByRole('checkbox', { name: 'Show column Regions' }));
+    expect(within(table).getByRole('columnheader', { name: /Regions/ })).toBeTruthy();
+  });
+
+  it('lists 500 entries and filters them while typing', async () => {
+    const many = Array.from({ length: 500 }, (_, i) =>
+      entry({ key: `syst_${String(i).padStart(3, '0')}`, label: `Systematic ${i}`, group: i % 7 === 0 ? 'theory' : 'tracking', warnings: i % 5 }),
+    );
+    const router = createMemoryRouter([{ path: '/', element: <RegisterTable slug="demo" entries={many} /> }]);
+    const started = performance.now();
+    render(<RouterProvider router={router} />);
+    const table = screen.getByRole('table', { name: 'Register entries' });
+    expect(within(table).getAllByRole('row')).toHaveLength(501);
+    const user = userEvent.setup();
+    await user.type(screen.getByLabelText('Filter entries'), 'syst_49');
+    await vi.waitFor(() => expect(keysInOrder(table)).toEqual(Array.from({ length: 10 }, (_, i) => `syst_49${i}`)));
+    // generous bound for a slow shared runner; a render storm takes far longer
+    expect(performance.now() - started).toBeLessThan(15_000);
   });
 });
