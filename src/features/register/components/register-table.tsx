@@ -1,10 +1,11 @@
-import { memo, useDeferredValue, useMemo, useState, type ReactNode } from 'react';
+import { memo, startTransition, useMemo, useState, type ReactNode } from 'react';
 import { Link } from 'react-router';
 import {
   columnFilteringFeature,
   columnVisibilityFeature,
   constructFilterFn,
   createColumnHelper,
+  FlexRender,
   createFilteredRowModel,
   createSortedRowModel,
   globalFilteringFeature,
@@ -219,36 +220,54 @@ function ColumnMenu({ table }: { table: Table }) {
   );
 }
 
-/** The table body on its own: it re-renders only when the rows or the visible columns change, not on every keystroke. */
-const Body = memo(function Body({ table, rows, colSpan, emptyText }: { table: Table; rows: ReturnType<Table['getRowModel']>['rows']; colSpan: number; emptyText: string; visibility: string }) {
+type Row = ReturnType<Table['getRowModel']>['rows'][number];
+
+/**
+ * One row, re-rendered only when its entry or the visible columns change. Row objects are kept
+ * by the table across sorting and filtering, so a re-sort or a narrower filter moves rows
+ * instead of rendering them again.
+ */
+const RowView = memo(function RowView({ row }: { row: Row; entry: EntrySummary; visibility: string }) {
   return (
-    <tbody>
-      {rows.map((row) => (
-        <tr key={row.id} className="hover:bg-paper-sunk/50">
-          {row.getVisibleCells().map((cell) => (
-            <td key={cell.id} className={`${tdClass} ${NUMERIC.has(cell.column.id) ? 'text-right' : ''} ${NOWRAP.has(cell.column.id) ? 'whitespace-nowrap' : ''}`}>
-              <table.FlexRender cell={cell} />
-            </td>
-          ))}
-        </tr>
+    <tr className="hover:bg-paper-sunk/50">
+      {row.getVisibleCells().map((cell) => (
+        <td key={cell.id} className={`${tdClass} ${NUMERIC.has(cell.column.id) ? 'text-right' : ''} ${NOWRAP.has(cell.column.id) ? 'whitespace-nowrap' : ''}`}>
+          <FlexRender cell={cell} />
+        </td>
       ))}
-      {rows.length === 0 && (
-        <tr>
-          <td colSpan={colSpan} className={`${tdClass} py-6 text-center text-ink-muted`}>
-            {emptyText}
-          </td>
-        </tr>
-      )}
-    </tbody>
+    </tr>
   );
 });
+
+
+/** The search field keeps its own text, so typing renders only the field; the table follows in a transition. */
+function SearchBox({ onSearch }: { onSearch: (text: string) => void }) {
+  const [text, setText] = useState('');
+  return (
+    <div className="flex flex-col gap-1">
+      <label htmlFor="register-filter" className="text-xs font-semibold text-ink-soft">
+        Filter entries
+      </label>
+      <input
+        id="register-filter"
+        type="search"
+        value={text}
+        onChange={(e) => {
+          setText(e.target.value);
+          const v = e.target.value;
+          startTransition(() => onSearch(v));
+        }}
+        placeholder="key, label, group, owner, process, state…"
+        className="w-72 rounded-md border border-rule-strong bg-paper-raised px-2.5 py-1.5 text-sm"
+      />
+    </div>
+  );
+}
 
 export function RegisterTable({ slug, entries, actions }: { slug: string; entries: EntrySummary[]; actions?: ReactNode }) {
   const columns = useMemo(() => makeColumns(slug), [slug]);
   const [sorting, setSorting] = useState<SortingState>([{ id: 'key', desc: false }]);
-  const [text, setText] = useState('');
-  // Typing stays responsive with hundreds of entries: the table follows the text a moment later.
-  const globalFilter = useDeferredValue(text);
+  const [globalFilter, setGlobalFilter] = useState('');
   const [columnFilters, setColumnFilters] = useState<ColumnFiltersState>([]);
   const [columnVisibility, setColumnVisibility] = useState<ColumnVisibilityState>({});
 
@@ -291,6 +310,7 @@ export function RegisterTable({ slug, entries, actions }: { slug: string; entrie
   const setFilter = (id: string) => (v: string) =>
     setColumnFilters((fs) => [...fs.filter((f) => f.id !== id), ...(v === ANY ? [] : [{ id, value: v }])]);
   const visibleCount = table.getVisibleLeafColumns().length;
+  const visibility = JSON.stringify(columnVisibility);
   const filtered = globalFilter.trim() !== '' || columnFilters.length > 0;
 
   if (entries.length === 0)
@@ -306,19 +326,7 @@ export function RegisterTable({ slug, entries, actions }: { slug: string; entrie
   return (
     <div>
       <div className="mb-3 flex flex-wrap items-end gap-3">
-        <div className="flex flex-col gap-1">
-          <label htmlFor="register-filter" className="text-xs font-semibold text-ink-soft">
-            Filter entries
-          </label>
-          <input
-            id="register-filter"
-            type="search"
-            value={text}
-            onChange={(e) => setText(e.target.value)}
-            placeholder="key, label, group, owner, process, state…"
-            className="w-72 rounded-md border border-rule-strong bg-paper-raised px-2.5 py-1.5 text-sm"
-          />
-        </div>
+        <SearchBox onSearch={setGlobalFilter} />
         <FilterSelect id="register-group" label="Group" value={filterValue('group')} onChange={setFilter('group')} options={choices.group} />
         <FilterSelect id="register-owner" label="Owner" value={filterValue('owner')} onChange={setFilter('owner')} options={choices.owner} />
         <FilterSelect id="register-state" label="State" value={filterValue('state')} onChange={setFilter('state')} options={choices.state} />
@@ -363,13 +371,18 @@ export function RegisterTable({ slug, entries, actions }: { slug: string; entrie
               </tr>
             ))}
           </thead>
-          <Body
-            table={table}
-            rows={rows}
-            colSpan={visibleCount}
-            visibility={JSON.stringify(columnVisibility)}
-            emptyText={filtered ? `No entry matches${globalFilter.trim() ? ` “${globalFilter.trim()}”` : ''} with these filters.` : 'No entries.'}
-          />
+          <tbody>
+            {rows.map((row) => (
+              <RowView key={row.id} row={row} entry={row.original} visibility={visibility} />
+            ))}
+            {rows.length === 0 && (
+              <tr>
+                <td colSpan={visibleCount} className={`${tdClass} py-6 text-center text-ink-muted`}>
+                  {filtered ? `No entry matches${globalFilter.trim() ? ` “${globalFilter.trim()}”` : ''} with these filters.` : 'No entries.'}
+                </td>
+              </tr>
+            )}
+          </tbody>
         </table>
       </div>
     </div>
