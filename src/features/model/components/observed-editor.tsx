@@ -41,7 +41,6 @@ export function ObservedEditor({ slug, region, onDone }: { slug: string; region:
         onChange={(e) => setText(e.target.value)}
         error={local ?? fieldError({}, put.error, 'observed')}
         hint={parsed.values && parsed.values.length ? `${parsed.values.length} of ${bins} values; ${sum(parsed.values).toLocaleString('en-GB')} events in total` : 'Whole numbers, comma separated or one per line.'}
-        className="font-mono"
       />
       <div className="flex flex-wrap gap-2">
         <Button type="submit" variant="primary" busy={put.isPending && put.variables?.observed !== null}>

@@ -85,7 +85,6 @@ export function RegionForm({ slug, region, onDone }: { slug: string; region?: Re
         onChange={(e) => setEdges(e.target.value)}
         error={err('edges')}
         hint={parsed.values && parsed.values.length >= 2 ? `${parsed.values.length} edges: ${bins} bin${bins === 1 ? '' : 's'}${unit ? ` in ${unit}` : ''}. Commas, spaces or one per line.` : 'A comma list from low to high, e.g. 100, 120, 140, 160'}
-        className="font-mono"
       />
       <div className="flex gap-2">
         <Button type="submit" variant="primary" busy={mutation.isPending}>

@@ -63,7 +63,6 @@ export function TemplateEditor({ slug, model, region, process, onDone }: { slug:
         onChange={(e) => setNominal(e.target.value)}
         error={fieldError(local, put.error, 'nominal')}
         hint={listHint(nominal, bins, 'total')}
-        className="font-mono"
       />
       <TextAreaField
         label="Variance (events², optional)"
@@ -72,7 +71,6 @@ export function TemplateEditor({ slug, model, region, process, onDone }: { slug:
         onChange={(e) => setVariance(e.target.value)}
         error={fieldError(local, put.error, 'variance')}
         hint={variance.trim() ? listHint(variance, bins, 'sum') : 'Sum of squared weights per bin, from limited simulation; empty when not known.'}
-        className="font-mono"
       />
       <SelectField label="Floating normalisation" value={norm} onChange={(e) => setNorm(e.target.value)} error={fieldError(local, put.error, 'floatingNorm')} className="max-w-sm">
         <option value="">None (fixed normalisation)</option>

@@ -52,7 +52,6 @@ export function EntryFields({ draft, onChange, error, members, groups, withKey =
           onChange={set('key')}
           error={error('key')}
           hint="The nuisance parameter's name in the model: a letter, then letters, digits, _ . or -"
-          className="font-mono"
         />
       )}
       <TextField label="Label" name="label" required value={draft.label} onChange={set('label')} error={error('label')} className={withKey ? '' : 'md:col-span-2'} />
