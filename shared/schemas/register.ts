@@ -67,6 +67,7 @@ export type ModelUploadResult = z.infer<typeof modelUploadResultSchema>;
 const entryFields = {
   key: keySchema,
   label: z.string().trim().min(1, 'is required').max(200),
+  /** a group name; a name no group has yet creates that group (analysts only) */
   group: z.string().trim().max(64).nullable(),
   ownerId: z.number().int().positive().nullable(),
   description: text(10_000),
