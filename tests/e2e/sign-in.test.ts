@@ -60,7 +60,7 @@ describe('signing in and opening an analysis in the browser', () => {
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
     await page.goto(`${server.url}/a/vireon-search/members`);
     await page.getByRole('rowheader', { name: /Rafe Orlowyn/ }).waitFor();
-    await page.getByRole('button', { name: /add member/i }).waitFor();
+    await page.getByRole('button', { name: /^invite$/i }).waitFor();
     await screenshot(page, 'members-convener');
 
     await context.clearCookies();
@@ -70,7 +70,7 @@ describe('signing in and opening an analysis in the browser', () => {
     await page.getByRole('rowheader', { name: /Mira Quellbright/ }).waitFor();
     // the role badge comes with the overview, which also decides whether the controls show
     await page.getByText('Reader', { exact: true }).first().waitFor();
-    await expect(page.getByRole('button', { name: /add member/i }).count()).resolves.toBe(0);
+    await expect(page.getByRole('button', { name: /^invite$/i }).count()).resolves.toBe(0);
     await screenshot(page, 'members-reader');
   });
 });
