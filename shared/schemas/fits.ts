@@ -1,0 +1,96 @@
+import { z } from 'zod';
+import { fitOptionsSchema, fitResultSchema } from './fit';
+
+/** Contracts of model versions, fit runs, results, exports and comparisons. */
+
+export const modelVersionSchema = z.object({
+  number: z.number(),
+  note: z.string(),
+  /** frozen by a convener as the version put forward for approval */
+  forApproval: z.boolean(),
+  sha256: z.string(),
+  createdAt: z.string(),
+  createdBy: z.string().nullable(),
+  counts: z.object({ regions: z.number(), processes: z.number(), systematics: z.number() }),
+});
+export type ModelVersion = z.infer<typeof modelVersionSchema>;
+
+export const freezeVersionSchema = z.strictObject({
+  note: z.string().max(2000).default(''),
+  forApproval: z.boolean().default(false),
+});
+export type FreezeVersion = z.input<typeof freezeVersionSchema>;
+
+export const fitStateSchema = z.enum(['queued', 'running', 'succeeded', 'failed', 'cancelled']);
+export type FitState = z.infer<typeof fitStateSchema>;
+
+export const startFitSchema = z.strictObject({
+  /** the model version number to fit */
+  version: z.number().int().positive(),
+  label: z.string().trim().max(200).default(''),
+  options: fitOptionsSchema.default(fitOptionsSchema.parse({})),
+});
+export type StartFit = z.input<typeof startFitSchema>;
+
+/** A fit as listed: state, progress and, once converged, the headline numbers. */
+export const fitSummarySchema = z.object({
+  id: z.number(),
+  label: z.string(),
+  version: z.number(),
+  state: fitStateSchema,
+  /** 0…1 */
+  progress: z.number(),
+  stage: z.string(),
+  options: fitOptionsSchema,
+  failure: z.string().nullable(),
+  createdAt: z.string(),
+  createdBy: z.string().nullable(),
+  startedAt: z.string().nullable(),
+  finishedAt: z.string().nullable(),
+  /** only for a converged fit: μ̂ ± σ_μ and the observed significance */
+  headline: z
+    .object({
+      mu: z.number(),
+      muError: z.number().nullable(),
+      z: z.number().nullable(),
+      warnings: z.number(),
+    })
+    .nullable(),
+});
+export type FitSummary = z.infer<typeof fitSummarySchema>;
+
+/**
+ * A fit with its stored result. `result` is null until the job ends; for a failed fit it holds
+ * the convergence report and no numbers that depend on the failed minimum. While the analysis
+ * is blinded, observed signal-region counts are removed from `result.data`.
+ */
+export const fitDetailSchema = fitSummarySchema.extend({ result: fitResultSchema.nullable() });
+export type FitDetail = z.infer<typeof fitDetailSchema>;
+
+const delta = z.object({ a: z.number().nullable(), b: z.number().nullable(), delta: z.number().nullable() });
+
+/** Two fits side by side: the changes in μ̂ and per parameter, largest change first. */
+export const fitComparisonSchema = z.object({
+  a: fitSummarySchema,
+  b: fitSummarySchema,
+  mu: delta,
+  muError: delta,
+  parameters: z.array(
+    z.object({
+      name: z.string(),
+      group: z.string().nullable(),
+      /** present in only one of the two fits */
+      only: z.enum(['a', 'b']).nullable(),
+      pull: delta,
+      constraint: delta,
+      /** max(|Δμ+|, |Δμ−|) of the post-fit impact (quick impact where no full impacts were run) */
+      impact: delta,
+      /** the largest |delta| of pull, constraint and impact: the sort key */
+      change: z.number(),
+    }),
+  ),
+});
+export type FitComparison = z.infer<typeof fitComparisonSchema>;
+
+export const exportTableSchema = z.enum(['summary', 'parameters', 'nuisance', 'groups', 'correlation']);
+export type ExportTable = z.infer<typeof exportTableSchema>;
