@@ -23,6 +23,7 @@ export const ACTIONS = [
   'variation.upload',
   'groups.edit',
   'version.freeze',
+  'version.approve',
   'fit.run',
   'question.raise',
   'question.answer',
@@ -35,7 +36,7 @@ export type Action = (typeof ACTIONS)[number];
 const everyone: Action[] = ['analysis.read', 'question.answer'];
 
 export const ROLE_ACTIONS: Record<MemberRole, readonly Action[]> = {
-  convener: [...everyone, 'members.manage', 'entry.review', 'version.freeze', 'question.raise', 'question.resolve', 'blinding.decide'],
+  convener: [...everyone, 'members.manage', 'entry.review', 'version.freeze', 'version.approve', 'question.raise', 'question.resolve', 'blinding.decide'],
   analyst: [
     ...everyone,
     'model.edit',

@@ -12,6 +12,7 @@ export const ACTION_LABELS: Record<Action, string> = {
   'variation.upload': 'Upload up/down variations',
   'groups.edit': 'Move entries between groups',
   'version.freeze': 'Freeze a model version',
+  'version.approve': 'Freeze a version for approval',
   'fit.run': 'Run fits',
   'question.raise': 'Raise questions on fit results',
   'question.answer': 'Answer questions',
