@@ -1,0 +1,202 @@
+import { useId, useState, type ReactNode } from 'react';
+import type { FitOptionsInput } from '@shared/schemas/fit';
+import type { FitSummary, ModelVersion } from '@shared/schemas/fits';
+import { Button } from '../../../components/ui/button';
+import { FormError } from '../../../components/ui/error-notice';
+import { CheckboxField, SelectField, TextField } from '../../../components/ui/field';
+import { fieldError } from '../../../lib/form-issues';
+import { useStartFit } from '../api/start-fit';
+
+type Dataset = 'observed' | 'asimov' | 'control';
+type Impacts = 'none' | 'quick' | 'full';
+
+function Radio({ name, value, checked, onChange, disabled, label, hint }: { name: string; value: string; checked: boolean; onChange: () => void; disabled?: boolean; label: ReactNode; hint?: ReactNode }) {
+  const id = useId();
+  return (
+    <div className="flex items-start gap-2">
+      <input id={id} type="radio" name={name} value={value} checked={checked} onChange={onChange} disabled={disabled} className="mt-0.5 size-4 accent-teal" aria-describedby={hint ? `${id}-hint` : undefined} />
+      <div>
+        <label htmlFor={id} className={`text-sm ${disabled ? 'text-ink-muted' : 'text-ink'}`}>
+          {label}
+        </label>
+        {hint && (
+          <p id={`${id}-hint`} className="text-xs text-ink-muted">
+            {hint}
+          </p>
+        )}
+      </div>
+    </div>
+  );
+}
+
+/**
+ * Start a fit on a frozen version. While the analysis is blinded the observed data may be fitted
+ * in the control regions only; the choices say so instead of letting the server refuse.
+ */
+export function StartFitForm({
+  slug,
+  versions,
+  blinded,
+  overConstraintThreshold,
+  onStarted,
+}: {
+  slug: string;
+  versions: ModelVersion[];
+  blinded: boolean;
+  overConstraintThreshold: number;
+  onStarted?: (fit: FitSummary) => void;
+}) {
+  const start = useStartFit(slug);
+  const [version, setVersion] = useState<number | null>(versions[0]?.number ?? null);
+  const [label, setLabel] = useState('');
+  const [dataset, setDataset] = useState<Dataset>(blinded ? 'asimov' : 'observed');
+  const [asimovMu, setAsimovMu] = useState('1');
+  const [impacts, setImpacts] = useState<Impacts>('full');
+  const [scan, setScan] = useState(true);
+  const [limit, setLimit] = useState(false);
+  const [expected, setExpected] = useState(true);
+  const [localError, setLocalError] = useState<string | null>(null);
+  const chosen = version ?? versions[0]?.number ?? null;
+  const effectiveDataset: Dataset = blinded && dataset === 'observed' ? 'asimov' : dataset;
+
+  if (versions.length === 0) return <p className="text-sm text-ink-muted">Freeze a model version first: a fit always runs on a frozen version, so its result can be reopened exactly.</p>;
+
+  return (
+    <form
+      aria-label="Run a fit"
+      className="flex flex-col gap-4"
+      onSubmit={(e) => {
+        e.preventDefault();
+        setLocalError(null);
+        const mu = Number(asimovMu);
+        if (effectiveDataset === 'asimov' && !Number.isFinite(mu)) {
+          setLocalError('The Asimov signal strength must be a number.');
+          return;
+        }
+        if (chosen === null) return;
+        const options: FitOptionsInput = {
+          dataset: effectiveDataset === 'asimov' ? 'asimov' : 'observed',
+          asimovMu: effectiveDataset === 'asimov' ? mu : 1,
+          controlOnly: effectiveDataset === 'control',
+          impacts,
+          scan: effectiveDataset === 'control' ? false : scan,
+          limit: effectiveDataset === 'control' ? false : limit,
+          expected,
+          overConstraintThreshold,
+        };
+        start.mutate({ version: chosen, label: label.trim(), options }, { onSuccess: (fit) => onStarted?.(fit) });
+      }}
+    >
+      <FormError error={start.error} />
+      {localError && (
+        <p role="alert" className="rounded-md border border-danger/30 bg-danger-soft/60 px-3 py-2 text-sm text-danger">
+          {localError}
+        </p>
+      )}
+      <div className="grid gap-3 sm:grid-cols-2">
+        <SelectField label="Model version" value={chosen ?? ''} onChange={(e) => setVersion(Number(e.target.value))} error={fieldError({}, start.error, 'version')}>
+          {versions.map((v) => (
+            <option key={v.number} value={v.number}>
+              Version {v.number}
+              {v.note ? `: ${v.note.slice(0, 40)}` : ''}
+            </option>
+          ))}
+        </SelectField>
+        <TextField label="Label" value={label} maxLength={200} onChange={(e) => setLabel(e.target.value)} placeholder="e.g. Asimov, all systematics" error={fieldError({}, start.error, 'label')} />
+      </div>
+
+      <fieldset className="flex flex-col gap-2">
+        <legend className="mb-1 text-xs font-semibold text-ink-soft">Dataset</legend>
+        {blinded && (
+          <p className="rounded-md border border-amber/40 bg-amber-soft/60 px-3 py-2 text-xs text-amber-ink">
+            The analysis is blinded: observed data may be fitted in the control regions only, and the signal regions' counts stay on the server. Fit an Asimov dataset to see
+            the expected result everywhere.
+          </p>
+        )}
+        <Radio
+          name="dataset"
+          value="observed"
+          checked={effectiveDataset === 'observed'}
+          onChange={() => setDataset('observed')}
+          disabled={blinded}
+          label="Observed data, all regions"
+          hint={blinded ? 'Not while the analysis is blinded.' : undefined}
+        />
+        <div className="flex flex-wrap items-center gap-2">
+          <Radio
+            name="dataset"
+            value="asimov"
+            checked={effectiveDataset === 'asimov'}
+            onChange={() => setDataset('asimov')}
+            label="Pre-fit Asimov dataset"
+            hint="The expectation itself as data: θ = 0, γ = 1, normalisations at their start, signal at the μ you choose."
+          />
+          <label className="flex items-center gap-1 text-sm text-ink-soft">
+            at μ =
+            <input
+              type="number"
+              step="any"
+              value={asimovMu}
+              onChange={(e) => {
+                setAsimovMu(e.target.value);
+                setDataset('asimov');
+              }}
+              aria-label="Signal strength of the Asimov dataset"
+              className="w-20 rounded-md border border-rule-strong bg-paper-raised px-2 py-1 text-sm tabular-nums"
+            />
+          </label>
+        </div>
+        <Radio
+          name="dataset"
+          value="control"
+          checked={effectiveDataset === 'control'}
+          onChange={() => setDataset('control')}
+          label="Observed data, control regions only"
+          hint="μ is held at its start value; the fit measures the backgrounds and nuisance parameters from the control regions."
+        />
+      </fieldset>
+
+      <fieldset className="flex flex-col gap-2">
+        <legend className="mb-1 text-xs font-semibold text-ink-soft">Impacts on μ̂</legend>
+        <Radio name="impacts" value="none" checked={impacts === 'none'} onChange={() => setImpacts('none')} label="None" />
+        <Radio name="impacts" value="quick" checked={impacts === 'quick'} onChange={() => setImpacts('quick')} label="Quick" hint="ρ(μ, θ)·σ_μ from the covariance: instant, an estimate only." />
+        <Radio
+          name="impacts"
+          value="full"
+          checked={impacts === 'full'}
+          onChange={() => setImpacts('full')}
+          label="Full"
+          hint="Two refits per parameter with θ fixed at θ̂ ± σ̂ (post-fit) and two at θ̂ ± 1 (pre-fit). Takes longer."
+        />
+      </fieldset>
+
+      <fieldset className="flex flex-col gap-2">
+        <legend className="mb-1 text-xs font-semibold text-ink-soft">Also compute</legend>
+        <CheckboxField
+          label="Profile-likelihood scan of μ"
+          checked={effectiveDataset !== 'control' && scan}
+          disabled={effectiveDataset === 'control'}
+          onChange={(e) => setScan(e.target.checked)}
+          hint="q(μ) on a grid, giving asymmetric 68 % and 95 % intervals."
+        />
+        <CheckboxField
+          label="95 % CL upper limit on μ (CLs)"
+          checked={effectiveDataset !== 'control' && limit}
+          disabled={effectiveDataset === 'control'}
+          onChange={(e) => setLimit(e.target.checked)}
+          hint="Observed and expected, with the ±1σ and ±2σ bands of the expected limit."
+        />
+        <CheckboxField label="Expected significance" checked={expected} onChange={(e) => setExpected(e.target.checked)} hint="Z on the pre-fit Asimov dataset at μ = 1." />
+      </fieldset>
+
+      <p className="text-xs text-ink-muted">
+        Nuisance parameters whose post-fit width falls below {overConstraintThreshold} of their prior will be flagged as over-constrained (the analysis's setting).
+      </p>
+      <div>
+        <Button type="submit" variant="primary" busy={start.isPending}>
+          Run the fit
+        </Button>
+      </div>
+    </form>
+  );
+}
