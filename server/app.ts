@@ -4,6 +4,7 @@ import type { Config } from './config';
 import type { AppContext } from './context';
 import type { Database } from './db/client';
 import type { Mailer } from './mail/mailer';
+import type { FitRunner } from './jobs/fit-runner';
 import { authorizer } from './auth/authorize';
 import { csrf } from './auth/csrf';
 import { createPassport } from './auth/passport';
@@ -17,13 +18,14 @@ import { usersRoutes } from './routes/users.routes';
 import { registerRoutes } from './routes/register.routes';
 import { modelRoutes } from './routes/model.routes';
 import { invitationsRoutes } from './routes/invitations.routes';
+import { fitsRoutes } from './routes/fits.routes';
 
 export type App = { app: Express; routes: ApiRoute[]; ctx: AppContext };
 
 /** Builds the Express app without listening: tests drive it with supertest, server/index.ts listens. */
-export function createApp(database: Database, config: Config, deps: { mailer: Mailer; log?: (line: string) => void }): App {
+export function createApp(database: Database, config: Config, deps: { mailer: Mailer; fits: FitRunner; log?: (line: string) => void }): App {
   const log = deps.log ?? console.log;
-  const ctx: AppContext = { db: database.db, client: database.client, config, mailer: deps.mailer, log };
+  const ctx: AppContext = { db: database.db, client: database.client, config, mailer: deps.mailer, fits: deps.fits, log };
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
@@ -46,6 +48,7 @@ export function createApp(database: Database, config: Config, deps: { mailer: Ma
     ...modelRoutes(ctx, auth),
     ...registerRoutes(ctx, auth),
     ...invitationsRoutes(ctx, auth),
+    ...fitsRoutes(ctx, auth),
     ...outboxRoutes(ctx, auth),
   ];
 

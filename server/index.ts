@@ -6,6 +6,7 @@ import { createApp } from './app';
 import { ConfigError, loadConfig, type Config } from './config';
 import { DataDirLockedError, openDatabase, projectRoot } from './db/client';
 import { createMailer } from './mail/mailer';
+import { createFitRunner } from './jobs/fit-runner';
 import { seedDemo } from './seed/demo';
 
 /** Without SESSION_SECRET, a random secret is kept in the data folder so sessions survive restarts. */
@@ -41,7 +42,9 @@ async function main() {
   const config = { ...base, sessionSecret: sessionSecret(base) };
   const seed = await seedDemo(database.db);
   const mailer = await createMailer(database.db, config);
-  const { app } = createApp(database, config, { mailer });
+  const fits = createFitRunner(database.db, console.error);
+  await fits.recover();
+  const { app } = createApp(database, config, { mailer, fits });
   const closeClient = await serveClient(app, config);
 
   const server = app.listen(config.PORT, config.HOST, () => {
@@ -60,6 +63,7 @@ async function main() {
     stopping = true;
     server.close();
     await closeClient();
+    await fits.close();
     await mailer.close();
     await database.close();
     process.exit(0);

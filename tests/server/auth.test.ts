@@ -10,6 +10,7 @@ import { openDatabase, DataDirLockedError } from '../../server/db/client';
 import { analyses, users } from '../../server/db/schema';
 import { seedDemo } from '../../server/seed/demo';
 import { createMailer } from '../../server/mail/mailer';
+import { createFitRunner } from '../../server/jobs/fit-runner';
 import { Client, createTestApp, DEMO, signedIn, type TestApp } from './helpers';
 
 const sessionCookie = (res: request.Response) => ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith('plumbline.sid='));
@@ -167,16 +168,20 @@ describe('a data folder', () => {
       let database = await openDatabase(dir);
       await seedDemo(database.db);
       let mailer = await createMailer(database.db, config, () => {});
-      const client = await signedIn(createApp(database, config, { mailer, log: () => {} }).app, DEMO.reader);
+      let fits = createFitRunner(database.db, () => {}, { threads: 1 });
+      const client = await signedIn(createApp(database, config, { mailer, fits, log: () => {} }).app, DEMO.reader);
       const cookie = (await client.get('/api/auth/me')).request.cookies;
+      await fits.close();
       await mailer.close();
       await database.close();
 
       database = await openDatabase(dir);
       mailer = await createMailer(database.db, config, () => {});
-      const res = await request(createApp(database, config, { mailer, log: () => {} }).app).get('/api/auth/me').set('Cookie', cookie);
+      fits = createFitRunner(database.db, () => {}, { threads: 1 });
+      const res = await request(createApp(database, config, { mailer, fits, log: () => {} }).app).get('/api/auth/me').set('Cookie', cookie);
       expect(res.status).toBe(200);
       expect(res.body.user.email).toBe(DEMO.reader);
+      await fits.close();
       await mailer.close();
       await database.close();
     } finally {

@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { hashPassword } from '../../server/auth/passwords';
-import { analyses, effects, entries, groups, invitations, memberships, processes, regions, users } from '../../server/db/schema';
+import { analyses, effects, entries, fits, groups, invitations, memberships, modelVersions, processes, regions, users } from '../../server/db/schema';
 import { Client, createTestApp, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
 
 /**
@@ -101,6 +101,25 @@ async function freshProcess(t: TestApp) {
   const [p] = await t.database.db.insert(processes).values({ analysisId: (await ids(t)).analysisId, key: `p${created}`, kind: 'background' }).returning();
   return p.key;
 }
+const managersAndAnalysts = (ok: number) => ({ ...all(403), signedOut: 401, analyst: ok, convener: ok });
+/** a frozen version and one converged fit of the analysis, made once through the API */
+let converged: Promise<{ version: number; fitId: number }> | null = null;
+const convergedFit = (t: TestApp) =>
+  (converged ??= (async () => {
+    const analyst = await signedIn(t.app, DEMO.analyst);
+    const version = (await analyst.send('post', `/api/analyses/${SLUG}/versions`, { note: 'fixture' })).body.number;
+    const started = await analyst.send('post', `/api/analyses/${SLUG}/fits`, { version, options: { dataset: 'asimov', impacts: 'none', expected: false } });
+    await t.fits.idle();
+    return { version, fitId: started.body.id };
+  })());
+/** a fit waiting in the database (not in this process's queue) */
+async function queuedFit(t: TestApp) {
+  const { version } = await convergedFit(t);
+  const { analysisId } = await ids(t);
+  const [v] = await t.database.db.select().from(modelVersions).where(and(eq(modelVersions.analysisId, analysisId), eq(modelVersions.number, version)));
+  const [f] = await t.database.db.insert(fits).values({ analysisId, modelVersionId: v.id, options: {} }).returning();
+  return f.id;
+}
 const VARIATION_CSV = 'region,process,kind,bin,up,down\nCR-shower,showerpair,scale,,1.05,0.95\n';
 const A = `/api/analyses/${SLUG}`;
 
@@ -194,6 +213,25 @@ export const MATRIX: Record<string, Row> = {
   'POST /api/analyses/:slug/groups': { call: (_t, who, n) => ({ path: `${A}/groups`, body: { name: `group ${who} ${n}` } }), expect: analystOnly(201) },
   'PATCH /api/analyses/:slug/groups/:groupId': { call: async (t, who) => ({ path: `${A}/groups/${await freshGroup(t)}`, body: { name: `renamed by ${who} ${created}` } }), expect: analystOnly(200) },
   'DELETE /api/analyses/:slug/groups/:groupId': { call: async (t) => ({ path: `${A}/groups/${await freshGroup(t)}` }), expect: analystOnly(204) },
+
+  // model versions and fits
+  'GET /api/analyses/:slug/versions': { call: () => ({ path: `${A}/versions` }), expect: members(200) },
+  'POST /api/analyses/:slug/versions': { call: () => ({ path: `${A}/versions`, body: { note: 'matrix' } }), expect: managersAndAnalysts(201) },
+  'GET /api/analyses/:slug/fits': { call: () => ({ path: `${A}/fits` }), expect: members(200) },
+  'POST /api/analyses/:slug/fits': {
+    call: async (t) => ({ path: `${A}/fits`, body: { version: (await convergedFit(t)).version, options: { dataset: 'asimov', impacts: 'none', expected: false } } }),
+    expect: analystOnly(202),
+  },
+  'GET /api/analyses/:slug/fits/:fitId': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}` }), expect: members(200) },
+  'POST /api/analyses/:slug/fits/:fitId/cancel': { call: async (t) => ({ path: `${A}/fits/${await queuedFit(t)}/cancel` }), expect: analystOnly(200) },
+  'GET /api/analyses/:slug/fits/:fitId/compare/:otherId': {
+    call: async (t) => {
+      const { fitId } = await convergedFit(t);
+      return { path: `${A}/fits/${fitId}/compare/${fitId}` };
+    },
+    expect: members(200),
+  },
+  'GET /api/analyses/:slug/fits/:fitId/export': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/export?format=csv&table=summary` }), expect: members(200) },
 
   // invitations: conveners and admins invite; the link itself is the credential
   'POST /api/analyses/:slug/invitations': { call: (_t, who, n) => ({ path: `${A}/invitations`, body: { email: `guest-${who}-${n}@lantern.example`, role: 'reader' } }), expect: managers(201) },

@@ -5,6 +5,7 @@ import { testConfig, type Config } from '../../server/config';
 import { openDatabase, type Database } from '../../server/db/client';
 import { hashPassword } from '../../server/auth/passwords';
 import { createMailer, type Mailer } from '../../server/mail/mailer';
+import { createFitRunner, type FitRunner } from '../../server/jobs/fit-runner';
 import { users } from '../../server/db/schema';
 import { seedDemo } from '../../server/seed/demo';
 import { DEMO_PASSWORD } from '../../server/seed/scenario';
@@ -20,7 +21,7 @@ export const DEMO = {
 } as const;
 export const PASSWORD = DEMO_PASSWORD;
 
-export type TestApp = App & { database: Database; mailer: Mailer; close: () => Promise<void> };
+export type TestApp = App & { database: Database; mailer: Mailer; fits: FitRunner; close: () => Promise<void> };
 
 /** A real app on an in-memory PGlite with migrations applied and the demo seeded (plus one account that belongs to no analysis). */
 export async function createTestApp(overrides: Partial<Config> = {}): Promise<TestApp> {
@@ -29,12 +30,15 @@ export async function createTestApp(overrides: Partial<Config> = {}): Promise<Te
   await database.db.insert(users).values({ email: DEMO.outsider, name: 'Ona Outsider', passwordHash: await hashPassword(PASSWORD) });
   const config = testConfig(overrides);
   const mailer = await createMailer(database.db, config, () => {});
-  const app = createApp(database, config, { mailer, log: () => {} });
+  const fits = createFitRunner(database.db, () => {}, { threads: 2 });
+  const app = createApp(database, config, { mailer, fits, log: () => {} });
   return {
     ...app,
     database,
     mailer,
+    fits,
     close: async () => {
+      await fits.close();
       await mailer.close();
       await database.close();
     },

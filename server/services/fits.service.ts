@@ -1,0 +1,214 @@
+import Papa from 'papaparse';
+import { and, desc, eq } from 'drizzle-orm';
+import { fitOptionsSchema, type FitResult } from '@shared/schemas/fit';
+import { exportTableSchema, startFitSchema, type FitComparison, type FitDetail, type FitSummary } from '@shared/schemas/fits';
+import type { ExchangeModel } from '@shared/schemas/exchange';
+import type { Access } from '../auth/authorize';
+import type { AppContext } from '../context';
+import { fits, modelVersions, users } from '../db/schema';
+import { conflict, notFound } from '../errors';
+import { isWithheld } from './blinding.service';
+import { findVersion } from './versions.service';
+
+type FitRow = typeof fits.$inferSelect;
+
+function summaryOf(fit: FitRow, version: number, createdBy: string | null): FitSummary {
+  const result = fit.result as FitResult | null;
+  const converged = fit.state === 'succeeded' && result?.status === 'converged' && result.summary;
+  return {
+    id: fit.id,
+    label: fit.label,
+    version,
+    state: fit.state,
+    progress: fit.progress,
+    stage: fit.stage,
+    options: fitOptionsSchema.parse(fit.options),
+    failure: fit.failure,
+    createdAt: fit.createdAt.toISOString(),
+    createdBy,
+    startedAt: fit.startedAt?.toISOString() ?? null,
+    finishedAt: fit.finishedAt?.toISOString() ?? null,
+    headline: converged
+      ? { mu: result.summary!.mu.value, muError: result.summary!.mu.error, z: result.summary!.discovery?.z ?? null, warnings: result.convergence.warnings.length }
+      : null,
+  };
+}
+
+const fitRows = (ctx: AppContext, analysisId: number) =>
+  ctx.db
+    .select({ fit: fits, version: modelVersions.number, by: users.name })
+    .from(fits)
+    .innerJoin(modelVersions, eq(modelVersions.id, fits.modelVersionId))
+    .leftJoin(users, eq(users.id, fits.createdById))
+    .where(eq(fits.analysisId, analysisId))
+    .$dynamic();
+
+async function findFit(ctx: AppContext, access: Access, id: number) {
+  const [row] = await fitRows(ctx, access.analysis.id).where(and(eq(fits.analysisId, access.analysis.id), eq(fits.id, id)));
+  if (!row) throw notFound(`Fit ${id}`);
+  return row;
+}
+
+/** The region keys whose observed counts are withheld now (blinded analysis, signal regions). */
+function withheldRegions(access: Access, result: FitResult | null, model?: ExchangeModel) {
+  const roles = new Map<string, string>();
+  model?.regions.forEach((r) => roles.set(r.key, r.role));
+  result?.yields.prefit.forEach((r) => roles.set(r.region, r.role));
+  return new Set([...roles].filter(([, role]) => isWithheld(access.analysis, { role })).map(([key]) => key));
+}
+
+/** The blinding rule applied to a stored result: observed signal-region counts never leave while blinded. */
+export function blindResult(access: Access, result: FitResult | null): FitResult | null {
+  if (!result || result.data.dataset !== 'observed') return result;
+  const hidden = withheldRegions(access, result);
+  if (!hidden.size) return result;
+  return { ...result, data: { ...result.data, regions: result.data.regions.map((r) => (hidden.has(r.region) ? { ...r, values: null } : r)) } };
+}
+
+export async function listFits(ctx: AppContext, access: Access): Promise<FitSummary[]> {
+  const rows = await fitRows(ctx, access.analysis.id).orderBy(desc(fits.id));
+  return rows.map((r) => summaryOf(r.fit, r.version, r.by));
+}
+
+export async function getFit(ctx: AppContext, access: Access, id: number): Promise<FitDetail> {
+  const row = await findFit(ctx, access, id);
+  return { ...summaryOf(row.fit, row.version, row.by), result: blindResult(access, row.fit.result as FitResult | null) };
+}
+
+/**
+ * assertVersion → assertBlindingAllows → store the fit as queued → hand it to the runner.
+ * While blinded, an observed-data fit must leave out every signal region.
+ */
+export async function startFit(ctx: AppContext, access: Access, body: unknown): Promise<FitSummary> {
+  const input = startFitSchema.parse(body);
+  const version = await findVersion(ctx, access.analysis.id, input.version);
+  const model = version.model as ExchangeModel;
+  const options = input.options;
+  if (options.dataset === 'observed' && access.analysis.blinding !== 'unblinded') {
+    const included = model.regions.filter((r) => r.role === 'signal' && !options.controlOnly && !options.excludeRegions.includes(r.key));
+    if (included.length)
+      throw conflict(
+        `This analysis is blinded: a fit to observed data may not include a signal region (${included.map((r) => r.key).join(', ')}). Fit the control regions only, or an Asimov dataset, until a convener approves unblinding.`,
+      );
+  }
+  const unknown = options.excludeRegions.filter((k) => !model.regions.some((r) => r.key === k));
+  if (unknown.length) throw conflict(`Model version ${version.number} has no region ${unknown.map((k) => `"${k}"`).join(', ')} to leave out.`);
+  const [fit] = await ctx.db
+    .insert(fits)
+    .values({ analysisId: access.analysis.id, modelVersionId: version.id, label: input.label, options, createdById: access.userId })
+    .returning();
+  ctx.fits.enqueue(fit.id);
+  return summaryOf(fit, version.number, access.userName);
+}
+
+export async function cancelFit(ctx: AppContext, access: Access, id: number): Promise<FitSummary> {
+  const row = await findFit(ctx, access, id);
+  if (row.fit.state !== 'queued' && row.fit.state !== 'running') throw conflict(`Fit ${id} has ended (${row.fit.state}); there is nothing to cancel.`);
+  const here = await ctx.fits.cancel(id, access.userName);
+  if (!here) {
+    if (row.fit.state === 'running') throw conflict(`Fit ${id} is running in another server process; it cannot be cancelled from here.`);
+    await ctx.db
+      .update(fits)
+      .set({ state: 'cancelled', failure: `Cancelled by ${access.userName} before it started.`, finishedAt: new Date(), stage: 'cancelled' })
+      .where(and(eq(fits.id, id), eq(fits.state, 'queued')));
+  }
+  // the engine checks for cancellation between steps: wait briefly for this fit (only) to stop
+  let after = await findFit(ctx, access, id);
+  for (let waited = 0; after.fit.state === 'running' && waited < 10_000; waited += 50) {
+    await new Promise((r) => setTimeout(r, 50));
+    after = await findFit(ctx, access, id);
+  }
+  return summaryOf(after.fit, after.version, after.by);
+}
+
+type Nuisance = FitResult['nuisance'][number];
+const impactOf = (n: Nuisance) => (n.postfitImpact ? Math.max(Math.abs(n.postfitImpact.up ?? 0), Math.abs(n.postfitImpact.down ?? 0)) : n.quickImpact === null ? null : Math.abs(n.quickImpact));
+const diff = (a: number | null | undefined, b: number | null | undefined) => ({ a: a ?? null, b: b ?? null, delta: a == null || b == null ? null : b - a });
+
+/** Result of a converged fit, or a refusal that says why there are no numbers. */
+async function convergedResult(ctx: AppContext, access: Access, id: number) {
+  const row = await findFit(ctx, access, id);
+  const result = blindResult(access, row.fit.result as FitResult | null);
+  if (row.fit.state !== 'succeeded' || !result || result.status !== 'converged')
+    throw conflict(`Fit ${id} ${row.fit.state === 'failed' ? `failed (${row.fit.failure})` : `is ${row.fit.state}`}: it has no results to compare or export.`);
+  return { row, result };
+}
+
+export async function compareFits(ctx: AppContext, access: Access, aId: number, bId: number): Promise<FitComparison> {
+  const a = await convergedResult(ctx, access, aId);
+  const b = await convergedResult(ctx, access, bId);
+  const byName = (r: FitResult) => new Map(r.nuisance.map((n) => [n.name, n]));
+  const na = byName(a.result);
+  const nb = byName(b.result);
+  const names = [...new Set([...na.keys(), ...nb.keys()])];
+  const parameters = names.map((name) => {
+    const x = na.get(name);
+    const y = nb.get(name);
+    const pull = diff(x?.pull, y?.pull);
+    const constraint = diff(x?.constraint, y?.constraint);
+    const impact = diff(x ? impactOf(x) : null, y ? impactOf(y) : null);
+    const change = Math.max(...[pull, constraint, impact].map((d) => (d.delta === null ? 0 : Math.abs(d.delta))));
+    return { name, group: (x ?? y)!.group, only: !x ? ('b' as const) : !y ? ('a' as const) : null, pull, constraint, impact, change: x && y ? change : Infinity };
+  });
+  parameters.sort((p, q) => q.change - p.change || p.name.localeCompare(q.name));
+  return {
+    a: summaryOf(a.row.fit, a.row.version, a.row.by),
+    b: summaryOf(b.row.fit, b.row.version, b.row.by),
+    mu: diff(a.result.summary?.mu.value, b.result.summary?.mu.value),
+    muError: diff(a.result.summary?.mu.error, b.result.summary?.mu.error),
+    // JSON has no infinity: a parameter present in one fit only sorts first and reports change 0
+    parameters: parameters.map((p) => ({ ...p, change: Number.isFinite(p.change) ? p.change : 0 })),
+  };
+}
+
+const csv = (rows: (string | number | boolean | null)[][]) => Papa.unparse(rows, { newline: '\n' }) + '\n';
+
+/** The result as JSON (a failed fit: its report), or one table as CSV (converged fits only). */
+export async function exportFit(ctx: AppContext, access: Access, id: number, format: unknown, table: unknown): Promise<{ type: string; filename: string; body: string }> {
+  const stem = `${access.analysis.slug}-fit-${id}`;
+  if (format !== 'csv') {
+    const detail = await getFit(ctx, access, id);
+    return { type: 'application/json', filename: `${stem}.json`, body: JSON.stringify(detail, null, 2) };
+  }
+  const which = exportTableSchema.parse(table);
+  const { result } = await convergedResult(ctx, access, id);
+  const s = result.summary!;
+  const tables: Record<typeof which, () => string> = {
+    summary: () =>
+      csv([
+        ['quantity', 'value', 'meaning'],
+        ['mu', s.mu.value, 'best-fit signal strength'],
+        ['mu_error', s.mu.error, 'sqrt(V_mumu)'],
+        ['mu_68_low', s.mu.interval68?.low ?? null, 'offset to the q = 1 crossing below'],
+        ['mu_68_high', s.mu.interval68?.high ?? null, 'offset to the q = 1 crossing above'],
+        ['mu_95_low', s.mu.interval95?.low ?? null, 'offset to the q = 3.84 crossing below'],
+        ['mu_95_high', s.mu.interval95?.high ?? null, 'offset to the q = 3.84 crossing above'],
+        ['mu_stat', s.mu.stat, 'statistical part of the error'],
+        ['mu_syst', s.mu.syst, 'systematic part of the error'],
+        ['q0', s.discovery?.q0 ?? null, 'discovery test statistic'],
+        ['z', s.discovery?.z ?? null, 'observed significance (sigma)'],
+        ['p0', s.discovery?.p0 ?? null, 'one-sided p-value of the background-only hypothesis'],
+        ['expected_z', s.expected?.z ?? null, 'significance expected on the pre-fit Asimov dataset'],
+        ['limit_observed', s.limit?.observed ?? null, '95 % CL upper limit on mu (CLs)'],
+        ['limit_expected', s.limit?.expected.median ?? null, 'median expected limit'],
+        ['gof_t', s.goodnessOfFit.t, 'saturated-model test statistic'],
+        ['gof_dof', s.goodnessOfFit.dof, 'degrees of freedom'],
+        ['gof_p', s.goodnessOfFit.p, 'goodness-of-fit p-value'],
+        ['iterations', result.convergence.iterations, 'Newton iterations'],
+        ['warnings', result.convergence.warnings.join(' | '), 'convergence warnings'],
+      ]),
+    parameters: () => csv([['name', 'label', 'kind', 'group', 'value', 'error', 'fixed', 'at_bound'], ...result.parameters.map((p) => [p.name, p.label, p.kind, p.group, p.value, p.error, p.fixed, p.atBound])]),
+    nuisance: () =>
+      csv([
+        ['name', 'group', 'pull', 'constraint', 'over_constrained', 'normalised_pull', 'quick_impact', 'postfit_up', 'postfit_down', 'prefit_up', 'prefit_down', 'rank'],
+        ...result.nuisance.map((n) => [n.name, n.group, n.pull, n.constraint, n.overConstrained, n.normalisedPull, n.quickImpact, n.postfitImpact?.up ?? null, n.postfitImpact?.down ?? null, n.prefitImpact?.up ?? null, n.prefitImpact?.down ?? null, n.rank]),
+      ]),
+    groups: () => csv([['group', 'impact', 'parameters'], ...result.groupedImpacts.map((g) => [g.group, g.impact, g.parameters.join(' ')])]),
+    correlation: () => {
+      const c = result.correlation!;
+      const n = c.names.length;
+      return csv([['', ...c.names], ...c.names.map((name, i) => [name, ...c.values.slice(i * n, (i + 1) * n)])]);
+    },
+  };
+  return { type: 'text/csv; charset=utf-8', filename: `${stem}-${which}.csv`, body: tables[which]() };
+}

@@ -1,0 +1,77 @@
+import { createHash } from 'node:crypto';
+import { and, desc, eq, max } from 'drizzle-orm';
+import { can } from '@shared/permissions';
+import type { ExchangeModel } from '@shared/schemas/exchange';
+import { freezeVersionSchema, type ModelVersion } from '@shared/schemas/fits';
+import type { Access } from '../auth/authorize';
+import type { AppContext } from '../context';
+import { addRevision } from '../db/revisions.repository';
+import { modelVersions, users } from '../db/schema';
+import { forbidden, notFound, unprocessable } from '../errors';
+import { buildExchange } from './exchange-export.service';
+
+type VersionRow = typeof modelVersions.$inferSelect;
+
+const view = (v: VersionRow, createdBy: string | null): ModelVersion => {
+  const model = v.model as ExchangeModel;
+  return {
+    number: v.number,
+    note: v.note,
+    forApproval: v.forApproval,
+    sha256: v.sha256,
+    createdAt: v.createdAt.toISOString(),
+    createdBy,
+    counts: { regions: model.regions.length, processes: model.processes.length, systematics: model.systematics.length },
+  };
+};
+
+export async function listVersions(ctx: AppContext, access: Access): Promise<ModelVersion[]> {
+  const rows = await ctx.db
+    .select({ version: modelVersions, by: users.name })
+    .from(modelVersions)
+    .leftJoin(users, eq(users.id, modelVersions.createdById))
+    .where(eq(modelVersions.analysisId, access.analysis.id))
+    .orderBy(desc(modelVersions.number));
+  return rows.map((r) => view(r.version, r.by));
+}
+
+export async function findVersion(ctx: AppContext, analysisId: number, number: number) {
+  const [v] = await ctx.db.select().from(modelVersions).where(and(eq(modelVersions.analysisId, analysisId), eq(modelVersions.number, number)));
+  if (!v) throw notFound(`Model version ${number}`);
+  return v;
+}
+
+/**
+ * Freezes the current model into the next numbered, immutable version: the whole exchange
+ * document (with all data, since it never leaves the server as such) and its SHA-256.
+ */
+export async function freezeVersion(ctx: AppContext, access: Access, body: unknown): Promise<ModelVersion> {
+  const input = freezeVersionSchema.parse(body);
+  if (input.forApproval && !can(access.role, access.isAdmin, 'version.approve')) throw forbidden('Only a convener freezes a version for approval.');
+  return ctx.db.transaction(async (tx) => {
+    const model = await buildExchange(tx, access.analysis, { withhold: false });
+    if (!model.regions.length || !model.processes.length) throw unprocessable('The model has no regions or no processes yet: there is nothing to freeze.');
+    const json = JSON.stringify(model);
+    const [{ top }] = await tx.select({ top: max(modelVersions.number) }).from(modelVersions).where(eq(modelVersions.analysisId, access.analysis.id));
+    const [v] = await tx
+      .insert(modelVersions)
+      .values({
+        analysisId: access.analysis.id,
+        number: (top ?? 0) + 1,
+        note: input.note,
+        forApproval: input.forApproval,
+        model,
+        sha256: createHash('sha256').update(json).digest('hex'),
+        createdById: access.userId,
+      })
+      .returning();
+    await addRevision(tx, {
+      analysisId: access.analysis.id,
+      authorId: access.userId,
+      action: 'version.frozen',
+      summary: `Froze model version ${v.number}${input.forApproval ? ' for approval' : ''}: ${model.regions.length} regions, ${model.systematics.length} systematics.${input.note ? ` Note: ${input.note}` : ''}`,
+      after: { number: v.number, sha256: v.sha256 },
+    });
+    return view(v, access.userName);
+  });
+}
