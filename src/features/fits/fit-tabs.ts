@@ -1,41 +1,13 @@
 /** The views of a fit result, in reading order; the id is the last segment of the URL. */
 export const FIT_TABS = [
-  {
-    id: 'summary',
-    label: 'Summary',
-    future:
-      'The fitted signal strength μ̂ with its asymmetric errors, the split into statistical and systematic parts, the significance, the goodness of fit and the convergence report of the minimiser.',
-  },
-  {
-    id: 'pulls',
-    label: 'Pulls',
-    future: 'For every nuisance parameter, how far the data pulled it from its prior value and how much the data constrained it, with over-constrained parameters flagged.',
-  },
-  {
-    id: 'impacts',
-    label: 'Impact ranking',
-    future: 'Nuisance parameters ranked by how much they move μ̂ when raised or lowered by their post-fit uncertainty, each row with its pull and constraint.',
-  },
-  {
-    id: 'groups',
-    label: 'Groups',
-    future: 'The uncertainty on μ̂ attributed to each group of systematics, from refits with the group held fixed.',
-  },
-  {
-    id: 'correlations',
-    label: 'Correlations',
-    future: 'The post-fit correlation matrix of all parameters, on a teal–white–plum scale from −1 to +1.',
-  },
-  {
-    id: 'distributions',
-    label: 'Distributions',
-    future: 'Per region, the pre-fit and post-fit stacked expectation by process with the observed data and a ratio panel.',
-  },
-  {
-    id: 'diagnostics',
-    label: 'Diagnostics',
-    future: "For one parameter: its information breakdown by region and bin, its variations against the data's statistical precision, and its likelihood scan.",
-  },
+  { id: 'summary', label: 'Summary', description: 'μ̂ with its asymmetric errors, the stat/syst split, significance, limit, goodness of fit and the convergence report.' },
+  { id: 'pulls', label: 'Pulls', description: 'How far the data pulled every nuisance parameter from its prior, and how much they constrained it.' },
+  { id: 'impacts', label: 'Impact ranking', description: 'Nuisance parameters ranked by how much they move μ̂ when raised or lowered.' },
+  { id: 'groups', label: 'Groups', description: 'The uncertainty on μ̂ attributed to each group of systematics, and the statistical part.' },
+  { id: 'correlations', label: 'Correlations', description: 'The post-fit correlation matrix, on a teal–white–plum scale from −1 to +1.' },
+  { id: 'distributions', label: 'Distributions', description: 'Per region, the pre-fit and post-fit stacked expectation with the data and a ratio panel.' },
+  { id: 'diagnostics', label: 'Diagnostics', description: "One parameter's numbers and information breakdown, and the convergence report in full." },
+  { id: 'compare', label: 'Compare', description: 'What changed against another fit of this analysis.' },
 ] as const;
 
 export type FitTabId = (typeof FIT_TABS)[number]['id'];

@@ -1,38 +1,173 @@
-import { NavLink, Navigate, useParams } from 'react-router';
-import { PageHeader } from '../../../components/ui/page';
+import { useEffect, useRef } from 'react';
+import { Link, NavLink, Navigate, useParams } from 'react-router';
+import { useQueryClient } from '@tanstack/react-query';
+import type { FitDetail } from '@shared/schemas/fits';
+import type { FitResult } from '@shared/schemas/fit';
+import { useCan } from '../../../features/analyses/use-can';
+import { useCancelFit } from '../../../features/fits/api/cancel-fit';
+import { invalidateFitLists, useFit } from '../../../features/fits/api/get-fit';
+import { isActive } from '../../../features/fits/api/fit-states';
+import { CompareView } from '../../../features/fits/components/compare-view';
+import { ConvergenceReport } from '../../../features/fits/components/convergence';
+import { CorrelationView } from '../../../features/fits/components/correlation-view';
+import { DiagnosticsView } from '../../../features/fits/components/diagnostics-view';
+import { DistributionsView } from '../../../features/fits/components/distributions-view';
+import { FitHeader, StickyConvergence } from '../../../features/fits/components/fit-header';
+import { FitProgress } from '../../../features/fits/components/fit-state';
+import { GroupsView } from '../../../features/fits/components/groups-view';
+import { ImpactTable } from '../../../features/fits/components/impact-table';
+import { PullsView } from '../../../features/fits/components/pulls-view';
+import { SummaryView } from '../../../features/fits/components/summary-view';
+import { FIT_TABS, fitTab, type FitTabId } from '../../../features/fits/fit-tabs';
+import { useModel } from '../../../features/model/api/get-model';
+import { Button } from '../../../components/ui/button';
 import { EmptyState } from '../../../components/ui/empty-state';
-import { FIT_TABS, fitTab } from '../../../features/fits/fit-tabs';
+import { FormError } from '../../../components/ui/error-notice';
+import { Panel } from '../../../components/ui/page';
+import { QueryView } from '../../../components/ui/query-view';
+
+function Tabs({ base, current }: { base: string; current: FitTabId }) {
+  return (
+    <nav aria-label="Fit result views" className="mb-4 border-b border-rule">
+      <ul className="-mb-px flex flex-wrap gap-1">
+        {FIT_TABS.map((t) => (
+          <li key={t.id}>
+            <NavLink
+              to={t.id === 'summary' ? base : `${base}/${t.id}`}
+              end
+              title={t.description}
+              aria-current={t.id === current ? 'page' : undefined}
+              className={`block border-b-2 px-3 py-1.5 text-sm ${
+                t.id === current ? 'border-teal font-semibold text-ink' : 'border-transparent text-ink-soft hover:border-rule-strong hover:text-ink'
+              }`}
+            >
+              {t.label}
+            </NavLink>
+          </li>
+        ))}
+      </ul>
+    </nav>
+  );
+}
+
+function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit: FitDetail; result: FitResult }) {
+  const model = useModel(slug);
+  switch (tab) {
+    case 'summary':
+      return <SummaryView result={result} />;
+    case 'pulls':
+      return <PullsView result={result} />;
+    case 'impacts':
+      return <ImpactTable slug={slug} fitId={fit.id} result={result} />;
+    case 'groups':
+      return <GroupsView result={result} />;
+    case 'correlations':
+      return <CorrelationView result={result} />;
+    case 'distributions':
+      return <DistributionsView result={result} model={model.data} />;
+    case 'diagnostics':
+      return <DiagnosticsView result={result} />;
+    case 'compare':
+      return <CompareView slug={slug} fitId={fit.id} />;
+  }
+}
+
+/** A queued or running fit: its progress, live, and a way to stop it. */
+function Running({ slug, fit }: { slug: string; fit: FitDetail }) {
+  const cancel = useCancelFit(slug);
+  const mayRun = useCan(slug)('fit.run');
+  return (
+    <Panel title={fit.state === 'queued' ? 'Waiting to start' : 'Running'}>
+      <div className="flex flex-wrap items-center gap-4">
+        <FitProgress fit={fit} className="w-full max-w-md" />
+        {mayRun && (
+          <Button variant="danger" size="sm" busy={cancel.isPending} onClick={() => cancel.mutate(fit.id)}>
+            Cancel the fit
+          </Button>
+        )}
+      </div>
+      <FormError error={cancel.error} />
+      <p className="mt-2 text-xs text-ink-muted">This page follows the job as it runs; the result appears here when it ends. You may leave and come back.</p>
+    </Panel>
+  );
+}
+
+function FitBody({ slug, fit, tab }: { slug: string; fit: FitDetail; tab: FitTabId }) {
+  const base = `/a/${slug}/fits/${fit.id}`;
+  if (isActive(fit.state)) return <Running slug={slug} fit={fit} />;
+  if (fit.state === 'cancelled')
+    return (
+      <EmptyState title="This fit was cancelled">
+        <p>It stopped before it finished, so there is no result. Start a new fit from the fits page.</p>
+      </EmptyState>
+    );
+  const result = fit.result;
+  if (fit.state === 'failed' || !result || result.status !== 'converged' || !result.summary)
+    return (
+      <Panel title="The fit failed: no result">
+        {fit.failure && (
+          <p role="alert" className="mb-3 rounded-md border border-danger/30 bg-danger-soft/60 px-3 py-2 text-sm text-danger">
+            {fit.failure}
+          </p>
+        )}
+        {result ? (
+          <ConvergenceReport convergence={result.convergence} status={result.status} />
+        ) : (
+          <p className="text-sm text-ink-muted">The job ended without a convergence report.</p>
+        )}
+        <p className="mt-3 text-xs text-ink-muted">A fit that did not converge is kept with its report and shows no numbers.</p>
+      </Panel>
+    );
+  return (
+    <>
+      <StickyConvergence fit={fit} />
+      <Tabs base={base} current={tab} />
+      <TabView tab={tab} slug={slug} fit={fit} result={result} />
+    </>
+  );
+}
 
 export function FitResultRoute() {
   const { slug = '', fitId = '', tab } = useParams();
   const current = fitTab(tab);
+  const id = /^\d+$/.test(fitId) ? Number(fitId) : NaN;
+  const fit = useFit(slug, id);
+  const queryClient = useQueryClient();
+  const wasActive = useRef(false);
+  const state = fit.data?.state;
+  // When a job this page was following ends, the list and the overview move on too.
+  useEffect(() => {
+    if (!state) return;
+    if (isActive(state)) wasActive.current = true;
+    else if (wasActive.current) {
+      wasActive.current = false;
+      invalidateFitLists(queryClient, slug);
+    }
+  }, [state, queryClient, slug]);
+
   const base = `/a/${slug}/fits/${fitId}`;
   if (!current) return <Navigate to={base} replace />;
-  return (
-    <>
-      <PageHeader title={`Fit ${fitId}`} description="The result of one fit, with the exact model version it used." />
-      <nav aria-label="Fit result views" className="mb-4 border-b border-rule">
-        <ul className="-mb-px flex flex-wrap gap-1">
-          {FIT_TABS.map((t) => (
-            <li key={t.id}>
-              <NavLink
-                to={t.id === 'summary' ? base : `${base}/${t.id}`}
-                end
-                aria-current={t.id === current.id ? 'page' : undefined}
-                className={`block border-b-2 px-3 py-1.5 text-sm ${
-                  t.id === current.id ? 'border-teal font-semibold text-ink' : 'border-transparent text-ink-soft hover:border-rule-strong hover:text-ink'
-                }`}
-              >
-                {t.label}
-              </NavLink>
-            </li>
-          ))}
-        </ul>
-      </nav>
-      <EmptyState title={current.label} notBuilt>
-        <p>{current.future}</p>
-        <p>Fit results are not stored yet, so there is nothing to show for fit {fitId}.</p>
+  if (Number.isNaN(id))
+    return (
+      <EmptyState title="No such fit">
+        <p>
+          “{fitId}” is not a fit number. <Link to={`/a/${slug}/fits`}>Back to the fits</Link>.
+        </p>
       </EmptyState>
-    </>
+    );
+  return (
+    <QueryView query={fit} loadingLabel="Loading the fit…">
+      {(f) => (
+        <>
+          <p className="mb-1 text-xs">
+            <Link to={`/a/${slug}/fits`} className="text-teal-ink hover:underline">
+              ← Fits
+            </Link>
+          </p>
+          <FitHeader slug={slug} fit={f} />
+          <FitBody slug={slug} fit={f} tab={current.id} />
+        </>
+      )}
+    </QueryView>
   );
 }

@@ -63,7 +63,7 @@ export function FitsRoute() {
           )}
           {can('version.freeze') && (
             <Panel title="Freeze model version">
-              <FreezeVersionForm slug={slug} mayMarkForApproval={overview?.role === 'convener'} />
+              <FreezeVersionForm slug={slug} mayMarkForApproval={can('version.approve')} />
             </Panel>
           )}
           <Panel title="Model versions">

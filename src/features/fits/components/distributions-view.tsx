@@ -1,0 +1,116 @@
+import { useMemo, useRef, useState } from 'react';
+import type { Model } from '@shared/schemas/api';
+import type { FitResult } from '@shared/schemas/fit';
+import { ExportButtons } from '../../../components/charts/export-buttons';
+import { StackedChart, type StackedChartData } from '../../../components/charts/stacked-chart';
+import { Badge } from '../../../components/ui/badge';
+import { Panel } from '../../../components/ui/page';
+import { processColour } from '../../../lib/palette';
+import { formatPlain } from '../describe';
+
+type Stage = 'prefit' | 'postfit';
+type RegionYields = FitResult['yields']['prefit'][number];
+
+const ROLE_LABEL = { signal: 'signal region', control: 'control region', validation: 'validation region' } as const;
+
+/**
+ * One region of a fit as the stacked chart draws it. Labels, colours, the observable and its unit
+ * come from the model when it has the region and processes (the result names them by key).
+ */
+export function fitRegionChart(result: FitResult, y: RegionYields, stage: Stage, model?: Model): StackedChartData {
+  const region = model?.regions.find((r) => r.key === y.region);
+  const procIndex = new Map((model?.processes ?? []).map((p, i) => [p.key, i]));
+  const signal = (key: string) => model?.processes.find((p) => p.key === key)?.kind === 'signal';
+  const layers = y.processes
+    .map((p, i) => ({ p, i }))
+    .sort((a, b) => Number(signal(a.p.process)) - Number(signal(b.p.process)) || a.i - b.i)
+    .map(({ p, i }) => {
+      const mp = model?.processes.find((q) => q.key === p.process);
+      return { key: p.process, label: mp?.label || p.process, colour: processColour(procIndex.get(p.process) ?? i, mp?.colour), values: p.values };
+    });
+  const dataRegion = result.data.regions.find((d) => d.region === y.region);
+  const values = dataRegion?.values ?? null;
+  const asimov = result.data.dataset === 'asimov';
+  return {
+    stage: stage === 'prefit' ? 'Pre-fit' : 'Post-fit',
+    regionLabel: region?.label || y.region,
+    observable: region?.observable ?? 'observable',
+    unit: region?.unit ?? null,
+    edges: y.edges,
+    layers,
+    expected: y.total.values,
+    band: y.total.errors,
+    bandInfo: {
+      label: stage === 'prefit' ? 'Pre-fit uncertainty ±1σ' : 'Post-fit uncertainty ±1σ',
+      title:
+        stage === 'prefit'
+          ? '±1σ of the total expectation from the priors (θ: 1, γ: template statistics), propagated linearly; μ and the normalisations add nothing'
+          : '±1σ of the total expectation from the fit’s full covariance, propagated linearly',
+      inMain: true,
+    },
+    data: values,
+    dataLabel: asimov ? `Asimov data (μ = ${formatPlain(result.data.asimovMu ?? 1)})` : 'Observed',
+    withheld: values === null,
+  };
+}
+
+function RegionChart({ result, y, stage, model }: { result: FitResult; y: RegionYields; stage: Stage; model?: Model }) {
+  const ref = useRef<SVGSVGElement>(null);
+  const d = useMemo(() => fitRegionChart(result, y, stage, model), [result, y, stage, model]);
+  const title = `${d.stage} ${d.regionLabel}`;
+  return (
+    <Panel
+      title={
+        <span className="flex flex-wrap items-center gap-2">
+          {d.regionLabel}
+          <span className="font-mono text-2xs font-normal text-ink-muted">{y.region}</span>
+          <Badge tone={y.role === 'signal' ? 'plum' : y.role === 'control' ? 'teal' : 'neutral'}>{ROLE_LABEL[y.role]}</Badge>
+          {!y.inFit && (
+            <Badge tone="amber" title="This region was left out of the likelihood; its yields are shown with the fitted parameters">
+              not in the fit
+            </Badge>
+          )}
+        </span>
+      }
+      actions={<ExportButtons title={title} svg={ref} />}
+    >
+      <StackedChart d={d} svgRef={ref} />
+      {d.withheld && (
+        <p className="mt-1 text-xs text-amber-ink">
+          {y.role === 'signal'
+            ? 'The observed counts of this signal region are withheld while the analysis is blinded: the server never sends them.'
+            : 'No data for this region in this result.'}
+        </p>
+      )}
+    </Panel>
+  );
+}
+
+/** Per region, the pre-fit or post-fit stack with its band, the data and the ratio panel. */
+export function DistributionsView({ result, model }: { result: FitResult; model?: Model }) {
+  const hasPost = result.yields.postfit !== null;
+  const [stage, setStage] = useState<Stage>(hasPost ? 'postfit' : 'prefit');
+  const list = (stage === 'postfit' ? result.yields.postfit : result.yields.prefit) ?? result.yields.prefit;
+  return (
+    <div className="flex flex-col gap-4">
+      <fieldset className="flex flex-wrap items-center gap-4">
+        <legend className="sr-only">Expectation</legend>
+        {(['prefit', 'postfit'] as const).map((s) => (
+          <label key={s} className={`flex items-center gap-1.5 text-sm ${s === 'postfit' && !hasPost ? 'text-ink-muted' : ''}`}>
+            <input type="radio" name="dist-stage" className="accent-teal" checked={stage === s} disabled={s === 'postfit' && !hasPost} onChange={() => setStage(s)} />
+            {s === 'prefit' ? 'Pre-fit expectation' : 'Post-fit expectation'}
+          </label>
+        ))}
+        <span className="text-xs text-ink-muted">
+          {result.data.dataset === 'asimov' ? `The fitted data are the pre-fit Asimov dataset at μ = ${formatPlain(result.data.asimovMu ?? 1)}.` : 'The fitted data are the observed counts.'} Error
+          bars are Garwood 68 % Poisson intervals; the stippled band is the expectation's ±1σ.
+        </span>
+      </fieldset>
+      <div className="grid gap-4 2xl:grid-cols-2">
+        {list.map((y) => (
+          <RegionChart key={y.region} result={result} y={y} stage={stage} model={model} />
+        ))}
+      </div>
+    </div>
+  );
+}

@@ -1,0 +1,65 @@
+import type { FitDetail } from '@shared/schemas/fits';
+import { formatDateTime } from '../../../lib/format';
+import { EXPORT_TABLES, exportCsvUrl, exportJsonUrl } from '../api/export-links';
+import { datasetInWords, optionsInWords } from '../describe';
+import { ConvergenceStrip } from './convergence';
+import { FitStateBadge } from './fit-state';
+
+/** Downloads of a stored result: the whole result as JSON and every table as CSV. */
+export function ExportLinks({ slug, fit }: { slug: string; fit: FitDetail }) {
+  const converged = fit.result?.status === 'converged';
+  const link = 'rounded px-1.5 py-0.5 text-xs font-medium text-teal-ink hover:bg-teal-soft hover:underline';
+  return (
+    <nav aria-label="Downloads of this result" className="flex flex-wrap items-center gap-1 text-xs">
+      <span className="mr-1 text-ink-muted">Download</span>
+      <a className={link} href={exportJsonUrl(slug, fit.id)} download title="The whole stored result, with the options and the model version, as JSON">
+        JSON
+      </a>
+      {converged &&
+        EXPORT_TABLES.map((t) => (
+          <a key={t.table} className={link} href={exportCsvUrl(slug, fit.id, t.table)} download title={`${t.title} (CSV)`}>
+            {t.label} CSV
+          </a>
+        ))}
+    </nav>
+  );
+}
+
+/**
+ * What every view of a result starts with: which fit this is, on which version and data, and
+ * whether the minimiser converged, with its warnings. The convergence line stays in view while
+ * the page scrolls, so the numbers below are never read without it.
+ */
+export function FitHeader({ slug, fit }: { slug: string; fit: FitDetail }) {
+  return (
+    <header className="mb-3 flex flex-col gap-2 border-b border-rule pb-3">
+      <div className="flex flex-wrap items-end justify-between gap-3">
+        <div>
+          <h1 className="flex flex-wrap items-center gap-2 text-xl font-semibold tracking-tight text-ink">
+            {fit.label || `Fit ${fit.id}`}
+            <FitStateBadge state={fit.state} />
+          </h1>
+          <p className="mt-0.5 text-sm text-ink-muted">
+            <span title="The frozen model version this fit used">Model version {fit.version}</span> · {datasetInWords(fit.options)} · {optionsInWords(fit.options)}
+          </p>
+          <p className="text-xs text-ink-muted">
+            Fit #{fit.id} · started {formatDateTime(fit.createdAt)}
+            {fit.createdBy ? ` by ${fit.createdBy}` : ''}
+            {fit.finishedAt ? ` · finished ${formatDateTime(fit.finishedAt)}` : ''}
+          </p>
+        </div>
+        {fit.result && <ExportLinks slug={slug} fit={fit} />}
+      </div>
+    </header>
+  );
+}
+
+/** The convergence line, kept in view while the page scrolls; place it as a sibling of the views. */
+export function StickyConvergence({ fit }: { fit: FitDetail }) {
+  if (!fit.result) return null;
+  return (
+    <div className="sticky top-12 z-10 -mx-6 mb-3 border-y border-rule bg-paper/95 px-6 py-1.5 backdrop-blur-sm">
+      <ConvergenceStrip result={fit.result} />
+    </div>
+  );
+}

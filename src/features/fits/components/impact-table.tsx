@@ -1,0 +1,253 @@
+import { useMemo, useState } from 'react';
+import { Link, useNavigate } from 'react-router';
+import {
+  createColumnHelper,
+  createSortedRowModel,
+  FlexRender,
+  rowSortingFeature,
+  sortFn_alphanumeric,
+  sortFn_basic,
+  sortFn_text,
+  tableFeatures,
+  useTable,
+  type SortingState,
+} from '@tanstack/react-table';
+import type { FitResult, NuisanceReport } from '@shared/schemas/fit';
+import { tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { formatFixed, formatSigned } from '../../../lib/stats-format';
+import { groupName, impactMode, impactSize, isStronglyPulled, labelsOf, rankByImpact, type ImpactMode } from '../result-helpers';
+import { ConstraintMeter, ImpactGlyph, PullGlyph } from './glyphs';
+import { GroupFilter, groupsOf } from './group-filter';
+
+export type ImpactRow = NuisanceReport & { label: string; position: number; size: number | null };
+
+const features = tableFeatures({
+  rowSortingFeature,
+  sortedRowModel: createSortedRowModel(),
+  sortFns: { alphanumeric: sortFn_alphanumeric, text: sortFn_text, basic: sortFn_basic },
+});
+
+const col = createColumnHelper<typeof features, ImpactRow>();
+
+function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: number, threshold: number) {
+  return col.columns([
+    col.accessor('position', {
+      header: '#',
+      sortFn: 'basic',
+      cell: (c) => (
+        <span className="text-ink-muted tabular-nums" title={mode === 'none' ? 'Row number' : `Rank by ${mode === 'postfit' ? 'post-fit' : 'quick'} impact, 1 = largest`}>
+          {c.getValue()}
+        </span>
+      ),
+    }),
+    col.accessor('name', {
+      header: 'Parameter',
+      sortFn: 'alphanumeric',
+      cell: (c) => {
+        const r = c.row.original;
+        return (
+          <span className="flex flex-col">
+            <Link
+              to={`/a/${slug}/fits/${fitId}/diagnostics?parameter=${encodeURIComponent(r.name)}`}
+              onClick={(e) => e.stopPropagation()}
+              className="font-mono text-xs font-medium text-teal-ink hover:underline"
+              title={`Open the diagnosis of ${r.name}`}
+            >
+              {r.name}
+            </Link>
+            {r.label && r.label !== r.name && <span className="max-w-[14rem] truncate text-2xs text-ink-muted">{r.label}</span>}
+          </span>
+        );
+      },
+    }),
+    col.accessor((r) => groupName(r.group), { id: 'group', header: 'Group', sortFn: 'text', cell: (c) => <span className="text-xs">{c.getValue()}</span> }),
+    col.accessor('pull', {
+      header: 'Pull',
+      sortFn: 'basic',
+      cell: (c) => {
+        const r = c.row.original;
+        return (
+          <span className="flex items-center gap-1.5">
+            <PullGlyph n={r} />
+            <span className={`w-11 text-right text-xs tabular-nums ${isStronglyPulled(r) ? 'font-semibold text-plum' : ''}`}>{formatSigned(r.pull, 2)}</span>
+          </span>
+        );
+      },
+    }),
+    col.accessor((r) => r.constraint ?? undefined, {
+      id: 'constraint',
+      header: 'Constraint',
+      sortFn: 'basic',
+      sortUndefined: 'last',
+      cell: (c) => {
+        const r = c.row.original;
+        return (
+          <span className="flex items-center gap-1.5">
+            <ConstraintMeter n={r} threshold={threshold} />
+            <span className={`w-9 text-right text-xs tabular-nums ${r.overConstrained ? 'font-semibold text-amber-ink' : ''}`}>{formatFixed(r.constraint, 2)}</span>
+          </span>
+        );
+      },
+    }),
+    ...(mode === 'none'
+      ? []
+      : [
+          col.accessor((r) => r.size ?? undefined, {
+            id: 'impact',
+            header: mode === 'postfit' ? 'Δμ, θ raised / lowered' : 'Δμ (quick estimate)',
+            sortFn: 'basic',
+            sortUndefined: 'last',
+            cell: (c) => {
+              const r = c.row.original;
+              return mode === 'postfit' ? (
+                <ImpactGlyph up={r.postfitImpact?.up ?? null} down={r.postfitImpact?.down ?? null} preUp={r.prefitImpact?.up} preDown={r.prefitImpact?.down} scale={scale} />
+              ) : (
+                <ImpactGlyph up={r.quickImpact} down={r.quickImpact === null ? null : -r.quickImpact} scale={scale} estimated />
+              );
+            },
+          }),
+          col.accessor((r) => r.size ?? undefined, {
+            id: 'size',
+            header: 'max |Δμ|',
+            sortFn: 'basic',
+            sortUndefined: 'last',
+            cell: (c) => (
+              <span className="text-xs tabular-nums" title={mode === 'postfit' ? 'max(|Δμ+|, |Δμ−|) of the post-fit refits, in units of μ' : '|ρ(μ, θ)·σ_μ|, in units of μ'}>
+                {formatFixed(c.row.original.size, 4)}
+              </span>
+            ),
+          }),
+        ]),
+  ]);
+}
+
+const NUMERIC = new Set(['position', 'size']);
+const TOP_CHOICES = [10, 20, 50, 0] as const;
+
+/** The scale of the impact glyphs: the largest |Δμ| among the rows shown, post- and pre-fit. */
+export function impactScale(rows: NuisanceReport[], mode: ImpactMode): number {
+  let m = 0;
+  for (const r of rows) {
+    if (mode === 'postfit') for (const v of [r.postfitImpact?.up, r.postfitImpact?.down, r.prefitImpact?.up, r.prefitImpact?.down]) if (v != null) m = Math.max(m, Math.abs(v));
+    if (mode === 'quick' && r.quickImpact !== null) m = Math.max(m, Math.abs(r.quickImpact));
+  }
+  return m || 1;
+}
+
+/**
+ * The ranked impacts as a dense table: one row per nuisance parameter, with its pull on the
+ * prior band, its constraint meter and its Δμ bars. A click on a row opens its diagnosis.
+ */
+export function ImpactTable({ slug, fitId, result }: { slug: string; fitId: number; result: FitResult }) {
+  const navigate = useNavigate();
+  const mode = impactMode(result);
+  const threshold = result.options.overConstraintThreshold;
+  const [top, setTop] = useState<number>(20);
+  const [group, setGroup] = useState<string | null>(null);
+  const [sorting, setSorting] = useState<SortingState>([]);
+
+  const ranked = useMemo(() => {
+    const labels = labelsOf(result);
+    return rankByImpact(
+      result.nuisance.filter((n) => !n.fixed),
+      mode,
+    ).map((n, i): ImpactRow => ({ ...n, label: labels.get(n.name) ?? '', position: i + 1, size: impactSize(n, mode) }));
+  }, [result, mode]);
+  const rows = useMemo(() => {
+    const inGroup = group === null ? ranked : ranked.filter((r) => groupName(r.group) === group);
+    return top > 0 ? inGroup.slice(0, top) : inGroup;
+  }, [ranked, group, top]);
+  const scale = useMemo(() => impactScale(ranked, mode), [ranked, mode]);
+  const columns = useMemo(() => makeColumns(slug, fitId, mode, scale, threshold), [slug, fitId, mode, scale, threshold]);
+  const table = useTable({ features, columns, data: rows, state: { sorting }, onSortingChange: setSorting });
+  const held = result.nuisance.filter((n) => n.fixed);
+
+  return (
+    <div className="flex flex-col gap-3">
+      <div className="flex flex-wrap items-end gap-3">
+        <div className="flex flex-col gap-1">
+          <label htmlFor="impact-top" className="text-xs font-semibold text-ink-soft">
+            Show
+          </label>
+          <select id="impact-top" value={top} onChange={(e) => setTop(Number(e.target.value))} className="rounded-md border border-rule-strong bg-paper-raised px-2 py-1.5 text-sm">
+            {TOP_CHOICES.map((n) => (
+              <option key={n} value={n}>
+                {n === 0 ? 'all' : `top ${n}`}
+              </option>
+            ))}
+          </select>
+        </div>
+        <GroupFilter id="impact-group" groups={groupsOf(ranked)} value={group} onChange={setGroup} />
+        <p className="text-xs text-ink-muted" aria-live="polite">
+          {rows.length} of {ranked.length} free nuisance parameters
+          {held.length > 0 && `; ${held.length} held at their start value`}
+        </p>
+      </div>
+      <p className="text-xs text-ink-soft">
+        {mode === 'postfit' && (
+          <>
+            Ranked by post-fit impact, max(|Δμ+|, |Δμ−|) from refits with θ fixed at θ̂ ± σ̂. Bars: <span className="font-semibold text-teal-ink">θ raised</span> above,{' '}
+            <span className="font-semibold text-amber-ink">θ lowered</span> below; solid for post-fit, light outline for pre-fit (θ̂ ± 1). Common scale ±{formatFixed(scale, 3)} in μ.
+          </>
+        )}
+        {mode === 'quick' && (
+          <span className="font-medium text-amber-ink">
+            Ranked by quick impact ρ(μ, θ)·σ_μ, an estimate from the covariance without refits. Run the fit with full impacts for the real Δμ and the pre-fit comparison.
+          </span>
+        )}
+        {mode === 'none' && 'This fit was run without impacts: the table lists pulls and constraints only, by name.'}
+        {' '}Click a row for the parameter's diagnosis.
+      </p>
+      <div className="overflow-x-auto rounded-lg border border-rule bg-paper-raised">
+        <table className={tableClass} aria-label="Impact ranking">
+          <thead>
+            {table.getHeaderGroups().map((g) => (
+              <tr key={g.id}>
+                {g.headers.map((header) => {
+                  const sorted = header.column.getIsSorted();
+                  return (
+                    <th
+                      key={header.id}
+                      scope="col"
+                      aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : 'none'}
+                      className={`${thClass} whitespace-nowrap ${NUMERIC.has(header.column.id) ? 'text-right' : ''}`}
+                    >
+                      <button type="button" onClick={header.column.getToggleSortingHandler()} className="inline-flex items-center gap-1 rounded hover:text-ink" title="Sort by this column">
+                        <table.FlexRender header={header} />
+                        <span aria-hidden className={`w-2.5 text-2xs ${sorted ? 'text-teal-ink' : 'text-rule-strong'}`}>
+                          {sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}
+                        </span>
+                      </button>
+                    </th>
+                  );
+                })}
+              </tr>
+            ))}
+          </thead>
+          <tbody>
+            {table.getRowModel().rows.map((row) => (
+              <tr
+                key={row.id}
+                onClick={() => navigate(`/a/${slug}/fits/${fitId}/diagnostics?parameter=${encodeURIComponent(row.original.name)}`)}
+                className="cursor-pointer hover:bg-teal-soft/40"
+              >
+                {row.getAllCells().map((cell) => (
+                  <td key={cell.id} className={`${tdClass} py-1 align-middle whitespace-nowrap ${NUMERIC.has(cell.column.id) ? 'text-right' : ''}`}>
+                    <FlexRender cell={cell} />
+                  </td>
+                ))}
+              </tr>
+            ))}
+            {rows.length === 0 && (
+              <tr>
+                <td colSpan={columns.length} className={`${tdClass} py-6 text-center text-ink-muted`}>
+                  No nuisance parameter in this group.
+                </td>
+              </tr>
+            )}
+          </tbody>
+        </table>
+      </div>
+    </div>
+  );
+}

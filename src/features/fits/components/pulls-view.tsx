@@ -1,0 +1,246 @@
+import { useMemo, useRef, useState } from 'react';
+import { scaleLinear } from 'd3-scale';
+import type { FitResult, NuisanceReport } from '@shared/schemas/fit';
+import { BottomAxis } from '../../../components/charts/axes';
+import { ExportButtons } from '../../../components/charts/export-buttons';
+import { CheckboxField } from '../../../components/ui/field';
+import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { theme } from '../../../lib/palette';
+import { formatFixed, formatSigned } from '../../../lib/stats-format';
+import { groupName, isStronglyPulled, labelsOf, STRONG_PULL } from '../result-helpers';
+import { markColour } from './glyphs';
+import { GroupFilter, groupsOf } from './group-filter';
+
+export type PullSort = 'group' | 'name' | 'pull' | 'absPull' | 'constraint' | 'normalisedPull';
+
+const SORTS: { id: PullSort; label: string }[] = [
+  { id: 'group', label: 'group, then name' },
+  { id: 'name', label: 'name' },
+  { id: 'absPull', label: '|pull|, largest first' },
+  { id: 'pull', label: 'pull, low to high' },
+  { id: 'constraint', label: 'constraint, tightest first' },
+  { id: 'normalisedPull', label: '|normalised pull|, largest first' },
+];
+
+/** Order nuisance parameters for the pulls view; ties and missing values fall back to the name. */
+export function sortPulls(list: NuisanceReport[], by: PullSort): NuisanceReport[] {
+  const name = (a: NuisanceReport, b: NuisanceReport) => a.name.localeCompare(b.name);
+  const largestFirst = (v: number | null) => (v === null ? null : -Math.abs(v));
+  const nullLast = (x: number | null, y: number | null) => (x === null ? (y === null ? 0 : 1) : y === null ? -1 : x - y);
+  const cmp: Record<PullSort, (a: NuisanceReport, b: NuisanceReport) => number> = {
+    group: (a, b) => groupName(a.group).localeCompare(groupName(b.group)) || name(a, b),
+    name,
+    pull: (a, b) => a.pull - b.pull || name(a, b),
+    absPull: (a, b) => Math.abs(b.pull) - Math.abs(a.pull) || name(a, b),
+    constraint: (a, b) => nullLast(a.constraint, b.constraint) || name(a, b),
+    normalisedPull: (a, b) => nullLast(largestFirst(a.normalisedPull), largestFirst(b.normalisedPull)) || name(a, b),
+  };
+  return [...list].sort(cmp[by]);
+}
+
+const ROW = 17;
+const W = 640;
+const M = { left: 178, right: 96, top: 8, bottom: 36 };
+
+/** Every nuisance parameter's pull (dot) and post-fit width (bar) against the prior band [−1, 1], ±2 lighter. */
+export function PullsChart({ rows, labels, threshold, title }: { rows: NuisanceReport[]; labels: Map<string, string>; threshold: number; title: string }) {
+  const ref = useRef<SVGSVGElement>(null);
+  const extent = Math.max(2.5, ...rows.map((r) => Math.abs(r.pull) + (r.constraint ?? 0)));
+  const lim = Math.min(6, Math.ceil(extent * 2) / 2);
+  const H = M.top + rows.length * ROW + M.bottom;
+  const x = scaleLinear().domain([-lim, lim]).range([M.left, W - M.right]);
+  const y0 = M.top;
+  const plotH = rows.length * ROW;
+  return (
+    <figure className="flex flex-col gap-1">
+      <div className="flex items-center justify-between gap-2">
+        <figcaption className="text-sm font-semibold text-ink">{title}</figcaption>
+        <ExportButtons title={title} svg={ref} />
+      </div>
+      <svg ref={ref} viewBox={`0 0 ${W} ${H}`} className="h-auto w-full max-w-[48rem]" role="img" aria-label={`${title}: ${rows.length} nuisance parameters; the numbers are in the table below.`}>
+        <rect x={x(-2)} y={y0} width={x(2) - x(-2)} height={plotH} fill={theme.teal} fillOpacity={0.07} />
+        <rect x={x(-1)} y={y0} width={x(1) - x(-1)} height={plotH} fill={theme.teal} fillOpacity={0.18} />
+        {[-2, -1, 0, 1, 2].map((v) => (
+          <line key={v} x1={x(v)} x2={x(v)} y1={y0} y2={y0 + plotH} stroke={v === 0 ? theme.inkMuted : theme.rule} strokeWidth={v === 0 ? 0.8 : 0.6} />
+        ))}
+        {rows.map((r, i) => {
+          const cy = y0 + i * ROW + ROW / 2;
+          const colour = markColour(r);
+          const c = r.constraint;
+          const flagged = r.overConstrained || isStronglyPulled(r);
+          const clampX = (v: number) => x(Math.max(-lim, Math.min(lim, v)));
+          return (
+            <g key={r.name}>
+              {i % 2 === 1 && <rect x={0} y={cy - ROW / 2} width={M.left - 6} height={ROW} fill={theme.paper} />}
+              <text x={M.left - 10} y={cy} dy="0.32em" textAnchor="end" style={{ fontSize: 10.5, fill: flagged ? colour : theme.ink, fontWeight: flagged ? 600 : 400 }}>
+                {r.name.length > 28 ? `${r.name.slice(0, 27)}…` : r.name}
+              </text>
+              {c !== null && (
+                <g stroke={colour} strokeWidth={1.5}>
+                  <line x1={clampX(r.pull - c)} x2={clampX(r.pull + c)} y1={cy} y2={cy} />
+                  <line x1={clampX(r.pull - c)} x2={clampX(r.pull - c)} y1={cy - 3} y2={cy + 3} />
+                  <line x1={clampX(r.pull + c)} x2={clampX(r.pull + c)} y1={cy - 3} y2={cy + 3} />
+                </g>
+              )}
+              {r.overConstrained ? (
+                <rect x={clampX(r.pull) - 3.6} y={cy - 3.6} width={7.2} height={7.2} transform={`rotate(45 ${clampX(r.pull)} ${cy})`} fill={colour} stroke={theme.paperRaised} strokeWidth={0.8} />
+              ) : (
+                <circle cx={clampX(r.pull)} cy={cy} r={3.6} fill={r.fixed ? theme.paperRaised : colour} stroke={r.fixed ? theme.inkMuted : theme.paperRaised} strokeWidth={0.8} />
+              )}
+              <text x={W - M.right + 8} y={cy} dy="0.32em" style={{ fontSize: 9.5, fill: theme.inkMuted }}>
+                {formatSigned(r.pull, 2)} ± {formatFixed(c, 2)}
+              </text>
+              <rect x={0} y={cy - ROW / 2} width={W} height={ROW} fill="transparent">
+                <title>
+                  {[
+                    `${r.name}${labels.get(r.name) ? ` (${labels.get(r.name)})` : ''}, group ${groupName(r.group)}`,
+                    `pull (θ̂ − 0)/1 = ${formatSigned(r.pull, 3)}`,
+                    `constraint σ̂/1 = ${formatFixed(r.constraint, 3)}${r.overConstrained ? ` (below ${threshold}: over-constrained)` : ''}`,
+                    `normalised pull θ̂/√(1 − σ̂²) = ${formatSigned(r.normalisedPull, 3)}`,
+                    ...(r.fixed ? ['held at its start value'] : []),
+                    ...(isStronglyPulled(r) ? [`|pull| above ${STRONG_PULL}: strongly pulled`] : []),
+                  ].join('\n')}
+                </title>
+              </rect>
+            </g>
+          );
+        })}
+        <BottomAxis scale={x} y={y0 + plotH} ticks={Math.min(12, lim * 2)} title="(θ̂ − θ₀)/Δθ: pull, with ±σ̂ as bars" />
+      </svg>
+      <ul className="flex flex-wrap gap-x-4 gap-y-1 text-xs text-ink-soft" aria-label="Legend of the pulls">
+        <li className="flex items-center gap-1.5">
+          <span aria-hidden className="inline-block h-3 w-5" style={{ background: theme.teal, opacity: 0.3 }} />
+          prior ±1 (±2 lighter)
+        </li>
+        <li className="flex items-center gap-1.5">
+          <span aria-hidden className="inline-block size-2.5 rounded-full bg-ink" />
+          pull with post-fit ±σ̂
+        </li>
+        <li className="flex items-center gap-1.5">
+          <span aria-hidden className="inline-block size-2.5 rotate-45 bg-amber" />
+          over-constrained (σ̂ below {threshold})
+        </li>
+        <li className="flex items-center gap-1.5">
+          <span aria-hidden className="inline-block size-2.5 rounded-full bg-plum" />
+          strongly pulled (|pull| above {STRONG_PULL})
+        </li>
+      </ul>
+    </figure>
+  );
+}
+
+/** The pulls view: chart, sort and filters, the numbers as a table, and the floating normalisations apart. */
+export function PullsView({ result }: { result: FitResult }) {
+  const [sort, setSort] = useState<PullSort>('group');
+  const [group, setGroup] = useState<string | null>(null);
+  const [flaggedOnly, setFlaggedOnly] = useState(false);
+  const threshold = result.options.overConstraintThreshold;
+  const labels = useMemo(() => labelsOf(result), [result]);
+  const rows = useMemo(() => {
+    let list = result.nuisance;
+    if (group !== null) list = list.filter((n) => groupName(n.group) === group);
+    if (flaggedOnly) list = list.filter((n) => n.overConstrained || isStronglyPulled(n));
+    return sortPulls(list, sort);
+  }, [result, group, flaggedOnly, sort]);
+  const over = result.nuisance.filter((n) => n.overConstrained).length;
+  const pulled = result.nuisance.filter(isStronglyPulled).length;
+  const norms = result.parameters.filter((p) => p.kind === 'normalisation');
+
+  return (
+    <div className="flex flex-col gap-4">
+      <div className="flex flex-wrap items-end gap-3">
+        <div className="flex flex-col gap-1">
+          <label htmlFor="pulls-sort" className="text-xs font-semibold text-ink-soft">
+            Sort by
+          </label>
+          <select id="pulls-sort" value={sort} onChange={(e) => setSort(e.target.value as PullSort)} className="rounded-md border border-rule-strong bg-paper-raised px-2 py-1.5 text-sm">
+            {SORTS.map((s) => (
+              <option key={s.id} value={s.id}>
+                {s.label}
+              </option>
+            ))}
+          </select>
+        </div>
+        <GroupFilter id="pulls-group" groups={groupsOf(result.nuisance)} value={group} onChange={setGroup} />
+        <CheckboxField label="Only flagged parameters" checked={flaggedOnly} onChange={(e) => setFlaggedOnly(e.target.checked)} className="pb-1.5" />
+        <p className="pb-1.5 text-xs text-ink-muted" aria-live="polite">
+          {rows.length} of {result.nuisance.length} shown ·{' '}
+          <span className={over ? 'font-semibold text-amber-ink' : ''} title={`Post-fit width below ${threshold} of the prior`}>
+            {over} over-constrained
+          </span>{' '}
+          ·{' '}
+          <span className={pulled ? 'font-semibold text-plum' : ''} title={`|pull| above ${STRONG_PULL}`}>
+            {pulled} strongly pulled
+          </span>
+        </p>
+      </div>
+      {rows.length === 0 ? (
+        <p className="text-sm text-ink-muted">No nuisance parameter matches these filters.</p>
+      ) : (
+        <Panel>
+          <PullsChart rows={rows} labels={labels} threshold={threshold} title="Pulls and constraints" />
+        </Panel>
+      )}
+      <details className="rounded-lg border border-rule bg-paper-raised px-4 py-2">
+        <summary className="cursor-pointer text-sm font-semibold text-ink">The numbers as a table</summary>
+        <table className={`${tableClass} mt-2`} aria-label="Pulls and constraints">
+          <thead>
+            <tr>
+              <th scope="col" className={thClass}>
+                Parameter
+              </th>
+              <th scope="col" className={thClass}>
+                Group
+              </th>
+              <th scope="col" className={`${thClass} text-right`} title="(θ̂ − 0)/1">
+                Pull
+              </th>
+              <th scope="col" className={`${thClass} text-right`} title="σ̂/1">
+                Constraint
+              </th>
+              <th scope="col" className={`${thClass} text-right`} title="θ̂/√(1 − σ̂²) when σ̂ < 1">
+                Normalised pull
+              </th>
+              <th scope="col" className={thClass}>
+                Flags
+              </th>
+            </tr>
+          </thead>
+          <tbody>
+            {rows.map((r) => (
+              <tr key={r.name}>
+                <td className={`${tdClass} font-mono text-xs`}>{r.name}</td>
+                <td className={`${tdClass} text-xs`}>{groupName(r.group)}</td>
+                <td className={`${tdClass} text-right tabular-nums`}>{formatSigned(r.pull, 3)}</td>
+                <td className={`${tdClass} text-right tabular-nums`}>{formatFixed(r.constraint, 3)}</td>
+                <td className={`${tdClass} text-right tabular-nums`}>{formatSigned(r.normalisedPull, 3)}</td>
+                <td className={`${tdClass} text-xs`}>
+                  {[r.fixed && 'held', r.overConstrained && 'over-constrained', isStronglyPulled(r) && 'strongly pulled'].filter(Boolean).join(', ')}
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </details>
+      <Panel title="Floating normalisations">
+        {norms.length === 0 ? (
+          <p className="text-sm text-ink-muted">No floating normalisation in this model.</p>
+        ) : (
+          <ul className="grid gap-x-6 gap-y-1 text-sm sm:grid-cols-2">
+            {norms.map((p) => (
+              <li key={p.name} className="flex items-baseline justify-between gap-3" title="Free scale factor without a prior; 1 = nominal">
+                <span>
+                  {p.label || p.name} <span className="font-mono text-2xs text-ink-muted">{p.name}</span>
+                </span>
+                <span className="tabular-nums">
+                  {formatFixed(p.value, 3)} ± {formatFixed(p.error, 3)}
+                  {p.atBound && <span className="ml-1 text-xs font-semibold text-amber-ink">at a bound</span>}
+                </span>
+              </li>
+            ))}
+          </ul>
+        )}
+      </Panel>
+    </div>
+  );
+}

@@ -1,0 +1,189 @@
+import type { ReactNode } from 'react';
+import type { FitResult } from '@shared/schemas/fit';
+import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { decimalsFor, formatFixed, formatProbability, formatSigma, formatSigned } from '../../../lib/stats-format';
+import { ConvergenceReport } from './convergence';
+import { ScanChart } from './scan-chart';
+
+function Row({ label, title, children }: { label: ReactNode; title: string; children: ReactNode }) {
+  return (
+    <>
+      <dt className="text-ink-muted">{label}</dt>
+      <dd className="tabular-nums" title={title}>
+        {children}
+      </dd>
+    </>
+  );
+}
+
+/** μ̂ with its 68 % errors: the scan's crossings when there is a scan, else ±σ_μ from the covariance. */
+export function MuHeadline({ result }: { result: FitResult }) {
+  const mu = result.summary!.mu;
+  const dec = decimalsFor(mu.error);
+  if (mu.fixed)
+    return (
+      <p className="text-lg" title="μ was held at this value (control regions only), not fitted">
+        μ held at <span className="font-semibold tabular-nums">{formatFixed(mu.value, 3)}</span>
+      </p>
+    );
+  const i68 = mu.interval68;
+  const asym = i68 && i68.low !== null && i68.high !== null;
+  return (
+    <p className="flex flex-wrap items-baseline gap-x-2 text-ink">
+      <span className="text-sm text-ink-muted">μ̂ =</span>
+      <span className="text-3xl font-semibold tabular-nums" title="Best-fit signal strength, in multiples of the nominal signal">
+        {formatFixed(mu.value, dec)}
+      </span>
+      {asym ? (
+        <span className="inline-flex flex-col text-sm leading-tight tabular-nums" title="68 % interval from the profile-likelihood scan (where q = 1), as offsets from μ̂">
+          <span>{formatSigned(i68.high, dec)}</span>
+          <span>{formatSigned(i68.low, dec)}</span>
+        </span>
+      ) : (
+        <span className="text-lg tabular-nums" title="σ_μ = √V_μμ from the covariance at the minimum (symmetric; run a scan for asymmetric errors)">
+          ± {formatFixed(mu.error, dec)}
+        </span>
+      )}
+      <span className="text-xs text-ink-muted">{asym ? '68 % interval from the scan' : '±σ_μ from the covariance'}</span>
+    </p>
+  );
+}
+
+/** The headline numbers of a converged fit, each with its meaning on hover. */
+export function SummaryView({ result }: { result: FitResult }) {
+  const s = result.summary!;
+  const mu = s.mu;
+  const dec = decimalsFor(mu.error);
+  const norms = result.parameters.filter((p) => p.kind === 'normalisation');
+  const i95 = mu.interval95;
+  const lim = s.limit;
+  const asimov = result.data.dataset === 'asimov';
+  return (
+    <div className="flex flex-col gap-4">
+      <div className="grid gap-4 lg:grid-cols-2">
+        <Panel title="Signal strength">
+          <MuHeadline result={result} />
+          {!mu.fixed && (
+            <dl className="mt-3 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
+              <Row label="σ_μ" title="√V_μμ: the symmetric error from the covariance at the minimum">
+                {formatFixed(mu.error, dec)}
+              </Row>
+              <Row label="95 % interval" title="Where the scan crosses q = 3.84 (absolute values of μ)">
+                {i95 && i95.low !== null && i95.high !== null ? `[${formatFixed(mu.value + i95.low, dec)}, ${formatFixed(mu.value + i95.high, dec)}]` : <span className="text-ink-muted">needs a scan</span>}
+              </Row>
+              <Row label="Statistical part" title="σ_μ with every nuisance parameter and γ held at its best fit (μ and the normalisations free)">
+                ± {formatFixed(mu.stat, dec)}
+              </Row>
+              <Row label="Systematic part" title="√(σ_μ² − σ_stat²): what the nuisance parameters add">
+                ± {formatFixed(mu.syst, dec)}
+              </Row>
+            </dl>
+          )}
+        </Panel>
+
+        <Panel title="Significance and limit">
+          <dl className="grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
+            <Row
+              label={asimov ? 'Significance (this Asimov dataset)' : 'Observed significance'}
+              title="Z = √q₀ with q₀ = 2[NLL(μ = 0) − NLL(μ̂)], in standard deviations; 0 when μ̂ ≤ 0"
+            >
+              {s.discovery ? (
+                <>
+                  {formatSigma(s.discovery.z)} <span className="text-ink-muted">(p₀ = {formatProbability(s.discovery.p0)})</span>
+                </>
+              ) : (
+                <span className="text-ink-muted">not computed</span>
+              )}
+            </Row>
+            <Row label="Expected significance" title="Z on the pre-fit Asimov dataset at the μ shown, in standard deviations; p₀ is its one-sided p-value">
+              {s.expected ? (
+                <>
+                  {formatSigma(s.expected.z)} <span className="text-ink-muted">(p₀ = {formatProbability(s.expected.p0)}, Asimov μ = {formatFixed(s.expected.asimovMu, 2)})</span>
+                </>
+              ) : (
+                <span className="text-ink-muted">not asked for</span>
+              )}
+            </Row>
+            {lim ? (
+              <>
+                <Row label={`${Math.round(lim.cl * 100)} % CL limit (observed)`} title="CLs upper limit on μ with the asymptotic q̃_μ distributions, in multiples of the nominal signal">
+                  {lim.observed === null ? <span className="text-ink-muted">outside the μ range</span> : `μ < ${formatFixed(lim.observed, 3)}`}
+                </Row>
+                <Row label="Expected limit" title="Median expected limit from the background-only Asimov dataset">
+                  {lim.expected.median === null ? '–' : `μ < ${formatFixed(lim.expected.median, 3)}`}
+                </Row>
+                <Row label="±1σ band" title="Expected limit if the background-only data fluctuated by ∓1σ">
+                  [{formatFixed(lim.expected.minus1, 3)}, {formatFixed(lim.expected.plus1, 3)}]
+                </Row>
+                <Row label="±2σ band" title="Expected limit if the background-only data fluctuated by ∓2σ">
+                  [{formatFixed(lim.expected.minus2, 3)}, {formatFixed(lim.expected.plus2, 3)}]
+                </Row>
+              </>
+            ) : (
+              <Row label="Upper limit" title="Ask for a CLs limit when running the fit">
+                <span className="text-ink-muted">not asked for</span>
+              </Row>
+            )}
+            <Row label="Goodness of fit" title="Saturated-model statistic t = 2Σ[ν − n + n ln(n/ν)] at the best fit, with its χ² p-value for the degrees of freedom shown">
+              t = {formatFixed(s.goodnessOfFit.t, 2)} for {s.goodnessOfFit.dof} dof, p = {formatProbability(s.goodnessOfFit.p)}
+            </Row>
+          </dl>
+        </Panel>
+      </div>
+
+      {result.scan && result.scan.points.length > 1 && (
+        <Panel title="μ scan">
+          <ScanChart scan={result.scan} parameterLabel={result.scan.parameter === 'mu' ? 'μ' : result.scan.parameter} />
+        </Panel>
+      )}
+
+      <div className="grid gap-4 lg:grid-cols-2">
+        <Panel title="Floating normalisations">
+          {norms.length === 0 ? (
+            <p className="text-sm text-ink-muted">This model has no floating normalisation.</p>
+          ) : (
+            <table className={tableClass} aria-label="Floating normalisations">
+              <thead>
+                <tr>
+                  <th scope="col" className={thClass}>
+                    Normalisation
+                  </th>
+                  <th scope="col" className={`${thClass} text-right`}>
+                    Best fit
+                  </th>
+                  <th scope="col" className={`${thClass} text-right`}>
+                    σ
+                  </th>
+                </tr>
+              </thead>
+              <tbody>
+                {norms.map((p) => (
+                  <tr key={p.name}>
+                    <td className={tdClass}>
+                      {p.label || p.name} <span className="font-mono text-2xs text-ink-muted">{p.name}</span>
+                      {p.atBound && <span className="ml-1 text-xs font-semibold text-amber-ink">at a bound</span>}
+                      {p.fixed && <span className="ml-1 text-xs text-ink-muted">held</span>}
+                    </td>
+                    <td className={`${tdClass} text-right tabular-nums`} title="Best-fit scale factor of the processes it multiplies (1 = nominal)">
+                      {formatFixed(p.value, 3)}
+                    </td>
+                    <td className={`${tdClass} text-right tabular-nums`} title="√V from the covariance">
+                      {formatFixed(p.error, 3)}
+                    </td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          )}
+        </Panel>
+        <Panel title="Convergence report">
+          <ConvergenceReport convergence={result.convergence} status={result.status} />
+          <p className="mt-2 text-xs text-ink-muted">
+            {result.gammas.count} bin-by-bin template-statistics parameters (γ) were fitted
+            {result.gammas.maxAbsPull !== null ? `; the largest |pull| among them is ${formatFixed(result.gammas.maxAbsPull, 2)}` : ''}.
+          </p>
+        </Panel>
+      </div>
+    </div>
+  );
+}
