@@ -48,18 +48,20 @@ export type MatrixLayout = {
   labelH: number;
   width: number;
   height: number;
+  /** positions (0…n) before which a new group starts; lines are drawn there */
+  boundaries: number[];
 };
 
 const MAX_MATRIX_PX = 600;
 const LABEL_ROOM = 132;
 
-export function layoutMatrix(order: number[]): MatrixLayout {
+export function layoutMatrix(order: number[], boundaries: number[] = []): MatrixLayout {
   const n = Math.max(1, order.length);
   const cell = Math.max(1, Math.min(18, Math.floor(MAX_MATRIX_PX / n)));
   const labels = cell >= 9;
   const labelW = labels ? LABEL_ROOM : 0;
   const labelH = labels ? LABEL_ROOM : 0;
-  return { order, cell, labelW, labelH, width: labelW + n * cell + 2, height: labelH + n * cell + 2 };
+  return { order, cell, labelW, labelH, width: labelW + n * cell + 2, height: labelH + n * cell + 2, boundaries };
 }
 
 /** Draw the matrix at the canvas's device-pixel size; returns the milliseconds it took. */
@@ -106,6 +108,18 @@ export function drawCorrelation(canvas: HTMLCanvasElement, m: CorrelationMatrix,
     ctx.strokeStyle = theme.rule;
     ctx.lineWidth = 1;
     ctx.strokeRect(labelW + 0.5, labelH + 0.5, n * cell + 1, n * cell + 1);
+    if (layout.boundaries.length) {
+      ctx.strokeStyle = 'rgba(29, 27, 24, 0.45)';
+      ctx.beginPath();
+      for (const b of layout.boundaries) {
+        const at = labelW + 1 + b * cell;
+        ctx.moveTo(at, labelH + 1);
+        ctx.lineTo(at, labelH + 1 + n * cell);
+        ctx.moveTo(labelW + 1, at - labelW + labelH);
+        ctx.lineTo(labelW + 1 + n * cell, at - labelW + labelH);
+      }
+      ctx.stroke();
+    }
     if (labelW > 0) {
       ctx.fillStyle = theme.ink;
       ctx.font = `${Math.min(11, cell - 1)}px 'Public Sans', sans-serif`;
@@ -145,6 +159,13 @@ export function correlationSvg(m: CorrelationMatrix, layout: MatrixLayout): stri
       parts.push(`<rect x="${labelW + 1 + c * cell}" y="${labelH + 1 + r * cell}" width="${cell}" height="${cell}" fill="${correlationScale(v)}"><title>${esc(m.names[i])} × ${esc(m.names[j])}: ρ = ${v.toFixed(3)}</title></rect>`);
     }),
   );
+  const n = order.length;
+  for (const b of layout.boundaries) {
+    const x = labelW + 1 + b * cell;
+    const y = labelH + 1 + b * cell;
+    parts.push(`<line x1="${x}" x2="${x}" y1="${labelH + 1}" y2="${labelH + 1 + n * cell}" stroke="${theme.ink}" stroke-opacity="0.45"/>`);
+    parts.push(`<line x1="${labelW + 1}" x2="${labelW + 1 + n * cell}" y1="${y}" y2="${y}" stroke="${theme.ink}" stroke-opacity="0.45"/>`);
+  }
   if (labelW > 0) {
     const size = Math.min(11, cell - 1);
     order.forEach((i, r) => parts.push(`<text x="${labelW - 4}" y="${labelH + 1 + r * cell + cell / 2}" dy="0.32em" text-anchor="end" font-size="${size}" fill="${theme.ink}">${esc(m.names[i])}</text>`));

@@ -21,7 +21,7 @@ export function optionsInWords(o: FitOptions): string {
 export const FIT_STATE_META: Record<FitState, { label: string; tone: Tone; title: string }> = {
   queued: { label: 'Queued', tone: 'neutral', title: 'Waiting for a free worker on the server' },
   running: { label: 'Running', tone: 'teal', title: 'The fit is running on the server' },
-  succeeded: { label: 'Finished', tone: 'ink', title: 'The job ended; see the convergence report for whether the fit converged' },
+  succeeded: { label: 'Finished', tone: 'neutral', title: 'The job ended; see the convergence report for whether the fit converged' },
   failed: { label: 'Failed', tone: 'danger', title: 'The fit did not converge or the job stopped; no numbers are shown' },
   cancelled: { label: 'Cancelled', tone: 'amber', title: 'Cancelled before it finished' },
 };

@@ -55,7 +55,11 @@ export function CorrelationView({ result }: { result: FitResult }) {
 
   const fullOrder = useMemo(() => (m ? (ordering === 'group' ? orderByGroup(m, groups.groupOf, groups.order) : orderByClustering(m)) : []), [m, ordering, groups]);
   const shown = useMemo(() => (m ? keepCorrelated(m, fullOrder, threshold) : []), [m, fullOrder, threshold]);
-  const layout = useMemo(() => layoutMatrix(shown), [shown]);
+  const layout = useMemo(() => {
+    if (!m || ordering !== 'group') return layoutMatrix(shown);
+    const boundaries = shown.map((_, r) => r).filter((r) => r > 0 && groups.groupOf(m.names[shown[r]]) !== groups.groupOf(m.names[shown[r - 1]]));
+    return layoutMatrix(shown, boundaries);
+  }, [m, shown, ordering, groups]);
   const pairs = useMemo(() => (m ? strongestPairs(m, shown, 15) : []), [m, shown]);
 
   useEffect(() => {
@@ -200,7 +204,7 @@ export function CorrelationView({ result }: { result: FitResult }) {
         </p>
       </Panel>
 
-      <Panel title="Strongest correlations">
+      <Panel title="Strongest correlations" className="max-w-3xl">
         {pairs.length === 0 ? (
           <p className="text-sm text-ink-muted">Fewer than two parameters shown.</p>
         ) : (

@@ -129,7 +129,7 @@ function ParameterNumbers({ result, name }: { result: FitResult; name: string })
                     .sort((a, b) => b.information - a.information)
                     .map((r) => (
                       <tr key={r.region}>
-                        <td className={`${tdClass} font-mono text-xs`}>{r.region}</td>
+                        <td className={`${tdClass} font-mono text-xs whitespace-nowrap`}>{r.region}</td>
                         <td className={`${tdClass} text-right tabular-nums`} title="Σ over the region's bins of (∂ν/∂θ)²/ν at the best fit">
                           {formatFixed(r.information, 4)}
                         </td>

@@ -106,7 +106,7 @@ export function DistributionsView({ result, model }: { result: FitResult; model?
           bars are Garwood 68 % Poisson intervals; the stippled band is the expectation's ±1σ.
         </span>
       </fieldset>
-      <div className="grid gap-4 2xl:grid-cols-2">
+      <div className="grid gap-4 xl:grid-cols-2">
         {list.map((y) => (
           <RegionChart key={y.region} result={result} y={y} stage={stage} model={model} />
         ))}

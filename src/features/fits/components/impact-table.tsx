@@ -46,7 +46,7 @@ function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: numbe
       cell: (c) => {
         const r = c.row.original;
         return (
-          <span className="flex flex-col">
+          <span className="flex items-baseline gap-2">
             <Link
               to={`/a/${slug}/fits/${fitId}/diagnostics?parameter=${encodeURIComponent(r.name)}`}
               onClick={(e) => e.stopPropagation()}
@@ -55,7 +55,11 @@ function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: numbe
             >
               {r.name}
             </Link>
-            {r.label && r.label !== r.name && <span className="max-w-[14rem] truncate text-2xs text-ink-muted">{r.label}</span>}
+            {r.label && r.label !== r.name && (
+              <span className="max-w-[16rem] truncate text-2xs text-ink-muted" title={r.label}>
+                {r.label}
+              </span>
+            )}
           </span>
         );
       },

@@ -43,14 +43,23 @@ const W = 640;
 const M = { left: 178, right: 96, top: 8, bottom: 36 };
 
 /** Every nuisance parameter's pull (dot) and post-fit width (bar) against the prior band [−1, 1], ±2 lighter. */
-export function PullsChart({ rows, labels, threshold, title }: { rows: NuisanceReport[]; labels: Map<string, string>; threshold: number; title: string }) {
+type Line = { kind: 'group'; name: string } | { kind: 'parameter'; r: NuisanceReport };
+
+/** Every nuisance parameter's pull (dot) and post-fit width (bar) against the prior band [−1, 1], ±2 lighter. */
+export function PullsChart({ rows, labels, threshold, title, groupHeadings = false }: { rows: NuisanceReport[]; labels: Map<string, string>; threshold: number; title: string; groupHeadings?: boolean }) {
   const ref = useRef<SVGSVGElement>(null);
+  const lines: Line[] = [];
+  rows.forEach((r, i) => {
+    if (groupHeadings && (i === 0 || groupName(rows[i - 1].group) !== groupName(r.group))) lines.push({ kind: 'group', name: groupName(r.group) });
+    lines.push({ kind: 'parameter', r });
+  });
   const extent = Math.max(2.5, ...rows.map((r) => Math.abs(r.pull) + (r.constraint ?? 0)));
   const lim = Math.min(6, Math.ceil(extent * 2) / 2);
-  const H = M.top + rows.length * ROW + M.bottom;
+  const plotH = lines.length * ROW;
+  const H = M.top + plotH + M.bottom;
   const x = scaleLinear().domain([-lim, lim]).range([M.left, W - M.right]);
   const y0 = M.top;
-  const plotH = rows.length * ROW;
+  const clampX = (v: number) => x(Math.max(-lim, Math.min(lim, v)));
   return (
     <figure className="flex flex-col gap-1">
       <div className="flex items-center justify-between gap-2">
@@ -63,15 +72,23 @@ export function PullsChart({ rows, labels, threshold, title }: { rows: NuisanceR
         {[-2, -1, 0, 1, 2].map((v) => (
           <line key={v} x1={x(v)} x2={x(v)} y1={y0} y2={y0 + plotH} stroke={v === 0 ? theme.inkMuted : theme.rule} strokeWidth={v === 0 ? 0.8 : 0.6} />
         ))}
-        {rows.map((r, i) => {
+        {lines.map((line, i) => {
           const cy = y0 + i * ROW + ROW / 2;
+          if (line.kind === 'group')
+            return (
+              <g key={`group:${line.name}`}>
+                {i > 0 && <line x1={0} x2={W} y1={cy - ROW / 2} y2={cy - ROW / 2} stroke={theme.rule} />}
+                <text x={4} y={cy} dy="0.32em" style={{ fontSize: 10, fill: theme.inkMuted, fontWeight: 600, letterSpacing: '0.04em' }}>
+                  {line.name.toUpperCase()}
+                </text>
+              </g>
+            );
+          const r = line.r;
           const colour = markColour(r);
           const c = r.constraint;
           const flagged = r.overConstrained || isStronglyPulled(r);
-          const clampX = (v: number) => x(Math.max(-lim, Math.min(lim, v)));
           return (
             <g key={r.name}>
-              {i % 2 === 1 && <rect x={0} y={cy - ROW / 2} width={M.left - 6} height={ROW} fill={theme.paper} />}
               <text x={M.left - 10} y={cy} dy="0.32em" textAnchor="end" style={{ fontSize: 10.5, fill: flagged ? colour : theme.ink, fontWeight: flagged ? 600 : 400 }}>
                 {r.name.length > 28 ? `${r.name.slice(0, 27)}…` : r.name}
               </text>
@@ -85,10 +102,10 @@ export function PullsChart({ rows, labels, threshold, title }: { rows: NuisanceR
               {r.overConstrained ? (
                 <rect x={clampX(r.pull) - 3.6} y={cy - 3.6} width={7.2} height={7.2} transform={`rotate(45 ${clampX(r.pull)} ${cy})`} fill={colour} stroke={theme.paperRaised} strokeWidth={0.8} />
               ) : (
-                <circle cx={clampX(r.pull)} cy={cy} r={3.6} fill={r.fixed ? theme.paperRaised : colour} stroke={r.fixed ? theme.inkMuted : theme.paperRaised} strokeWidth={0.8} />
+                <circle cx={clampX(r.pull)} cy={cy} r={3.6} fill={r.fixed ? theme.paperRaised : colour} stroke={r.fixed ? theme.inkMuted : theme.paperRaised} strokeWidth={r.fixed ? 1.2 : 0.8} />
               )}
               <text x={W - M.right + 8} y={cy} dy="0.32em" style={{ fontSize: 9.5, fill: theme.inkMuted }}>
-                {formatSigned(r.pull, 2)} ± {formatFixed(c, 2)}
+                {r.fixed || c === null ? 'held' : `${formatSigned(r.pull, 2)} ± ${formatFixed(c, 2)}`}
               </text>
               <rect x={0} y={cy - ROW / 2} width={W} height={ROW} fill="transparent">
                 <title>
@@ -105,7 +122,7 @@ export function PullsChart({ rows, labels, threshold, title }: { rows: NuisanceR
             </g>
           );
         })}
-        <BottomAxis scale={x} y={y0 + plotH} ticks={Math.min(12, lim * 2)} title="(θ̂ − θ₀)/Δθ: pull, with ±σ̂ as bars" />
+        <BottomAxis scale={x} y={y0 + plotH} ticks={Math.min(12, lim * 2)} title="pull (θ̂ − 0)/1, with the post-fit ±σ̂ as bars" />
       </svg>
       <ul className="flex flex-wrap gap-x-4 gap-y-1 text-xs text-ink-soft" aria-label="Legend of the pulls">
         <li className="flex items-center gap-1.5">
@@ -123,6 +140,10 @@ export function PullsChart({ rows, labels, threshold, title }: { rows: NuisanceR
         <li className="flex items-center gap-1.5">
           <span aria-hidden className="inline-block size-2.5 rounded-full bg-plum" />
           strongly pulled (|pull| above {STRONG_PULL})
+        </li>
+        <li className="flex items-center gap-1.5">
+          <span aria-hidden className="inline-block size-2.5 rounded-full border border-ink-muted" />
+          held at its start value
         </li>
       </ul>
     </figure>
@@ -178,7 +199,7 @@ export function PullsView({ result }: { result: FitResult }) {
         <p className="text-sm text-ink-muted">No nuisance parameter matches these filters.</p>
       ) : (
         <Panel>
-          <PullsChart rows={rows} labels={labels} threshold={threshold} title="Pulls and constraints" />
+          <PullsChart rows={rows} labels={labels} threshold={threshold} title="Pulls and constraints" groupHeadings={sort === 'group'} />
         </Panel>
       )}
       <details className="rounded-lg border border-rule bg-paper-raised px-4 py-2">

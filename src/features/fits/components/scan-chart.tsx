@@ -9,7 +9,7 @@ import { formatFixed } from '../../../lib/stats-format';
 
 const W = 520;
 const H = 260;
-const M = { left: 52, right: 56, top: 12, bottom: 40 };
+const M = { left: 52, right: 44, top: 12, bottom: 40 };
 
 /** Wilks: q = 1 and q = 3.84 bound the 68.27 % and 95 % intervals of one parameter. */
 const LEVELS = [
@@ -46,7 +46,7 @@ export function ScanChart({ scan, parameterLabel = 'μ' }: { scan: ParameterScan
       <svg
         ref={ref}
         viewBox={`0 0 ${W} ${H}`}
-        className="h-auto w-full max-w-[36rem]"
+        className="h-auto w-full max-w-[40rem]"
         role="img"
         aria-label={`${title}: q = 2ΔNLL over ${pts.length} points from ${formatFixed(pts[0].value, 2)} to ${formatFixed(pts[pts.length - 1].value, 2)}; best fit ${formatFixed(scan.bestFit, 3)}, 68 % interval ${formatFixed(lo68, 3)} to ${formatFixed(hi68, 3)}.`}
       >
@@ -55,7 +55,7 @@ export function ScanChart({ scan, parameterLabel = 'μ' }: { scan: ParameterScan
           <g key={l.q}>
             <line x1={M.left} x2={W - M.right} y1={y(l.q)} y2={y(l.q)} stroke={theme.amber} strokeDasharray="5 3" strokeWidth={1} />
             <text x={W - M.right + 4} y={y(l.q)} dy="0.32em" style={{ fontSize: 10, fill: '#7c4c05' }}>
-              {l.label} (q = {l.q})
+              {l.label}
             </text>
           </g>
         ))}

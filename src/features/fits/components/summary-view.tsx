@@ -132,7 +132,7 @@ export function SummaryView({ result }: { result: FitResult }) {
       </div>
 
       {result.scan && result.scan.points.length > 1 && (
-        <Panel title="μ scan">
+        <Panel>
           <ScanChart scan={result.scan} parameterLabel={result.scan.parameter === 'mu' ? 'μ' : result.scan.parameter} />
         </Panel>
       )}
