@@ -3,11 +3,11 @@ import { exchangeModelSchema } from '@shared/schemas/exchange';
 import { fitOptionsSchema } from '@shared/schemas/fit';
 import type { Db } from '../db/client';
 import { fits, modelVersions } from '../db/schema';
-import { createFitPool, fitModel, FitCancelledError, FitInputError, type FitPool } from '../fit';
+import { JobError, startJobThread, type JobThread } from './fit-job';
 
 /**
- * Runs fit jobs off the request thread: one fit at a time in this process, its refits spread
- * over the engine's worker pool. Progress is written to the fit's row (at most every 300 ms),
+ * Runs fit jobs off the request thread: one fit at a time, in a job thread (fit-job.ts) whose
+ * engine spreads the refits over its worker pool. Progress is written to the fit's row (at most every 300 ms),
  * so any request, from any client, reads it. A job that was running when the process stopped
  * is marked failed with that reason at the next start; queued jobs are picked up again.
  */
@@ -23,10 +23,10 @@ export type FitRunner = {
 
 export const INTERRUPTED = 'Interrupted: the server stopped while this fit was running. Start it again.';
 
-export function createFitRunner(db: Db, log: (line: string) => void, options: { threads?: number; pool?: FitPool } = {}): FitRunner {
-  // the worker threads start with the first fit, not with the server
-  let own: FitPool | null = null;
-  const pool = () => options.pool ?? (own ??= createFitPool({ threads: options.threads }));
+export function createFitRunner(db: Db, log: (line: string) => void, options: { threads?: number } = {}): FitRunner {
+  // the job thread (and the engine's refit threads in it) start with the first fit, not with the server
+  let thread: JobThread | null = null;
+  const jobs = () => (thread ??= startJobThread(options.threads));
   const queue: number[] = [];
   const cancelled = new Map<number, string>();
   let current: { id: number; controller: AbortController } | null = null;
@@ -57,7 +57,7 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
     };
     try {
       const model = exchangeModelSchema.parse(version.model);
-      const result = await fitModel(model, fitOptionsSchema.parse(fit.options), { pool: pool(), signal: controller.signal, onProgress });
+      const result = await jobs().run(model, fitOptionsSchema.parse(fit.options), onProgress, controller.signal);
       await writes;
       await finish(id, {
         state: result.status === 'converged' ? 'succeeded' : 'failed',
@@ -68,8 +68,9 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
       });
     } catch (e) {
       await writes;
-      if (e instanceof FitCancelledError) await finish(id, { state: 'cancelled', failure: `Cancelled by ${cancelled.get(id) ?? 'a user'}.`, stage: 'cancelled' });
-      else if (e instanceof FitInputError) await finish(id, { state: 'failed', failure: `The model or options cannot be fitted: ${e.message}`, stage: 'failed' });
+      const kind = e instanceof JobError ? e.kind : 'internal';
+      if (kind === 'cancelled') await finish(id, { state: 'cancelled', failure: `Cancelled by ${cancelled.get(id) ?? 'a user'}.`, stage: 'cancelled' });
+      else if (kind === 'input') await finish(id, { state: 'failed', failure: `The model or options cannot be fitted: ${(e as Error).message}`, stage: 'failed' });
       else {
         log(`[fit ${id}] ${e instanceof Error ? (e.stack ?? e.message) : String(e)}`);
         await finish(id, { state: 'failed', failure: 'The fit stopped on an internal error; it has been logged. Try again, and tell an admin if it persists.', stage: 'failed' });
@@ -125,7 +126,7 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
       queue.length = 0;
       current?.controller.abort();
       while (draining) await draining.catch(() => {});
-      await own?.destroy();
+      await thread?.close();
     },
   };
 }

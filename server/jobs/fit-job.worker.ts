@@ -1,0 +1,27 @@
+import type { MessagePort } from 'node:worker_threads';
+import type { ExchangeModel } from '@shared/schemas/exchange';
+import type { FitOptions, FitResult } from '@shared/schemas/fit';
+import { createFitPool, fitModel, FitCancelledError, FitInputError, type FitPool } from '../fit';
+
+/**
+ * A fit job in its own thread, so that the API's event loop never waits for the engine. The
+ * thread keeps the engine's refit pool between jobs; progress goes back through a message port.
+ */
+export type JobTask = { model: ExchangeModel; options: FitOptions; threads?: number; progress: MessagePort };
+export type JobOutcome = { ok: true; result: FitResult } | { ok: false; kind: 'input' | 'internal'; message: string };
+
+let pool: FitPool | null = null;
+
+export default async function runJob({ model, options, threads, progress }: JobTask): Promise<JobOutcome> {
+  pool ??= createFitPool({ threads });
+  try {
+    const result = await fitModel(model, options, { pool, onProgress: (fraction, stage) => progress.postMessage({ fraction, stage }) });
+    return { ok: true, result };
+  } catch (e) {
+    if (e instanceof FitCancelledError) throw e;
+    const kind = e instanceof FitInputError ? 'input' : 'internal';
+    return { ok: false, kind, message: e instanceof Error ? (kind === 'internal' ? (e.stack ?? e.message) : e.message) : String(e) };
+  } finally {
+    progress.close();
+  }
+}
