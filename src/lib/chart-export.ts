@@ -112,14 +112,19 @@ export function downloadBlob(blob: Blob, filename: string): void {
   setTimeout(() => URL.revokeObjectURL(url), 1000);
 }
 
-/** A file name from a chart's title: lower case, words joined by hyphens. */
+/** A file name from a chart's title: ASCII, lower case, words joined by hyphens (μ becomes "mu"). */
 export function chartFileName(title: string, ext: 'svg' | 'png'): string {
   const base = title
+    .replace(/μ/g, 'mu')
+    .replace(/σ/g, 'sigma')
+    .replace(/ρ/g, 'rho')
     .normalize('NFKD')
-    .replace(/[^\w\s-]/g, '')
+    .replace(/[\u0300-\u036f]/g, '')
+    .replace(/[^A-Za-z0-9\s-]/g, '')
     .trim()
     .toLowerCase()
-    .replace(/[\s_]+/g, '-');
+    .replace(/[\s_]+/g, '-')
+    .replace(/-+/g, '-');
   return `${base || 'chart'}.${ext}`;
 }
 
