@@ -33,7 +33,7 @@ describe('the correlation picture', () => {
 
   it('gives readable cells with names for a small matrix and one-pixel cells without names for a large one', () => {
     const small = layoutMatrix([0, 1, 2]);
-    expect(small.cell).toBe(18);
+    expect(small.cell).toBe(32);
     expect(small.labelW).toBeGreaterThan(0);
     const large = layoutMatrix(Array.from({ length: 300 }, (_, i) => i));
     expect(large.cell).toBe(2);

@@ -26,7 +26,7 @@ export function FitsRoute() {
         title="Fits"
         description="Profile-likelihood fits of a frozen model version, run on the server as background jobs. Results inform the collaboration's statistical review and approval; they do not replace it."
       />
-      <div className="grid gap-5 xl:grid-cols-[minmax(0,1fr)_24rem]">
+      <div className="grid gap-5 xl:grid-cols-[minmax(0,1fr)_22rem]">
         <section aria-label="Fits of this analysis" className="min-w-0">
           <QueryView query={fits} loadingLabel="Loading the fits…">
             {(list) =>

@@ -181,7 +181,7 @@ export function CorrelationView({ result }: { result: FitResult }) {
                   }}
                 />
                 <div
-                  className="pointer-events-none absolute z-10 max-w-80 rounded-md border border-rule-strong bg-paper-raised px-2.5 py-1.5 text-xs shadow-md"
+                  className="pointer-events-none absolute z-10 w-max max-w-72 rounded-md border border-rule-strong bg-paper-raised px-2.5 py-1.5 text-xs shadow-md"
                   style={{
                     left: `${Math.min(70, ((layout.labelW + (cell.c + 1) * layout.cell) / layout.width) * 100 + 1)}%`,
                     top: `${((layout.labelH + (cell.r + 1) * layout.cell) / layout.height) * 100 + 1}%`,

@@ -17,11 +17,17 @@ function Headline({ fit }: { fit: FitSummary }) {
   const muText = `${formatFixed(h.mu, dec)}${h.muError !== null ? ` ± ${formatFixed(h.muError, dec)}` : ''}`;
   return (
     <span className="flex flex-col items-end">
-      <span className="tabular-nums" title="Fitted signal strength μ̂ ± σ_μ (from the covariance), in multiples of the nominal signal">
-        μ̂ = {muText}
-      </span>
+      {fit.options.controlOnly ? (
+        <span className="whitespace-nowrap tabular-nums" title="μ is held at its start value in a fit of the control regions only">
+          μ held at {formatFixed(h.mu, 2)}
+        </span>
+      ) : (
+        <span className="whitespace-nowrap tabular-nums" title="Fitted signal strength μ̂ ± σ_μ (from the covariance), in multiples of the nominal signal">
+          μ̂ = {muText}
+        </span>
+      )}
       {h.z !== null && (
-        <span className="text-xs text-ink-soft tabular-nums" title="Observed discovery significance Z = √q₀, in standard deviations">
+        <span className="text-xs whitespace-nowrap text-ink-soft tabular-nums" title="Observed discovery significance Z = √q₀, in standard deviations">
           Z = {formatSigma(h.z)}
         </span>
       )}

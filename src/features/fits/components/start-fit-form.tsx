@@ -93,7 +93,7 @@ export function StartFitForm({
           {localError}
         </p>
       )}
-      <div className="grid gap-3 sm:grid-cols-2">
+      <div className="grid gap-3">
         <SelectField label="Model version" value={chosen ?? ''} onChange={(e) => setVersion(Number(e.target.value))} error={fieldError({}, start.error, 'version')}>
           {versions.map((v) => (
             <option key={v.number} value={v.number}>
