@@ -27,8 +27,9 @@ function embeddedFontCss(): Promise<string> {
         if (!(rule instanceof CSSFontFaceRule)) continue;
         const s = rule.style;
         if (!/public sans/i.test(s.getPropertyValue('font-family'))) continue;
+        // Only the Latin subset (its range starts at U+0000, however the browser writes it).
         const range = s.getPropertyValue('unicode-range');
-        if (range && !/U\+0000-00FF/i.test(range)) continue;
+        if (range && !/^\s*U\+0+-0*FF\b/i.test(range)) continue;
         const url = /url\(["']?([^"')]+\.woff2)["']?\)/.exec(s.getPropertyValue('src'))?.[1];
         if (url) rules.push({ weight: s.getPropertyValue('font-weight') || '400', style: s.getPropertyValue('font-style') || 'normal', url });
       }
@@ -72,7 +73,7 @@ export async function serialiseSvg(svg: SVGSVGElement): Promise<string> {
   const live = [svg, ...Array.from(svg.querySelectorAll('*'))];
   const copies = [clone, ...Array.from(clone.querySelectorAll('*'))];
   live.forEach((el, i) => {
-    if (!el.getAttribute('class')) return;
+    if (i === 0 || !el.getAttribute('class')) return;
     const cs = getComputedStyle(el);
     const target = copies[i] as SVGElement;
     for (const p of INLINE) {
@@ -132,29 +133,28 @@ export async function downloadSvg(svg: SVGSVGElement, title: string): Promise<vo
   downloadBlob(new Blob([await serialiseSvg(svg)], { type: 'image/svg+xml' }), chartFileName(title, 'svg'));
 }
 
-/** Draw SVG markup on a canvas at `scale` times its size; resolves with the PNG. */
+/**
+ * Draw SVG markup on a canvas at `scale` times its size; resolves with the PNG. The image is
+ * loaded from a data: URL, which the app's content security policy allows for images.
+ */
 export async function svgMarkupToPng(markup: string, width: number, height: number, scale = 2): Promise<Blob> {
-  const url = URL.createObjectURL(new Blob([markup], { type: 'image/svg+xml' }));
-  try {
-    const img = new Image();
-    img.decoding = 'sync';
-    await new Promise<void>((resolve, reject) => {
-      img.onload = () => resolve();
-      img.onerror = () => reject(new Error('The chart could not be drawn as an image.'));
-      img.src = url;
-    });
-    const canvas = document.createElement('canvas');
-    canvas.width = Math.round(width * scale);
-    canvas.height = Math.round(height * scale);
-    const ctx = canvas.getContext('2d');
-    if (!ctx) throw new Error('This browser cannot draw on a canvas.');
-    ctx.fillStyle = theme.paperRaised;
-    ctx.fillRect(0, 0, canvas.width, canvas.height);
-    ctx.drawImage(img, 0, 0, canvas.width, canvas.height);
-    return await canvasToPng(canvas);
-  } finally {
-    URL.revokeObjectURL(url);
-  }
+  const url = `data:image/svg+xml;charset=utf-8,${encodeURIComponent(markup)}`;
+  const img = new Image();
+  img.decoding = 'sync';
+  await new Promise<void>((resolve, reject) => {
+    img.onload = () => resolve();
+    img.onerror = () => reject(new Error('The chart could not be drawn as an image.'));
+    img.src = url;
+  });
+  const canvas = document.createElement('canvas');
+  canvas.width = Math.round(width * scale);
+  canvas.height = Math.round(height * scale);
+  const ctx = canvas.getContext('2d');
+  if (!ctx) throw new Error('This browser cannot draw on a canvas.');
+  ctx.fillStyle = theme.paperRaised;
+  ctx.fillRect(0, 0, canvas.width, canvas.height);
+  ctx.drawImage(img, 0, 0, canvas.width, canvas.height);
+  return await canvasToPng(canvas);
 }
 
 export function canvasToPng(canvas: HTMLCanvasElement): Promise<Blob> {

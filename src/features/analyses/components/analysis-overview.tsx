@@ -3,6 +3,8 @@ import type { AnalysisOverview as Overview } from '@shared/schemas/api';
 import { ROLE_LABELS } from '@shared/permissions';
 import { Panel } from '../../../components/ui/page';
 import { formatDate, formatDateTime, plural } from '../../../lib/format';
+import type { FitState } from '@shared/schemas/fits';
+import { FIT_STATE_META } from '../../fits/describe';
 import { ACTION_LABELS } from '../action-labels';
 import { BlindingBadge } from './blinding-badge';
 import { EntryStateBar } from './entry-state-bar';
@@ -60,7 +62,7 @@ export function AnalysisOverview({ overview, isAdmin }: { overview: Overview; is
               {latestFit.label || `Fit ${latestFit.id}`}
             </Link>
             <p className="text-xs text-ink-muted">
-              {latestFit.state} · started {formatDateTime(latestFit.createdAt)}
+              {FIT_STATE_META[latestFit.state as FitState]?.label ?? latestFit.state} · started {formatDateTime(latestFit.createdAt)}
             </p>
           </div>
         ) : (

@@ -94,10 +94,10 @@ export function ComparisonTable({ comparison: c }: { comparison: FitComparison }
             <tbody>
               {params.map((p) => (
                 <tr key={p.name}>
-                  <th scope="row" className={`${tdClass} text-left font-normal`}>
+                  <th scope="row" className={`${tdClass} text-left font-normal whitespace-nowrap`}>
                     <span className="font-mono text-xs">{p.name}</span>
                     {p.only && <span className="ml-1 text-xs text-amber-ink">only in {p.only === 'a' ? 'this fit' : 'the other fit'}</span>}
-                    {p.group && <span className="block text-2xs text-ink-muted">{p.group}</span>}
+                    {p.group && <span className="ml-2 text-2xs text-ink-muted">{p.group}</span>}
                   </th>
                   <DeltaCells d={p.pull} title="Pull" />
                   <DeltaCells d={p.constraint} title="Constraint" />
