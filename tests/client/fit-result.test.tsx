@@ -82,7 +82,7 @@ describe('the fit result screen', () => {
   it('says that blinded signal-region data are withheld on the distributions', async () => {
     serve(fitDetail());
     renderWithApp(<FitResultRoute />, '/a/demo/fits/7/distributions', ROUTE);
-    expect(await screen.findByText(/withheld while the analysis is blinded/)).toBeTruthy();
+    expect(await screen.findByText(/while the analysis is blinded/)).toBeTruthy();
     const charts = screen.getAllByRole('img').filter((e) => e.tagName.toLowerCase() === 'svg' && /distribution of/.test(e.getAttribute('aria-label') ?? ''));
     expect(charts.map((c) => c.getAttribute('aria-label'))).toEqual([
       expect.stringContaining('Post-fit distribution of SR'),

@@ -77,9 +77,7 @@ function RegionChart({ result, y, stage, model }: { result: FitResult; y: Region
       <StackedChart d={d} svgRef={ref} />
       {d.withheld && (
         <p className="mt-1 text-xs text-amber-ink">
-          {y.role === 'signal'
-            ? 'The observed counts of this signal region are withheld while the analysis is blinded: the server never sends them.'
-            : 'No data for this region in this result.'}
+          {y.role === 'signal' ? 'The server never sends this signal region’s observed counts while the analysis is blinded.' : 'No data for this region in this result.'}
         </p>
       )}
     </Panel>
