@@ -8,6 +8,7 @@ import { DataDirLockedError, openDatabase, projectRoot } from './db/client';
 import { createMailer } from './mail/mailer';
 import { createFitRunner } from './jobs/fit-runner';
 import { seedDemo } from './seed/demo';
+import { backfillEffectSizes } from './services/register.service';
 
 /** Without SESSION_SECRET, a random secret is kept in the data folder so sessions survive restarts. */
 function sessionSecret(config: Config) {
@@ -41,6 +42,7 @@ async function main() {
   const database = await openDatabase(base.dataDir);
   const config = { ...base, sessionSecret: sessionSecret(base) };
   const seed = await seedDemo(database.db);
+  await backfillEffectSizes(database.db);
   const mailer = await createMailer(database.db, config);
   const fits = createFitRunner(database.db, console.error);
   await fits.recover();

@@ -32,10 +32,17 @@ export function createPassport(db: Db) {
     }),
   );
   pp.serializeUser((user, done) => done(null, user.id));
+  // accounts change rarely; a copy of a few seconds spares the embedded database a query per request
+  const recent = new Map<number, { user: Express.User | false; until: number }>();
   pp.deserializeUser(async (id: number, done) => {
+    const copy = recent.get(id);
+    if (copy && copy.until > Date.now()) return done(null, copy.user);
     try {
-      const user = await findUserById(db, id);
-      done(null, user ? { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin } : false);
+      const row = await findUserById(db, id);
+      const user: Express.User | false = row ? { id: row.id, email: row.email, name: row.name, isAdmin: row.isAdmin } : false;
+      if (recent.size > 5000) recent.clear();
+      recent.set(id, { user, until: Date.now() + 5000 });
+      done(null, user);
     } catch (e) {
       done(e);
     }

@@ -5,7 +5,28 @@ import { analyses, entries, memberships, users } from './schema';
 
 export type AnalysisRow = typeof analyses.$inferSelect;
 
+/**
+ * Every request asks who the caller is in an analysis; the embedded database answers one query at
+ * a time, so answers are kept in memory until a membership or analysis changes (forgetAccess,
+ * called by every writer of those tables) and for at most 5 seconds.
+ */
+const accessCopies = new WeakMap<Db, Map<string, { value: Awaited<ReturnType<typeof readAnalysisAccess>>; until: number }>>();
+export function forgetAccess(db: Db) {
+  accessCopies.get(db)?.clear();
+}
 export async function findAnalysisAccess(db: Db, slug: string, userId: number) {
+  let copies = accessCopies.get(db);
+  if (!copies) accessCopies.set(db, (copies = new Map()));
+  const key = `${slug}\u0000${userId}`;
+  const copy = copies.get(key);
+  if (copy && copy.until > Date.now()) return copy.value;
+  const value = await readAnalysisAccess(db, slug, userId);
+  if (copies.size > 10_000) copies.clear();
+  copies.set(key, { value, until: Date.now() + 5000 });
+  return value;
+}
+
+async function readAnalysisAccess(db: Db, slug: string, userId: number) {
   const [row] = await db
     .select({ analysis: analyses, role: memberships.role })
     .from(analyses)
@@ -31,6 +52,7 @@ export async function listAnalysesFor(db: Db, userId: number, isAdmin: boolean) 
 
 export async function insertAnalysis(db: Db, values: typeof analyses.$inferInsert) {
   const [row] = await db.insert(analyses).values(values).returning();
+  forgetAccess(db);
   return row;
 }
 

@@ -188,6 +188,8 @@ export const effects = pgTable(
     up: jsonb('up').$type<number | number[]>().notNull(),
     down: jsonb('down').$type<number | number[]>().notNull(),
     warnings: jsonb('warnings').$type<EffectWarning[]>().notNull().default([]),
+    /** largest |variation − nominal| / nominal over the bins, in percent; stored when written (−1: not yet computed) */
+    largestPct: doublePrecision('largest_pct').notNull().default(-1),
     uploadId: integer('upload_id').references(() => uploads.id, { onDelete: 'set null' }),
   },
   (t) => [uniqueIndex('effects_entry_region_process_kind').on(t.entryId, t.regionId, t.processId, t.kind)],
@@ -255,6 +257,8 @@ export const fits = pgTable(
     /** Why a fit failed or was cancelled, in words a person can act on. */
     failure: text('failure'),
     result: jsonb('result'),
+    /** μ̂, σ_μ, Z and the warning count of a converged fit, kept apart so lists need not read the result */
+    headline: jsonb('headline').$type<{ mu: number; muError: number | null; z: number | null; warnings: number } | null>(),
     createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
     createdAt: createdAt(),
     startedAt: timestamp('started_at', { withTimezone: true }),

@@ -63,6 +63,10 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
         state: result.status === 'converged' ? 'succeeded' : 'failed',
         failure: result.status === 'converged' ? null : (result.convergence.failure ?? 'The fit did not converge.'),
         result,
+        headline:
+          result.status === 'converged' && result.summary
+            ? { mu: result.summary.mu.value, muError: result.summary.mu.error, z: result.summary.discovery?.z ?? null, warnings: result.convergence.warnings.length }
+            : null,
         progress: 1,
         stage: 'done',
       });

@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import type { AppContext } from '../context';
 import { accessOf, type authorizer } from '../auth/authorize';
-import { cancelFit, compareFits, exportFit, getFit, listFits, startFit } from '../services/fits.service';
+import { cancelFit, compareFits, exportFit, getFitEncoded, listFits, startFit } from '../services/fits.service';
 import { freezeVersion, listVersions } from '../services/versions.service';
 import { route, type ApiRoute } from './route';
 
@@ -21,7 +21,12 @@ export const fitsRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>)
     res.status(202).json(await startFit(ctx, accessOf(req), req.body));
   }),
   route('get', '/api/analyses/:slug/fits/:fitId', auth.may('analysis.read'), async (req, res) => {
-    res.json(await getFit(ctx, accessOf(req), id('fit id').parse(req.params.fitId)));
+    const { body, etag } = await getFitEncoded(ctx, accessOf(req), id('fit id').parse(req.params.fitId));
+    if (etag) {
+      res.set('ETag', etag).set('Cache-Control', 'private, no-cache');
+      if (req.get('if-none-match') === etag) return void res.status(304).end();
+    }
+    res.type('json').send(body);
   }),
   route('post', '/api/analyses/:slug/fits/:fitId/cancel', auth.may('fit.run'), async (req, res) => {
     res.json(await cancelFit(ctx, accessOf(req), id('fit id').parse(req.params.fitId)));

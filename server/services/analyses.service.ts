@@ -46,12 +46,12 @@ export async function getOverview(ctx: AppContext, access: Access): Promise<Anal
   const entriesByState: Record<EntryState, number> = { draft: 0, submitted: 0, accepted: 0, sent_back: 0, retired: 0 };
   byState.forEach((r) => (entriesByState[r.state] = r.n));
   const [version] = await ctx.db
-    .select()
+    .select({ number: modelVersions.number, createdAt: modelVersions.createdAt, note: modelVersions.note })
     .from(modelVersions)
     .where(eq(modelVersions.analysisId, a.id))
     .orderBy(desc(modelVersions.number))
     .limit(1);
-  const [fit] = await ctx.db.select().from(fits).where(eq(fits.analysisId, a.id)).orderBy(desc(fits.id)).limit(1);
+  const [fit] = await ctx.db.select({ id: fits.id, state: fits.state, label: fits.label, createdAt: fits.createdAt }).from(fits).where(eq(fits.analysisId, a.id)).orderBy(desc(fits.id)).limit(1);
   const [open] = await ctx.db
     .select({ n: count() })
     .from(questions)

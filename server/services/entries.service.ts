@@ -9,6 +9,7 @@ import {
   type VariationPreview,
 } from '@shared/schemas/register';
 import type { EntryState } from '@shared/schemas/api';
+import { largestEffectPct } from '@shared/validation/variation-warnings';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { indexModel, loadModelRows } from '../db/model.repository';
@@ -273,7 +274,7 @@ export async function uploadVariations(
     for (const e of ready) {
       const ids = idOf(e);
       await tx.delete(effects).where(and(eq(effects.entryId, entry.id), eq(effects.regionId, ids.regionId), eq(effects.processId, ids.processId), eq(effects.kind, e.kind)));
-      await tx.insert(effects).values({ entryId: entry.id, ...ids, kind: e.kind, up: e.up, down: e.down, warnings: e.warnings, uploadId: stored.id });
+      await tx.insert(effects).values({ entryId: entry.id, ...ids, kind: e.kind, up: e.up, down: e.down, warnings: e.warnings, largestPct: largestEffectPct(e.kind, e.up, e.down, e.nominal), uploadId: stored.id });
     }
     await tx.update(entries).set({ state: backToReview ? 'submitted' : entry.state, version: entry.version + 1, updatedAt: new Date() }).where(eq(entries.id, entry.id));
     const counts = (['shape', 'scale'] as const).map((k) => [k, ready.filter((e) => e.kind === k).length] as const).filter(([, n]) => n);

@@ -1,7 +1,7 @@
 import { count, eq } from 'drizzle-orm';
 import { exchangeModelSchema, type ExchangeModel, type ExchangeModelInput } from '@shared/schemas/exchange';
 import type { EntryState } from '@shared/schemas/api';
-import { scaleWarnings, shapeWarnings } from '@shared/validation/variation-warnings';
+import { largestEffectPct, scaleWarnings, shapeWarnings } from '@shared/validation/variation-warnings';
 import type { Db } from '../db/client';
 import { effects, entries, floatingNorms, groups, processes, regions, revisions, templates } from '../db/schema';
 import { conflict, unprocessable, zodIssues } from '../errors';
@@ -116,6 +116,7 @@ async function writeModel(tx: Tx, analysisId: number, model: ExchangeModel, opti
           up: e.up,
           down: e.down,
           warnings: e.kind === 'scale' ? scaleWarnings(e.up, e.down) : shapeWarnings(nominalOf.get(`${e.region}/${e.process}`)!, e.up, e.down),
+          largestPct: largestEffectPct(e.kind, e.up, e.down, nominalOf.get(`${e.region}/${e.process}`)),
         })),
       );
     await tx.insert(revisions).values({

@@ -1,5 +1,6 @@
+import { createHash } from 'node:crypto';
 import Papa from 'papaparse';
-import { and, desc, eq } from 'drizzle-orm';
+import { and, desc, eq, getTableColumns } from 'drizzle-orm';
 import { fitOptionsSchema, type FitResult } from '@shared/schemas/fit';
 import { exportTableSchema, startFitSchema, type FitComparison, type FitDetail, type FitSummary } from '@shared/schemas/fits';
 import type { ExchangeModel } from '@shared/schemas/exchange';
@@ -10,11 +11,9 @@ import { conflict, notFound } from '../errors';
 import { isWithheld } from './blinding.service';
 import { findVersion } from './versions.service';
 
-type FitRow = typeof fits.$inferSelect;
+type FitRow = Omit<typeof fits.$inferSelect, 'result'>;
 
 function summaryOf(fit: FitRow, version: number, createdBy: string | null): FitSummary {
-  const result = fit.result as FitResult | null;
-  const converged = fit.state === 'succeeded' && result?.status === 'converged' && result.summary;
   return {
     id: fit.id,
     label: fit.label,
@@ -28,15 +27,15 @@ function summaryOf(fit: FitRow, version: number, createdBy: string | null): FitS
     createdBy,
     startedAt: fit.startedAt?.toISOString() ?? null,
     finishedAt: fit.finishedAt?.toISOString() ?? null,
-    headline: converged
-      ? { mu: result.summary!.mu.value, muError: result.summary!.mu.error, z: result.summary!.discovery?.z ?? null, warnings: result.convergence.warnings.length }
-      : null,
+    headline: fit.state === 'succeeded' ? (fit.headline ?? null) : null,
   };
 }
 
+// every column but the result, which can be megabytes: lists and summaries never read it
+const { result: _result, ...summaryColumns } = getTableColumns(fits);
 const fitRows = (ctx: AppContext, analysisId: number) =>
   ctx.db
-    .select({ fit: fits, version: modelVersions.number, by: users.name })
+    .select({ fit: summaryColumns, version: modelVersions.number, by: users.name })
     .from(fits)
     .innerJoin(modelVersions, eq(modelVersions.id, fits.modelVersionId))
     .leftJoin(users, eq(users.id, fits.createdById))
@@ -47,6 +46,11 @@ async function findFit(ctx: AppContext, access: Access, id: number) {
   const [row] = await fitRows(ctx, access.analysis.id).where(and(eq(fits.analysisId, access.analysis.id), eq(fits.id, id)));
   if (!row) throw notFound(`Fit ${id}`);
   return row;
+}
+
+async function storedResult(ctx: AppContext, id: number) {
+  const [row] = await ctx.db.select({ result: fits.result }).from(fits).where(eq(fits.id, id));
+  return (row?.result ?? null) as FitResult | null;
 }
 
 /** The region keys whose observed counts are withheld now (blinded analysis, signal regions). */
@@ -70,9 +74,41 @@ export async function listFits(ctx: AppContext, access: Access): Promise<FitSumm
   return rows.map((r) => summaryOf(r.fit, r.version, r.by));
 }
 
+/**
+ * A finished fit never changes, and its result can be megabytes: its response is encoded once
+ * and kept (per database, a few fits), keyed by what decides its bytes: the fit, when it ended,
+ * and whether blinding removes data from it.
+ */
+const encoded = new WeakMap<object, Map<string, { body: Buffer; etag: string }>>();
+const KEEP = 12;
+
+export async function getFitEncoded(ctx: AppContext, access: Access, id: number): Promise<{ body: Buffer; etag: string | null }> {
+  const [light] = await ctx.db
+    .select({ state: fits.state, finishedAt: fits.finishedAt })
+    .from(fits)
+    .where(and(eq(fits.analysisId, access.analysis.id), eq(fits.id, id)));
+  if (!light) throw notFound(`Fit ${id}`);
+  if (light.state === 'queued' || light.state === 'running') return { body: Buffer.from(JSON.stringify(await getFit(ctx, access, id))), etag: null };
+  const key = `${access.analysis.id}:${id}:${light.finishedAt?.getTime()}:${access.analysis.blinding === 'unblinded' ? 'open' : 'blind'}`;
+  let cache = encoded.get(ctx.db);
+  if (!cache) encoded.set(ctx.db, (cache = new Map()));
+  let hit = cache.get(key);
+  if (!hit) {
+    const body = Buffer.from(JSON.stringify(await getFit(ctx, access, id)));
+    hit = { body, etag: `"${createHash('sha1').update(body).digest('base64url')}"` };
+    cache.set(key, hit);
+    if (cache.size > KEEP) cache.delete(cache.keys().next().value!);
+  } else {
+    // most recently used last
+    cache.delete(key);
+    cache.set(key, hit);
+  }
+  return hit;
+}
+
 export async function getFit(ctx: AppContext, access: Access, id: number): Promise<FitDetail> {
   const row = await findFit(ctx, access, id);
-  return { ...summaryOf(row.fit, row.version, row.by), result: blindResult(access, row.fit.result as FitResult | null) };
+  return { ...summaryOf(row.fit, row.version, row.by), result: blindResult(access, await storedResult(ctx, id)) };
 }
 
 /**
@@ -128,7 +164,7 @@ const diff = (a: number | null | undefined, b: number | null | undefined) => ({ 
 /** Result of a converged fit, or a refusal that says why there are no numbers. */
 async function convergedResult(ctx: AppContext, access: Access, id: number) {
   const row = await findFit(ctx, access, id);
-  const result = blindResult(access, row.fit.result as FitResult | null);
+  const result = blindResult(access, await storedResult(ctx, id));
   if (row.fit.state !== 'succeeded' || !result || result.status !== 'converged')
     throw conflict(`Fit ${id} ${row.fit.state === 'failed' ? `failed (${row.fit.failure})` : `is ${row.fit.state}`}: it has no results to compare or export.`);
   return { row, result };
