@@ -70,3 +70,13 @@ export function scaleWarnings(up: number, down: number): VariationWarning[] {
   if (Math.abs(up - 1) > 1 || Math.abs(down - 1) > 1) warnings.push({ code: 'over-100-percent', message: 'The variation exceeds 100 % of the nominal.' });
   return warnings;
 }
+
+/** Largest |variation − nominal| / nominal over the bins of an effect, in percent (the register's "largest effect"). */
+export function largestEffectPct(kind: 'scale' | 'shape', up: number | number[], down: number | number[], nominal: number[] | undefined): number {
+  if (kind === 'scale') return 100 * Math.max(Math.abs((up as number) - 1), Math.abs((down as number) - 1));
+  let worst = 0;
+  (nominal ?? []).forEach((n, b) => {
+    if (n > 0) worst = Math.max(worst, Math.abs((up as number[])[b] - n) / n, Math.abs((down as number[])[b] - n) / n);
+  });
+  return 100 * worst;
+}
