@@ -1,6 +1,6 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { syntheticModel } from '../../server/fit';
-import { launchBrowser, screenshot, signIn, startServer, type Browser, type RunningServer } from './support';
+import { screenshot, serverAndBrowser, signIn, type Browser } from './support';
 
 /** Calls the API from the signed-in page, with the CSRF token, and returns the JSON answer. */
 async function api(browser: Browser, method: string, path: string, body?: unknown) {
@@ -24,22 +24,13 @@ async function waitForFit(browser: Browser, slug: string, id: number) {
 }
 
 describe('an analyst freezes a version, runs a fit and reads every review screen', () => {
-  let server: RunningServer;
-  let browser: Browser;
-  beforeAll(async () => {
-    server = await startServer({ UPLOAD_LIMIT_BYTES: '50000000' });
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const live = serverAndBrowser({ UPLOAD_LIMIT_BYTES: '50000000' });
 
   it('freezes a version and runs a fit with full impacts, scan and limit, watching it finish', async () => {
-    const { page } = browser;
-    await signIn(page, server.url, 'otto@lantern.example');
+    const { page } = live.browser;
+    await signIn(page, live.server.url, 'otto@lantern.example');
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
-    await page.goto(`${server.url}/a/cascade-rate/fits`);
+    await page.goto(`${live.server.url}/a/cascade-rate/fits`);
     await page.getByLabel('Note').fill('Review fit');
     await page.getByRole('button', { name: 'Freeze model version' }).click();
     await page.getByRole('list', { name: 'Model versions' }).getByText('Review fit').waitFor();
@@ -55,7 +46,7 @@ describe('an analyst freezes a version, runs a fit and reads every review screen
   });
 
   it('shows every tab of the result', async () => {
-    const { page } = browser;
+    const { page } = live.browser;
     const base = page.url().replace(/\/(summary|pulls|impacts|groups|correlations|distributions|diagnostics|compare)$/, '');
     for (const tab of ['summary', 'pulls', 'impacts', 'groups', 'correlations', 'distributions', 'diagnostics']) {
       await page.goto(`${base}/${tab}`);
@@ -65,19 +56,19 @@ describe('an analyst freezes a version, runs a fit and reads every review screen
     }
     // the summary's μ̂ is the stored result's
     const id = Number(base.split('/').pop());
-    const { body } = await api(browser, 'GET', `/api/analyses/cascade-rate/fits/${id}`);
+    const { body } = await api(live.browser, 'GET', `/api/analyses/cascade-rate/fits/${id}`);
     expect(body.result.status).toBe('converged');
     await page.goto(`${base}/summary`);
     await page.getByText(body.result.summary.mu.value.toFixed(2)).first().waitFor();
   });
 
   it('compares with a second fit and downloads the exports', async () => {
-    const { page } = browser;
+    const { page } = live.browser;
     const base = page.url().replace(/\/summary$/, '');
     const id = Number(base.split('/').pop());
-    const second = await api(browser, 'POST', '/api/analyses/cascade-rate/fits', { version: 1, label: 'Asimov μ = 1', options: { dataset: 'asimov', asimovMu: 1, impacts: 'quick' } });
+    const second = await api(live.browser, 'POST', '/api/analyses/cascade-rate/fits', { version: 1, label: 'Asimov μ = 1', options: { dataset: 'asimov', asimovMu: 1, impacts: 'quick' } });
     expect(second.status).toBe(202);
-    await waitForFit(browser, 'cascade-rate', second.body.id);
+    await waitForFit(live.browser, 'cascade-rate', second.body.id);
     await page.goto(`${base}/compare`);
     const select = page.getByLabel(/compare with/i);
     await select.locator('option', { hasText: 'Asimov' }).first().waitFor({ state: 'attached' });
@@ -92,17 +83,17 @@ describe('an analyst freezes a version, runs a fit and reads every review screen
   });
 
   it('draws a 300 × 300 correlation matrix (prints the time the page measured)', async () => {
-    const { page } = browser;
+    const { page } = live.browser;
     const spec = { regions: 6, signalRegions: 2, bins: 20, processes: 5, systematics: 296, floatingNorms: 3, varianceFraction: 0.3 };
     const model = { ...syntheticModel(spec, 7), name: 'three hundred' };
-    const created = await api(browser, 'POST', '/api/analyses', { slug: 'three-hundred', name: 'Three hundred parameters', blinded: false });
+    const created = await api(live.browser, 'POST', '/api/analyses', { slug: 'three-hundred', name: 'Three hundred parameters', blinded: false });
     // otto is no admin: the admin sets the analysis up
     if (created.status === 403) {
-      await browser.context.clearCookies();
-      await signIn(page, server.url, 'admin@lantern.example');
+      await live.browser.context.clearCookies();
+      await signIn(page, live.server.url, 'admin@lantern.example');
       await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
-      expect((await api(browser, 'POST', '/api/analyses', { slug: 'three-hundred', name: 'Three hundred parameters', blinded: false })).status).toBe(201);
-      expect((await api(browser, 'POST', '/api/analyses/three-hundred/members', { email: 'admin@lantern.example', role: 'analyst' })).status).toBe(201);
+      expect((await api(live.browser, 'POST', '/api/analyses', { slug: 'three-hundred', name: 'Three hundred parameters', blinded: false })).status).toBe(201);
+      expect((await api(live.browser, 'POST', '/api/analyses/three-hundred/members', { email: 'admin@lantern.example', role: 'analyst' })).status).toBe(201);
     }
     const imported = await page.evaluate(async (json) => {
       const token = (await (await fetch('/api/auth/csrf')).json()).token;
@@ -111,13 +102,13 @@ describe('an analyst freezes a version, runs a fit and reads every review screen
       return (await fetch('/api/analyses/three-hundred/exchange', { method: 'POST', headers: { 'x-csrf-token': token }, body: form })).status;
     }, JSON.stringify(model));
     expect(imported).toBe(201);
-    expect((await api(browser, 'POST', '/api/analyses/three-hundred/versions', {})).status).toBe(201);
-    const fit = await api(browser, 'POST', '/api/analyses/three-hundred/fits', { version: 1, options: { dataset: 'observed', impacts: 'quick', expected: false } });
-    const done = await waitForFit(browser, 'three-hundred', fit.body.id);
+    expect((await api(live.browser, 'POST', '/api/analyses/three-hundred/versions', {})).status).toBe(201);
+    const fit = await api(live.browser, 'POST', '/api/analyses/three-hundred/fits', { version: 1, options: { dataset: 'observed', impacts: 'quick', expected: false } });
+    const done = await waitForFit(live.browser, 'three-hundred', fit.body.id);
     expect(done.state).toBe('succeeded');
     expect(done.result.correlation.names).toHaveLength(300);
 
-    await page.goto(`${server.url}/a/three-hundred/fits/${fit.body.id}/correlations`);
+    await page.goto(`${live.server.url}/a/three-hundred/fits/${fit.body.id}/correlations`);
     await page.locator('canvas').first().waitFor();
     const ms = await page.waitForFunction(() => {
       const m = performance.getEntriesByName('correlation-draw', 'measure');

@@ -1,23 +1,14 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchBrowser, screenshot, signIn, startServer, type Browser, type RunningServer } from './support';
+import { describe, expect, it } from 'vitest';
+import { screenshot, serverAndBrowser, signIn } from './support';
 
 describe('the groups board', () => {
-  let server: RunningServer;
-  let browser: Browser;
-  beforeAll(async () => {
-    server = await startServer();
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const live = serverAndBrowser();
 
   it('moves an entry to the next group with the keyboard alone, and the move is stored', async () => {
-    const { page } = browser;
-    await signIn(page, server.url, 'otto@lantern.example');
+    const { page } = live.browser;
+    await signIn(page, live.server.url, 'otto@lantern.example');
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
-    await page.goto(`${server.url}/a/vireon-search/groups`);
+    await page.goto(`${live.server.url}/a/vireon-search/groups`);
     const luminosity = page.getByRole('list', { name: 'Entries in luminosity' });
     const calorimetry = page.getByRole('list', { name: 'Entries in calorimetry' });
     await luminosity.getByText('beam_energy').waitFor();
@@ -41,11 +32,11 @@ describe('the groups board', () => {
   });
 
   it('shows a reader the board without drag handles', async () => {
-    const { page, context } = browser;
+    const { page, context } = live.browser;
     await context.clearCookies();
-    await signIn(page, server.url, 'rafe@lantern.example');
+    await signIn(page, live.server.url, 'rafe@lantern.example');
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
-    await page.goto(`${server.url}/a/vireon-search/groups`);
+    await page.goto(`${live.server.url}/a/vireon-search/groups`);
     await page.getByText('lumi', { exact: true }).first().waitFor();
     await page.getByText('Reader', { exact: true }).first().waitFor();
     expect(await page.getByRole('button', { name: /^Move / }).count()).toBe(0);

@@ -1,6 +1,6 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import { demoScenario } from '../../server/seed/scenario';
-import { launchBrowser, screenshot, signIn, startServer, type Browser, type RunningServer } from './support';
+import { screenshot, serverAndBrowser, signIn } from './support';
 
 /** The contact's CSV: a shape variation of the continuum in CR-shower, up and down on the same side of the nominal in bin 1. */
 function variationCsv() {
@@ -14,22 +14,13 @@ function variationCsv() {
 }
 
 describe('a systematics contact uploads variations and a convener accepts them', () => {
-  let server: RunningServer;
-  let browser: Browser;
-  beforeAll(async () => {
-    server = await startServer();
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const live = serverAndBrowser();
 
   it('the contact previews the upload with its warning, saves it and submits the entry', async () => {
-    const { page } = browser;
-    await signIn(page, server.url, 'juno@lantern.example');
+    const { page } = live.browser;
+    await signIn(page, live.server.url, 'juno@lantern.example');
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
-    await page.goto(`${server.url}/a/vireon-search/entries/calo_nonlin`);
+    await page.goto(`${live.server.url}/a/vireon-search/entries/calo_nonlin`);
     await page.getByRole('heading', { name: /Calorimeter non-linearity/ }).first().waitFor();
     await page.getByLabel('Variation file (CSV or JSON)').setInputFiles({ name: 'calo_nonlin.csv', mimeType: 'text/csv', buffer: Buffer.from(variationCsv()) });
     await page.getByRole('button', { name: /^preview/i }).click();
@@ -46,35 +37,35 @@ describe('a systematics contact uploads variations and a convener accepts them',
   });
 
   it('the conveners are e-mailed, and the admin reads it in the outbox', async () => {
-    const { page, context } = browser;
+    const { page, context } = live.browser;
     await context.clearCookies();
-    await signIn(page, server.url, 'admin@lantern.example');
+    await signIn(page, live.server.url, 'admin@lantern.example');
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
-    await page.goto(`${server.url}/admin/outbox`);
+    await page.goto(`${live.server.url}/admin/outbox`);
     await page.getByText('[vireon-search] calo_nonlin awaits review').first().waitFor();
     await page.getByText('mira@lantern.example').first().waitFor();
     await screenshot(page, 'outbox');
   });
 
   it('the convener accepts the entry and its owner is told', async () => {
-    const { page, context } = browser;
+    const { page, context } = live.browser;
     await context.clearCookies();
-    await signIn(page, server.url, 'mira@lantern.example');
+    await signIn(page, live.server.url, 'mira@lantern.example');
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
-    await page.goto(`${server.url}/a/vireon-search/entries/calo_nonlin`);
+    await page.goto(`${live.server.url}/a/vireon-search/entries/calo_nonlin`);
     await page.getByRole('button', { name: 'Accept', exact: true }).click();
     await page.getByText('Accepted', { exact: true }).first().waitFor();
     await screenshot(page, 'entry-accepted');
 
     await context.clearCookies();
-    await signIn(page, server.url, 'admin@lantern.example');
+    await signIn(page, live.server.url, 'admin@lantern.example');
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
-    await page.goto(`${server.url}/admin/outbox`);
+    await page.goto(`${live.server.url}/admin/outbox`);
     await page.getByText('[vireon-search] calo_nonlin was accepted').first().waitFor();
   });
 
   it('keeps the register responsive with 500 entries (prints the time to filter and to sort)', async () => {
-    const { page } = browser;
+    const { page } = live.browser;
     // an admin creates an analysis whose model file has 500 systematics; the admin is then made its analyst
     const big = demoScenario().analyses.find((a) => a.slug === 'vireon-search')!.model;
     const systematics = Array.from({ length: 500 }, (_, i) => ({ ...big.systematics![i % big.systematics!.length], key: `sys_${String(i).padStart(3, '0')}`, label: `Systematic ${i}` }));
@@ -93,7 +84,7 @@ describe('a systematics contact uploads variations and a convener accepts them',
       { model: { ...big, systematics } },
     );
     expect(result).toBe(201);
-    await page.goto(`${server.url}/a/five-hundred/register`);
+    await page.goto(`${live.server.url}/a/five-hundred/register`);
     await page.getByText(/Showing 500 of 500/).waitFor();
     const filter = page.getByLabel(/filter entries/i);
     const t0 = Date.now();

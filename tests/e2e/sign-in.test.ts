@@ -1,36 +1,26 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchBrowser, screenshot, signIn, startServer, type Browser, type RunningServer } from './support';
+import { describe, expect, it } from 'vitest';
+import { screenshot, serverAndBrowser, signIn } from './support';
 
 describe('signing in and opening an analysis in the browser', () => {
-  let server: RunningServer;
-  let browser: Browser;
-
-  beforeAll(async () => {
-    server = await startServer();
-    browser = await launchBrowser();
-  });
-  afterAll(async () => {
-    await browser?.close();
-    await server?.stop();
-  });
+  const live = serverAndBrowser();
 
   it('shows the sign-in page to a visitor who is not signed in', async () => {
-    const { page } = browser;
-    await page.goto(`${server.url}/a/vireon-search`);
+    const { page } = live.browser;
+    await page.goto(`${live.server.url}/a/vireon-search`);
     await page.waitForURL(/\/sign-in/);
     await page.getByRole('button', { name: /sign in/i }).waitFor();
     await screenshot(page, 'sign-in');
   });
 
   it('tells a person whose password is wrong, and lets them try again', async () => {
-    const { page } = browser;
-    await signIn(page, server.url, 'otto@lantern.example', 'wrong-password');
+    const { page } = live.browser;
+    await signIn(page, live.server.url, 'otto@lantern.example', 'wrong-password');
     await page.getByText(/e-mail and password do not match/i).waitFor();
   });
 
   it('signs an analyst in, lists their analyses and opens the blinded one', async () => {
-    const { page } = browser;
-    await signIn(page, server.url, 'otto@lantern.example');
+    const { page } = live.browser;
+    await signIn(page, live.server.url, 'otto@lantern.example');
     await page.getByRole('link', { name: /Vireon search in flare pairs/ }).first().click();
     await page.waitForURL(/\/a\/vireon-search$/);
     await page.getByRole('heading', { name: /Vireon search in flare pairs/ }).first().waitFor();
@@ -39,34 +29,34 @@ describe('signing in and opening an analysis in the browser', () => {
   });
 
   it('shows the register of the demo with its forty entries', async () => {
-    const { page } = browser;
-    await page.goto(`${server.url}/a/vireon-search/register`);
+    const { page } = live.browser;
+    await page.goto(`${live.server.url}/a/vireon-search/register`);
     await page.getByRole('cell', { name: 'flare_escale' }).waitFor();
     expect(await page.getByRole('row').count()).toBe(41);
     await screenshot(page, 'register');
   });
 
   it('shows signal-region data as withheld on the model screen while blinded', async () => {
-    const { page } = browser;
-    await page.goto(`${server.url}/a/vireon-search/model`);
+    const { page } = live.browser;
+    await page.goto(`${live.server.url}/a/vireon-search/model`);
     await page.getByText(/withheld/i).first().waitFor();
     await screenshot(page, 'model');
   });
 
   it('lets a convener manage members, and shows a reader the list without the controls', async () => {
-    const { page, context } = browser;
+    const { page, context } = live.browser;
     await context.clearCookies();
-    await signIn(page, server.url, 'mira@lantern.example');
+    await signIn(page, live.server.url, 'mira@lantern.example');
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
-    await page.goto(`${server.url}/a/vireon-search/members`);
+    await page.goto(`${live.server.url}/a/vireon-search/members`);
     await page.getByRole('rowheader', { name: /Rafe Orlowyn/ }).waitFor();
     await page.getByRole('button', { name: /^invite$/i }).waitFor();
     await screenshot(page, 'members-convener');
 
     await context.clearCookies();
-    await signIn(page, server.url, 'rafe@lantern.example');
+    await signIn(page, live.server.url, 'rafe@lantern.example');
     await page.waitForURL((u) => !u.pathname.startsWith('/sign-in'));
-    await page.goto(`${server.url}/a/vireon-search/members`);
+    await page.goto(`${live.server.url}/a/vireon-search/members`);
     await page.getByRole('rowheader', { name: /Mira Quellbright/ }).waitFor();
     // the role badge comes with the overview, which also decides whether the controls show
     await page.getByText('Reader', { exact: true }).first().waitFor();

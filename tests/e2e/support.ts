@@ -3,6 +3,7 @@ import { mkdirSync, mkdtempSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { chromium, type BrowserContext, type Page } from 'playwright-core';
+import { afterAll, beforeAll } from 'vitest';
 
 export const SCREENSHOTS = path.resolve('test-output/screenshots');
 export const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
@@ -81,4 +82,21 @@ export async function signIn(page: Page, url: string, email: string, password = 
   await page.getByLabel(/e-mail/i).fill(email);
   await page.getByLabel(/password/i).fill(password);
   await page.getByRole('button', { name: /sign in/i }).click();
+}
+
+/**
+ * One real server and one browser for a test file: started before its tests, stopped after.
+ * Read `.server` and `.browser` inside the tests (they exist once beforeAll has run).
+ */
+export function serverAndBrowser(env: Record<string, string> = {}) {
+  const held = {} as { server: RunningServer; browser: Browser };
+  beforeAll(async () => {
+    held.server = await startServer(env);
+    held.browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await held.browser?.close();
+    await held.server?.stop();
+  });
+  return held;
 }
