@@ -71,7 +71,8 @@ async function main() {
           url: server.url,
           connections: CONNECTIONS,
           duration: SECONDS,
-          headers: { cookie: s.cookie },
+          // as a browser does
+          headers: { cookie: s.cookie, 'accept-encoding': 'gzip, deflate, br' },
           requests: [
             ...(ONLY !== 'fit' ? [{ method: 'GET' as const, path: '/api/analyses/bench-large/entries' }] : []),
             ...(ONLY !== 'register' ? [{ method: 'GET' as const, path: `/api/analyses/bench-large/fits/${first.id}` }] : []),

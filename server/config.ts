@@ -18,6 +18,8 @@ const envSchema = z.object({
   /** Largest accepted request body (JSON) and upload, in bytes. */
   BODY_LIMIT_BYTES: z.coerce.number().int().min(1024).default(1_000_000),
   UPLOAD_LIMIT_BYTES: z.coerce.number().int().min(1024).default(5_000_000),
+  /** Threads for a fit's refits; default: all cores but one, which stays with the API. */
+  FIT_THREADS: z.coerce.number().int().min(1).max(256).optional(),
   /** Sign-in attempts per IP per 15 minutes. */
   SIGN_IN_LIMIT: z.coerce.number().int().min(1).default(20),
 });

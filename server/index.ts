@@ -1,6 +1,7 @@
 import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import { randomBytes } from 'node:crypto';
 import path from 'node:path';
+import { availableParallelism } from 'node:os';
 import express from 'express';
 import { createApp } from './app';
 import { ConfigError, loadConfig, type Config } from './config';
@@ -44,7 +45,7 @@ async function main() {
   const seed = await seedDemo(database.db);
   await backfillEffectSizes(database.db);
   const mailer = await createMailer(database.db, config);
-  const fits = createFitRunner(database.db, console.error);
+  const fits = createFitRunner(database.db, console.error, { threads: config.FIT_THREADS ?? Math.max(1, availableParallelism() - 1) });
   await fits.recover();
   const { app } = createApp(database, config, { mailer, fits });
   const closeClient = await serveClient(app, config);

@@ -21,12 +21,14 @@ export const fitsRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>)
     res.status(202).json(await startFit(ctx, accessOf(req), req.body));
   }),
   route('get', '/api/analyses/:slug/fits/:fitId', auth.may('analysis.read'), async (req, res) => {
-    const { body, etag } = await getFitEncoded(ctx, accessOf(req), id('fit id').parse(req.params.fitId));
+    const { body, gzip, etag } = await getFitEncoded(ctx, accessOf(req), id('fit id').parse(req.params.fitId));
     if (etag) {
-      res.set('ETag', etag).set('Cache-Control', 'private, no-cache');
+      res.set('ETag', etag).set('Cache-Control', 'private, no-cache').vary('Accept-Encoding');
       if (req.get('if-none-match') === etag) return void res.status(304).end();
     }
-    res.type('json').send(body);
+    res.type('json');
+    if (gzip && /\bgzip\b/.test(req.get('accept-encoding') ?? '')) return void res.set('Content-Encoding', 'gzip').send(gzip);
+    res.send(body);
   }),
   route('post', '/api/analyses/:slug/fits/:fitId/cancel', auth.may('fit.run'), async (req, res) => {
     res.json(await cancelFit(ctx, accessOf(req), id('fit id').parse(req.params.fitId)));

@@ -1,4 +1,5 @@
 import { createHash } from 'node:crypto';
+import { gzipSync } from 'node:zlib';
 import Papa from 'papaparse';
 import { and, desc, eq, getTableColumns } from 'drizzle-orm';
 import { fitOptionsSchema, type FitResult } from '@shared/schemas/fit';
@@ -79,23 +80,24 @@ export async function listFits(ctx: AppContext, access: Access): Promise<FitSumm
  * and kept (per database, a few fits), keyed by what decides its bytes: the fit, when it ended,
  * and whether blinding removes data from it.
  */
-const encoded = new WeakMap<object, Map<string, { body: Buffer; etag: string }>>();
+const encoded = new WeakMap<object, Map<string, { body: Buffer; gzip: Buffer | null; etag: string }>>();
 const KEEP = 12;
 
-export async function getFitEncoded(ctx: AppContext, access: Access, id: number): Promise<{ body: Buffer; etag: string | null }> {
+export async function getFitEncoded(ctx: AppContext, access: Access, id: number): Promise<{ body: Buffer; gzip: Buffer | null; etag: string | null }> {
   const [light] = await ctx.db
     .select({ state: fits.state, finishedAt: fits.finishedAt })
     .from(fits)
     .where(and(eq(fits.analysisId, access.analysis.id), eq(fits.id, id)));
   if (!light) throw notFound(`Fit ${id}`);
-  if (light.state === 'queued' || light.state === 'running') return { body: Buffer.from(JSON.stringify(await getFit(ctx, access, id))), etag: null };
+  if (light.state === 'queued' || light.state === 'running') return { body: Buffer.from(JSON.stringify(await getFit(ctx, access, id))), gzip: null, etag: null };
   const key = `${access.analysis.id}:${id}:${light.finishedAt?.getTime()}:${access.analysis.blinding === 'unblinded' ? 'open' : 'blind'}`;
   let cache = encoded.get(ctx.db);
   if (!cache) encoded.set(ctx.db, (cache = new Map()));
   let hit = cache.get(key);
   if (!hit) {
     const body = Buffer.from(JSON.stringify(await getFit(ctx, access, id)));
-    hit = { body, etag: `"${createHash('sha1').update(body).digest('base64url')}"` };
+    // compressed once here, so a large result costs a quarter of the bytes on every later read
+    hit = { body, gzip: body.length > 16 * 1024 ? gzipSync(body, { level: 6 }) : null, etag: `"${createHash('sha1').update(body).digest('base64url')}"` };
     cache.set(key, hit);
     if (cache.size > KEEP) cache.delete(cache.keys().next().value!);
   } else {

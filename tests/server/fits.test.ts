@@ -181,3 +181,26 @@ describe('model versions and fit runs', () => {
     expect(bad.status).toBe(400);
   });
 });
+
+describe('a finished fit\u2019s response', () => {
+  it('carries an ETag, answers 304 to it, and comes compressed to a client that accepts gzip', async () => {
+    const t = await createTestApp();
+    try {
+      const analyst = await signedIn(t.app, DEMO.analyst);
+      await analyst.send('post', `${C}/versions`, {});
+      const started = await analyst.send('post', `${C}/fits`, { version: 1, options: { impacts: 'full', scan: true } });
+      await t.fits.idle();
+      const first = await analyst.get(`${C}/fits/${started.body.id}`).set('accept-encoding', 'gzip');
+      expect(first.status).toBe(200);
+      expect(first.headers['content-encoding']).toBe('gzip');
+      expect(first.body.result.status).toBe('converged');
+      const again = await analyst.get(`${C}/fits/${started.body.id}`).set('if-none-match', first.headers.etag);
+      expect(again.status).toBe(304);
+      const plain = await analyst.get(`${C}/fits/${started.body.id}`).set('accept-encoding', 'identity');
+      expect(plain.headers['content-encoding']).toBeUndefined();
+      expect(plain.body).toEqual(first.body);
+    } finally {
+      await t.close();
+    }
+  });
+});
