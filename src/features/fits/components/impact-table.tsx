@@ -13,7 +13,8 @@ import {
   type SortingState,
 } from '@tanstack/react-table';
 import type { FitResult, NuisanceReport } from '@shared/schemas/fit';
-import { tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { tableClass, tdClass } from '../../../components/ui/page';
+import { SortableTh } from '../../../components/ui/sortable-th';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
 import { groupName, impactMode, impactSize, isStronglyPulled, labelsOf, rankByImpact, type ImpactMode } from '../result-helpers';
 import { ConstraintMeter, ImpactGlyph, PullGlyph } from './glyphs';
@@ -207,24 +208,11 @@ export function ImpactTable({ slug, fitId, result }: { slug: string; fitId: numb
           <thead>
             {table.getHeaderGroups().map((g) => (
               <tr key={g.id}>
-                {g.headers.map((header) => {
-                  const sorted = header.column.getIsSorted();
-                  return (
-                    <th
-                      key={header.id}
-                      scope="col"
-                      aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : 'none'}
-                      className={`${thClass} whitespace-nowrap ${NUMERIC.has(header.column.id) ? 'text-right' : ''}`}
-                    >
-                      <button type="button" onClick={header.column.getToggleSortingHandler()} className="inline-flex items-center gap-1 rounded hover:text-ink" title="Sort by this column">
-                        <table.FlexRender header={header} />
-                        <span aria-hidden className={`w-2.5 text-2xs ${sorted ? 'text-teal-ink' : 'text-rule-strong'}`}>
-                          {sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}
-                        </span>
-                      </button>
-                    </th>
-                  );
-                })}
+                {g.headers.map((header) => (
+                  <SortableTh key={header.id} sorted={header.column.getIsSorted()} onSort={header.column.getToggleSortingHandler()} numeric={NUMERIC.has(header.column.id)}>
+                    {<table.FlexRender header={header} />}
+                  </SortableTh>
+                ))}
               </tr>
             ))}
           </thead>

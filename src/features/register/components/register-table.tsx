@@ -21,7 +21,8 @@ import {
 } from '@tanstack/react-table';
 import type { EntryState, EntrySummary } from '@shared/schemas/api';
 import { EmptyState } from '../../../components/ui/empty-state';
-import { tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { tableClass, tdClass } from '../../../components/ui/page';
+import { SortableTh } from '../../../components/ui/sortable-th';
 import { formatPercent } from '../../../lib/format';
 import { ENTRY_STATE_META, ENTRY_STATES } from '../entry-states';
 import { EntryStateBadge } from './entry-state-badge';
@@ -343,31 +344,11 @@ export function RegisterTable({ slug, entries, actions }: { slug: string; entrie
           <thead>
             {table.getHeaderGroups().map((group) => (
               <tr key={group.id}>
-                {group.headers.map((header) => {
-                  const sorted = header.column.getIsSorted();
-                  return (
-                    <th
-                      key={header.id}
-                      scope="col"
-                      aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : 'none'}
-                      className={`${thClass} whitespace-nowrap ${NUMERIC.has(header.column.id) ? 'text-right' : ''}`}
-                    >
-                      {header.isPlaceholder ? null : (
-                        <button
-                          type="button"
-                          onClick={header.column.getToggleSortingHandler()}
-                          className="inline-flex items-center gap-1 rounded hover:text-ink"
-                          title="Sort by this column"
-                        >
-                          <table.FlexRender header={header} />
-                          <span aria-hidden className={`w-2.5 text-2xs ${sorted ? 'text-teal-ink' : 'text-rule-strong'}`}>
-                            {sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}
-                          </span>
-                        </button>
-                      )}
-                    </th>
-                  );
-                })}
+                {group.headers.map((header) => (
+                  <SortableTh key={header.id} sorted={header.column.getIsSorted()} onSort={header.column.getToggleSortingHandler()} numeric={NUMERIC.has(header.column.id)}>
+                    {header.isPlaceholder ? null : <table.FlexRender header={header} />}
+                  </SortableTh>
+                ))}
               </tr>
             ))}
           </thead>
