@@ -37,7 +37,6 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
   async function run(id: number) {
     const [fit] = await db.select().from(fits).where(eq(fits.id, id));
     if (!fit || fit.state !== 'queued') return;
-    if (cancelled.has(id)) return finish(id, { state: 'cancelled', failure: `Cancelled by ${cancelled.get(id)} before it started.` });
     const [version] = await db.select().from(modelVersions).where(eq(modelVersions.id, fit.modelVersionId));
     const controller = new AbortController();
     current = { id, controller };

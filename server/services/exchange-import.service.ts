@@ -3,12 +3,12 @@ import { exchangeModelSchema, type ExchangeModel, type ExchangeModelInput } from
 import type { EntryState } from '@shared/schemas/api';
 import { largestEffectPct, scaleWarnings, shapeWarnings } from '@shared/validation/variation-warnings';
 import type { Db } from '../db/client';
+import type { Tx } from '../db/revisions.repository';
 import { effects, entries, floatingNorms, groups, processes, regions, revisions, templates } from '../db/schema';
 import { conflict, unprocessable, zodIssues } from '../errors';
 
 export type EntryMeta = { ownerId?: number | null; state?: EntryState; justification?: string; references?: string[] };
 
-type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 
 /** Parses an exchange document with the shared schema; a bad one is refused with the failing paths. */
 export function parseExchange(document: unknown): ExchangeModel {

@@ -55,10 +55,9 @@ async function storedResult(ctx: AppContext, id: number) {
 }
 
 /** The region keys whose observed counts are withheld now (blinded analysis, signal regions). */
-function withheldRegions(access: Access, result: FitResult | null, model?: ExchangeModel) {
+function withheldRegions(access: Access, result: FitResult) {
   const roles = new Map<string, string>();
-  model?.regions.forEach((r) => roles.set(r.key, r.role));
-  result?.yields.prefit.forEach((r) => roles.set(r.region, r.role));
+  result.yields.prefit.forEach((r) => roles.set(r.region, r.role));
   return new Set([...roles].filter(([, role]) => isWithheld(access.analysis, { role })).map(([key]) => key));
 }
 

@@ -18,7 +18,7 @@ import { indexModel, loadModelRows, type ModelIndex } from '../db/model.reposito
 import { addRevision, type DbOrTx } from '../db/revisions.repository';
 import { effects, floatingNorms, processes, regions, templates } from '../db/schema';
 import { conflict, notFound, unprocessable } from '../errors';
-import { numberCell, readCsv } from '../uploads/csv';
+import { binCell, numberCell, readCsv } from '../uploads/csv';
 import { readUpload } from '../uploads/upload';
 import { isWithheld } from './blinding.service';
 
@@ -203,7 +203,7 @@ type TemplateChange = { region: string; process: string; nominal: number[]; vari
 
 function readTemplatesCsv(text: string, filename: string, model: ModelIndex): TemplateChange[] {
   const { rows, problems } = readCsv(text, filename, { required: ['region', 'process', 'bin', 'nominal'], optional: ['variance'] });
-  const groups = new Map<string, { region: string; process: string; nominal: number[]; variance: number[]; filled: Set<number>; withVariance: number; rows: number }>();
+  const groups = new Map<string, { region: string; process: string; nominal: number[]; variance: number[]; filled: Map<number, number>; withVariance: number; rows: number }>();
   for (const row of rows) {
     const region = row.get('region');
     const process = row.get('process');
@@ -212,20 +212,11 @@ function readTemplatesCsv(text: string, filename: string, model: ModelIndex): Te
     if (!model.regions.has(region) || !model.processes.has(process)) continue;
     const bins = model.bins(region);
     const id = `${region}/${process}`;
-    if (!groups.has(id)) groups.set(id, { region, process, nominal: Array(bins).fill(0), variance: Array(bins).fill(0), filled: new Set(), withVariance: 0, rows: 0 });
+    if (!groups.has(id)) groups.set(id, { region, process, nominal: Array(bins).fill(0), variance: Array(bins).fill(0), filled: new Map(), withVariance: 0, rows: 0 });
     const g = groups.get(id)!;
     g.rows++;
-    const bin = numberCell(problems, row, 'bin', { integer: true });
-    if (bin === null) {
-      if (row.get('bin') === '') problems.at(row.line, 'bin', 'is empty');
-      continue;
-    }
-    if (bin < 1 || bin > bins) {
-      problems.at(row.line, 'bin', `${bin} is outside region "${region}", which has bins 1 to ${bins}`);
-      continue;
-    }
-    if (g.filled.has(bin)) problems.at(row.line, 'bin', `bin ${bin} of region "${region}", process "${process}" appears twice`);
-    g.filled.add(bin);
+    const bin = binCell(problems, row, { region, bins, of: `region "${region}", process "${process}"`, seen: g.filled });
+    if (bin === null) continue;
     const nominal = numberCell(problems, row, 'nominal', { min: 0 });
     if (row.get('nominal') === '') problems.at(row.line, 'nominal', 'is empty');
     const variance = numberCell(problems, row, 'variance', { min: 0 });
@@ -244,7 +235,7 @@ function readTemplatesCsv(text: string, filename: string, model: ModelIndex): Te
 
 function readObservedCsv(text: string, filename: string, model: ModelIndex) {
   const { rows, problems } = readCsv(text, filename, { required: ['region', 'bin', 'observed'] });
-  const groups = new Map<string, { counts: number[]; filled: Set<number> }>();
+  const groups = new Map<string, { counts: number[]; filled: Map<number, number> }>();
   for (const row of rows) {
     const region = row.get('region');
     if (!model.regions.has(region)) {
@@ -252,16 +243,10 @@ function readObservedCsv(text: string, filename: string, model: ModelIndex) {
       continue;
     }
     const bins = model.bins(region);
-    if (!groups.has(region)) groups.set(region, { counts: Array(bins).fill(0), filled: new Set() });
+    if (!groups.has(region)) groups.set(region, { counts: Array(bins).fill(0), filled: new Map() });
     const g = groups.get(region)!;
-    const bin = numberCell(problems, row, 'bin', { integer: true });
+    const bin = binCell(problems, row, { region, bins, of: `region "${region}"`, seen: g.filled });
     if (bin === null) continue;
-    if (bin < 1 || bin > bins) {
-      problems.at(row.line, 'bin', `${bin} is outside region "${region}", which has bins 1 to ${bins}`);
-      continue;
-    }
-    if (g.filled.has(bin)) problems.at(row.line, 'bin', `bin ${bin} of region "${region}" appears twice`);
-    g.filled.add(bin);
     const n = numberCell(problems, row, 'observed', { min: 0 });
     if (row.get('observed') === '') problems.at(row.line, 'observed', 'is empty');
     if (n !== null) g.counts[bin - 1] = n;

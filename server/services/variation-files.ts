@@ -1,7 +1,7 @@
 import { variationJsonSchema, type VariationOptions } from '@shared/schemas/register';
 import { flatRatios, scaleWarnings, shapeWarnings, type VariationWarning } from '@shared/validation/variation-warnings';
 import type { ModelIndex } from '../db/model.repository';
-import { FileProblems, numberCell, readCsv } from '../uploads/csv';
+import { binCell, FileProblems, numberCell, readCsv } from '../uploads/csv';
 import { looksLikeJson, type UploadedFile } from '../uploads/upload';
 
 /**
@@ -83,18 +83,8 @@ function readCsvVariations(file: UploadedFile, model: ModelIndex, problems: File
     const seen = new Map<number, number>();
     let withDown = 0;
     for (const r of g.rows) {
-      const bin = numberCell(problems, r, 'bin', { integer: true });
-      if (r.get('bin') === '') problems.at(r.line, 'bin', 'is empty: a shape row gives one bin (1 to ' + bins + ')');
+      const bin = binCell(problems, r, { region: g.region, bins, of: `region "${g.region}", process "${g.process}"`, seen, emptyHint: `is empty: a shape row gives one bin (1 to ${bins})` });
       if (bin === null) continue;
-      if (bin < 1 || bin > bins) {
-        problems.at(r.line, 'bin', `${bin} is outside region "${g.region}", which has bins 1 to ${bins}`);
-        continue;
-      }
-      if (seen.has(bin)) {
-        problems.at(r.line, 'bin', `bin ${bin} of region "${g.region}", process "${g.process}" appears twice (also row ${seen.get(bin)})`);
-        continue;
-      }
-      seen.set(bin, r.line);
       const u = numberCell(problems, r, 'up', { min: 0 });
       if (r.get('up') === '') problems.at(r.line, 'up', 'is empty: give the yield at +1σ in this bin');
       const d = numberCell(problems, r, 'down', { min: 0 });

@@ -68,3 +68,26 @@ export function numberCell(problems: FileProblems, row: CsvRow, column: string, 
   else return value;
   return null;
 }
+
+/**
+ * A bin-number cell of a per-bin file: a whole number from 1 to `bins`, given once per template
+ * (`seen` maps bin to the row that gave it). Returns the bin, or null after naming the problem.
+ */
+export function binCell(problems: FileProblems, row: CsvRow, at: { region: string; bins: number; of: string; seen: Map<number, number>; emptyHint?: string }): number | null {
+  if (row.get('bin') === '') {
+    problems.at(row.line, 'bin', at.emptyHint ?? `is empty: give the bin, 1 to ${at.bins}`);
+    return null;
+  }
+  const bin = numberCell(problems, row, 'bin', { integer: true });
+  if (bin === null) return null;
+  if (bin < 1 || bin > at.bins) {
+    problems.at(row.line, 'bin', `${bin} is outside region "${at.region}", which has bins 1 to ${at.bins}`);
+    return null;
+  }
+  if (at.seen.has(bin)) {
+    problems.at(row.line, 'bin', `bin ${bin} of ${at.of} appears twice (also row ${at.seen.get(bin)})`);
+    return null;
+  }
+  at.seen.set(bin, row.line);
+  return bin;
+}
