@@ -61,7 +61,8 @@ async function main() {
     const resultBytes = (await (await s.fetch(`/api/analyses/bench-large/fits/${first.id}`)).text()).length;
     console.log(`a quick fit to read: ${done.state}; its result is ${(resultBytes / 1e6).toFixed(2)} MB of JSON`);
 
-    const full = await s.send('POST', '/api/analyses/bench-large/fits', { version, label: 'full impacts', options: { dataset: 'observed', impacts: 'full' } });
+    // BENCH_FIT=none: the same load without the fit, to tell what the fit costs the readers
+    const full = process.env.BENCH_FIT === 'none' ? first : await s.send('POST', '/api/analyses/bench-large/fits', { version, label: 'full impacts', options: { dataset: 'observed', impacts: 'full' } });
     const fullStart = Date.now();
     const times: number[] = [];
     let instance!: autocannon.Instance;
@@ -99,8 +100,11 @@ async function main() {
     });
     console.log(`the full-impacts fit during the load: ${state.state} at ${(state.progress * 100).toFixed(0)} % after ${((Date.now() - fullStart) / 1000).toFixed(1)} s`);
     const ended = await waitFor(full.id);
-    console.log(`the full-impacts fit ended ${ended.state} after ${((Date.now() - fullStart) / 1000).toFixed(1)} s`);
-    console.log(`targets: p95 under 100 ms and no errors -> ${percentile(times, 95) < 100 && result.errors === 0 && result.non2xx === 0 ? 'met' : 'NOT met'}`);
+    console.log(`the full-impacts fit ended ${ended.state} after ${((Date.now() - fullStart) / 1000).toFixed(1)} s${ended.failure ? `: ${ended.failure}` : ''}`);
+    // the figures only count if the fit really ran through the load
+    const fitRan = process.env.BENCH_FIT === 'none' || (state.state === 'running' && ended.state === 'succeeded');
+    if (!fitRan) console.log('the fit did not run through the load: these figures do not measure the target');
+    console.log(`targets: p95 under 100 ms and no errors -> ${fitRan && percentile(times, 95) < 100 && result.errors === 0 && result.non2xx === 0 ? 'met' : 'NOT met'}`);
   } finally {
     await server.stop();
   }

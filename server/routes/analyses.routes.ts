@@ -4,7 +4,8 @@ import { accessOf, type authorizer } from '../auth/authorize';
 import { createAnalysis, getOverview, listAnalyses } from '../services/analyses.service';
 import { addMember, changeRole, listMembers, removeMember } from '../services/members.service';
 import { getModel } from '../services/model.service';
-import { listEntries } from '../services/register.service';
+import { listEntriesEncoded } from '../services/register.service';
+import { sendEncoded } from './encoded';
 import { route, type ApiRoute } from './route';
 
 const userIdParam = z.coerce.number({ error: 'the user id in the address must be a number' }).int().positive();
@@ -38,6 +39,6 @@ export const analysesRoutes = (ctx: AppContext, auth: ReturnType<typeof authoriz
     res.json(await getModel(ctx, accessOf(req)));
   }),
   route('get', '/api/analyses/:slug/entries', auth.may('analysis.read'), async (req, res) => {
-    res.json(await listEntries(ctx, accessOf(req)));
+    sendEncoded(req, res, await listEntriesEncoded(ctx, accessOf(req)));
   }),
 ];

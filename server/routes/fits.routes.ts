@@ -3,9 +3,15 @@ import type { AppContext } from '../context';
 import { accessOf, type authorizer } from '../auth/authorize';
 import { cancelFit, compareFits, exportFit, getFitEncoded, listFits, startFit } from '../services/fits.service';
 import { freezeVersion, listVersions } from '../services/versions.service';
+import { fitPartNames, type FitPartName } from '@shared/schemas/fits';
+import { sendEncoded } from './encoded';
 import { route, type ApiRoute } from './route';
 
 const id = (what: string) => z.coerce.number({ error: `the ${what} in the address must be a number` }).int().positive();
+// built once: a schema costs more to build than to use, and these run on every read of a result
+const fitIdParam = id('fit id');
+const otherIdParam = id('other fit id');
+const partParam = z.enum(fitPartNames as [FitPartName, ...FitPartName[]], { error: `the part in the address must be one of ${fitPartNames.join(', ')}` });
 
 export const fitsRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>): ApiRoute[] => [
   route('get', '/api/analyses/:slug/versions', auth.may('analysis.read'), async (req, res) => {
@@ -21,23 +27,22 @@ export const fitsRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>)
     res.status(202).json(await startFit(ctx, accessOf(req), req.body));
   }),
   route('get', '/api/analyses/:slug/fits/:fitId', auth.may('analysis.read'), async (req, res) => {
-    const { body, gzip, etag } = await getFitEncoded(ctx, accessOf(req), id('fit id').parse(req.params.fitId));
-    if (etag) {
-      res.set('ETag', etag).set('Cache-Control', 'private, no-cache').vary('Accept-Encoding');
-      if (req.get('if-none-match') === etag) return void res.status(304).end();
-    }
-    res.type('json');
-    if (gzip && /\bgzip\b/.test(req.get('accept-encoding') ?? '')) return void res.set('Content-Encoding', 'gzip').send(gzip);
-    res.send(body);
+    sendEncoded(req, res, await getFitEncoded(ctx, accessOf(req), fitIdParam.parse(req.params.fitId)));
+  }),
+  // the large parts of a result, read by their own views
+  route('get', '/api/analyses/:slug/fits/:fitId/parts/:part', auth.may('analysis.read'), async (req, res) => {
+    const fitId = fitIdParam.parse(req.params.fitId);
+    const part = partParam.parse(req.params.part);
+    sendEncoded(req, res, await getFitEncoded(ctx, accessOf(req), fitId, part));
   }),
   route('post', '/api/analyses/:slug/fits/:fitId/cancel', auth.may('fit.run'), async (req, res) => {
-    res.json(await cancelFit(ctx, accessOf(req), id('fit id').parse(req.params.fitId)));
+    res.json(await cancelFit(ctx, accessOf(req), fitIdParam.parse(req.params.fitId)));
   }),
   route('get', '/api/analyses/:slug/fits/:fitId/compare/:otherId', auth.may('analysis.read'), async (req, res) => {
-    res.json(await compareFits(ctx, accessOf(req), id('fit id').parse(req.params.fitId), id('other fit id').parse(req.params.otherId)));
+    res.json(await compareFits(ctx, accessOf(req), fitIdParam.parse(req.params.fitId), otherIdParam.parse(req.params.otherId)));
   }),
   route('get', '/api/analyses/:slug/fits/:fitId/export', auth.may('analysis.read'), async (req, res) => {
-    const out = await exportFit(ctx, accessOf(req), id('fit id').parse(req.params.fitId), req.query.format, req.query.table);
+    const out = await exportFit(ctx, accessOf(req), fitIdParam.parse(req.params.fitId), req.query.format, req.query.table);
     res.type(out.type).attachment(out.filename).send(out.body);
   }),
 ];

@@ -8,6 +8,8 @@ import { baseUrl, wantsSave } from './base-url';
 import { route, type ApiRoute } from './route';
 
 const idParam = (what: string) => z.coerce.number({ error: `the ${what} id in the address must be a number` }).int().positive();
+const effectIdParam = idParam('effect');
+const groupIdParam = idParam('group');
 
 export const registerRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>): ApiRoute[] => {
   const file = singleFile(ctx.config);
@@ -31,7 +33,7 @@ export const registerRoutes = (ctx: AppContext, auth: ReturnType<typeof authoriz
       res.status(save ? 201 : 200).json(await uploadVariations(ctx, accessOf(req), key(req), req.file, req.body?.options, save, baseUrl(ctx, req)));
     }),
     route('delete', '/api/analyses/:slug/entries/:key/effects/:effectId', auth.may('analysis.read'), async (req, res) => {
-      res.json(await deleteEffect(ctx, accessOf(req), key(req), idParam('effect').parse(req.params.effectId), baseUrl(ctx, req)));
+      res.json(await deleteEffect(ctx, accessOf(req), key(req), effectIdParam.parse(req.params.effectId), baseUrl(ctx, req)));
     }),
     route('put', '/api/analyses/:slug/entries/:key/group', auth.may('groups.edit'), async (req, res) => {
       res.json(await moveEntry(ctx, accessOf(req), key(req), req.body));
@@ -44,10 +46,10 @@ export const registerRoutes = (ctx: AppContext, auth: ReturnType<typeof authoriz
       res.status(201).json(await createGroup(ctx, accessOf(req), req.body));
     }),
     route('patch', '/api/analyses/:slug/groups/:groupId', auth.may('groups.edit'), async (req, res) => {
-      res.json(await renameGroup(ctx, accessOf(req), idParam('group').parse(req.params.groupId), req.body));
+      res.json(await renameGroup(ctx, accessOf(req), groupIdParam.parse(req.params.groupId), req.body));
     }),
     route('delete', '/api/analyses/:slug/groups/:groupId', auth.may('groups.edit'), async (req, res) => {
-      await deleteGroup(ctx, accessOf(req), idParam('group').parse(req.params.groupId));
+      await deleteGroup(ctx, accessOf(req), groupIdParam.parse(req.params.groupId));
       res.status(204).end();
     }),
   ];

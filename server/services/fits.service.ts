@@ -1,14 +1,13 @@
-import { createHash } from 'node:crypto';
-import { gzipSync } from 'node:zlib';
 import Papa from 'papaparse';
 import { and, desc, eq, getTableColumns } from 'drizzle-orm';
 import { fitOptionsSchema, type FitResult } from '@shared/schemas/fit';
-import { exportTableSchema, startFitSchema, type FitComparison, type FitDetail, type FitSummary } from '@shared/schemas/fits';
+import { exportTableSchema, startFitSchema, type FitComparison, type FitPartName, type FitResultHead, type FitSummary } from '@shared/schemas/fits';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { fits, modelVersions, users } from '../db/schema';
 import { conflict, notFound } from '../errors';
+import { encodeJson, type Encoded } from '../routes/encoded';
 import { isWithheld } from './blinding.service';
 import { findVersion } from './versions.service';
 
@@ -75,41 +74,45 @@ export async function listFits(ctx: AppContext, access: Access): Promise<FitSumm
 }
 
 /**
- * A finished fit never changes, and its result can be megabytes: its response is encoded once
- * and kept (per database, a few fits), keyed by what decides its bytes: the fit, when it ended,
- * and whether blinding removes data from it.
+ * A finished fit never changes, and its result can be megabytes: each of its responses (the
+ * head, and each large part) is encoded once and kept (per database, a few fits), keyed by what
+ * decides its bytes: the fit, the part, and whether blinding removes data from it.
  */
-const encoded = new WeakMap<object, Map<string, { body: Buffer; gzip: Buffer | null; etag: string }>>();
-const KEEP = 12;
+const encodedCopies = new WeakMap<object, Map<string, Promise<Encoded>>>();
+const KEEP = 24;
 
-export async function getFitEncoded(ctx: AppContext, access: Access, id: number): Promise<{ body: Buffer; gzip: Buffer | null; etag: string | null }> {
-  const [light] = await ctx.db
-    .select({ state: fits.state, finishedAt: fits.finishedAt })
-    .from(fits)
-    .where(and(eq(fits.analysisId, access.analysis.id), eq(fits.id, id)));
-  if (!light) throw notFound(`Fit ${id}`);
-  if (light.state === 'queued' || light.state === 'running') return { body: Buffer.from(JSON.stringify(await getFit(ctx, access, id))), gzip: null, etag: null };
-  const key = `${access.analysis.id}:${id}:${light.finishedAt?.getTime()}:${access.analysis.blinding === 'unblinded' ? 'open' : 'blind'}`;
-  let cache = encoded.get(ctx.db);
-  if (!cache) encoded.set(ctx.db, (cache = new Map()));
-  let hit = cache.get(key);
-  if (!hit) {
-    const body = Buffer.from(JSON.stringify(await getFit(ctx, access, id)));
-    // compressed once here, so a large result costs a quarter of the bytes on every later read
-    hit = { body, gzip: body.length > 16 * 1024 ? gzipSync(body, { level: 6 }) : null, etag: `"${createHash('sha1').update(body).digest('base64url')}"` };
-    cache.set(key, hit);
-    if (cache.size > KEEP) cache.delete(cache.keys().next().value!);
-  } else {
+const headOf = ({ correlation: _c, information: _i, yields: _y, gammas: { list: _l, ...gammas }, ...head }: FitResult): FitResultHead => ({ ...head, gammas });
+const partOf = (result: FitResult, part: FitPartName) => (part === 'gammas' ? result.gammas.list : result[part]);
+
+export async function getFitEncoded(ctx: AppContext, access: Access, id: number, part: 'head' | FitPartName = 'head'): Promise<Encoded> {
+  let cache = encodedCopies.get(ctx.db);
+  if (!cache) encodedCopies.set(ctx.db, (cache = new Map()));
+  const key = `${access.analysis.id}:${id}:${access.analysis.blinding === 'unblinded' ? 'open' : 'blind'}:${part}`;
+  const hit = cache.get(key);
+  if (hit) {
     // most recently used last
     cache.delete(key);
     cache.set(key, hit);
+    return hit;
   }
-  return hit;
+  // readers arriving while it is encoded wait for the same bytes
+  const made = encodeFit(ctx, access, id, part);
+  const encoded = made.then((m) => m.encoded);
+  cache.set(key, encoded);
+  if (cache.size > KEEP) cache.delete(cache.keys().next().value!);
+  // a queued or running fit changes until it ends, and a failure is not kept
+  made.then((m) => !m.final && cache.delete(key)).catch(() => cache.delete(key));
+  return encoded;
 }
 
-export async function getFit(ctx: AppContext, access: Access, id: number): Promise<FitDetail> {
+async function encodeFit(ctx: AppContext, access: Access, id: number, part: 'head' | FitPartName): Promise<{ encoded: Encoded; final: boolean }> {
   const row = await findFit(ctx, access, id);
-  return { ...summaryOf(row.fit, row.version, row.by), result: blindResult(access, await storedResult(ctx, id)) };
+  const active = row.fit.state === 'queued' || row.fit.state === 'running';
+  if (active && part !== 'head') throw conflict(`Fit ${id} has not finished yet; its ${part} is there when it ends.`);
+  const result = active ? null : blindResult(access, await storedResult(ctx, id));
+  if (part !== 'head' && !result) throw conflict(`Fit ${id} ended without a result (${row.fit.state}).`);
+  const value = part === 'head' ? { ...summaryOf(row.fit, row.version, row.by), result: result && headOf(result) } : partOf(result!, part);
+  return { encoded: await encodeJson(value), final: !active };
 }
 
 /**
@@ -204,7 +207,8 @@ const csv = (rows: (string | number | boolean | null)[][]) => Papa.unparse(rows,
 export async function exportFit(ctx: AppContext, access: Access, id: number, format: unknown, table: unknown): Promise<{ type: string; filename: string; body: string }> {
   const stem = `${access.analysis.slug}-fit-${id}`;
   if (format !== 'csv') {
-    const detail = await getFit(ctx, access, id);
+    const row = await findFit(ctx, access, id);
+    const detail = { ...summaryOf(row.fit, row.version, row.by), result: blindResult(access, await storedResult(ctx, id)) };
     return { type: 'application/json', filename: `${stem}.json`, body: JSON.stringify(detail, null, 2) };
   }
   const which = exportTableSchema.parse(table);

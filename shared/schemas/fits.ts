@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { fitOptionsSchema, fitResultSchema } from './fit';
+import { correlationSchema, fitOptionsSchema, fitResultSchema, informationSchema } from './fit';
 
 /** Contracts of model versions, fit runs, results, exports and comparisons. */
 
@@ -60,11 +60,33 @@ export const fitSummarySchema = z.object({
 export type FitSummary = z.infer<typeof fitSummarySchema>;
 
 /**
- * A fit with its stored result. `result` is null until the job ends; for a failed fit it holds
- * the convergence report and no numbers that depend on the failed minimum. While the analysis
- * is blinded, observed signal-region counts are removed from `result.data`.
+ * The stored result without its large parts, which only their own views read: the correlation
+ * matrix, the per-bin information of every parameter, the per-bin yields and the list of
+ * per-bin γ parameters (megabytes for a large model; the γ count and largest pull stay).
+ * Everything the summary, pulls, impacts and groups show.
  */
-export const fitDetailSchema = fitSummarySchema.extend({ result: fitResultSchema.nullable() });
+export const fitResultHeadSchema = fitResultSchema.omit({ correlation: true, information: true, yields: true }).extend({
+  gammas: fitResultSchema.shape.gammas.omit({ list: true }),
+});
+export type FitResultHead = z.infer<typeof fitResultHeadSchema>;
+
+/** The large parts of a result, each at GET /api/analyses/:slug/fits/:id/parts/:part. */
+export const fitPartSchemas = {
+  correlation: correlationSchema.nullable(),
+  information: z.array(informationSchema),
+  yields: fitResultSchema.shape.yields,
+  gammas: fitResultSchema.shape.gammas.shape.list,
+} as const;
+export type FitPartName = keyof typeof fitPartSchemas;
+export type FitPart<K extends FitPartName> = z.infer<(typeof fitPartSchemas)[K]>;
+export const fitPartNames = Object.keys(fitPartSchemas) as FitPartName[];
+
+/**
+ * A fit with the head of its stored result. `result` is null until the job ends; for a failed
+ * fit it holds the convergence report and no numbers that depend on the failed minimum. While
+ * the analysis is blinded, observed signal-region counts are removed from `result.data`.
+ */
+export const fitDetailSchema = fitSummarySchema.extend({ result: fitResultHeadSchema.nullable() });
 export type FitDetail = z.infer<typeof fitDetailSchema>;
 
 const delta = z.object({ a: z.number().nullable(), b: z.number().nullable(), delta: z.number().nullable() });

@@ -102,7 +102,10 @@ export function fitSummary(overrides: Partial<FitSummary> = {}): FitSummary {
   };
 }
 
-export function fitDetail(overrides: Partial<FitDetail> = {}): FitDetail {
+/** A fit with its whole stored result, as the server keeps it (it serves the head and the parts apart). */
+export type StoredFit = Omit<FitDetail, 'result'> & { result: FitResult | null };
+
+export function fitDetail(overrides: Partial<StoredFit> = {}): StoredFit {
   return { ...fitSummary(), result: convergedResult(), ...overrides };
 }
 

@@ -3,7 +3,7 @@ import { afterEach, describe, expect, it, vi } from 'vitest';
 import { cleanup, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { FitResultRoute } from '../../src/app/routes/analysis/fit-result';
-import { convergedResult, fitDetail, overview } from './fit-fixtures';
+import { convergedResult, fitDetail, overview, type StoredFit } from './fit-fixtures';
 import { json, renderWithApp, stubServer } from './helpers';
 
 afterEach(() => {
@@ -16,7 +16,12 @@ const ROUTE = '/a/:slug/fits/:fitId/:tab?';
 function serve(detail: ReturnType<typeof fitDetail>, role: 'analyst' | 'reader' = 'analyst') {
   return stubServer((method, url) => {
     if (url === '/api/analyses/demo') return json(200, overview(role));
-    if (url === '/api/analyses/demo/fits/7' && method === 'GET') return json(200, detail);
+    // the server serves the head and the large parts separately
+    const { correlation, information, yields, gammas, ...head } = detail.result ?? ({} as NonNullable<StoredFit['result']>);
+    const parts: Record<string, unknown> = { correlation, information, yields, gammas: gammas?.list };
+    if (url === '/api/analyses/demo/fits/7' && method === 'GET') return json(200, { ...detail, result: detail.result && { ...head, gammas: { count: gammas.count, maxAbsPull: gammas.maxAbsPull } } });
+    const part = url.match(/^\/api\/analyses\/demo\/fits\/7\/parts\/(\w+)$/);
+    if (part && detail.result) return json(200, parts[part[1]]);
     if (url === '/api/analyses/demo/fits/7/cancel' && method === 'POST') return json(200, { ...detail, state: 'cancelled', result: null });
     if (url === '/api/analyses/demo/fits') return json(200, []);
     return undefined;

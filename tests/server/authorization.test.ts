@@ -223,6 +223,7 @@ export const MATRIX: Record<string, Row> = {
     expect: analystOnly(202),
   },
   'GET /api/analyses/:slug/fits/:fitId': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}` }), expect: members(200) },
+  'GET /api/analyses/:slug/fits/:fitId/parts/:part': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/parts/correlation` }), expect: members(200) },
   'POST /api/analyses/:slug/fits/:fitId/cancel': { call: async (t) => ({ path: `${A}/fits/${await queuedFit(t)}/cancel` }), expect: analystOnly(200) },
   'GET /api/analyses/:slug/fits/:fitId/compare/:otherId': {
     call: async (t) => {

@@ -148,7 +148,8 @@ describe('model versions and fit runs', () => {
     expect(detail.state).toBe('failed');
     expect(detail.failure).toMatch(/k_a.*k_b|k_b.*k_a/);
     expect(detail.headline).toBeNull();
-    expect(detail.result).toMatchObject({ status: 'failed', summary: null, parameters: [], nuisance: [], correlation: null });
+    expect(detail.result).toMatchObject({ status: 'failed', summary: null, parameters: [], nuisance: [] });
+    expect((await analyst.get(`/api/analyses/degenerate/fits/${detail.id}/parts/correlation`)).body).toBeNull();
     const csv = await analyst.get(`/api/analyses/degenerate/fits/${detail.id}/export?format=csv&table=nuisance`);
     expect(csv.status).toBe(409);
     expect(csv.body.error.message).toMatch(/failed .* it has no results to compare or export/);
@@ -183,22 +184,61 @@ describe('model versions and fit runs', () => {
 });
 
 describe('a finished fit\u2019s response', () => {
+  it('serves the head and the three large parts separately; together they are the stored result', async () => {
+    const t = await createTestApp();
+    try {
+      const analyst = await signedIn(t.app, DEMO.analyst);
+      await analyst.send('post', `${C}/versions`, {});
+      const started = await analyst.send('post', `${C}/fits`, { version: 1, options: { impacts: 'quick' } });
+      // a fit that has not ended has no parts yet
+      const early = await analyst.get(`${C}/fits/${started.body.id}/parts/correlation`);
+      expect(early.status).toBe(409);
+      expect(early.body.error.message).toMatch(/has not finished yet/);
+      await t.fits.idle();
+      const head = (await analyst.get(`${C}/fits/${started.body.id}`)).body.result;
+      expect(Object.keys(head)).not.toContain('correlation');
+      expect(Object.keys(head)).not.toContain('information');
+      expect(Object.keys(head)).not.toContain('yields');
+      const parts = Object.fromEntries(
+        await Promise.all(['correlation', 'information', 'yields', 'gammas'].map(async (p) => [p, (await analyst.get(`${C}/fits/${started.body.id}/parts/${p}`)).body])),
+      );
+      const [stored] = await t.database.db.select({ result: fits.result }).from(fits).where(eq(fits.id, started.body.id));
+      const { gammas, ...large } = parts;
+      expect({ ...head, ...large, gammas: { ...head.gammas, list: gammas } }).toEqual(stored.result);
+      const wrong = await analyst.get(`${C}/fits/${started.body.id}/parts/everything`);
+      expect(wrong.status).toBe(400);
+      expect(wrong.body.error.message).toMatch(/correlation, information, yields, gammas/);
+      expect((await analyst.get(`${C}/fits/999/parts/yields`)).status).toBe(404);
+    } finally {
+      await t.close();
+    }
+  });
+
   it('carries an ETag, answers 304 to it, and comes compressed to a client that accepts gzip', async () => {
     const t = await createTestApp();
     try {
       const analyst = await signedIn(t.app, DEMO.analyst);
       await analyst.send('post', `${C}/versions`, {});
-      const started = await analyst.send('post', `${C}/fits`, { version: 1, options: { impacts: 'full', scan: true } });
+      await analyst.send('post', `${V}/versions`, {});
+      const started = await analyst.send('post', `${V}/fits`, { version: 1, options: { dataset: 'asimov', impacts: 'quick' } });
       await t.fits.idle();
-      const first = await analyst.get(`${C}/fits/${started.body.id}`).set('accept-encoding', 'gzip');
+      // the per-bin information is the largest part
+      const path = `${V}/fits/${started.body.id}/parts/information`;
+      const first = await analyst.get(path).set('accept-encoding', 'gzip');
       expect(first.status).toBe(200);
       expect(first.headers['content-encoding']).toBe('gzip');
-      expect(first.body.result.status).toBe('converged');
-      const again = await analyst.get(`${C}/fits/${started.body.id}`).set('if-none-match', first.headers.etag);
+      expect(first.body.length).toBeGreaterThan(0);
+      const again = await analyst.get(path).set('if-none-match', first.headers.etag);
       expect(again.status).toBe(304);
-      const plain = await analyst.get(`${C}/fits/${started.body.id}`).set('accept-encoding', 'identity');
+      const plain = await analyst.get(path).set('accept-encoding', 'identity');
       expect(plain.headers['content-encoding']).toBeUndefined();
       expect(plain.body).toEqual(first.body);
+      const brotli = await analyst.get(path).set('accept-encoding', 'gzip, deflate, br');
+      expect(brotli.headers['content-encoding']).toBe('br');
+      expect(brotli.body).toEqual(first.body);
+      const head = await analyst.get(`${V}/fits/${started.body.id}`);
+      expect(head.headers.etag).toMatch(/^"/);
+      expect((await analyst.get(`${V}/fits/${started.body.id}`).set('if-none-match', head.headers.etag)).status).toBe(304);
     } finally {
       await t.close();
     }

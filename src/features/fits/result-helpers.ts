@@ -1,9 +1,10 @@
-import type { FitResult, NuisanceReport } from '@shared/schemas/fit';
+import type { NuisanceReport } from '@shared/schemas/fit';
+import type { FitResultHead } from '@shared/schemas/fits';
 
 /** How the impacts of a fit were computed: refits, the estimate from V, or not at all. */
 export type ImpactMode = 'postfit' | 'quick' | 'none';
 
-export function impactMode(r: FitResult): ImpactMode {
+export function impactMode(r: FitResultHead): ImpactMode {
   if (r.nuisance.some((n) => n.postfitImpact !== null)) return 'postfit';
   if (r.nuisance.some((n) => n.quickImpact !== null)) return 'quick';
   return 'none';
@@ -40,7 +41,7 @@ export function isStronglyPulled(n: NuisanceReport): boolean {
 }
 
 /** Labels of fitted parameters by name. */
-export function labelsOf(r: FitResult): Map<string, string> {
+export function labelsOf(r: FitResultHead): Map<string, string> {
   return new Map(r.parameters.map((p) => [p.name, p.label]));
 }
 

@@ -1,11 +1,11 @@
-import { useEffect, useRef } from 'react';
+import { useEffect, useRef, type ReactNode } from 'react';
 import { Link, NavLink, Navigate, useParams } from 'react-router';
 import { useQueryClient } from '@tanstack/react-query';
-import type { FitDetail } from '@shared/schemas/fits';
-import type { FitResult } from '@shared/schemas/fit';
+import type { FitDetail, FitPart, FitPartName, FitResultHead } from '@shared/schemas/fits';
 import { useCan } from '../../../features/analyses/use-can';
 import { useCancelFit } from '../../../features/fits/api/cancel-fit';
 import { invalidateFitLists, useFit } from '../../../features/fits/api/get-fit';
+import { useFitPart } from '../../../features/fits/api/get-fit-part';
 import { isActive } from '../../../features/fits/api/fit-states';
 import { CompareView } from '../../../features/fits/components/compare-view';
 import { ConvergenceReport } from '../../../features/fits/components/convergence';
@@ -50,7 +50,17 @@ function Tabs({ base, current }: { base: string; current: FitTabId }) {
   );
 }
 
-function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit: FitDetail; result: FitResult }) {
+/** A view that needs one of the result's large parts: fetched when the view opens. */
+function WithPart<K extends FitPartName>({ slug, fitId, part, children }: { slug: string; fitId: number; part: K; children: (value: FitPart<K>) => ReactNode }) {
+  const query = useFitPart(slug, fitId, part);
+  return (
+    <QueryView query={query} loadingLabel={`Loading the ${part === 'yields' ? 'distributions' : part}…`}>
+      {children}
+    </QueryView>
+  );
+}
+
+function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit: FitDetail; result: FitResultHead }) {
   const model = useModel(slug);
   switch (tab) {
     case 'summary':
@@ -62,11 +72,23 @@ function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit:
     case 'groups':
       return <GroupsView result={result} />;
     case 'correlations':
-      return <CorrelationView result={result} />;
+      return (
+        <WithPart slug={slug} fitId={fit.id} part="correlation">
+          {(correlation) => <CorrelationView result={result} correlation={correlation} />}
+        </WithPart>
+      );
     case 'distributions':
-      return <DistributionsView result={result} model={model.data} />;
+      return (
+        <WithPart slug={slug} fitId={fit.id} part="yields">
+          {(yields) => <DistributionsView result={result} yields={yields} model={model.data} />}
+        </WithPart>
+      );
     case 'diagnostics':
-      return <DiagnosticsView result={result} />;
+      return (
+        <WithPart slug={slug} fitId={fit.id} part="information">
+          {(information) => <DiagnosticsView result={result} information={information} />}
+        </WithPart>
+      );
     case 'compare':
       return <CompareView slug={slug} fitId={fit.id} />;
   }

@@ -1,14 +1,14 @@
 import { useState } from 'react';
-import type { FitResult } from '@shared/schemas/fit';
+import type { FitResultHead } from '@shared/schemas/fits';
 import { Badge } from '../../../components/ui/badge';
 import { formatCompact } from '../../../lib/stats-format';
 
-type Convergence = FitResult['convergence'];
+type Convergence = FitResultHead['convergence'];
 
 /** Above this the fit's Hessian is close to singular and the errors deserve a second look (a rule of thumb). */
 const CONDITION_WARN = 1e6;
 
-export function ConvergenceBadge({ status }: { status: FitResult['status'] }) {
+export function ConvergenceBadge({ status }: { status: FitResultHead['status'] }) {
   return status === 'converged' ? (
     <Badge tone="teal" title="The minimiser reached the stopping rule: Newton decrement gᵀH⁻¹g/2 below 1e-9">
       Converged
@@ -24,7 +24,7 @@ export function ConvergenceBadge({ status }: { status: FitResult['status'] }) {
  * The convergence line shown above every result view: status, iterations, final decrement,
  * condition number, and the warnings, always in view next to the numbers.
  */
-export function ConvergenceStrip({ result }: { result: FitResult }) {
+export function ConvergenceStrip({ result }: { result: FitResultHead }) {
   const c = result.convergence;
   const [open, setOpen] = useState(false);
   const issues = c.warnings.length + (c.parametersAtBound.length ? 1 : 0) + (c.clippedBins.length ? 1 : 0);
@@ -69,7 +69,7 @@ export function ConvergenceStrip({ result }: { result: FitResult }) {
 }
 
 /** The convergence report in full: every number the minimiser reported, each with its meaning. */
-export function ConvergenceReport({ convergence: c, status }: { convergence: Convergence; status: FitResult['status'] }) {
+export function ConvergenceReport({ convergence: c, status }: { convergence: Convergence; status: FitResultHead['status'] }) {
   return (
     <div className="flex flex-col gap-3">
       {c.failure && (

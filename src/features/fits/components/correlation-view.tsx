@@ -1,5 +1,5 @@
 import { useEffect, useMemo, useRef, useState, type KeyboardEvent, type MouseEvent } from 'react';
-import type { FitResult } from '@shared/schemas/fit';
+import type { FitResultHead } from '@shared/schemas/fits';
 import { ExportButtons } from '../../../components/charts/export-buttons';
 import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { canvasToPng, chartFileName, downloadBlob } from '../../../lib/chart-export';
@@ -16,7 +16,7 @@ const POI_GROUP = 'signal strength';
 const NORM_GROUP = 'normalisations';
 
 /** The group a row of the matrix belongs to: μ and the normalisations first, then the systematics' groups. */
-export function matrixGroups(result: FitResult): { groupOf: (name: string) => string; order: string[] } {
+export function matrixGroups(result: FitResultHead): { groupOf: (name: string) => string; order: string[] } {
   const kinds = new Map(result.parameters.map((p) => [p.name, p.kind]));
   const groups = new Map(result.nuisance.map((n) => [n.name, groupName(n.group)]));
   const groupOf = (name: string) => (kinds.get(name) === 'poi' ? POI_GROUP : kinds.get(name) === 'normalisation' ? NORM_GROUP : (groups.get(name) ?? groupName(null)));
@@ -43,8 +43,8 @@ function ColourKey() {
  * The post-fit correlation matrix on a canvas: hover or move with the arrow keys to read a cell,
  * order by group or by clustering, keep only parameters with some |ρ| above a threshold.
  */
-export function CorrelationView({ result }: { result: FitResult }) {
-  const m: CorrelationMatrix | null = result.correlation;
+export function CorrelationView({ result, correlation }: { result: FitResultHead; correlation: CorrelationMatrix | null }) {
+  const m = correlation;
   const [ordering, setOrdering] = useState<Ordering>('group');
   const [threshold, setThreshold] = useState(0);
   const [cell, setCell] = useState<Cell | null>(null);

@@ -1,5 +1,5 @@
 import { useSearchParams } from 'react-router';
-import type { FitResult } from '@shared/schemas/fit';
+import type { FitPart, FitResultHead } from '@shared/schemas/fits';
 import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
 import { groupName, impactMode, impactSize, isStronglyPulled, labelsOf, rankByImpact } from '../result-helpers';
@@ -19,10 +19,10 @@ function Num({ label, title, children }: { label: string; title: string; childre
 }
 
 /** One parameter's numbers from the stored result: pull, constraint, impacts and where its information comes from. */
-function ParameterNumbers({ result, name }: { result: FitResult; name: string }) {
+function ParameterNumbers({ result, information, name }: { result: FitResultHead; information: FitPart<'information'>; name: string }) {
   const n = result.nuisance.find((x) => x.name === name);
   const p = result.parameters.find((x) => x.name === name);
-  const info = result.information.find((x) => x.parameter === name);
+  const info = information.find((x) => x.parameter === name);
   if (!n && !p) return <p className="text-sm text-danger">There is no parameter “{name}” in this result.</p>;
   const mode = impactMode(result);
   const ranked = rankByImpact(
@@ -162,7 +162,7 @@ function ParameterNumbers({ result, name }: { result: FitResult; name: string })
 }
 
 /** The diagnostics view: one parameter's numbers (chosen here or by a click in the impact ranking) and the convergence report in full. */
-export function DiagnosticsView({ result }: { result: FitResult }) {
+export function DiagnosticsView({ result, information }: { result: FitResultHead; information: FitPart<'information'> }) {
   const [params, setParams] = useSearchParams();
   const name = params.get('parameter');
   const labels = labelsOf(result);
@@ -188,7 +188,7 @@ export function DiagnosticsView({ result }: { result: FitResult }) {
           ))}
         </select>
       </div>
-      {name && <ParameterNumbers result={result} name={name} />}
+      {name && <ParameterNumbers result={result} information={information} name={name} />}
       <Panel title="Convergence report">
         <ConvergenceReport convergence={result.convergence} status={result.status} />
       </Panel>

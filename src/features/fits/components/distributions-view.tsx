@@ -1,6 +1,6 @@
 import { useMemo, useRef, useState } from 'react';
 import type { Model } from '@shared/schemas/api';
-import type { FitResult } from '@shared/schemas/fit';
+import type { FitPart, FitResultHead } from '@shared/schemas/fits';
 import { ExportButtons } from '../../../components/charts/export-buttons';
 import { StackedChart, type StackedChartData } from '../../../components/charts/stacked-chart';
 import { Badge } from '../../../components/ui/badge';
@@ -9,7 +9,7 @@ import { processColour } from '../../../lib/palette';
 import { formatPlain } from '../describe';
 
 type Stage = 'prefit' | 'postfit';
-type RegionYields = FitResult['yields']['prefit'][number];
+type RegionYields = FitPart<'yields'>['prefit'][number];
 
 const ROLE_LABEL = { signal: 'signal region', control: 'control region', validation: 'validation region' } as const;
 
@@ -17,7 +17,7 @@ const ROLE_LABEL = { signal: 'signal region', control: 'control region', validat
  * One region of a fit as the stacked chart draws it. Labels, colours, the observable and its unit
  * come from the model when it has the region and processes (the result names them by key).
  */
-export function fitRegionChart(result: FitResult, y: RegionYields, stage: Stage, model?: Model): StackedChartData {
+export function fitRegionChart(result: FitResultHead, y: RegionYields, stage: Stage, model?: Model): StackedChartData {
   const region = model?.regions.find((r) => r.key === y.region);
   const procIndex = new Map((model?.processes ?? []).map((p, i) => [p.key, i]));
   const signal = (key: string) => model?.processes.find((p) => p.key === key)?.kind === 'signal';
@@ -54,7 +54,7 @@ export function fitRegionChart(result: FitResult, y: RegionYields, stage: Stage,
   };
 }
 
-function RegionChart({ result, y, stage, model }: { result: FitResult; y: RegionYields; stage: Stage; model?: Model }) {
+function RegionChart({ result, y, stage, model }: { result: FitResultHead; y: RegionYields; stage: Stage; model?: Model }) {
   const ref = useRef<SVGSVGElement>(null);
   const d = useMemo(() => fitRegionChart(result, y, stage, model), [result, y, stage, model]);
   const title = `${d.stage} ${d.regionLabel}`;
@@ -85,10 +85,10 @@ function RegionChart({ result, y, stage, model }: { result: FitResult; y: Region
 }
 
 /** Per region, the pre-fit or post-fit stack with its band, the data and the ratio panel. */
-export function DistributionsView({ result, model }: { result: FitResult; model?: Model }) {
-  const hasPost = result.yields.postfit !== null;
+export function DistributionsView({ result, yields, model }: { result: FitResultHead; yields: FitPart<'yields'>; model?: Model }) {
+  const hasPost = yields.postfit !== null;
   const [stage, setStage] = useState<Stage>(hasPost ? 'postfit' : 'prefit');
-  const list = (stage === 'postfit' ? result.yields.postfit : result.yields.prefit) ?? result.yields.prefit;
+  const list = (stage === 'postfit' ? yields.postfit : yields.prefit) ?? yields.prefit;
   return (
     <div className="flex flex-col gap-4">
       <fieldset className="flex flex-wrap items-center gap-4">

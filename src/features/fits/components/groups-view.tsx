@@ -1,6 +1,6 @@
 import { useRef } from 'react';
 import { scaleLinear } from 'd3-scale';
-import type { FitResult } from '@shared/schemas/fit';
+import type { FitResultHead } from '@shared/schemas/fits';
 import { BottomAxis } from '../../../components/charts/axes';
 import { ExportButtons } from '../../../components/charts/export-buttons';
 import { Panel } from '../../../components/ui/page';
@@ -14,7 +14,7 @@ export type GroupBar = { key: string; label: string; value: number; kind: 'total
  * group's impact, largest first. A group's impact is √(V_μG V_GG⁻¹ V_Gμ): what σ_μ loses when
  * the group is held at its best fit.
  */
-export function groupBars(result: FitResult): GroupBar[] {
+export function groupBars(result: FitResultHead): GroupBar[] {
   const mu = result.summary?.mu;
   const total = mu?.error ?? null;
   const share = (v: number) => (total ? ` (${Math.round((v * v * 100) / (total * total))} % of σ_μ²)` : '');
@@ -83,7 +83,7 @@ export function GroupsChart({ bars, title }: { bars: GroupBar[]; title: string }
   );
 }
 
-export function GroupsView({ result }: { result: FitResult }) {
+export function GroupsView({ result }: { result: FitResultHead }) {
   const bars = groupBars(result);
   if (result.summary?.mu.fixed) return <p className="text-sm text-ink-muted">μ was held in this fit (control regions only), so there is no uncertainty on μ to split.</p>;
   return (

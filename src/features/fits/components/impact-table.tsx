@@ -12,7 +12,8 @@ import {
   useTable,
   type SortingState,
 } from '@tanstack/react-table';
-import type { FitResult, NuisanceReport } from '@shared/schemas/fit';
+import type { NuisanceReport } from '@shared/schemas/fit';
+import type { FitResultHead } from '@shared/schemas/fits';
 import { tableClass, tdClass } from '../../../components/ui/page';
 import { SortableTh } from '../../../components/ui/sortable-th';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
@@ -143,7 +144,7 @@ export function impactScale(rows: NuisanceReport[], mode: ImpactMode): number {
  * The ranked impacts as a dense table: one row per nuisance parameter, with its pull on the
  * prior band, its constraint meter and its Δμ bars. A click on a row opens its diagnosis.
  */
-export function ImpactTable({ slug, fitId, result }: { slug: string; fitId: number; result: FitResult }) {
+export function ImpactTable({ slug, fitId, result }: { slug: string; fitId: number; result: FitResultHead }) {
   const navigate = useNavigate();
   const mode = impactMode(result);
   const threshold = result.options.overConstraintThreshold;

@@ -1,6 +1,7 @@
 import { useMemo, useRef, useState } from 'react';
 import { scaleLinear } from 'd3-scale';
-import type { FitResult, NuisanceReport } from '@shared/schemas/fit';
+import type { NuisanceReport } from '@shared/schemas/fit';
+import type { FitResultHead } from '@shared/schemas/fits';
 import { BottomAxis } from '../../../components/charts/axes';
 import { ExportButtons } from '../../../components/charts/export-buttons';
 import { CheckboxField } from '../../../components/ui/field';
@@ -151,7 +152,7 @@ export function PullsChart({ rows, labels, threshold, title, groupHeadings = fal
 }
 
 /** The pulls view: chart, sort and filters, the numbers as a table, and the floating normalisations apart. */
-export function PullsView({ result }: { result: FitResult }) {
+export function PullsView({ result }: { result: FitResultHead }) {
   const [sort, setSort] = useState<PullSort>('group');
   const [group, setGroup] = useState<string | null>(null);
   const [flaggedOnly, setFlaggedOnly] = useState(false);

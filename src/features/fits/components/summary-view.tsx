@@ -1,5 +1,5 @@
 import type { ReactNode } from 'react';
-import type { FitResult } from '@shared/schemas/fit';
+import type { FitResultHead } from '@shared/schemas/fits';
 import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { decimalsFor, formatFixed, formatProbability, formatSigma, formatSigned } from '../../../lib/stats-format';
 import { ConvergenceReport } from './convergence';
@@ -17,7 +17,7 @@ function Row({ label, title, children }: { label: ReactNode; title: string; chil
 }
 
 /** μ̂ with its 68 % errors: the scan's crossings when there is a scan, else ±σ_μ from the covariance. */
-export function MuHeadline({ result }: { result: FitResult }) {
+export function MuHeadline({ result }: { result: FitResultHead }) {
   const mu = result.summary!.mu;
   const dec = decimalsFor(mu.error);
   if (mu.fixed)
@@ -50,7 +50,7 @@ export function MuHeadline({ result }: { result: FitResult }) {
 }
 
 /** The headline numbers of a converged fit, each with its meaning on hover. */
-export function SummaryView({ result }: { result: FitResult }) {
+export function SummaryView({ result }: { result: FitResultHead }) {
   const s = result.summary!;
   const mu = s.mu;
   const dec = decimalsFor(mu.error);
