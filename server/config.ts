@@ -20,6 +20,8 @@ const envSchema = z.object({
   UPLOAD_LIMIT_BYTES: z.coerce.number().int().min(1024).default(5_000_000),
   /** Threads for a fit's refits; default: all cores but one, which stays with the API. */
   FIT_THREADS: z.coerce.number().int().min(1).max(256).optional(),
+  /** CPU niceness of the fit threads (0 normal … 19 lowest): requests come before fits. */
+  FIT_NICENESS: z.coerce.number().int().min(0).max(19).default(15),
   /** Sign-in attempts per IP per 15 minutes. */
   SIGN_IN_LIMIT: z.coerce.number().int().min(1).default(20),
 });

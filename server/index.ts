@@ -45,7 +45,7 @@ async function main() {
   const seed = await seedDemo(database.db);
   await backfillEffectSizes(database.db);
   const mailer = await createMailer(database.db, config);
-  const fits = createFitRunner(database.db, console.error, { threads: config.FIT_THREADS ?? Math.max(1, availableParallelism() - 1) });
+  const fits = createFitRunner(database.db, console.error, { threads: config.FIT_THREADS ?? Math.max(1, availableParallelism() - 1), niceness: config.FIT_NICENESS });
   await fits.recover();
   const { app } = createApp(database, config, { mailer, fits });
   const closeClient = await serveClient(app, config);

@@ -16,13 +16,14 @@ type Callback = (err?: unknown, value?: session.SessionData | null) => void;
  * trusted for at most a minute. Sessions expire 8 hours after sign-in (no per-request touch).
  */
 class CachedStore extends PgStore {
-  private readonly copies = new Map<string, { data: session.SessionData; until: number }>();
+  private readonly copies = new Map<string, { json: string; expires: number; until: number }>();
   private static readonly TTL_MS = 60_000;
   private static readonly MAX = 5000;
 
   override get(sid: string, callback: Callback) {
     const copy = this.copies.get(sid);
-    if (copy && copy.until > Date.now() && new Date(copy.data.cookie.expires ?? 8.64e15).getTime() > Date.now()) return callback(null, structuredClone(copy.data));
+    // each request gets its own copy to change: parsed from the kept JSON (cheaper than a structured clone)
+    if (copy && copy.until > Date.now() && copy.expires > Date.now()) return callback(null, JSON.parse(copy.json));
     super.get(sid, (err, data) => {
       if (!err && data) this.keep(sid, data);
       callback(err, data);
@@ -41,7 +42,7 @@ class CachedStore extends PgStore {
   }
   private keep(sid: string, data: session.SessionData) {
     if (this.copies.size >= CachedStore.MAX) this.copies.delete(this.copies.keys().next().value!);
-    this.copies.set(sid, { data: structuredClone(data), until: Date.now() + CachedStore.TTL_MS });
+    this.copies.set(sid, { json: JSON.stringify(data), expires: new Date(data.cookie.expires ?? 8.64e15).getTime(), until: Date.now() + CachedStore.TTL_MS });
   }
 }
 

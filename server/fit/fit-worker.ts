@@ -1,4 +1,6 @@
+import { workerData } from 'piscina';
 import type { FitContext } from './covariance';
+import { lowerThreadPriority } from './thread-priority';
 import { JobRunner, type Job, type JobResult } from './jobs';
 import { createScratch, type Scratch } from './minimiser';
 
@@ -14,6 +16,7 @@ export interface WorkerBatch {
  * scratch of a context once. The few most recent contexts are kept.
  */
 const seen = new Map<string, { ctx: FitContext; scratch: Scratch }>();
+lowerThreadPriority((workerData as { niceness?: number } | undefined)?.niceness ?? 0);
 const KEEP = 6;
 
 function cached(ctx: FitContext): FitContext {

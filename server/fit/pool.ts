@@ -21,6 +21,22 @@ export interface FitPoolOptions {
   threads?: number;
   /** Worker module (path or file URL); default fit-worker.ts/.js beside this module. */
   workerFile?: string | URL;
+  /**
+   * CPU niceness of the worker threads (0 = normal, 19 = lowest): the server runs fits at a low
+   * priority so that its request thread wins the cores whenever both want them.
+   */
+  niceness?: number;
+}
+
+/**
+ * Node flags for a worker thread: the process's own, less the heap sizes (a worker refuses
+ * them; they belong to the process), plus the tsx loader for a .ts worker unless the process
+ * already runs under it (vitest does not).
+ */
+export function workerExecArgv(filename: string): string[] {
+  const execArgv = process.execArgv.filter((a) => !/^--max-(semi|old)-space-size/.test(a));
+  if (filename.endsWith('.ts') && !execArgv.some((a) => a.includes('tsx'))) execArgv.push('--import', 'tsx');
+  return execArgv;
 }
 
 export function createFitPool(options: FitPoolOptions = {}): FitPool {
@@ -29,10 +45,7 @@ export function createFitPool(options: FitPoolOptions = {}): FitPool {
   const ext = here.pathname.endsWith('.ts') ? '.ts' : '.js';
   const workerFile = options.workerFile ?? new URL(`./fit-worker${ext}`, here);
   const filename = workerFile instanceof URL ? workerFile.href : workerFile;
-  // A .ts worker needs the tsx loader unless the parent already runs under it.
-  const execArgv = [...process.execArgv];
-  if (filename.endsWith('.ts') && !execArgv.some((a) => a.includes('tsx'))) execArgv.push('--import', 'tsx');
-  const piscina = new Piscina({ filename, minThreads: threads, maxThreads: threads, execArgv, idleTimeout: 60_000 });
+  const piscina = new Piscina({ filename, minThreads: threads, maxThreads: threads, execArgv: workerExecArgv(filename), idleTimeout: 60_000, workerData: { niceness: options.niceness ?? 0 } });
   return {
     threads,
     async runBatch(batch, signal) {

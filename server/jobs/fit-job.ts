@@ -2,6 +2,7 @@ import { MessageChannel } from 'node:worker_threads';
 import { Piscina } from 'piscina';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptions, FitResult } from '@shared/schemas/fit';
+import { workerExecArgv } from '../fit/pool';
 import type { JobOutcome } from './fit-job.worker';
 
 export class JobError extends Error {
@@ -19,22 +20,19 @@ export type JobThread = {
   close: () => Promise<void>;
 };
 
-export function startJobThread(threads?: number): JobThread {
+export function startJobThread(threads?: number, niceness = 0): JobThread {
   const here = new URL(import.meta.url);
   const ext = here.pathname.endsWith('.ts') ? '.ts' : '.js';
   const filename = new URL(`./fit-job.worker${ext}`, here).href;
-  // a .ts worker needs the tsx loader unless this process already runs under it (vitest does not)
-  const execArgv = [...process.execArgv];
-  if (ext === '.ts' && !execArgv.some((a) => a.includes('tsx'))) execArgv.push('--import', 'tsx');
   // one job at a time; cancelling a job ends its thread (and the engine's refit threads with it)
-  const piscina = new Piscina({ filename, minThreads: 0, maxThreads: 1, execArgv, idleTimeout: 10 * 60_000 });
+  const piscina = new Piscina({ filename, minThreads: 0, maxThreads: 1, execArgv: workerExecArgv(filename), idleTimeout: 10 * 60_000 });
 
   return {
     run: async (model, options, onProgress, signal) => {
       const { port1, port2 } = new MessageChannel();
       port1.on('message', (m: { fraction: number; stage: string }) => onProgress(m.fraction, m.stage));
       try {
-        const outcome = (await piscina.run({ model, options, threads, progress: port2 }, { transferList: [port2], signal })) as JobOutcome;
+        const outcome = (await piscina.run({ model, options, threads, niceness, progress: port2 }, { transferList: [port2], signal })) as JobOutcome;
         if (!outcome.ok) throw new JobError(outcome.kind, outcome.message);
         return outcome.result;
       } catch (e) {

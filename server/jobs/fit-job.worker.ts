@@ -2,18 +2,22 @@ import type { MessagePort } from 'node:worker_threads';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptions, FitResult } from '@shared/schemas/fit';
 import { createFitPool, fitModel, FitCancelledError, FitInputError, type FitPool } from '../fit';
+import { lowerThreadPriority } from '../fit/thread-priority';
 
 /**
  * A fit job in its own thread, so that the API's event loop never waits for the engine. The
  * thread keeps the engine's refit pool between jobs; progress goes back through a message port.
  */
-export type JobTask = { model: ExchangeModel; options: FitOptions; threads?: number; progress: MessagePort };
+export type JobTask = { model: ExchangeModel; options: FitOptions; threads?: number; niceness?: number; progress: MessagePort };
 export type JobOutcome = { ok: true; result: FitResult } | { ok: false; kind: 'input' | 'internal'; message: string };
 
 let pool: FitPool | null = null;
 
-export default async function runJob({ model, options, threads, progress }: JobTask): Promise<JobOutcome> {
-  pool ??= createFitPool({ threads });
+export default async function runJob({ model, options, threads, niceness = 0, progress }: JobTask): Promise<JobOutcome> {
+  if (!pool) {
+    lowerThreadPriority(niceness);
+    pool = createFitPool({ threads, niceness });
+  }
   try {
     const result = await fitModel(model, options, { pool, onProgress: (fraction, stage) => progress.postMessage({ fraction, stage }) });
     return { ok: true, result };
