@@ -1,33 +1,42 @@
-import { and, asc, eq, lt, sql } from 'drizzle-orm';
+import { and, asc, eq, lt, ne, sql } from 'drizzle-orm';
 import { largestEffectPct } from '@shared/validation/variation-warnings';
 import type { Db } from '../db/client';
 import type { EntrySummary } from '@shared/schemas/api';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { effects, entries, groups, processes, regions, templates, users } from '../db/schema';
+import { encodeJson, type Encoded } from '../routes/encoded';
+import { effects, entries, groups, processes, questions, regions, templates, users } from '../db/schema';
 
 /**
- * The register of a large analysis is an aggregate over tens of thousands of effects: it is kept
- * in memory per analysis and rebuilt when its fingerprint changes. Every write to an entry or its
- * effects bumps the entry's version, and group renames and removals change the group list, so
- * the fingerprint (entry count, version sum, last update, groups) changes with any of them.
+ * The register of a large analysis is an aggregate over tens of thousands of effects, read far
+ * more often than written: it is kept in memory per analysis, already encoded, until a change is
+ * announced. Database triggers announce every change to entries, effects, groups, questions and
+ * owners' names on the channel "register_changed" at commit (drizzle/0002), so no writer can forget to,
+ * and the embedded database delivers the announcement before the writing query returns.
  */
-const registerCopies = new WeakMap<object, Map<number, { fingerprint: string; entries: EntrySummary[] }>>();
+const registerCopies = new WeakMap<object, Promise<Map<number, Promise<Encoded>>>>();
 
-export async function listEntries(ctx: AppContext, access: Access): Promise<EntrySummary[]> {
+function copiesOf(ctx: AppContext) {
+  let copies = registerCopies.get(ctx.client);
+  if (!copies) {
+    const map = new Map<number, Promise<Encoded>>();
+    copies = ctx.client.listen('register_changed', (analysisId) => map.delete(Number(analysisId))).then(() => map);
+    registerCopies.set(ctx.client, copies);
+  }
+  return copies;
+}
+
+/** The register as response bytes, built once per change. */
+export async function listEntriesEncoded(ctx: AppContext, access: Access): Promise<Encoded> {
   const analysisId = access.analysis.id;
-  const { rows: fp } = await ctx.client.query<{ fingerprint: string }>(
-    `select concat_ws('|', count(*), sum(version), max(updated_at), (select string_agg(id || ':' || name, ',' order by id) from groups where analysis_id = $1)) as fingerprint
-       from entries where analysis_id = $1`,
-    [analysisId],
-  );
-  let copies = registerCopies.get(ctx.db);
-  if (!copies) registerCopies.set(ctx.db, (copies = new Map()));
+  const copies = await copiesOf(ctx);
   const copy = copies.get(analysisId);
-  if (copy && copy.fingerprint === fp[0].fingerprint) return copy.entries;
-  const entries = await readEntries(ctx, analysisId);
-  copies.set(analysisId, { fingerprint: fp[0].fingerprint, entries });
-  return entries;
+  if (copy) return copy;
+  // readers arriving while it is built wait for the same copy rather than building their own
+  const ready = readEntries(ctx, analysisId).then(encodeJson);
+  copies.set(analysisId, ready);
+  ready.catch(() => copies.get(analysisId) === ready && copies.delete(analysisId));
+  return ready;
 }
 
 async function readEntries(ctx: AppContext, analysisId: number): Promise<EntrySummary[]> {
@@ -55,6 +64,12 @@ async function readEntries(ctx: AppContext, analysisId: number): Promise<EntrySu
     .where(eq(entries.analysisId, analysisId))
     .groupBy(effects.entryId);
   const byEntry = new Map(sums.map((x) => [x.entryId, x]));
+  const unresolved = await ctx.db
+    .select({ entryId: questions.entryId, count: sql<number>`count(*)::int` })
+    .from(questions)
+    .where(and(eq(questions.analysisId, analysisId), ne(questions.state, 'resolved')))
+    .groupBy(questions.entryId);
+  const openByEntry = new Map(unresolved.map((x) => [x.entryId, x.count]));
   return rows.map(({ entry, group, owner }) => {
     const own = byEntry.get(entry.id);
     return {
@@ -68,6 +83,7 @@ async function readEntries(ctx: AppContext, analysisId: number): Promise<EntrySu
       kinds: own?.kinds ?? [],
       largestEffectPct: own ? own.largestPct : null,
       warnings: own?.warnings ?? 0,
+      openQuestions: openByEntry.get(entry.id) ?? 0,
       updatedAt: entry.updatedAt.toISOString(),
     };
   });

@@ -166,6 +166,8 @@ export const entrySummarySchema = z.object({
   /** largest |variation| over nominal in any bin, in percent */
   largestEffectPct: z.number().nullable(),
   warnings: z.number(),
+  /** questions on this entry not yet resolved (open or answered) */
+  openQuestions: z.number(),
   updatedAt: z.string(),
 });
 export type EntrySummary = z.infer<typeof entrySummarySchema>;

@@ -166,3 +166,28 @@ describe('register entries and their review', () => {
     expect(all).toHaveLength(41);
   });
 });
+
+describe('the register copy kept in memory', () => {
+  it('shows every change made in the database, whichever path made it', async () => {
+    const t = await createTestApp();
+    try {
+      const reader = await signedIn(t.app, DEMO.reader);
+      const entry = async (key: string) => ((await reader.get(`${A}/entries`)).body as { key: string; label: string; group: string | null; owner: { name: string } | null; regions: string[] }[]).find((e) => e.key === key)!;
+      const before = await entry('flare_escale');
+      expect(before).toBeTruthy();
+      // writes that bypass the services: the triggers raise the stamp all the same
+      await t.database.client.query(`update entries set label = 'Renamed in the database' where key = 'flare_escale'`);
+      expect((await entry('flare_escale')).label).toBe('Renamed in the database');
+      await t.database.client.query(`update groups set name = 'renamed group' where id = (select group_id from entries where key = 'flare_escale')`);
+      expect((await entry('flare_escale')).group).toBe('renamed group');
+      await t.database.client.query(`update users set name = 'Someone Else' where name = $1`, [before.owner!.name]);
+      expect((await entry('flare_escale')).owner!.name).toBe('Someone Else');
+      await t.database.client.query(`delete from effects where entry_id = (select id from entries where key = 'flare_escale')`);
+      expect((await entry('flare_escale')).regions).toEqual([]);
+      await t.database.client.query(`delete from entries where key = 'flare_escale'`);
+      expect(await entry('flare_escale')).toBeUndefined();
+    } finally {
+      await t.close();
+    }
+  });
+});
