@@ -14,6 +14,7 @@ import { GroupsRoute } from './routes/analysis/groups';
 import { FitsRoute } from './routes/analysis/fits';
 import { FitResultRoute } from './routes/analysis/fit-result';
 import { QuestionsRoute } from './routes/analysis/questions';
+import { QuestionRoute } from './routes/analysis/question';
 import { MembersRoute } from './routes/analysis/members';
 import { AccountsRoute } from './routes/admin/accounts';
 import { OutboxRoute } from './routes/admin/outbox';
@@ -46,6 +47,7 @@ export const routes = [
               { path: 'fits', ...screen(<FitsRoute />) },
               { path: 'fits/:fitId/:tab?', ...screen(<FitResultRoute />) },
               { path: 'questions', ...screen(<QuestionsRoute />) },
+              { path: 'questions/:id', ...screen(<QuestionRoute />) },
               { path: 'members', ...screen(<MembersRoute />) },
             ],
           },

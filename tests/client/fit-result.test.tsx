@@ -5,6 +5,7 @@ import userEvent from '@testing-library/user-event';
 import { FitResultRoute } from '../../src/app/routes/analysis/fit-result';
 import { convergedResult, fitDetail, overview, type StoredFit } from './fit-fixtures';
 import { json, renderWithApp, stubServer } from './helpers';
+import { diagnosis } from './review-fixtures';
 
 afterEach(() => {
   cleanup();
@@ -23,6 +24,7 @@ function serve(detail: ReturnType<typeof fitDetail>, role: 'analyst' | 'reader' 
     const part = url.match(/^\/api\/analyses\/demo\/fits\/7\/parts\/(\w+)$/);
     if (part && detail.result) return json(200, parts[part[1]]);
     if (url === '/api/analyses/demo/fits/7/cancel' && method === 'POST') return json(200, { ...detail, state: 'cancelled', result: null });
+    if (url === '/api/analyses/demo/fits/7/diagnosis/jes') return json(200, diagnosis());
     if (url === '/api/analyses/demo/fits') return json(200, []);
     return undefined;
   });
@@ -97,13 +99,28 @@ describe('the fit result screen', () => {
     expect(charts[1].getAttribute('aria-label')).toContain('156 observed');
   });
 
-  it('lists the diagnosis numbers of the parameter named in the address', async () => {
-    serve(fitDetail());
+  it('opens the diagnosis of the parameter named in the address, with the convergence report', async () => {
+    const calls = serve(fitDetail());
     renderWithApp(<FitResultRoute />, '/a/demo/fits/7/diagnostics?parameter=jes', ROUTE);
-    const table = await screen.findByRole('table', { name: 'Information of jes by region' });
-    expect(within(table).getByText('CR')).toBeTruthy();
-    expect(within(table).getByText('84 %')).toBeTruthy();
-    expect(screen.getByText(/over-constrained \(below 0.5\)/)).toBeTruthy();
-    expect(screen.getByText(/full diagnosis panel is still being built/)).toBeTruthy();
+    expect(await screen.findByRole('article', { name: 'Diagnosis of jes' })).toBeTruthy();
+    expect(calls.some((c) => c.url === '/api/analyses/demo/fits/7/diagnosis/jes')).toBe(true);
+    expect(screen.getByRole('link', { name: 'Diagnosis' }).getAttribute('aria-current')).toBe('page');
+    expect(screen.getByRole('heading', { name: 'Convergence report' })).toBeTruthy();
+  });
+
+  it('says the first diagnosis of a parameter takes a while, and shows the refusal of a held parameter in the server’s words', async () => {
+    stubServer((method, url) => {
+      if (url === '/api/analyses/demo') return json(200, overview('convener'));
+      const { correlation, information, yields, gammas, ...head } = fitDetail().result!;
+      void correlation;
+      void information;
+      void yields;
+      if (url === '/api/analyses/demo/fits/7') return json(200, { ...fitDetail(), result: { ...head, gammas: { count: gammas.count, maxAbsPull: gammas.maxAbsPull } } });
+      if (url === '/api/analyses/demo/fits/7/diagnosis/lumi') return json(409, { error: { message: 'lumi is held in this fit, so it has no diagnosis.', code: 'conflict' } });
+      return undefined;
+    });
+    renderWithApp(<FitResultRoute />, '/a/demo/fits/7/diagnostics?parameter=lumi', ROUTE);
+    expect(await screen.findByText(/refits the model at every point of its likelihood scan/)).toBeTruthy();
+    expect(await screen.findByText('lumi is held in this fit, so it has no diagnosis.')).toBeTruthy();
   });
 });

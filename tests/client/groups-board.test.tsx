@@ -31,6 +31,7 @@ const summary = (key: string): EntrySummary => ({
   kinds: [],
   largestEffectPct: null,
   warnings: 0,
+  openQuestions: 0,
   updatedAt: '2026-01-01T00:00:00Z',
 });
 

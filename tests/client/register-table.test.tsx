@@ -20,6 +20,7 @@ function entry(overrides: Partial<EntrySummary>): EntrySummary {
     kinds: ['scale'],
     largestEffectPct: 2.1,
     warnings: 0,
+    openQuestions: 0,
     updatedAt: '2026-01-01T00:00:00Z',
     ...overrides,
   };

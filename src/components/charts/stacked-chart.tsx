@@ -36,11 +36,18 @@ export type StackedChartData = {
   withheld: boolean;
 };
 
+/**
+ * Bins to point out on the chart, e.g. where one parameter's information comes from: each bin's
+ * weight (0–1, its share) sets the strength of an amber wash behind the stack; `label` names it.
+ */
+export type BinHighlight = { weights: number[]; label: string; describe: (bin: number) => string };
+
 const round1 = (x: number) => Math.round(x * 10) / 10;
 
-function binTitle(d: StackedChartData, b: number): string {
+function binTitle(d: StackedChartData, b: number, highlight?: BinHighlight): string {
   const unit = d.unit ? ` ${d.unit}` : '';
   const lines = [`Bin ${b + 1}: ${formatEdge(d.edges[b])}–${formatEdge(d.edges[b + 1])}${unit}`];
+  if (highlight && highlight.weights[b] > 0) lines.push(highlight.describe(b));
   for (const l of [...d.layers].reverse()) lines.push(`${l.label}: ${formatCount(round1(l.values[b]))} events`);
   lines.push(`${d.stage} expected in total: ${formatCount(round1(d.expected[b]))} events${d.band ? ` ± ${d.band[b].toFixed(1)}` : ''}`);
   if (d.data) {
@@ -58,7 +65,7 @@ type StepPoint = { x: number; y0: number; y1: number };
  * below them data / expected with the expectation's ±1σ band. The band can also be drawn
  * around the total in the main panel, as a stippled strip.
  */
-export function StackedChart({ d, svgRef }: { d: StackedChartData; svgRef?: Ref<SVGSVGElement> }) {
+export function StackedChart({ d, svgRef, highlight }: { d: StackedChartData; svgRef?: Ref<SVGSVGElement>; highlight?: BinHighlight }) {
   const stippleId = `stipple-${useId().replace(/[^a-zA-Z0-9_-]/g, '')}`;
   const bins = d.expected.length;
   const edges = d.edges;
@@ -124,6 +131,7 @@ export function StackedChart({ d, svgRef }: { d: StackedChartData; svgRef?: Ref<
         {stacked.map((s, i) => (
           <path key={d.layers[i].key} d={layerArea(stepPoints((b) => s[b][0], (b) => s[b][1])) ?? ''} fill={d.layers[i].colour} stroke={theme.paperRaised} strokeWidth={0.6} />
         ))}
+        {highlight && <HighlightWash highlight={highlight} x={(v) => x(v)} edges={edges} top={M.top} height={MAIN_H} />}
         {d.band && d.bandInfo.inMain && (
           <path d={layerArea(stepPoints((b) => Math.max(0, d.expected[b] - d.band![b]), (b) => d.expected[b] + d.band![b])) ?? ''} fill={`url(#${stippleId})`} stroke="none" />
         )}
@@ -175,7 +183,7 @@ export function StackedChart({ d, svgRef }: { d: StackedChartData; svgRef?: Ref<
         {/* one hover target per bin, carrying its numbers */}
         {Array.from({ length: bins }, (_, b) => (
           <rect key={b} x={x(edges[b])} y={M.top} width={Math.max(0, x(edges[b + 1]) - x(edges[b]))} height={MAIN_H + GAP + RATIO_H} fill="transparent">
-            <title>{binTitle(d, b)}</title>
+            <title>{binTitle(d, b, highlight)}</title>
           </rect>
         ))}
       </svg>
@@ -210,10 +218,34 @@ export function StackedChart({ d, svgRef }: { d: StackedChartData; svgRef?: Ref<
               {d.bandInfo.label}
             </li>
           )}
+          {highlight && (
+            <li className="flex items-center gap-1.5">
+              <span aria-hidden className="inline-block h-3 w-4 rounded-sm" style={{ background: theme.amber, opacity: 0.45 }} />
+              {highlight.label}
+            </li>
+          )}
           {d.withheld && <li className="font-medium text-amber-ink">Observed data withheld while blinded</li>}
           {!d.withheld && !d.data && <li className="text-ink-muted">No observed data recorded</li>}
         </ul>
       </figcaption>
     </figure>
+  );
+}
+
+/** The amber wash behind highlighted bins, stronger where the weight is larger, with a bar along the top. */
+function HighlightWash({ highlight, x, edges, top, height }: { highlight: BinHighlight; x: (v: number) => number; edges: number[]; top: number; height: number }) {
+  const max = Math.max(0, ...highlight.weights);
+  if (max <= 0) return null;
+  return (
+    <g aria-hidden>
+      {highlight.weights.map((w, b) =>
+        w > 0 ? (
+          <g key={b}>
+            <rect x={x(edges[b])} y={top} width={Math.max(0, x(edges[b + 1]) - x(edges[b]))} height={height} fill={theme.amber} fillOpacity={0.06 + 0.3 * (w / max)} />
+            <rect x={x(edges[b])} y={top} width={Math.max(0, x(edges[b + 1]) - x(edges[b]))} height={3} fill={theme.amber} fillOpacity={0.25 + 0.75 * (w / max)} />
+          </g>
+        ) : null,
+      )}
+    </g>
   );
 }

@@ -6,7 +6,7 @@ export const FIT_TABS = [
   { id: 'groups', label: 'Groups', description: 'The uncertainty on μ̂ attributed to each group of systematics, and the statistical part.' },
   { id: 'correlations', label: 'Correlations', description: 'The post-fit correlation matrix, on a teal–white–plum scale from −1 to +1.' },
   { id: 'distributions', label: 'Distributions', description: 'Per region, the pre-fit and post-fit stacked expectation with the data and a ratio panel.' },
-  { id: 'diagnostics', label: 'Diagnostics', description: "One parameter's numbers and information breakdown, and the convergence report in full." },
+  { id: 'diagnostics', label: 'Diagnosis', description: "Why one parameter came out as it did: its numbers, where its information comes from, its variations against the data's precision, its scan and correlations; and the convergence report in full." },
   { id: 'compare', label: 'Compare', description: 'What changed against another fit of this analysis.' },
 ] as const;
 

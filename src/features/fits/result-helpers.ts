@@ -49,3 +49,8 @@ export const NO_GROUP = '(no group)';
 export function groupName(g: string | null): string {
   return g ?? NO_GROUP;
 }
+
+/** Where a parameter's diagnosis in a fit lives. */
+export function diagnosisPath(slug: string, fitId: number, name: string): string {
+  return `/a/${slug}/fits/${fitId}/diagnostics?parameter=${encodeURIComponent(name)}`;
+}

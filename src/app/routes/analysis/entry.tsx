@@ -1,4 +1,4 @@
-import { useMemo } from 'react';
+import { useMemo, useState } from 'react';
 import { Link, useParams } from 'react-router';
 import { PageHeader, Panel } from '../../../components/ui/page';
 import { QueryView } from '../../../components/ui/query-view';
@@ -14,6 +14,11 @@ import type { RegionInfo } from '../../../features/entry/components/effect-card'
 import { useMembers } from '../../../features/members/api/get-members';
 import { useModel } from '../../../features/model/api/get-model';
 import { formatDateTime } from '../../../lib/format';
+import { useCan } from '../../../features/analyses/use-can';
+import { LatestDiagnosisLink } from '../../../features/fits/components/latest-diagnosis-link';
+import { EntryQuestions } from '../../../features/questions/components/entry-questions';
+import { RaiseQuestionForm } from '../../../features/questions/components/raise-question-form';
+import { Button } from '../../../components/ui/button';
 
 export function EntryRoute() {
   const { slug = '', key = '' } = useParams();
@@ -21,6 +26,8 @@ export function EntryRoute() {
   const members = useMembers(slug);
   const model = useModel(slug);
   const entries = useEntries(slug);
+  const mayRaise = useCan(slug)('question.raise');
+  const [raising, setRaising] = useState(false);
 
   const regions = useMemo(() => new Map<string, RegionInfo>((model.data?.regions ?? []).map((r) => [r.key, { label: r.label, observable: r.observable, unit: r.unit }])), [model.data]);
   const processLabels = useMemo(() => new Map((model.data?.processes ?? []).map((p) => [p.key, p.label])), [model.data]);
@@ -51,7 +58,15 @@ export function EntryRoute() {
                 </span>
               </>
             }
-            actions={back}
+            actions={
+              <>
+                <LatestDiagnosisLink slug={slug} parameter={e.key} />
+                <span aria-hidden className="text-rule-strong">
+                  |
+                </span>
+                {back}
+              </>
+            }
           />
           <div className="grid gap-5 xl:grid-cols-[1fr_22rem]">
             <Panel title="Details">
@@ -70,6 +85,23 @@ export function EntryRoute() {
                 <VariationUpload slug={slug} entryKey={e.key} regions={regions} processLabels={processLabels} />
               </Panel>
             )}
+            <Panel
+              title="Questions"
+              actions={
+                mayRaise && (
+                  <Button size="sm" variant="secondary" onClick={() => setRaising((r) => !r)} aria-expanded={raising}>
+                    Raise a question
+                  </Button>
+                )
+              }
+            >
+              {raising && (
+                <div className="mb-3 rounded-md border border-teal/40 px-3 py-2">
+                  <RaiseQuestionForm slug={slug} entry={e.key} fit={null} onCancel={() => setRaising(false)} />
+                </div>
+              )}
+              <EntryQuestions slug={slug} entry={e.key} />
+            </Panel>
             <Panel title={`Revision history (${e.revisions.length})`}>
               <RevisionHistory revisions={e.revisions} />
             </Panel>

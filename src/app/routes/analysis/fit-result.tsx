@@ -1,4 +1,4 @@
-import { useEffect, useRef, type ReactNode } from 'react';
+import { useEffect, useRef, useState, type ReactNode } from 'react';
 import { Link, NavLink, Navigate, useParams } from 'react-router';
 import { useQueryClient } from '@tanstack/react-query';
 import type { FitDetail, FitPart, FitPartName, FitResultHead } from '@shared/schemas/fits';
@@ -19,6 +19,9 @@ import { ImpactTable } from '../../../features/fits/components/impact-table';
 import { PullsView } from '../../../features/fits/components/pulls-view';
 import { SummaryView } from '../../../features/fits/components/summary-view';
 import { FIT_TABS, fitTab, type FitTabId } from '../../../features/fits/fit-tabs';
+import { diagnosisPath } from '../../../features/fits/result-helpers';
+import { RaiseQuestionForm } from '../../../features/questions/components/raise-question-form';
+import { useQuestionMarks } from '../../../features/questions/use-question-marks';
 import { useModel } from '../../../features/model/api/get-model';
 import { Button } from '../../../components/ui/button';
 import { EmptyState } from '../../../components/ui/empty-state';
@@ -60,21 +63,50 @@ function WithPart<K extends FitPartName>({ slug, fitId, part, children }: { slug
   );
 }
 
+/** The impact ranking with the question markers and, for a convener, a question raised from a row. */
+function ImpactsWithQuestions({ slug, fit, result }: { slug: string; fit: FitDetail; result: FitResultHead }) {
+  const marks = useQuestionMarks(slug);
+  const mayRaise = useCan(slug)('question.raise');
+  const [raising, setRaising] = useState<string | null>(null);
+  const panel = useRef<HTMLDivElement>(null);
+  useEffect(() => {
+    if (raising) panel.current?.scrollIntoView?.({ behavior: 'smooth', block: 'nearest' });
+  }, [raising]);
+  return (
+    <div className="flex flex-col gap-3">
+      {raising && (
+        <div ref={panel}>
+          <Panel title={`Raise a question on ${raising}`}>
+            <RaiseQuestionForm key={raising} slug={slug} entry={raising} fit={{ id: fit.id, label: fit.label || `Fit ${fit.id}` }} onCancel={() => setRaising(null)} />
+          </Panel>
+        </div>
+      )}
+      <ImpactTable slug={slug} fitId={fit.id} result={result} marks={marks} onRaise={mayRaise ? setRaising : undefined} />
+    </div>
+  );
+}
+
+function PullsWithQuestions({ slug, fit, result }: { slug: string; fit: FitDetail; result: FitResultHead }) {
+  const marks = useQuestionMarks(slug);
+  return <PullsView result={result} slug={slug} fitId={fit.id} marks={marks} />;
+}
+
 function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit: FitDetail; result: FitResultHead }) {
   const model = useModel(slug);
+  const nuisance = new Set(result.nuisance.filter((n) => !n.fixed).map((n) => n.name));
   switch (tab) {
     case 'summary':
       return <SummaryView result={result} />;
     case 'pulls':
-      return <PullsView result={result} />;
+      return <PullsWithQuestions slug={slug} fit={fit} result={result} />;
     case 'impacts':
-      return <ImpactTable slug={slug} fitId={fit.id} result={result} />;
+      return <ImpactsWithQuestions slug={slug} fit={fit} result={result} />;
     case 'groups':
       return <GroupsView result={result} />;
     case 'correlations':
       return (
         <WithPart slug={slug} fitId={fit.id} part="correlation">
-          {(correlation) => <CorrelationView result={result} correlation={correlation} />}
+          {(correlation) => <CorrelationView result={result} correlation={correlation} linkTo={(name) => (nuisance.has(name) ? diagnosisPath(slug, fit.id, name) : null)} />}
         </WithPart>
       );
     case 'distributions':
@@ -84,11 +116,7 @@ function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit:
         </WithPart>
       );
     case 'diagnostics':
-      return (
-        <WithPart slug={slug} fitId={fit.id} part="information">
-          {(information) => <DiagnosticsView result={result} information={information} />}
-        </WithPart>
-      );
+      return <DiagnosticsView slug={slug} fitId={fit.id} result={result} />;
     case 'compare':
       return <CompareView slug={slug} fitId={fit.id} />;
   }

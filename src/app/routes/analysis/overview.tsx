@@ -1,6 +1,7 @@
 import { useParams } from 'react-router';
 import { useAnalysis } from '../../../features/analyses/api/get-analysis';
 import { AnalysisOverview } from '../../../features/analyses/components/analysis-overview';
+import { BlindingPanel } from '../../../features/blinding/components/blinding-panel';
 import { useMe } from '../../../features/auth/api/get-me';
 import { PageHeader } from '../../../components/ui/page';
 import { QueryView } from '../../../components/ui/query-view';
@@ -14,6 +15,7 @@ export function OverviewRoute() {
       {(o) => (
         <>
           <PageHeader title={o.analysis.name} description={o.analysis.description || undefined} />
+          <BlindingPanel slug={slug} state={o.analysis.blinding} />
           <AnalysisOverview overview={o} isAdmin={me.data?.user.isAdmin ?? false} />
         </>
       )}

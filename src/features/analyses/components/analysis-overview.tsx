@@ -6,14 +6,8 @@ import { formatDate, formatDateTime, plural } from '../../../lib/format';
 import type { FitState } from '@shared/schemas/fits';
 import { FIT_STATE_META } from '../../fits/describe';
 import { ACTION_LABELS } from '../action-labels';
-import { BlindingBadge } from './blinding-badge';
 import { EntryStateBar } from './entry-state-bar';
 
-const BLINDING_TEXT = {
-  blinded: 'Signal-region observed counts are withheld from every screen and export. Fits on observed data may use control regions only.',
-  unblinding_requested: 'Unblinding has been requested and waits for a convener. Signal-region data stay withheld until then.',
-  unblinded: 'Observed data in every region are visible and may be fitted.',
-} as const;
 
 function Stat({ label, value, title, to }: { label: string; value: number; title: string; to?: string }) {
   const v = <span className="text-2xl font-semibold tabular-nums text-ink">{value.toLocaleString('en-GB')}</span>;
@@ -36,11 +30,6 @@ export function AnalysisOverview({ overview, isAdmin }: { overview: Overview; is
   const base = `/a/${analysis.slug}`;
   return (
     <div className="grid gap-4 lg:grid-cols-3">
-      <Panel title="Blinding" className="lg:col-span-1">
-        <BlindingBadge blinding={analysis.blinding} />
-        <p className="mt-2 text-sm text-ink-soft">{BLINDING_TEXT[analysis.blinding]}</p>
-      </Panel>
-
       <Panel title="Model version">
         {modelVersion ? (
           <div>
@@ -70,13 +59,6 @@ export function AnalysisOverview({ overview, isAdmin }: { overview: Overview; is
         )}
       </Panel>
 
-      <Panel title="Register" className="lg:col-span-2" actions={<Link className="text-xs font-medium text-teal-ink hover:underline" to={`${base}/register`}>Open the register</Link>}>
-        <p className="mb-2 text-sm text-ink-soft">
-          {plural(counts.entries, 'systematic uncertainty', 'systematic uncertainties')} in the register, by review state:
-        </p>
-        <EntryStateBar counts={counts.entriesByState} />
-      </Panel>
-
       <Panel title="At a glance">
         <div className="grid grid-cols-2 gap-4">
           <Stat label="regions" value={counts.regions} title="Signal, control and validation regions in the model" to={`${base}/model`} />
@@ -84,6 +66,13 @@ export function AnalysisOverview({ overview, isAdmin }: { overview: Overview; is
           <Stat label="members" value={counts.members} title="People with a role in this analysis" to={`${base}/members`} />
           <Stat label="open questions" value={openQuestions} title="Questions raised on fit results and not yet resolved" to={`${base}/questions`} />
         </div>
+      </Panel>
+
+      <Panel title="Register" className="lg:col-span-2" actions={<Link className="text-xs font-medium text-teal-ink hover:underline" to={`${base}/register`}>Open the register</Link>}>
+        <p className="mb-2 text-sm text-ink-soft">
+          {plural(counts.entries, 'systematic uncertainty', 'systematic uncertainties')} in the register, by review state:
+        </p>
+        <EntryStateBar counts={counts.entriesByState} />
       </Panel>
 
       <Panel title="Fit settings">

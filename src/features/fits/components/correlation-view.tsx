@@ -1,4 +1,5 @@
 import { useEffect, useMemo, useRef, useState, type KeyboardEvent, type MouseEvent } from 'react';
+import { Link } from 'react-router';
 import type { FitResultHead } from '@shared/schemas/fits';
 import { ExportButtons } from '../../../components/charts/export-buttons';
 import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
@@ -43,7 +44,7 @@ function ColourKey() {
  * The post-fit correlation matrix on a canvas: hover or move with the arrow keys to read a cell,
  * order by group or by clustering, keep only parameters with some |ρ| above a threshold.
  */
-export function CorrelationView({ result, correlation }: { result: FitResultHead; correlation: CorrelationMatrix | null }) {
+export function CorrelationView({ result, correlation, linkTo }: { result: FitResultHead; correlation: CorrelationMatrix | null; linkTo?: (name: string) => string | null }) {
   const m = correlation;
   const [ordering, setOrdering] = useState<Ordering>('group');
   const [threshold, setThreshold] = useState(0);
@@ -225,12 +226,21 @@ export function CorrelationView({ result, correlation }: { result: FitResultHead
             <tbody>
               {pairs.map((p) => (
                 <tr key={`${p.a}-${p.b}`}>
-                  <td className={`${tdClass} font-mono text-xs`} title={labels.get(m.names[p.a])}>
-                    {m.names[p.a]}
-                  </td>
-                  <td className={`${tdClass} font-mono text-xs`} title={labels.get(m.names[p.b])}>
-                    {m.names[p.b]}
-                  </td>
+                  {[p.a, p.b].map((i) => {
+                    const name = m.names[i];
+                    const to = linkTo?.(name);
+                    return (
+                      <td key={i} className={`${tdClass} font-mono text-xs`} title={labels.get(name)}>
+                        {to ? (
+                          <Link to={to} className="text-teal-ink hover:underline" title={`Open the diagnosis of ${name}`}>
+                            {name}
+                          </Link>
+                        ) : (
+                          name
+                        )}
+                      </td>
+                    );
+                  })}
                   <td className={`${tdClass} text-right`} title="Post-fit correlation coefficient">
                     <span className="inline-flex items-center gap-1.5 tabular-nums">
                       <span aria-hidden className="inline-block size-3 rounded-sm border" style={{ background: correlationColour(p.rho), borderColor: theme.rule }} />

@@ -14,10 +14,12 @@ import {
 } from '@tanstack/react-table';
 import type { NuisanceReport } from '@shared/schemas/fit';
 import type { FitResultHead } from '@shared/schemas/fits';
-import { tableClass, tdClass } from '../../../components/ui/page';
+import { tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { SortableTh } from '../../../components/ui/sortable-th';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
-import { groupName, impactMode, impactSize, isStronglyPulled, labelsOf, rankByImpact, type ImpactMode } from '../result-helpers';
+import { QuestionMarker } from '../../questions/components/question-marker';
+import type { QuestionMark } from '../../questions/use-question-marks';
+import { diagnosisPath, groupName, impactMode, impactSize, isStronglyPulled, labelsOf, rankByImpact, type ImpactMode } from '../result-helpers';
 import { ConstraintMeter, ImpactGlyph, PullGlyph } from './glyphs';
 import { GroupFilter, groupsOf } from './group-filter';
 
@@ -31,7 +33,9 @@ const features = tableFeatures({
 
 const col = createColumnHelper<typeof features, ImpactRow>();
 
-function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: number, threshold: number) {
+type Review = { marks?: Map<string, QuestionMark>; onRaise?: (name: string) => void };
+
+function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: number, threshold: number, review: Review) {
   return col.columns([
     col.accessor('position', {
       header: '#',
@@ -47,10 +51,12 @@ function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: numbe
       sortFn: 'alphanumeric',
       cell: (c) => {
         const r = c.row.original;
+        const mark = review.marks?.get(r.name);
         return (
           <span className="flex items-baseline gap-2">
+            {mark && <QuestionMarker state={mark.state} count={mark.count} />}
             <Link
-              to={`/a/${slug}/fits/${fitId}/diagnostics?parameter=${encodeURIComponent(r.name)}`}
+              to={diagnosisPath(slug, fitId, r.name)}
               onClick={(e) => e.stopPropagation()}
               className="font-mono text-xs font-medium text-teal-ink hover:underline"
               title={`Open the diagnosis of ${r.name}`}
@@ -124,6 +130,28 @@ function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: numbe
             ),
           }),
         ]),
+    ...(review.onRaise
+      ? [
+          col.display({
+            id: 'ask',
+            header: 'Actions',
+            cell: (c) => (
+              <button
+                type="button"
+                onClick={(e) => {
+                  e.stopPropagation();
+                  review.onRaise?.(c.row.original.name);
+                }}
+                className="rounded px-1.5 py-0.5 text-xs font-medium text-teal-ink hover:bg-teal-soft hover:underline"
+                aria-label={`Raise a question on ${c.row.original.name}`}
+                title={`Raise a question on ${c.row.original.name}`}
+              >
+                Ask…
+              </button>
+            ),
+          }),
+        ]
+      : []),
   ]);
 }
 
@@ -144,7 +172,7 @@ export function impactScale(rows: NuisanceReport[], mode: ImpactMode): number {
  * The ranked impacts as a dense table: one row per nuisance parameter, with its pull on the
  * prior band, its constraint meter and its Δμ bars. A click on a row opens its diagnosis.
  */
-export function ImpactTable({ slug, fitId, result }: { slug: string; fitId: number; result: FitResultHead }) {
+export function ImpactTable({ slug, fitId, result, marks, onRaise }: { slug: string; fitId: number; result: FitResultHead } & Review) {
   const navigate = useNavigate();
   const mode = impactMode(result);
   const threshold = result.options.overConstraintThreshold;
@@ -164,7 +192,7 @@ export function ImpactTable({ slug, fitId, result }: { slug: string; fitId: numb
     return top > 0 ? inGroup.slice(0, top) : inGroup;
   }, [ranked, group, top]);
   const scale = useMemo(() => impactScale(ranked, mode), [ranked, mode]);
-  const columns = useMemo(() => makeColumns(slug, fitId, mode, scale, threshold), [slug, fitId, mode, scale, threshold]);
+  const columns = useMemo(() => makeColumns(slug, fitId, mode, scale, threshold, { marks, onRaise }), [slug, fitId, mode, scale, threshold, marks, onRaise]);
   const table = useTable({ features, columns, data: rows, state: { sorting }, onSortingChange: setSorting });
   const held = result.nuisance.filter((n) => n.fixed);
 
@@ -202,18 +230,24 @@ export function ImpactTable({ slug, fitId, result }: { slug: string; fitId: numb
           </span>
         )}
         {mode === 'none' && 'This fit was run without impacts: the table lists pulls and constraints only, by name.'}
-        {' '}Click a row for the parameter's diagnosis.
+        {' '}Click a row for the parameter's diagnosis.{marks && marks.size > 0 && ' A “?” marks a parameter with a question not yet resolved.'}
       </p>
       <div className="overflow-x-auto rounded-lg border border-rule bg-paper-raised">
         <table className={tableClass} aria-label="Impact ranking">
           <thead>
             {table.getHeaderGroups().map((g) => (
               <tr key={g.id}>
-                {g.headers.map((header) => (
+                {g.headers.map((header) =>
+                  header.column.id === 'ask' ? (
+                    <th key={header.id} scope="col" className={thClass}>
+                      <span className="sr-only">Actions</span>
+                    </th>
+                  ) : (
                   <SortableTh key={header.id} sorted={header.column.getIsSorted()} onSort={header.column.getToggleSortingHandler()} numeric={NUMERIC.has(header.column.id)}>
                     {<table.FlexRender header={header} />}
                   </SortableTh>
-                ))}
+                  ),
+                )}
               </tr>
             ))}
           </thead>
@@ -221,7 +255,7 @@ export function ImpactTable({ slug, fitId, result }: { slug: string; fitId: numb
             {table.getRowModel().rows.map((row) => (
               <tr
                 key={row.id}
-                onClick={() => navigate(`/a/${slug}/fits/${fitId}/diagnostics?parameter=${encodeURIComponent(row.original.name)}`)}
+                onClick={() => navigate(diagnosisPath(slug, fitId, row.original.name))}
                 className="cursor-pointer hover:bg-teal-soft/40"
               >
                 {row.getAllCells().map((cell) => (

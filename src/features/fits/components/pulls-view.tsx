@@ -1,4 +1,5 @@
 import { useMemo, useRef, useState } from 'react';
+import { Link, useNavigate } from 'react-router';
 import { scaleLinear } from 'd3-scale';
 import type { NuisanceReport } from '@shared/schemas/fit';
 import type { FitResultHead } from '@shared/schemas/fits';
@@ -8,7 +9,9 @@ import { CheckboxField } from '../../../components/ui/field';
 import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { theme } from '../../../lib/palette';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
-import { groupName, isStronglyPulled, labelsOf, STRONG_PULL } from '../result-helpers';
+import { QuestionMarker } from '../../questions/components/question-marker';
+import type { QuestionMark } from '../../questions/use-question-marks';
+import { diagnosisPath, groupName, isStronglyPulled, labelsOf, STRONG_PULL } from '../result-helpers';
 import { markColour } from './glyphs';
 import { GroupFilter, groupsOf } from './group-filter';
 
@@ -47,7 +50,24 @@ const M = { left: 178, right: 96, top: 8, bottom: 36 };
 type Line = { kind: 'group'; name: string } | { kind: 'parameter'; r: NuisanceReport };
 
 /** Every nuisance parameter's pull (dot) and post-fit width (bar) against the prior band [−1, 1], ±2 lighter. */
-export function PullsChart({ rows, labels, threshold, title, groupHeadings = false }: { rows: NuisanceReport[]; labels: Map<string, string>; threshold: number; title: string; groupHeadings?: boolean }) {
+export function PullsChart({
+  rows,
+  labels,
+  threshold,
+  title,
+  groupHeadings = false,
+  onOpen,
+  marks,
+}: {
+  rows: NuisanceReport[];
+  labels: Map<string, string>;
+  threshold: number;
+  title: string;
+  groupHeadings?: boolean;
+  /** open a parameter's diagnosis when its line is clicked */
+  onOpen?: (name: string) => void;
+  marks?: Map<string, QuestionMark>;
+}) {
   const ref = useRef<SVGSVGElement>(null);
   const lines: Line[] = [];
   rows.forEach((r, i) => {
@@ -93,6 +113,11 @@ export function PullsChart({ rows, labels, threshold, title, groupHeadings = fal
               <text x={M.left - 10} y={cy} dy="0.32em" textAnchor="end" style={{ fontSize: 10.5, fill: flagged ? colour : theme.ink, fontWeight: flagged ? 600 : 400 }}>
                 {r.name.length > 28 ? `${r.name.slice(0, 27)}…` : r.name}
               </text>
+              {marks?.get(r.name) && (
+                <text x={4} y={cy} dy="0.32em" style={{ fontSize: 10, fontWeight: 700, fill: marks.get(r.name)!.state === 'open' ? theme.amber : theme.teal }}>
+                  ?<title>{`Question not yet resolved on ${r.name} (${marks.get(r.name)!.state})`}</title>
+                </text>
+              )}
               {c !== null && (
                 <g stroke={colour} strokeWidth={1.5}>
                   <line x1={clampX(r.pull - c)} x2={clampX(r.pull + c)} y1={cy} y2={cy} />
@@ -108,7 +133,7 @@ export function PullsChart({ rows, labels, threshold, title, groupHeadings = fal
               <text x={W - M.right + 8} y={cy} dy="0.32em" style={{ fontSize: 9.5, fill: theme.inkMuted }}>
                 {r.fixed || c === null ? 'held' : `${formatSigned(r.pull, 2)} ± ${formatFixed(c, 2)}`}
               </text>
-              <rect x={0} y={cy - ROW / 2} width={W} height={ROW} fill="transparent">
+              <rect x={0} y={cy - ROW / 2} width={W} height={ROW} fill="transparent" onClick={onOpen ? () => onOpen(r.name) : undefined} style={onOpen ? { cursor: 'pointer' } : undefined}>
                 <title>
                   {[
                     `${r.name}${labels.get(r.name) ? ` (${labels.get(r.name)})` : ''}, group ${groupName(r.group)}`,
@@ -117,6 +142,7 @@ export function PullsChart({ rows, labels, threshold, title, groupHeadings = fal
                     `normalised pull θ̂/√(1 − σ̂²) = ${formatSigned(r.normalisedPull, 3)}`,
                     ...(r.fixed ? ['held at its start value'] : []),
                     ...(isStronglyPulled(r) ? [`|pull| above ${STRONG_PULL}: strongly pulled`] : []),
+                    ...(onOpen ? ['Click for its diagnosis'] : []),
                   ].join('\n')}
                 </title>
               </rect>
@@ -152,7 +178,9 @@ export function PullsChart({ rows, labels, threshold, title, groupHeadings = fal
 }
 
 /** The pulls view: chart, sort and filters, the numbers as a table, and the floating normalisations apart. */
-export function PullsView({ result }: { result: FitResultHead }) {
+export function PullsView({ result, slug, fitId, marks }: { result: FitResultHead; slug?: string; fitId?: number; marks?: Map<string, QuestionMark> }) {
+  const navigate = useNavigate();
+  const linkTo = slug !== undefined && fitId !== undefined ? (name: string) => diagnosisPath(slug, fitId, name) : null;
   const [sort, setSort] = useState<PullSort>('group');
   const [group, setGroup] = useState<string | null>(null);
   const [flaggedOnly, setFlaggedOnly] = useState(false);
@@ -200,7 +228,15 @@ export function PullsView({ result }: { result: FitResultHead }) {
         <p className="text-sm text-ink-muted">No nuisance parameter matches these filters.</p>
       ) : (
         <Panel>
-          <PullsChart rows={rows} labels={labels} threshold={threshold} title="Pulls and constraints" groupHeadings={sort === 'group'} />
+          <PullsChart
+            rows={rows}
+            labels={labels}
+            threshold={threshold}
+            title="Pulls and constraints"
+            groupHeadings={sort === 'group'}
+            marks={marks}
+            onOpen={linkTo ? (name) => navigate(linkTo(name)) : undefined}
+          />
         </Panel>
       )}
       <details className="rounded-lg border border-rule bg-paper-raised px-4 py-2">
@@ -231,7 +267,18 @@ export function PullsView({ result }: { result: FitResultHead }) {
           <tbody>
             {rows.map((r) => (
               <tr key={r.name}>
-                <td className={`${tdClass} font-mono text-xs`}>{r.name}</td>
+                <td className={`${tdClass} font-mono text-xs`}>
+                  <span className="flex items-center gap-1.5">
+                    {linkTo ? (
+                      <Link to={linkTo(r.name)} className="text-teal-ink hover:underline" title={`Open the diagnosis of ${r.name}`}>
+                        {r.name}
+                      </Link>
+                    ) : (
+                      r.name
+                    )}
+                    {marks?.get(r.name) && <QuestionMarker state={marks.get(r.name)!.state} count={marks.get(r.name)!.count} />}
+                  </span>
+                </td>
                 <td className={`${tdClass} text-xs`}>{groupName(r.group)}</td>
                 <td className={`${tdClass} text-right tabular-nums`}>{formatSigned(r.pull, 3)}</td>
                 <td className={`${tdClass} text-right tabular-nums`}>{formatFixed(r.constraint, 3)}</td>

@@ -76,11 +76,26 @@ function makeColumns(slug: string) {
       header: 'Key',
       sortFn: 'alphanumeric',
       enableHiding: false,
-      cell: (c) => (
-        <Link to={`/a/${slug}/entries/${encodeURIComponent(c.getValue())}`} className="font-mono text-xs font-medium text-teal-ink hover:underline">
-          {c.getValue()}
-        </Link>
-      ),
+      cell: (c) => {
+        const open = c.row.original.openQuestions;
+        return (
+          <span className="flex items-center gap-1.5">
+            <Link to={`/a/${slug}/entries/${encodeURIComponent(c.getValue())}`} className="font-mono text-xs font-medium text-teal-ink hover:underline">
+              {c.getValue()}
+            </Link>
+            {open > 0 && (
+              <Link
+                to={`/a/${slug}/questions?entry=${encodeURIComponent(c.getValue())}`}
+                aria-label={`${open} unresolved question${open === 1 ? '' : 's'} on ${c.getValue()}`}
+                title={`${open} question${open === 1 ? '' : 's'} on this entry not yet resolved (open or answered)`}
+                className="inline-flex h-4 min-w-4 items-center justify-center rounded-full border border-amber/60 bg-amber-soft px-1 text-2xs leading-none font-bold text-amber-ink hover:underline"
+              >
+                ?{open > 1 ? open : ''}
+              </Link>
+            )}
+          </span>
+        );
+      },
     }),
     col.accessor('label', { header: 'Label', sortFn: 'text' }),
     col.accessor((e) => e.group ?? '', {

@@ -1,0 +1,24 @@
+import { useMemo } from 'react';
+import type { QuestionSummary } from '@shared/schemas/review';
+import { useQuestions } from './api/get-questions';
+
+/** What a parameter's marker says: how many of its questions are not resolved, and whether one still waits for an answer. */
+export type QuestionMark = { state: 'open' | 'answered'; count: number };
+
+/** Per register entry (= parameter name), its unresolved questions; resolved ones leave no mark. */
+export function questionMarks(list: QuestionSummary[]): Map<string, QuestionMark> {
+  const marks = new Map<string, QuestionMark>();
+  for (const q of list) {
+    if (q.state === 'resolved') continue;
+    const m = marks.get(q.entry.key);
+    if (!m) marks.set(q.entry.key, { state: q.state, count: 1 });
+    else marks.set(q.entry.key, { state: m.state === 'open' || q.state === 'open' ? 'open' : 'answered', count: m.count + 1 });
+  }
+  return marks;
+}
+
+/** The analysis's questions, fetched once and shared by every result table that marks parameters. */
+export function useQuestionMarks(slug: string): Map<string, QuestionMark> {
+  const { data } = useQuestions(slug);
+  return useMemo(() => questionMarks(data ?? []), [data]);
+}
