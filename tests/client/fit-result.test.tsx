@@ -1,6 +1,6 @@
 // @vitest-environment happy-dom
 import { afterEach, describe, expect, it, vi } from 'vitest';
-import { cleanup, screen, waitFor, within } from '@testing-library/react';
+import { cleanup, screen, waitFor } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { FitResultRoute } from '../../src/app/routes/analysis/fit-result';
 import { convergedResult, fitDetail, overview, type StoredFit } from './fit-fixtures';
@@ -109,7 +109,7 @@ describe('the fit result screen', () => {
   });
 
   it('says the first diagnosis of a parameter takes a while, and shows the refusal of a held parameter in the server’s words', async () => {
-    stubServer((method, url) => {
+    stubServer((_method, url) => {
       if (url === '/api/analyses/demo') return json(200, overview('convener'));
       const { correlation, information, yields, gammas, ...head } = fitDetail().result!;
       void correlation;

@@ -82,7 +82,7 @@ describe('question markers', () => {
     void correlation;
     void information;
     void yields;
-    stubServer((method, url) => {
+    stubServer((_method, url) => {
       if (url === '/api/analyses/demo') return json(200, overview('analyst'));
       if (url === '/api/analyses/demo/fits/7') return json(200, { ...detail, result: { ...head, gammas: { count: gammas.count, maxAbsPull: gammas.maxAbsPull } } });
       if (url === '/api/analyses/demo/questions') return json(200, []);

@@ -21,7 +21,7 @@ const entries = [
 ];
 
 function serveList() {
-  return stubServer((method, url) => {
+  return stubServer((_method, url) => {
     if (url === '/api/analyses/demo') return json(200, overview('convener'));
     if (url === '/api/analyses/demo/entries') return json(200, entries);
     if (url === '/api/analyses/demo/members') return json(200, []);
