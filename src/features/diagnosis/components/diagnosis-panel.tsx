@@ -7,6 +7,7 @@ import type { Diagnosis, DiagnosisClaim, DiagnosisRegion } from '@shared/schemas
 import { StackedChart } from '../../../components/charts/stacked-chart';
 import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
+import { formatEdge } from '../../../lib/format';
 import { correlationColour, theme } from '../../../lib/palette';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
 import { ConvergenceBadge } from '../../fits/components/convergence';
@@ -121,7 +122,7 @@ function topBins(d: Diagnosis): ShareItem[] {
     .map(({ r, b }) => ({
       key: `${r.region}:${b.bin}`,
       label: `${r.label}, bin ${b.bin + 1}`,
-      detail: `${b.low}–${b.high}`,
+      detail: `${formatEdge(b.low)}–${formatEdge(b.high)}`,
       share: b.share,
       title: `(∂ν/∂θ)²/ν = ${formatFixed(b.information, 4)}; expected ${formatFixed(b.expected, 1)} events; change at ±1: ${formatSigned(b.up, 2)} / ${formatSigned(b.down, 2)} events`,
       tone: 'amber' as const,

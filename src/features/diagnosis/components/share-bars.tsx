@@ -17,7 +17,7 @@ export function ShareBars({ items, label }: { items: ShareItem[]; label: string 
   return (
     <ol aria-label={label} className="flex flex-col gap-1">
       {sorted.map((i) => (
-        <li key={i.key} title={i.title} className="grid grid-cols-[minmax(8rem,14rem)_1fr_3.5rem] items-center gap-2 text-sm">
+        <li key={i.key} title={i.title} className="grid grid-cols-[minmax(10rem,24rem)_1fr_3.5rem] items-center gap-2 text-sm">
           <span className="truncate">
             {i.label}
             {i.detail && <span className="ml-1.5 font-mono text-2xs text-ink-muted">{i.detail}</span>}
