@@ -19,6 +19,7 @@ import { registerRoutes } from './routes/register.routes';
 import { modelRoutes } from './routes/model.routes';
 import { invitationsRoutes } from './routes/invitations.routes';
 import { fitsRoutes } from './routes/fits.routes';
+import { reviewRoutes } from './routes/review.routes';
 
 export type App = { app: Express; routes: ApiRoute[]; ctx: AppContext };
 
@@ -49,6 +50,7 @@ export function createApp(database: Database, config: Config, deps: { mailer: Ma
     ...registerRoutes(ctx, auth),
     ...invitationsRoutes(ctx, auth),
     ...fitsRoutes(ctx, auth),
+    ...reviewRoutes(ctx, auth),
     ...outboxRoutes(ctx, auth),
   ];
 

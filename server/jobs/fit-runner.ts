@@ -3,6 +3,13 @@ import { exchangeModelSchema } from '@shared/schemas/exchange';
 import { fitOptionsSchema } from '@shared/schemas/fit';
 import type { Db } from '../db/client';
 import { fits, modelVersions } from '../db/schema';
+import { Piscina } from 'piscina';
+import type { ExchangeModel } from '@shared/schemas/exchange';
+import type { FitOptions } from '@shared/schemas/fit';
+import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
+import { FitInputError } from '../fit/errors';
+import { workerExecArgv } from '../fit/pool';
+import type { DiagnosisTask } from './diagnosis.worker';
 import { JobError, startJobThread, type JobThread } from './fit-job';
 
 /**
@@ -18,15 +25,26 @@ export type FitRunner = {
   recover: () => Promise<void>;
   /** resolves when the queue is empty and nothing runs */
   idle: () => Promise<void>;
+  /** One parameter's diagnosis numbers, computed in a thread of their own (fits do not hold them up). */
+  diagnose: (model: ExchangeModel, options: FitOptions, parameter: string) => Promise<ParameterDiagnosisNumbers>;
   close: () => Promise<void>;
 };
 
 export const INTERRUPTED = 'Interrupted: the server stopped while this fit was running. Start it again.';
 
-export function createFitRunner(db: Db, log: (line: string) => void, options: { threads?: number } = {}): FitRunner {
+export function createFitRunner(db: Db, log: (line: string) => void, options: { threads?: number; niceness?: number } = {}): FitRunner {
   // the job thread (and the engine's refit threads in it) start with the first fit, not with the server
   let thread: JobThread | null = null;
-  const jobs = () => (thread ??= startJobThread(options.threads));
+  const jobs = () => (thread ??= startJobThread(options.threads, options.niceness));
+  let diagnoses: Piscina | null = null;
+  const diagnosisThread = () => {
+    if (!diagnoses) {
+      const here = new URL(import.meta.url);
+      const filename = new URL(`./diagnosis.worker${here.pathname.endsWith('.ts') ? '.ts' : '.js'}`, here).href;
+      diagnoses = new Piscina({ filename, minThreads: 0, maxThreads: 1, execArgv: workerExecArgv(filename), idleTimeout: 5 * 60_000 });
+    }
+    return diagnoses;
+  };
   const queue: number[] = [];
   const cancelled = new Map<number, string>();
   let current: { id: number; controller: AbortController } | null = null;
@@ -125,7 +143,17 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
     idle: async () => {
       while (draining) await draining;
     },
+    diagnose: async (model, fitOptions, parameter) => {
+      try {
+        return (await diagnosisThread().run({ model, options: fitOptions, parameter, niceness: options.niceness ?? 0 } satisfies DiagnosisTask)) as ParameterDiagnosisNumbers;
+      } catch (e) {
+        // the engine's own refusals (an unknown parameter) keep their message
+        if (e instanceof Error && e.name === 'FitInputError') throw new FitInputError(e.message, []);
+        throw e;
+      }
+    },
     close: async () => {
+      await diagnoses?.destroy();
       queue.length = 0;
       current?.controller.abort();
       while (draining) await draining.catch(() => {});

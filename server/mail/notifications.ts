@@ -74,3 +74,86 @@ export async function notifySentBack(ctx: AppContext, p: { baseUrl: string; anal
     text: [`${p.by} sent the register entry "${p.entry.label}" (${p.entry.key}) back to you with this comment:`, '', p.comment, '', 'Change what is asked, then submit it again:', entryLink(p.baseUrl, p.analysis, p.entry)].join('\n'),
   });
 }
+
+// ---- questions on parameters
+
+type QuestionMail = { baseUrl: string; analysis: AnalysisRow; questionId: number; title: string; entry: Entry; by: string; byId: number };
+const questionLink = (p: QuestionMail) => `${p.baseUrl}/a/${p.analysis.slug}/questions/${p.questionId}`;
+
+async function emailOf(ctx: AppContext, userId: number | null) {
+  if (!userId) return [];
+  const [u] = await ctx.db.select({ email: users.email }).from(users).where(eq(users.id, userId));
+  return u ? [u.email] : [];
+}
+
+/** Everyone to tell, less the person who acted (they know). */
+async function without(ctx: AppContext, byId: number, lists: Promise<string[]>[]) {
+  const [me] = await emailOf(ctx, byId);
+  return [...new Set((await Promise.all(lists)).flat())].filter((e) => e !== me);
+}
+
+/** A convener asked: the entry's owner and the analysts hear of it. */
+export async function notifyQuestionRaised(ctx: AppContext, p: QuestionMail & { body: string; fit: string | null }) {
+  const to = await without(ctx, p.byId, [ownerEmail(ctx, p.entry), emailsOf(ctx, p.analysis.id, 'analyst')]);
+  if (!to.length) return;
+  await ctx.mailer.send({
+    to,
+    analysisId: p.analysis.id,
+    subject: `[${p.analysis.slug}] Question on ${p.entry.key}: ${p.title}`,
+    text: [`${p.by} asks about "${p.entry.label}" (${p.entry.key})${p.fit ? ` in ${p.fit}` : ''}:`, '', p.body, '', 'Answer it here:', questionLink(p)].join('\n'),
+  });
+}
+
+/** Someone answered: the convener who asked and the owner hear of it. */
+export async function notifyQuestionAnswered(ctx: AppContext, p: QuestionMail & { body: string; authorId: number | null }) {
+  const to = await without(ctx, p.byId, [emailOf(ctx, p.authorId), ownerEmail(ctx, p.entry)]);
+  if (!to.length) return;
+  await ctx.mailer.send({
+    to,
+    analysisId: p.analysis.id,
+    subject: `[${p.analysis.slug}] Answer on ${p.entry.key}: ${p.title}`,
+    text: [`${p.by} answered the question "${p.title}" on ${p.entry.key}:`, '', p.body, '', questionLink(p)].join('\n'),
+  });
+}
+
+/** Resolved or reopened: the owner hears of it. */
+export async function notifyQuestionStep(ctx: AppContext, p: QuestionMail & { step: 'resolved' | 'reopened'; note: string }) {
+  const to = await without(ctx, p.byId, [ownerEmail(ctx, p.entry)]);
+  if (!to.length) return;
+  await ctx.mailer.send({
+    to,
+    analysisId: p.analysis.id,
+    subject: `[${p.analysis.slug}] Question on ${p.entry.key} ${p.step}: ${p.title}`,
+    text: [`${p.by} ${p.step} the question "${p.title}" on ${p.entry.key}.`, p.note ? `\n${p.note}` : '', '', questionLink(p)].join('\n'),
+  });
+}
+
+// ---- blinding
+
+/** An analyst asks to unblind: the conveners decide. */
+export async function notifyUnblindingRequested(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; by: string; note: string }) {
+  await ctx.mailer.send({
+    to: await emailsOf(ctx, p.analysis.id, 'convener'),
+    analysisId: p.analysis.id,
+    subject: `[${p.analysis.slug}] Unblinding requested by ${p.by}`,
+    text: [`${p.by} asks to unblind "${p.analysis.name}":`, '', p.note, '', 'Approve or decline on the analysis overview:', `${p.baseUrl}/a/${p.analysis.slug}`].join('\n'),
+  });
+}
+
+/** The decision: the analysts (the requester among them) hear of it. */
+export async function notifyUnblindingDecided(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; by: string; approved: boolean; note: string }) {
+  const to = [...new Set([...(await emailsOf(ctx, p.analysis.id, 'analyst')), ...(await emailsOf(ctx, p.analysis.id, 'convener'))])];
+  await ctx.mailer.send({
+    to,
+    analysisId: p.analysis.id,
+    subject: `[${p.analysis.slug}] Unblinding ${p.approved ? 'approved' : 'declined'} by ${p.by}`,
+    text: [
+      p.approved
+        ? `${p.by} approved unblinding "${p.analysis.name}". Observed signal-region data are now shown, and fits to observed data may include the signal regions.`
+        : `${p.by} declined unblinding "${p.analysis.name}"; it stays blinded.`,
+      p.note ? `\n${p.note}` : '',
+      '',
+      `${p.baseUrl}/a/${p.analysis.slug}`,
+    ].join('\n'),
+  });
+}

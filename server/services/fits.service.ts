@@ -13,7 +13,7 @@ import { findVersion } from './versions.service';
 
 type FitRow = Omit<typeof fits.$inferSelect, 'result'>;
 
-function summaryOf(fit: FitRow, version: number, createdBy: string | null): FitSummary {
+export function summaryOf(fit: FitRow, version: number, createdBy: string | null): FitSummary {
   return {
     id: fit.id,
     label: fit.label,
@@ -42,13 +42,13 @@ const fitRows = (ctx: AppContext, analysisId: number) =>
     .where(eq(fits.analysisId, analysisId))
     .$dynamic();
 
-async function findFit(ctx: AppContext, access: Access, id: number) {
+export async function findFit(ctx: AppContext, access: Access, id: number) {
   const [row] = await fitRows(ctx, access.analysis.id).where(and(eq(fits.analysisId, access.analysis.id), eq(fits.id, id)));
   if (!row) throw notFound(`Fit ${id}`);
   return row;
 }
 
-async function storedResult(ctx: AppContext, id: number) {
+export async function storedResult(ctx: AppContext, id: number) {
   const [row] = await ctx.db.select({ result: fits.result }).from(fits).where(eq(fits.id, id));
   return (row?.result ?? null) as FitResult | null;
 }

@@ -2,7 +2,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { hashPassword } from '../../server/auth/passwords';
-import { analyses, effects, entries, fits, groups, invitations, memberships, modelVersions, processes, regions, users } from '../../server/db/schema';
+import { forgetAccess } from '../../server/db/analyses.repository';
+import { analyses, effects, entries, fits, groups, invitations, memberships, modelVersions, processes, questions, regions, users } from '../../server/db/schema';
 import { Client, createTestApp, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
 
 /**
@@ -101,6 +102,19 @@ async function freshProcess(t: TestApp) {
   const [p] = await t.database.db.insert(processes).values({ analysisId: (await ids(t)).analysisId, key: `p${created}`, kind: 'background' }).returning();
   return p.key;
 }
+const conveners = (ok: number) => ({ ...all(403), signedOut: 401, convener: ok });
+/** everyone who works on the analysis: readers only read */
+const answerers = (ok: number) => ({ ...all(403), signedOut: 401, convener: ok, analyst: ok, contact: ok });
+async function freshQuestion(t: TestApp, state: 'open' | 'resolved' = 'open') {
+  const { analysisId } = await ids(t);
+  const [e] = await t.database.db.select().from(entries).where(and(eq(entries.analysisId, analysisId), eq(entries.key, 'flare_escale')));
+  const [q] = await t.database.db.insert(questions).values({ analysisId, entryId: e.id, title: 'Fixture question', body: 'Why?', state }).returning();
+  return q.id;
+}
+async function setBlinding(t: TestApp, state: 'blinded' | 'unblinding_requested') {
+  await t.database.db.update(analyses).set({ blinding: state }).where(eq(analyses.slug, SLUG));
+  forgetAccess(t.database.db);
+}
 const managersAndAnalysts = (ok: number) => ({ ...all(403), signedOut: 401, analyst: ok, convener: ok });
 /** a frozen version and one converged fit of the analysis, made once through the API */
 let converged: Promise<{ version: number; fitId: number }> | null = null;
@@ -108,7 +122,8 @@ const convergedFit = (t: TestApp) =>
   (converged ??= (async () => {
     const analyst = await signedIn(t.app, DEMO.analyst);
     const version = (await analyst.send('post', `/api/analyses/${SLUG}/versions`, { note: 'fixture' })).body.number;
-    const started = await analyst.send('post', `/api/analyses/${SLUG}/fits`, { version, options: { dataset: 'asimov', impacts: 'none', expected: false } });
+    // observed data, control regions only: the stored result holds the signal regions' counts, which blinding must strip
+    const started = await analyst.send('post', `/api/analyses/${SLUG}/fits`, { version, options: { dataset: 'observed', controlOnly: true, impacts: 'none', expected: false } });
     await t.fits.idle();
     return { version, fitId: started.body.id };
   })());
@@ -234,6 +249,31 @@ export const MATRIX: Record<string, Row> = {
   },
   'GET /api/analyses/:slug/fits/:fitId/export': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/export?format=csv&table=summary` }), expect: members(200) },
 
+  // the review loop: diagnosis, questions, blinding
+  'GET /api/analyses/:slug/fits/:fitId/diagnosis/:parameter': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/diagnosis/flare_escale` }), expect: members(200) },
+  'GET /api/analyses/:slug/questions': { call: () => ({ path: `${A}/questions?state=open` }), expect: members(200) },
+  'POST /api/analyses/:slug/questions': { call: () => ({ path: `${A}/questions`, body: { entry: 'flare_escale', title: 'Matrix question', body: 'Why so narrow?' } }), expect: conveners(201) },
+  'GET /api/analyses/:slug/questions/:questionId': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}` }), expect: members(200) },
+  'POST /api/analyses/:slug/questions/:questionId/answers': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}/answers`, body: { body: 'Because of the control region.' } }), expect: answerers(201) },
+  'POST /api/analyses/:slug/questions/:questionId/resolve': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}/resolve`, body: {} }), expect: conveners(200) },
+  'POST /api/analyses/:slug/questions/:questionId/reopen': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t, 'resolved')}/reopen`, body: { note: 'Again.' } }), expect: conveners(200) },
+  'GET /api/analyses/:slug/blinding': { call: () => ({ path: `${A}/blinding` }), expect: members(200) },
+  'POST /api/analyses/:slug/blinding/request': {
+    call: async (t) => {
+      await setBlinding(t, 'blinded');
+      return { path: `${A}/blinding/request`, body: { note: 'The control regions are understood.' } };
+    },
+    expect: analystOnly(200),
+  },
+  // a decline: the analysis stays blinded for every other row
+  'POST /api/analyses/:slug/blinding/decision': {
+    call: async (t) => {
+      await setBlinding(t, 'unblinding_requested');
+      return { path: `${A}/blinding/decision`, body: { approve: false, note: 'Not before the approval meeting.' } };
+    },
+    expect: conveners(200),
+  },
+
   // invitations: conveners and admins invite; the link itself is the credential
   'POST /api/analyses/:slug/invitations': { call: (_t, who, n) => ({ path: `${A}/invitations`, body: { email: `guest-${who}-${n}@lantern.example`, role: 'reader' } }), expect: managers(201) },
   'GET /api/invitations/:token': { call: async (t) => ({ path: `/api/invitations/${await freshInvitation(t)}` }), expect: all(200) },
@@ -248,8 +288,24 @@ describe('authorisation of every API route', () => {
     return clients.get(who)!;
   };
 
+  /**
+   * The blinding rule, checked on every cell: the blinded analysis's signal regions get observed
+   * counts no other number in the product looks like (six digits starting 9182), and no
+   * response, to anyone, may contain one of them.
+   */
+  const MARK = /(?<![\d.])9182\d\d(?!\d)/;
   beforeAll(async () => {
     t = await createTestApp();
+    const { analysisId } = await ids(t);
+    const signal = await t.database.db.select().from(regions).where(and(eq(regions.analysisId, analysisId), eq(regions.role, 'signal')));
+    expect(signal.length).toBeGreaterThan(0);
+    for (const r of signal) {
+      const counts = (r.observed ?? []).map((_, i) => 918200 + ((r.id * 17 + i) % 100));
+      expect(counts.length).toBeGreaterThan(0);
+      await t.database.db.update(regions).set({ observed: counts }).where(eq(regions.id, r.id));
+    }
+    // the fit fixture first, while every control region has observed counts
+    await convergedFit(t);
   });
   afterAll(async () => t.close());
 
@@ -271,6 +327,8 @@ describe('authorisation of every API route', () => {
             ? await client.upload(path, file)
             : await client.send(method.toLowerCase() as 'post', path, body);
       expect({ who, status: res.status }).toEqual({ who, status: row.expect[who] });
+      const text = res.text ?? JSON.stringify(res.body ?? null);
+      expect(MARK.test(text), `${name} sent a blinded signal-region count to ${who}`).toBe(false);
       if (res.status === 401 || res.status === 403) {
         expect(res.headers['content-type']).toMatch(/json/);
         expect(res.body.error.message).toEqual(expect.any(String));

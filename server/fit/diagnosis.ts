@@ -1,0 +1,117 @@
+import type { ExchangeModel } from '@shared/schemas/exchange';
+import { fitOptionsSchema, type FitOptionsInput, type ParameterScan } from '@shared/schemas/fit';
+import { curvatureAt } from './covariance';
+import { FitInputError } from './errors';
+import { informationBreakdown } from './information';
+import { JobRunner } from './jobs';
+import { createScratch, minimise } from './minimiser';
+import { buildProblem, startPoint } from './problem';
+import { assembleScan, scanJobs } from './scan';
+import { createWorkspace, evaluateYields, type Workspace } from './yields';
+import type { CompiledModel } from './compiled-model';
+
+/** One bin of a region in the fit, seen from one parameter at the best fit. */
+export interface DiagnosisBinNumbers {
+  bin: number;
+  /** (∂ν/∂θ)²/ν̂ */
+  information: number;
+  /** ν̂ */
+  expected: number;
+  /** ν(θ = +1) − ν(θ = 0) and ν(θ = −1) − ν(θ = 0), every other parameter at its best fit */
+  up: number;
+  down: number;
+  /** the fitted count (observed or Asimov) */
+  data: number;
+}
+
+export interface ParameterDiagnosisNumbers {
+  parameter: string;
+  /** Why there is nothing to show (the fit failed, the parameter is held); null otherwise. */
+  failure: string | null;
+  value: number;
+  error: number | null;
+  information: { total: number; constraint: number; width: number };
+  regions: { region: string; role: 'signal' | 'control' | 'validation'; information: number; bins: DiagnosisBinNumbers[] }[];
+  scan: ParameterScan;
+}
+
+function countsAt(m: CompiledModel, phi: Float64Array, gamma: Float64Array, ws: Workspace): Float64Array {
+  evaluateYields(m, phi, gamma, ws);
+  return Float64Array.from(ws.nu);
+}
+
+/**
+ * Everything the diagnosis panel shows of one nuisance parameter (MODEL.md §6), from one fit of
+ * `model` with `options`: refits to the same minimum as the stored fit (the engine is
+ * deterministic), then per bin of every region in the fit the parameter's information, the
+ * expected count, its ±1 variation in events, and the profile scan of the parameter.
+ * Runs in the calling thread.
+ */
+export function diagnoseParameter(model: ExchangeModel, optionsInput: FitOptionsInput, parameter: string, points = 21): ParameterDiagnosisNumbers {
+  const options = fitOptionsSchema.parse(optionsInput);
+  const problem = buildProblem(model, options);
+  const m = problem.model;
+  const index = m.names.indexOf(parameter);
+  if (index < 0 || index < m.thetaStart) throw new FitInputError(`"${parameter}" is not a nuisance parameter of this model`, ['parameter']);
+  const empty = (failure: string): ParameterDiagnosisNumbers => ({
+    parameter,
+    failure,
+    value: m.start[index],
+    error: null,
+    information: { total: 1, constraint: 1, width: 1 },
+    regions: [],
+    scan: { parameter, failure, bestFit: m.start[index], error: null, points: [], crossings68: { low: null, high: null }, crossings95: null },
+  });
+  if (problem.held[index]) return empty(`${parameter} is held in this fit`);
+  const scratch = createScratch(problem);
+  const s0 = startPoint(m);
+  const min = minimise(problem, s0.phi, s0.gamma, scratch);
+  if (min.status === 'failed' || min.status === 'cancelled') return empty(min.message ?? 'the fit did not converge');
+  const curvature = curvatureAt(problem, min.phi, min.gamma, scratch);
+  if (!curvature.ok) return empty(curvature.message);
+  const ctx = curvature.context;
+
+  const info = informationBreakdown(ctx).find((x) => x.parameter === parameter)!;
+  const ws = createWorkspace(m);
+  const at = (theta: number) => {
+    const phi = Float64Array.from(ctx.phi);
+    phi[index] = theta;
+    return countsAt(m, phi, ctx.gamma, ws);
+  };
+  const best = countsAt(m, ctx.phi, ctx.gamma, ws);
+  const [nominal, up, down] = [at(0), at(1), at(-1)];
+  // per-bin information as the engine computed it; bins below its reporting share are recomputed as 0
+  const binInfo = new Map(info.regions.flatMap((r) => r.bins.map((b) => [`${r.region}\u0000${b.bin}`, b.information] as const)));
+  const regions = m.regions
+    .filter((r) => r.inFit)
+    .map((r) => ({
+      region: r.key,
+      role: r.role,
+      information: info.regions.find((x) => x.region === r.key)?.information ?? 0,
+      bins: Array.from({ length: r.nBins }, (_, j) => {
+        const b = r.firstBin + j;
+        return {
+          bin: j,
+          information: binInfo.get(`${r.key}\u0000${j}`) ?? 0,
+          expected: best[b],
+          up: up[b] - nominal[b],
+          down: down[b] - nominal[b],
+          data: problem.data[b],
+        };
+      }),
+    }));
+
+  const { grid, jobs } = scanJobs(ctx, 0, index, Math.max(3, points));
+  const runner = new JobRunner([ctx]);
+  const scan = assembleScan(ctx, index, grid, jobs.map((j) => runner.run(j)), []);
+  const variance = ctx.V[index * m.nDense + index];
+  return {
+    parameter,
+    failure: null,
+    value: ctx.phi[index],
+    error: variance > 0 ? Math.sqrt(variance) : null,
+    information: { total: info.total, constraint: info.constraint, width: info.width },
+    regions,
+    scan,
+  };
+}

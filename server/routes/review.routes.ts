@@ -1,0 +1,47 @@
+import { z } from 'zod';
+import type { AppContext } from '../context';
+import { accessOf, type authorizer } from '../auth/authorize';
+import { blindingLog, decideUnblinding, requestUnblinding } from '../services/blinding.service';
+import { diagnoseInFit } from '../services/diagnosis.service';
+import { answerQuestion, getQuestion, listQuestions, raiseQuestion, stepQuestion } from '../services/questions.service';
+import { baseUrl } from './base-url';
+import { route, type ApiRoute } from './route';
+
+const fitIdParam = z.coerce.number({ error: 'the fit id in the address must be a number' }).int().positive();
+const questionIdParam = z.coerce.number({ error: 'the question id in the address must be a number' }).int().positive();
+
+/** The convener's review loop: a parameter's diagnosis, questions on parameters, and blinding. */
+export const reviewRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>): ApiRoute[] => [
+  route('get', '/api/analyses/:slug/fits/:fitId/diagnosis/:parameter', auth.may('analysis.read'), async (req, res) => {
+    res.json(await diagnoseInFit(ctx, accessOf(req), fitIdParam.parse(req.params.fitId), String(req.params.parameter)));
+  }),
+
+  route('get', '/api/analyses/:slug/questions', auth.may('analysis.read'), async (req, res) => {
+    res.json(await listQuestions(ctx, accessOf(req), req.query));
+  }),
+  route('post', '/api/analyses/:slug/questions', auth.may('question.raise'), async (req, res) => {
+    res.status(201).json(await raiseQuestion(ctx, accessOf(req), req.body, baseUrl(ctx, req)));
+  }),
+  route('get', '/api/analyses/:slug/questions/:questionId', auth.may('analysis.read'), async (req, res) => {
+    res.json(await getQuestion(ctx, accessOf(req), questionIdParam.parse(req.params.questionId)));
+  }),
+  route('post', '/api/analyses/:slug/questions/:questionId/answers', auth.may('question.answer'), async (req, res) => {
+    res.status(201).json(await answerQuestion(ctx, accessOf(req), questionIdParam.parse(req.params.questionId), req.body, baseUrl(ctx, req)));
+  }),
+  route('post', '/api/analyses/:slug/questions/:questionId/resolve', auth.may('question.resolve'), async (req, res) => {
+    res.json(await stepQuestion(ctx, accessOf(req), questionIdParam.parse(req.params.questionId), 'resolve', req.body, baseUrl(ctx, req)));
+  }),
+  route('post', '/api/analyses/:slug/questions/:questionId/reopen', auth.may('question.resolve'), async (req, res) => {
+    res.json(await stepQuestion(ctx, accessOf(req), questionIdParam.parse(req.params.questionId), 'reopen', req.body, baseUrl(ctx, req)));
+  }),
+
+  route('get', '/api/analyses/:slug/blinding', auth.may('analysis.read'), async (req, res) => {
+    res.json(await blindingLog(ctx, accessOf(req)));
+  }),
+  route('post', '/api/analyses/:slug/blinding/request', auth.may('blinding.request'), async (req, res) => {
+    res.json(await requestUnblinding(ctx, accessOf(req), req.body, baseUrl(ctx, req)));
+  }),
+  route('post', '/api/analyses/:slug/blinding/decision', auth.may('blinding.decide'), async (req, res) => {
+    res.json(await decideUnblinding(ctx, accessOf(req), req.body, baseUrl(ctx, req)));
+  }),
+];

@@ -1,0 +1,215 @@
+import { and, eq } from 'drizzle-orm';
+import { exchangeModelSchema } from '@shared/schemas/exchange';
+import { fitOptionsSchema, type FitResult } from '@shared/schemas/fit';
+import type { Diagnosis, DiagnosisClaim, DiagnosisRegion } from '@shared/schemas/review';
+import type { Access } from '../auth/authorize';
+import type { AppContext } from '../context';
+import { entries, fits, modelVersions, users } from '../db/schema';
+import { conflict, notFound } from '../errors';
+import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
+import { isWithheld } from './blinding.service';
+import { findFit, storedResult, summaryOf } from './fits.service';
+
+/**
+ * The diagnosis of one nuisance parameter in one succeeded fit: the engine's numbers
+ * (fit/diagnosis.ts, computed in their own thread and kept per fit and parameter, since a
+ * finished fit never changes) joined with the stored result (pull, impacts, correlations) and
+ * the register (owner), with the blinding rule applied to the per-bin data, and a summary in
+ * plain words in which every sentence names the panel element that shows its numbers.
+ */
+const numbersCopies = new WeakMap<object, Map<string, Promise<ParameterDiagnosisNumbers>>>();
+const KEEP = 64;
+
+async function numbersFor(ctx: AppContext, fitId: number, versionId: number, options: unknown, parameter: string) {
+  let copies = numbersCopies.get(ctx.db);
+  if (!copies) numbersCopies.set(ctx.db, (copies = new Map()));
+  const key = `${fitId}\u0000${parameter}`;
+  let hit = copies.get(key);
+  if (!hit) {
+    hit = (async () => {
+      const [version] = await ctx.db.select({ model: modelVersions.model }).from(modelVersions).where(eq(modelVersions.id, versionId));
+      return ctx.fits.diagnose(exchangeModelSchema.parse(version.model), fitOptionsSchema.parse(options), parameter);
+    })();
+    copies.set(key, hit);
+    if (copies.size > KEEP) copies.delete(copies.keys().next().value!);
+    hit.catch(() => copies.delete(key));
+  }
+  return hit;
+}
+
+export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: number, parameter: string): Promise<Diagnosis> {
+  const row = await findFit(ctx, access, fitId);
+  if (row.fit.state !== 'succeeded') throw conflict(`Fit ${fitId} has ${row.fit.state === 'failed' ? 'failed' : `not succeeded (${row.fit.state})`}: there is nothing to diagnose.`);
+  const result = (await storedResult(ctx, fitId)) as FitResult;
+  if (result.status !== 'converged') throw conflict(`Fit ${fitId} did not converge: there is nothing to diagnose.`);
+  const report = result.nuisance.find((n) => n.name === parameter);
+  if (!report) throw notFound(`Nuisance parameter "${parameter}" in fit ${fitId}`);
+  if (report.fixed) throw conflict(`${parameter} is held in fit ${fitId}: it has no post-fit width to diagnose.`);
+  const [fitRow] = await ctx.db.select({ versionId: fits.modelVersionId }).from(fits).where(eq(fits.id, fitId));
+  const numbers = await numbersFor(ctx, fitId, fitRow.versionId, row.fit.options, parameter);
+  if (numbers.failure) throw conflict(`The diagnosis of ${parameter} could not be made: ${numbers.failure}.`);
+
+  const [version] = await ctx.db.select({ model: modelVersions.model }).from(modelVersions).where(eq(modelVersions.id, fitRow.versionId));
+  const model = exchangeModelSchema.parse(version.model);
+  const [entry] = await ctx.db
+    .select({ key: entries.key, owner: users.name })
+    .from(entries)
+    .leftJoin(users, eq(users.id, entries.ownerId))
+    .where(and(eq(entries.analysisId, access.analysis.id), eq(entries.key, parameter)));
+  const p = result.parameters.find((x) => x.name === parameter)!;
+  const total = numbers.information.total;
+  const observed = result.data.dataset === 'observed';
+  const regions: DiagnosisRegion[] = numbers.regions.map((r) => {
+    const spec = model.regions.find((x) => x.key === r.region)!;
+    const hidden = observed && isWithheld(access.analysis, { role: r.role });
+    return {
+      region: r.region,
+      label: spec.label ?? r.region,
+      role: r.role,
+      information: r.information,
+      share: r.information / total,
+      bins: r.bins.map((b) => {
+        const precision = Math.sqrt(Math.max(b.expected, 0));
+        return {
+          bin: b.bin,
+          low: spec.edges[b.bin],
+          high: spec.edges[b.bin + 1],
+          information: b.information,
+          share: b.information / total,
+          expected: b.expected,
+          precision,
+          up: b.up,
+          down: b.down,
+          ratio: precision > 0 ? Math.max(Math.abs(b.up), Math.abs(b.down)) / precision : 0,
+          data: hidden ? null : b.data,
+        };
+      }),
+    };
+  });
+
+  const correlation = result.correlation;
+  const labels = new Map(result.parameters.map((x) => [x.name, x.label]));
+  const correlations: Diagnosis['correlations'] = [];
+  if (correlation) {
+    const i = correlation.names.indexOf(parameter);
+    const n = correlation.names.length;
+    if (i >= 0)
+      for (let j = 0; j < n; j++)
+        if (j !== i) correlations.push({ name: correlation.names[j], label: labels.get(correlation.names[j]) ?? correlation.names[j], rho: correlation.values[i * n + j] });
+    correlations.sort((a, b) => Math.abs(b.rho) - Math.abs(a.rho));
+    correlations.splice(8);
+  }
+
+  const base = {
+    value: numbers.value,
+    error: p.error,
+    pull: report.pull,
+    constraint: report.constraint,
+    overConstrained: report.overConstrained,
+    threshold: result.options.overConstraintThreshold,
+    information: { total, constraint: numbers.information.constraint, width: numbers.information.width },
+    regions,
+    correlations,
+    scan: numbers.scan,
+  };
+  return {
+    fit: summaryOf(row.fit, row.version, row.by),
+    parameter: { name: parameter, label: p.label, group: report.group, entry: entry ? { key: entry.key, owner: entry.owner } : null },
+    value: base.value,
+    error: base.error,
+    pull: base.pull,
+    constraint: base.constraint,
+    overConstrained: base.overConstrained,
+    threshold: base.threshold,
+    postfitImpact: report.postfitImpact,
+    prefitImpact: report.prefitImpact,
+    quickImpact: report.quickImpact,
+    rank: report.rank,
+    information: { ...base.information, regions },
+    scan: numbers.scan,
+    correlations,
+    summary: summarise(parameter, base),
+    warnings: result.convergence.warnings,
+  };
+}
+
+const pct = (x: number) => `${Math.round(x * 100)} %`;
+const fixed = (x: number, d = 2) => x.toFixed(d);
+
+/**
+ * The plain-language summary: a few sentences, each resting on numbers the panel shows.
+ * Thresholds are reading aids, stated in the words (common practice, no source): a bin set is
+ * "where the information comes from" once it holds 80 % of the data's part; a width ratio
+ * within 10 % of 1 means the data alone explain the constraint.
+ */
+export function summarise(
+  name: string,
+  d: {
+    pull: number;
+    constraint: number | null;
+    overConstrained: boolean;
+    threshold: number;
+    error: number | null;
+    information: { total: number; constraint: number; width: number };
+    regions: DiagnosisRegion[];
+    correlations: Diagnosis['correlations'];
+  },
+): DiagnosisClaim[] {
+  const claims: DiagnosisClaim[] = [];
+  if (d.constraint !== null)
+    claims.push({
+      text: d.overConstrained
+        ? `The fit narrows ${name} to ${fixed(d.constraint)} of its prior width: over-constrained (the flag is set below ${d.threshold}).`
+        : `The fit narrows ${name} to ${fixed(d.constraint)} of its prior width, above the over-constraint threshold of ${d.threshold}.`,
+      evidence: 'pull',
+    });
+  if (Math.abs(d.pull) >= 1) claims.push({ text: `It is pulled by ${d.pull > 0 ? '+' : ''}${fixed(d.pull)} prior widths from its nominal value.`, evidence: 'pull' });
+
+  const dataInfo = d.information.total - d.information.constraint;
+  if (dataInfo <= 0) {
+    claims.push({ text: `No bin in the fit depends on ${name}: only its prior constrains it.`, evidence: 'regions' });
+  } else {
+    claims.push({
+      text: `${pct(dataInfo / d.information.total)} of its information comes from the data and ${pct(d.information.constraint / d.information.total)} from its prior.`,
+      evidence: 'regions',
+    });
+    // the fewest bins that hold 80 % of the data's information
+    const bins = d.regions.flatMap((r) => r.bins.map((b) => ({ ...b, region: r }))).sort((a, b) => b.information - a.information);
+    const chosen: typeof bins = [];
+    let held = 0;
+    for (const b of bins) {
+      if (held >= 0.8 * dataInfo) break;
+      chosen.push(b);
+      held += b.information;
+    }
+    const byRegion = new Map<string, typeof chosen>();
+    for (const b of chosen) byRegion.set(b.region.label, [...(byRegion.get(b.region.label) ?? []), b]);
+    const where = [...byRegion].map(([label, bs]) => `${bs.length} bin${bs.length === 1 ? '' : 's'} of ${bs[0].region.role} region ${label}`);
+    claims.push({ text: `${pct(held / d.information.total)} of the information comes from ${where.join(' and ')}.`, evidence: 'bins' });
+    const top = chosen[0];
+    if (top && top.precision > 0) {
+      const dir = Math.abs(top.up) >= Math.abs(top.down) ? 'up' : 'down';
+      claims.push({
+        text:
+          top.ratio >= 1
+            ? `In the most informative bin (${top.region.label}, bin ${top.bin + 1}, about ${Math.round(top.expected)} expected events) the ${dir} variation is ${fixed(top.ratio, 1)} times the data's statistical precision: the data resolve this effect well, which narrows the parameter.`
+            : `In the most informative bin (${top.region.label}, bin ${top.bin + 1}) the ${dir} variation is ${fixed(top.ratio, 1)} times the data's statistical precision.`,
+        evidence: 'bins',
+      });
+    }
+  }
+  if (d.error !== null) {
+    const ratio = d.error / d.information.width;
+    claims.push({
+      text:
+        ratio <= 1.1
+          ? `With no correlations its width would be ${fixed(d.information.width, 3)}; the fit gives ${fixed(d.error, 3)}: the data alone explain the constraint.`
+          : `With no correlations its width would be ${fixed(d.information.width, 3)}; the fit gives ${fixed(d.error, 3)} (${fixed(ratio)} times wider): correlations with other parameters loosen it.`,
+      evidence: 'width',
+    });
+  }
+  const strongest = d.correlations[0];
+  if (strongest && Math.abs(strongest.rho) >= 0.3)
+    claims.push({ text: `It is most correlated with ${strongest.name} (ρ = ${strongest.rho >= 0 ? '+' : '−'}${fixed(Math.abs(strongest.rho))}).`, evidence: 'correlations' });
+  return claims;
+}

@@ -1,0 +1,185 @@
+import { z } from 'zod';
+import { impactPairSchema, parameterScanSchema } from './fit';
+import { fitSummarySchema } from './fits';
+
+/**
+ * Contracts of the convener's review loop: the diagnosis of one parameter in one fit, questions
+ * on parameters, and the blinding log with its request and decision.
+ */
+
+// ---- diagnosis of one parameter in one fit (MODEL.md §6)
+
+/** One bin of a region: what constrains the parameter there, next to what the data can resolve. */
+export const diagnosisBinSchema = z.object({
+  /** 0-based bin index and its edges */
+  bin: z.number().int(),
+  low: z.number(),
+  high: z.number(),
+  /** (∂ν/∂θ)²/ν at the best fit, and its share of the parameter's whole information (0–1) */
+  information: z.number(),
+  share: z.number(),
+  /** ν̂: the expected count at the best fit; precision = sqrt(ν̂), the data's statistical precision */
+  expected: z.number(),
+  precision: z.number(),
+  /** Change of the expected count, in events, with this parameter at +1 and at −1 (all else at the best fit). */
+  up: z.number(),
+  down: z.number(),
+  /** max(|up|, |down|) / precision */
+  ratio: z.number(),
+  /** The fitted count in this bin; null while blinding withholds it (signal region of a blinded analysis). */
+  data: z.number().nullable(),
+});
+export type DiagnosisBin = z.infer<typeof diagnosisBinSchema>;
+
+export const diagnosisRegionSchema = z.object({
+  region: z.string(),
+  label: z.string(),
+  role: z.enum(['signal', 'control', 'validation']),
+  information: z.number(),
+  /** share of the whole information (constraint included), 0–1 */
+  share: z.number(),
+  /** every bin of the region, in order */
+  bins: z.array(diagnosisBinSchema),
+});
+export type DiagnosisRegion = z.infer<typeof diagnosisRegionSchema>;
+
+/**
+ * One sentence of the plain-language summary. `evidence` names the panel element that shows
+ * the numbers it rests on: 'pull', 'width', 'bins', 'regions', 'scan' or 'correlations'.
+ */
+export const diagnosisClaimSchema = z.object({
+  text: z.string(),
+  evidence: z.enum(['pull', 'width', 'bins', 'regions', 'scan', 'correlations']),
+});
+export type DiagnosisClaim = z.infer<typeof diagnosisClaimSchema>;
+
+export const diagnosisSchema = z.object({
+  fit: fitSummarySchema,
+  parameter: z.object({
+    name: z.string(),
+    label: z.string(),
+    group: z.string().nullable(),
+    /** the register entry of this parameter, when there is one */
+    entry: z.object({ key: z.string(), owner: z.string().nullable() }).nullable(),
+  }),
+  /** θ̂ and σ̂; the prior is θ = 0 ± 1 */
+  value: z.number(),
+  error: z.number().nullable(),
+  pull: z.number(),
+  constraint: z.number().nullable(),
+  overConstrained: z.boolean(),
+  threshold: z.number(),
+  postfitImpact: impactPairSchema.nullable(),
+  prefitImpact: impactPairSchema.nullable(),
+  quickImpact: z.number().nullable(),
+  rank: z.number().int().nullable(),
+  information: z.object({
+    /** Σ over regions plus the constraint's 1 */
+    total: z.number(),
+    constraint: z.number(),
+    /** 1/sqrt(total): the width with no correlations, to set beside σ̂ */
+    width: z.number(),
+    regions: z.array(diagnosisRegionSchema),
+  }),
+  /** 2ΔNLL against θ, other parameters refitted, with the q = 1 crossings */
+  scan: parameterScanSchema,
+  /** the strongest correlations of this parameter in this fit, |ρ| largest first (at most 8) */
+  correlations: z.array(z.object({ name: z.string(), label: z.string(), rho: z.number() })),
+  summary: z.array(diagnosisClaimSchema),
+  /** Convergence warnings of the fit, shown beside every number of the panel. */
+  warnings: z.array(z.string()),
+});
+export type Diagnosis = z.infer<typeof diagnosisSchema>;
+
+// ---- questions on parameters
+
+export const questionStateSchema = z.enum(['open', 'answered', 'resolved']);
+export type QuestionState = z.infer<typeof questionStateSchema>;
+
+const person = z.object({ id: z.number(), name: z.string() }).nullable();
+
+export const answerSchema = z.object({ id: z.number(), author: person, body: z.string(), createdAt: z.string() });
+export type Answer = z.infer<typeof answerSchema>;
+
+export const questionSummarySchema = z.object({
+  id: z.number(),
+  entry: z.object({ key: z.string(), label: z.string(), group: z.string().nullable(), owner: person }),
+  /** the fit the question was raised on, if any */
+  fit: z.object({ id: z.number(), label: z.string() }).nullable(),
+  title: z.string(),
+  state: questionStateSchema,
+  author: person,
+  answers: z.number(),
+  createdAt: z.string(),
+  /** the latest answer, resolution or reopening */
+  lastActivity: z.string(),
+  resolvedBy: person,
+  resolvedAt: z.string().nullable(),
+});
+export type QuestionSummary = z.infer<typeof questionSummarySchema>;
+
+export const questionDetailSchema = questionSummarySchema.extend({ body: z.string(), thread: z.array(answerSchema) });
+export type QuestionDetail = z.infer<typeof questionDetailSchema>;
+
+/** GET /api/analyses/:slug/questions?state=&owner=&group=&fit=&entry= (every filter optional) */
+export const questionFilterSchema = z.strictObject({
+  state: questionStateSchema.optional(),
+  /** owner's user id */
+  owner: z.coerce.number().int().positive().optional(),
+  group: z.string().max(100).optional(),
+  fit: z.coerce.number().int().positive().optional(),
+  entry: z.string().max(100).optional(),
+});
+export type QuestionFilter = z.infer<typeof questionFilterSchema>;
+
+export const raiseQuestionSchema = z.strictObject({
+  /** the register entry (= nuisance parameter name) */
+  entry: z.string().min(1, 'Name the parameter the question is about.').max(100),
+  fitId: z.number().int().positive().nullable().default(null),
+  title: z.string().trim().min(3, 'Give the question a title of at least 3 characters.').max(200, 'Keep the title under 200 characters.'),
+  body: z.string().trim().min(1, 'Write the question.').max(20_000, 'Keep the question under 20 000 characters.'),
+});
+export type RaiseQuestion = z.input<typeof raiseQuestionSchema>;
+
+export const answerQuestionSchema = z.strictObject({
+  body: z.string().trim().min(1, 'Write an answer.').max(20_000, 'Keep the answer under 20 000 characters.'),
+});
+export type AnswerQuestion = z.infer<typeof answerQuestionSchema>;
+
+/** POST …/questions/:id/resolve and …/reopen: an optional note, added to the thread */
+export const questionStepSchema = z.strictObject({ note: z.string().trim().max(20_000).default('') });
+export type QuestionStep = z.input<typeof questionStepSchema>;
+
+// ---- blinding
+
+export const blindingActionSchema = z.enum(['requested', 'approved', 'declined', 'withdrawn']);
+export type BlindingAction = z.infer<typeof blindingActionSchema>;
+
+export const blindingEventSchema = z.object({
+  id: z.number(),
+  action: blindingActionSchema,
+  note: z.string(),
+  by: z.string().nullable(),
+  at: z.string(),
+});
+export type BlindingEvent = z.infer<typeof blindingEventSchema>;
+
+/** GET /api/analyses/:slug/blinding */
+export const blindingLogSchema = z.object({
+  state: z.enum(['blinded', 'unblinding_requested', 'unblinded']),
+  events: z.array(blindingEventSchema),
+});
+export type BlindingLog = z.infer<typeof blindingLogSchema>;
+
+/** POST …/blinding/request (analyst) */
+export const unblindingRequestSchema = z.strictObject({
+  note: z.string().trim().min(10, 'Say in at least 10 characters why the analysis is ready to unblind.').max(20_000),
+});
+export type UnblindingRequest = z.infer<typeof unblindingRequestSchema>;
+
+/** POST …/blinding/decision (convener) */
+export const unblindingDecisionSchema = z.strictObject({
+  approve: z.boolean(),
+  note: z.string().trim().max(20_000).default(''),
+});
+export type UnblindingDecision = z.input<typeof unblindingDecisionSchema>;
