@@ -101,7 +101,10 @@ export async function dbSnapshot(t: TestApp): Promise<string> {
       'revisions', (select count(*) from revisions),
       'memberships', (select count(*) from memberships),
       'users', (select count(*) from users),
-      'analyses', (select count(*) from analyses)
+      'analyses', (select json_agg(json_build_object('id', a.id, 'blinding', a.blinding) order by a.id) from analyses a),
+      'questions', (select json_agg(json_build_object('id', q.id, 'state', q.state) order by q.id) from questions q),
+      'answers', (select count(*) from answers),
+      'blinding_events', (select count(*) from blinding_events)
     )::text as snapshot`);
   return rows[0].snapshot;
 }

@@ -1,6 +1,6 @@
 import { desc, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
-import { answers, blindingEvents, fits, outbox, questions } from '../../server/db/schema';
+import { answers, fits, outbox, questions } from '../../server/db/schema';
 import { createTestApp, dbSnapshot, DEMO, signedIn, type Client, type TestApp } from './helpers';
 
 const V = '/api/analyses/vireon-search';
@@ -47,7 +47,7 @@ describe('the review loop', () => {
     });
 
     it('refuses a bad question with a message and writes nothing', async () => {
-      const before = await dbSnapshot(t, [questions]);
+      const before = await dbSnapshot(t);
       const empty = await convener.send('post', `${V}/questions`, { entry: 'flare_escale', title: '', body: 'x' });
       expect(empty.status).toBe(400);
       expect(empty.body.error.issues[0]).toMatchObject({ path: ['title'], message: expect.stringMatching(/at least 3 characters/) });
@@ -57,7 +57,7 @@ describe('the review loop', () => {
       const foreignFit = await convener.send('post', `${V}/questions`, { entry: 'flare_escale', fitId: 999, title: 'Title', body: 'x' });
       expect(foreignFit.status).toBe(404);
       expect((await analyst.send('post', `${V}/questions`, { entry: 'flare_escale', title: 'Title', body: 'x' })).status).toBe(403);
-      expect(await dbSnapshot(t, [questions])).toEqual(before);
+      expect(await dbSnapshot(t)).toEqual(before);
       expect(await mail()).toEqual([]);
     });
 
@@ -126,11 +126,11 @@ describe('the review loop', () => {
       expect((await analyst.send('post', `${V}/blinding/request`, { note: 'The control regions are understood.' })).status).toBe(409);
       expect((await reader.get(`/api/analyses/vireon-search`)).body.analysis.blinding).toBe('unblinding_requested');
 
-      const before = await dbSnapshot(t, [blindingEvents]);
+      const before = await dbSnapshot(t);
       const bare = await convener.send('post', `${V}/blinding/decision`, { approve: false });
       expect(bare.status).toBe(400);
       expect(bare.body.error.message).toMatch(/Say why you decline/);
-      expect(await dbSnapshot(t, [blindingEvents])).toEqual(before);
+      expect(await dbSnapshot(t)).toEqual(before);
       const declined = await convener.send('post', `${V}/blinding/decision`, { approve: false, note: 'After the approval meeting.' });
       expect(declined.body.state).toBe('blinded');
       expect((await mail())[0].subject).toBe('[vireon-search] Unblinding declined by Mira Quellbright');
