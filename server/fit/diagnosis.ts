@@ -1,11 +1,9 @@
 import type { ExchangeModel } from '@shared/schemas/exchange';
-import { fitOptionsSchema, type FitOptionsInput, type ParameterScan } from '@shared/schemas/fit';
-import { curvatureAt } from './covariance';
+import type { FitOptionsInput, ParameterScan } from '@shared/schemas/fit';
 import { FitInputError } from './errors';
 import { informationBreakdown } from './information';
 import { JobRunner } from './jobs';
-import { createScratch, minimise } from './minimiser';
-import { buildProblem, startPoint } from './problem';
+import { bestFitFor } from './parameter-scan';
 import { assembleScan, scanJobs } from './scan';
 import { createWorkspace, evaluateYields, type Workspace } from './yields';
 import type { CompiledModel } from './compiled-model';
@@ -48,28 +46,21 @@ function countsAt(m: CompiledModel, phi: Float64Array, gamma: Float64Array, ws: 
  * Runs in the calling thread.
  */
 export function diagnoseParameter(model: ExchangeModel, optionsInput: FitOptionsInput, parameter: string, points = 21): ParameterDiagnosisNumbers {
-  const options = fitOptionsSchema.parse(optionsInput);
-  const problem = buildProblem(model, options);
-  const m = problem.model;
-  const index = m.names.indexOf(parameter);
-  if (index < 0 || index < m.thetaStart) throw new FitInputError(`"${parameter}" is not a nuisance parameter of this model`, ['parameter']);
-  const empty = (failure: string): ParameterDiagnosisNumbers => ({
-    parameter,
-    failure,
-    value: m.start[index],
-    error: null,
-    information: { total: 1, constraint: 1, width: 1 },
-    regions: [],
-    scan: { parameter, failure, bestFit: m.start[index], error: null, points: [], crossings68: { low: null, high: null }, crossings95: null },
-  });
-  if (problem.held[index]) return empty(`${parameter} is held in this fit`);
-  const scratch = createScratch(problem);
-  const s0 = startPoint(m);
-  const min = minimise(problem, s0.phi, s0.gamma, scratch);
-  if (min.status === 'failed' || min.status === 'cancelled') return empty(min.message ?? 'the fit did not converge');
-  const curvature = curvatureAt(problem, min.phi, min.gamma, scratch);
-  if (!curvature.ok) return empty(curvature.message);
-  const ctx = curvature.context;
+  const fitted = bestFitFor(model, optionsInput, parameter, (index, m) => index >= m.thetaStart);
+  if (fitted.unknown) throw new FitInputError(`"${parameter}" is not a nuisance parameter of this model`, ['parameter']);
+  const { problem, m, index, ctx } = fitted;
+  if (!ctx) {
+    const failure = fitted.failure ?? 'the fit did not converge';
+    return {
+      parameter,
+      failure,
+      value: m.start[index],
+      error: null,
+      information: { total: 1, constraint: 1, width: 1 },
+      regions: [],
+      scan: { parameter, failure, bestFit: m.start[index], error: null, points: [], crossings68: { low: null, high: null }, crossings95: null },
+    };
+  }
 
   const info = informationBreakdown(ctx).find((x) => x.parameter === parameter)!;
   const ws = createWorkspace(m);

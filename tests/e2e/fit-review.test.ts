@@ -1,19 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { syntheticModel } from '../../server/fit';
-import { screenshot, serverAndBrowser, signIn, type Browser } from './support';
+import { screenshot, serverAndBrowser, signIn, type Browser, api } from './support';
 
 /** Calls the API from the signed-in page, with the CSRF token, and returns the JSON answer. */
-async function api(browser: Browser, method: string, path: string, body?: unknown) {
-  return browser.page.evaluate(
-    async ({ method, path, body }) => {
-      const token = (await (await fetch('/api/auth/csrf')).json()).token;
-      const res = await fetch(path, { method, headers: { 'content-type': 'application/json', 'x-csrf-token': token }, body: body === undefined ? undefined : JSON.stringify(body) });
-      return { status: res.status, body: await res.json().catch(() => null) };
-    },
-    { method, path, body },
-  );
-}
-
 async function waitForFit(browser: Browser, slug: string, id: number) {
   for (let i = 0; i < 600; i++) {
     const { body } = await api(browser, 'GET', `/api/analyses/${slug}/fits/${id}`);

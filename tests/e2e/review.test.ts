@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { screenshot, serverAndBrowser, signIn, type Browser } from './support';
+import { screenshot, serverAndBrowser, signIn, type Browser, api } from './support';
 
 /**
  * The review loop on the demo analysis "cascade-rate" (unblinded; halo_norm is its over-constrained
@@ -8,17 +8,6 @@ import { screenshot, serverAndBrowser, signIn, type Browser } from './support';
  */
 
 const SLUG = 'cascade-rate';
-
-async function api(browser: Browser, method: string, path: string, body?: unknown) {
-  return browser.page.evaluate(
-    async ({ method, path, body }) => {
-      const token = (await (await fetch('/api/auth/csrf')).json()).token;
-      const res = await fetch(path, { method, headers: { 'content-type': 'application/json', 'x-csrf-token': token }, body: body === undefined ? undefined : JSON.stringify(body) });
-      return { status: res.status, body: await res.json().catch(() => null) };
-    },
-    { method, path, body },
-  );
-}
 
 async function as(live: { browser: Browser; server: { url: string } }, email: string) {
   await live.browser.context.clearCookies();

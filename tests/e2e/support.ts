@@ -109,3 +109,15 @@ export function serverAndBrowser(env: Record<string, string> = {}) {
   });
   return held;
 }
+
+/** An API call from the signed-in page (with its CSRF token), as the client makes it. */
+export async function api(browser: Browser, method: string, path: string, body?: unknown) {
+  return browser.page.evaluate(
+    async ({ method, path, body }) => {
+      const token = (await (await fetch('/api/auth/csrf')).json()).token;
+      const res = await fetch(path, { method, headers: { 'content-type': 'application/json', 'x-csrf-token': token }, body: body === undefined ? undefined : JSON.stringify(body) });
+      return { status: res.status, body: await res.json().catch(() => null) };
+    },
+    { method, path, body },
+  );
+}
