@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { useState, type ReactNode } from 'react';
 import { Button } from './button';
 import { FormError } from './error-notice';
 
@@ -12,21 +12,25 @@ export function ConfirmButton({
   error,
   onCancel,
   ariaLabel,
+  align = 'end',
 }: {
   label: string;
-  question: string;
+  question: ReactNode;
   confirmLabel: string;
   onConfirm: () => void;
   busy?: boolean;
   error?: unknown;
   onCancel?: () => void;
   ariaLabel?: string;
+  /** Which side the button and the question keep to. */
+  align?: 'start' | 'end';
 }) {
   const [asking, setAsking] = useState(false);
+  const end = align === 'end';
   return (
-    <div className="flex flex-col items-end gap-1">
+    <div className={`flex flex-col gap-1 ${end ? 'items-end' : 'items-start'}`}>
       {asking ? (
-        <div className="flex flex-wrap items-center justify-end gap-1.5">
+        <div className={`flex flex-wrap items-center gap-1.5 ${end ? 'justify-end' : ''}`}>
           <span className="text-xs text-ink-soft">{question}</span>
           <Button size="sm" variant="danger" busy={busy} onClick={onConfirm}>
             {confirmLabel}

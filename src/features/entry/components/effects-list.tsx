@@ -1,7 +1,5 @@
-import { useState } from 'react';
 import type { EntryDetail } from '@shared/schemas/register';
-import { Button } from '../../../components/ui/button';
-import { FormError } from '../../../components/ui/error-notice';
+import { ConfirmButton } from '../../../components/ui/confirm-button';
 import { formatDateTime } from '../../../lib/format';
 import { useDeleteEffect } from '../api/delete-effect';
 import { EffectCard, type RegionInfo } from './effect-card';
@@ -23,28 +21,19 @@ function Provenance({ upload }: { upload: Effect['upload'] }) {
 }
 
 function RemoveEffect({ slug, entryKey, effect }: { slug: string; entryKey: string; effect: Effect }) {
-  const [confirming, setConfirming] = useState(false);
   const remove = useDeleteEffect(slug, entryKey);
   const name = `${effect.region} × ${effect.process} (${effect.kind})`;
   return (
-    <div className="flex flex-col gap-1">
-      {confirming ? (
-        <div className="flex flex-wrap items-center gap-1.5">
-          <span className="text-xs">Remove the {effect.kind} effect on {effect.region} × {effect.process}?</span>
-          <Button size="sm" variant="danger" busy={remove.isPending} onClick={() => remove.mutate(effect.id)}>
-            Remove
-          </Button>
-          <Button size="sm" variant="ghost" onClick={() => setConfirming(false)}>
-            Keep
-          </Button>
-        </div>
-      ) : (
-        <Button size="sm" variant="ghost" className="self-start" aria-label={`Remove effect ${name}`} onClick={() => setConfirming(true)}>
-          Remove effect
-        </Button>
-      )}
-      <FormError error={remove.error} />
-    </div>
+    <ConfirmButton
+      align="start"
+      label="Remove effect"
+      ariaLabel={`Remove effect ${name}`}
+      question={`Remove the ${effect.kind} effect on ${effect.region} × ${effect.process}?`}
+      confirmLabel="Remove"
+      busy={remove.isPending}
+      error={remove.error}
+      onConfirm={() => remove.mutate(effect.id)}
+    />
   );
 }
 

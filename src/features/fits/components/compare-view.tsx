@@ -1,5 +1,6 @@
 import { useSearchParams } from 'react-router';
 import type { FitComparison, FitSummary } from '@shared/schemas/fits';
+import { SelectField } from '../../../components/ui/field';
 import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { QueryView } from '../../../components/ui/query-view';
 import { formatDateTime } from '../../../lib/format';
@@ -125,25 +126,20 @@ export function CompareView({ slug, fitId }: { slug: string; fitId: number }) {
   const others = (fits.data ?? []).filter((f) => f.id !== fitId && f.state === 'succeeded');
   return (
     <div className="flex flex-col gap-4">
-      <div className="flex flex-col gap-1">
-        <label htmlFor="compare-with" className="text-xs font-semibold text-ink-soft">
-          Compare with
-        </label>
-        <select
-          id="compare-with"
-          value={otherId ?? ''}
-          onChange={(e) => setParams(e.target.value ? { with: e.target.value } : {}, { replace: true })}
-          className="max-w-xl rounded-md border border-rule-strong bg-paper-raised px-2 py-1.5 text-sm"
-        >
-          <option value="">Choose another fit…</option>
-          {others.map((f) => (
-            <option key={f.id} value={f.id}>
-              {fitName(f)}: {datasetInWords(f.options)}, {formatDateTime(f.createdAt)}
-            </option>
-          ))}
-        </select>
-        {fits.isSuccess && others.length === 0 && <p className="text-xs text-ink-muted">No other finished fit in this analysis yet.</p>}
-      </div>
+      <SelectField
+        label="Compare with"
+        value={otherId ?? ''}
+        onChange={(e) => setParams(e.target.value ? { with: e.target.value } : {}, { replace: true })}
+        className="max-w-xl"
+        hint={fits.isSuccess && others.length === 0 ? 'No other finished fit in this analysis yet.' : undefined}
+      >
+        <option value="">Choose another fit…</option>
+        {others.map((f) => (
+          <option key={f.id} value={f.id}>
+            {fitName(f)}: {datasetInWords(f.options)}, {formatDateTime(f.createdAt)}
+          </option>
+        ))}
+      </SelectField>
       {otherId !== null && (
         <QueryView query={comparison} loadingLabel="Comparing the fits…">
           {(c) => (

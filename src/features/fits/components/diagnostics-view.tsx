@@ -1,5 +1,6 @@
 import { useSearchParams } from 'react-router';
 import type { FitResultHead } from '@shared/schemas/fits';
+import { SelectField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
 import { ErrorNotice } from '../../../components/ui/error-notice';
 import { Loading } from '../../../components/ui/loading';
@@ -40,27 +41,22 @@ export function DiagnosticsView({ slug, fitId, result }: { slug: string; fitId: 
   const held = new Set(result.nuisance.filter((n) => n.fixed).map((n) => n.name));
   return (
     <div className="flex flex-col gap-4">
-      <div className="flex flex-col gap-1">
-        <label htmlFor="diag-parameter" className="text-xs font-semibold text-ink-soft">
-          Parameter
-        </label>
-        <select
-          id="diag-parameter"
-          value={name ?? ''}
-          onChange={(e) => setParams(e.target.value ? { parameter: e.target.value } : {}, { replace: true })}
-          className="max-w-md rounded-md border border-rule-strong bg-paper-raised px-2 py-1.5 text-sm"
-        >
-          <option value="">Choose a nuisance parameter…</option>
-          {choices.map((c) => (
-            <option key={c} value={c} disabled={held.has(c)}>
-              {c}
-              {labels.get(c) && labels.get(c) !== c ? ` (${labels.get(c)})` : ''}
-              {held.has(c) ? ' — held, nothing to diagnose' : ''}
-            </option>
-          ))}
-        </select>
-        {!name && <p className="text-xs text-ink-muted">Or click a parameter in the impact ranking, the pulls or the correlations.</p>}
-      </div>
+      <SelectField
+        label="Parameter"
+        value={name ?? ''}
+        onChange={(e) => setParams(e.target.value ? { parameter: e.target.value } : {}, { replace: true })}
+        className="max-w-md"
+        hint={name ? undefined : 'Or click a parameter in the impact ranking, the pulls or the correlations.'}
+      >
+        <option value="">Choose a nuisance parameter…</option>
+        {choices.map((c) => (
+          <option key={c} value={c} disabled={held.has(c)}>
+            {c}
+            {labels.get(c) && labels.get(c) !== c ? ` (${labels.get(c)})` : ''}
+            {held.has(c) ? ' — held, nothing to diagnose' : ''}
+          </option>
+        ))}
+      </SelectField>
       {name && <ParameterDiagnosis key={name} slug={slug} fitId={fitId} result={result} name={name} />}
       <Panel title="Convergence report">
         <ConvergenceReport convergence={result.convergence} status={result.status} />

@@ -1,3 +1,4 @@
+import { SelectField } from '../../../components/ui/field';
 import { groupName } from '../result-helpers';
 
 /** The groups present among some parameters, alphabetically, "(no group)" last. */
@@ -8,20 +9,15 @@ export function groupsOf(list: { group: string | null }[]): string[] {
 
 const ALL = '\u0000all';
 
-export function GroupFilter({ id, groups, value, onChange }: { id: string; groups: string[]; value: string | null; onChange: (g: string | null) => void }) {
+export function GroupFilter({ groups, value, onChange }: { groups: string[]; value: string | null; onChange: (g: string | null) => void }) {
   return (
-    <div className="flex flex-col gap-1">
-      <label htmlFor={id} className="text-xs font-semibold text-ink-soft">
-        Group
-      </label>
-      <select id={id} value={value ?? ALL} onChange={(e) => onChange(e.target.value === ALL ? null : e.target.value)} className="max-w-56 rounded-md border border-rule-strong bg-paper-raised px-2 py-1.5 text-sm">
-        <option value={ALL}>All groups</option>
-        {groups.map((g) => (
-          <option key={g} value={g}>
-            {g}
-          </option>
-        ))}
-      </select>
-    </div>
+    <SelectField label="Group" value={value ?? ALL} onChange={(e) => onChange(e.target.value === ALL ? null : e.target.value)} className="max-w-56">
+      <option value={ALL}>All groups</option>
+      {groups.map((g) => (
+        <option key={g} value={g}>
+          {g}
+        </option>
+      ))}
+    </SelectField>
   );
 }

@@ -14,6 +14,7 @@ import {
 } from '@tanstack/react-table';
 import type { NuisanceReport } from '@shared/schemas/fit';
 import type { FitResultHead } from '@shared/schemas/fits';
+import { SelectField } from '../../../components/ui/field';
 import { tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { SortableTh } from '../../../components/ui/sortable-th';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
@@ -199,19 +200,14 @@ export function ImpactTable({ slug, fitId, result, marks, onRaise }: { slug: str
   return (
     <div className="flex flex-col gap-3">
       <div className="flex flex-wrap items-end gap-3">
-        <div className="flex flex-col gap-1">
-          <label htmlFor="impact-top" className="text-xs font-semibold text-ink-soft">
-            Show
-          </label>
-          <select id="impact-top" value={top} onChange={(e) => setTop(Number(e.target.value))} className="rounded-md border border-rule-strong bg-paper-raised px-2 py-1.5 text-sm">
-            {TOP_CHOICES.map((n) => (
-              <option key={n} value={n}>
-                {n === 0 ? 'all' : `top ${n}`}
-              </option>
-            ))}
-          </select>
-        </div>
-        <GroupFilter id="impact-group" groups={groupsOf(ranked)} value={group} onChange={setGroup} />
+        <SelectField label="Show" value={top} onChange={(e) => setTop(Number(e.target.value))}>
+          {TOP_CHOICES.map((n) => (
+            <option key={n} value={n}>
+              {n === 0 ? 'all' : `top ${n}`}
+            </option>
+          ))}
+        </SelectField>
+        <GroupFilter groups={groupsOf(ranked)} value={group} onChange={setGroup} />
         <p className="text-xs text-ink-muted" aria-live="polite">
           {rows.length} of {ranked.length} free nuisance parameters
           {held.length > 0 && `; ${held.length} held at their start value`}

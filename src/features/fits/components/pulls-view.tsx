@@ -5,7 +5,7 @@ import type { NuisanceReport } from '@shared/schemas/fit';
 import type { FitResultHead } from '@shared/schemas/fits';
 import { BottomAxis } from '../../../components/charts/axes';
 import { ExportButtons } from '../../../components/charts/export-buttons';
-import { CheckboxField } from '../../../components/ui/field';
+import { CheckboxField, SelectField } from '../../../components/ui/field';
 import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { theme } from '../../../lib/palette';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
@@ -46,7 +46,7 @@ const ROW = 17;
 const W = 640;
 const M = { left: 178, right: 96, top: 8, bottom: 36 };
 
-/** Every nuisance parameter's pull (dot) and post-fit width (bar) against the prior band [−1, 1], ±2 lighter. */
+/** A row of the pulls chart: a group's heading or one parameter. */
 type Line = { kind: 'group'; name: string } | { kind: 'parameter'; r: NuisanceReport };
 
 /** Every nuisance parameter's pull (dot) and post-fit width (bar) against the prior band [−1, 1], ±2 lighter. */
@@ -199,19 +199,14 @@ export function PullsView({ result, slug, fitId, marks }: { result: FitResultHea
   return (
     <div className="flex flex-col gap-4">
       <div className="flex flex-wrap items-end gap-3">
-        <div className="flex flex-col gap-1">
-          <label htmlFor="pulls-sort" className="text-xs font-semibold text-ink-soft">
-            Sort by
-          </label>
-          <select id="pulls-sort" value={sort} onChange={(e) => setSort(e.target.value as PullSort)} className="rounded-md border border-rule-strong bg-paper-raised px-2 py-1.5 text-sm">
-            {SORTS.map((s) => (
-              <option key={s.id} value={s.id}>
-                {s.label}
-              </option>
-            ))}
-          </select>
-        </div>
-        <GroupFilter id="pulls-group" groups={groupsOf(result.nuisance)} value={group} onChange={setGroup} />
+        <SelectField label="Sort by" value={sort} onChange={(e) => setSort(e.target.value as PullSort)}>
+          {SORTS.map((s) => (
+            <option key={s.id} value={s.id}>
+              {s.label}
+            </option>
+          ))}
+        </SelectField>
+        <GroupFilter groups={groupsOf(result.nuisance)} value={group} onChange={setGroup} />
         <CheckboxField label="Only flagged parameters" checked={flaggedOnly} onChange={(e) => setFlaggedOnly(e.target.checked)} className="pb-1.5" />
         <p className="pb-1.5 text-xs text-ink-muted" aria-live="polite">
           {rows.length} of {result.nuisance.length} shown ·{' '}

@@ -1,7 +1,6 @@
-import { useState } from 'react';
 import type { Member } from '@shared/schemas/api';
 import { MEMBER_ROLES, ROLE_LABELS, type MemberRole } from '@shared/permissions';
-import { Button } from '../../../components/ui/button';
+import { ConfirmButton } from '../../../components/ui/confirm-button';
 import { FormError } from '../../../components/ui/error-notice';
 import { tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { formatDate } from '../../../lib/format';
@@ -33,27 +32,18 @@ function RoleSelect({ slug, member }: { slug: string; member: Member }) {
 }
 
 function RemoveButton({ slug, member }: { slug: string; member: Member }) {
-  const [confirming, setConfirming] = useState(false);
   const remove = useRemoveMember(slug);
-  if (!confirming)
-    return (
-      <Button size="sm" variant="ghost" onClick={() => setConfirming(true)} aria-label={`Remove ${member.name}`}>
-        Remove
-      </Button>
-    );
   return (
-    <div className="flex flex-col items-end gap-1">
-      <div className="flex items-center gap-1.5">
-        <span className="text-xs text-ink-soft">Remove {member.name}?</span>
-        <Button size="sm" variant="danger" busy={remove.isPending} onClick={() => remove.mutate(member.userId)}>
-          Confirm removal
-        </Button>
-        <Button size="sm" variant="ghost" onClick={() => { setConfirming(false); remove.reset(); }}>
-          Keep
-        </Button>
-      </div>
-      {remove.error && <FormError error={remove.error} />}
-    </div>
+    <ConfirmButton
+      label="Remove"
+      ariaLabel={`Remove ${member.name}`}
+      question={`Remove ${member.name}?`}
+      confirmLabel="Confirm removal"
+      busy={remove.isPending}
+      error={remove.error}
+      onCancel={remove.reset}
+      onConfirm={() => remove.mutate(member.userId)}
+    />
   );
 }
 

@@ -1,8 +1,7 @@
 import type { QuestionFilter } from '@shared/schemas/review';
 import { questionStateSchema } from '@shared/schemas/review';
+import { SelectField } from '../../../components/ui/field';
 import { QUESTION_STATE_META, QUESTION_STATES } from '../question-states';
-
-const selectClass = 'max-w-56 rounded-md border border-rule-strong bg-paper-raised px-2 py-1.5 text-sm';
 
 /** The filter named by the URL's search parameters; anything malformed is ignored. */
 export function filterFromParams(params: URLSearchParams): QuestionFilter {
@@ -22,21 +21,16 @@ export function filterFromParams(params: URLSearchParams): QuestionFilter {
 
 type Choice = { value: string; label: string };
 
-function Select({ id, label, value, choices, onChange }: { id: string; label: string; value: string; choices: Choice[]; onChange: (v: string) => void }) {
+function Select({ label, value, choices, onChange }: { label: string; value: string; choices: Choice[]; onChange: (v: string) => void }) {
   return (
-    <div className="flex flex-col gap-1">
-      <label htmlFor={id} className="text-xs font-semibold text-ink-soft">
-        {label}
-      </label>
-      <select id={id} value={value} onChange={(e) => onChange(e.target.value)} className={selectClass}>
-        <option value="">Any</option>
-        {choices.map((c) => (
-          <option key={c.value} value={c.value}>
-            {c.label}
-          </option>
-        ))}
-      </select>
-    </div>
+    <SelectField label={label} value={value} onChange={(e) => onChange(e.target.value)} className="max-w-56">
+      <option value="">Any</option>
+      {choices.map((c) => (
+        <option key={c.value} value={c.value}>
+          {c.label}
+        </option>
+      ))}
+    </SelectField>
   );
 }
 
@@ -56,10 +50,10 @@ export function QuestionFilters({
 }) {
   return (
     <div className="flex flex-wrap items-end gap-3" role="group" aria-label="Filters">
-      <Select id="q-state" label="State" value={filter.state ?? ''} choices={QUESTION_STATES.map((s) => ({ value: s, label: QUESTION_STATE_META[s].label }))} onChange={(v) => onChange('state', v)} />
-      <Select id="q-owner" label="Owner" value={filter.owner ? String(filter.owner) : ''} choices={owners} onChange={(v) => onChange('owner', v)} />
-      <Select id="q-group" label="Group" value={filter.group ?? ''} choices={groups.map((g) => ({ value: g, label: g }))} onChange={(v) => onChange('group', v)} />
-      <Select id="q-fit" label="Fit" value={filter.fit ? String(filter.fit) : ''} choices={fits} onChange={(v) => onChange('fit', v)} />
+      <Select label="State" value={filter.state ?? ''} choices={QUESTION_STATES.map((s) => ({ value: s, label: QUESTION_STATE_META[s].label }))} onChange={(v) => onChange('state', v)} />
+      <Select label="Owner" value={filter.owner ? String(filter.owner) : ''} choices={owners} onChange={(v) => onChange('owner', v)} />
+      <Select label="Group" value={filter.group ?? ''} choices={groups.map((g) => ({ value: g, label: g }))} onChange={(v) => onChange('group', v)} />
+      <Select label="Fit" value={filter.fit ? String(filter.fit) : ''} choices={fits} onChange={(v) => onChange('fit', v)} />
       {filter.entry && (
         <button type="button" onClick={() => onChange('entry', '')} className="mb-1 rounded-full border border-rule-strong bg-paper-raised px-2 py-0.5 text-xs" aria-label={`Remove the parameter filter ${filter.entry}`}>
           parameter <span className="font-mono">{filter.entry}</span> ✕

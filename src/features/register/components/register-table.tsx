@@ -1,4 +1,4 @@
-import { memo, startTransition, useMemo, useState, type ReactNode } from 'react';
+import { memo, startTransition, useMemo, useState } from 'react';
 import { Link } from 'react-router';
 import {
   columnFilteringFeature,
@@ -21,6 +21,7 @@ import {
 } from '@tanstack/react-table';
 import type { EntryState, EntrySummary } from '@shared/schemas/api';
 import { EmptyState } from '../../../components/ui/empty-state';
+import { SelectField } from '../../../components/ui/field';
 import { tableClass, tdClass } from '../../../components/ui/page';
 import { SortableTh } from '../../../components/ui/sortable-th';
 import { formatPercent } from '../../../lib/format';
@@ -188,23 +189,16 @@ const NOWRAP = new Set(['key', 'group', 'owner', 'state', 'largestEffect', 'warn
 /** Sentinel of the "any" choice of a filter select (every real value, '' included, is a choice). */
 const ANY = '\u0000any';
 
-const selectClass = 'rounded-md border border-rule-strong bg-paper-raised px-2 py-1.5 text-sm';
-
-function FilterSelect({ id, label, value, onChange, options }: { id: string; label: string; value: string; onChange: (v: string) => void; options: { value: string; label: string }[] }) {
+function FilterSelect({ label, value, onChange, options }: { label: string; value: string; onChange: (v: string) => void; options: { value: string; label: string }[] }) {
   return (
-    <div className="flex flex-col gap-1">
-      <label htmlFor={id} className="text-xs font-semibold text-ink-soft">
-        {label}
-      </label>
-      <select id={id} value={value} onChange={(e) => onChange(e.target.value)} className={`${selectClass} max-w-48`}>
-        <option value={ANY}>Any</option>
-        {options.map((o) => (
-          <option key={o.value} value={o.value}>
-            {o.label}
-          </option>
-        ))}
-      </select>
-    </div>
+    <SelectField label={label} value={value} onChange={(e) => onChange(e.target.value)} className="max-w-48">
+      <option value={ANY}>Any</option>
+      {options.map((o) => (
+        <option key={o.value} value={o.value}>
+          {o.label}
+        </option>
+      ))}
+    </SelectField>
   );
 }
 
@@ -280,7 +274,7 @@ function SearchBox({ onSearch }: { onSearch: (text: string) => void }) {
   );
 }
 
-export function RegisterTable({ slug, entries, actions }: { slug: string; entries: EntrySummary[]; actions?: ReactNode }) {
+export function RegisterTable({ slug, entries }: { slug: string; entries: EntrySummary[] }) {
   const columns = useMemo(() => makeColumns(slug), [slug]);
   const [sorting, setSorting] = useState<SortingState>([{ id: 'key', desc: false }]);
   const [globalFilter, setGlobalFilter] = useState('');
@@ -332,7 +326,6 @@ export function RegisterTable({ slug, entries, actions }: { slug: string; entrie
   if (entries.length === 0)
     return (
       <div className="flex flex-col gap-3">
-        {actions && <div className="flex justify-end">{actions}</div>}
         <EmptyState title="The register is empty">
           <p>Register entries, one per systematic uncertainty, will be listed here once analysts create them.</p>
         </EmptyState>
@@ -343,12 +336,11 @@ export function RegisterTable({ slug, entries, actions }: { slug: string; entrie
     <div>
       <div className="mb-3 flex flex-wrap items-end gap-3">
         <SearchBox onSearch={setGlobalFilter} />
-        <FilterSelect id="register-group" label="Group" value={filterValue('group')} onChange={setFilter('group')} options={choices.group} />
-        <FilterSelect id="register-owner" label="Owner" value={filterValue('owner')} onChange={setFilter('owner')} options={choices.owner} />
-        <FilterSelect id="register-state" label="State" value={filterValue('state')} onChange={setFilter('state')} options={choices.state} />
+        <FilterSelect label="Group" value={filterValue('group')} onChange={setFilter('group')} options={choices.group} />
+        <FilterSelect label="Owner" value={filterValue('owner')} onChange={setFilter('owner')} options={choices.owner} />
+        <FilterSelect label="State" value={filterValue('state')} onChange={setFilter('state')} options={choices.state} />
         <div className="ml-auto flex items-end gap-2">
           <ColumnMenu table={table} />
-          {actions}
         </div>
       </div>
       <p className="mb-1.5 text-xs text-ink-muted" aria-live="polite">
