@@ -7,7 +7,6 @@ import { Piscina } from 'piscina';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptions } from '@shared/schemas/fit';
 import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
-import { FitInputError } from '../fit/errors';
 import { workerExecArgv } from '../fit/pool';
 import type { DiagnosisTask } from './diagnosis.worker';
 import { JobError, startJobThread, type JobThread } from './fit-job';
@@ -143,15 +142,8 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
     idle: async () => {
       while (draining) await draining;
     },
-    diagnose: async (model, fitOptions, parameter) => {
-      try {
-        return (await diagnosisThread().run({ model, options: fitOptions, parameter, niceness: options.niceness ?? 0 } satisfies DiagnosisTask)) as ParameterDiagnosisNumbers;
-      } catch (e) {
-        // the engine's own refusals (an unknown parameter) keep their message
-        if (e instanceof Error && e.name === 'FitInputError') throw new FitInputError(e.message, []);
-        throw e;
-      }
-    },
+    diagnose: async (model, fitOptions, parameter) =>
+      (await diagnosisThread().run({ model, options: fitOptions, parameter, niceness: options.niceness ?? 0 } satisfies DiagnosisTask)) as ParameterDiagnosisNumbers,
     close: async () => {
       await diagnoses?.destroy();
       queue.length = 0;

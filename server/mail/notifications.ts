@@ -19,11 +19,13 @@ async function emailsOf(ctx: AppContext, analysisId: number, role: MemberRole) {
   return rows.map((r) => r.email);
 }
 
-async function ownerEmail(ctx: AppContext, entry: Entry) {
-  if (!entry.ownerId) return [];
-  const [u] = await ctx.db.select({ email: users.email }).from(users).where(eq(users.id, entry.ownerId));
+async function emailOf(ctx: AppContext, userId: number | null) {
+  if (!userId) return [];
+  const [u] = await ctx.db.select({ email: users.email }).from(users).where(eq(users.id, userId));
   return u ? [u.email] : [];
 }
+
+const ownerEmail = (ctx: AppContext, entry: Entry) => emailOf(ctx, entry.ownerId);
 
 export async function notifyInvitation(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; email: string; role: MemberRole; inviter: string; token: string }) {
   await ctx.mailer.send({
@@ -79,12 +81,6 @@ export async function notifySentBack(ctx: AppContext, p: { baseUrl: string; anal
 
 type QuestionMail = { baseUrl: string; analysis: AnalysisRow; questionId: number; title: string; entry: Entry; by: string; byId: number };
 const questionLink = (p: QuestionMail) => `${p.baseUrl}/a/${p.analysis.slug}/questions/${p.questionId}`;
-
-async function emailOf(ctx: AppContext, userId: number | null) {
-  if (!userId) return [];
-  const [u] = await ctx.db.select({ email: users.email }).from(users).where(eq(users.id, userId));
-  return u ? [u.email] : [];
-}
 
 /** Everyone to tell, less the person who acted (they know). */
 async function without(ctx: AppContext, byId: number, lists: Promise<string[]>[]) {

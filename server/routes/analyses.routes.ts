@@ -1,4 +1,3 @@
-import { z } from 'zod';
 import type { AppContext } from '../context';
 import { accessOf, type authorizer } from '../auth/authorize';
 import { createAnalysis, getOverview, listAnalyses } from '../services/analyses.service';
@@ -6,9 +5,9 @@ import { addMember, changeRole, listMembers, removeMember } from '../services/me
 import { getModel } from '../services/model.service';
 import { listEntriesEncoded } from '../services/register.service';
 import { sendEncoded } from './encoded';
-import { route, type ApiRoute } from './route';
+import { idParam, route, type ApiRoute } from './route';
 
-const userIdParam = z.coerce.number({ error: 'the user id in the address must be a number' }).int().positive();
+const userIdParam = idParam('user id');
 
 export const analysesRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>): ApiRoute[] => [
   route('get', '/api/analyses', auth.signedIn, async (req, res) => {

@@ -5,12 +5,10 @@ import { cancelFit, compareFits, exportFit, getFitEncoded, listFits, startFit } 
 import { freezeVersion, listVersions } from '../services/versions.service';
 import { fitPartNames, type FitPartName } from '@shared/schemas/fits';
 import { sendEncoded } from './encoded';
-import { route, type ApiRoute } from './route';
+import { idParam, route, type ApiRoute } from './route';
 
-const id = (what: string) => z.coerce.number({ error: `the ${what} in the address must be a number` }).int().positive();
-// built once: a schema costs more to build than to use, and these run on every read of a result
-const fitIdParam = id('fit id');
-const otherIdParam = id('other fit id');
+const fitIdParam = idParam('fit id');
+const otherIdParam = idParam('other fit id');
 const partParam = z.enum(fitPartNames as [FitPartName, ...FitPartName[]], { error: `the part in the address must be one of ${fitPartNames.join(', ')}` });
 
 export const fitsRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>): ApiRoute[] => [

@@ -1,15 +1,13 @@
-import { z } from 'zod';
 import type { AppContext } from '../context';
 import { accessOf, type authorizer } from '../auth/authorize';
 import { singleFile } from '../uploads/upload';
 import { createEntry, deleteEffect, getEntryDetail, reviewEntry, updateEntry, uploadVariations } from '../services/entries.service';
 import { createGroup, deleteGroup, groupsView, moveEntry, renameGroup } from '../services/groups.service';
 import { baseUrl, wantsSave } from './base-url';
-import { route, type ApiRoute } from './route';
+import { idParam, route, type ApiRoute } from './route';
 
-const idParam = (what: string) => z.coerce.number({ error: `the ${what} id in the address must be a number` }).int().positive();
-const effectIdParam = idParam('effect');
-const groupIdParam = idParam('group');
+const effectIdParam = idParam('effect id');
+const groupIdParam = idParam('group id');
 
 export const registerRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>): ApiRoute[] => {
   const file = singleFile(ctx.config);

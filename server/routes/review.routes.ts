@@ -1,14 +1,13 @@
-import { z } from 'zod';
 import type { AppContext } from '../context';
 import { accessOf, type authorizer } from '../auth/authorize';
 import { blindingLog, decideUnblinding, requestUnblinding } from '../services/blinding.service';
 import { diagnoseInFit } from '../services/diagnosis.service';
 import { answerQuestion, getQuestion, listQuestions, raiseQuestion, stepQuestion } from '../services/questions.service';
 import { baseUrl } from './base-url';
-import { route, type ApiRoute } from './route';
+import { idParam, route, type ApiRoute } from './route';
 
-const fitIdParam = z.coerce.number({ error: 'the fit id in the address must be a number' }).int().positive();
-const questionIdParam = z.coerce.number({ error: 'the question id in the address must be a number' }).int().positive();
+const fitIdParam = idParam('fit id');
+const questionIdParam = idParam('question id');
 
 /** The convener's review loop: a parameter's diagnosis, questions on parameters, and blinding. */
 export const reviewRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>): ApiRoute[] => [

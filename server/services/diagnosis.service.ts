@@ -1,14 +1,14 @@
 import { and, eq } from 'drizzle-orm';
-import { exchangeModelSchema } from '@shared/schemas/exchange';
-import { fitOptionsSchema, type FitResult } from '@shared/schemas/fit';
+import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
+import { fitOptionsSchema } from '@shared/schemas/fit';
 import type { Diagnosis, DiagnosisClaim, DiagnosisRegion } from '@shared/schemas/review';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { entries, fits, modelVersions, users } from '../db/schema';
+import { entries, modelVersions, users } from '../db/schema';
 import { conflict, notFound } from '../errors';
 import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
 import { isWithheld } from './blinding.service';
-import { findFit, storedResult, summaryOf } from './fits.service';
+import { findFit, storedHead, storedPart, summaryOf } from './fits.service';
 
 /**
  * The diagnosis of one nuisance parameter in one succeeded fit: the engine's numbers
@@ -17,7 +17,8 @@ import { findFit, storedResult, summaryOf } from './fits.service';
  * the register (owner), with the blinding rule applied to the per-bin data, and a summary in
  * plain words in which every sentence names the panel element that shows its numbers.
  */
-const numbersCopies = new WeakMap<object, Map<string, Promise<ParameterDiagnosisNumbers>>>();
+type Computed = { numbers: ParameterDiagnosisNumbers; regions: ExchangeModel['regions'] };
+const numbersCopies = new WeakMap<object, Map<string, Promise<Computed>>>();
 const KEEP = 64;
 
 async function numbersFor(ctx: AppContext, fitId: number, versionId: number, options: unknown, parameter: string) {
@@ -28,7 +29,9 @@ async function numbersFor(ctx: AppContext, fitId: number, versionId: number, opt
   if (!hit) {
     hit = (async () => {
       const [version] = await ctx.db.select({ model: modelVersions.model }).from(modelVersions).where(eq(modelVersions.id, versionId));
-      return ctx.fits.diagnose(exchangeModelSchema.parse(version.model), fitOptionsSchema.parse(options), parameter);
+      const model = exchangeModelSchema.parse(version.model);
+      // the regions' labels and edges are all the panel needs of the model afterwards
+      return { numbers: await ctx.fits.diagnose(model, fitOptionsSchema.parse(options), parameter), regions: model.regions };
     })();
     copies.set(key, hit);
     if (copies.size > KEEP) copies.delete(copies.keys().next().value!);
@@ -40,17 +43,13 @@ async function numbersFor(ctx: AppContext, fitId: number, versionId: number, opt
 export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: number, parameter: string): Promise<Diagnosis> {
   const row = await findFit(ctx, access, fitId);
   if (row.fit.state !== 'succeeded') throw conflict(`Fit ${fitId} has ${row.fit.state === 'failed' ? 'failed' : `not succeeded (${row.fit.state})`}: there is nothing to diagnose.`);
-  const result = (await storedResult(ctx, fitId)) as FitResult;
+  const result = (await storedHead(ctx, fitId))!;
   if (result.status !== 'converged') throw conflict(`Fit ${fitId} did not converge: there is nothing to diagnose.`);
   const report = result.nuisance.find((n) => n.name === parameter);
   if (!report) throw notFound(`Nuisance parameter "${parameter}" in fit ${fitId}`);
   if (report.fixed) throw conflict(`${parameter} is held in fit ${fitId}: it has no post-fit width to diagnose.`);
-  const [fitRow] = await ctx.db.select({ versionId: fits.modelVersionId }).from(fits).where(eq(fits.id, fitId));
-  const numbers = await numbersFor(ctx, fitId, fitRow.versionId, row.fit.options, parameter);
+  const { numbers, regions: specs } = await numbersFor(ctx, fitId, row.fit.modelVersionId, row.fit.options, parameter);
   if (numbers.failure) throw conflict(`The diagnosis of ${parameter} could not be made: ${numbers.failure}.`);
-
-  const [version] = await ctx.db.select({ model: modelVersions.model }).from(modelVersions).where(eq(modelVersions.id, fitRow.versionId));
-  const model = exchangeModelSchema.parse(version.model);
   const [entry] = await ctx.db
     .select({ key: entries.key, owner: users.name })
     .from(entries)
@@ -60,7 +59,7 @@ export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: numb
   const total = numbers.information.total;
   const observed = result.data.dataset === 'observed';
   const regions: DiagnosisRegion[] = numbers.regions.map((r) => {
-    const spec = model.regions.find((x) => x.key === r.region)!;
+    const spec = specs.find((x) => x.key === r.region)!;
     const hidden = observed && isWithheld(access.analysis, { role: r.role });
     return {
       region: r.region,
@@ -87,7 +86,7 @@ export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: numb
     };
   });
 
-  const correlation = result.correlation;
+  const { part: correlation } = await storedPart(ctx, fitId, 'correlation');
   const labels = new Map(result.parameters.map((x) => [x.name, x.label]));
   const correlations: Diagnosis['correlations'] = [];
   if (correlation) {

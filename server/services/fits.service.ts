@@ -1,7 +1,7 @@
 import Papa from 'papaparse';
-import { and, desc, eq, getTableColumns } from 'drizzle-orm';
+import { and, desc, eq, getTableColumns, sql } from 'drizzle-orm';
 import { fitOptionsSchema, type FitResult } from '@shared/schemas/fit';
-import { exportTableSchema, startFitSchema, type FitComparison, type FitPartName, type FitResultHead, type FitSummary } from '@shared/schemas/fits';
+import { exportTableSchema, startFitSchema, type FitComparison, type FitPart, type FitPartName, type FitResultHead, type FitSummary } from '@shared/schemas/fits';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
@@ -48,20 +48,37 @@ export async function findFit(ctx: AppContext, access: Access, id: number) {
   return row;
 }
 
-export async function storedResult(ctx: AppContext, id: number) {
+async function storedResult(ctx: AppContext, id: number) {
   const [row] = await ctx.db.select({ result: fits.result }).from(fits).where(eq(fits.id, id));
   return (row?.result ?? null) as FitResult | null;
 }
 
+/** A stored result without its two largest parts (the database leaves them out, not this process). */
+export type StoredHead = Omit<FitResult, 'correlation' | 'information'>;
+export async function storedHead(ctx: AppContext, id: number) {
+  const [row] = await ctx.db.select({ head: sql<StoredHead | null>`${fits.result} - 'correlation' - 'information'` }).from(fits).where(eq(fits.id, id));
+  return row?.head ?? null;
+}
+
+/** One large part of a stored result, read alone; `stored` is false when the fit has no result. */
+export async function storedPart<K extends FitPartName>(ctx: AppContext, id: number, part: K) {
+  const path = part === 'gammas' ? ['gammas', 'list'] : [part];
+  const [row] = await ctx.db
+    .select({ stored: sql<boolean>`${fits.result} is not null`, part: sql<FitPart<K> | null>`${fits.result} #> ${`{${path.join(',')}}`}::text[]` })
+    .from(fits)
+    .where(eq(fits.id, id));
+  return { stored: !!row?.stored, part: row?.part ?? null };
+}
+
 /** The region keys whose observed counts are withheld now (blinded analysis, signal regions). */
-function withheldRegions(access: Access, result: FitResult) {
+function withheldRegions(access: Access, result: Pick<FitResult, 'yields'>) {
   const roles = new Map<string, string>();
   result.yields.prefit.forEach((r) => roles.set(r.region, r.role));
   return new Set([...roles].filter(([, role]) => isWithheld(access.analysis, { role })).map(([key]) => key));
 }
 
 /** The blinding rule applied to a stored result: observed signal-region counts never leave while blinded. */
-export function blindResult(access: Access, result: FitResult | null): FitResult | null {
+export function blindResult<R extends Pick<FitResult, 'data' | 'yields'>>(access: Access, result: R | null): R | null {
   if (!result || result.data.dataset !== 'observed') return result;
   const hidden = withheldRegions(access, result);
   if (!hidden.size) return result;
@@ -81,8 +98,7 @@ export async function listFits(ctx: AppContext, access: Access): Promise<FitSumm
 const encodedCopies = new WeakMap<object, Map<string, Promise<Encoded>>>();
 const KEEP = 24;
 
-const headOf = ({ correlation: _c, information: _i, yields: _y, gammas: { list: _l, ...gammas }, ...head }: FitResult): FitResultHead => ({ ...head, gammas });
-const partOf = (result: FitResult, part: FitPartName) => (part === 'gammas' ? result.gammas.list : result[part]);
+const headOf = ({ yields: _y, gammas: { list: _l, ...gammas }, ...head }: StoredHead): FitResultHead => ({ ...head, gammas });
 
 export async function getFitEncoded(ctx: AppContext, access: Access, id: number, part: 'head' | FitPartName = 'head'): Promise<Encoded> {
   let cache = encodedCopies.get(ctx.db);
@@ -109,10 +125,14 @@ async function encodeFit(ctx: AppContext, access: Access, id: number, part: 'hea
   const row = await findFit(ctx, access, id);
   const active = row.fit.state === 'queued' || row.fit.state === 'running';
   if (active && part !== 'head') throw conflict(`Fit ${id} has not finished yet; its ${part} is there when it ends.`);
-  const result = active ? null : blindResult(access, await storedResult(ctx, id));
-  if (part !== 'head' && !result) throw conflict(`Fit ${id} ended without a result (${row.fit.state}).`);
-  const value = part === 'head' ? { ...summaryOf(row.fit, row.version, row.by), result: result && headOf(result) } : partOf(result!, part);
-  return { encoded: await encodeJson(value), final: !active };
+  if (part === 'head') {
+    // the parts hold no observed counts: the blinding rule concerns the head's data only
+    const head = active ? null : blindResult(access, await storedHead(ctx, id));
+    return { encoded: await encodeJson({ ...summaryOf(row.fit, row.version, row.by), result: head && headOf(head) }), final: !active };
+  }
+  const { stored, part: value } = await storedPart(ctx, id, part);
+  if (!stored) throw conflict(`Fit ${id} ended without a result (${row.fit.state}).`);
+  return { encoded: await encodeJson(value), final: true };
 }
 
 /**

@@ -27,7 +27,7 @@ const resolver = aliasedTable(users, 'resolver');
 
 const person = (p: { id: number; name: string } | null) => (p ? { id: p.id, name: p.name } : null);
 
-async function readQuestions(ctx: AppContext, access: Access, where: SQL[]): Promise<QuestionSummary[]> {
+async function readQuestions(ctx: AppContext, access: Access, where: SQL[]): Promise<(QuestionSummary & { body: string })[]> {
   const answerCount = sql<number>`(select count(*)::int from ${answers} where ${answers.questionId} = ${questions.id})`;
   const lastAnswer = sql<Date | null>`(select max(${answers.createdAt}) from ${answers} where ${answers.questionId} = ${questions.id})`;
   const rows = await ctx.db
@@ -49,7 +49,7 @@ async function readQuestions(ctx: AppContext, access: Access, where: SQL[]): Pro
     .leftJoin(resolver, eq(resolver.id, questions.resolvedById))
     .leftJoin(fits, eq(fits.id, questions.fitId))
     .where(and(eq(questions.analysisId, access.analysis.id), ...where));
-  const list = rows.map((r): QuestionSummary => {
+  const list = rows.map((r): QuestionSummary & { body: string } => {
     const times = [r.q.createdAt, r.q.resolvedAt, r.lastAnswer ? new Date(r.lastAnswer) : null].filter((t): t is Date => !!t);
     return {
       id: r.q.id,
@@ -63,6 +63,7 @@ async function readQuestions(ctx: AppContext, access: Access, where: SQL[]): Pro
       lastActivity: new Date(Math.max(...times.map((t) => t.getTime()))).toISOString(),
       resolvedBy: r.q.state === 'resolved' ? person(r.resolver) : null,
       resolvedAt: r.q.state === 'resolved' ? (r.q.resolvedAt?.toISOString() ?? null) : null,
+      body: r.q.body,
     };
   });
   return list.sort((a, b) => b.lastActivity.localeCompare(a.lastActivity) || b.id - a.id);
@@ -76,20 +77,20 @@ export async function listQuestions(ctx: AppContext, access: Access, query: unkn
   if (f.group) where.push(eq(groups.name, f.group));
   if (f.fit) where.push(eq(questions.fitId, f.fit));
   if (f.entry) where.push(eq(entries.key, f.entry));
-  return readQuestions(ctx, access, where);
+  // the list leaves the bodies out: a thread is read one at a time
+  return (await readQuestions(ctx, access, where)).map(({ body: _body, ...summary }) => summary);
 }
 
 export async function getQuestion(ctx: AppContext, access: Access, id: number): Promise<QuestionDetail> {
-  const [summary] = await readQuestions(ctx, access, [eq(questions.id, id)]);
-  if (!summary) throw notFound(`Question ${id}`);
-  const [{ body }] = await ctx.db.select({ body: questions.body }).from(questions).where(eq(questions.id, id));
+  const [question] = await readQuestions(ctx, access, [eq(questions.id, id)]);
+  if (!question) throw notFound(`Question ${id}`);
   const thread = await ctx.db
     .select({ id: answers.id, body: answers.body, createdAt: answers.createdAt, author: { id: users.id, name: users.name } })
     .from(answers)
     .leftJoin(users, eq(users.id, answers.authorId))
     .where(eq(answers.questionId, id))
     .orderBy(answers.createdAt, answers.id);
-  return { ...summary, body, thread: thread.map((a) => ({ id: a.id, body: a.body, createdAt: a.createdAt.toISOString(), author: person(a.author) })) };
+  return { ...question, thread: thread.map((a) => ({ id: a.id, body: a.body, createdAt: a.createdAt.toISOString(), author: person(a.author) })) };
 }
 
 async function questionRow(ctx: AppContext, access: Access, id: number) {
