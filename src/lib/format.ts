@@ -30,6 +30,11 @@ export function formatEdge(x: number): string {
   return Number.isInteger(x) ? String(x) : String(Number(x.toPrecision(6)));
 }
 
+/** Rounded to one decimal place. */
+export function round1(x: number): number {
+  return Math.round(x * 10) / 10;
+}
+
 export function plural(n: number, one: string, many = `${one}s`): string {
   return `${n.toLocaleString('en-GB')} ${n === 1 ? one : many}`;
 }

@@ -46,8 +46,3 @@ export const correlationScale = scaleLinear<string>()
 export function correlationColour(rho: number): string {
   return Number.isFinite(rho) ? correlationScale(rho) : theme.rule;
 }
-
-/** Ink colour that stays readable on a correlation cell of the given value. */
-export function correlationTextColour(rho: number): string {
-  return Math.abs(rho) > 0.55 ? '#ffffff' : theme.ink;
-}

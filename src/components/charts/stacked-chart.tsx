@@ -1,7 +1,7 @@
 import { useId, useMemo, type Ref } from 'react';
 import { scaleLinear } from 'd3-scale';
 import { area, curveStepAfter, stack } from 'd3-shape';
-import { formatCount, formatEdge } from '../../lib/format';
+import { formatCount, formatEdge, round1 } from '../../lib/format';
 import { theme } from '../../lib/palette';
 import { garwoodInterval } from '../../lib/poisson';
 import { BottomAxis, GridLines, LeftAxis } from './axes';
@@ -41,8 +41,6 @@ export type StackedChartData = {
  * weight (0–1, its share) sets the strength of an amber wash behind the stack; `label` names it.
  */
 export type BinHighlight = { weights: number[]; label: string; describe: (bin: number) => string };
-
-const round1 = (x: number) => Math.round(x * 10) / 10;
 
 function binTitle(d: StackedChartData, b: number, highlight?: BinHighlight): string {
   const unit = d.unit ? ` ${d.unit}` : '';

@@ -1,11 +1,12 @@
 import type { FitOptions } from '@shared/schemas/fit';
 import type { FitState } from '@shared/schemas/fits';
 import type { Tone } from '../../components/ui/badge';
+import { formatEdge } from '../../lib/format';
 
 /** The dataset of a fit in words: what was fitted, and where. */
 export function datasetInWords(o: FitOptions): string {
   const where = o.controlOnly ? 'control regions only' : o.excludeRegions.length ? `without ${o.excludeRegions.join(', ')}` : 'all regions';
-  const what = o.dataset === 'asimov' ? `Asimov dataset at μ = ${formatPlain(o.asimovMu)}` : 'observed data';
+  const what = o.dataset === 'asimov' ? `Asimov dataset at μ = ${formatEdge(o.asimovMu)}` : 'observed data';
   return `${what}, ${where}`;
 }
 
@@ -26,7 +27,7 @@ export const FIT_STATE_META: Record<FitState, { label: string; tone: Tone; title
   cancelled: { label: 'Cancelled', tone: 'amber', title: 'Cancelled before it finished' },
 };
 
-/** A number without trailing noise. */
-export function formatPlain(x: number): string {
-  return Number.isInteger(x) ? String(x) : String(Number(x.toPrecision(6)));
+/** A fit as people name it: its label, or its number when it has none. */
+export function fitName(f: { id: number; label: string }): string {
+  return f.label || `Fit ${f.id}`;
 }

@@ -4,7 +4,7 @@ import { ROLE_LABELS } from '@shared/permissions';
 import { Panel } from '../../../components/ui/page';
 import { formatDate, formatDateTime, plural } from '../../../lib/format';
 import type { FitState } from '@shared/schemas/fits';
-import { FIT_STATE_META } from '../../fits/describe';
+import { FIT_STATE_META, fitName } from '../../fits/describe';
 import { ACTION_LABELS } from '../action-labels';
 import { EntryStateBar } from './entry-state-bar';
 
@@ -48,7 +48,7 @@ export function AnalysisOverview({ overview, isAdmin }: { overview: Overview; is
         {latestFit ? (
           <div>
             <Link to={`${base}/fits/${latestFit.id}`} className="text-lg font-semibold text-teal-ink hover:underline">
-              {latestFit.label || `Fit ${latestFit.id}`}
+              {fitName(latestFit)}
             </Link>
             <p className="text-xs text-ink-muted">
               {FIT_STATE_META[latestFit.state as FitState]?.label ?? latestFit.state} · started {formatDateTime(latestFit.createdAt)}

@@ -14,6 +14,8 @@ import { ConvergenceBadge } from '../../fits/components/convergence';
 import { fitRegionChart } from '../../fits/components/distributions-view';
 import { ConstraintMeter, ImpactGlyph, PullGlyph } from '../../fits/components/glyphs';
 import { ScanChart } from '../../fits/components/scan-chart';
+import { Row } from '../../fits/components/summary-view';
+import { fitName } from '../../fits/describe';
 import { diagnosisPath, groupName, isStronglyPulled } from '../../fits/result-helpers';
 import { EntryQuestions } from '../../questions/components/entry-questions';
 import { RaiseQuestionForm } from '../../questions/components/raise-question-form';
@@ -80,17 +82,6 @@ function Section({ evidence, title, lit, children, className = '', actions }: { 
   );
 }
 
-function Num({ label, title, children }: { label: string; title: string; children: ReactNode }) {
-  return (
-    <>
-      <dt className="text-ink-muted">{label}</dt>
-      <dd className="tabular-nums" title={title}>
-        {children}
-      </dd>
-    </>
-  );
-}
-
 /** Regions sorted by the information they carry, with the prior's share as its own row. */
 function regionItems(d: Diagnosis): ShareItem[] {
   const total = d.information.total || 1;
@@ -98,7 +89,7 @@ function regionItems(d: Diagnosis): ShareItem[] {
     ...d.information.regions.map((r) => ({
       key: r.region,
       label: r.label,
-      detail: r.role === 'signal' ? 'signal' : r.role === 'control' ? 'control' : 'validation',
+      detail: r.role,
       share: r.share,
       title: `${r.label} (${r.region}): information ${formatFixed(r.information, 3)}, ${formatShare(r.share)} of the total`,
       tone: 'teal' as const,
@@ -190,7 +181,7 @@ export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, mayR
   const byInformation = [...d.information.regions].sort((a, b) => b.information - a.information);
   const shown = byInformation.filter((r) => r.information > 0).slice(0, REGIONS_SHOWN);
   const ratio = d.error !== null ? d.error / d.information.width : null;
-  const fitLabel = d.fit.label || `Fit ${d.fit.id}`;
+  const fitLabel = fitName(d.fit);
 
   return (
     <article aria-label={`Diagnosis of ${name}`} className="flex flex-col gap-4">
@@ -274,19 +265,19 @@ export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, mayR
 
         <Section evidence="pull" title="Pull, constraint and impact" lit={lit === 'pull'}>
           <dl className="grid grid-cols-[auto_1fr] items-center gap-x-4 gap-y-1.5 text-sm">
-            <Num label="Pull" title="(θ̂ − 0)/1: the shift of the best fit in units of the prior width">
+            <Row label="Pull" title="(θ̂ − 0)/1: the shift of the best fit in units of the prior width">
               <span className="flex items-center gap-2">
                 <PullGlyph n={n} /> {formatSigned(d.pull, 3)}
                 {isStronglyPulled(n) && <Badge tone="plum">strongly pulled</Badge>}
               </span>
-            </Num>
-            <Num label="Constraint" title="σ̂/1: post-fit width over the prior width">
+            </Row>
+            <Row label="Constraint" title="σ̂/1: post-fit width over the prior width">
               <span className="flex items-center gap-2">
                 <ConstraintMeter n={n} threshold={threshold} /> {formatFixed(d.constraint, 3)}
                 {d.overConstrained && <Badge tone="amber" title={`Post-fit width below ${threshold} of the prior`}>over-constrained (below {threshold})</Badge>}
               </span>
-            </Num>
-            <Num label="Post-fit impact" title="Δμ with θ fixed at θ̂ + σ̂ / θ̂ − σ̂, all else refitted, in units of μ">
+            </Row>
+            <Row label="Post-fit impact" title="Δμ with θ fixed at θ̂ + σ̂ / θ̂ − σ̂, all else refitted, in units of μ">
               {d.postfitImpact ? (
                 <span className="flex items-center gap-2">
                   <ImpactGlyph up={d.postfitImpact.up} down={d.postfitImpact.down} preUp={d.prefitImpact?.up} preDown={d.prefitImpact?.down} scale={impactScale} />
@@ -295,34 +286,34 @@ export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, mayR
               ) : (
                 <span className="text-ink-muted">not computed (run the fit with full impacts)</span>
               )}
-            </Num>
-            <Num label="Pre-fit impact" title="Δμ with θ fixed at θ̂ ± 1, all else refitted, in units of μ">
+            </Row>
+            <Row label="Pre-fit impact" title="Δμ with θ fixed at θ̂ ± 1, all else refitted, in units of μ">
               {d.prefitImpact ? `${formatSigned(d.prefitImpact.up, 4)} / ${formatSigned(d.prefitImpact.down, 4)}` : '–'}
-            </Num>
-            <Num label="Quick impact" title="ρ(μ, θ)·σ_μ from the covariance, in units of μ (no refit)">
+            </Row>
+            <Row label="Quick impact" title="ρ(μ, θ)·σ_μ from the covariance, in units of μ (no refit)">
               {formatSigned(d.quickImpact, 4)}
-            </Num>
-            <Num label="Rank" title="Order by the post-fit impact max(|Δμ+|, |Δμ−|), 1 = largest">
+            </Row>
+            <Row label="Rank" title="Order by the post-fit impact max(|Δμ+|, |Δμ−|), 1 = largest">
               {d.rank ?? '–'}
-            </Num>
+            </Row>
           </dl>
           <p className="mt-2 text-xs text-ink-muted">Glyphs: the pull with ±σ̂ on the prior band ±1 (±2 lighter); the constraint meter marks the prior (1) and the {threshold} threshold.</p>
         </Section>
 
         <Section evidence="width" title="Width: the data alone against the fit" lit={lit === 'width'}>
           <dl className="grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
-            <Num label="With no correlations" title="1/√(total information): the width the data and the prior alone would leave">
+            <Row label="With no correlations" title="1/√(total information): the width the data and the prior alone would leave">
               <strong>{formatFixed(d.information.width, 3)}</strong> of the prior width
-            </Num>
-            <Num label="Post-fit σ̂" title="√V_θθ from the fit, in units of the prior width">
+            </Row>
+            <Row label="Post-fit σ̂" title="√V_θθ from the fit, in units of the prior width">
               <strong>{formatFixed(d.error, 3)}</strong> of the prior width
-            </Num>
-            <Num label="Ratio σ̂ / width" title="Near 1: the data alone explain the constraint; clearly above 1: correlations widen it">
+            </Row>
+            <Row label="Ratio σ̂ / width" title="Near 1: the data alone explain the constraint; clearly above 1: correlations widen it">
               {formatFixed(ratio, 2)}
-            </Num>
-            <Num label="Total information" title="Σ over bins of (∂ν/∂θ)²/ν, plus 1 from the prior">
+            </Row>
+            <Row label="Total information" title="Σ over bins of (∂ν/∂θ)²/ν, plus 1 from the prior">
               {formatFixed(d.information.total, 3)}
-            </Num>
+            </Row>
           </dl>
           <p className="mt-2 text-sm text-ink-soft">{widthWords(d.error, d.information.width)}</p>
         </Section>

@@ -7,7 +7,7 @@ import { formatDateTime } from '../../../lib/format';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
 import { useComparison } from '../api/get-comparison';
 import { useFits } from '../api/get-fits';
-import { datasetInWords } from '../describe';
+import { datasetInWords, fitName } from '../describe';
 
 type Delta = FitComparison['mu'];
 
@@ -28,8 +28,8 @@ function DeltaCells({ d, digits = 3, title }: { d: Delta; digits?: number; title
   );
 }
 
-function fitName(f: FitSummary) {
-  return `${f.label || `Fit ${f.id}`} (#${f.id}, version ${f.version})`;
+function fitNameAndVersion(f: FitSummary) {
+  return `${fitName(f)} (#${f.id}, version ${f.version})`;
 }
 
 /** The changes from this fit to another, largest first. */
@@ -136,7 +136,7 @@ export function CompareView({ slug, fitId }: { slug: string; fitId: number }) {
         <option value="">Choose another fit…</option>
         {others.map((f) => (
           <option key={f.id} value={f.id}>
-            {fitName(f)}: {datasetInWords(f.options)}, {formatDateTime(f.createdAt)}
+            {fitNameAndVersion(f)}: {datasetInWords(f.options)}, {formatDateTime(f.createdAt)}
           </option>
         ))}
       </SelectField>
@@ -145,7 +145,7 @@ export function CompareView({ slug, fitId }: { slug: string; fitId: number }) {
           {(c) => (
             <>
               <p className="text-sm text-ink-soft">
-                Δ = <strong>{fitName(c.b)}</strong> − <strong>{fitName(c.a)}</strong>.
+                Δ = <strong>{fitNameAndVersion(c.b)}</strong> − <strong>{fitNameAndVersion(c.a)}</strong>.
               </p>
               <ComparisonTable comparison={c} />
             </>

@@ -8,7 +8,8 @@ import { correlationColour, theme } from '../../../lib/palette';
 import { formatSigned } from '../../../lib/stats-format';
 import { correlationSvg, drawCorrelation, layoutMatrix } from '../correlation-draw';
 import { keepCorrelated, orderByClustering, orderByGroup, rho, strongestPairs, type CorrelationMatrix } from '../correlation-order';
-import { groupName } from '../result-helpers';
+import { groupName, labelsOf } from '../result-helpers';
+import { groupsOf } from './group-filter';
 
 type Ordering = 'group' | 'cluster';
 type Cell = { r: number; c: number };
@@ -21,8 +22,7 @@ export function matrixGroups(result: FitResultHead): { groupOf: (name: string) =
   const kinds = new Map(result.parameters.map((p) => [p.name, p.kind]));
   const groups = new Map(result.nuisance.map((n) => [n.name, groupName(n.group)]));
   const groupOf = (name: string) => (kinds.get(name) === 'poi' ? POI_GROUP : kinds.get(name) === 'normalisation' ? NORM_GROUP : (groups.get(name) ?? groupName(null)));
-  const rest = [...new Set(groups.values())].sort((a, b) => (a.startsWith('(') ? 1 : b.startsWith('(') ? -1 : a.localeCompare(b)));
-  return { groupOf, order: [POI_GROUP, NORM_GROUP, ...rest] };
+  return { groupOf, order: [POI_GROUP, NORM_GROUP, ...groupsOf(result.nuisance)] };
 }
 
 function ColourKey() {
@@ -52,7 +52,7 @@ export function CorrelationView({ result, correlation, linkTo }: { result: FitRe
   const [drawMs, setDrawMs] = useState<number | null>(null);
   const canvasRef = useRef<HTMLCanvasElement>(null);
   const groups = useMemo(() => matrixGroups(result), [result]);
-  const labels = useMemo(() => new Map(result.parameters.map((p) => [p.name, p.label])), [result]);
+  const labels = useMemo(() => labelsOf(result), [result]);
 
   const fullOrder = useMemo(() => (m ? (ordering === 'group' ? orderByGroup(m, groups.groupOf, groups.order) : orderByClustering(m)) : []), [m, ordering, groups]);
   const shown = useMemo(() => (m ? keepCorrelated(m, fullOrder, threshold) : []), [m, fullOrder, threshold]);

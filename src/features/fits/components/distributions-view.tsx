@@ -5,8 +5,8 @@ import { ExportButtons } from '../../../components/charts/export-buttons';
 import { StackedChart, type StackedChartData } from '../../../components/charts/stacked-chart';
 import { Badge } from '../../../components/ui/badge';
 import { Panel } from '../../../components/ui/page';
+import { formatEdge } from '../../../lib/format';
 import { processColour } from '../../../lib/palette';
-import { formatPlain } from '../describe';
 
 type Stage = 'prefit' | 'postfit';
 type RegionYields = FitPart<'yields'>['prefit'][number];
@@ -49,7 +49,7 @@ export function fitRegionChart(result: FitResultHead, y: RegionYields, stage: St
       inMain: true,
     },
     data: values,
-    dataLabel: asimov ? `Asimov data (μ = ${formatPlain(result.data.asimovMu ?? 1)})` : 'Observed',
+    dataLabel: asimov ? `Asimov data (μ = ${formatEdge(result.data.asimovMu ?? 1)})` : 'Observed',
     withheld: values === null,
   };
 }
@@ -100,7 +100,7 @@ export function DistributionsView({ result, yields, model }: { result: FitResult
           </label>
         ))}
         <span className="text-xs text-ink-muted">
-          {result.data.dataset === 'asimov' ? `The fitted data are the pre-fit Asimov dataset at μ = ${formatPlain(result.data.asimovMu ?? 1)}.` : 'The fitted data are the observed counts.'} Error
+          {result.data.dataset === 'asimov' ? `The fitted data are the pre-fit Asimov dataset at μ = ${formatEdge(result.data.asimovMu ?? 1)}.` : 'The fitted data are the observed counts.'} Error
           bars are Garwood 68 % Poisson intervals; the stippled band is the expectation's ±1σ.
         </span>
       </fieldset>

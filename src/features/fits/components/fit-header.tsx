@@ -1,7 +1,7 @@
 import type { FitDetail } from '@shared/schemas/fits';
 import { formatDateTime } from '../../../lib/format';
 import { EXPORT_TABLES, exportCsvUrl, exportJsonUrl } from '../api/export-links';
-import { datasetInWords, optionsInWords } from '../describe';
+import { datasetInWords, fitName, optionsInWords } from '../describe';
 import { ConvergenceStrip } from './convergence';
 import { FitStateBadge } from './fit-state';
 
@@ -36,7 +36,7 @@ export function FitHeader({ slug, fit }: { slug: string; fit: FitDetail }) {
       <div className="flex flex-wrap items-end justify-between gap-3">
         <div>
           <h1 className="flex flex-wrap items-center gap-2 text-xl font-semibold tracking-tight text-ink">
-            {fit.label || `Fit ${fit.id}`}
+            {fitName(fit)}
             <FitStateBadge state={fit.state} />
           </h1>
           <p className="mt-0.5 text-sm text-ink-muted">

@@ -7,7 +7,7 @@ import { formatDateTime } from '../../../lib/format';
 import { decimalsFor, formatFixed, formatSigma } from '../../../lib/stats-format';
 import { useCancelFit } from '../api/cancel-fit';
 import { isActive } from '../api/fit-states';
-import { datasetInWords, optionsInWords } from '../describe';
+import { datasetInWords, fitName, optionsInWords } from '../describe';
 import { FitProgress, FitStateBadge } from './fit-state';
 
 function Headline({ fit }: { fit: FitSummary }) {
@@ -80,7 +80,7 @@ export function FitsTable({ slug, fits, mayRun }: { slug: string; fits: FitSumma
               <tr key={f.id} className="hover:bg-paper-sunk/50">
                 <td className={tdClass}>
                   <Link to={`/a/${slug}/fits/${f.id}`} className="font-medium text-teal-ink hover:underline">
-                    {f.label || `Fit ${f.id}`}
+                    {fitName(f)}
                   </Link>
                   <span className="block text-2xs text-ink-muted">#{f.id}</span>
                 </td>

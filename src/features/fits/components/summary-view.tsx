@@ -5,7 +5,8 @@ import { decimalsFor, formatFixed, formatProbability, formatSigma, formatSigned 
 import { ConvergenceReport } from './convergence';
 import { ScanChart } from './scan-chart';
 
-function Row({ label, title, children }: { label: ReactNode; title: string; children: ReactNode }) {
+/** A term and its number in a definition list, the number explained on hover. */
+export function Row({ label, title, children }: { label: ReactNode; title: string; children: ReactNode }) {
   return (
     <>
       <dt className="text-ink-muted">{label}</dt>

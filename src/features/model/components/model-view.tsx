@@ -5,7 +5,7 @@ import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
 import { ConfirmButton } from '../../../components/ui/confirm-button';
 import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
-import { formatCount, formatEdge } from '../../../lib/format';
+import { formatCount, formatEdge, round1 } from '../../../lib/format';
 import { sum } from '../../../lib/numbers';
 import { processColour } from '../../../lib/palette';
 import { useDeleteFloatingNorm } from '../api/delete-floating-norm';
@@ -72,8 +72,6 @@ function expectedTotal(model: Model, region: string): number | null {
   const ts = model.templates.filter((t) => t.region === region);
   return ts.length ? ts.reduce((s, t) => s + sum(t.nominal), 0) : null;
 }
-
-const round1 = (x: number) => Math.round(x * 10) / 10;
 
 /** A row that holds an editor under the row it edits. */
 function EditorRow({ colSpan, children }: { colSpan: number; children: ReactNode }) {

@@ -7,6 +7,8 @@ import { TextAreaField } from '../../../components/ui/field';
 import { Panel } from '../../../components/ui/page';
 import { isApiRequestError } from '../../../lib/api-client';
 import { formatDateTime } from '../../../lib/format';
+import { fitName } from '../../fits/describe';
+import { diagnosisPath } from '../../fits/result-helpers';
 import { useAnswerQuestion } from '../api/answer-question';
 import { useStepQuestion } from '../api/step-question';
 import { QuestionStateBadge } from './question-state-badge';
@@ -81,8 +83,8 @@ export function QuestionThread({ slug, question: q, mayAnswer, mayResolve }: { s
             {q.fit && (
               <span>
                 · raised on{' '}
-                <Link to={`/a/${slug}/fits/${q.fit.id}/diagnostics?parameter=${encodeURIComponent(q.entry.key)}`} className="text-teal-ink hover:underline">
-                  {q.fit.label || `Fit ${q.fit.id}`}: the diagnosis of {q.entry.key}
+                <Link to={diagnosisPath(slug, q.fit.id, q.entry.key)} className="text-teal-ink hover:underline">
+                  {fitName(q.fit)}: the diagnosis of {q.entry.key}
                 </Link>
               </span>
             )}

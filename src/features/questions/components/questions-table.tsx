@@ -2,6 +2,8 @@ import { Link } from 'react-router';
 import type { QuestionSummary } from '@shared/schemas/review';
 import { tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { formatDateTime } from '../../../lib/format';
+import { fitName } from '../../fits/describe';
+import { diagnosisPath } from '../../fits/result-helpers';
 import { QuestionStateBadge } from './question-state-badge';
 
 /** The question queue: one row per question, newest activity first; the title opens its thread. */
@@ -54,8 +56,8 @@ export function QuestionsTable({ slug, questions }: { slug: string; questions: Q
               <td className={`${tdClass} text-xs`}>{q.entry.owner?.name ?? <span className="text-ink-muted">unassigned</span>}</td>
               <td className={`${tdClass} text-xs`}>
                 {q.fit ? (
-                  <Link to={`/a/${slug}/fits/${q.fit.id}/diagnostics?parameter=${encodeURIComponent(q.entry.key)}`} className="text-teal-ink hover:underline" title="This parameter's diagnosis in the fit the question was raised on">
-                    {q.fit.label || `Fit ${q.fit.id}`}
+                  <Link to={diagnosisPath(slug, q.fit.id, q.entry.key)} className="text-teal-ink hover:underline" title="This parameter's diagnosis in the fit the question was raised on">
+                    {fitName(q.fit)}
                   </Link>
                 ) : (
                   <span className="text-ink-muted">none</span>

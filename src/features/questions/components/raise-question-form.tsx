@@ -5,6 +5,7 @@ import { Button } from '../../../components/ui/button';
 import { FormError } from '../../../components/ui/error-notice';
 import { CheckboxField, TextAreaField, TextField } from '../../../components/ui/field';
 import { isApiRequestError } from '../../../lib/api-client';
+import { fitName } from '../../fits/describe';
 import { useRaiseQuestion } from '../api/raise-question';
 
 /**
@@ -61,7 +62,7 @@ export function RaiseQuestionForm({
       <FormError error={raise.error} />
       <TextField label="Title" value={title} onChange={(e) => setTitle(e.target.value)} required minLength={3} maxLength={200} error={err?.fieldMessage('title')} />
       <TextAreaField label="Question" rows={4} value={body} onChange={(e) => setBody(e.target.value)} required error={err?.fieldMessage('body')} hint="Say what you see and what you would like explained." />
-      {fit && <CheckboxField label={`Tie it to this fit (${fit.label || `Fit ${fit.id}`})`} checked={tied} onChange={(e) => setTied(e.target.checked)} hint="The thread then links to this fit's diagnosis of the parameter." />}
+      {fit && <CheckboxField label={`Tie it to this fit (${fitName(fit)})`} checked={tied} onChange={(e) => setTied(e.target.checked)} hint="The thread then links to this fit's diagnosis of the parameter." />}
       <div className="flex gap-2">
         <Button type="submit" variant="primary" busy={raise.isPending}>
           Raise the question
