@@ -2,7 +2,7 @@ import { useMemo, useState } from 'react';
 import { Link, useParams } from 'react-router';
 import { PageHeader, Panel } from '../../../components/ui/page';
 import { QueryView } from '../../../components/ui/query-view';
-import { useEntries } from '../../../features/register/api/get-entries';
+import { useEntries, useEntryGroups } from '../../../features/register/api/get-entries';
 import { EntryStateBadge } from '../../../features/register/components/entry-state-badge';
 import { useEntry } from '../../../features/entry/api/get-entry';
 import { EntryMetadata } from '../../../features/entry/components/entry-metadata';
@@ -31,7 +31,7 @@ export function EntryRoute() {
 
   const regions = useMemo(() => new Map<string, RegionInfo>((model.data?.regions ?? []).map((r) => [r.key, { label: r.label, observable: r.observable, unit: r.unit }])), [model.data]);
   const processLabels = useMemo(() => new Map((model.data?.processes ?? []).map((p) => [p.key, p.label])), [model.data]);
-  const groups = useMemo(() => [...new Set((entries.data ?? []).map((e) => e.group).filter((g): g is string => !!g))].sort(), [entries.data]);
+  const groups = useEntryGroups(entries.data);
 
   const back = (
     <Link to={`/a/${slug}/register`} className="text-sm font-medium text-teal-ink hover:underline">

@@ -18,6 +18,7 @@ import { GroupsView } from '../../../features/fits/components/groups-view';
 import { ImpactTable } from '../../../features/fits/components/impact-table';
 import { PullsView } from '../../../features/fits/components/pulls-view';
 import { SummaryView } from '../../../features/fits/components/summary-view';
+import { fitName } from '../../../features/fits/describe';
 import { FIT_TABS, fitTab, type FitTabId } from '../../../features/fits/fit-tabs';
 import { diagnosisPath } from '../../../features/fits/result-helpers';
 import { RaiseQuestionForm } from '../../../features/questions/components/raise-question-form';
@@ -77,7 +78,7 @@ function ImpactsWithQuestions({ slug, fit, result }: { slug: string; fit: FitDet
       {raising && (
         <div ref={panel}>
           <Panel title={`Raise a question on ${raising}`}>
-            <RaiseQuestionForm key={raising} slug={slug} entry={raising} fit={{ id: fit.id, label: fit.label || `Fit ${fit.id}` }} onCancel={() => setRaising(null)} />
+            <RaiseQuestionForm key={raising} slug={slug} entry={raising} fit={{ id: fit.id, label: fitName(fit) }} onCancel={() => setRaising(null)} />
           </Panel>
         </div>
       )}
@@ -91,8 +92,17 @@ function PullsWithQuestions({ slug, fit, result }: { slug: string; fit: FitDetai
   return <PullsView result={result} slug={slug} fitId={fit.id} marks={marks} />;
 }
 
-function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit: FitDetail; result: FitResultHead }) {
+/** The distributions, drawn with the model's region and process labels. */
+function DistributionsWithModel({ slug, fit, result }: { slug: string; fit: FitDetail; result: FitResultHead }) {
   const model = useModel(slug);
+  return (
+    <WithPart slug={slug} fitId={fit.id} part="yields">
+      {(yields) => <DistributionsView result={result} yields={yields} model={model.data} />}
+    </WithPart>
+  );
+}
+
+function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit: FitDetail; result: FitResultHead }) {
   const nuisance = new Set(result.nuisance.filter((n) => !n.fixed).map((n) => n.name));
   switch (tab) {
     case 'summary':
@@ -110,11 +120,7 @@ function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit:
         </WithPart>
       );
     case 'distributions':
-      return (
-        <WithPart slug={slug} fitId={fit.id} part="yields">
-          {(yields) => <DistributionsView result={result} yields={yields} model={model.data} />}
-        </WithPart>
-      );
+      return <DistributionsWithModel slug={slug} fit={fit} result={result} />;
     case 'diagnostics':
       return <DiagnosticsView slug={slug} fitId={fit.id} result={result} />;
     case 'compare':

@@ -9,7 +9,7 @@ import { useMembers } from '../../../features/members/api/get-members';
 import { useQuestions } from '../../../features/questions/api/get-questions';
 import { filterFromParams, QuestionFilters } from '../../../features/questions/components/question-filters';
 import { QuestionsTable } from '../../../features/questions/components/questions-table';
-import { useEntries } from '../../../features/register/api/get-entries';
+import { useEntries, useEntryGroups } from '../../../features/register/api/get-entries';
 
 export function QuestionsRoute() {
   const { slug = '' } = useParams();
@@ -26,7 +26,7 @@ export function QuestionsRoute() {
     for (const m of members.data ?? []) if (!seen.has(m.userId) && m.role !== 'reader') seen.set(m.userId, m.name);
     return [...seen].map(([id, name]) => ({ value: String(id), label: name })).sort((a, b) => a.label.localeCompare(b.label));
   }, [entries.data, members.data]);
-  const groups = useMemo(() => [...new Set((entries.data ?? []).map((e) => e.group).filter((g): g is string => !!g))].sort(), [entries.data]);
+  const groups = useEntryGroups(entries.data);
   const fitChoices = useMemo(() => (fits.data ?? []).filter((f) => f.state === 'succeeded').map((f) => ({ value: String(f.id), label: `#${f.id} ${f.label || ''}`.trim() })), [fits.data]);
 
   const change = (key: keyof QuestionFilter, value: string) =>

@@ -1,6 +1,6 @@
-import { useMemo, useState } from 'react';
+import { useState } from 'react';
 import { useNavigate, useParams } from 'react-router';
-import { useEntries } from '../../../features/register/api/get-entries';
+import { useEntries, useEntryGroups } from '../../../features/register/api/get-entries';
 import { RegisterTable } from '../../../features/register/components/register-table';
 import { NewEntryForm } from '../../../features/register/components/new-entry-form';
 import { useCan } from '../../../features/analyses/use-can';
@@ -16,7 +16,7 @@ export function RegisterRoute() {
   const [creating, setCreating] = useState(false);
   const members = useMembers(slug);
   const navigate = useNavigate();
-  const groups = useMemo(() => [...new Set((entries.data ?? []).map((e) => e.group).filter((g): g is string => !!g))].sort(), [entries.data]);
+  const groups = useEntryGroups(entries.data);
 
   return (
     <>

@@ -1,3 +1,4 @@
+import { useMemo } from 'react';
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { EntrySummary } from '@shared/schemas/api';
 import { api } from '../../../lib/api-client';
@@ -12,4 +13,9 @@ export const entriesQueryOptions = (slug: string) => queryOptions({ queryKey: en
 
 export function useEntries(slug: string) {
   return useQuery(entriesQueryOptions(slug));
+}
+
+/** The groups named among the entries, sorted; for the group choices of a form or a filter. */
+export function useEntryGroups(entries: EntrySummary[] | undefined): string[] {
+  return useMemo(() => [...new Set((entries ?? []).map((e) => e.group).filter((g): g is string => !!g))].sort(), [entries]);
 }

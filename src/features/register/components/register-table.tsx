@@ -25,6 +25,7 @@ import { SelectField } from '../../../components/ui/field';
 import { tableClass, tdClass } from '../../../components/ui/page';
 import { SortableTh } from '../../../components/ui/sortable-th';
 import { formatPercent } from '../../../lib/format';
+import { QuestionMarker } from '../../questions/components/question-marker';
 import { ENTRY_STATE_META, ENTRY_STATES } from '../entry-states';
 import { EntryStateBadge } from './entry-state-badge';
 
@@ -85,14 +86,15 @@ function makeColumns(slug: string) {
               {c.getValue()}
             </Link>
             {open > 0 && (
-              <Link
-                to={`/a/${slug}/questions?entry=${encodeURIComponent(c.getValue())}`}
-                aria-label={`${open} unresolved question${open === 1 ? '' : 's'} on ${c.getValue()}`}
-                title={`${open} question${open === 1 ? '' : 's'} on this entry not yet resolved (open or answered)`}
-                className="inline-flex h-4 min-w-4 items-center justify-center rounded-full border border-amber/60 bg-amber-soft px-1 text-2xs leading-none font-bold text-amber-ink hover:underline"
-              >
-                ?{open > 1 ? open : ''}
-              </Link>
+              <QuestionMarker
+                state="open"
+                count={open}
+                link={{
+                  to: `/a/${slug}/questions?entry=${encodeURIComponent(c.getValue())}`,
+                  label: `${open} unresolved question${open === 1 ? '' : 's'} on ${c.getValue()}`,
+                  title: `${open} question${open === 1 ? '' : 's'} on this entry not yet resolved (open or answered)`,
+                }}
+              />
             )}
           </span>
         );
