@@ -2,9 +2,7 @@ import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptionsInput, ParameterScan } from '@shared/schemas/fit';
 import { FitInputError } from './errors';
 import { informationBreakdown } from './information';
-import { JobRunner } from './jobs';
-import { bestFitFor } from './parameter-scan';
-import { assembleScan, scanJobs } from './scan';
+import { bestFitFor, scanFromBestFit } from './parameter-scan';
 import { createWorkspace, evaluateYields, type Workspace } from './yields';
 import type { CompiledModel } from './compiled-model';
 
@@ -47,20 +45,12 @@ function countsAt(m: CompiledModel, phi: Float64Array, gamma: Float64Array, ws: 
  */
 export function diagnoseParameter(model: ExchangeModel, optionsInput: FitOptionsInput, parameter: string, points = 21): ParameterDiagnosisNumbers {
   const fitted = bestFitFor(model, optionsInput, parameter, (index, m) => index >= m.thetaStart);
-  if (fitted.unknown) throw new FitInputError(`"${parameter}" is not a nuisance parameter of this model`, ['parameter']);
-  const { problem, m, index, ctx } = fitted;
-  if (!ctx) {
-    const failure = fitted.failure ?? 'the fit did not converge';
-    return {
-      parameter,
-      failure,
-      value: m.start[index],
-      error: null,
-      information: { total: 1, constraint: 1, width: 1 },
-      regions: [],
-      scan: { parameter, failure, bestFit: m.start[index], error: null, points: [], crossings68: { low: null, high: null }, crossings95: null },
-    };
+  if (fitted.kind === 'unknown') throw new FitInputError(`"${parameter}" is not a nuisance parameter of this model`, ['parameter']);
+  if (fitted.kind === 'none') {
+    const { m, index, failure } = fitted;
+    return { parameter, failure, value: m.start[index], error: null, information: { total: 1, constraint: 1, width: 1 }, regions: [], scan: scanFromBestFit(fitted, parameter, points) };
   }
+  const { problem, m, index, ctx } = fitted;
 
   const info = informationBreakdown(ctx).find((x) => x.parameter === parameter)!;
   const ws = createWorkspace(m);
@@ -92,9 +82,7 @@ export function diagnoseParameter(model: ExchangeModel, optionsInput: FitOptions
       }),
     }));
 
-  const { grid, jobs } = scanJobs(ctx, 0, index, Math.max(3, points));
-  const runner = new JobRunner([ctx]);
-  const scan = assembleScan(ctx, index, grid, jobs.map((j) => runner.run(j)), []);
+  const scan = scanFromBestFit(fitted, parameter, points);
   const variance = ctx.V[index * m.nDense + index];
   return {
     parameter,

@@ -8,13 +8,6 @@
  * s'' = 15 x (x² − 1) / 2 vanish at |x| = 1, so I is C² everywhere and linear beyond ±1.
  */
 
-export function smoothStep(x: number): number {
-  if (x >= 1) return 1;
-  if (x <= -1) return -1;
-  const x2 = x * x;
-  return (x * (3 * x2 * x2 - 10 * x2 + 15)) / 8;
-}
-
 /** u(θ) = θ s(θ) and its first two derivatives, written into out[0..2]. */
 export function evenPart(theta: number, out: Float64Array | number[]): void {
   if (theta >= 1 || theta <= -1) {

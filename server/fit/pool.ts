@@ -33,19 +33,28 @@ export interface FitPoolOptions {
  * them; they belong to the process), plus the tsx loader for a .ts worker unless the process
  * already runs under it (vitest does not).
  */
-export function workerExecArgv(filename: string): string[] {
+function workerExecArgv(filename: string): string[] {
   const execArgv = process.execArgv.filter((a) => !/^--max-(semi|old)-space-size/.test(a));
   if (filename.endsWith('.ts') && !execArgv.some((a) => a.includes('tsx'))) execArgv.push('--import', 'tsx');
   return execArgv;
 }
 
+/** The worker module `name` beside the module at `here` (its import.meta.url): .ts under tsx, .js when built. */
+export function siblingWorker(here: string, name: string): string {
+  const url = new URL(here);
+  return new URL(`./${name}${url.pathname.endsWith('.ts') ? '.ts' : '.js'}`, url).href;
+}
+
+/** A piscina pool on a worker file, started with the node flags a worker accepts. */
+export function workerPool(filename: string, options: Omit<NonNullable<ConstructorParameters<typeof Piscina>[0]>, 'filename' | 'execArgv'>) {
+  return new Piscina({ ...options, filename, execArgv: workerExecArgv(filename) });
+}
+
 export function createFitPool(options: FitPoolOptions = {}): FitPool {
   const threads = Math.max(1, options.threads ?? os.availableParallelism());
-  const here = new URL(import.meta.url);
-  const ext = here.pathname.endsWith('.ts') ? '.ts' : '.js';
-  const workerFile = options.workerFile ?? new URL(`./fit-worker${ext}`, here);
+  const workerFile = options.workerFile ?? siblingWorker(import.meta.url, 'fit-worker');
   const filename = workerFile instanceof URL ? workerFile.href : workerFile;
-  const piscina = new Piscina({ filename, minThreads: threads, maxThreads: threads, execArgv: workerExecArgv(filename), idleTimeout: 60_000, workerData: { niceness: options.niceness ?? 0 } });
+  const piscina = workerPool(filename, { minThreads: threads, maxThreads: threads, idleTimeout: 60_000, workerData: { niceness: options.niceness ?? 0 } });
   return {
     threads,
     async runBatch(batch, signal) {

@@ -108,10 +108,3 @@ export function applyGammas(m: CompiledModel, gamma: Float64Array, ws: Workspace
     }
   }
 }
-
-/** γ factor multiplying sample-bin sb in bin b (1 when none applies). */
-export function gammaFactor(m: CompiledModel, gamma: Float64Array, sb: number, b: number): number {
-  if (!m.carriesVariance[sb]) return 1;
-  const g = m.binGamma[b];
-  return g >= 0 ? gamma[g] : 1;
-}

@@ -1,8 +1,7 @@
 import { MessageChannel } from 'node:worker_threads';
-import { Piscina } from 'piscina';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptions, FitResult } from '@shared/schemas/fit';
-import { workerExecArgv } from '../fit/pool';
+import { siblingWorker, workerPool } from '../fit/pool';
 import type { JobOutcome } from './fit-job.worker';
 
 export class JobError extends Error {
@@ -21,11 +20,8 @@ export type JobThread = {
 };
 
 export function startJobThread(threads?: number, niceness = 0): JobThread {
-  const here = new URL(import.meta.url);
-  const ext = here.pathname.endsWith('.ts') ? '.ts' : '.js';
-  const filename = new URL(`./fit-job.worker${ext}`, here).href;
   // one job at a time; cancelling a job ends its thread (and the engine's refit threads with it)
-  const piscina = new Piscina({ filename, minThreads: 0, maxThreads: 1, execArgv: workerExecArgv(filename), idleTimeout: 10 * 60_000 });
+  const piscina = workerPool(siblingWorker(import.meta.url, 'fit-job.worker'), { minThreads: 0, maxThreads: 1, idleTimeout: 10 * 60_000 });
 
   return {
     run: async (model, options, onProgress, signal) => {

@@ -3,11 +3,11 @@ import { exchangeModelSchema } from '@shared/schemas/exchange';
 import { fitOptionsSchema } from '@shared/schemas/fit';
 import type { Db } from '../db/client';
 import { fits, modelVersions } from '../db/schema';
-import { Piscina } from 'piscina';
+import type { Piscina } from 'piscina';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptions } from '@shared/schemas/fit';
 import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
-import { workerExecArgv } from '../fit/pool';
+import { siblingWorker, workerPool } from '../fit/pool';
 import type { DiagnosisTask } from './diagnosis.worker';
 import { JobError, startJobThread, type JobThread } from './fit-job';
 
@@ -36,14 +36,7 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
   let thread: JobThread | null = null;
   const jobs = () => (thread ??= startJobThread(options.threads, options.niceness));
   let diagnoses: Piscina | null = null;
-  const diagnosisThread = () => {
-    if (!diagnoses) {
-      const here = new URL(import.meta.url);
-      const filename = new URL(`./diagnosis.worker${here.pathname.endsWith('.ts') ? '.ts' : '.js'}`, here).href;
-      diagnoses = new Piscina({ filename, minThreads: 0, maxThreads: 1, execArgv: workerExecArgv(filename), idleTimeout: 5 * 60_000 });
-    }
-    return diagnoses;
-  };
+  const diagnosisThread = () => (diagnoses ??= workerPool(siblingWorker(import.meta.url, 'diagnosis.worker'), { minThreads: 0, maxThreads: 1, idleTimeout: 5 * 60_000 }));
   const queue: number[] = [];
   const cancelled = new Map<number, string>();
   let current: { id: number; controller: AbortController } | null = null;

@@ -1,6 +1,7 @@
 import type { MemberRole } from '@shared/permissions';
 import type { ExchangeModelInput, Effect } from '@shared/schemas/exchange';
 import type { EntryState } from '@shared/schemas/api';
+import { createRandom } from '../fit/synthetic';
 
 /**
  * The invented demo scenario: the LANTERN experiment at the (fictional) Meridian Ring collider
@@ -8,16 +9,9 @@ import type { EntryState } from '@shared/schemas/api';
  * detector signature). Every name and number here is invented and generated deterministically.
  */
 
-/** mulberry32: a small seeded PRNG, so the demo is the same on every machine. */
-export function prng(seed: number) {
-  let a = seed >>> 0;
-  const next = () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+/** The engine's seeded PRNG (mulberry32), so the demo is the same on every machine. */
+function prng(seed: number) {
+  const next = createRandom(seed);
   const normal = () => Math.sqrt(-2 * Math.log(1 - next())) * Math.cos(2 * Math.PI * next());
   /** Poisson: product of uniforms for small means, rounded normal beyond (demo data only). */
   const poisson = (mean: number) => {
@@ -38,7 +32,7 @@ export function prng(seed: number) {
 export const DEMO_PASSWORD = 'lantern-demo-2026';
 
 export type DemoAccount = { email: string; name: string; isAdmin: boolean; note: string };
-export const DEMO_ACCOUNTS: DemoAccount[] = [
+const DEMO_ACCOUNTS: DemoAccount[] = [
   { email: 'admin@lantern.example', name: 'Hollis Vantreight', isAdmin: true, note: 'admin: accounts, analyses, outbox' },
   { email: 'mira@lantern.example', name: 'Mira Quellbright', isAdmin: false, note: 'convener of both analyses' },
   { email: 'otto@lantern.example', name: 'Otto Brannholm', isAdmin: false, note: 'analyst' },

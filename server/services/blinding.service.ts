@@ -26,7 +26,6 @@ export function visibleObserved(analysis: Pick<AnalysisRow, 'blinding'>, region:
  * and only from the state the step expects, so two conveners deciding at once cannot both win.
  */
 export async function blindingLog(ctx: AppContext, access: Access): Promise<BlindingLog> {
-  const [a] = await ctx.db.select({ blinding: analyses.blinding }).from(analyses).where(eq(analyses.id, access.analysis.id));
   const events = await ctx.db
     .select({ id: blindingEvents.id, action: blindingEvents.action, note: blindingEvents.note, by: users.name, at: blindingEvents.createdAt })
     .from(blindingEvents)
@@ -34,7 +33,7 @@ export async function blindingLog(ctx: AppContext, access: Access): Promise<Blin
     .where(eq(blindingEvents.analysisId, access.analysis.id))
     .orderBy(desc(blindingEvents.createdAt), desc(blindingEvents.id));
   return {
-    state: a.blinding,
+    state: await currentState(ctx, access),
     events: events.map((e) => ({ id: e.id, action: e.action as BlindingLog['events'][number]['action'], note: e.note, by: e.by, at: e.at.toISOString() })),
   };
 }

@@ -141,7 +141,7 @@ const fixed = (x: number, d = 2) => x.toFixed(d);
  * "where the information comes from" once it holds 80 % of the data's part; a width ratio
  * within 10 % of 1 means the data alone explain the constraint.
  */
-export function summarise(
+function summarise(
   name: string,
   d: {
     pull: number;

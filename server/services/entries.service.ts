@@ -12,7 +12,8 @@ import type { EntryState } from '@shared/schemas/api';
 import { largestEffectPct } from '@shared/validation/variation-warnings';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { indexModel, loadModelRows } from '../db/model.repository';
+import { findEntry, type EntryRow } from '../db/entries.repository';
+import { indexModel, loadModelRows, type ModelIndex } from '../db/model.repository';
 import { addRevision, entryRevisions, type DbOrTx } from '../db/revisions.repository';
 import { effects, entries, groups, memberships, uploads, users } from '../db/schema';
 import { badRequest, conflict, forbidden, notFound, unprocessable } from '../errors';
@@ -21,13 +22,6 @@ import { readUpload } from '../uploads/upload';
 import { groupIdFor } from './groups.service';
 import { readVariationFile } from './variation-files';
 
-type EntryRow = typeof entries.$inferSelect;
-
-export async function findEntry(db: DbOrTx, analysisId: number, key: string): Promise<EntryRow> {
-  const [entry] = await db.select().from(entries).where(and(eq(entries.analysisId, analysisId), eq(entries.key, key)));
-  if (!entry) throw notFound(`Register entry "${key}"`);
-  return entry;
-}
 
 /** What the caller may do with this entry: the permission table plus ownership and review state. */
 export function entryPermissions(access: Access, entry: Pick<EntryRow, 'ownerId' | 'state'>): EntryDetail['can'] {
@@ -69,9 +63,10 @@ async function assertOwnerIsMember(db: DbOrTx, analysisId: number, ownerId: numb
   if (!m) throw unprocessable('The owner must be a member of this analysis: add them on the Members screen first.', [{ path: ['ownerId'], message: 'is not a member of this analysis' }]);
 }
 
-export async function getEntryDetail(ctx: AppContext, access: Access, key: string): Promise<EntryDetail> {
+/** One entry as its page shows it; a caller that has just loaded the model passes it along. */
+export async function getEntryDetail(ctx: AppContext, access: Access, key: string, loaded?: ModelIndex): Promise<EntryDetail> {
   const entry = await findEntry(ctx.db, access.analysis.id, key);
-  const model = indexModel(await loadModelRows(ctx.db, access.analysis.id));
+  const model = loaded ?? indexModel(await loadModelRows(ctx.db, access.analysis.id));
   const [owner] = entry.ownerId ? await ctx.db.select({ id: users.id, name: users.name, email: users.email }).from(users).where(eq(users.id, entry.ownerId)) : [];
   const effectRows = await ctx.db
     .select({ effect: effects, upload: { id: uploads.id, filename: uploads.filename, sha256: uploads.sha256, createdAt: uploads.createdAt } })
@@ -314,5 +309,6 @@ export async function deleteEffect(ctx: AppContext, access: Access, key: string,
     });
   });
   if (backToReview) await notifySubmitted(ctx, { baseUrl, analysis: access.analysis, entry, by: access.userName, reason: 'removed an effect of the accepted' });
-  return getEntryDetail(ctx, access, key);
+  // removing an effect leaves the model's regions and processes as they were
+  return getEntryDetail(ctx, access, key, model);
 }

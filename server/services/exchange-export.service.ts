@@ -31,6 +31,12 @@ export async function buildExchange(db: DbOrTx, analysis: AnalysisRow, opts: { w
         .where(eq(entries.analysisId, analysis.id))
         .orderBy(asc(effects.id))
     : [];
+  const effectsByEntry = new Map<number, typeof effectRows>();
+  for (const row of effectRows) {
+    const list = effectsByEntry.get(row.effects.entryId);
+    if (list) list.push(row);
+    else effectsByEntry.set(row.effects.entryId, [row]);
+  }
 
   const normTargets = new Map<number, { region: string; process: string }[]>();
   for (const t of rows.templates)
@@ -65,9 +71,7 @@ export async function buildExchange(db: DbOrTx, analysis: AnalysisRow, opts: { w
       ...label(entry.label, entry.key),
       ...(group ? { group } : {}),
       ...(entry.description ? { description: entry.description } : {}),
-      effects: effectRows
-        .filter((e) => e.effects.entryId === entry.id)
-        .map(({ effects: e }) => {
+      effects: (effectsByEntry.get(entry.id) ?? []).map(({ effects: e }) => {
           const where = { region: model.regionById.get(e.regionId)!.key, process: model.processById.get(e.processId)!.key };
           return e.kind === 'scale'
             ? { ...where, kind: 'scale' as const, up: e.up as number, down: e.down as number }

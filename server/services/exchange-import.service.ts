@@ -11,7 +11,7 @@ export type EntryMeta = { ownerId?: number | null; state?: EntryState; justifica
 
 
 /** Parses an exchange document with the shared schema; a bad one is refused with the failing paths. */
-export function parseExchange(document: unknown): ExchangeModel {
+function parseExchange(document: unknown): ExchangeModel {
   const parsed = exchangeModelSchema.safeParse(document);
   if (!parsed.success) throw unprocessable('The model file is not valid', zodIssues(parsed.error));
   return parsed.data;

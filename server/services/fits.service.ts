@@ -144,8 +144,8 @@ export async function startFit(ctx: AppContext, access: Access, body: unknown): 
   const version = await findVersion(ctx, access.analysis.id, input.version);
   const model = version.model as ExchangeModel;
   const options = input.options;
-  if (options.dataset === 'observed' && access.analysis.blinding !== 'unblinded') {
-    const included = model.regions.filter((r) => r.role === 'signal' && !options.controlOnly && !options.excludeRegions.includes(r.key));
+  if (options.dataset === 'observed') {
+    const included = model.regions.filter((r) => isWithheld(access.analysis, r) && !options.controlOnly && !options.excludeRegions.includes(r.key));
     if (included.length)
       throw conflict(
         `This analysis is blinded: a fit to observed data may not include a signal region (${included.map((r) => r.key).join(', ')}). Fit the control regions only, or an Asimov dataset, until a convener approves unblinding.`,

@@ -2,6 +2,7 @@ import { and, asc, eq, max } from 'drizzle-orm';
 import { groupInputSchema, moveEntrySchema, type GroupsView } from '@shared/schemas/register';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
+import { findEntry } from '../db/entries.repository';
 import { addRevision, type DbOrTx } from '../db/revisions.repository';
 import { entries, groups } from '../db/schema';
 import { conflict, notFound } from '../errors';
@@ -65,8 +66,7 @@ export async function deleteGroup(ctx: AppContext, access: Access, id: number) {
 
 export async function moveEntry(ctx: AppContext, access: Access, key: string, body: unknown): Promise<GroupsView> {
   const { groupId } = moveEntrySchema.parse(body);
-  const [entry] = await ctx.db.select().from(entries).where(and(eq(entries.analysisId, access.analysis.id), eq(entries.key, key)));
-  if (!entry) throw notFound(`Register entry "${key}"`);
+  const entry = await findEntry(ctx.db, access.analysis.id, key);
   const before = entry.groupId ? (await findGroup(ctx, access, entry.groupId)).name : null;
   const after = groupId ? (await findGroup(ctx, access, groupId)).name : null;
   if (entry.groupId !== groupId)

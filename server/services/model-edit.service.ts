@@ -1,4 +1,4 @@
-import { and, count, eq, max } from 'drizzle-orm';
+import { and, count, eq, max, type SQL } from 'drizzle-orm';
 import type { Region, Process } from '@shared/schemas/api';
 import { processView, regionView } from './model.service';
 import {
@@ -47,8 +47,11 @@ async function findProcess(db: DbOrTx, access: Access, key: string) {
   if (!p) throw notFound(`Process "${key}"`);
   return p;
 }
-const effectCount = async (db: DbOrTx, column: typeof effects.regionId | typeof effects.processId, id: number) =>
-  (await db.select({ n: count() }).from(effects).where(eq(column, id)))[0].n;
+/** A region, process or template that register effects vary stays until those effects are removed. */
+async function refuseIfVaried(db: DbOrTx, varying: SQL | undefined, what: string) {
+  const [{ n }] = await db.select({ n: count() }).from(effects).where(varying);
+  if (n > 0) throw conflict(`${n} register effect${n === 1 ? '' : 's'} vary ${what}. Remove them from their entries first.`);
+}
 
 export async function createRegion(ctx: AppContext, access: Access, body: unknown): Promise<Region> {
   const input = regionInputSchema.parse(body);
@@ -86,8 +89,7 @@ export async function updateRegion(ctx: AppContext, access: Access, key: string,
 
 export async function deleteRegion(ctx: AppContext, access: Access, key: string) {
   const region = await findRegion(ctx.db, access, key);
-  const n = await effectCount(ctx.db, effects.regionId, region.id);
-  if (n > 0) throw conflict(`${n} register effect${n === 1 ? '' : 's'} vary templates of region "${key}". Remove them from their entries first.`);
+  await refuseIfVaried(ctx.db, eq(effects.regionId, region.id), `templates of region "${key}"`);
   await ctx.db.transaction(async (tx) => {
     await tx.delete(regions).where(eq(regions.id, region.id));
     await modelRevision(tx, access, 'region.deleted', `Removed region "${key}" and its templates.`, { key, role: region.role, edges: region.edges });
@@ -131,8 +133,7 @@ export async function updateProcess(ctx: AppContext, access: Access, key: string
 
 export async function deleteProcess(ctx: AppContext, access: Access, key: string) {
   const process = await findProcess(ctx.db, access, key);
-  const n = await effectCount(ctx.db, effects.processId, process.id);
-  if (n > 0) throw conflict(`${n} register effect${n === 1 ? '' : 's'} vary templates of process "${key}". Remove them from their entries first.`);
+  await refuseIfVaried(ctx.db, eq(effects.processId, process.id), `templates of process "${key}"`);
   await ctx.db.transaction(async (tx) => {
     await tx.delete(processes).where(eq(processes.id, process.id));
     await modelRevision(tx, access, 'process.deleted', `Removed process "${key}" and its templates.`, { key, kind: process.kind });
@@ -191,8 +192,7 @@ export async function deleteTemplate(ctx: AppContext, access: Access, regionKey:
   const process = await findProcess(ctx.db, access, processKey);
   const [t] = await ctx.db.select().from(templates).where(and(eq(templates.regionId, region.id), eq(templates.processId, process.id)));
   if (!t) throw notFound(`The template of process "${processKey}" in region "${regionKey}"`);
-  const [{ n }] = await ctx.db.select({ n: count() }).from(effects).where(and(eq(effects.regionId, region.id), eq(effects.processId, process.id)));
-  if (n > 0) throw conflict(`${n} register effect${n === 1 ? '' : 's'} vary this template. Remove them from their entries first.`);
+  await refuseIfVaried(ctx.db, and(eq(effects.regionId, region.id), eq(effects.processId, process.id)), 'this template');
   await ctx.db.transaction(async (tx) => {
     await tx.delete(templates).where(eq(templates.id, t.id));
     await modelRevision(tx, access, 'template.deleted', `Removed the template of process "${processKey}" in region "${regionKey}".`, { nominal: t.nominal });

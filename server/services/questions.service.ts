@@ -10,6 +10,7 @@ import {
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { answers, entries, fits, groups, questions, users } from '../db/schema';
+import { findEntry } from '../db/entries.repository';
 import { conflict, notFound } from '../errors';
 import { notifyQuestionAnswered, notifyQuestionRaised, notifyQuestionStep } from '../mail/notifications';
 
@@ -103,7 +104,7 @@ async function questionRow(ctx: AppContext, access: Access, id: number) {
   return row;
 }
 
-const mailOf = (access: Access, baseUrl: string, row: Awaited<ReturnType<typeof questionRow>>) => ({
+const mailOf = (access: Access, baseUrl: string, row: { q: { id: number; title: string }; entry: { key: string; label: string; ownerId: number | null } }) => ({
   baseUrl,
   analysis: access.analysis,
   questionId: row.q.id,
@@ -115,11 +116,7 @@ const mailOf = (access: Access, baseUrl: string, row: Awaited<ReturnType<typeof 
 
 export async function raiseQuestion(ctx: AppContext, access: Access, body: unknown, baseUrl: string): Promise<QuestionDetail> {
   const input = raiseQuestionSchema.parse(body);
-  const [entry] = await ctx.db
-    .select({ id: entries.id })
-    .from(entries)
-    .where(and(eq(entries.analysisId, access.analysis.id), eq(entries.key, input.entry)));
-  if (!entry) throw notFound(`Register entry "${input.entry}"`);
+  const entry = await findEntry(ctx.db, access.analysis.id, input.entry);
   let fitLabel: string | null = null;
   if (input.fitId !== null) {
     const [fit] = await ctx.db
@@ -133,8 +130,7 @@ export async function raiseQuestion(ctx: AppContext, access: Access, body: unkno
     .insert(questions)
     .values({ analysisId: access.analysis.id, entryId: entry.id, fitId: input.fitId, authorId: access.userId, title: input.title, body: input.body })
     .returning({ id: questions.id });
-  const row = await questionRow(ctx, access, q.id);
-  await notifyQuestionRaised(ctx, { ...mailOf(access, baseUrl, row), body: input.body, fit: fitLabel });
+  await notifyQuestionRaised(ctx, { ...mailOf(access, baseUrl, { q: { id: q.id, title: input.title }, entry }), body: input.body, fit: fitLabel });
   return getQuestion(ctx, access, q.id);
 }
 

@@ -33,7 +33,7 @@ export type ReadyEffect = {
   transformed: string[];
 };
 
-export const VARIATION_COLUMNS = ['region', 'process', 'kind', 'bin', 'up', 'down'];
+const VARIATION_COLUMNS = ['region', 'process', 'kind', 'bin', 'up', 'down'];
 
 function readCsvVariations(file: UploadedFile, model: ModelIndex, problems: FileProblems): RawEffect[] {
   const { rows } = readCsv(file.text, file.filename, { required: VARIATION_COLUMNS });

@@ -42,8 +42,6 @@ export const meSchema = z.object({
 });
 export type Me = z.infer<typeof meSchema>;
 
-export const csrfSchema = z.object({ token: z.string() });
-
 // ---- accounts (admin)
 export const createUserSchema = z.strictObject({
   email,

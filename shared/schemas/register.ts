@@ -219,8 +219,6 @@ export const acceptInvitationSchema = z.strictObject({
   name: z.string().trim().min(1, 'is required').max(120),
   password: z.string().min(10, 'must be at least 10 characters').max(200),
 });
-/** Inviting an e-mail that already has an account adds the member at once. */
-export const inviteOutcomeSchema = z.object({ outcome: z.enum(['added', 'invited']), email: z.string() });
 
 // ---- outbox
 export const outboxMessageSchema = z.object({

@@ -6,7 +6,7 @@ export type VariationWarning = { code: VariationWarningCode; message: string; bi
 export type VariationWarningCode = 'same-side' | 'over-100-percent' | 'zero-effect' | 'flat-shape' | 'empty-nominal';
 
 /** Relative spread below which a shape effect counts as flat (common practice, no source). */
-export const FLAT_TOLERANCE = 1e-3;
+const FLAT_TOLERANCE = 1e-3;
 
 const binList = (bins: number[]) => {
   const shown = bins.slice(0, 8).map((b) => b + 1).join(', ');
