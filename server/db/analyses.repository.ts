@@ -1,5 +1,6 @@
 import { and, asc, count, eq, sql } from 'drizzle-orm';
 import type { MemberRole } from '@shared/permissions';
+import { watched } from './announcements';
 import type { Db } from './client';
 import { analyses, entries, memberships, users } from './schema';
 
@@ -7,23 +8,29 @@ export type AnalysisRow = typeof analyses.$inferSelect;
 
 /**
  * Every request asks who the caller is in an analysis; the embedded database answers one query at
- * a time, so answers are kept in memory until a membership or analysis changes (forgetAccess,
- * called by every writer of those tables) and for at most 5 seconds.
+ * a time, so answers are kept in memory until the database announces a change to analyses or
+ * memberships (triggers in drizzle/0003; see announcements.ts). No writer has to remember it.
  */
-const accessCopies = new WeakMap<Db, Map<string, { value: Awaited<ReturnType<typeof readAnalysisAccess>>; until: number }>>();
-export function forgetAccess(db: Db) {
-  accessCopies.get(db)?.clear();
-}
+const accessCopies = (db: Db) =>
+  watched(
+    db.$client,
+    'access_changed',
+    () => new Map<string, ReturnType<typeof readAnalysisAccess>>(),
+    (copies) => copies.clear(),
+  );
+
 export async function findAnalysisAccess(db: Db, slug: string, userId: number) {
-  let copies = accessCopies.get(db);
-  if (!copies) accessCopies.set(db, (copies = new Map()));
+  const copies = await accessCopies(db);
   const key = `${slug}\u0000${userId}`;
-  const copy = copies.get(key);
-  if (copy && copy.until > Date.now()) return copy.value;
-  const value = await readAnalysisAccess(db, slug, userId);
-  if (copies.size > 10_000) copies.clear();
-  copies.set(key, { value, until: Date.now() + 5000 });
-  return value;
+  let copy = copies.get(key);
+  if (!copy) {
+    // kept before it is read, so that a change announced meanwhile drops it too
+    if (copies.size > 10_000) copies.clear();
+    copy = readAnalysisAccess(db, slug, userId);
+    copies.set(key, copy);
+    copy.catch(() => copies.get(key) === copy && copies.delete(key));
+  }
+  return copy;
 }
 
 async function readAnalysisAccess(db: Db, slug: string, userId: number) {
@@ -52,7 +59,6 @@ export async function listAnalysesFor(db: Db, userId: number, isAdmin: boolean) 
 
 export async function insertAnalysis(db: Db, values: typeof analyses.$inferInsert) {
   const [row] = await db.insert(analyses).values(values).returning();
-  forgetAccess(db);
   return row;
 }
 

@@ -5,7 +5,7 @@ import { drizzle, type PgliteDatabase } from 'drizzle-orm/pglite';
 import { migrate } from 'drizzle-orm/pglite/migrator';
 import * as schema from './schema';
 
-export type Db = PgliteDatabase<typeof schema>;
+export type Db = PgliteDatabase<typeof schema> & { $client: PGlite };
 export type Database = { db: Db; client: PGlite; close: () => Promise<void> };
 
 /** drizzle/ is resolved from the project root (the folder npm runs scripts in), also when bundled. */

@@ -1,9 +1,9 @@
 import { asc, eq } from 'drizzle-orm';
-import type { Db } from './client';
+import type { DbOrTx } from './revisions.repository';
 import { floatingNorms, processes, regions, templates } from './schema';
 
 /** The binned model of one analysis, as rows (observed counts included: callers apply blinding). */
-export async function loadModelRows(db: Db, analysisId: number) {
+export async function loadModelRows(db: DbOrTx, analysisId: number) {
   const [regionRows, processRows, normRows, templateRows] = await Promise.all([
     db.select().from(regions).where(eq(regions.analysisId, analysisId)).orderBy(asc(regions.position), asc(regions.id)),
     db.select().from(processes).where(eq(processes.analysisId, analysisId)).orderBy(asc(processes.position), asc(processes.id)),

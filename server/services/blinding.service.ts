@@ -2,7 +2,7 @@ import { and, desc, eq } from 'drizzle-orm';
 import { unblindingDecisionSchema, unblindingRequestSchema, type BlindingLog } from '@shared/schemas/review';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { forgetAccess, type AnalysisRow } from '../db/analyses.repository';
+import type { AnalysisRow } from '../db/analyses.repository';
 import { analyses, blindingEvents, users } from '../db/schema';
 import { badRequest, conflict } from '../errors';
 import { notifyUnblindingDecided, notifyUnblindingRequested } from '../mail/notifications';
@@ -49,8 +49,6 @@ async function moveState(ctx: AppContext, access: Access, from: AnalysisRow['bli
     await tx.insert(blindingEvents).values({ analysisId: access.analysis.id, userId: access.userId, action, note });
     return true;
   });
-  // every request after this one sees the new state
-  forgetAccess(ctx.db);
   return moved;
 }
 

@@ -6,7 +6,6 @@ import { hashPassword } from '../auth/passwords';
 import type { AppContext } from '../context';
 import { analyses, invitations, memberships, users } from '../db/schema';
 import { findUserByEmail } from '../db/users.repository';
-import { forgetAccess } from '../db/analyses.repository';
 import { AppError, conflict, notFound } from '../errors';
 import { notifyAdded, notifyInvitation } from '../mail/notifications';
 
@@ -22,8 +21,7 @@ export async function invite(ctx: AppContext, access: Access, body: unknown, bas
     const [existing] = await ctx.db.select().from(memberships).where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, user.id)));
     if (existing) throw conflict(`${user.name} is already a member (${existing.role}). Change their role instead.`);
     await ctx.db.insert(memberships).values({ analysisId: access.analysis.id, userId: user.id, role });
-    forgetAccess(ctx.db);
-    await notifyAdded(ctx, { baseUrl, analysis: access.analysis, email, role, inviter: access.userName });
+      await notifyAdded(ctx, { baseUrl, analysis: access.analysis, email, role, inviter: access.userName });
     return { outcome: 'added' as const, email };
   }
   const token = randomBytes(24).toString('base64url');
@@ -61,5 +59,5 @@ export async function acceptInvitation(ctx: AppContext, token: string, body: unk
     await tx.insert(memberships).values({ analysisId: invitation.analysisId, userId: user.id, role: invitation.role });
     await tx.update(invitations).set({ acceptedAt: new Date() }).where(eq(invitations.id, invitation.id));
     return user;
-  }).finally(() => forgetAccess(ctx.db));
+  });
 }

@@ -2,7 +2,7 @@ import { and, eq } from 'drizzle-orm';
 import { addMemberSchema, updateMemberSchema, type Member } from '@shared/schemas/api';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { countConveners, forgetAccess, listMembers as listMemberRows } from '../db/analyses.repository';
+import { countConveners, listMembers as listMemberRows } from '../db/analyses.repository';
 import { memberships } from '../db/schema';
 import { findUserByEmail } from '../db/users.repository';
 import { conflict, notFound } from '../errors';
@@ -35,7 +35,6 @@ export async function addMember(ctx: AppContext, access: Access, body: unknown):
   const existing = (await listMemberRows(ctx.db, access.analysis.id)).find((m) => m.userId === user.id);
   if (existing) throw conflict(`${user.name} is already a member (${existing.role}). Change their role instead.`);
   await ctx.db.insert(memberships).values({ analysisId: access.analysis.id, userId: user.id, role: input.role });
-  forgetAccess(ctx.db);
   return toMember(await findMember(ctx, access, user.id));
 }
 
@@ -47,7 +46,6 @@ export async function changeRole(ctx: AppContext, access: Access, userId: number
     .update(memberships)
     .set({ role: input.role })
     .where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, userId)));
-  forgetAccess(ctx.db);
   return toMember(await findMember(ctx, access, userId));
 }
 
@@ -55,5 +53,4 @@ export async function removeMember(ctx: AppContext, access: Access, userId: numb
   const member = await findMember(ctx, access, userId);
   await assertKeepsAConvener(ctx, access, member, null);
   await ctx.db.delete(memberships).where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, userId)));
-  forgetAccess(ctx.db);
 }

@@ -4,6 +4,7 @@ import type { Db } from '../db/client';
 import type { EntrySummary } from '@shared/schemas/api';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
+import { watched } from '../db/announcements';
 import { encodeJson, type Encoded } from '../routes/encoded';
 import { effects, entries, groups, processes, questions, regions, templates, users } from '../db/schema';
 
@@ -14,17 +15,13 @@ import { effects, entries, groups, processes, questions, regions, templates, use
  * owners' names on the channel "register_changed" at commit (drizzle/0002), so no writer can forget to,
  * and the embedded database delivers the announcement before the writing query returns.
  */
-const registerCopies = new WeakMap<object, Promise<Map<number, Promise<Encoded>>>>();
-
-function copiesOf(ctx: AppContext) {
-  let copies = registerCopies.get(ctx.client);
-  if (!copies) {
-    const map = new Map<number, Promise<Encoded>>();
-    copies = ctx.client.listen('register_changed', (analysisId) => map.delete(Number(analysisId))).then(() => map);
-    registerCopies.set(ctx.client, copies);
-  }
-  return copies;
-}
+const copiesOf = (ctx: AppContext) =>
+  watched(
+    ctx.client,
+    'register_changed',
+    () => new Map<number, Promise<Encoded>>(),
+    (copies, analysisId) => copies.delete(Number(analysisId)),
+  );
 
 /** The register as response bytes, built once per change. */
 export async function listEntriesEncoded(ctx: AppContext, access: Access): Promise<Encoded> {

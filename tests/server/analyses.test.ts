@@ -81,3 +81,26 @@ describe('blinding in the model response', () => {
     expect(sr.observed).toHaveLength(sr.edges.length - 1);
   });
 });
+
+describe('who a user is in an analysis, kept in memory', () => {
+  it('follows every change to memberships and analyses made in the database, whichever path made it', async () => {
+    const t = await createTestApp();
+    try {
+      const reader = await signedIn(t.app, DEMO.reader);
+      const A = '/api/analyses/cascade-rate';
+      expect((await reader.get(A)).body.role).toBe('reader');
+      // writes that bypass the services: the triggers announce them all the same
+      await t.database.client.query(`update memberships set role = 'analyst' where user_id = (select id from users where email = $1) and analysis_id = (select id from analyses where slug = 'cascade-rate')`, [DEMO.reader]);
+      expect((await reader.get(A)).body.role).toBe('analyst');
+      await t.database.client.query(`update analyses set blinding = 'blinded' where slug = 'cascade-rate'`);
+      expect((await reader.get(A)).body.analysis.blinding).toBe('blinded');
+      await t.database.client.query(`delete from memberships where user_id = (select id from users where email = $1)`, [DEMO.reader]);
+      expect((await reader.get(A)).status).toBe(403);
+      expect((await reader.get('/api/analyses/fresh-one')).status).toBe(404);
+      await t.database.client.query(`insert into analyses (slug, name) values ('fresh-one', 'Fresh')`);
+      expect((await reader.get('/api/analyses/fresh-one')).status).toBe(403);
+    } finally {
+      await t.close();
+    }
+  });
+});

@@ -2,7 +2,6 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { hashPassword } from '../../server/auth/passwords';
-import { forgetAccess } from '../../server/db/analyses.repository';
 import { analyses, effects, entries, fits, groups, invitations, memberships, modelVersions, processes, questions, regions, users } from '../../server/db/schema';
 import { Client, createTestApp, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
 
@@ -113,7 +112,6 @@ async function freshQuestion(t: TestApp, state: 'open' | 'resolved' = 'open') {
 }
 async function setBlinding(t: TestApp, state: 'blinded' | 'unblinding_requested') {
   await t.database.db.update(analyses).set({ blinding: state }).where(eq(analyses.slug, SLUG));
-  forgetAccess(t.database.db);
 }
 const managersAndAnalysts = (ok: number) => ({ ...all(403), signedOut: 401, analyst: ok, convener: ok });
 /** a frozen version and one converged fit of the analysis, made once through the API */

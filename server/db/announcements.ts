@@ -1,0 +1,21 @@
+import type { PGlite } from '@electric-sql/pglite';
+
+/**
+ * Copies kept in memory stay true by listening to what the database announces: triggers in the
+ * migrations `pg_notify` a channel at commit whenever rows a copy depends on change, and the
+ * embedded database delivers the notice before the writing query returns. `watched` makes the
+ * per-database state of one channel once, subscribes it, and hands every caller the same state.
+ */
+const watchers = new WeakMap<object, Map<string, Promise<unknown>>>();
+
+export function watched<T>(client: PGlite, channel: string, create: () => T, onNotice: (state: T, payload: string) => void): Promise<T> {
+  let channels = watchers.get(client);
+  if (!channels) watchers.set(client, (channels = new Map()));
+  let state = channels.get(channel) as Promise<T> | undefined;
+  if (!state) {
+    const value = create();
+    state = client.listen(channel, (payload) => onNotice(value, payload)).then(() => value);
+    channels.set(channel, state);
+  }
+  return state;
+}
