@@ -8,6 +8,7 @@ import { analyses, invitations, memberships, users } from '../db/schema';
 import { findUserByEmail } from '../db/users.repository';
 import { AppError, conflict, notFound } from '../errors';
 import { notifyAdded, notifyInvitation } from '../mail/notifications';
+import { addMembership } from './members.service';
 
 /** An invitation link works once and for 14 days (common practice, no source). */
 const INVITATION_DAYS = 14;
@@ -18,10 +19,8 @@ export async function invite(ctx: AppContext, access: Access, body: unknown, bas
   const { email, role } = invitationInputSchema.parse(body);
   const user = await findUserByEmail(ctx.db, email);
   if (user) {
-    const [existing] = await ctx.db.select().from(memberships).where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, user.id)));
-    if (existing) throw conflict(`${user.name} is already a member (${existing.role}). Change their role instead.`);
-    await ctx.db.insert(memberships).values({ analysisId: access.analysis.id, userId: user.id, role });
-      await notifyAdded(ctx, { baseUrl, analysis: access.analysis, email, role, inviter: access.userName });
+    await addMembership(ctx, access, user, role);
+    await notifyAdded(ctx, { baseUrl, analysis: access.analysis, email, role, inviter: access.userName });
     return { outcome: 'added' as const, email };
   }
   const token = randomBytes(24).toString('base64url');

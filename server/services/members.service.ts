@@ -28,13 +28,18 @@ async function assertKeepsAConvener(ctx: AppContext, access: Access, member: { r
     throw conflict('This is the analysis\u2019s only convener. Make someone else convener first.');
 }
 
+/** Adds an existing account as a member; someone who is one already is refused, naming their role. */
+export async function addMembership(ctx: AppContext, access: Access, user: { id: number; name: string }, role: Member['role']) {
+  const [existing] = await ctx.db.select().from(memberships).where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, user.id)));
+  if (existing) throw conflict(`${user.name} is already a member (${existing.role}). Change their role instead.`);
+  await ctx.db.insert(memberships).values({ analysisId: access.analysis.id, userId: user.id, role });
+}
+
 export async function addMember(ctx: AppContext, access: Access, body: unknown): Promise<Member> {
   const input = addMemberSchema.parse(body);
   const user = await findUserByEmail(ctx.db, input.email);
   if (!user) throw notFound(`An account with the e-mail ${input.email} (an admin creates accounts on the Accounts screen)`);
-  const existing = (await listMemberRows(ctx.db, access.analysis.id)).find((m) => m.userId === user.id);
-  if (existing) throw conflict(`${user.name} is already a member (${existing.role}). Change their role instead.`);
-  await ctx.db.insert(memberships).values({ analysisId: access.analysis.id, userId: user.id, role: input.role });
+  await addMembership(ctx, access, user, input.role);
   return toMember(await findMember(ctx, access, user.id));
 }
 
