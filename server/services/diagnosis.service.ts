@@ -7,6 +7,7 @@ import type { AppContext } from '../context';
 import { entries, modelVersions, users } from '../db/schema';
 import { conflict, notFound } from '../errors';
 import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
+import { keptResults } from '../kept';
 import { isWithheld } from './blinding.service';
 import { findFit, storedHead, storedPart, summaryOf } from './fits.service';
 
@@ -18,27 +19,15 @@ import { findFit, storedHead, storedPart, summaryOf } from './fits.service';
  * plain words in which every sentence names the panel element that shows its numbers.
  */
 type Computed = { numbers: ParameterDiagnosisNumbers; regions: ExchangeModel['regions'] };
-const numbersCopies = new WeakMap<object, Map<string, Promise<Computed>>>();
-const KEEP = 64;
+const computed = keptResults<Computed>(64);
 
-async function numbersFor(ctx: AppContext, fitId: number, versionId: number, options: unknown, parameter: string) {
-  let copies = numbersCopies.get(ctx.db);
-  if (!copies) numbersCopies.set(ctx.db, (copies = new Map()));
-  const key = `${fitId}\u0000${parameter}`;
-  let hit = copies.get(key);
-  if (!hit) {
-    hit = (async () => {
-      const [version] = await ctx.db.select({ model: modelVersions.model }).from(modelVersions).where(eq(modelVersions.id, versionId));
-      const model = exchangeModelSchema.parse(version.model);
-      // the regions' labels and edges are all the panel needs of the model afterwards
-      return { numbers: await ctx.fits.diagnose(model, fitOptionsSchema.parse(options), parameter), regions: model.regions };
-    })();
-    copies.set(key, hit);
-    if (copies.size > KEEP) copies.delete(copies.keys().next().value!);
-    hit.catch(() => copies.delete(key));
-  }
-  return hit;
-}
+const numbersFor = (ctx: AppContext, fitId: number, versionId: number, options: unknown, parameter: string) =>
+  computed(ctx.db, `${fitId}\u0000${parameter}`, async () => {
+    const [version] = await ctx.db.select({ model: modelVersions.model }).from(modelVersions).where(eq(modelVersions.id, versionId));
+    const model = exchangeModelSchema.parse(version.model);
+    // the regions' labels and edges are all the panel needs of the model afterwards
+    return { value: { numbers: await ctx.fits.diagnose(model, fitOptionsSchema.parse(options), parameter), regions: model.regions }, final: true };
+  });
 
 export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: number, parameter: string): Promise<Diagnosis> {
   const row = await findFit(ctx, access, fitId);

@@ -7,6 +7,7 @@ import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { fits, modelVersions, users } from '../db/schema';
 import { conflict, notFound } from '../errors';
+import { keptResults } from '../kept';
 import { encodeJson, type Encoded } from '../routes/encoded';
 import { isWithheld } from './blinding.service';
 import { findVersion } from './versions.service';
@@ -95,44 +96,28 @@ export async function listFits(ctx: AppContext, access: Access): Promise<FitSumm
  * head, and each large part) is encoded once and kept (per database, a few fits), keyed by what
  * decides its bytes: the fit, the part, and whether blinding removes data from it.
  */
-const encodedCopies = new WeakMap<object, Map<string, Promise<Encoded>>>();
-const KEEP = 24;
+const encodedResponses = keptResults<Encoded>(24);
 
 const headOf = ({ yields: _y, gammas: { list: _l, ...gammas }, ...head }: StoredHead): FitResultHead => ({ ...head, gammas });
 
-export async function getFitEncoded(ctx: AppContext, access: Access, id: number, part: 'head' | FitPartName = 'head'): Promise<Encoded> {
-  let cache = encodedCopies.get(ctx.db);
-  if (!cache) encodedCopies.set(ctx.db, (cache = new Map()));
+export function getFitEncoded(ctx: AppContext, access: Access, id: number, part: 'head' | FitPartName = 'head'): Promise<Encoded> {
   const key = `${access.analysis.id}:${id}:${access.analysis.blinding === 'unblinded' ? 'open' : 'blind'}:${part}`;
-  const hit = cache.get(key);
-  if (hit) {
-    // most recently used last
-    cache.delete(key);
-    cache.set(key, hit);
-    return hit;
-  }
-  // readers arriving while it is encoded wait for the same bytes
-  const made = encodeFit(ctx, access, id, part);
-  const encoded = made.then((m) => m.encoded);
-  cache.set(key, encoded);
-  if (cache.size > KEEP) cache.delete(cache.keys().next().value!);
-  // a queued or running fit changes until it ends, and a failure is not kept
-  made.then((m) => !m.final && cache.delete(key)).catch(() => cache.delete(key));
-  return encoded;
+  return encodedResponses(ctx.db, key, () => encodeFit(ctx, access, id, part));
 }
 
-async function encodeFit(ctx: AppContext, access: Access, id: number, part: 'head' | FitPartName): Promise<{ encoded: Encoded; final: boolean }> {
+/** The response bytes of a fit's head or part; not final while the fit is queued or running. */
+async function encodeFit(ctx: AppContext, access: Access, id: number, part: 'head' | FitPartName): Promise<{ value: Encoded; final: boolean }> {
   const row = await findFit(ctx, access, id);
   const active = row.fit.state === 'queued' || row.fit.state === 'running';
   if (active && part !== 'head') throw conflict(`Fit ${id} has not finished yet; its ${part} is there when it ends.`);
   if (part === 'head') {
     // the parts hold no observed counts: the blinding rule concerns the head's data only
     const head = active ? null : blindResult(access, await storedHead(ctx, id));
-    return { encoded: await encodeJson({ ...summaryOf(row.fit, row.version, row.by), result: head && headOf(head) }), final: !active };
+    return { value: await encodeJson({ ...summaryOf(row.fit, row.version, row.by), result: head && headOf(head) }), final: !active };
   }
   const { stored, part: value } = await storedPart(ctx, id, part);
   if (!stored) throw conflict(`Fit ${id} ended without a result (${row.fit.state}).`);
-  return { encoded: await encodeJson(value), final: true };
+  return { value: await encodeJson(value), final: true };
 }
 
 /**
