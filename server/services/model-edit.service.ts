@@ -1,5 +1,6 @@
 import { and, count, eq, max, type SQL } from 'drizzle-orm';
 import type { Region, Process } from '@shared/schemas/api';
+import { LIMITS } from '@shared/schemas/exchange';
 import { processView, regionView } from './model.service';
 import {
   floatingNormInputSchema,
@@ -217,9 +218,9 @@ function readTemplatesCsv(text: string, filename: string, model: ModelIndex): Te
     g.rows++;
     const bin = binCell(problems, row, { region, bins, of: `region "${region}", process "${process}"`, seen: g.filled });
     if (bin === null) continue;
-    const nominal = numberCell(problems, row, 'nominal', { min: 0 });
+    const nominal = numberCell(problems, row, 'nominal', { min: 0, max: LIMITS.yield });
     if (row.get('nominal') === '') problems.at(row.line, 'nominal', 'is empty');
-    const variance = numberCell(problems, row, 'variance', { min: 0 });
+    const variance = numberCell(problems, row, 'variance', { min: 0, max: LIMITS.variance });
     if (row.get('variance') !== '') g.withVariance++;
     if (nominal !== null) g.nominal[bin - 1] = nominal;
     if (variance !== null) g.variance[bin - 1] = variance;
@@ -247,7 +248,7 @@ function readObservedCsv(text: string, filename: string, model: ModelIndex) {
     const g = groups.get(region)!;
     const bin = binCell(problems, row, { region, bins, of: `region "${region}"`, seen: g.filled });
     if (bin === null) continue;
-    const n = numberCell(problems, row, 'observed', { min: 0 });
+    const n = numberCell(problems, row, 'observed', { min: 0, max: LIMITS.yield });
     if (row.get('observed') === '') problems.at(row.line, 'observed', 'is empty');
     if (n !== null) g.counts[bin - 1] = n;
   }

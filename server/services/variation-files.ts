@@ -1,5 +1,6 @@
 import { variationJsonSchema, type VariationOptions } from '@shared/schemas/register';
 import { flatRatios, scaleWarnings, shapeWarnings, type VariationWarning } from '@shared/validation/variation-warnings';
+import { LIMITS } from '@shared/schemas/exchange';
 import type { ModelIndex } from '../db/model.repository';
 import { binCell, FileProblems, numberCell, readCsv } from '../uploads/csv';
 import { looksLikeJson, type UploadedFile } from '../uploads/upload';
@@ -36,7 +37,7 @@ export type ReadyEffect = {
 const VARIATION_COLUMNS = ['region', 'process', 'kind', 'bin', 'up', 'down'];
 
 function readCsvVariations(file: UploadedFile, model: ModelIndex, problems: FileProblems): RawEffect[] {
-  const { rows } = readCsv(file.text, file.filename, { required: VARIATION_COLUMNS });
+  const { rows } = readCsv(file.text, file.filename, { required: VARIATION_COLUMNS }, problems);
   const groups = new Map<string, { region: string; process: string; kind: 'scale' | 'shape'; rows: typeof rows }>();
   for (const row of rows) {
     const region = row.get('region');
@@ -71,8 +72,8 @@ function readCsvVariations(file: UploadedFile, model: ModelIndex, problems: File
     if (g.kind === 'scale') {
       g.rows.slice(1).forEach((r) => problems.at(r.line, 'region', `a second scale row for region "${g.region}", process "${g.process}" (first in row ${first.line})`));
       if (first.get('bin') !== '') problems.at(first.line, 'bin', 'leave the bin empty in a scale row: a ratio applies to every bin');
-      const up = numberCell(problems, first, 'up', { positive: true });
-      const down = numberCell(problems, first, 'down', { positive: true });
+      const up = numberCell(problems, first, 'up', { positive: true, min: 1 / LIMITS.ratio, max: LIMITS.ratio });
+      const down = numberCell(problems, first, 'down', { positive: true, min: 1 / LIMITS.ratio, max: LIMITS.ratio });
       if (first.get('up') === '') problems.at(first.line, 'up', 'is empty: give the ratio at +1σ (e.g. 1.04)');
       if (up !== null) effects.push({ region: g.region, process: g.process, kind: 'scale', up, down, where: { line: first.line, column: null } });
       continue;
@@ -85,9 +86,9 @@ function readCsvVariations(file: UploadedFile, model: ModelIndex, problems: File
     for (const r of g.rows) {
       const bin = binCell(problems, r, { region: g.region, bins, of: `region "${g.region}", process "${g.process}"`, seen, emptyHint: `is empty: a shape row gives one bin (1 to ${bins})` });
       if (bin === null) continue;
-      const u = numberCell(problems, r, 'up', { min: 0 });
+      const u = numberCell(problems, r, 'up', { min: 0, max: LIMITS.yield });
       if (r.get('up') === '') problems.at(r.line, 'up', 'is empty: give the yield at +1σ in this bin');
-      const d = numberCell(problems, r, 'down', { min: 0 });
+      const d = numberCell(problems, r, 'down', { min: 0, max: LIMITS.yield });
       if (r.get('down') !== '') withDown++;
       if (u !== null) up[bin - 1] = u;
       if (d !== null) down[bin - 1] = d;

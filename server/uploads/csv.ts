@@ -31,8 +31,7 @@ export class FileProblems {
  * file is refused when a required column is missing or an unknown one is present. Row numbers
  * count the header as row 1, as a spreadsheet shows them.
  */
-export function readCsv(text: string, filename: string, columns: { required: string[]; optional?: string[] }) {
-  const problems = new FileProblems(filename);
+export function readCsv(text: string, filename: string, columns: { required: string[]; optional?: string[] }, problems = new FileProblems(filename)) {
   const parsed = Papa.parse<string[]>(text, { skipEmptyLines: 'greedy' });
   for (const e of parsed.errors.slice(0, 20)) problems.at(e.row !== undefined ? e.row + 1 : null, null, `the CSV cannot be read (${e.message})`);
   problems.throwIfAny();
@@ -48,13 +47,17 @@ export function readCsv(text: string, filename: string, columns: { required: str
   });
   if (!body.length) problems.at(null, null, 'has a header but no data rows');
   problems.throwIfAny();
+  // a row longer or shorter than the header is a shifted or cut row: its cells cannot be trusted
+  body.forEach((cells, i) => {
+    if (cells.length !== names.length) problems.at(i + 2, null, `has ${cells.length} cell${cells.length === 1 ? '' : 's'}, but the header has ${names.length} columns`);
+  });
   const index = new Map(names.map((n, i) => [n, i]));
   const rows: CsvRow[] = body.map((cells, i) => ({ line: i + 2, get: (c: string) => (index.has(c) ? (cells[index.get(c)!] ?? '').trim() : '') }));
   return { rows, problems };
 }
 
 /** A number cell: refuses text, NaN and infinities with the row and column. Returns null for an empty cell. */
-export function numberCell(problems: FileProblems, row: CsvRow, column: string, rule: { min?: number; positive?: boolean; integer?: boolean } = {}): number | null {
+export function numberCell(problems: FileProblems, row: CsvRow, column: string, rule: { min?: number; max?: number; positive?: boolean; integer?: boolean } = {}): number | null {
   const raw = row.get(column);
   if (raw === '') return null;
   const value = Number(raw);
@@ -64,7 +67,8 @@ export function numberCell(problems: FileProblems, row: CsvRow, column: string, 
   }
   if (rule.integer && !Number.isInteger(value)) problems.at(row.line, column, `${raw} is not a whole number`);
   else if (rule.positive && !(value > 0)) problems.at(row.line, column, `${raw} must be greater than 0`);
-  else if (rule.min !== undefined && value < rule.min) problems.at(row.line, column, `${raw} must not be negative`);
+  else if (rule.min !== undefined && value < rule.min) problems.at(row.line, column, rule.min === 0 ? `${raw} must not be negative` : `${raw} must be at least ${rule.min}`);
+  else if (rule.max !== undefined && value > rule.max) problems.at(row.line, column, `${raw} must be at most ${rule.max.toExponential(0)} (check the units)`);
   else return value;
   return null;
 }

@@ -18,8 +18,22 @@ export const keySchema = z
   .regex(/^[A-Za-z][A-Za-z0-9_.-]*$/, 'must start with a letter and use only letters, digits, "_", "." or "-"');
 
 const finite = z.number({ error: 'must be a finite number' });
-const nonNegative = finite.min(0, 'must not be negative');
-const positive = finite.gt(0, 'must be greater than 0');
+
+/**
+ * Bounds that keep every fit inside the range of a double: no real sample holds 1e15 events, and
+ * a ±1σ ratio beyond 1e6 or below 1e-6 is a unit mistake rather than a systematic. Within them
+ * the sums of squares and the interpolated yields of a fit stay far from overflow.
+ */
+export const LIMITS = { yield: 1e15, variance: 1e30, ratio: 1e6, parameter: 1e6 } as const;
+
+/** A yield, count or varied yield, in events. */
+export const yieldNumber = finite.min(0, 'must not be negative').max(LIMITS.yield, 'must be at most 1e15 events (check the units)');
+/** A template's variance (sum of squared weights). */
+export const varianceNumber = finite.min(0, 'must not be negative').max(LIMITS.variance, 'must be at most 1e30');
+/** A yield ratio to nominal at ±1σ. */
+export const ratioNumber = finite.gt(0, 'must be greater than 0').min(1 / LIMITS.ratio, 'must be at least 1e-6 (a ratio to nominal, e.g. 0.97)').max(LIMITS.ratio, 'must be at most 1e6 (a ratio to nominal, e.g. 1.04)');
+/** A parameter's start or bound. */
+const parameterNumber = finite.min(-LIMITS.parameter, 'must be at least -1e6').max(LIMITS.parameter, 'must be at most 1e6');
 
 export const regionRoleSchema = z.enum(['signal', 'control', 'validation']);
 export type RegionRole = z.infer<typeof regionRoleSchema>;
@@ -32,7 +46,7 @@ export const exchangeRegionSchema = z.strictObject({
   /** Bin edges e_0 < … < e_B (B bins). */
   edges: z.array(finite).min(2, 'needs at least two edges (one bin)').max(2001),
   /** Observed counts per bin; absent when the data are withheld (blinded signal region) or not yet taken. */
-  observed: z.array(nonNegative).optional(),
+  observed: z.array(yieldNumber).optional(),
 });
 export type ExchangeRegion = z.infer<typeof exchangeRegionSchema>;
 
@@ -47,7 +61,7 @@ export const exchangeProcessSchema = z.strictObject({
 export type ExchangeProcess = z.infer<typeof exchangeProcessSchema>;
 
 export const boundedParameterSchema = z
-  .strictObject({ start: finite, min: finite, max: finite })
+  .strictObject({ start: parameterNumber, min: parameterNumber, max: parameterNumber })
   .check((ctx) => {
     const { start, min, max } = ctx.value;
     if (!(min < max)) ctx.issues.push({ code: 'custom', message: 'min must be below max', path: ['min'], input: min });
@@ -57,9 +71,9 @@ export const boundedParameterSchema = z
 export const exchangeFloatingNormSchema = z.strictObject({
   key: keySchema,
   label: z.string().max(200).optional(),
-  start: finite.default(1),
-  min: finite.default(0),
-  max: finite.default(10),
+  start: parameterNumber.default(1),
+  min: parameterNumber.default(0),
+  max: parameterNumber.default(10),
   /** The (region, process) templates this factor multiplies. */
   targets: z.array(z.strictObject({ region: keySchema, process: keySchema })).min(1, 'must multiply at least one template'),
 });
@@ -68,9 +82,9 @@ export type ExchangeFloatingNorm = z.infer<typeof exchangeFloatingNormSchema>;
 export const exchangeTemplateSchema = z.strictObject({
   region: keySchema,
   process: keySchema,
-  nominal: z.array(nonNegative),
+  nominal: z.array(yieldNumber),
   /** Variance of the nominal from limited simulation (sum of squared weights), per bin. */
-  variance: z.array(nonNegative).optional(),
+  variance: z.array(varianceNumber).optional(),
 });
 export type ExchangeTemplate = z.infer<typeof exchangeTemplateSchema>;
 
@@ -79,8 +93,8 @@ export const scaleEffectSchema = z.strictObject({
   process: keySchema,
   kind: z.literal('scale'),
   /** Yield ratio to nominal at θ = +1 and θ = −1 (e.g. 1.04 and 0.97). */
-  up: positive,
-  down: positive,
+  up: ratioNumber,
+  down: ratioNumber,
 });
 
 export const shapeEffectSchema = z.strictObject({
@@ -88,8 +102,8 @@ export const shapeEffectSchema = z.strictObject({
   process: keySchema,
   kind: z.literal('shape'),
   /** Varied templates at θ = +1 and θ = −1, per bin. */
-  up: z.array(nonNegative),
-  down: z.array(nonNegative),
+  up: z.array(yieldNumber),
+  down: z.array(yieldNumber),
 });
 
 export const effectSchema = z.discriminatedUnion('kind', [scaleEffectSchema, shapeEffectSchema]);

@@ -1,11 +1,11 @@
 import { z } from 'zod';
 import { memberRoleSchema, entryStateSchema } from './api';
-import { keySchema, regionRoleSchema } from './exchange';
+import { keySchema, LIMITS, ratioNumber, regionRoleSchema, varianceNumber, yieldNumber } from './exchange';
 
 /** Contracts of the register, the model editor, variation uploads, groups, invitations and the outbox. */
 
 const finite = z.number({ error: 'must be a finite number' });
-const nonNegative = finite.min(0, 'must not be negative');
+const parameter = finite.min(-LIMITS.parameter, 'must be at least -1e6').max(LIMITS.parameter, 'must be at most 1e6');
 const text = (max: number) => z.string().max(max, `must be at most ${max} characters`);
 
 // ---- model editing (analysts)
@@ -23,7 +23,7 @@ export type RegionInput = z.input<typeof regionInputSchema>;
 export const regionPatchSchema = z.strictObject(regionFields).omit({ key: true }).partial();
 export type RegionPatch = z.infer<typeof regionPatchSchema>;
 
-export const observedInputSchema = z.strictObject({ observed: z.array(nonNegative).nullable() });
+export const observedInputSchema = z.strictObject({ observed: z.array(yieldNumber).nullable() });
 
 const processFields = {
   key: keySchema,
@@ -38,15 +38,15 @@ export const processPatchSchema = z.strictObject(processFields).omit({ key: true
 export const floatingNormInputSchema = z.strictObject({
   key: keySchema,
   label: text(200).default(''),
-  start: finite.default(1),
-  min: finite.default(0),
-  max: finite.default(10),
+  start: parameter.default(1),
+  min: parameter.default(0),
+  max: parameter.default(10),
 });
 export type FloatingNormInput = z.input<typeof floatingNormInputSchema>;
 
 export const templateInputSchema = z.strictObject({
-  nominal: z.array(nonNegative),
-  variance: z.array(nonNegative).nullable().default(null),
+  nominal: z.array(yieldNumber),
+  variance: z.array(varianceNumber).nullable().default(null),
   floatingNorm: keySchema.nullable().default(null),
 });
 export type TemplateInput = z.input<typeof templateInputSchema>;
@@ -193,8 +193,8 @@ export const variationJsonSchema = z.strictObject({
   effects: z
     .array(
       z.discriminatedUnion('kind', [
-        z.strictObject({ region: keySchema, process: keySchema, kind: z.literal('scale'), up: finite.gt(0, 'must be greater than 0'), down: finite.gt(0, 'must be greater than 0').optional() }),
-        z.strictObject({ region: keySchema, process: keySchema, kind: z.literal('shape'), up: z.array(nonNegative), down: z.array(nonNegative).optional() }),
+        z.strictObject({ region: keySchema, process: keySchema, kind: z.literal('scale'), up: ratioNumber, down: ratioNumber.optional() }),
+        z.strictObject({ region: keySchema, process: keySchema, kind: z.literal('shape'), up: z.array(yieldNumber), down: z.array(yieldNumber).optional() }),
       ]),
     )
     .min(1, 'needs at least one effect'),
