@@ -2,6 +2,13 @@ import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { CompiledModel, CompiledRegion, DenseKind } from './compiled-model';
 
 /**
+ * Where the relative width σ_rb of a γ is taken as is. Below 1e-9 the constraint pins γ to 1 and
+ * 1/σ² leaves the double range, so the bin gets no γ. Above 1e4 the constraint term is below
+ * 4e-7 anywhere in γ's bounds [0, 10], so σ is held at 1e4 (its square stays finite).
+ */
+export const GAMMA_SIGMA_RANGE = { min: 1e-9, max: 1e4 } as const;
+
+/**
  * Builds the flat model of MODEL.md §1–3 from an exchange file that has passed the schema.
  * `inFit(region)` says which regions enter the likelihood (signal/control roles, minus any
  * the caller excludes). γ parameters exist where the sum of nominals carrying a variance is
@@ -184,7 +191,7 @@ export function buildModel(model: ExchangeModel, inFit: (regionKey: string, role
     region.parameters = Int32Array.from([...set].sort((a, b) => a - b));
   }
 
-  // γ: one per bin where the nominals carrying a variance sum to more than zero.
+  // γ: one per bin where the nominals carrying a variance sum to more than zero (and σ is not negligible).
   const binGamma = new Int32Array(nBins).fill(-1);
   const gammaBins: number[] = [];
   const gammaSigmas: number[] = [];
@@ -197,10 +204,12 @@ export function buildModel(model: ExchangeModel, inFit: (regionKey: string, role
         sumNominal += nominal[sampleBinStart[s] + j];
         sumVariance += variance[sampleBinStart[s] + j];
       }
-      if (sumNominal > 0 && sumVariance > 0) {
+      const sigma = Math.sqrt(sumVariance) / sumNominal;
+      // a width below 1e-9 pins γ to 1 anyway (and 1/σ² would overflow): no γ for that bin
+      if (sumNominal > 0 && sumVariance > 0 && sigma >= GAMMA_SIGMA_RANGE.min) {
         binGamma[region.firstBin + j] = gammaBins.length;
         gammaBins.push(region.firstBin + j);
-        gammaSigmas.push(Math.sqrt(sumVariance) / sumNominal);
+        gammaSigmas.push(Math.min(sigma, GAMMA_SIGMA_RANGE.max));
       }
     }
   }

@@ -78,12 +78,13 @@ export function prefitYields(m: CompiledModel): RegionYields[] {
     for (let j = 0; j < r.nBins; j++) {
       const b = r.firstBin + j;
       const gi = m.binGamma[b];
-      const prior = gi >= 0 ? m.gammaSigma[gi] ** 2 : 0;
+      const sigma = gi >= 0 ? m.gammaSigma[gi] : 0;
       tot.fill(0);
       let totGamma = 0;
       r.samples.forEach((s, k) => {
         const jg = sampleJacobian(m, ws, gamma, s, j, idx, val);
-        let v = jg * jg * prior;
+        // (jg·σ)², not jg²·σ²: a tiny yield with a huge relative width stays finite
+        let v = (jg * sigma) ** 2;
         for (let a = 0; a < idx.length; a++) {
           if (idx[a] >= m.thetaStart) v += val[a] * val[a];
           tot[idx[a]] += val[a];
@@ -92,7 +93,7 @@ export function prefitYields(m: CompiledModel): RegionYields[] {
         out[ri].processes[k].values.push(ws.nuSample[m.sampleBinStart[s] + j]);
         out[ri].processes[k].errors.push(Math.sqrt(v));
       });
-      let v = totGamma * totGamma * prior;
+      let v = (totGamma * sigma) ** 2;
       for (let i = m.thetaStart; i < m.nDense; i++) v += tot[i] * tot[i];
       out[ri].total.values.push(ws.nu[b]);
       out[ri].total.errors.push(Math.sqrt(v));
@@ -149,7 +150,7 @@ export function postfitYields(ctx: FitContext): RegionYields[] {
         y.set(VBt.subarray(row, row + P));
         for (let i = 0; i < P; i++) sHh += Bt[row + i] * y[i];
       }
-      const gammaVar = (jg: number) => (gi < 0 ? 0 : elim ? 0 : jg * jg * m.gammaSigma[gi] ** 2);
+      const gammaVar = (jg: number) => (gi < 0 ? 0 : elim ? 0 : (jg * m.gammaSigma[gi]) ** 2);
       tot.fill(0);
       let totGamma = 0;
       r.samples.forEach((s, k) => {

@@ -13,5 +13,20 @@ export default function diagnose({ model, options, parameter, niceness }: Diagno
     lowerThreadPriority(niceness);
     lowered = true;
   }
-  return diagnoseParameter(model, options, parameter, 21);
+  const numbers = diagnoseParameter(model, options, parameter, 21);
+  // JSON would turn a NaN into null without a word: a diagnosis with one is reported as failed
+  const at = nonFiniteAt(numbers);
+  return at ? { ...numbers, failure: `a number came out NaN or infinite (${at}); check the model for extreme yields` } : numbers;
+}
+
+/** The path of the first number that is NaN or infinite, or null. */
+export function nonFiniteAt(value: unknown, path = ''): string | null {
+  if (typeof value === 'number') return Number.isFinite(value) ? null : path || 'value';
+  if (value && typeof value === 'object') {
+    for (const [k, v] of Object.entries(value)) {
+      const found = nonFiniteAt(v, path ? `${path}.${k}` : k);
+      if (found) return found;
+    }
+  }
+  return null;
 }

@@ -6,7 +6,7 @@ import type { JobOutcome } from './fit-job.worker';
 
 export class JobError extends Error {
   constructor(
-    readonly kind: 'cancelled' | 'input' | 'internal',
+    readonly kind: 'cancelled' | 'input' | 'numeric' | 'internal',
     message: string,
   ) {
     super(message);

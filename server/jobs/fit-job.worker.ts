@@ -1,6 +1,6 @@
 import type { MessagePort } from 'node:worker_threads';
 import type { ExchangeModel } from '@shared/schemas/exchange';
-import type { FitOptions, FitResult } from '@shared/schemas/fit';
+import { fitResultSchema, type FitOptions, type FitResult } from '@shared/schemas/fit';
 import { createFitPool, fitModel, FitCancelledError, FitInputError, type FitPool } from '../fit';
 import { lowerThreadPriority } from '../fit/thread-priority';
 
@@ -9,7 +9,7 @@ import { lowerThreadPriority } from '../fit/thread-priority';
  * thread keeps the engine's refit pool between jobs; progress goes back through a message port.
  */
 export type JobTask = { model: ExchangeModel; options: FitOptions; threads?: number; niceness?: number; progress: MessagePort };
-export type JobOutcome = { ok: true; result: FitResult } | { ok: false; kind: 'input' | 'internal'; message: string };
+export type JobOutcome = { ok: true; result: FitResult } | { ok: false; kind: 'input' | 'numeric' | 'internal'; message: string };
 
 let pool: FitPool | null = null;
 
@@ -20,6 +20,9 @@ export default async function runJob({ model, options, threads, niceness = 0, pr
   }
   try {
     const result = await fitModel(model, options, { pool, onProgress: (fraction, stage) => progress.postMessage({ fraction, stage }) });
+    // the result contract allows only finite numbers; one NaN or infinity and no number of this fit is kept
+    const checked = fitResultSchema.safeParse(result);
+    if (!checked.success) return { ok: false, kind: 'numeric', message: notFinite(checked.error.issues) };
     return { ok: true, result };
   } catch (e) {
     if (e instanceof FitCancelledError) throw e;
@@ -28,4 +31,10 @@ export default async function runJob({ model, options, threads, niceness = 0, pr
   } finally {
     progress.close();
   }
+}
+
+/** Names where the result broke its contract, e.g. "parameters.3.error" (at most three places). */
+function notFinite(issues: { path: PropertyKey[]; message: string }[]) {
+  const places = issues.slice(0, 3).map((i) => `${i.path.map(String).join('.') || 'result'} (${i.message})`);
+  return places.join('; ') + (issues.length > 3 ? ` and ${issues.length - 3} more` : '');
 }

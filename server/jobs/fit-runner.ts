@@ -29,6 +29,9 @@ export type FitRunner = {
   close: () => Promise<void>;
 };
 
+export const NOT_FINITE =
+  'The fit ended with a number that is not finite (NaN or infinite), so none of its numbers are shown. Check the model for extreme yields or variations, and tell an admin.';
+
 export const INTERRUPTED = 'Interrupted: the server stopped while this fit was running. Start it again.';
 
 export function createFitRunner(db: Db, log: (line: string) => void, options: { threads?: number; niceness?: number } = {}): FitRunner {
@@ -84,6 +87,10 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
       const kind = e instanceof JobError ? e.kind : 'internal';
       if (kind === 'cancelled') await finish(id, { state: 'cancelled', failure: `Cancelled by ${cancelled.get(id) ?? 'a user'}.`, stage: 'cancelled' });
       else if (kind === 'input') await finish(id, { state: 'failed', failure: `The model or options cannot be fitted: ${(e as Error).message}`, stage: 'failed' });
+      else if (kind === 'numeric') {
+        log(`[fit ${id}] non-finite result: ${(e as Error).message}`);
+        await finish(id, { state: 'failed', failure: `${NOT_FINITE} First at: ${(e as Error).message}.`, stage: 'failed' });
+      }
       else {
         log(`[fit ${id}] ${e instanceof Error ? (e.stack ?? e.message) : String(e)}`);
         await finish(id, { state: 'failed', failure: 'The fit stopped on an internal error; it has been logged. Try again, and tell an admin if it persists.', stage: 'failed' });
