@@ -1,3 +1,4 @@
+import { isUtf8 } from 'node:buffer';
 import express, { type Express } from 'express';
 import helmet from 'helmet';
 import type { Config } from './config';
@@ -20,6 +21,23 @@ import { modelRoutes } from './routes/model.routes';
 import { invitationsRoutes } from './routes/invitations.routes';
 import { fitsRoutes } from './routes/fits.routes';
 import { reviewRoutes } from './routes/review.routes';
+
+/** A JSON body must be UTF-8: other bytes would be decoded into replacement characters and saved. */
+function refuseNonUtf8(_req: unknown, _res: unknown, body: Buffer) {
+  if (!isUtf8(body)) throw new AppError(400, 'The request body is not valid UTF-8 text. Send JSON encoded as UTF-8.', 'bad_encoding');
+}
+
+/** Names and ids in an address are text: a control character (e.g. %00) names nothing, and the database refuses it. */
+const plainAddress: express.RequestHandler = (req, _res, next) => {
+  let path: string;
+  try {
+    path = decodeURIComponent(req.path);
+  } catch {
+    return next(new AppError(400, 'The address has a malformed %-escape. Check the link.', 'bad_address'));
+  }
+  if (/[\u0000-\u001f\u007f]/.test(path)) return next(new AppError(400, 'The address contains a control character; no name or id in Plumbline does.', 'bad_address'));
+  next();
+};
 
 export type App = { app: Express; routes: ApiRoute[]; ctx: AppContext };
 
@@ -56,7 +74,8 @@ export function createApp(database: Database, config: Config, deps: { mailer: Ma
 
   app.use(
     '/api',
-    express.json({ limit: config.BODY_LIMIT_BYTES, strict: true }),
+    plainAddress,
+    express.json({ limit: config.BODY_LIMIT_BYTES, strict: true, verify: refuseNonUtf8 }),
     sessionMiddleware(database.client, config),
     passport.initialize(),
     passport.session(),
