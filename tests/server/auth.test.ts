@@ -201,3 +201,23 @@ describe('a data folder', () => {
     rmSync(dir, { recursive: true, force: true });
   });
 });
+
+describe('an error inside the server', () => {
+  it('answers 500 with a plain message and logs the detail; the response holds no stack trace or SQL', async () => {
+    const logged: string[] = [];
+    const t = await createTestApp();
+    try {
+      const app = createApp(t.database, t.ctx.config, { mailer: t.mailer, fits: t.fits, log: (line) => logged.push(line) }).app;
+      const analyst = await signedIn(app, DEMO.analyst);
+      // a table gone from under the server: the query fails inside the driver
+      await t.database.client.exec('alter table entries rename to entries_gone');
+      const res = await analyst.get('/api/analyses/cascade-rate/entries/halo_norm');
+      expect(res.status).toBe(500);
+      expect(res.body.error).toEqual({ message: expect.stringMatching(/went wrong on the server/), code: 'internal' });
+      expect(res.text).not.toMatch(/entries_gone|entries|select|relation|\bat\s|\.ts:\d+|node_modules/i);
+      expect(logged.join('\n')).toMatch(/entries/);
+    } finally {
+      await t.close();
+    }
+  });
+});

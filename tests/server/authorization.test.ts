@@ -3,7 +3,7 @@ import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { hashPassword } from '../../server/auth/passwords';
 import { analyses, effects, entries, fits, groups, invitations, memberships, modelVersions, processes, questions, regions, users } from '../../server/db/schema';
-import { Client, createTestApp, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
+import { Client, createTestApp, dbSnapshot, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
 
 /**
  * Walks every API route with every role and signed out, and checks the status the
@@ -332,6 +332,45 @@ describe('authorisation of every API route', () => {
         expect(res.body.error.message).toEqual(expect.any(String));
       }
       if (row.resetsSession) clients.delete(who);
+    });
+  }
+});
+
+/**
+ * CSRF on every state-changing route, walked from the router like the matrix above: the caller
+ * whose request would succeed sends it without a token, and then with another session's token.
+ * Both are refused with 403 and write nothing.
+ */
+describe('every state-changing route demands the CSRF token of its own session', () => {
+  let t: TestApp;
+  beforeAll(async () => {
+    t = await createTestApp();
+    await convergedFit(t);
+  });
+  afterAll(async () => t.close());
+
+  it('covers every route that is not a GET', () => {
+    const changing = t.routes.filter((r) => r.method !== 'get').map((r) => `${r.method.toUpperCase()} ${r.path}`);
+    expect(changing.length).toBeGreaterThan(30);
+    for (const name of changing) expect(Object.keys(MATRIX)).toContain(name);
+  });
+
+  const changing = Object.entries(MATRIX).filter(([name]) => !name.startsWith('GET '));
+  for (const [name, row] of changing) {
+    it(`${name} without a token, or with another session's, is refused and writes nothing`, async () => {
+      const who = WHO.find((w) => row.expect[w] < 300)!;
+      const client = who === 'signedOut' ? new Client(t.app) : await signedIn(t.app, EMAIL[who]);
+      const { path, body, file } = await row.call(t, who, 100 + WHO.indexOf(who));
+      const method = name.split(' ')[0].toLowerCase() as 'post' | 'put' | 'patch' | 'delete';
+      const before = await dbSnapshot(t);
+      const other = await new Client(t.app).csrf();
+      for (const token of [null, other]) {
+        let req = client.agent[method](path);
+        if (token) req = req.set('x-csrf-token', token);
+        const res = file ? await req.attach('file', Buffer.from(file.content), file.name) : await req.send((body ?? {}) as object);
+        expect({ who, token: token ? 'another session' : 'none', status: res.status, code: res.body?.error?.code }).toEqual({ who, token: token ? 'another session' : 'none', status: 403, code: 'csrf' });
+      }
+      expect(await dbSnapshot(t)).toBe(before);
     });
   }
 });
