@@ -55,11 +55,16 @@ describe('signing in', () => {
   });
 
   it('destroys the session at sign-out: the old cookie no longer signs anyone in', async () => {
-    const client = await signedIn(t.app, DEMO.reader);
-    expect((await client.get('/api/auth/me')).status).toBe(200);
+    const client = new Client(t.app);
+    const cookie = sessionCookie(await client.signIn(DEMO.reader))!.split(';')[0];
+    const sessions = async () => (await t.database.client.query<{ n: number }>('select count(*)::int as n from session')).rows[0].n;
+    const before = await sessions();
+    expect((await request(t.app).get('/api/auth/me').set('cookie', cookie)).status).toBe(200);
     const out = await client.send('post', '/api/auth/sign-out');
     expect(out.status).toBe(204);
-    expect((await client.get('/api/auth/me')).status).toBe(401);
+    // the old cookie, replayed as a thief would, signs no one in: the stored session is gone
+    expect((await request(t.app).get('/api/auth/me').set('cookie', cookie)).status).toBe(401);
+    expect(await sessions()).toBe(before - 1);
   });
 
   it('sends security headers', async () => {
