@@ -3,7 +3,6 @@ import { accessOf, type authorizer } from '../auth/authorize';
 import { singleFile, readUpload } from '../uploads/upload';
 import { buildExchange } from '../services/exchange-export.service';
 import { importModel } from '../services/exchange-import.service';
-import { addRevision } from '../db/revisions.repository';
 import { unprocessable } from '../errors';
 import {
   createFloatingNorm,
@@ -82,14 +81,7 @@ export const modelRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>
       } catch (e) {
         throw unprocessable(`Nothing was imported: "${upload.filename}" is not valid JSON (${(e as Error).message}).`);
       }
-      const counts = await importModel(ctx.db, access.analysis.id, document, { authorId: access.userId });
-      await addRevision(ctx.db, {
-        analysisId: access.analysis.id,
-        authorId: access.userId,
-        action: 'model.imported',
-        summary: `Imported the model file "${upload.filename}" (SHA-256 ${upload.sha256.slice(0, 12)}…): ${counts.regions} regions, ${counts.processes} processes, ${counts.entries} register entries.`,
-      });
-      res.status(201).json(counts);
+      res.status(201).json(await importModel(ctx.db, access.analysis.id, document, { authorId: access.userId, file: upload }));
     }),
   ];
 };

@@ -2,8 +2,7 @@ import { count, eq } from 'drizzle-orm';
 import { exchangeModelSchema, type ExchangeModel, type ExchangeModelInput } from '@shared/schemas/exchange';
 import type { EntryState } from '@shared/schemas/api';
 import { largestEffectPct, scaleWarnings, shapeWarnings } from '@shared/validation/variation-warnings';
-import type { Db } from '../db/client';
-import type { Tx } from '../db/revisions.repository';
+import type { DbOrTx, Tx } from '../db/revisions.repository';
 import { effects, entries, floatingNorms, groups, processes, regions, revisions, templates } from '../db/schema';
 import { conflict, unprocessable, zodIssues } from '../errors';
 
@@ -20,19 +19,29 @@ function parseExchange(document: unknown): ExchangeModel {
 /**
  * Writes a whole model into an analysis that has none yet, in one transaction: regions, processes,
  * floating normalisations, templates, groups, register entries with their effects and warnings,
- * and a revision per entry. Nothing is written if any step fails.
+ * a revision per entry and, for an uploaded `file`, the model's own revision naming it. Nothing is
+ * written if any step fails, so a crash never leaves a model without the revision that says where
+ * it came from.
  */
 export async function importModel(
-  db: Db,
+  db: DbOrTx,
   analysisId: number,
   document: ExchangeModelInput | unknown,
-  options: { authorId: number | null; entryMeta?: Record<string, EntryMeta> },
+  options: { authorId: number | null; entryMeta?: Record<string, EntryMeta>; file?: { filename: string; sha256: string } },
 ) {
   const model = parseExchange(document);
   return db.transaction(async (tx) => {
     const [{ n }] = await tx.select({ n: count() }).from(regions).where(eq(regions.analysisId, analysisId));
     if (n > 0) throw conflict('This analysis already has a model. Import into a new analysis.');
-    return writeModel(tx, analysisId, model, options);
+    const counts = await writeModel(tx, analysisId, model, options);
+    if (options.file)
+      await tx.insert(revisions).values({
+        analysisId,
+        authorId: options.authorId,
+        action: 'model.imported',
+        summary: `Imported the model file "${options.file.filename}" (SHA-256 ${options.file.sha256.slice(0, 12)}…): ${counts.regions} regions, ${counts.processes} processes, ${counts.entries} register entries.`,
+      });
+    return counts;
   });
 }
 

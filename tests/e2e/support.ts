@@ -8,7 +8,16 @@ import { afterAll, beforeAll } from 'vitest';
 export const SCREENSHOTS = path.resolve('test-output/screenshots');
 export const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
 
-export type RunningServer = { url: string; dataDir: string; process: ChildProcess; output: () => string; stop: () => Promise<void> };
+export type RunningServer = {
+  url: string;
+  dataDir: string;
+  process: ChildProcess;
+  output: () => string;
+  /** Ends the server with a signal (SIGKILL: as a crash does) and waits for it; the data folder stays. */
+  kill: (signal?: NodeJS.Signals) => Promise<void>;
+  /** Stops the server and removes its data folder. */
+  stop: () => Promise<void>;
+};
 
 /**
  * The node flags `npm start` gives the server (package.json): a larger young generation, so
@@ -17,11 +26,12 @@ export type RunningServer = { url: string; dataDir: string; process: ChildProces
 const SERVER_FLAGS = ['--max-semi-space-size=32'];
 
 /**
- * Starts the real server (production build, fresh data folder, ephemeral port) and waits until
- * it listens. SERVER_NODE_ARGS adds node flags (e.g. --cpu-prof --cpu-prof-dir=DIR to profile it).
+ * Starts the real server (production build, ephemeral port) and waits until it listens. The data
+ * folder is a fresh one unless `dataDir` names one, so that a test can start again where a server
+ * stopped. SERVER_NODE_ARGS adds node flags (e.g. --cpu-prof --cpu-prof-dir=DIR to profile it).
  */
-export async function startServer(env: Record<string, string> = {}): Promise<RunningServer> {
-  const dataDir = mkdtempSync(path.join(os.tmpdir(), 'plumbline-e2e-'));
+export async function startServer(env: Record<string, string> = {}, options: { dataDir?: string } = {}): Promise<RunningServer> {
+  const dataDir = options.dataDir ?? mkdtempSync(path.join(os.tmpdir(), 'plumbline-e2e-'));
   const child = spawn(process.execPath, [...SERVER_FLAGS, ...(process.env.SERVER_NODE_ARGS?.split(' ').filter(Boolean) ?? []), '--import', 'tsx', 'server/index.ts'], {
     env: { ...process.env, NODE_ENV: 'production', PORT: '0', PLUMBLINE_DATA_DIR: dataDir, ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
@@ -46,15 +56,19 @@ export async function startServer(env: Record<string, string> = {}): Promise<Run
     dataDir,
     process: child,
     output: () => output,
+    kill: (signal = 'SIGTERM') => ended(child, signal),
     stop: async () => {
-      if (child.exitCode === null) {
-        const exited = new Promise((r) => child.once('exit', r));
-        child.kill('SIGTERM');
-        await exited;
-      }
+      await ended(child, 'SIGTERM');
       rmSync(dataDir, { recursive: true, force: true });
     },
   };
+}
+
+async function ended(child: ChildProcess, signal: NodeJS.Signals) {
+  if (child.exitCode !== null || child.signalCode !== null) return;
+  const exited = new Promise((r) => child.once('exit', r));
+  child.kill(signal);
+  await exited;
 }
 
 export type Browser = { context: BrowserContext; page: Page; close: () => Promise<void> };

@@ -60,6 +60,23 @@ describe('the exchange file through the API', () => {
     expect(await dbSnapshot(t)).toBe(before);
   });
 
+  it('writes the model and the revision naming its file in one transaction: when the revision cannot be written, no model is left', async () => {
+    await emptyAnalysis('no-revision', false);
+    const before = await dbSnapshot(t);
+    const { client } = t.database;
+    await client.exec(`
+      create function refuse_model_imported() returns trigger language plpgsql as $$ begin raise exception 'refused'; end $$;
+      create trigger refuse_model_imported before insert on revisions for each row when (new.action = 'model.imported') execute function refuse_model_imported();`);
+    try {
+      const original = demoScenario().analyses[1].model;
+      const res = await analyst.upload('/api/analyses/no-revision/exchange', { name: 'cascade.json', content: JSON.stringify({ ...original, name: 'no-revision' }) });
+      expect(res.status).toBe(500);
+      expect(await dbSnapshot(t)).toBe(before);
+    } finally {
+      await client.exec('drop trigger refuse_model_imported on revisions; drop function refuse_model_imported();');
+    }
+  });
+
   it('refuses to import into an analysis that already has a model', async () => {
     const before = await dbSnapshot(t);
     const original = demoScenario().analyses[1].model;
