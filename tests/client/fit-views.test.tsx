@@ -5,7 +5,7 @@ import userEvent from '@testing-library/user-event';
 import { createMemoryRouter, RouterProvider } from 'react-router';
 import type { FitResult } from '@shared/schemas/fit';
 import { ImpactTable } from '../../src/features/fits/components/impact-table';
-import { sortPulls } from '../../src/features/fits/components/pulls-view';
+import { PullsView, sortPulls } from '../../src/features/fits/components/pulls-view';
 import { groupBars } from '../../src/features/fits/components/groups-view';
 import { rankByImpact } from '../../src/features/fits/result-helpers';
 import { convergedResult, nuisance } from './fit-fixtures';
@@ -87,6 +87,31 @@ describe('the impact ranking', () => {
     expect(within(table).getByRole('columnheader', { name: /^Pull/ }).getAttribute('aria-sort')).toBe('descending');
     await user.click(within(table).getByRole('button', { name: /^Pull/ }));
     expect(names(table)).toEqual(['lumi', 'theory_scale', 'jes']);
+  });
+});
+
+describe('the pulls chart', () => {
+  it('opens the diagnosis of a parameter from the keyboard: one tab stop, the arrow keys move, Enter opens', async () => {
+    const user = userEvent.setup();
+    const result = convergedResult();
+    const router = createMemoryRouter(
+      [
+        { path: '/a/demo/fits/7/pulls', element: <PullsView slug="demo" fitId={7} result={result} /> },
+        { path: '/a/demo/fits/7/diagnostics', element: <p>diagnosis page</p> },
+      ],
+      { initialEntries: ['/a/demo/fits/7/pulls'] },
+    );
+    render(<RouterProvider router={router} />);
+    const order = sortPulls(result.nuisance, 'group').map((n) => n.name);
+    const chart = screen.getByRole('img', { name: /^Pulls and constraints: .* arrow keys/ });
+    expect(chart.getAttribute('tabindex')).toBe('0');
+    chart.focus();
+    expect(await screen.findByText(new RegExp(`^${order[0]}: pull`))).toBeTruthy();
+    await user.keyboard('{ArrowDown}');
+    expect(await screen.findByText(new RegExp(`^${order[1]}: pull`))).toBeTruthy();
+    await user.keyboard('{Enter}');
+    await screen.findByText('diagnosis page');
+    expect(router.state.location.search).toBe(`?parameter=${order[1]}`);
   });
 });
 

@@ -47,11 +47,11 @@ export function AnalysisLayout() {
         </nav>
       </aside>
       <div className="min-w-0 flex-1">
-        <div className="flex flex-wrap items-center gap-3 border-b border-rule bg-paper-raised/50 px-6 py-2">
+        <section aria-label="Analysis status" className="flex flex-wrap items-center gap-3 border-b border-rule bg-paper-raised/50 px-6 py-2">
           <span className="text-sm font-semibold text-ink">{overview?.analysis.name ?? slug}</span>
           {overview && <BlindingBadge blinding={overview.analysis.blinding} />}
           {overview && <RoleBadge role={overview.role} isAdmin={me.data?.user.isAdmin} />}
-        </div>
+        </section>
         <main id="main" className="px-6 py-5">
           {analysis.isPending ? (
             <Loading label="Loading the analysis…" />

@@ -70,15 +70,25 @@ function ImpactsWithQuestions({ slug, fit, result }: { slug: string; fit: FitDet
   const mayRaise = useCan(slug)('question.raise');
   const [raising, setRaising] = useState<string | null>(null);
   const panel = useRef<HTMLDivElement>(null);
+  // The form opens above the table: the focus moves into it, and back to the row's button when it
+  // closes (found again by name: raising a question redraws the table's rows).
+  const view = useRef<HTMLDivElement>(null);
   useEffect(() => {
-    if (raising) panel.current?.scrollIntoView?.({ behavior: 'smooth', block: 'nearest' });
+    if (!raising) return;
+    panel.current?.scrollIntoView?.({ behavior: 'smooth', block: 'nearest' });
+    panel.current?.querySelector<HTMLElement>('input, textarea')?.focus({ preventScroll: true });
   }, [raising]);
+  const close = () => {
+    const name = raising;
+    setRaising(null);
+    if (name) view.current?.querySelector<HTMLElement>(`[data-raise="${CSS.escape(name)}"]`)?.focus();
+  };
   return (
-    <div className="flex flex-col gap-3">
+    <div ref={view} className="flex flex-col gap-3">
       {raising && (
         <div ref={panel}>
           <Panel title={`Raise a question on ${raising}`}>
-            <RaiseQuestionForm key={raising} slug={slug} entry={raising} fit={{ id: fit.id, label: fitName(fit) }} onCancel={() => setRaising(null)} />
+            <RaiseQuestionForm key={raising} slug={slug} entry={raising} fit={{ id: fit.id, label: fitName(fit) }} onCancel={close} />
           </Panel>
         </div>
       )}

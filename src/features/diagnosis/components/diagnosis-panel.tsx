@@ -196,7 +196,7 @@ export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, mayR
             {d.parameter.entry && (
               <>
                 {' · '}
-                <Link to={`/a/${slug}/entries/${encodeURIComponent(d.parameter.entry.key)}`} className="text-teal-ink hover:underline">
+                <Link to={`/a/${slug}/entries/${encodeURIComponent(d.parameter.entry.key)}`} className="text-teal-ink underline decoration-teal/40 underline-offset-2 hover:decoration-teal-ink">
                   register entry
                 </Link>
                 {d.parameter.entry.owner ? `, owned by ${d.parameter.entry.owner}` : ', no owner'}

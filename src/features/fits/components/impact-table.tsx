@@ -145,9 +145,10 @@ function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: numbe
                 }}
                 className="rounded px-1.5 py-0.5 text-xs font-medium text-teal-ink hover:bg-teal-soft hover:underline"
                 aria-label={`Raise a question on ${c.row.original.name}`}
+                data-raise={c.row.original.name}
                 title={`Raise a question on ${c.row.original.name}`}
               >
-                Ask…
+                Raise…
               </button>
             ),
           }),

@@ -1,4 +1,4 @@
-import { useMemo, useRef, useState } from 'react';
+import { useEffect, useMemo, useRef, useState, type KeyboardEvent } from 'react';
 import { Link, useNavigate } from 'react-router';
 import { scaleLinear } from 'd3-scale';
 import type { NuisanceReport } from '@shared/schemas/fit';
@@ -69,6 +69,28 @@ export function PullsChart({
   marks?: Map<string, QuestionMark>;
 }) {
   const ref = useRef<SVGSVGElement>(null);
+  // The parameter the keyboard is on (index into rows) while the chart has focus.
+  const [active, setActive] = useState<number | null>(null);
+  const activeRef = useRef<SVGRectElement>(null);
+  // Focus from a click leaves the outline off until a key is pressed.
+  const byPointer = useRef(false);
+  const current = active !== null && active < rows.length ? rows[active] : null;
+  useEffect(() => {
+    if (current) activeRef.current?.scrollIntoView?.({ block: 'nearest' });
+  }, [current]);
+  const onKey = (e: KeyboardEvent<SVGSVGElement>) => {
+    if (!onOpen || rows.length === 0) return;
+    const last = rows.length - 1;
+    const at = active ?? 0;
+    const to: Record<string, number> = { ArrowDown: Math.min(last, at + 1), ArrowUp: Math.max(0, at - 1), Home: 0, End: last, PageDown: Math.min(last, at + 10), PageUp: Math.max(0, at - 10) };
+    if (e.key in to) {
+      e.preventDefault();
+      setActive(active === null ? 0 : to[e.key]);
+    } else if ((e.key === 'Enter' || e.key === ' ') && current) {
+      e.preventDefault();
+      onOpen(current.name);
+    }
+  };
   const lines: Line[] = [];
   rows.forEach((r, i) => {
     if (groupHeadings && (i === 0 || groupName(rows[i - 1].group) !== groupName(r.group))) lines.push({ kind: 'group', name: groupName(r.group) });
@@ -87,7 +109,32 @@ export function PullsChart({
         <figcaption className="text-sm font-semibold text-ink">{title}</figcaption>
         <ExportButtons title={title} svg={ref} />
       </div>
-      <svg ref={ref} viewBox={`0 0 ${W} ${H}`} className="h-auto w-full max-w-[48rem]" role="img" aria-label={`${title}: ${rows.length} nuisance parameters; the numbers are in the table below.`}>
+      <svg
+        ref={ref}
+        viewBox={`0 0 ${W} ${H}`}
+        className="h-auto w-full max-w-[48rem] focus-visible:outline-2 focus-visible:outline-teal"
+        role="img"
+        aria-label={`${title}: ${rows.length} nuisance parameters; the numbers are in the table below.${onOpen ? ' Focus the chart and use the arrow keys to move between parameters; Enter opens the diagnosis.' : ''}`}
+        tabIndex={onOpen ? 0 : undefined}
+        onKeyDown={onOpen ? onKey : undefined}
+        onPointerDown={onOpen ? () => (byPointer.current = true) : undefined}
+        onFocus={
+          onOpen
+            ? () => {
+                if (!byPointer.current) setActive((a) => a ?? 0);
+                byPointer.current = false;
+              }
+            : undefined
+        }
+        onBlur={
+          onOpen
+            ? () => {
+                setActive(null);
+                byPointer.current = false;
+              }
+            : undefined
+        }
+      >
         <rect x={x(-2)} y={y0} width={x(2) - x(-2)} height={plotH} fill={theme.teal} fillOpacity={0.07} />
         <rect x={x(-1)} y={y0} width={x(1) - x(-1)} height={plotH} fill={theme.teal} fillOpacity={0.18} />
         {[-2, -1, 0, 1, 2].map((v) => (
@@ -149,8 +196,28 @@ export function PullsChart({
             </g>
           );
         })}
+        {current && (
+          <rect
+            ref={activeRef}
+            x={1}
+            y={y0 + lines.findIndex((l) => l.kind === 'parameter' && l.r.name === current.name) * ROW}
+            width={W - 2}
+            height={ROW}
+            fill="none"
+            stroke={theme.ink}
+            strokeWidth={1.2}
+            pointerEvents="none"
+          />
+        )}
         <BottomAxis scale={x} y={y0 + plotH} ticks={Math.min(12, lim * 2)} title="pull (θ̂ − 0)/1, with the post-fit ±σ̂ as bars" />
       </svg>
+      {onOpen && (
+        <p className="text-xs text-ink-muted" aria-live="polite">
+          {current
+            ? `${current.name}: pull ${formatSigned(current.pull, 3)}, constraint ${formatFixed(current.constraint, 3)}${current.overConstrained ? ' (over-constrained)' : ''}. Enter opens its diagnosis.`
+            : 'Click a parameter, or focus the chart and use the arrow keys and Enter, to open its diagnosis.'}
+        </p>
+      )}
       <ul className="flex flex-wrap gap-x-4 gap-y-1 text-xs text-ink-soft" aria-label="Legend of the pulls">
         <li className="flex items-center gap-1.5">
           <span aria-hidden className="inline-block h-3 w-5" style={{ background: theme.teal, opacity: 0.3 }} />
