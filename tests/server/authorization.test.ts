@@ -115,16 +115,20 @@ async function setBlinding(t: TestApp, state: 'blinded' | 'unblinding_requested'
 }
 const managersAndAnalysts = (ok: number) => ({ ...all(403), signedOut: 401, analyst: ok, convener: ok });
 /** a frozen version and one converged fit of the analysis, made once through the API */
-let converged: Promise<{ version: number; fitId: number }> | null = null;
-const convergedFit = (t: TestApp) =>
-  (converged ??= (async () => {
-    const analyst = await signedIn(t.app, DEMO.analyst);
-    const version = (await analyst.send('post', `/api/analyses/${SLUG}/versions`, { note: 'fixture' })).body.number;
-    // observed data, control regions only: the stored result holds the signal regions' counts, which blinding must strip
-    const started = await analyst.send('post', `/api/analyses/${SLUG}/fits`, { version, options: { dataset: 'observed', controlOnly: true, impacts: 'none', expected: false } });
-    await t.fits.idle();
-    return { version, fitId: started.body.id };
-  })());
+const converged = new WeakMap<TestApp, Promise<{ version: number; fitId: number }>>();
+async function makeConvergedFit(t: TestApp) {
+  const analyst = await signedIn(t.app, DEMO.analyst);
+  const version = (await analyst.send('post', `/api/analyses/${SLUG}/versions`, { note: 'fixture' })).body.number;
+  // observed data, control regions only: the stored result holds the signal regions' counts, which blinding must strip
+  const started = await analyst.send('post', `/api/analyses/${SLUG}/fits`, { version, options: { dataset: 'observed', controlOnly: true, impacts: 'none', expected: false } });
+  await t.fits.idle();
+  return { version, fitId: started.body.id as number };
+}
+/** one per app: each test app has its own database */
+const convergedFit = (t: TestApp) => {
+  if (!converged.has(t)) converged.set(t, makeConvergedFit(t));
+  return converged.get(t)!;
+};
 /** a fit waiting in the database (not in this process's queue) */
 async function queuedFit(t: TestApp) {
   const { version } = await convergedFit(t);
