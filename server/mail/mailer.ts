@@ -10,7 +10,11 @@ import { outbox } from '../db/schema';
 export type Mail = { to: string[]; subject: string; text: string; analysisId?: number | null };
 
 export type Mailer = {
-  /** Sends one message per recipient; never throws: a failure is recorded in the outbox with its reason. */
+  /**
+   * Hands over one message per recipient and returns: delivery goes on without the request that
+   * asked for it, so that nobody waits for a mail server. Never throws: a failure is recorded in
+   * the outbox with its reason.
+   */
   send: (mail: Mail) => Promise<void>;
   /** Resolves when every message handed to send() has been delivered or recorded as failed. */
   idle: () => Promise<void>;
@@ -90,13 +94,15 @@ export async function createMailer(db: Db, config: Config, log: (line: string) =
   return {
     send: async (mail) => {
       const recipients = [...new Set(mail.to.map((t) => t.toLowerCase()))];
-      await Promise.all(recipients.map((to) => track(deliver(to, mail))));
+      for (const to of recipients) void track(deliver(to, mail));
     },
     idle: async () => {
       while (pending.size) await Promise.allSettled([...pending]);
     },
     describe: () => (capture ? `captured locally and shown in the outbox` : `sent through ${new URL(config.SMTP_URL!).host}`),
     close: async () => {
+      // what was handed over is delivered (or recorded as failed) before the transport closes
+      while (pending.size) await Promise.allSettled([...pending]);
       transport.close();
       if (capture) await new Promise<void>((resolve) => capture!.close(() => resolve()));
     },
