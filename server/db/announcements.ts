@@ -19,3 +19,27 @@ export function watched<T>(client: PGlite, channel: string, create: () => T, onN
   }
   return state;
 }
+
+/**
+ * Copies per analysis, kept until `channel` announces a change to that analysis (the payload is
+ * the analysis id). Each copy is built once: readers arriving while it is built share it, and a
+ * build that fails is not kept. Copies are shared: callers must not change them.
+ */
+export function keptPerAnalysis(channel: string) {
+  return async <T>(client: PGlite, analysisId: number, what: string, build: () => Promise<T>): Promise<T> => {
+    const analyses = await watched(
+      client,
+      channel,
+      () => new Map<number, Map<string, Promise<unknown>>>(),
+      (all, id) => all.delete(Number(id)),
+    );
+    let copies = analyses.get(analysisId);
+    if (!copies) analyses.set(analysisId, (copies = new Map()));
+    const copy = copies.get(what) as Promise<T> | undefined;
+    if (copy) return copy;
+    const ready = build();
+    copies.set(what, ready);
+    ready.catch(() => copies.get(what) === ready && copies.delete(what));
+    return ready;
+  };
+}

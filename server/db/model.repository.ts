@@ -1,4 +1,7 @@
 import { asc, eq } from 'drizzle-orm';
+import type { PGlite } from '@electric-sql/pglite';
+import { keptPerAnalysis } from './announcements';
+import type { Db } from './client';
 import type { DbOrTx } from './revisions.repository';
 import { floatingNorms, processes, regions, templates } from './schema';
 
@@ -13,6 +16,18 @@ export async function loadModelRows(db: DbOrTx, analysisId: number) {
   return { regions: regionRows, processes: processRows, floatingNorms: normRows, templates: templateRows };
 }
 export type ModelRows = Awaited<ReturnType<typeof loadModelRows>>;
+
+/**
+ * Copies that depend on an analysis's model (its regions, processes, floating normalisations,
+ * templates and effects) live until the database announces a change to them: triggers in
+ * drizzle/0005 notify "model_changed" at commit.
+ */
+export const keptWithModel = keptPerAnalysis('model_changed');
+
+/** The model rows as last read, for views (never inside a transaction that writes): shared, not to be changed. */
+export const keptModelRows = (ctx: { db: Db; client: PGlite }, analysisId: number) => keptWithModel(ctx.client, analysisId, 'rows', () => loadModelRows(ctx.db, analysisId));
+export const keptModelIndex = (ctx: { db: Db; client: PGlite }, analysisId: number) =>
+  keptWithModel(ctx.client, analysisId, 'index', async () => indexModel(await keptModelRows(ctx, analysisId)));
 
 /** Look-ups by key over a model's rows, for validating uploads and building views. */
 export function indexModel(rows: ModelRows) {

@@ -285,13 +285,18 @@ export const questions = pgTable(
   (t) => [index('questions_entry').on(t.entryId)],
 );
 
-export const answers = pgTable('answers', {
-  id: serial('id').primaryKey(),
-  questionId: integer('question_id').notNull().references(() => questions.id, { onDelete: 'cascade' }),
-  authorId: integer('author_id').references(() => users.id, { onDelete: 'set null' }),
-  body: text('body').notNull(),
-  createdAt: createdAt(),
-});
+export const answers = pgTable(
+  'answers',
+  {
+    id: serial('id').primaryKey(),
+    questionId: integer('question_id').notNull().references(() => questions.id, { onDelete: 'cascade' }),
+    authorId: integer('author_id').references(() => users.id, { onDelete: 'set null' }),
+    body: text('body').notNull(),
+    createdAt: createdAt(),
+  },
+  // the questions list counts each question's answers, and a thread reads its own
+  (t) => [index('answers_question').on(t.questionId)],
+);
 
 /** The blinding log: every request, approval and refusal, with who and when. */
 export const blindingEvents = pgTable('blinding_events', {

@@ -2,7 +2,7 @@ import type { AppContext } from '../context';
 import { accessOf, type authorizer } from '../auth/authorize';
 import { createAnalysis, getOverview, listAnalyses } from '../services/analyses.service';
 import { addMember, changeRole, listMembers, removeMember } from '../services/members.service';
-import { getModel } from '../services/model.service';
+import { getModelEncoded } from '../services/model.service';
 import { listEntriesEncoded } from '../services/register.service';
 import { sendEncoded } from './encoded';
 import { idParam, route, type ApiRoute } from './route';
@@ -35,7 +35,7 @@ export const analysesRoutes = (ctx: AppContext, auth: ReturnType<typeof authoriz
   }),
 
   route('get', '/api/analyses/:slug/model', auth.may('analysis.read'), async (req, res) => {
-    res.json(await getModel(ctx, accessOf(req)));
+    sendEncoded(req, res, await getModelEncoded(ctx, accessOf(req)));
   }),
   route('get', '/api/analyses/:slug/entries', auth.may('analysis.read'), async (req, res) => {
     sendEncoded(req, res, await listEntriesEncoded(ctx, accessOf(req)));

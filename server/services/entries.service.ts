@@ -13,7 +13,7 @@ import { largestEffectPct } from '@shared/validation/variation-warnings';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { findEntry, type EntryRow } from '../db/entries.repository';
-import { indexModel, loadModelRows, type ModelIndex } from '../db/model.repository';
+import { indexModel, keptModelIndex, keptWithModel, loadModelRows } from '../db/model.repository';
 import { addRevision, entryRevisions, type DbOrTx } from '../db/revisions.repository';
 import { effects, entries, groups, memberships, uploads, users } from '../db/schema';
 import { badRequest, conflict, forbidden, notFound, unprocessable } from '../errors';
@@ -63,23 +63,27 @@ async function assertOwnerIsMember(db: DbOrTx, analysisId: number, ownerId: numb
   if (!m) throw unprocessable('The owner must be a member of this analysis: add them on the Members screen first.', [{ path: ['ownerId'], message: 'is not a member of this analysis' }]);
 }
 
-/** One entry as its page shows it; a caller that has just loaded the model passes it along. */
-export async function getEntryDetail(ctx: AppContext, access: Access, key: string, loaded?: ModelIndex): Promise<EntryDetail> {
-  const entry = await findEntry(ctx.db, access.analysis.id, key);
-  const model = loaded ?? indexModel(await loadModelRows(ctx.db, access.analysis.id));
-  const [owner] = entry.ownerId ? await ctx.db.select({ id: users.id, name: users.name, email: users.email }).from(users).where(eq(users.id, entry.ownerId)) : [];
-  const effectRows = await ctx.db
-    .select({ effect: effects, upload: { id: uploads.id, filename: uploads.filename, sha256: uploads.sha256, createdAt: uploads.createdAt } })
-    .from(effects)
-    .leftJoin(uploads, eq(uploads.id, effects.uploadId))
-    .where(eq(effects.entryId, entry.id))
-    .orderBy(effects.id);
+/**
+ * One entry as its page shows it. Its effects, drawn over the templates and binning they vary,
+ * are the bulk of it and change only with the model: they are kept until the model changes
+ * (`effectViews`); the entry's own fields, owner, group and history are read each time.
+ */
+export async function getEntryDetail(ctx: AppContext, access: Access, key: string): Promise<EntryDetail> {
+  const [row] = await ctx.db
+    .select({ entry: entries, owner: { id: users.id, name: users.name, email: users.email }, group: groups.name })
+    .from(entries)
+    .leftJoin(users, eq(users.id, entries.ownerId))
+    .leftJoin(groups, eq(groups.id, entries.groupId))
+    .where(and(eq(entries.analysisId, access.analysis.id), eq(entries.key, key)));
+  if (!row) throw notFound(`Register entry "${key}"`);
+  const { entry } = row;
+  const effectList = await effectViews(ctx, access.analysis.id, entry.id);
   const history = await entryRevisions(ctx.db, entry.id);
   return {
     key: entry.key,
     label: entry.label,
-    group: await groupName(ctx.db, entry.groupId),
-    owner: owner ?? null,
+    group: row.group,
+    owner: row.owner?.id ? row.owner : null,
     description: entry.description,
     justification: entry.justification,
     references: entry.references,
@@ -87,7 +91,31 @@ export async function getEntryDetail(ctx: AppContext, access: Access, key: strin
     version: entry.version,
     createdAt: entry.createdAt.toISOString(),
     updatedAt: entry.updatedAt.toISOString(),
-    effects: effectRows.map(({ effect: e, upload }) => {
+    effects: effectList,
+    revisions: history.map(({ revision: r, author }) => ({
+      id: r.id,
+      action: r.action,
+      summary: r.summary,
+      author: author?.id ? author : null,
+      createdAt: r.createdAt.toISOString(),
+      before: r.before ?? undefined,
+      after: r.after ?? undefined,
+    })),
+    can: entryPermissions(access, entry),
+  };
+}
+
+/** An entry's effects as its page draws them, shared by every reader until the model changes. */
+function effectViews(ctx: AppContext, analysisId: number, entryId: number): Promise<EntryDetail['effects']> {
+  return keptWithModel(ctx.client, analysisId, `effects of entry ${entryId}`, async () => {
+    const model = await keptModelIndex(ctx, analysisId);
+    const effectRows = await ctx.db
+      .select({ effect: effects, upload: { id: uploads.id, filename: uploads.filename, sha256: uploads.sha256, createdAt: uploads.createdAt } })
+      .from(effects)
+      .leftJoin(uploads, eq(uploads.id, effects.uploadId))
+      .where(eq(effects.entryId, entryId))
+      .orderBy(effects.id);
+    return effectRows.map(({ effect: e, upload }) => {
       const region = model.regionById.get(e.regionId)!;
       const process = model.processById.get(e.processId)!;
       return {
@@ -102,18 +130,8 @@ export async function getEntryDetail(ctx: AppContext, access: Access, key: strin
         warnings: e.warnings,
         upload: upload?.id ? { ...upload, createdAt: upload.createdAt.toISOString() } : null,
       };
-    }),
-    revisions: history.map(({ revision: r, author }) => ({
-      id: r.id,
-      action: r.action,
-      summary: r.summary,
-      author: author?.id ? author : null,
-      createdAt: r.createdAt.toISOString(),
-      before: r.before ?? undefined,
-      after: r.after ?? undefined,
-    })),
-    can: entryPermissions(access, entry),
-  };
+    });
+  });
 }
 
 export async function createEntry(ctx: AppContext, access: Access, body: unknown): Promise<EntryDetail> {
@@ -309,6 +327,5 @@ export async function deleteEffect(ctx: AppContext, access: Access, key: string,
     });
   });
   if (backToReview) await notifySubmitted(ctx, { baseUrl, analysis: access.analysis, entry, by: access.userName, reason: 'removed an effect of the accepted' });
-  // removing an effect leaves the model's regions and processes as they were
-  return getEntryDetail(ctx, access, key, model);
+  return getEntryDetail(ctx, access, key);
 }

@@ -1,7 +1,8 @@
 import type { Model, Process, Region } from '@shared/schemas/api';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { loadModelRows, type ModelRows } from '../db/model.repository';
+import { keptModelRows, keptWithModel, type ModelRows } from '../db/model.repository';
+import { encodeJson, type Encoded } from '../routes/encoded';
 import { isWithheld, visibleObserved } from './blinding.service';
 
 /** A region as clients see it: its observed counts go through the blinding rule. */
@@ -18,7 +19,7 @@ export const regionView = (access: Access, r: ModelRows['regions'][number]): Reg
 export const processView = (p: ModelRows['processes'][number]): Process => ({ key: p.key, label: p.label, kind: p.kind, colour: p.colour });
 
 export async function getModel(ctx: AppContext, access: Access): Promise<Model> {
-  const rows = await loadModelRows(ctx.db, access.analysis.id);
+  const rows = await keptModelRows(ctx, access.analysis.id);
   const regionKey = new Map(rows.regions.map((r) => [r.id, r.key]));
   const processKey = new Map(rows.processes.map((p) => [p.id, p.key]));
   const normKey = new Map(rows.floatingNorms.map((f) => [f.id, f.key]));
@@ -34,4 +35,13 @@ export async function getModel(ctx: AppContext, access: Access): Promise<Model> 
       floatingNorm: t.floatingNormId ? normKey.get(t.floatingNormId)! : null,
     })),
   };
+}
+
+/**
+ * The model's response bytes, encoded once per change of the model and per blinding rule (whether
+ * signal-region counts are withheld), and shared by every reader until the model changes.
+ */
+export function getModelEncoded(ctx: AppContext, access: Access): Promise<Encoded> {
+  const rule = access.analysis.blinding === 'unblinded' ? 'open' : 'blind';
+  return keptWithModel(ctx.client, access.analysis.id, `model response (${rule})`, async () => encodeJson(await getModel(ctx, access), 'until-changed'));
 }

@@ -5,6 +5,7 @@ import type { EntrySummary } from '@shared/schemas/api';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { watched } from '../db/announcements';
+import { keptWithModel } from '../db/model.repository';
 import { encodeJson, type Encoded } from '../routes/encoded';
 import { effects, entries, groups, processes, questions, regions, templates, users } from '../db/schema';
 
@@ -13,7 +14,8 @@ import { effects, entries, groups, processes, questions, regions, templates, use
  * more often than written: it is kept in memory per analysis, already encoded, until a change is
  * announced. Database triggers announce every change to entries, effects, groups, questions and
  * owners' names on the channel "register_changed" at commit (drizzle/0002), so no writer can forget to,
- * and the embedded database delivers the announcement before the writing query returns.
+ * and the embedded database delivers the announcement before the writing query returns. The
+ * aggregate over the effects is kept apart, until the model changes (`effectSummaries`).
  */
 const copiesOf = (ctx: AppContext) =>
   watched(
@@ -30,7 +32,7 @@ export async function listEntriesEncoded(ctx: AppContext, access: Access): Promi
   const copy = copies.get(analysisId);
   if (copy) return copy;
   // readers arriving while it is built wait for the same copy rather than building their own
-  const ready = readEntries(ctx, analysisId).then(encodeJson);
+  const ready = readEntries(ctx, analysisId).then((list) => encodeJson(list, 'until-changed'));
   copies.set(analysisId, ready);
   ready.catch(() => copies.get(analysisId) === ready && copies.delete(analysisId));
   return ready;
@@ -44,23 +46,7 @@ async function readEntries(ctx: AppContext, analysisId: number): Promise<EntrySu
     .leftJoin(users, eq(users.id, entries.ownerId))
     .where(eq(entries.analysisId, analysisId))
     .orderBy(asc(entries.key));
-  // one row per entry, aggregated in the database: a large model has tens of thousands of effects
-  const sums = await ctx.db
-    .select({
-      entryId: effects.entryId,
-      regions: sql<string[]>`array_agg(distinct ${regions.key} order by ${regions.key})`,
-      processes: sql<string[]>`array_agg(distinct ${processes.key} order by ${processes.key})`,
-      kinds: sql<('scale' | 'shape')[]>`array_agg(distinct ${effects.kind}::text order by ${effects.kind}::text)`,
-      largestPct: sql<number>`max(${effects.largestPct})`,
-      warnings: sql<number>`sum(jsonb_array_length(${effects.warnings}))::int`,
-    })
-    .from(effects)
-    .innerJoin(entries, eq(entries.id, effects.entryId))
-    .innerJoin(regions, eq(regions.id, effects.regionId))
-    .innerJoin(processes, eq(processes.id, effects.processId))
-    .where(eq(entries.analysisId, analysisId))
-    .groupBy(effects.entryId);
-  const byEntry = new Map(sums.map((x) => [x.entryId, x]));
+  const byEntry = await effectSummaries(ctx, analysisId);
   const unresolved = await ctx.db
     .select({ entryId: questions.entryId, count: sql<number>`count(*)::int` })
     .from(questions)
@@ -83,6 +69,33 @@ async function readEntries(ctx: AppContext, analysisId: number): Promise<EntrySu
       openQuestions: openByEntry.get(entry.id) ?? 0,
       updatedAt: entry.updatedAt.toISOString(),
     };
+  });
+}
+
+/**
+ * What each entry's effects add up to, aggregated in the database (a large model has tens of
+ * thousands of effects). The costly part of the register, and it changes only with the model:
+ * kept until "model_changed" is announced, so that editing an entry or answering a question
+ * rebuilds the register without it.
+ */
+function effectSummaries(ctx: AppContext, analysisId: number) {
+  return keptWithModel(ctx.client, analysisId, 'effect summaries', async () => {
+    const sums = await ctx.db
+      .select({
+        entryId: effects.entryId,
+        regions: sql<string[]>`array_agg(distinct ${regions.key} order by ${regions.key})`,
+        processes: sql<string[]>`array_agg(distinct ${processes.key} order by ${processes.key})`,
+        kinds: sql<('scale' | 'shape')[]>`array_agg(distinct ${effects.kind}::text order by ${effects.kind}::text)`,
+        largestPct: sql<number>`max(${effects.largestPct})`,
+        warnings: sql<number>`sum(jsonb_array_length(${effects.warnings}))::int`,
+      })
+      .from(effects)
+      .innerJoin(entries, eq(entries.id, effects.entryId))
+      .innerJoin(regions, eq(regions.id, effects.regionId))
+      .innerJoin(processes, eq(processes.id, effects.processId))
+      .where(eq(entries.analysisId, analysisId))
+      .groupBy(effects.entryId);
+    return new Map(sums.map((x) => [x.entryId, x]));
   });
 }
 

@@ -191,3 +191,94 @@ describe('the register copy kept in memory', () => {
     }
   });
 });
+
+describe('the model copy kept in memory', () => {
+  it('shows every change to regions, processes, floating normalisations, templates and effects, whichever path made it', async () => {
+    const t = await createTestApp();
+    try {
+      const reader = await signedIn(t.app, DEMO.reader);
+      type Model = { regions: { key: string; label: string }[]; processes: { key: string; label: string }[]; floatingNorms: { key: string; label: string }[]; templates: { region: string; process: string; nominal: number[] }[] };
+      const model = async () => (await reader.get(`${A}/model`)).body as Model;
+      const effect = async () => ((await reader.get(`${A}/entries/lumi`)).body as { effects: { region: string; process: string; nominal: number[]; up: number[] }[] }).effects.find((e) => e.region === 'CR-low' && e.process === 'halo')!;
+      const summary = async () => ((await reader.get(`${A}/entries`)).body as { key: string; regions: string[]; processes: string[] }[]).find((e) => e.key === 'lumi')!;
+      const norm = (await model()).floatingNorms[0].key;
+      const {
+        rows: [{ id }],
+      } = await t.database.client.query<{ id: number }>(`select id from analyses where slug = 'vireon-search'`);
+      const sql = (text: string, params: unknown[] = []) => t.database.client.query(text, [id, ...params]);
+      const before = await effect();
+      expect(before.nominal.length).toBeGreaterThan(0);
+      expect((await summary()).regions).toContain('CR-low');
+
+      // writes that bypass the services: the triggers announce them all the same
+      await sql(`update regions set label = 'Relabelled in the database' where key = 'CR-low' and analysis_id = $1`);
+      expect((await model()).regions.find((r) => r.key === 'CR-low')!.label).toBe('Relabelled in the database');
+      await sql(`update processes set label = 'Halo, relabelled' where key = 'halo' and analysis_id = $1`);
+      expect((await model()).processes.find((p) => p.key === 'halo')!.label).toBe('Halo, relabelled');
+      await sql(`update floating_norms set label = 'Norm, relabelled' where key = $2 and analysis_id = $1`, [norm]);
+      expect((await model()).floatingNorms.find((f) => f.key === norm)!.label).toBe('Norm, relabelled');
+      await sql(
+        `update templates set nominal = (select jsonb_agg(7) from generate_series(1, jsonb_array_length(nominal))) where analysis_id = $1 and region_id = (select id from regions where key = 'CR-low' and analysis_id = $1) and process_id = (select id from processes where key = 'halo' and analysis_id = $1)`,
+      );
+      const template = (await model()).templates.find((x) => x.region === 'CR-low' && x.process === 'halo')!;
+      expect(new Set(template.nominal)).toEqual(new Set([7]));
+      // an entry's page draws its variations over the template it varies
+      expect(new Set((await effect()).nominal)).toEqual(new Set([7]));
+
+      // an edit that leaves the effects alone rebuilds the register with their summary intact
+      await sql(`update entries set label = 'Luminosity, relabelled' where key = 'lumi' and analysis_id = $1`);
+      expect((await summary()).regions).toContain('CR-low');
+      await sql(`delete from effects where entry_id = (select id from entries where key = 'lumi' and analysis_id = $1) and region_id = (select id from regions where key = 'CR-low' and analysis_id = $1)`);
+      expect((await summary()).regions).not.toContain('CR-low');
+      expect(await effect()).toBeUndefined();
+    } finally {
+      await t.close();
+    }
+  });
+
+  it('sends the register and the model compressed as the client accepts, the same JSON each way, with an ETag', async () => {
+    const t = await createTestApp();
+    try {
+      const reader = await signedIn(t.app, DEMO.reader);
+      // both above the 16 kB from which a copy is compressed
+      await t.database.client.query(
+        `insert into entries (analysis_id, key, label) select id, 'bulk_' || g, repeat('Bulk entry ', 15) || g from analyses, generate_series(1, 40) g where slug = 'vireon-search'`,
+      );
+      await t.database.client.query(
+        `insert into regions (analysis_id, key, role, observable, edges) select id, 'CR-fine', 'control', 'm', (select jsonb_agg(g) from generate_series(0, 1500) g) from analyses where slug = 'vireon-search'`,
+      );
+      for (const path of [`${A}/entries`, `${A}/model`]) {
+        const plain = await reader.get(path).set('accept-encoding', 'identity');
+        expect(plain.text.length).toBeGreaterThan(16 * 1024);
+        expect(plain.headers['content-encoding']).toBeUndefined();
+        const gzip = await reader.get(path).set('accept-encoding', 'gzip');
+        expect(gzip.headers['content-encoding']).toBe('gzip');
+        const brotli = await reader.get(path).set('accept-encoding', 'gzip, deflate, br');
+        expect(brotli.headers['content-encoding']).toBe('br');
+        expect(gzip.body).toEqual(plain.body);
+        expect(brotli.body).toEqual(plain.body);
+        expect((await reader.get(path).set('if-none-match', plain.headers.etag)).status).toBe(304);
+      }
+    } finally {
+      await t.close();
+    }
+  });
+
+  it('sends signal-region counts by the blinding rule in force, whichever copy of the model is kept', async () => {
+    const t = await createTestApp();
+    try {
+      const reader = await signedIn(t.app, DEMO.reader);
+      const core = async () => ((await reader.get(`${A}/model`)).body as { regions: { key: string; observed: number[] | null; withheld: boolean }[] }).regions.find((r) => r.key === 'SR-core')!;
+      const blinding = (state: string) => t.database.client.query(`update analyses set blinding = $1 where slug = 'vireon-search'`, [state]);
+      expect(await core()).toMatchObject({ observed: null, withheld: true });
+      await blinding('unblinded');
+      const open = await core();
+      expect(open.withheld).toBe(false);
+      expect(open.observed!.length).toBeGreaterThan(0);
+      await blinding('blinded');
+      expect(await core()).toMatchObject({ observed: null, withheld: true });
+    } finally {
+      await t.close();
+    }
+  });
+});
