@@ -1,0 +1,405 @@
+import { readFileSync } from 'node:fs';
+import os from 'node:os';
+import autocannon from 'autocannon';
+import type { MemberRole } from '@shared/permissions';
+import { syntheticModel } from '../server/fit';
+import { startServer } from '../tests/e2e/support';
+
+/**
+ * npm run bench:load — 200 signed-in people (200 accounts, each with its own session and CSRF
+ * token) work on one analysis on loopback for 60 s: mostly reading (the register, an entry, a fit
+ * result, the questions, the model) and sometimes writing (editing an entry's description,
+ * renaming a group, raising and answering questions), while full-impacts fits of the large
+ * benchmark model run on the same server. Prints throughput, latency percentiles (from every
+ * response), errors, timeouts and non-2xx answers, and whether the targets were met.
+ *
+ * Each person is an autocannon instance with one connection. autocannon gives every connection of
+ * an instance a copy of the same initialContext and starts it afresh at each pass through the
+ * request list, so a person's cookie, token and entry version live in that person's closure.
+ *
+ * BENCH_SECONDS shortens the load; BENCH_CONNECTIONS changes the number of people (at most 250).
+ */
+const PEOPLE = Number(process.env.BENCH_CONNECTIONS ?? 200);
+const SECONDS = Number(process.env.BENCH_SECONDS ?? 60);
+const TARGET_P99_MS = 250;
+/** how long the people may take to connect and sign in at a gentle pace before the load */
+const CONNECT_LIMIT_S = 120;
+const PASSWORD = 'bench-load-password';
+const SLUG = 'bench-large';
+const A = `/api/analyses/${SLUG}`;
+/** how many questions are open before the load starts; people answer these */
+const QUESTIONS = 10;
+
+class Session {
+  cookie = '';
+  csrf = '';
+  constructor(readonly base: string) {}
+  async fetch(path: string, init: RequestInit = {}) {
+    const go = () => fetch(this.base + path, { ...init, headers: { ...(init.headers ?? {}), cookie: this.cookie } });
+    // a kept-alive connection the server closed as this request left is retried once
+    const res = await go().catch((e: Error) => (init.method ?? 'GET') === 'GET' ? go() : Promise.reject(e));
+    const set = res.headers.get('set-cookie');
+    if (set) this.cookie = set.split(';')[0];
+    const token = res.headers.get('x-csrf-token');
+    if (token) this.csrf = token;
+    return res;
+  }
+  async token() {
+    if (!this.csrf) this.csrf = (await (await this.fetch('/api/auth/csrf')).json()).token as string;
+    return this.csrf;
+  }
+  async send(method: string, path: string, body?: unknown) {
+    const res = await this.fetch(path, { method, headers: { 'content-type': 'application/json', 'x-csrf-token': await this.token() }, body: JSON.stringify(body ?? {}) });
+    if (res.status >= 400) throw new Error(`${method} ${path}: ${res.status} ${await res.text()}`);
+    return res.status === 204 ? null : res.json();
+  }
+  async get(path: string) {
+    const res = await this.fetch(path);
+    if (res.status >= 400) throw new Error(`GET ${path}: ${res.status} ${await res.text()}`);
+    return res.json();
+  }
+}
+
+/** CPU time (user + system) of a process's main thread so far, from /proc (Linux); NaN elsewhere. */
+function mainThreadCpuMs(pid: number | undefined): number {
+  try {
+    const fields = readFileSync(`/proc/${pid}/task/${pid}/stat`, 'utf8').split(') ')[1].split(' ');
+    return ((Number(fields[11]) + Number(fields[12])) * 1000) / 100;
+  } catch {
+    return NaN;
+  }
+}
+
+const percentile = (sorted: number[], p: number) => (sorted.length ? sorted[Math.min(sorted.length - 1, Math.floor((p / 100) * sorted.length))] : NaN);
+const seconds = (t: number) => `${(t / 1000).toFixed(1)} s`;
+const ms = (t: number | undefined) => (t === undefined || Number.isNaN(t) ? '-' : Math.round(t));
+
+/** Runs fn over items, `width` at a time (sign-ins and account creation hash passwords). */
+async function inBatches<T, R>(items: T[], width: number, fn: (item: T, i: number) => Promise<R>): Promise<R[]> {
+  const out: R[] = new Array(items.length);
+  let next = 0;
+  await Promise.all(
+    Array.from({ length: width }, async () => {
+      while (next < items.length) {
+        const i = next++;
+        out[i] = await fn(items[i], i);
+      }
+    }),
+  );
+  return out;
+}
+
+/** A team of this size: a few conveners, analysts, many systematics contacts, some readers. */
+function roleOf(i: number): MemberRole {
+  const r = i % 10;
+  return r === 0 ? 'convener' : r <= 3 ? 'analyst' : r <= 8 ? 'contact' : 'reader';
+}
+
+type Person = { i: number; role: MemberRole; session: Session; entry: string; version: number; group: number | null };
+type Kind = 'read' | 'write';
+type Step = { kind: Kind; name: string; method: 'GET' | 'POST' | 'PATCH'; path: () => string; body?: () => unknown; onOk?: (body: string) => void };
+
+async function main() {
+  const server = await startServer({ UPLOAD_LIMIT_BYTES: String(200_000_000), SIGN_IN_LIMIT: String(10 * PEOPLE + 100) });
+  try {
+    const admin = new Session(server.url);
+    await admin.send('POST', '/api/auth/sign-in', { email: 'admin@lantern.example', password: 'lantern-demo-2026' });
+    await admin.send('POST', '/api/analyses', { slug: SLUG, name: 'Benchmark: large model', blinded: false });
+    await admin.send('POST', `${A}/members`, { email: 'admin@lantern.example', role: 'analyst' });
+    const model = JSON.stringify({ ...syntheticModel('large'), name: SLUG });
+    const form = new FormData();
+    form.append('file', new Blob([model], { type: 'application/json' }), 'large.json');
+    let t0 = Date.now();
+    const imported = await admin.fetch(`${A}/exchange`, { method: 'POST', headers: { 'x-csrf-token': await admin.token() }, body: form });
+    if (imported.status !== 201) throw new Error(`import: ${imported.status} ${await imported.text()}`);
+    console.log(`imported the large model (${(model.length / 1e6).toFixed(1)} MB) in ${seconds(Date.now() - t0)}`);
+    const version = (await admin.send('POST', `${A}/versions`, { note: 'benchmark' })).number;
+
+    const waitFor = async (id: number) => {
+      for (;;) {
+        const fit = await admin.get(`${A}/fits/${id}`);
+        if (!['queued', 'running'].includes(fit.state)) return fit;
+        await new Promise((r) => setTimeout(r, 200));
+      }
+    };
+    const quick = await admin.send('POST', `${A}/fits`, { version, label: 'quick', options: { dataset: 'observed', impacts: 'quick' } });
+    const quickDone = await waitFor(quick.id);
+    if (quickDone.state !== 'succeeded') throw new Error(`the quick fit ended ${quickDone.state}`);
+
+    // the team: accounts, memberships, an entry for each person who edits one, a group for each analyst
+    t0 = Date.now();
+    const keys = ((await admin.get(`${A}/entries`)) as { key: string }[]).map((e) => e.key);
+    if (keys.length < PEOPLE) throw new Error(`the model has ${keys.length} entries, fewer than ${PEOPLE} people`);
+    const people: Person[] = await inBatches(
+      Array.from({ length: PEOPLE }, (_, i) => i),
+      4,
+      async (i) => {
+        const email = `bench-${i}@lantern.example`;
+        const user = await admin.send('POST', '/api/users', { email, name: `Bench Person ${i}`, password: PASSWORD });
+        const role = roleOf(i);
+        await admin.send('POST', `${A}/members`, { email, role });
+        const entry = keys[i];
+        let { version: v } = await admin.get(`${A}/entries/${entry}`);
+        // a systematics contact edits only the entries they own
+        if (role === 'contact') v = (await admin.send('PATCH', `${A}/entries/${entry}`, { ownerId: user.id, version: v })).version;
+        const group = role === 'analyst' ? (await admin.send('POST', `${A}/groups`, { name: `team ${i}` })).id : null;
+        const session = new Session(server.url);
+        await session.send('POST', '/api/auth/sign-in', { email, password: PASSWORD });
+        return { i, role, session, entry, version: v, group };
+      },
+    );
+    const conveners = people.filter((p) => p.role === 'convener');
+    const questionIds: number[] = [];
+    for (let q = 0; q < QUESTIONS; q++) {
+      const asker = conveners[q % conveners.length].session;
+      questionIds.push((await asker.send('POST', `${A}/questions`, { entry: keys[q], title: `Why is ${keys[q]} so narrow?`, body: 'Show where its information comes from.' })).id);
+    }
+    const roles = (['convener', 'analyst', 'contact', 'reader'] as const).map((r) => `${people.filter((p) => p.role === r).length} ${r}s`);
+    console.log(`${PEOPLE} people signed in (${roles.join(', ')}), each with a session of their own, in ${seconds(Date.now() - t0)}`);
+
+    const sizes = await Promise.all(
+      [`${A}/entries`, `${A}/entries/${keys[0]}`, `${A}/fits/${quick.id}`, `${A}/questions`, `${A}/model`].map(async (p) => (await (await admin.fetch(p)).arrayBuffer()).byteLength),
+    );
+    console.log(`response sizes (uncompressed): register ${(sizes[0] / 1e3).toFixed(0)} kB, entry ${(sizes[1] / 1e3).toFixed(0)} kB, fit head ${(sizes[2] / 1e3).toFixed(0)} kB, questions ${(sizes[3] / 1e3).toFixed(0)} kB, model ${(sizes[4] / 1e3).toFixed(0)} kB`);
+
+    type Tally = { count: number; non2xx: number; failed: number; times: number[] };
+    const tallies = new Map<string, Tally>();
+    const tallyOf = (name: string) => tallies.get(name) ?? (tallies.set(name, { count: 0, non2xx: 0, failed: 0, times: [] }), tallies.get(name)!);
+    const failures: string[] = [];
+    const all: number[] = [];
+
+    // The people connect and sign in gently first (one cheap request a second each), so that all 200
+    // connections are open before the load: a saturated server takes in a new connection only once per
+    // turn of its event loop, and a person still waiting to connect would only measure that. Then every
+    // person goes at full speed, and only what happens in the next SECONDS counts.
+    let phase = 'connecting' as 'connecting' | 'ramp' | 'load' | 'over';
+    const connected = new Map<number, { rate: number }>();
+    const WARM: Step = { kind: 'read', name: 'warm-up', method: 'GET', path: () => '/api/auth/me' };
+    let warmFailures = 0;
+
+    const run = (p: Person) => {
+      let instance!: autocannon.Instance;
+      const done = new Promise<autocannon.Result>((resolve, reject) => {
+        let writes = 0;
+        let visits = 0;
+        const other = () => keys[(p.i * 7 + visits++) % keys.length];
+        const entryEdit: Step = {
+          kind: 'write',
+          name: 'PATCH entry',
+          method: 'PATCH',
+          path: () => `${A}/entries/${p.entry}`,
+          body: () => ({ description: `Edited by bench person ${p.i}, change ${writes}.`, version: p.version }),
+          onOk: (body) => (p.version = (JSON.parse(body) as { version: number }).version),
+        };
+        const answer: Step = {
+          kind: 'write',
+          name: 'POST answer',
+          method: 'POST',
+          path: () => `${A}/questions/${questionIds[(p.i + writes) % questionIds.length]}/answers`,
+          body: () => ({ body: `Answer ${writes} from bench person ${p.i}: the control region constrains it.` }),
+        };
+        const rename: Step = { kind: 'write', name: 'PATCH group', method: 'PATCH', path: () => `${A}/groups/${p.group}`, body: () => ({ name: `team ${p.i} (${writes})` }) };
+        const raise: Step = {
+          kind: 'write',
+          name: 'POST question',
+          method: 'POST',
+          path: () => `${A}/questions`,
+          body: () => ({ entry: keys[(p.i + writes) % keys.length], title: `Question ${writes} from bench person ${p.i}`, body: 'Where does its constraint come from?' }),
+        };
+        const writeSteps: Step[] = { convener: [answer, raise], analyst: [entryEdit, rename, answer], contact: [entryEdit, answer], reader: [] }[p.role];
+        const read = (name: string, path: () => string): Step => ({ kind: 'read', name, method: 'GET', path });
+        // what each person does, over and over: six reads, then one write
+        const steps: (() => Step)[] = [
+          () => read('GET register', () => `${A}/entries`),
+          () => read('GET entry', () => `${A}/entries/${other()}`),
+          () => read('GET fit head', () => `${A}/fits/${quick.id}`),
+          () => read('GET questions', () => `${A}/questions`),
+          () => read('GET register', () => `${A}/entries`),
+          () => read('GET model', () => `${A}/model`),
+          // the write of this pass; the next pass takes the next kind (a reader reads an entry)
+          () => (writeSteps.length ? writeSteps[writes++ % writeSteps.length] : read('GET entry', () => `${A}/entries/${p.entry}`)),
+        ];
+        let current: Step | null = null;
+        let previous: Step | null = null;
+        instance = autocannon(
+          {
+            url: server.url,
+            connections: 1,
+            // ended by stop() once the measured seconds are over
+            duration: SECONDS + CONNECT_LIMIT_S + 30,
+            connectionRate: 1,
+            timeout: 10,
+            requests: steps.map((next) => ({
+              setupRequest: (req: autocannon.Request) => {
+                previous = current;
+                const step = (current = phase === 'connecting' ? WARM : next());
+                const headers: Record<string, string> = { cookie: p.session.cookie };
+                if (step.method === 'GET') {
+                  // as a browser does
+                  headers['accept-encoding'] = 'gzip, deflate, br';
+                  return { ...req, method: step.method, path: step.path(), headers };
+                }
+                return {
+                  ...req,
+                  method: step.method,
+                  path: step.path(),
+                  headers: { ...headers, 'content-type': 'application/json', 'x-csrf-token': p.session.csrf },
+                  body: JSON.stringify(step.body?.() ?? {}),
+                };
+              },
+              onResponse: (status: number, body: string) => {
+                const step = current!;
+                if (status >= 200 && status < 300) step.onOk?.(body);
+                else if (failures.length < 10) failures.push(`${step.method} ${step.name} -> ${status} ${body.slice(0, 200)}`);
+              },
+            })),
+          },
+          (err, result) => (err ? reject(err) : resolve(result)),
+        );
+        instance.on('response', (client, status, _bytes, responseTime) => {
+          if (current === WARM) {
+            if (status >= 200 && status < 300) connected.set(p.i, client as unknown as { rate: number });
+            else warmFailures++;
+            return;
+          }
+          if (phase !== 'load') return;
+          for (const t of [tallyOf(current!.kind), tallyOf(current!.name)]) {
+            t.count++;
+            if (status < 200 || status >= 300) t.non2xx++;
+            t.times.push(responseTime);
+          }
+          all.push(responseTime);
+        });
+        // a timeout or a connection error: no response, counted against the step that was waiting
+        // (autocannon reconnects and sets up the next request before it reports a timeout, and after
+        // it reports a connection error)
+        instance.on('reqError', (err: Error) => {
+          const timedOut = err?.message === 'request timed out';
+          const step = timedOut ? previous : current;
+          if (phase !== 'load' || !step || step === WARM) return;
+          if (timedOut) timeouts++;
+          else connectionErrors++;
+          tallyOf(step.kind).failed++;
+          tallyOf(step.name).failed++;
+        });
+      });
+      return { instance, done };
+    };
+    let timeouts = 0;
+    let connectionErrors = 0;
+
+    // A full-impacts fit of the large model runs through the whole load: one more waits in the queue
+    // behind the running one, so that the next starts the moment one ends. Fit states are sampled
+    // one after another; a sample that finds no fit running (or gets no answer) fails the run.
+    type FitState = { id: number; state: string; progress: number; startedAt: string | null; finishedAt: string | null; failure: string | null };
+    const fullFits: number[] = [];
+    const queueFull = async () => fullFits.push((await admin.send('POST', `${A}/fits`, { version, label: 'full impacts', options: { dataset: 'observed', impacts: 'full' } })).id);
+    const fullStates = async () => ((await admin.get(`${A}/fits`)) as FitState[]).filter((f) => fullFits.includes(f.id));
+    await queueFull();
+    await queueFull();
+    while (!(await fullStates()).some((f) => f.state === 'running')) await new Promise((r) => setTimeout(r, 50));
+    // (samples count while the load runs; before it, the sampler only keeps a fit waiting in the queue)
+    const samples: string[] = [];
+    let sampling = true;
+    const sampler = (async () => {
+      while (sampling) {
+        try {
+          const states = await fullStates();
+          if (phase === 'load') samples.push(states.some((f) => f.state === 'running') ? 'running' : 'none running');
+          if (!states.some((f) => f.state === 'queued')) await queueFull();
+        } catch (e) {
+          if (phase === 'load') samples.push(`no answer (${(e as Error).message})`);
+        }
+        await new Promise((r) => setTimeout(r, 1000));
+      }
+    })();
+
+    t0 = Date.now();
+    const runs = people.map(run);
+    while (connected.size < PEOPLE && Date.now() - t0 < CONNECT_LIMIT_S * 1000) await new Promise((r) => setTimeout(r, 100));
+    if (connected.size < PEOPLE || warmFailures) throw new Error(`only ${connected.size} of ${PEOPLE} people connected and signed in within ${CONNECT_LIMIT_S} s (${warmFailures} refused)`);
+    console.log(`${PEOPLE} connections open, one per person, in ${seconds(Date.now() - t0)}`);
+    // full speed: a person waiting for its next second of the gentle pace goes on within a second
+    phase = 'ramp';
+    for (const client of connected.values()) client.rate = 1e9;
+    await new Promise((r) => setTimeout(r, 1000));
+
+    const loadBefore = os.loadavg()[0];
+    const cpuBefore = mainThreadCpuMs(server.process.pid);
+    const loadStart = Date.now();
+    const loadStartMono = process.hrtime.bigint() / 1000n;
+    phase = 'load';
+    await new Promise((r) => setTimeout(r, SECONDS * 1000));
+    phase = 'over';
+    const elapsed = (Date.now() - loadStart) / 1000;
+    const cpuUsed = mainThreadCpuMs(server.process.pid) - cpuBefore;
+    // to cut what a profiled server (SERVER_NODE_ARGS) recorded to the load: its clock is this monotonic one
+    if (process.env.SERVER_NODE_ARGS) console.log(`load window (monotonic µs): ${loadStartMono} to ${process.hrtime.bigint() / 1000n}`);
+    for (const r of runs) r.instance.stop();
+    await Promise.all(runs.map((r) => r.done));
+    sampling = false;
+    await sampler;
+
+    const non2xx = tallyOf('read').non2xx + tallyOf('write').non2xx;
+    all.sort((a, b) => a - b);
+    const p99 = percentile(all, 99);
+    console.log(`\nload: ${PEOPLE} signed-in people for ${SECONDS} s on one analysis (register: ${keys.length} entries)`);
+    console.log(`machine: ${os.cpus().length} cores, load average ${loadBefore.toFixed(1)} before and ${os.loadavg()[0].toFixed(1)} after (the server, its fit threads and this load generator share them)`);
+    if (!Number.isNaN(cpuUsed)) console.log(`the server's request thread used ${seconds(cpuUsed)} of CPU in ${seconds(elapsed * 1000)} of load: ${(cpuUsed / Math.max(1, all.length)).toFixed(2)} ms per response`);
+    console.table({
+      responses: all.length,
+      'requests/s': Math.round(all.length / elapsed),
+      'p50 ms': ms(percentile(all, 50)),
+      'p95 ms': ms(percentile(all, 95)),
+      'p99 ms': ms(p99),
+      'max ms': ms(all[all.length - 1]),
+      'connection errors': connectionErrors,
+      timeouts,
+      'non-2xx': non2xx,
+    });
+    const row = (t: Tally) => {
+      const s = [...t.times].sort((a, b) => a - b);
+      return {
+        responses: t.count,
+        share: `${((100 * t.count) / Math.max(1, all.length)).toFixed(1)} %`,
+        'p50 ms': ms(percentile(s, 50)),
+        'p99 ms': ms(percentile(s, 99)),
+        'max ms': ms(s[s.length - 1]),
+        'non-2xx': t.non2xx,
+        'no answer': t.failed,
+      };
+    };
+    const kinds: Kind[] = ['read', 'write'];
+    console.table(Object.fromEntries(kinds.map((k) => [`${k}s`, row(tallyOf(k))])));
+    const names = [...tallies.keys()].filter((n) => !kinds.includes(n as Kind)).sort();
+    console.table(Object.fromEntries(names.map((n) => [n, row(tallyOf(n))])));
+    if (failures.length) console.log(`first non-2xx answers:\n  ${failures.join('\n  ')}`);
+
+    const running = samples.filter((x) => x === 'running').length;
+    const notRunning = [...new Set(samples.filter((x) => x !== 'running'))];
+    console.log(`full-impacts fits during the load: one running in ${running} of ${samples.length} samples${notRunning.length ? `; the others: ${notRunning.join(', ')}` : ''}`);
+    // the fits that started during the load run to their end; those still waiting are cancelled
+    const atEnd = await fullStates();
+    for (const f of atEnd.filter((x) => x.state === 'queued')) await admin.send('POST', `${A}/fits/${f.id}/cancel`);
+    for (const f of atEnd.filter((x) => x.state === 'running')) await waitFor(f.id);
+    const ran = (await fullStates()).filter((f) => f.startedAt !== null).sort((x, y) => x.id - y.id);
+    for (const f of ran) {
+      const took = f.finishedAt ? seconds(new Date(f.finishedAt).getTime() - new Date(f.startedAt!).getTime()) : 'no end';
+      console.log(`  full-impacts fit ${f.id}: ${f.state} in ${took}${f.failure ? `: ${f.failure}` : ''}`);
+    }
+    const fitRan = samples.length > 0 && running === samples.length && ran.length > 0 && ran.every((f) => f.state === 'succeeded');
+    if (!fitRan) console.log('a full-impacts fit did not run, or did not succeed, through the whole load: these figures do not measure the target');
+    const met = fitRan && connectionErrors === 0 && timeouts === 0 && non2xx === 0 && p99 < TARGET_P99_MS;
+    console.log(`targets: no errors or timeouts, no non-2xx, p99 under ${TARGET_P99_MS} ms, while a full-impacts fit runs -> ${met ? 'met' : 'NOT met'}`);
+  } catch (e) {
+    console.error(`the server's last output:\n${server.output().slice(-4000)}`);
+    throw e;
+  } finally {
+    await server.stop();
+  }
+}
+
+main().catch((e) => {
+  console.error(e);
+  process.exit(1);
+});
