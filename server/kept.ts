@@ -23,3 +23,13 @@ export function keptResults<T>(keep: number) {
     return value;
   };
 }
+
+/** The copy under `key`, built once: callers arriving while it is built share it, and a build that fails is not kept. */
+export function keptOnce<T>(copies: Map<string, Promise<unknown>>, key: string, build: () => Promise<T>): Promise<T> {
+  const copy = copies.get(key) as Promise<T> | undefined;
+  if (copy) return copy;
+  const ready = build();
+  copies.set(key, ready);
+  ready.catch(() => copies.get(key) === ready && copies.delete(key));
+  return ready;
+}

@@ -1,4 +1,5 @@
 import type { PGlite } from '@electric-sql/pglite';
+import { keptOnce } from '../kept';
 
 /**
  * Copies kept in memory stay true by listening to what the database announces: triggers in the
@@ -35,11 +36,6 @@ export function keptPerAnalysis(channel: string) {
     );
     let copies = analyses.get(analysisId);
     if (!copies) analyses.set(analysisId, (copies = new Map()));
-    const copy = copies.get(what) as Promise<T> | undefined;
-    if (copy) return copy;
-    const ready = build();
-    copies.set(what, ready);
-    ready.catch(() => copies.get(what) === ready && copies.delete(what));
-    return ready;
+    return keptOnce(copies, what, build);
   };
 }

@@ -2,7 +2,7 @@ import { count, eq } from 'drizzle-orm';
 import { exchangeModelSchema, type ExchangeModel, type ExchangeModelInput } from '@shared/schemas/exchange';
 import type { EntryState } from '@shared/schemas/api';
 import { largestEffectPct, scaleWarnings, shapeWarnings } from '@shared/validation/variation-warnings';
-import type { DbOrTx, Tx } from '../db/revisions.repository';
+import { addRevision, type DbOrTx, type Tx } from '../db/revisions.repository';
 import { effects, entries, floatingNorms, groups, processes, regions, revisions, templates } from '../db/schema';
 import { conflict, unprocessable, zodIssues } from '../errors';
 
@@ -35,7 +35,7 @@ export async function importModel(
     if (n > 0) throw conflict('This analysis already has a model. Import into a new analysis.');
     const counts = await writeModel(tx, analysisId, model, options);
     if (options.file)
-      await tx.insert(revisions).values({
+      await addRevision(tx, {
         analysisId,
         authorId: options.authorId,
         action: 'model.imported',

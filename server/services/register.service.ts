@@ -4,7 +4,7 @@ import type { Db } from '../db/client';
 import type { EntrySummary } from '@shared/schemas/api';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { watched } from '../db/announcements';
+import { keptPerAnalysis } from '../db/announcements';
 import { keptWithModel } from '../db/model.repository';
 import { encodeJson, type Encoded } from '../routes/encoded';
 import { effects, entries, groups, processes, questions, regions, templates, users } from '../db/schema';
@@ -17,25 +17,12 @@ import { effects, entries, groups, processes, questions, regions, templates, use
  * and the embedded database delivers the announcement before the writing query returns. The
  * aggregate over the effects is kept apart, until the model changes (`effectSummaries`).
  */
-const copiesOf = (ctx: AppContext) =>
-  watched(
-    ctx.client,
-    'register_changed',
-    () => new Map<number, Promise<Encoded>>(),
-    (copies, analysisId) => copies.delete(Number(analysisId)),
-  );
+const keptWithRegister = keptPerAnalysis('register_changed');
 
-/** The register as response bytes, built once per change. */
-export async function listEntriesEncoded(ctx: AppContext, access: Access): Promise<Encoded> {
+/** The register as response bytes, built once per change; readers arriving while it is built share it. */
+export function listEntriesEncoded(ctx: AppContext, access: Access): Promise<Encoded> {
   const analysisId = access.analysis.id;
-  const copies = await copiesOf(ctx);
-  const copy = copies.get(analysisId);
-  if (copy) return copy;
-  // readers arriving while it is built wait for the same copy rather than building their own
-  const ready = readEntries(ctx, analysisId).then((list) => encodeJson(list, 'until-changed'));
-  copies.set(analysisId, ready);
-  ready.catch(() => copies.get(analysisId) === ready && copies.delete(analysisId));
-  return ready;
+  return keptWithRegister(ctx.client, analysisId, 'register response', async () => encodeJson(await readEntries(ctx, analysisId), 'until-changed'));
 }
 
 async function readEntries(ctx: AppContext, analysisId: number): Promise<EntrySummary[]> {

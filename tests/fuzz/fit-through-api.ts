@@ -2,7 +2,7 @@ import fc from 'fast-check';
 import { fitDetailSchema, fitPartNames, fitPartSchemas } from '@shared/schemas/fits';
 import { diagnosisSchema } from '@shared/schemas/review';
 import type { Fixture } from './targets';
-import { hostileModel, hostileOptions } from './models';
+import { describeIssues, hostileModel, hostileOptions } from './models';
 
 /**
  * Hostile models through the whole product: each is imported into an analysis of its own,
@@ -36,7 +36,7 @@ export async function fitThroughApi(f: Fixture, runs: number, seed: number) {
 
       const res = await analyst.get(`/api/analyses/${slug}/fits/${started.body.id}`);
       const detail = fitDetailSchema.safeParse(res.body);
-      if (!detail.success) throw new Error(`the fit response breaks its schema: ${detail.error.issues.slice(0, 3).map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
+      if (!detail.success) throw new Error(`the fit response breaks its schema: ${describeIssues(detail.error)}`);
       const { state, failure, result } = detail.data;
       states[state] = (states[state] ?? 0) + 1;
       if (state !== 'succeeded' && state !== 'failed') throw new Error(`the fit ended ${state}`);
@@ -47,7 +47,7 @@ export async function fitThroughApi(f: Fixture, runs: number, seed: number) {
         const got = await analyst.get(`/api/analyses/${slug}/fits/${started.body.id}/parts/${part}`);
         if (got.status !== 200) throw new Error(`part ${part}: ${got.status} ${got.text.slice(0, 200)}`);
         const checked = fitPartSchemas[part].safeParse(got.body);
-        if (!checked.success) throw new Error(`part ${part} breaks its schema: ${checked.error.issues.slice(0, 3).map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
+        if (!checked.success) throw new Error(`part ${part} breaks its schema: ${describeIssues(checked.error)}`);
       }
       // the diagnosis of a parameter is a fit response too: finite numbers, or a refusal with a reason
       const nuisance = result.nuisance.find((p) => !p.fixed);
@@ -56,7 +56,7 @@ export async function fitThroughApi(f: Fixture, runs: number, seed: number) {
       if (diagnosis.status === 409 && typeof diagnosis.body?.error?.message === 'string') return;
       if (diagnosis.status !== 200) throw new Error(`diagnosis: ${diagnosis.status} ${diagnosis.text.slice(0, 200)}`);
       const checked = diagnosisSchema.safeParse(diagnosis.body);
-      if (!checked.success) throw new Error(`the diagnosis breaks its schema: ${checked.error.issues.slice(0, 3).map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
+      if (!checked.success) throw new Error(`the diagnosis breaks its schema: ${describeIssues(checked.error)}`);
     }),
     { numRuns: runs, seed, endOnFailure: true },
   );

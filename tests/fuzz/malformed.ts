@@ -61,20 +61,20 @@ export function malformedJson(base: Json, options: { strictRoot?: boolean } = {}
   const paths = pathsOf(base);
   const text = JSON.stringify(base);
   const json = (how: string, s: string): BodyMutation => ({ how, bytes: Buffer.from(s, 'utf8'), contentType: 'application/json' });
+  /** the base with the value at `path` written as raw JSON text (which may be no JSON value at all) */
+  const withRaw = (path: Path, raw: string) => JSON.stringify(setAt(base, path, RAW)).replace(JSON.stringify(RAW), raw);
   const wrongType = paths.length
-    ? fc.constantFrom(...paths).chain(({ path, value }) =>
-        wrongTypeFor(kindOf(value)).map((replacement) => json(`wrong type at ${path.join('.')}`, JSON.stringify(setAt(base, path, RAW)).replace(JSON.stringify(RAW), replacement))),
-      )
+    ? fc.constantFrom(...paths).chain(({ path, value }) => wrongTypeFor(kindOf(value)).map((replacement) => json(`wrong type at ${path.join('.')}`, withRaw(path, replacement))))
     : null;
   const numberPaths = paths.filter((p) => typeof p.value === 'number');
   const badNumber = numberPaths.length
-    ? fc.tuple(fc.constantFrom(...numberPaths), nonFinite).map(([{ path }, n]) => json(`non-finite number at ${path.join('.')}`, JSON.stringify(setAt(base, path, RAW)).replace(JSON.stringify(RAW), n)))
+    ? fc.tuple(fc.constantFrom(...numberPaths), nonFinite).map(([{ path }, n]) => json(`non-finite number at ${path.join('.')}`, withRaw(path, n)))
     : null;
   const objects = [{ path: [] as Path, value: base }, ...paths].filter((p) => kindOf(p.value) === 'object');
   const unknownField = fc
     .tuple(fc.constantFrom(...objects), fc.constantFrom('zz', 'extra', 'isAdmin', 'owner_id', '$where', '__proto__', 'id'), fc.constantFrom('1', 'true', '"x"', 'null'))
-    .map(([{ path }, key, v]) => {
-      const withKey = setAt(base, path, { ...(path.length ? (pathsOf(base).find((p) => p.path.join('.') === path.join('.'))!.value as object) : (base as object)), [RAW]: 0 });
+    .map(([{ path, value }, key, v]) => {
+      const withKey = setAt(base, path, { ...(value as object), [RAW]: 0 });
       return json(`unknown field "${key}" at ${path.join('.') || 'top level'}`, JSON.stringify(withKey).replace(`${JSON.stringify(RAW)}:0`, `${JSON.stringify(key)}:${v}`));
     });
   const truncated = fc.integer({ min: 1, max: Math.max(1, text.length - 1) }).map((n) => json(`truncated after ${n} of ${text.length} characters`, text.slice(0, n)));

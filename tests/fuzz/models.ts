@@ -76,9 +76,16 @@ export async function judgeFit(model: ExchangeModel, options: FitOptionsInput): 
   }
   const checked = fitResultSchema.safeParse(result);
   if (!checked.success) {
-    const first = checked.error.issues.slice(0, 3).map((i) => `${i.path.join('.')}: ${i.message}`);
-    return { wrong: `the result breaks its contract (status ${result.status}): ${first.join('; ')}`, status: result.status };
+    return { wrong: `the result breaks its contract (status ${result.status}): ${describeIssues(checked.error)}`, status: result.status };
   }
   if (result.status !== 'converged' && !(result.convergence.failure && result.convergence.failure.length > 10)) return { wrong: `status ${result.status} without a failure report`, status: result.status };
   return { wrong: null, status: result.status };
+}
+
+/** The first three places where a value broke its schema, e.g. "yields.prefit.0.total.errors.2: expected number". */
+export function describeIssues(error: { issues: { path: PropertyKey[]; message: string }[] }) {
+  return error.issues
+    .slice(0, 3)
+    .map((i) => `${i.path.map(String).join('.')}: ${i.message}`)
+    .join('; ');
 }
