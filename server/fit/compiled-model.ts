@@ -100,6 +100,18 @@ export interface CompiledModel {
   scaleHs: Float64Array;
 }
 
+/**
+ * Global observables: the centres of the Gaussian constraints, (θ_i − a_i)²/2 and
+ * (γ − g)²/(2σ²). Left out, the centres are the nominal a = 0 and g = 1 of MODEL.md §4; a
+ * pseudo-experiment draws them around its generation point.
+ */
+export interface GlobalObservables {
+  /** Length nDense; entries i ≥ thetaStart are the centres a_i of the θ constraints (the rest unused). */
+  theta: Float64Array;
+  /** Length nGamma: the centres g of the γ constraints. */
+  gamma: Float64Array;
+}
+
 /** A model plus the data it is fitted to and the parameters held fixed. */
 export interface FitProblem {
   model: CompiledModel;
@@ -109,4 +121,6 @@ export interface FitProblem {
   held: Uint8Array;
   /** γ parameters held at 1 (outside the fit). */
   gammaHeld: Uint8Array;
+  /** Centres of the constraints; nominal (θ: 0, γ: 1) when left out. */
+  globals?: GlobalObservables;
 }

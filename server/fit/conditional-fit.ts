@@ -81,12 +81,12 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
 
   const { ws, d, trialPhi, trialGamma } = scratch;
   const profiled = (p: Float64Array, g: Float64Array) => {
-    profileGammas(m, problem.data, problem.gammaHeld, p, g, ws);
-    return poissonSum(m, problem.data, ws) + constraintSum(m, p, g, problem.gammaHeld);
+    profileGammas(m, problem.data, problem.gammaHeld, p, g, ws, problem.globals);
+    return poissonSum(m, problem.data, ws) + constraintSum(m, p, g, problem.gammaHeld, problem.globals);
   };
   const gradient = (p: Float64Array, g: Float64Array, out: Float64Array | null) => {
     gradients++;
-    computeDerivatives(m, problem.data, p, g, ctx.eliminate, ws, d, false);
+    computeDerivatives(m, problem.data, p, g, ctx.eliminate, ws, d, false, false, problem.globals);
     if (out) for (let a = 0; a < n; a++) out[a] = d.g[idx[a]];
   };
 

@@ -44,10 +44,10 @@ export function curvatureAt(problem: FitProblem, phi: Float64Array, gamma: Float
   const m = problem.model;
   const P = m.nDense;
   const { ws, d } = scratch;
-  const nll = negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws);
+  const nll = negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws, problem.globals);
   const eliminate = new Uint8Array(m.nGamma);
   for (let g = 0; g < m.nGamma; g++) eliminate[g] = problem.gammaHeld[g] ? 0 : 1;
-  computeDerivatives(m, problem.data, phi, gamma, eliminate, ws, d, true, true);
+  computeDerivatives(m, problem.data, phi, gamma, eliminate, ws, d, true, true, problem.globals);
   const freeList: number[] = [];
   for (let i = 0; i < P; i++) if (!problem.held[i]) freeList.push(i);
   const free = Int32Array.from(freeList);

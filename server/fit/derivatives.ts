@@ -1,4 +1,4 @@
-import type { CompiledModel } from './compiled-model';
+import type { CompiledModel, GlobalObservables } from './compiled-model';
 import type { Workspace } from './yields';
 
 /**
@@ -168,7 +168,9 @@ function createBasis(m: CompiledModel): Basis {
 
 /**
  * Gradient (and, when `hessian`, the reduced Hessian) at the point whose yields are in `ws`.
- * `eliminate[g]` = 1 for the γ that are free (they enter the Schur complement).
+ * `eliminate[g]` = 1 for the γ that are free (they enter the Schur complement). The
+ * constraints are centred on `globals` (nominal when left out); their centres move the
+ * gradient only, never the Hessian.
  */
 export function computeDerivatives(
   m: CompiledModel,
@@ -180,6 +182,7 @@ export function computeDerivatives(
   d: Derivatives,
   hessian: boolean,
   wantSchur = false,
+  globals?: GlobalObservables,
 ): void {
   const P = m.nDense;
   const { g, gGamma, H, w, alpha, dNuDGamma, a, a2, ell, ell2, omega } = d;
@@ -294,16 +297,18 @@ export function computeDerivatives(
     }
   }
 
-  // Constraints: θ²/2 and (γ − 1)²/(2σ²).
+  // Constraints: (θ − a)²/2 and (γ − g)²/(2σ²), a = 0 and g = 1 unless given.
+  const aTheta = globals?.theta;
+  const gCentre = globals?.gamma;
   for (let i = m.thetaStart; i < P; i++) {
-    g[i] += phi[i];
+    g[i] += aTheta ? phi[i] - aTheta[i] : phi[i];
     if (hessian) H[i * P + i] += 1;
   }
   for (let gi = 0; gi < m.nGamma; gi++) {
     const b = m.gammaBin[gi];
     if (!m.binInFit[b]) continue;
     const s2 = m.gammaSigma[gi] * m.gammaSigma[gi];
-    gGamma[gi] = w[b] * dNuDGamma[b] + (gamma[gi] - 1) / s2;
+    gGamma[gi] = w[b] * dNuDGamma[b] + (gamma[gi] - (gCentre ? gCentre[gi] : 1)) / s2;
   }
 
   if (!hessian) return;

@@ -19,7 +19,7 @@ export function informationBreakdown(ctx: FitContext): Information[] {
   const m = ctx.problem.model;
   const P = m.nDense;
   const ws = createWorkspace(m);
-  negativeLogLikelihood(m, ctx.problem.data, ctx.problem.gammaHeld, ctx.phi, ctx.gamma, ws);
+  negativeLogLikelihood(m, ctx.problem.data, ctx.problem.gammaHeld, ctx.phi, ctx.gamma, ws, ctx.problem.globals);
   const nTheta = m.nDense - m.thetaStart;
   const perBin = new Float64Array(nTheta * m.nBins);
   const gb = new Float64Array(P);

@@ -1,10 +1,10 @@
-import type { CompiledModel } from './compiled-model';
+import type { CompiledModel, GlobalObservables } from './compiled-model';
 import { evaluateYields, type Workspace } from './yields';
 
 /**
  * MODEL.md §4, −ln L up to a constant so that a perfect fit scores 0:
- *   NLL = Σ_rb [ν − n + n ln(n/ν)] + Σ_i θ_i²/2 + Σ_rb (γ_rb − 1)² / (2σ_rb²)
- * with n ln(n/ν) := 0 for n = 0. A bin with ν ≤ 0 and n > 0 gives +Infinity (never NaN), so
+ *   NLL = Σ_rb [ν − n + n ln(n/ν)] + Σ_i (θ_i − a_i)²/2 + Σ_rb (γ_rb − g_rb)² / (2σ_rb²)
+ * with n ln(n/ν) := 0 for n = 0 and the global observables a = 0, g = 1 unless given. A bin with ν ≤ 0 and n > 0 gives +Infinity (never NaN), so
  * a line search can step back from it.
  */
 
@@ -21,13 +21,20 @@ export function poissonSum(m: CompiledModel, data: Float64Array, ws: Workspace):
   return sum;
 }
 
-/** Gaussian constraint terms of θ and γ. */
-export function constraintSum(m: CompiledModel, phi: Float64Array, gamma: Float64Array, gammaHeld: Uint8Array): number {
+/** Gaussian constraint terms of θ and γ, centred on the global observables (nominal when left out). */
+export function constraintSum(m: CompiledModel, phi: Float64Array, gamma: Float64Array, gammaHeld: Uint8Array, globals?: GlobalObservables): number {
   let sum = 0;
-  for (let i = m.thetaStart; i < m.nDense; i++) sum += 0.5 * phi[i] * phi[i];
+  if (globals) {
+    const a = globals.theta;
+    for (let i = m.thetaStart; i < m.nDense; i++) {
+      const d = phi[i] - a[i];
+      sum += 0.5 * d * d;
+    }
+  } else for (let i = m.thetaStart; i < m.nDense; i++) sum += 0.5 * phi[i] * phi[i];
+  const centre = globals?.gamma;
   for (let g = 0; g < m.nGamma; g++) {
     if (gammaHeld[g]) continue;
-    const d = (gamma[g] - 1) / m.gammaSigma[g];
+    const d = (gamma[g] - (centre ? centre[g] : 1)) / m.gammaSigma[g];
     sum += 0.5 * d * d;
   }
   return sum;
@@ -40,7 +47,8 @@ export function negativeLogLikelihood(
   phi: Float64Array,
   gamma: Float64Array,
   ws: Workspace,
+  globals?: GlobalObservables,
 ): number {
   evaluateYields(m, phi, gamma, ws);
-  return poissonSum(m, data, ws) + constraintSum(m, phi, gamma, gammaHeld);
+  return poissonSum(m, data, ws) + constraintSum(m, phi, gamma, gammaHeld, globals);
 }

@@ -64,7 +64,7 @@ export interface MinimiseResult {
 const BOUND_EPS = 1e-12;
 
 export function minimise(problem: FitProblem, phi0: Float64Array, gamma0: Float64Array, scratch: Scratch, options: MinimiseOptions = {}): MinimiseResult {
-  const { model: m, data, held, gammaHeld } = problem;
+  const { model: m, data, held, gammaHeld, globals } = problem;
   const tol = options.tolerance ?? 1e-9;
   const maxIt = options.maxIterations ?? 100;
   const P = m.nDense;
@@ -74,7 +74,7 @@ export function minimise(problem: FitProblem, phi0: Float64Array, gamma0: Float6
   const gamma = Float64Array.from(gamma0);
   project(problem, phi, gamma);
 
-  let nll = negativeLogLikelihood(m, data, gammaHeld, phi, gamma, ws);
+  let nll = negativeLogLikelihood(m, data, gammaHeld, phi, gamma, ws, globals);
   const result = (status: MinimiseStatus, it: number, dec: number, free: Int32Array, fac: Float64Array | null, failedPivot: number, hess: Float64Array, damped: boolean, message: string | null): MinimiseResult => ({
     status, phi, gamma, nll, iterations: it, decrement: dec, free, factor: fac, failedPivot, hessian: hess, damped, message,
   });
@@ -90,7 +90,7 @@ export function minimise(problem: FitProblem, phi0: Float64Array, gamma0: Float6
     // γ held outside the fit or active at a bound are not eliminated.
     let anyAtBound = false;
     for (let g = 0; g < G; g++) if (!gammaHeld[g] && (gamma[g] <= BOUND_EPS || gamma[g] >= 10 - BOUND_EPS)) anyAtBound = true;
-    if (anyAtBound) computeDerivatives(m, data, phi, gamma, eliminate.fill(0), ws, d, false);
+    if (anyAtBound) computeDerivatives(m, data, phi, gamma, eliminate.fill(0), ws, d, false, false, globals);
     for (let g = 0; g < G; g++) {
       if (gammaHeld[g]) {
         eliminate[g] = 0;
@@ -100,7 +100,7 @@ export function minimise(problem: FitProblem, phi0: Float64Array, gamma0: Float6
       const atHigh = anyAtBound && gamma[g] >= 10 - BOUND_EPS && d.gGamma[g] < 0;
       eliminate[g] = atLow || atHigh ? 0 : 1;
     }
-    computeDerivatives(m, data, phi, gamma, eliminate, ws, d, true);
+    computeDerivatives(m, data, phi, gamma, eliminate, ws, d, true, false, globals);
 
     // Free dense set: not held, not pressed against a bound.
     const freeList: number[] = [];
@@ -163,7 +163,7 @@ export function minimise(problem: FitProblem, phi0: Float64Array, gamma0: Float6
       for (let i = 0; i < P; i++) trialPhi[i] = phi[i] + alpha * deltaPhi[i];
       for (let g = 0; g < G; g++) trialGamma[g] = gamma[g] + alpha * deltaGamma[g];
       project(problem, trialPhi, trialGamma);
-      const trial = negativeLogLikelihood(m, data, gammaHeld, trialPhi, trialGamma, ws);
+      const trial = negativeLogLikelihood(m, data, gammaHeld, trialPhi, trialGamma, ws, globals);
       if (Number.isFinite(trial) && trial <= nll + 1e-4 * alpha * Math.min(slope, 0) + 1e-13 * (1 + Math.abs(nll))) {
         phi.set(trialPhi);
         gamma.set(trialGamma);
@@ -176,14 +176,14 @@ export function minimise(problem: FitProblem, phi0: Float64Array, gamma0: Float6
     }
     if (!accepted) {
       // Restore the yields at the current point for the caller.
-      nll = negativeLogLikelihood(m, data, gammaHeld, phi, gamma, ws);
+      nll = negativeLogLikelihood(m, data, gammaHeld, phi, gamma, ws, globals);
       if (hasClippedBins(problem, ws)) return result('edge', it, dec, free, factor, firstFailure, Hf, damped, null);
       if (dec < 1e-6) return result('converged', it, dec, free, factor, firstFailure, Hf, damped, `the decrement stopped at ${dec.toExponential(2)}, limited by rounding`);
       return result('failed', it, dec, free, factor, firstFailure, Hf, damped, `the line search could not lower the NLL (decrement ${dec.toExponential(2)})`);
     }
     if (it >= 40 && hasClippedBins(problem, ws)) {
       // Sitting on a clip edge: the stop on the decrement cannot be met there; hold the edge.
-      nll = negativeLogLikelihood(m, data, gammaHeld, phi, gamma, ws);
+      nll = negativeLogLikelihood(m, data, gammaHeld, phi, gamma, ws, globals);
       return result('edge', it + 1, dec, free, factor, firstFailure, Hf, damped, null);
     }
   }

@@ -29,18 +29,20 @@ export function parameterTable(ctx: FitContext): FitParameter[] {
 }
 
 /**
- * Per nuisance parameter, MODEL.md §6: pull θ̂/1, constraint σ̂/1 (flagged below the
- * threshold; common practice, no source), normalised pull θ̂/sqrt(1 − σ̂²) for σ̂ < 1
+ * Per nuisance parameter, MODEL.md §6: pull (θ̂ − a)/1 with a the constraint's centre (0 unless
+ * the problem carries global observables), constraint σ̂/1 (flagged below the
+ * threshold; common practice, no source), normalised pull (θ̂ − a)/sqrt(1 − σ̂²) for σ̂ < 1
  * (Demortier & Lyons, CDF note 5776, 2002) and the quick impact ρ(μ, θ) σ_μ = V_μθ / σ_θ.
  */
 export function nuisanceTable(ctx: FitContext, threshold: number): NuisanceReport[] {
   const m = ctx.problem.model;
   const P = m.nDense;
   const muFree = !ctx.problem.held[0];
+  const centre = ctx.problem.globals?.theta;
   const out: NuisanceReport[] = [];
   for (let i = m.thetaStart; i < P; i++) {
     const sigma = errorOf(ctx, i);
-    const pull = ctx.phi[i];
+    const pull = centre ? ctx.phi[i] - centre[i] : ctx.phi[i];
     out.push({
       name: m.names[i],
       group: m.groups[i],
