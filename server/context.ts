@@ -1,15 +1,16 @@
-import type { PGlite } from '@electric-sql/pglite';
 import type { Config } from './config';
-import type { Db } from './db/client';
+import type { Db, DbClient } from './db/client';
 import type { Mailer } from './mail/mailer';
 import type { FitRunner } from './jobs/fit-runner';
+import type { ToyRunner } from './jobs/toy-runner';
 
 /** What every route and service may reach: built once in createApp. */
 export type AppContext = {
   db: Db;
-  client: PGlite;
+  client: DbClient;
   config: Config;
   mailer: Mailer;
   fits: FitRunner;
+  toys: ToyRunner;
   log: (line: string) => void;
 };

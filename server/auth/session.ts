@@ -1,7 +1,7 @@
 import type { RequestHandler } from 'express';
 import session from 'express-session';
 import connectPgSimple from 'connect-pg-simple';
-import type { PGlite } from '@electric-sql/pglite';
+import type { DbClient } from '../db/client';
 import type { Config } from '../config';
 
 const PgStore = connectPgSimple(session);
@@ -46,12 +46,17 @@ class CachedStore extends PgStore {
   }
 }
 
-export function sessionMiddleware(client: PGlite, config: Config): RequestHandler {
+/**
+ * On a PostgreSQL server several processes may serve requests, so each read goes to the database
+ * (a sign-out in one process holds in all); the embedded database keeps the copies above.
+ */
+export function sessionMiddleware(client: DbClient, config: Config): RequestHandler {
   const pool = { query: (text: string, params?: unknown[]) => client.query(text, params) };
+  const Store = client.listen ? CachedStore : PgStore;
   return session({
     name: 'plumbline.sid',
     secret: config.sessionSecret,
-    store: new CachedStore({ pool: pool as never, tableName: 'session', createTableIfMissing: false, pruneSessionInterval: 15 * 60, disableTouch: true }),
+    store: new Store({ pool: pool as never, tableName: 'session', createTableIfMissing: false, pruneSessionInterval: 15 * 60, disableTouch: true }),
     resave: false,
     saveUninitialized: false,
     rolling: false,

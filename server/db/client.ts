@@ -3,10 +3,32 @@ import path from 'node:path';
 import { PGlite } from '@electric-sql/pglite';
 import { drizzle, type PgliteDatabase } from 'drizzle-orm/pglite';
 import { migrate } from 'drizzle-orm/pglite/migrator';
+import { drizzle as drizzlePg } from 'drizzle-orm/node-postgres';
+import { migrate as migratePg } from 'drizzle-orm/node-postgres/migrator';
+import pg from 'pg';
 import * as schema from './schema';
 
-export type Db = PgliteDatabase<typeof schema> & { $client: PGlite };
-export type Database = { db: Db; client: PGlite; close: () => Promise<void> };
+/**
+ * What is asked of the database connection beside Drizzle: plain queries (the session store) and,
+ * on the embedded database only, notices delivered before the writing query returns (the copies
+ * kept in memory rely on that; see announcements.ts).
+ */
+export type DbClient = {
+  query: <T = Record<string, unknown>>(text: string, params?: unknown[]) => Promise<{ rows: T[] }>;
+  /** several statements, no parameters */
+  exec: (text: string) => Promise<unknown>;
+  listen?: PGlite['listen'];
+};
+/** Drizzle over either driver: the query builder is the same; the embedded client is typed. */
+export type Db = Omit<PgliteDatabase<typeof schema>, '$client'> & { $client: DbClient };
+export type Database = {
+  db: Db;
+  client: DbClient;
+  /** 'embedded': PGlite in this process; 'server': a PostgreSQL server at `url` */
+  kind: 'embedded' | 'server';
+  url: string | null;
+  close: () => Promise<void>;
+};
 
 /** drizzle/ is resolved from the project root (the folder npm runs scripts in), also when bundled. */
 export const projectRoot = process.env.PLUMBLINE_ROOT ?? process.cwd();
@@ -41,8 +63,55 @@ function takeLock(lockFile: string) {
   return () => rmSync(lockFile, { force: true });
 }
 
-/** Opens the database (a folder, or in memory when dataDir is undefined) and applies migrations. */
-export async function openDatabase(dataDir?: string): Promise<Database> {
+const MIGRATIONS_LOCK = 7_262_201;
+
+/**
+ * A PostgreSQL server (DATABASE_URL): the same schema and migrations through node-postgres. The
+ * server, every worker and the command line may start together, so migrations run under an
+ * advisory lock, one process at a time.
+ */
+export async function openServerDatabase(url: string, poolSize = 10): Promise<Database> {
+  const pool = new pg.Pool({ connectionString: url, max: poolSize, application_name: 'plumbline' });
+  try {
+    const connection = await pool.connect();
+    try {
+      await connection.query('select pg_advisory_lock($1)', [MIGRATIONS_LOCK]);
+      await migratePg(drizzlePg(connection, { schema }), { migrationsFolder: path.join(projectRoot, 'drizzle') });
+    } finally {
+      await connection.query('select pg_advisory_unlock($1)', [MIGRATIONS_LOCK]).catch(() => {});
+      connection.release();
+    }
+  } catch (e) {
+    await pool.end();
+    throw new DatabaseUnreachableError(`Plumbline cannot use the database at ${redacted(url)}: ${(e as Error).message}`);
+  }
+  const db = drizzlePg(pool, { schema }) as unknown as Db;
+  const client: DbClient = {
+    query: async <T,>(text: string, params?: unknown[]) => ({ rows: (await pool.query(text, params)).rows as T[] }),
+    exec: (text) => pool.query(text),
+  };
+  return { db, client, kind: 'server', url, close: () => pool.end() };
+}
+
+export class DatabaseUnreachableError extends Error {}
+
+/** The address without its password, for messages and logs. */
+export function redacted(url: string) {
+  try {
+    const u = new URL(url);
+    if (u.password) u.password = '***';
+    return u.toString();
+  } catch {
+    return '(an address that is not a URL)';
+  }
+}
+
+/**
+ * Opens the database: a PostgreSQL server when `url` is given, else PGlite in a folder (or in
+ * memory when dataDir is undefined); applies migrations.
+ */
+export async function openDatabase(dataDir?: string, url?: string): Promise<Database> {
+  if (url) return openServerDatabase(url);
   let release = () => {};
   let client: PGlite;
   if (dataDir) {
@@ -56,8 +125,10 @@ export async function openDatabase(dataDir?: string): Promise<Database> {
     const db = drizzle(client, { schema });
     await migrate(db, { migrationsFolder: path.join(projectRoot, 'drizzle') });
     return {
-      db,
+      db: db as Db,
       client,
+      kind: 'embedded',
+      url: null,
       close: async () => {
         await client.close();
         release();

@@ -1,7 +1,6 @@
 import { asc, eq } from 'drizzle-orm';
-import type { PGlite } from '@electric-sql/pglite';
 import { keptPerAnalysis } from './announcements';
-import type { Db } from './client';
+import type { Db, DbClient } from './client';
 import type { DbOrTx } from './revisions.repository';
 import { floatingNorms, processes, regions, templates } from './schema';
 
@@ -25,8 +24,8 @@ export type ModelRows = Awaited<ReturnType<typeof loadModelRows>>;
 export const keptWithModel = keptPerAnalysis('model_changed');
 
 /** The model rows as last read, for views (never inside a transaction that writes): shared, not to be changed. */
-export const keptModelRows = (ctx: { db: Db; client: PGlite }, analysisId: number) => keptWithModel(ctx.client, analysisId, 'rows', () => loadModelRows(ctx.db, analysisId));
-export const keptModelIndex = (ctx: { db: Db; client: PGlite }, analysisId: number) =>
+export const keptModelRows = (ctx: { db: Db; client: DbClient }, analysisId: number) => keptWithModel(ctx.client, analysisId, 'rows', () => loadModelRows(ctx.db, analysisId));
+export const keptModelIndex = (ctx: { db: Db; client: DbClient }, analysisId: number) =>
   keptWithModel(ctx.client, analysisId, 'index', async () => indexModel(await keptModelRows(ctx, analysisId)));
 
 /** Look-ups by key over a model's rows, for validating uploads and building views. */
