@@ -1,7 +1,7 @@
-import type { ScaleLinear } from 'd3-scale';
+import type { ScaleLinear, ScaleLogarithmic } from 'd3-scale';
 import { theme } from '../../lib/palette';
 
-type Scale = ScaleLinear<number, number>;
+type Scale = ScaleLinear<number, number> | ScaleLogarithmic<number, number>;
 
 const tickText = { fontSize: 10, fill: theme.inkMuted } as const;
 

@@ -7,6 +7,7 @@ export const FIT_TABS = [
   { id: 'correlations', label: 'Correlations', description: 'The post-fit correlation matrix, on a teal–white–plum scale from −1 to +1.' },
   { id: 'distributions', label: 'Distributions', description: 'Per region, the pre-fit and post-fit stacked expectation with the data and a ratio panel.' },
   { id: 'diagnostics', label: 'Diagnosis', description: "Why one parameter came out as it did: its numbers, where its information comes from, its variations against the data's precision, its scan and correlations; and the convergence report in full." },
+  { id: 'toys', label: 'Pseudo-experiments', description: 'Datasets drawn from the model and fitted like the data: whether μ̂, its error, q0 and the pulls behave as the asymptotic formulas say.' },
   { id: 'compare', label: 'Compare', description: 'What changed against another fit of this analysis.' },
 ] as const;
 

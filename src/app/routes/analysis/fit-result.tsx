@@ -24,6 +24,7 @@ import { diagnosisPath } from '../../../features/fits/result-helpers';
 import { RaiseQuestionForm } from '../../../features/questions/components/raise-question-form';
 import { useQuestionMarks } from '../../../features/questions/use-question-marks';
 import { useModel } from '../../../features/model/api/get-model';
+import { ToysView } from '../../../features/toys/components/toys-view';
 import { Button } from '../../../components/ui/button';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { FormError } from '../../../components/ui/error-notice';
@@ -133,6 +134,8 @@ function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit:
       return <DistributionsWithModel slug={slug} fit={fit} result={result} />;
     case 'diagnostics':
       return <DiagnosticsView slug={slug} fitId={fit.id} result={result} />;
+    case 'toys':
+      return <ToysView slug={slug} fitId={fit.id} muHat={result.summary && !result.summary.mu.fixed ? result.summary.mu.value : null} />;
     case 'compare':
       return <CompareView slug={slug} fitId={fit.id} />;
   }
