@@ -1,3 +1,4 @@
+import type { FitProblem } from './compiled-model';
 import type { FitContext } from './covariance';
 import { cholesky, choleskySolve } from './cholesky';
 import { computeDerivatives, normalisationHessian } from './derivatives';
@@ -67,12 +68,43 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
   const delta = value - (warm ? warm.value : ctx.phi[index]);
   for (let a = 0; a < n; a++) phi[idx[a]] += (V[idx[a] * P + index] * delta) / Vii;
   phi[index] = value;
+  return settle(ctx, conditional, idx, { index, value }, phi, gamma, scratch, tolerance, MAX_STEPS);
+}
 
+/**
+ * A fit of the context's problem with nothing more held, from (φ, γ) near its minimum, by the
+ * same steps with V as the first inverse Hessian: for a problem whose minimum lies close to
+ * the context's (a pseudo-experiment drawn around it), without a fresh Hessian.
+ */
+export function quasiNewtonFit(ctx: FitContext, phi0: Float64Array, gamma0: Float64Array, scratch: Scratch, tolerance = 1e-9, maxSteps = MAX_STEPS): ConditionalResult {
+  return settle(ctx, ctx.problem, ctx.free, null, Float64Array.from(phi0), Float64Array.from(gamma0), scratch, tolerance, maxSteps);
+}
+
+/**
+ * The steps of a conditional fit from its start (φ, γ) over the free indices idx: the
+ * normalisations, then quasi-Newton from V (with the fixed parameter's row and column taken
+ * out), then Newton with bounds when that stalls. φ and γ are worked on in place.
+ */
+function settle(
+  ctx: FitContext,
+  conditional: FitProblem,
+  idx: Int32Array,
+  fixed: { index: number; value: number } | null,
+  phi: Float64Array,
+  gamma: Float64Array,
+  scratch: Scratch,
+  tolerance: number,
+  maxSteps: number,
+): ConditionalResult {
+  const { problem, V } = ctx;
+  const m = problem.model;
+  const P = m.nDense;
+  const n = idx.length;
   let normalisationSteps = 0;
   let gradients = 0;
   const fallback = (steps: number): ConditionalResult => {
     for (let i = 0; i < P; i++) phi[i] = Math.min(m.upper[i], Math.max(m.lower[i], phi[i]));
-    phi[index] = value;
+    if (fixed) phi[fixed.index] = fixed.value;
     const r = minimise(conditional, phi, gamma, scratch, { tolerance });
     const ok = r.status === 'converged' || r.status === 'edge';
     return { ok, nll: r.nll, phi: r.phi, gamma: r.gamma, chordSteps: steps, normalisationSteps, gradients: gradients + r.iterations + 1, refreshed: true, message: ok ? null : r.message };
@@ -147,20 +179,24 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
   // by BFGS from the steps taken and applied in product form: the two-loop recursion (Nocedal
   // & Wright, §7.2) keeping every pair, which is the same matrix as the dense update. One n²
   // product with V per step instead of building and updating an n × n inverse.
+  const index = fixed ? fixed.index : -1;
   const vi = new Float64Array(n);
-  for (let a = 0; a < n; a++) vi[a] = V[idx[a] * P + index] / Vii;
+  if (fixed) {
+    const Vii = V[index * P + index];
+    for (let a = 0; a < n; a++) vi[a] = V[idx[a] * P + index] / Vii;
+  }
   const applyH0 = (x: Float64Array, out: Float64Array) => {
     let vx = 0;
-    for (let a = 0; a < n; a++) vx += V[index * P + idx[a]] * x[a];
+    if (fixed) for (let a = 0; a < n; a++) vx += V[index * P + idx[a]] * x[a];
     for (let a = 0; a < n; a++) {
       const row = idx[a] * P;
       let acc = 0;
       for (let b = 0; b < n; b++) acc += V[row + idx[b]] * x[b];
-      out[a] = acc - vi[a] * vx;
+      out[a] = fixed ? acc - vi[a] * vx : acc;
     }
   };
   const pairs: { s: Float64Array; y: Float64Array; rho: number }[] = [];
-  const coef = new Float64Array(MAX_STEPS + 1);
+  const coef = new Float64Array(maxSteps + 1);
   const qv = new Float64Array(n);
   const applyHinv = (x: Float64Array, out: Float64Array) => {
     qv.set(x);
@@ -196,7 +232,7 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
     }
     dec *= 0.5;
     if (dec < tolerance) return { ok: true, nll: F, phi, gamma, chordSteps: it, normalisationSteps, gradients, refreshed: false, message: null };
-    if (it >= MAX_STEPS || !(dec >= 0)) return fallback(it);
+    if (it >= maxSteps || !(dec >= 0)) return fallback(it);
 
     // Backtracking on F along the step.
     let alpha = 1;
@@ -236,7 +272,7 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
   }
 }
 
-function outOfBounds(problem: FitContext['problem'], phi: Float64Array): boolean {
+function outOfBounds(problem: FitProblem, phi: Float64Array): boolean {
   const m = problem.model;
   for (let i = 0; i < m.nDense; i++) if (!problem.held[i] && (phi[i] < m.lower[i] || phi[i] > m.upper[i])) return true;
   return false;
