@@ -124,6 +124,13 @@ function q0Summary(plan: ToyPlan, q0s: number[], warnings: string[]): ToyQ0 {
           `Only ${toysAtOrAbove} toy(s) lie at or beyond the observed q0 = ${fmt(observed)}: the toy p-value is rough (relative error about 1/√${toysAtOrAbove} = ${pct(1 / Math.sqrt(toysAtOrAbove))}); run more toys for a firm value.`,
         );
       }
+      // Binomial error of a fraction with the asymptotic probability, so that no toy beyond q0,obs still counts.
+      const spread = Math.sqrt((asymptoticPValue * (1 - asymptoticPValue)) / n);
+      if (observed > 0 && n >= 10 && Math.abs(toyPValue - asymptoticPValue) > NOTABLE * Math.max(spread, toyPValueError)) {
+        warnings.push(
+          `The toy p-value ${fmt(toyPValue)} ± ${fmt(toyPValueError)} differs from the asymptotic ${fmt(asymptoticPValue)} by more than ${NOTABLE} standard errors: for this fit the asymptotic distribution of q0 (with σ = σ_μ of the fit) is not a good guide at q0,obs; the toys' value is the more reliable one.`,
+        );
+      }
     }
   }
   return {
