@@ -117,7 +117,7 @@ function q0Summary(plan: ToyPlan, q0s: number[], warnings: string[]): ToyQ0 {
       toyPValueError = Math.sqrt((toyPValue * (1 - toyPValue)) / n);
       if (observed > 0 && toysAtOrAbove === 0) {
         warnings.push(
-          `No toy reached the observed q0 = ${fmt(observed)}: the toy p-value is below about ${fmt(3 / n)} (3/N, the 95 % CL upper limit for zero toys) and its binomial error means nothing; run more toys.`,
+          `No toy reached the observed q0 = ${fmt(observed)}: the toy p-value is only known to lie below about ${fmt(3 / n)} (3/N, the 95 % CL upper limit when none of N is seen), and its binomial error of 0 says nothing; run more toys.`,
         );
       } else if (observed > 0 && toysAtOrAbove < ROUGH_P_COUNT) {
         warnings.push(

@@ -2,7 +2,7 @@ import jStat from 'jstat';
 import { describe, expect, it } from 'vitest';
 import { fitOptionsSchema } from '@shared/schemas/fit';
 import { toySummarySchema } from '@shared/schemas/toys';
-import { FitInputError, fitModel, syntheticModel } from '../../server/fit';
+import { FitCancelledError, FitInputError, fitModel, syntheticModel } from '../../server/fit';
 import type { FitProblem, GlobalObservables } from '../../server/fit/compiled-model';
 import { conditionalFit } from '../../server/fit/conditional-fit';
 import { curvatureAt } from '../../server/fit/covariance';
@@ -208,6 +208,20 @@ describe('pseudo-experiments', () => {
     } finally {
       await pool.destroy();
     }
+  });
+
+  it('reports progress after every toy and stops with FitCancelledError once its signal is aborted', () => {
+    const plan = prepareToys(small, options, { kind: 'best-fit' });
+    const seen: [number, number][] = [];
+    runToys(small, options, plan, 1, range(0, 3), { onProgress: (done, total) => seen.push([done, total]) });
+    expect(seen).toEqual([
+      [1, 3],
+      [2, 3],
+      [3, 3],
+    ]);
+    const controller = new AbortController();
+    controller.abort();
+    expect(() => runToys(small, options, plan, 1, range(0, 3), { signal: controller.signal })).toThrow(FitCancelledError);
   });
 
   it('refuses a generation μ outside the range of μ, and a μ other than the best fit when μ is held', () => {
