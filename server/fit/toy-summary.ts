@@ -96,7 +96,8 @@ function q0Summary(plan: ToyPlan, q0s: number[], warnings: string[]): ToyQ0 {
   const positive = q0s.filter((q) => q > 0);
 
   if (n >= 10) {
-    const error = Math.sqrt((expectedZeroFraction * (1 - expectedZeroFraction)) / n);
+    // binomial error, at least one toy's worth, so that a single toy at q0 = 0 far from μ′ = 0 is no alarm
+    const error = Math.max(Math.sqrt((expectedZeroFraction * (1 - expectedZeroFraction)) / n), 1 / n);
     if (Math.abs(zeroFraction - expectedZeroFraction) > NOTABLE * error) {
       warnings.push(
         `${pct(zeroFraction)} of the toys have q0 = 0 (μ̂ ≤ 0), where the asymptotic formula expects ${pct(expectedZeroFraction)} ± ${pct(error)}: the asymptotic distribution of q0 does not describe this fit well.`,
