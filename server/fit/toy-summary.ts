@@ -47,7 +47,7 @@ function histogram(values: number[], edges: number[], n: number, between: (a: nu
     }
   }
   return {
-    edges,
+    edges: [...edges],
     counts,
     expected: counts.map((_, j) => n * between(edges[j], edges[j + 1])),
     below,
