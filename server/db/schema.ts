@@ -1,6 +1,7 @@
 
 import {
   boolean,
+  customType,
   doublePrecision,
   index,
   integer,
@@ -20,6 +21,12 @@ import {
  * The single source of truth for the data model. Migrations in drizzle/ are generated from
  * this file (`npm run db:generate`); insert and patch schemas derive from it.
  */
+
+/** Bytes (v8-serialised engine inputs and outputs): Buffer in, Buffer out, on both drivers. */
+const bytea = customType<{ data: Buffer; driverData: Buffer | Uint8Array }>({
+  dataType: () => 'bytea',
+  fromDriver: (value) => (Buffer.isBuffer(value) ? value : Buffer.from(value)),
+});
 
 const createdAt = () => timestamp('created_at', { withTimezone: true, mode: 'date' }).notNull().defaultNow();
 
@@ -259,12 +266,69 @@ export const fits = pgTable(
     result: jsonb('result'),
     /** μ̂, σ_μ, Z and the warning count of a converged fit, kept apart so lists need not read the result */
     headline: jsonb('headline').$type<{ mu: number; muError: number | null; z: number | null; warnings: number } | null>(),
+    /** worker processes that ran its refits, with the number of shards each (queued work only) */
+    workers: jsonb('workers').$type<Record<string, number> | null>(),
     createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
     createdAt: createdAt(),
     startedAt: timestamp('started_at', { withTimezone: true }),
     finishedAt: timestamp('finished_at', { withTimezone: true }),
   },
   (t) => [index('fits_analysis').on(t.analysisId)],
+);
+
+/**
+ * Pseudo-experiments of a converged fit (shared/schemas/toys.ts): asked for by an analyst,
+ * run in batches (threads here, or worker processes through the queue), summarised at the end.
+ */
+export const toyRuns = pgTable(
+  'toy_runs',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    fitId: integer('fit_id').notNull().references(() => fits.id, { onDelete: 'cascade' }),
+    label: varchar('label', { length: 200 }).notNull().default(''),
+    count: integer('count').notNull(),
+    hypothesis: jsonb('hypothesis').notNull(),
+    seed: integer('seed').notNull(),
+    state: fitState('state').notNull().default('queued'),
+    progress: doublePrecision('progress').notNull().default(0),
+    stage: varchar('stage', { length: 100 }).notNull().default(''),
+    failure: text('failure'),
+    /** the workers (processes, or threads here) that ran its batches, with the number each ran */
+    workers: jsonb('workers').$type<Record<string, number> | null>(),
+    summary: jsonb('summary'),
+    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+    startedAt: timestamp('started_at', { withTimezone: true }),
+    finishedAt: timestamp('finished_at', { withTimezone: true }),
+  },
+  (t) => [index('toy_runs_fit').on(t.fitId)],
+);
+
+/**
+ * Work split into shards (a fit's refits, a toy run's batches): the input every shard of a run
+ * shares is stored once; each shard's output lands here with the worker that made it. Rows
+ * live while their run does.
+ */
+export const workInputs = pgTable('work_inputs', {
+  run: varchar('run', { length: 100 }).primaryKey(),
+  data: bytea('data').notNull(),
+  createdAt: createdAt(),
+});
+
+export const workResults = pgTable(
+  'work_results',
+  {
+    run: varchar('run', { length: 100 }).notNull(),
+    shard: integer('shard').notNull(),
+    worker: varchar('worker', { length: 200 }).notNull(),
+    /** null when the shard failed for good; error says why */
+    data: bytea('data'),
+    error: text('error'),
+    attempts: integer('attempts').notNull().default(1),
+    finishedAt: timestamp('finished_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.run, t.shard] })],
 );
 
 export const questions = pgTable(
