@@ -6,7 +6,8 @@ import type { JobOutcome } from './fit-job.worker';
 
 export class JobError extends Error {
   constructor(
-    readonly kind: 'cancelled' | 'input' | 'numeric' | 'internal',
+    /** 'shards': part of the work failed on the workers, and again on its retry */
+    readonly kind: 'cancelled' | 'input' | 'numeric' | 'internal' | 'shards',
     message: string,
   ) {
     super(message);

@@ -142,7 +142,7 @@ export async function startFit(ctx: AppContext, access: Access, body: unknown): 
     .insert(fits)
     .values({ analysisId: access.analysis.id, modelVersionId: version.id, label: input.label, options, createdById: access.userId })
     .returning();
-  ctx.fits.enqueue(fit.id);
+  await ctx.fits.enqueue(fit.id);
   return summaryOf(fit, version.number, access.userName);
 }
 

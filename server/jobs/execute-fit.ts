@@ -1,0 +1,91 @@
+import { and, eq, inArray } from 'drizzle-orm';
+import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
+import { fitOptionsSchema, type FitOptions, type FitResult } from '@shared/schemas/fit';
+import type { Db } from '../db/client';
+import { fits, modelVersions } from '../db/schema';
+import { JobError } from './fit-job';
+
+export const NOT_FINITE =
+  'The fit ended with a number that is not finite (NaN or infinite), so none of its numbers are shown. Check the model for extreme yields or variations, and tell an admin.';
+
+export const INTERRUPTED = 'Interrupted: the server stopped while this fit was running. Start it again.';
+
+/** Runs the engine on a model; throws JobError (cancelled, input, numeric, internal). */
+export type ComputeFit = (model: ExchangeModel, options: FitOptions, onProgress: (fraction: number, stage: string) => void, signal: AbortSignal) => Promise<FitResult>;
+
+/**
+ * One fit job from its row to its stored result, wherever it runs (a thread of the server, or a
+ * worker process): marks it running, writes progress at most every 300 ms, stores the result or
+ * a failure a person can act on. The final write applies only while the row is still running,
+ * so a cancellation recorded meanwhile (by the server, from another process) stands.
+ * `takeOver` lets a retried job restart a fit whose first worker stopped.
+ */
+export async function executeFit(
+  db: Db,
+  id: number,
+  compute: ComputeFit,
+  control: { signal: AbortSignal; log: (line: string) => void; cancelledBy: () => string | undefined; takeOver?: boolean; onProgressWrite?: () => Promise<void> },
+): Promise<void> {
+  const { signal, log } = control;
+  const [fit] = await db.select().from(fits).where(eq(fits.id, id));
+  if (!fit || !(fit.state === 'queued' || (control.takeOver && fit.state === 'running'))) return;
+  const [version] = await db.select().from(modelVersions).where(eq(modelVersions.id, fit.modelVersionId));
+  const started = await db
+    .update(fits)
+    .set({ state: 'running', startedAt: new Date(), progress: 0, stage: 'starting', failure: null })
+    .where(and(eq(fits.id, id), inArray(fits.state, control.takeOver ? ['queued', 'running'] : ['queued'])))
+    .returning({ id: fits.id });
+  if (started.length === 0) return;
+  const finish = (values: Partial<typeof fits.$inferInsert>) =>
+    db
+      .update(fits)
+      .set({ finishedAt: new Date(), ...values })
+      .where(and(eq(fits.id, id), eq(fits.state, 'running')));
+
+  // progress writes are chained so that a late one never overwrites the final state
+  let writes = Promise.resolve();
+  let last = 0;
+  const onProgress = (fraction: number, stage: string) => {
+    const now = Date.now();
+    if (now - last < 300) return;
+    last = now;
+    writes = writes
+      .then(() => db.update(fits).set({ progress: Math.min(0.99, fraction), stage }).where(and(eq(fits.id, id), eq(fits.state, 'running'))))
+      .then(() => control.onProgressWrite?.())
+      .then(
+        () => {},
+        () => {},
+      );
+  };
+  try {
+    const model = exchangeModelSchema.parse(version.model);
+    const result = await compute(model, fitOptionsSchema.parse(fit.options), onProgress, signal);
+    await writes;
+    await finish({
+      state: result.status === 'converged' ? 'succeeded' : 'failed',
+      failure: result.status === 'converged' ? null : (result.convergence.failure ?? 'The fit did not converge.'),
+      result,
+      headline:
+        result.status === 'converged' && result.summary
+          ? { mu: result.summary.mu.value, muError: result.summary.mu.error, z: result.summary.discovery?.z ?? null, warnings: result.convergence.warnings.length }
+          : null,
+      progress: 1,
+      stage: 'done',
+    });
+  } catch (e) {
+    await writes;
+    const kind = e instanceof JobError ? e.kind : 'internal';
+    if (kind === 'cancelled') await finish({ state: 'cancelled', failure: `Cancelled by ${control.cancelledBy() ?? 'a user'}.`, stage: 'cancelled' });
+    else if (kind === 'input') await finish({ state: 'failed', failure: `The model or options cannot be fitted: ${(e as Error).message}`, stage: 'failed' });
+    else if (kind === 'shards') {
+      log(`[fit ${id}] ${(e as Error).message}`);
+      await finish({ state: 'failed', failure: `Part of the fit failed on the workers, and again when retried: ${(e as Error).message}. Tell an admin; the workers' logs say more.`, stage: 'failed' });
+    } else if (kind === 'numeric') {
+      log(`[fit ${id}] non-finite result: ${(e as Error).message}`);
+      await finish({ state: 'failed', failure: `${NOT_FINITE} First at: ${(e as Error).message}.`, stage: 'failed' });
+    } else {
+      log(`[fit ${id}] ${e instanceof Error ? (e.stack ?? e.message) : String(e)}`);
+      await finish({ state: 'failed', failure: 'The fit stopped on an internal error; it has been logged. Try again, and tell an admin if it persists.', stage: 'failed' });
+    }
+  }
+}
