@@ -5,6 +5,7 @@ import type { Config } from './config';
 import type { AppContext } from './context';
 import type { Database } from './db/client';
 import type { Mailer } from './mail/mailer';
+import type { ToyRunner } from './jobs/toy-runner';
 import type { FitRunner } from './jobs/fit-runner';
 import { authorizer } from './auth/authorize';
 import { csrf } from './auth/csrf';
@@ -19,6 +20,7 @@ import { usersRoutes } from './routes/users.routes';
 import { registerRoutes } from './routes/register.routes';
 import { modelRoutes } from './routes/model.routes';
 import { invitationsRoutes } from './routes/invitations.routes';
+import { toysRoutes } from './routes/toys.routes';
 import { fitsRoutes } from './routes/fits.routes';
 import { reviewRoutes } from './routes/review.routes';
 
@@ -42,9 +44,9 @@ const plainAddress: express.RequestHandler = (req, _res, next) => {
 export type App = { app: Express; routes: ApiRoute[]; ctx: AppContext };
 
 /** Builds the Express app without listening: tests drive it with supertest, server/index.ts listens. */
-export function createApp(database: Database, config: Config, deps: { mailer: Mailer; fits: FitRunner; log?: (line: string) => void }): App {
+export function createApp(database: Database, config: Config, deps: { mailer: Mailer; fits: FitRunner; toys: ToyRunner; log?: (line: string) => void }): App {
   const log = deps.log ?? console.log;
-  const ctx: AppContext = { db: database.db, client: database.client, config, mailer: deps.mailer, fits: deps.fits, log };
+  const ctx: AppContext = { db: database.db, client: database.client, config, mailer: deps.mailer, fits: deps.fits, toys: deps.toys, log };
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
@@ -68,6 +70,7 @@ export function createApp(database: Database, config: Config, deps: { mailer: Ma
     ...registerRoutes(ctx, auth),
     ...invitationsRoutes(ctx, auth),
     ...fitsRoutes(ctx, auth),
+    ...toysRoutes(ctx, auth),
     ...reviewRoutes(ctx, auth),
     ...outboxRoutes(ctx, auth),
   ];

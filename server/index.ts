@@ -5,9 +5,12 @@ import { availableParallelism } from 'node:os';
 import express from 'express';
 import { createApp } from './app';
 import { ConfigError, loadConfig, type Config } from './config';
-import { DataDirLockedError, openDatabase, projectRoot } from './db/client';
+import { DatabaseUnreachableError, DataDirLockedError, openDatabase, projectRoot, redacted } from './db/client';
 import { createMailer } from './mail/mailer';
 import { createFitRunner } from './jobs/fit-runner';
+import { createToyRunner } from './jobs/toy-runner';
+import { startQueue } from './work/queue';
+import { queuedFitRunner, queuedToyRunner } from './work/queued-runners';
 import { seedDemo } from './seed/demo';
 import { backfillEffectSizes } from './services/register.service';
 
@@ -40,20 +43,27 @@ async function serveClient(app: express.Express, config: Config) {
 async function main() {
   if (process.argv.includes('--dev')) process.env.NODE_ENV = 'development';
   const base = loadConfig();
-  const database = await openDatabase(base.dataDir);
+  const database = await openDatabase(base.dataDir, base.DATABASE_URL);
   const config = { ...base, sessionSecret: sessionSecret(base) };
   const seed = await seedDemo(database.db);
   await backfillEffectSizes(database.db);
   const mailer = await createMailer(database.db, config);
-  const fits = createFitRunner(database.db, console.error, { threads: config.FIT_THREADS ?? Math.max(1, availableParallelism() - 1), niceness: config.FIT_NICENESS });
+  const threads = config.FIT_THREADS ?? Math.max(1, availableParallelism() - 1);
+  const local = createFitRunner(database.db, console.error, { threads, niceness: config.FIT_NICENESS });
+  // with a PostgreSQL server, fits and toys wait on its queue for worker processes
+  const queue = config.DATABASE_URL ? await startQueue(config.DATABASE_URL, console.error) : null;
+  const fits = queue ? queuedFitRunner(database.db, queue, local) : local;
+  const toys = queue ? queuedToyRunner(database.db, queue) : createToyRunner(database.db, console.error, { threads, niceness: config.FIT_NICENESS });
   await fits.recover();
-  const { app } = createApp(database, config, { mailer, fits });
+  await toys.recover();
+  const { app } = createApp(database, config, { mailer, fits, toys });
   const closeClient = await serveClient(app, config);
 
   const server = app.listen(config.PORT, config.HOST, () => {
     const address = server.address();
     const port = typeof address === 'object' && address ? address.port : config.PORT;
-    console.log(`Plumbline is running at http://localhost:${port} (${config.NODE_ENV}; data in ${config.dataDir})`);
+    const where = config.DATABASE_URL ? `database ${redacted(config.DATABASE_URL)}; fits and toys run by worker processes (npm run worker)` : `data in ${config.dataDir}`;
+    console.log(`Plumbline is running at http://localhost:${port} (${config.NODE_ENV}; ${where})`);
     console.log(`E-mail is ${mailer.describe()}.`);
     if (seed.seeded) console.log('The invented demo scenario was written into the new database.');
     console.log(`Demo accounts (password for all: ${seed.password}):`);
@@ -66,7 +76,9 @@ async function main() {
     stopping = true;
     server.close();
     await closeClient();
+    await toys.close();
     await fits.close();
+    await queue?.stop({ graceful: false, wait: true, timeout: 5000 }).catch(() => {});
     await mailer.close();
     await database.close();
     process.exit(0);
@@ -76,7 +88,7 @@ async function main() {
 }
 
 main().catch((e) => {
-  if (e instanceof ConfigError || e instanceof DataDirLockedError) console.error(e.message);
+  if (e instanceof ConfigError || e instanceof DataDirLockedError || e instanceof DatabaseUnreachableError) console.error(e.message);
   else console.error(e);
   process.exit(1);
 });

@@ -88,7 +88,7 @@ function sharedContext(ctx: FitContext): FitContext {
   return copy;
 }
 
-function toShared(x: unknown): unknown {
+export function toShared(x: unknown): unknown {
   if (ArrayBuffer.isView(x) && !(x instanceof DataView)) {
     const bytes = new Uint8Array(new SharedArrayBuffer(x.byteLength));
     bytes.set(new Uint8Array(x.buffer, x.byteOffset, x.byteLength));

@@ -1,0 +1,103 @@
+import { and, desc, eq, getTableColumns } from 'drizzle-orm';
+import { randomInt } from 'node:crypto';
+import { startToysSchema, toyHypothesisSchema, toySummarySchema, type ToyRun } from '@shared/schemas/toys';
+import type { Access } from '../auth/authorize';
+import type { AppContext } from '../context';
+import { toyRuns, users } from '../db/schema';
+import { conflict, notFound } from '../errors';
+import { findFit } from './fits.service';
+
+type ToyRow = typeof toyRuns.$inferSelect;
+
+function toyRunOf(row: Omit<ToyRow, 'summary'> & { summary?: unknown }, createdBy: string | null): ToyRun {
+  return {
+    id: row.id,
+    fitId: row.fitId,
+    label: row.label,
+    count: row.count,
+    hypothesis: toyHypothesisSchema.parse(row.hypothesis),
+    seed: row.seed,
+    state: row.state,
+    progress: row.progress,
+    stage: row.stage,
+    failure: row.failure,
+    createdAt: row.createdAt.toISOString(),
+    createdBy,
+    startedAt: row.startedAt?.toISOString() ?? null,
+    finishedAt: row.finishedAt?.toISOString() ?? null,
+    workers: Object.keys(row.workers ?? {}).length,
+    // never a number from a run that did not succeed
+    summary: row.state === 'succeeded' && row.summary ? toySummarySchema.parse(row.summary) : null,
+  };
+}
+
+const { summary: _summary, ...listColumns } = getTableColumns(toyRuns);
+
+/** The toy runs of one fit, newest first, without their summaries. */
+export async function listToyRuns(ctx: AppContext, access: Access, fitId: number): Promise<ToyRun[]> {
+  await findFit(ctx, access, fitId);
+  const rows = await ctx.db
+    .select({ run: listColumns, by: users.name })
+    .from(toyRuns)
+    .leftJoin(users, eq(users.id, toyRuns.createdById))
+    .where(and(eq(toyRuns.analysisId, access.analysis.id), eq(toyRuns.fitId, fitId)))
+    .orderBy(desc(toyRuns.id));
+  return rows.map((r) => toyRunOf(r.run, r.by));
+}
+
+async function findToyRun(ctx: AppContext, access: Access, id: number) {
+  const [row] = await ctx.db
+    .select({ run: toyRuns, by: users.name })
+    .from(toyRuns)
+    .leftJoin(users, eq(users.id, toyRuns.createdById))
+    .where(and(eq(toyRuns.analysisId, access.analysis.id), eq(toyRuns.id, id)));
+  if (!row) throw notFound(`Toy run ${id}`);
+  return row;
+}
+
+export async function getToyRun(ctx: AppContext, access: Access, id: number): Promise<ToyRun> {
+  const row = await findToyRun(ctx, access, id);
+  return toyRunOf(row.run, row.by);
+}
+
+/** Toys are drawn from a converged fit only: its best fit (or the best fit at a chosen μ) is where they come from. */
+export async function startToys(ctx: AppContext, access: Access, fitId: number, body: unknown): Promise<ToyRun> {
+  const input = startToysSchema.parse(body);
+  const fit = await findFit(ctx, access, fitId);
+  if (fit.fit.state !== 'succeeded') throw conflict(`Fit ${fitId} has not converged (${fit.fit.state}); toys are drawn from a converged fit only.`);
+  if (input.hypothesis.kind === 'fixed-mu' && fit.fit.headline === null) throw conflict(`Fit ${fitId} has no headline μ̂; toys at a chosen μ need a fit of μ.`);
+  const [row] = await ctx.db
+    .insert(toyRuns)
+    .values({
+      analysisId: access.analysis.id,
+      fitId,
+      label: input.label,
+      count: input.count,
+      hypothesis: input.hypothesis,
+      seed: input.seed ?? randomInt(0, 2 ** 31 - 1),
+      createdById: access.userId,
+    })
+    .returning();
+  await ctx.toys.enqueue(row.id);
+  return toyRunOf(row, access.userName);
+}
+
+export async function cancelToys(ctx: AppContext, access: Access, id: number): Promise<ToyRun> {
+  const row = await findToyRun(ctx, access, id);
+  if (row.run.state !== 'queued' && row.run.state !== 'running') throw conflict(`Toy run ${id} has ended (${row.run.state}); there is nothing to cancel.`);
+  const here = await ctx.toys.cancel(id, access.userName);
+  if (!here) {
+    if (row.run.state === 'running') throw conflict(`Toy run ${id} is running in another server process; it cannot be cancelled from here.`);
+    await ctx.db
+      .update(toyRuns)
+      .set({ state: 'cancelled', failure: `Cancelled by ${access.userName} before it started.`, finishedAt: new Date(), stage: 'cancelled' })
+      .where(and(eq(toyRuns.id, id), eq(toyRuns.state, 'queued')));
+  }
+  // the engine checks for cancellation between toys: wait briefly for this run to stop
+  let after = await findToyRun(ctx, access, id);
+  for (let waited = 0; after.run.state === 'running' && waited < 10_000; waited += 50) {
+    await new Promise((r) => setTimeout(r, 50));
+    after = await findToyRun(ctx, access, id);
+  }
+  return toyRunOf(after.run, after.by);
+}

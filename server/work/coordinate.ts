@@ -1,0 +1,51 @@
+import { randomUUID } from 'node:crypto';
+import { eq } from 'drizzle-orm';
+import type { Db } from '../db/client';
+import { fits } from '../db/schema';
+import { FitCancelledError } from '../fit/errors';
+import { executeFit } from '../jobs/execute-fit';
+import { JobError } from '../jobs/fit-job';
+import { fitOutcome } from '../jobs/fit-outcome';
+import { ShardFailedError, type Queue } from './queue';
+import { queuedFitPool } from './queued-pool';
+
+/**
+ * A fit taken from the queue by a worker: the serial part (the minimum, its covariance, the
+ * Asimov fits) runs here; the refits go back to the queue as shards for every worker. The worker
+ * checks the fit's row every second, so a cancellation from the server stops it.
+ */
+export async function coordinateFit(db: Db, queue: Queue, fitId: number, log: (line: string) => void, retried: boolean) {
+  const controller = new AbortController();
+  const watch = setInterval(async () => {
+    try {
+      const [row] = await db.select({ state: fits.state }).from(fits).where(eq(fits.id, fitId));
+      if (!row || row.state === 'cancelled') controller.abort();
+    } catch {
+      // the next check will tell
+    }
+  }, 1000);
+  const workers: Record<string, number> = {};
+  try {
+    await executeFit(
+      db,
+      fitId,
+      async (model, options, onProgress, signal) => {
+        const pool = queuedFitPool(db, queue, `fit:${fitId}:${randomUUID()}`, (worker) => (workers[worker] = (workers[worker] ?? 0) + 1));
+        try {
+          const outcome = await fitOutcome(model, options, { pool, onProgress, signal });
+          if (!outcome.ok) throw new JobError(outcome.kind, outcome.message);
+          return outcome.result;
+        } catch (e) {
+          if (e instanceof FitCancelledError || signal.aborted) throw new JobError('cancelled', 'cancelled');
+          if (e instanceof ShardFailedError) throw new JobError('shards', e.message);
+          throw e;
+        } finally {
+          if (Object.keys(workers).length) await db.update(fits).set({ workers }).where(eq(fits.id, fitId));
+        }
+      },
+      { signal: controller.signal, log, cancelledBy: () => undefined, takeOver: retried },
+    );
+  } finally {
+    clearInterval(watch);
+  }
+}

@@ -1,0 +1,47 @@
+import { and, eq, inArray, sql } from 'drizzle-orm';
+import type { Db } from '../db/client';
+import { fits, toyRuns } from '../db/schema';
+import type { FitRunner } from '../jobs/fit-runner';
+import type { ToyRunner } from '../jobs/toy-runner';
+import { QUEUES, type Queue } from './queue';
+
+/**
+ * The server's side of queued work (PostgreSQL server): a fit or toy run is put on the queue
+ * and waits for a worker process; a cancellation is written to its row, which the coordinating
+ * worker reads within a second. Nothing runs here but the per-parameter diagnosis, which
+ * answers a request and keeps its own thread.
+ */
+function queuedRows(db: Db, queue: Queue, table: typeof fits, name: string, data: (id: number) => object) {
+  const open = inArray(table.state, ['queued', 'running']);
+  return {
+    enqueue: async (id: number) => {
+      await db.update(table).set({ stage: 'waiting for a worker' }).where(and(eq(table.id, id), eq(table.state, 'queued')));
+      await queue.send(name, data(id));
+    },
+    cancel: async (id: number, by: string) => {
+      const rows = await db
+        .update(table)
+        .set({ state: 'cancelled', failure: sql`case when ${table.state} = 'queued' then ${`Cancelled by ${by} before it started.`} else ${`Cancelled by ${by}.`} end`, stage: 'cancelled', finishedAt: new Date() })
+        .where(and(eq(table.id, id), open))
+        .returning({ id: table.id });
+      return rows.length > 0;
+    },
+    // the queue keeps queued work, and a worker that stopped has its job retried by another
+    recover: async () => {},
+    idle: async () => {
+      for (;;) {
+        const [row] = await db.select({ n: sql<number>`count(*)::int` }).from(table).where(open);
+        if (!row || row.n === 0) return;
+        await new Promise((r) => setTimeout(r, 200));
+      }
+    },
+  };
+}
+
+export function queuedFitRunner(db: Db, queue: Queue, local: FitRunner): FitRunner {
+  return { ...queuedRows(db, queue, fits, QUEUES.fit, (fitId) => ({ fitId })), diagnose: local.diagnose, close: local.close };
+}
+
+export function queuedToyRunner(db: Db, queue: Queue): ToyRunner {
+  return { ...queuedRows(db, queue, toyRuns as unknown as typeof fits, QUEUES.toys, (toyRunId) => ({ toyRunId })), close: async () => {} };
+}

@@ -1,0 +1,77 @@
+import { availableParallelism, hostname } from 'node:os';
+import { parseArgs } from 'node:util';
+import { ConfigError, loadConfig } from './config';
+import { DatabaseUnreachableError, openServerDatabase, redacted } from './db/client';
+import { createFitPool } from './fit';
+import type { FitContext } from './fit/covariance';
+import type { WorkerBatch } from './fit/fit-worker';
+import { toShared } from './fit/pool';
+import { coordinateFit } from './work/coordinate';
+import { QUEUES, startQueue, workShards } from './work/queue';
+import { coordinateToys, toyBatchWorker } from './work/toys';
+
+/**
+ * A worker process: takes fits, refit shards, toy runs and toy batches from the queue in the
+ * PostgreSQL server at DATABASE_URL, runs the engine, stores the results. Start as many as the
+ * machines have cores for, on any machine that reaches the database (docs/scaling.md).
+ *
+ *   npm run worker -- [--threads N] [--name NAME]
+ */
+async function main() {
+  const { values } = parseArgs({ options: { threads: { type: 'string' }, name: { type: 'string' } } });
+  const config = loadConfig();
+  if (!config.DATABASE_URL) throw new ConfigError('A worker needs DATABASE_URL: the postgres:// address of the PostgreSQL server that holds the queue (see README, "PostgreSQL and workers").');
+  const threads = values.threads === undefined ? (config.FIT_THREADS ?? availableParallelism()) : Number(values.threads);
+  if (!Number.isInteger(threads) || threads < 1 || threads > 256) throw new ConfigError(`--threads must be a whole number from 1 to 256, not "${values.threads}".`);
+  const name = values.name ?? `${hostname()}:${process.pid}`;
+  const log = (line: string) => console.error(`[worker ${name}] ${line}`);
+
+  const database = await openServerDatabase(config.DATABASE_URL, 4 + 2 * threads);
+  const queue = await startQueue(config.DATABASE_URL, log);
+  const refits = createFitPool({ threads, niceness: config.FIT_NICENESS });
+  const toys = toyBatchWorker(threads, config.FIT_NICENESS);
+
+  const refitShards = await workShards<FitContext[], WorkerBatch['jobs'], unknown>(database.db, queue, {
+    queue: QUEUES.refits,
+    worker: name,
+    concurrency: threads,
+    // in shared memory, so that each batch sent to a thread copies only the small fields
+    prepare: (input) => toShared(input) as FitContext[],
+    compute: (contexts, jobs) => refits.runBatch({ contexts, jobs }),
+    log,
+  });
+  const toyShards = await workShards(database.db, queue, { queue: QUEUES.toyBatch, worker: name, concurrency: threads, prepare: toys.prepare, compute: toys.compute, log });
+  await queue.work<{ fitId: number }>(QUEUES.fit, { batchSize: 1, includeMetadata: true }, async ([job]) => {
+    log(`fit ${job.data.fitId}: started${job.retryCount ? ' (retry)' : ''}`);
+    await coordinateFit(database.db, queue, job.data.fitId, log, job.retryCount > 0);
+    log(`fit ${job.data.fitId}: done`);
+  });
+  await queue.work<{ toyRunId: number }>(QUEUES.toys, { batchSize: 1, includeMetadata: true }, async ([job]) => {
+    log(`toy run ${job.data.toyRunId}: started${job.retryCount ? ' (retry)' : ''}`);
+    await coordinateToys(database.db, queue, job.data.toyRunId, log, job.retryCount > 0);
+    log(`toy run ${job.data.toyRunId}: done`);
+  });
+  console.log(`Plumbline worker ${name} is taking work from ${redacted(config.DATABASE_URL)} with ${threads} engine thread(s).`);
+
+  let stopping = false;
+  const stop = async () => {
+    if (stopping) return;
+    stopping = true;
+    // shards in hand are finished (they are short); a fit or toy run being coordinated is
+    // failed by the queue and retried by another worker
+    await Promise.race([Promise.all([refitShards.stop(), toyShards.stop()]), new Promise((r) => setTimeout(r, 10_000))]);
+    await queue.stop({ graceful: false, wait: true, timeout: 5000 }).catch(() => {});
+    await refits.destroy();
+    await toys.close();
+    await database.close();
+    process.exit(0);
+  };
+  process.on('SIGINT', stop);
+  process.on('SIGTERM', stop);
+}
+
+main().catch((e) => {
+  if (e instanceof ConfigError || e instanceof DatabaseUnreachableError) console.error(e.message);
+  else console.error(e);
+  process.exit(1);
+});
