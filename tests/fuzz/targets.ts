@@ -83,6 +83,7 @@ const BODIES: Body[] = [
   { method: 'patch', path: (f) => `${A}/groups/${f.groupId}`, caller: 'analyst', body: () => ({ name: 'Renamed group' }) },
   { method: 'post', path: () => `${A}/versions`, caller: 'analyst', body: () => ({ note: 'for the fuzz' }) },
   { method: 'post', path: () => `${A}/fits`, caller: 'analyst', body: () => ({ version: 1, label: 'fuzz', options: { dataset: 'asimov', asimovMu: 1, impacts: 'none', scanPoints: 21, excludeRegions: ['VR-mid'], overConstraintThreshold: 0.5 } }) },
+  { method: 'post', path: () => `${A}/fits/1/toys`, caller: 'analyst', body: () => ({ count: 10, hypothesis: { kind: 'fixed-mu', mu: 0.5 }, seed: 12, label: 'fuzz' }) },
   { method: 'post', path: () => `${A}/questions`, caller: 'convener', body: () => ({ entry: 'flare_escale', fitId: null, title: 'Why narrow?', body: 'Show the evidence.' }) },
   { method: 'post', path: (f) => `${A}/questions/${f.questionId}/answers`, caller: 'contact', body: () => ({ body: 'The control region constrains it.' }) },
   { method: 'post', path: (f) => `${A}/questions/${f.questionId}/resolve`, caller: 'convener', body: () => ({ note: 'Understood.' }) },

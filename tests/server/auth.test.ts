@@ -10,6 +10,7 @@ import { openDatabase, DataDirLockedError } from '../../server/db/client';
 import { analyses, users } from '../../server/db/schema';
 import { seedDemo } from '../../server/seed/demo';
 import { createMailer } from '../../server/mail/mailer';
+import { createToyRunner } from '../../server/jobs/toy-runner';
 import { createFitRunner } from '../../server/jobs/fit-runner';
 import { Client, createTestApp, DEMO, signedIn, type TestApp } from './helpers';
 
@@ -174,7 +175,7 @@ describe('a data folder', () => {
       await seedDemo(database.db);
       let mailer = await createMailer(database.db, config, () => {});
       let fits = createFitRunner(database.db, () => {}, { threads: 1 });
-      const client = await signedIn(createApp(database, config, { mailer, fits, log: () => {} }).app, DEMO.reader);
+      const client = await signedIn(createApp(database, config, { mailer, fits, toys: createToyRunner(database.db, () => {}), log: () => {} }).app, DEMO.reader);
       const cookie = (await client.get('/api/auth/me')).request.cookies;
       await fits.close();
       await mailer.close();
@@ -183,7 +184,7 @@ describe('a data folder', () => {
       database = await openDatabase(dir);
       mailer = await createMailer(database.db, config, () => {});
       fits = createFitRunner(database.db, () => {}, { threads: 1 });
-      const res = await request(createApp(database, config, { mailer, fits, log: () => {} }).app).get('/api/auth/me').set('Cookie', cookie);
+      const res = await request(createApp(database, config, { mailer, fits, toys: createToyRunner(database.db, () => {}), log: () => {} }).app).get('/api/auth/me').set('Cookie', cookie);
       expect(res.status).toBe(200);
       expect(res.body.user.email).toBe(DEMO.reader);
       await fits.close();
@@ -212,7 +213,7 @@ describe('an error inside the server', () => {
     const logged: string[] = [];
     const t = await createTestApp();
     try {
-      const app = createApp(t.database, t.ctx.config, { mailer: t.mailer, fits: t.fits, log: (line) => logged.push(line) }).app;
+      const app = createApp(t.database, t.ctx.config, { mailer: t.mailer, fits: t.fits, toys: t.toys, log: (line) => logged.push(line) }).app;
       const analyst = await signedIn(app, DEMO.analyst);
       // a table gone from under the server: the query fails inside the driver
       await t.database.client.exec('alter table entries rename to entries_gone');

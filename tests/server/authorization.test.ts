@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { hashPassword } from '../../server/auth/passwords';
-import { analyses, effects, entries, fits, groups, invitations, memberships, modelVersions, processes, questions, regions, users } from '../../server/db/schema';
+import { analyses, effects, entries, fits, groups, invitations, memberships, modelVersions, processes, questions, regions, toyRuns, users } from '../../server/db/schema';
 import { Client, createTestApp, dbSnapshot, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
 
 /**
@@ -137,6 +137,13 @@ async function queuedFit(t: TestApp) {
   const [f] = await t.database.db.insert(fits).values({ analysisId, modelVersionId: v.id, options: {} }).returning();
   return f.id;
 }
+/** a toy run of the fit fixture waiting in the database (not in this process's queue) */
+async function queuedToys(t: TestApp) {
+  const { fitId } = await convergedFit(t);
+  const { analysisId } = await ids(t);
+  const [r] = await t.database.db.insert(toyRuns).values({ analysisId, fitId, count: 10, hypothesis: { kind: 'best-fit' }, seed: 1 }).returning();
+  return r.id;
+}
 const VARIATION_CSV = 'region,process,kind,bin,up,down\nCR-shower,showerpair,scale,,1.05,0.95\n';
 const A = `/api/analyses/${SLUG}`;
 
@@ -249,6 +256,13 @@ export const MATRIX: Record<string, Row> = {
     },
     expect: members(200),
   },
+  'GET /api/analyses/:slug/fits/:fitId/toys': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/toys` }), expect: members(200) },
+  'POST /api/analyses/:slug/fits/:fitId/toys': {
+    call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/toys`, body: { count: 10, hypothesis: { kind: 'best-fit' }, seed: 3 } }),
+    expect: analystOnly(202),
+  },
+  'GET /api/analyses/:slug/toys/:toyId': { call: async (t) => ({ path: `${A}/toys/${await queuedToys(t)}` }), expect: members(200) },
+  'POST /api/analyses/:slug/toys/:toyId/cancel': { call: async (t) => ({ path: `${A}/toys/${await queuedToys(t)}/cancel` }), expect: analystOnly(200) },
   'GET /api/analyses/:slug/fits/:fitId/export': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/export?format=csv&table=summary` }), expect: members(200) },
 
   // the review loop: diagnosis, questions, blinding

@@ -6,6 +6,7 @@ import { openDatabase, type Database } from '../../server/db/client';
 import { hashPassword } from '../../server/auth/passwords';
 import { createMailer, type Mailer } from '../../server/mail/mailer';
 import { createFitRunner, type FitRunner } from '../../server/jobs/fit-runner';
+import { createToyRunner, type ToyRunner } from '../../server/jobs/toy-runner';
 import { users } from '../../server/db/schema';
 import { seedDemo } from '../../server/seed/demo';
 import { DEMO_PASSWORD } from '../../server/seed/scenario';
@@ -21,7 +22,7 @@ export const DEMO = {
 } as const;
 export const PASSWORD = DEMO_PASSWORD;
 
-export type TestApp = App & { database: Database; mailer: Mailer; fits: FitRunner; close: () => Promise<void> };
+export type TestApp = App & { database: Database; mailer: Mailer; fits: FitRunner; toys: ToyRunner; close: () => Promise<void> };
 
 /** A real app on an in-memory PGlite with migrations applied and the demo seeded (plus one account that belongs to no analysis). */
 export async function createTestApp(overrides: Partial<Config> = {}): Promise<TestApp> {
@@ -31,13 +32,16 @@ export async function createTestApp(overrides: Partial<Config> = {}): Promise<Te
   const config = testConfig(overrides);
   const mailer = await createMailer(database.db, config, () => {});
   const fits = createFitRunner(database.db, () => {}, { threads: 2 });
-  const app = createApp(database, config, { mailer, fits, log: () => {} });
+  const toys = createToyRunner(database.db, () => {}, { threads: 2 });
+  const app = createApp(database, config, { mailer, fits, toys, log: () => {} });
   return {
     ...app,
     database,
     mailer,
     fits,
+    toys,
     close: async () => {
+      await toys.close();
       await fits.close();
       await mailer.close();
       await database.close();

@@ -1,0 +1,209 @@
+import { spawn, type ChildProcess } from 'node:child_process';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import request from 'supertest';
+import pg from 'pg';
+import { exchangeModelSchema } from '@shared/schemas/exchange';
+import { fitOptionsSchema, type FitResult } from '@shared/schemas/fit';
+import type { ToyRun } from '@shared/schemas/toys';
+import { startPostgres, type PostgresServer } from '../../scripts/postgres-server';
+import { createFitPool, fitModel, type FitPool } from '../../server/fit';
+import { prepareToys, runToys, summariseToys } from '../../server/fit/toys';
+import { openServerDatabase, type Database } from '../../server/db/client';
+import { QUEUES, runSharded, ShardFailedError, startQueue, workShards, type Queue } from '../../server/work/queue';
+import { toyBatches } from '../../server/work/toys';
+import { DEMO, PASSWORD } from '../server/helpers';
+import { startServer, type RunningServer } from './support';
+
+/**
+ * The app on a PostgreSQL server from Debian's packages (.ci/run installs it when missing), with
+ * two worker processes: a full-impacts fit is split across both and equals the embedded result;
+ * toys through the queue equal toys run in one thread; a shard is retried once, then fails its run.
+ */
+let postgres: PostgresServer;
+let server: RunningServer;
+const workers: { name: string; child: ChildProcess; output: () => string }[] = [];
+
+function startWorker(name: string, url: string) {
+  const child = spawn(process.execPath, ['--import', 'tsx', 'server/worker.ts', '--threads', '1', '--name', name], { env: { ...process.env, DATABASE_URL: url }, stdio: ['ignore', 'pipe', 'pipe'] });
+  let output = '';
+  child.stdout!.on('data', (d) => (output += d));
+  child.stderr!.on('data', (d) => (output += d));
+  const ready = new Promise<void>((resolve, reject) => {
+    const timer = setTimeout(() => reject(new Error(`worker ${name} did not start in 60 s:\n${output}`)), 60_000);
+    child.stdout!.on('data', () => output.includes('is taking work') && (clearTimeout(timer), resolve()));
+    child.on('exit', (code) => reject(new Error(`worker ${name} exited with ${code}:\n${output}`)));
+  });
+  workers.push({ name, child, output: () => output });
+  return ready;
+}
+
+async function until<T>(what: string, read: () => Promise<T>, done: (v: T) => boolean, seconds = 240): Promise<T> {
+  const end = Date.now() + seconds * 1000;
+  for (;;) {
+    const v = await read();
+    if (done(v)) return v;
+    if (Date.now() > end) throw new Error(`${what}: still ${JSON.stringify(v).slice(0, 300)} after ${seconds} s`);
+    await new Promise((r) => setTimeout(r, 250));
+  }
+}
+
+/** JSON as the API serves it (−0 becomes 0), without the wall-clock time. */
+function comparable(result: FitResult) {
+  const copy = JSON.parse(JSON.stringify(result)) as FitResult;
+  copy.convergence.seconds = 0;
+  return copy;
+}
+
+beforeAll(async () => {
+  postgres = await startPostgres();
+}, 120_000);
+
+afterAll(async () => {
+  await Promise.all(
+    workers.map(
+      (w) =>
+        new Promise<void>((resolve) => {
+          if (w.child.exitCode !== null) return resolve();
+          w.child.once('exit', () => resolve());
+          w.child.kill('SIGTERM');
+        }),
+    ),
+  );
+  await server?.stop();
+  postgres?.stop();
+}, 60_000);
+
+describe('shards on the queue', () => {
+  let database: Database;
+  let queue: Queue;
+  const attempts = new Map<string, number>();
+  let shards: { stop: () => Promise<void> };
+
+  beforeAll(async () => {
+    database = await openServerDatabase(postgres.url, 4);
+    queue = await startQueue(postgres.url, () => {});
+    // this process takes shards too, on a queue of its own runs: "flaky" fails each shard's first attempt, "broken" every attempt
+    shards = await workShards<string, number, number>(database.db, queue, {
+      queue: QUEUES.refits,
+      worker: 'test-process',
+      concurrency: 2,
+      prepare: (input) => input as string,
+      compute: async (kind, n) => {
+        const key = `${kind}:${n}`;
+        attempts.set(key, (attempts.get(key) ?? 0) + 1);
+        if (kind === 'broken' && n === 1) throw new Error('shard 2 cannot be computed');
+        if (kind === 'flaky' && attempts.get(key) === 1) throw new Error('first attempt fails');
+        return n * n;
+      },
+      log: () => {},
+    });
+  }, 60_000);
+
+  afterAll(async () => {
+    await shards?.stop();
+    await queue?.stop({ graceful: false, wait: true, timeout: 5000 });
+    await database?.close();
+  });
+
+  // runs before the app's workers start, so that this process alone takes these shards
+  it('retries a failed shard once and then gives its output', async () => {
+    const outputs = await runSharded<number, number>(database.db, queue, { run: `flaky-${Date.now()}`, queue: QUEUES.refits, input: 'flaky', payloads: [1, 2, 3] });
+    expect(outputs).toEqual([1, 4, 9]);
+    // each shard ran twice: the failed first attempt, then the retry
+    expect([1, 2, 3].map((n) => attempts.get(`flaky:${n}`))).toEqual([2, 2, 2]);
+  }, 60_000);
+
+  it('fails the run with the reason when a shard fails on its retry too', async () => {
+    const run = runSharded<number, number>(database.db, queue, { run: `broken-${Date.now()}`, queue: QUEUES.refits, input: 'broken', payloads: [0, 1, 2] });
+    await expect(run).rejects.toThrow(ShardFailedError);
+    await expect(run).rejects.toThrow(/shard 2 of 3 failed twice .*shard 2 cannot be computed/);
+    // once, and once more: no third attempt
+    expect(attempts.get('broken:1')).toBe(2);
+  }, 60_000);
+});
+
+describe('PostgreSQL server and two worker processes', () => {
+  beforeAll(async () => {
+    server = await startServer({ DATABASE_URL: postgres.url });
+    await Promise.all([startWorker('worker-one', postgres.url), startWorker('worker-two', postgres.url)]);
+  }, 180_000);
+  let analyst: ReturnType<typeof request.agent>;
+  const send = async (method: 'post', path: string, body: object) => {
+    const token = (await analyst.get('/api/auth/csrf')).body.token as string;
+    return analyst[method](path).set('x-csrf-token', token).send(body);
+  };
+  let fitId = 0;
+  let version = 0;
+  const A = '/api/analyses/cascade-rate';
+
+  it('serves the app from the server database: sign-in, a frozen version', async () => {
+    analyst = request.agent(server.url);
+    expect((await send('post', '/api/auth/sign-in', { email: DEMO.analyst, password: PASSWORD })).status).toBe(200);
+    const frozen = await send('post', `${A}/versions`, { note: 'for the workers' });
+    expect(frozen.status).toBe(201);
+    version = frozen.body.number;
+  });
+
+  it('splits a full-impacts fit across both workers, and its result equals the embedded one', async () => {
+    const options = { impacts: 'full', scan: true, scanPoints: 9, limit: true } as const;
+    const started = await send('post', `${A}/fits`, { version, label: 'on the workers', options });
+    expect(started.status).toBe(202);
+    fitId = started.body.id;
+    const fit = await until(
+      'the fit',
+      async () => (await analyst.get(`${A}/fits/${fitId}`)).body,
+      (b) => b.state !== 'queued' && b.state !== 'running',
+    );
+    expect(fit.state, fit.failure ?? '').toBe('succeeded');
+
+    const db = new pg.Client({ connectionString: postgres.url });
+    await db.connect();
+    try {
+      const { rows } = await db.query('select f.workers, f.result, v.model from fits f join model_versions v on v.id = f.model_version_id where f.id = $1', [fitId]);
+      const shards = rows[0].workers as Record<string, number>;
+      // both took part: the refits of one fit went to two processes
+      expect(Object.keys(shards).sort()).toEqual(['worker-one', 'worker-two']);
+      expect(Math.min(...Object.values(shards))).toBeGreaterThan(0);
+
+      // the embedded path: the same model and options, refits on this process's threads
+      let pool: FitPool | null = null;
+      try {
+        pool = createFitPool({ threads: 2 });
+        const embedded = await fitModel(exchangeModelSchema.parse(rows[0].model), fitOptionsSchema.parse(options), { pool });
+        expect(embedded.status).toBe('converged');
+        expect(embedded.nuisance.some((n) => n.postfitImpact !== null)).toBe(true);
+        expect(comparable(rows[0].result as FitResult)).toEqual(comparable(embedded));
+      } finally {
+        await pool?.destroy();
+      }
+    } finally {
+      await db.end();
+    }
+  }, 300_000);
+
+  it('runs toys on both workers with the same numbers as one thread', async () => {
+    const started = await send('post', `${A}/fits/${fitId}/toys`, { count: 120, hypothesis: { kind: 'fixed-mu', mu: 0 }, seed: 2026 });
+    expect(started.status).toBe(202);
+    const run = await until(
+      'the toys',
+      async () => (await analyst.get(`${A}/toys/${started.body.id}`)).body as ToyRun,
+      (r) => r.state !== 'queued' && r.state !== 'running',
+    );
+    expect(run.state, run.failure ?? '').toBe('succeeded');
+    expect(run.workers).toBe(2);
+
+    const db = new pg.Client({ connectionString: postgres.url });
+    await db.connect();
+    try {
+      const { rows } = await db.query('select f.options, v.model from fits f join model_versions v on v.id = f.model_version_id where f.id = $1', [fitId]);
+      const model = exchangeModelSchema.parse(rows[0].model);
+      const options = fitOptionsSchema.parse(rows[0].options);
+      const plan = prepareToys(model, options, { kind: 'fixed-mu', mu: 0 });
+      const outcomes = runToys(model, options, plan, 2026, toyBatches(120).flat());
+      expect(JSON.parse(JSON.stringify(run.summary))).toEqual(JSON.parse(JSON.stringify(summariseToys(plan, outcomes, 120))));
+    } finally {
+      await db.end();
+    }
+  }, 300_000);
+});
+
