@@ -150,8 +150,9 @@ describe('accessibility: axe-core on every main screen, and every action by keyb
       summary: () => page.getByText(/converged/i).first().waitFor(),
       impacts: () => page.getByRole('table', { name: 'Impact ranking' }).waitFor(),
       correlations: () => page.getByRole('table', { name: 'Strongest correlations' }).waitFor(),
+      toys: () => page.getByRole('form', { name: 'Run pseudo-experiments' }).waitFor(),
     };
-    for (const tab of ['summary', 'impacts', 'correlations', 'pulls', 'groups', 'distributions', 'diagnostics', 'compare']) {
+    for (const tab of ['summary', 'impacts', 'correlations', 'pulls', 'groups', 'distributions', 'diagnostics', 'toys', 'compare']) {
       await page.goto(`${fitBase}/${tab}`);
       await page.getByRole('navigation', { name: 'Fit result views' }).waitFor();
       await (ready[tab]?.() ?? page.waitForTimeout(800));
@@ -199,7 +200,7 @@ describe('accessibility: axe-core on every main screen, and every action by keyb
     await tabTo(page, form.getByRole('button', { name: 'Close' }), 10);
     await page.keyboard.press('Enter');
     await form.waitFor({ state: 'detached' });
-    expect(await focused(raise)).toBe(true);
+    await expect.poll(() => focused(raise)).toBe(true);
   });
 
   it('switches the fit result views, opens a diagnosis from the pulls chart, and reads the correlation matrix, by keyboard', async () => {

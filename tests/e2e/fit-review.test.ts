@@ -51,6 +51,33 @@ describe('an analyst freezes a version, runs a fit and reads every review screen
     await page.getByText(body.result.summary.mu.value.toFixed(2)).first().waitFor();
   });
 
+  it('runs pseudo-experiments at μ = 0 and sets q0, μ̂ and the pulls against their asymptotic distributions', async () => {
+    const { page } = live.browser;
+    const base = page.url().replace(/\/summary$/, '');
+    await page.goto(`${base}/toys`);
+    const form = page.getByRole('form', { name: 'Run pseudo-experiments' });
+    await form.getByLabel('Number of toys').fill('300');
+    await form.getByLabel('The fit with μ held at a value').check();
+    await form.getByLabel('Signal strength μ to hold the toys at').fill('0');
+    await form.getByLabel('Seed (optional)').fill('41');
+    await form.getByRole('button', { name: 'Run the toys' }).click();
+    // the run's own result: the q0 comparison table and the pulls table
+    const q0 = page.getByRole('table', { name: 'q0: toys against the asymptotic formula' });
+    await q0.waitFor({ timeout: 120_000 });
+    await page.waitForTimeout(500);
+    await screenshot(page, 'fit-toys');
+    const id = Number(base.split('/').pop());
+    const runs = (await api(live.browser, 'GET', `/api/analyses/cascade-rate/fits/${id}/toys`)).body;
+    const run = (await api(live.browser, 'GET', `/api/analyses/cascade-rate/toys/${runs[0].id}`)).body;
+    expect(run.state).toBe('succeeded');
+    expect(run.summary.requested).toBe(300);
+    expect(run.summary.converged + run.summary.failed).toBe(300);
+    // generated at μ = 0: half of the toys at q0 = 0 is the asymptotic expectation (Cowan et al. 2011, eq. 49)
+    expect(run.summary.q0.expectedZeroFraction).toBeCloseTo(0.5, 12);
+    await q0.getByText(run.summary.q0.zeroFraction.toFixed(3)).first().waitFor();
+    await page.goto(`${base}/summary`);
+  });
+
   it('compares with a second fit and downloads the exports', async () => {
     const { page } = live.browser;
     const base = page.url().replace(/\/summary$/, '');
