@@ -7,7 +7,9 @@ import type { ToyOutcome, ToyParameter, ToyPlan } from './toys';
  * standardised μ̂ and pulls (x̂ − x_generated)/σ_ref against a standard normal, and q0 against
  * its asymptotic distribution for data drawn at μ′ (Cowan, Cranmer, Gross, Vitells, Eur.
  * Phys. J. C 71 (2011) 1554, arXiv:1007.1727, eqs. 48–49):
- *   P(q0 = 0) = Φ(−μ′/σ),   F(q0) = Φ(√q0 − μ′/σ) for q0 > 0.
+ *   P(q0 = 0) = Φ(−μ′/σ),   F(q0) = Φ(√q0 − μ′/σ) for q0 > 0,
+ * with σ = σ_A = |μ′|/√q0,A from the Asimov dataset of the generation point (their §5; the
+ * plan's sigmaQ0), while μ̂ is standardised by the curvature σ_μ of the reference fit.
  * Only toys whose fits converged are used; the failed ones are counted and a few listed.
  */
 
@@ -82,8 +84,15 @@ function offStandard(d: ToyDistribution): { mean: boolean; sd: boolean } {
   return { mean: Math.abs(d.mean) > NOTABLE * d.meanError, sd: Math.abs(d.sd - 1) > NOTABLE * d.sdError };
 }
 
-function q0Summary(plan: ToyPlan, q0s: number[], warnings: string[]): ToyQ0 {
-  const sigma = plan.sigmaMu!;
+/**
+ * σ of the asymptotic q0 distribution: the plan's σ_A, or σ_μ for a plan made before plans
+ * carried it (stored runs).
+ */
+function q0Sigma(plan: ToyPlan): number | null {
+  return plan.sigmaQ0 ?? plan.sigmaMu;
+}
+
+function q0Summary(plan: ToyPlan, sigma: number, q0s: number[], warnings: string[]): ToyQ0 {
   const r = plan.generatedMu / sigma;
   const n = q0s.length;
   const zeros = q0s.filter((q) => q === 0).length;
@@ -129,7 +138,7 @@ function q0Summary(plan: ToyPlan, q0s: number[], warnings: string[]): ToyQ0 {
       const spread = Math.sqrt((asymptoticPValue * (1 - asymptoticPValue)) / n);
       if (observed > 0 && n >= 10 && Math.abs(toyPValue - asymptoticPValue) > NOTABLE * Math.max(spread, toyPValueError)) {
         warnings.push(
-          `The toy p-value ${fmt(toyPValue)} ± ${fmt(toyPValueError)} differs from the asymptotic ${fmt(asymptoticPValue)} by more than ${NOTABLE} standard errors: for this fit the asymptotic distribution of q0 (with σ = σ_μ of the fit) is not a good guide at q0,obs; the toys' value is the more reliable one.`,
+          `The toy p-value ${fmt(toyPValue)} ± ${fmt(toyPValueError)} differs from the asymptotic ${fmt(asymptoticPValue)} by more than ${NOTABLE} standard errors: for this fit the asymptotic distribution of q0 (${describeSigma(plan)}) is not a good guide at q0,obs; the toys' value is the more reliable one.`,
         );
       }
     }
@@ -197,7 +206,8 @@ export function summariseToys(plan: ToyPlan, outcomes: readonly ToyOutcome[], re
   }
 
   const q0s = ok.filter((o) => o.q0 !== null).map((o) => o.q0!);
-  const q0 = plan.q0Defined && plan.sigmaMu !== null ? q0Summary(plan, q0s, warnings) : null;
+  const sigma = q0Sigma(plan);
+  const q0 = plan.q0Defined && sigma !== null ? q0Summary(plan, sigma, q0s, warnings) : null;
 
   return {
     requested,
@@ -210,6 +220,13 @@ export function summariseToys(plan: ToyPlan, outcomes: readonly ToyOutcome[], re
     q0,
     warnings,
   };
+}
+
+/** Which asymptotic q0 distribution the comparison used, for the warnings. */
+function describeSigma(plan: ToyPlan): string {
+  if (plan.generatedMu === 0) return '½δ(q0) + ½χ²₁ at μ′ = 0';
+  if (plan.q0Asimov !== null && plan.q0Asimov !== undefined) return 'with σ = σ_A from the Asimov dataset of the generation point';
+  return 'with σ = σ_μ of the reference fit, as σ_A was not available';
 }
 
 function fmt(x: number): string {

@@ -6,7 +6,8 @@ import { conditionalFit, quasiNewtonFit } from './conditional-fit';
 import { curvatureAt, type FitContext } from './covariance';
 import { FitCancelledError, FitInputError } from './errors';
 import { JobRunner } from './jobs';
-import { createScratch, minimise } from './minimiser';
+import { negativeLogLikelihood } from './likelihood';
+import { createScratch, minimise, type Scratch } from './minimiser';
 import { buildProblem, startPoint } from './problem';
 import { gaussian, poisson, toyRandom } from './sampling';
 import { evaluateYields } from './yields';
@@ -42,8 +43,26 @@ export interface ToyPlan {
   q0Defined: boolean;
   /** The reference fit: μ̂ and its NLL at the minimum. */
   bestFit: { mu: number; nll: number };
-  /** σ_μ of the reference fit (null when μ is held). */
+  /**
+   * σ_μ of the reference fit, from the curvature at its minimum (null when μ is held). It
+   * standardises μ̂ in the toys, (μ̂ − μ′)/σ_μ, as the pulls use their own reference σ's.
+   */
   sigmaMu: number | null;
+  /**
+   * σ in the asymptotic distribution of q0 for data drawn at μ′, F(q0|μ′) = Φ(√q0 − μ′/σ)
+   * (null where q0 is not defined). At μ′ ≠ 0 it is σ_A = |μ′|/√q0,A from the Asimov dataset
+   * of the generation point (Cowan, Cranmer, Gross, Vitells, Eur. Phys. J. C 71 (2011) 1554,
+   * §5), not the curvature σ_μ of the reference fit: the two differ where the likelihood is
+   * not parabolic between μ′ and 0. At μ′ = 0 the distribution is ½δ(q0) + ½χ²₁ whatever σ is,
+   * and this is σ_μ; it is σ_μ too when the Asimov fit failed (with a warning).
+   */
+  sigmaQ0: number | null;
+  /**
+   * q0,A: −2 ln λ(0) on the Asimov dataset of the generation point (data = ν there, global
+   * observables = the generated θ and γ), not set to 0 for μ′ < 0. Null at μ′ = 0, where q0 is
+   * not defined, or when its fit with μ held at 0 failed.
+   */
+  q0Asimov: number | null;
   /** μ′, the μ the toys are drawn at. */
   generatedMu: number;
   /** q0 of the reference fit; null where it is not defined or its conditional fit failed. */
@@ -140,6 +159,24 @@ export function prepareToys(model: ExchangeModel, options: FitProblemInput, hypo
     }
   }
 
+  // σ of the asymptotic q0 distribution at the generation point (see ToyPlan.sigmaQ0).
+  let sigmaQ0: number | null = null;
+  let q0Asimov: number | null = null;
+  if (q0Defined) {
+    sigmaQ0 = sigma(0);
+    if (phi[0] !== 0) {
+      const a = asimovQ0(problem, phi, gamma, createScratch(problem));
+      if (a.ok && a.q0 > 0) {
+        q0Asimov = a.q0;
+        sigmaQ0 = Math.abs(phi[0]) / Math.sqrt(a.q0);
+      } else {
+        warnings.push(
+          `On the Asimov dataset of the generation point, ${a.ok ? 'μ = 0 is as likely as μ′' : `the fit with μ held at 0 did not converge (${a.message})`}: the asymptotic distribution of q0 uses σ_μ of the reference fit (curvature) instead of σ_A, and may describe the toys less well at μ′ = ${fmt(phi[0])}.`,
+        );
+      }
+    }
+  }
+
   const parameter = (i: number, kind: ToyParameter['kind']): ToyParameter => ({ name: m.names[i], kind, index: i, generated: phi[i], referenceError: sigma(i) });
   const nuisance: ToyParameter[] = [];
   for (let i = m.thetaStart; i < P; i++) if (!problem.held[i]) nuisance.push(parameter(i, 'nuisance'));
@@ -150,6 +187,8 @@ export function prepareToys(model: ExchangeModel, options: FitProblemInput, hypo
     q0Defined,
     bestFit: { mu: ctx.phi[0], nll: ctx.nll },
     sigmaMu: muFree ? sigma(0) : null,
+    sigmaQ0,
+    q0Asimov,
     generatedMu: phi[0],
     q0Observed,
     mu: muFree ? parameter(0, 'poi') : null,
@@ -157,6 +196,63 @@ export function prepareToys(model: ExchangeModel, options: FitProblemInput, hypo
     generation: { phi: Array.from(phi), gamma: Array.from(gamma) },
     warnings,
   };
+}
+
+/**
+ * The Asimov dataset of a generation point (Cowan et al. 2011, §5): every bin in the fit at
+ * its expected yield there (zero outside the fit, where the likelihood does not look), and the
+ * global observables at the generated θ and γ. Its free minimum is the generation point itself,
+ * with every Poisson term at n = ν and every constraint at its centre. The curvature there is
+ * the context a toy's fits start from (null when it is not positive definite).
+ */
+function generationAsimov(problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch): { asimov: FitProblem; reference: FitContext | null } {
+  const m = problem.model;
+  evaluateYields(m, phi, gamma, scratch.ws);
+  const expected = new Float64Array(m.nBins);
+  for (let b = 0; b < m.nBins; b++) if (m.binInFit[b]) expected[b] = scratch.ws.nu[b];
+  const asimov: FitProblem = { ...problem, data: expected, globals: { theta: Float64Array.from(phi), gamma: Float64Array.from(gamma) } };
+  const curvature = curvatureAt(asimov, phi, gamma, scratch);
+  return { asimov, reference: curvature.ok ? curvature.context : null };
+}
+
+/**
+ * The fit with μ held at 0 of a toy's problem, from the toy's minimum `best`: a conditional fit
+ * with the curvature of the expected likelihood at the generation point, or Newton throughout
+ * without it (see createToyFitter).
+ */
+function fitMuAtZero(
+  atZero: FitProblem,
+  toyContext: FitContext | null,
+  best: { phi: Float64Array; gamma: Float64Array },
+  scratch: Scratch,
+  signal?: AbortSignal,
+): { ok: true; phi: Float64Array; gamma: Float64Array; nll: number } | { ok: false; message: string } {
+  if (!toyContext) {
+    const phi = Float64Array.from(best.phi);
+    phi[0] = 0;
+    const r = minimise(atZero, phi, best.gamma, scratch, { signal });
+    if (r.status === 'cancelled') throw new FitCancelledError();
+    return r.status !== 'failed' ? { ok: true, phi: r.phi, gamma: r.gamma, nll: r.nll } : { ok: false, message: r.message ?? 'no minimum' };
+  }
+  const r = conditionalFit({ ...toyContext, phi: best.phi, gamma: best.gamma }, 0, 0, scratch);
+  return r.ok ? { ok: true, phi: r.phi, gamma: r.gamma, nll: r.nll } : { ok: false, message: r.message ?? 'no minimum' };
+}
+
+/**
+ * q0,A = 2 (NLL(μ = 0) − NLL(generation point)) on the Asimov dataset of the generation point
+ * (φ, γ): the q0 of a toy that drew exactly the expected counts and global observables, by the
+ * same fit as a toy's q0 from its minimum, which for this dataset is the generation point.
+ * Its NLL there is the saturated one (each bin at n = ν, each constraint at its centre).
+ * Not truncated to 0 for μ′ < 0: −2 ln λ(0) is what gives σ_A² = μ′²/q0,A.
+ */
+export function asimovQ0(problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch = createScratch(problem)): { ok: true; q0: number } | { ok: false; message: string } {
+  const { asimov, reference } = generationAsimov(problem, phi, gamma, scratch);
+  const atZero: FitProblem = { ...asimov, held: Uint8Array.from(problem.held) };
+  atZero.held[0] = 1;
+  const nllGeneration = reference ? reference.nll : negativeLogLikelihood(problem.model, asimov.data, problem.gammaHeld, phi, gamma, scratch.ws, asimov.globals);
+  const fixed = fitMuAtZero(atZero, reference, { phi, gamma }, scratch);
+  if (!fixed.ok) return fixed;
+  return { ok: true, q0: Math.max(0, 2 * (fixed.nll - nllGeneration)) };
 }
 
 /**
@@ -195,19 +291,15 @@ export function createToyFitter(model: ExchangeModel, options: FitProblemInput, 
   const genPhi = Float64Array.from(plan.generation.phi);
   const genGamma = Float64Array.from(plan.generation.gamma);
   const scratch = createScratch(problem);
-  evaluateYields(m, genPhi, genGamma, scratch.ws);
-  const expected = Float64Array.from(scratch.ws.nu);
+  // The yields and the curvature of the expected likelihood at the generation point.
+  const { asimov, reference } = generationAsimov(problem, genPhi, genGamma, scratch);
+  const expected = asimov.data;
   const inFit: number[] = [];
   for (let b = 0; b < m.nBins; b++) if (m.binInFit[b]) inFit.push(b);
   const freeTheta: number[] = [];
   for (let i = m.thetaStart; i < P; i++) if (!problem.held[i]) freeTheta.push(i);
   const freeGamma: number[] = [];
   for (let g = 0; g < G; g++) if (!problem.gammaHeld[g]) freeGamma.push(g);
-
-  // Curvature of the expected likelihood at the generation point.
-  const centred: GlobalObservables = { theta: Float64Array.from(genPhi), gamma: Float64Array.from(genGamma) };
-  const asimov = curvatureAt({ ...problem, data: expected, globals: centred }, genPhi, genGamma, scratch);
-  const reference = asimov.ok ? asimov.context : null;
 
   // One dataset and one set of global observables, overwritten by every toy.
   const globals: GlobalObservables = { theta: new Float64Array(P), gamma: new Float64Array(G).fill(1) };
@@ -238,15 +330,6 @@ export function createToyFitter(model: ExchangeModel, options: FitProblemInput, 
     return fitted(quasiNewtonFit(toyContext, genPhi, genGamma, scratch, 1e-9, TOY_STEPS));
   }
 
-  function fitAtZero(best: { phi: Float64Array; gamma: Float64Array }, signal: AbortSignal | undefined): Fitted {
-    if (!toyContext) {
-      const phi = Float64Array.from(best.phi);
-      phi[0] = 0;
-      return newton(atZero, phi, best.gamma, signal);
-    }
-    return fitted(conditionalFit({ ...toyContext, phi: best.phi, gamma: best.gamma }, 0, 0, scratch));
-  }
-
   function one(seed: number, index: number, signal: AbortSignal | undefined): ToyOutcome {
     draw(seed, index);
     const best = fit(signal);
@@ -255,7 +338,7 @@ export function createToyFitter(model: ExchangeModel, options: FitProblemInput, 
     const theta = nuisance.map((i) => best.phi[i]);
     if (!plan.q0Defined || mu === null) return { index, ok: true, mu, q0: null, theta, message: null };
     if (!(mu > 0)) return { index, ok: true, mu, q0: 0, theta, message: null };
-    const fixed = fitAtZero(best, signal);
+    const fixed = fitMuAtZero(atZero, toyContext, best, scratch, signal);
     if (!fixed.ok) return { index, ok: false, mu, q0: null, theta, message: `the fit with μ held at 0 failed: ${fixed.message}` };
     return { index, ok: true, mu, q0: Math.max(0, 2 * (fixed.nll - best.nll)), theta, message: null };
   }
@@ -282,4 +365,8 @@ export function runToys(model: ExchangeModel, options: FitProblemInput, plan: To
 /** A worker's batch of toys, with the fitter made for its model, options and plan (a worker keeps fitters between batches). */
 export function runToyTask(task: ToyTask, fitter: ToyFitter = createToyFitter(task.model, task.options, task.plan)): ToyOutcome[] {
   return fitter.run(task.seed, task.indices);
+}
+
+function fmt(x: number): string {
+  return Number(x.toPrecision(3)).toString();
 }

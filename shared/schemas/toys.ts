@@ -69,11 +69,20 @@ export type ToyDistribution = z.infer<typeof toyDistributionSchema>;
 
 /**
  * q0 over the toys against its asymptotic distribution for data generated at μ′ (Cowan et al.
- * 2011, eq. 48–49): P(q0 = 0) = Φ(−μ′/σ) and F(q0) = Φ(√q0 − μ′/σ) above 0, with σ the
- * reference fit's σ_μ; at μ′ = 0 this is ½δ(q0) + ½χ²₁.
+ * 2011, eq. 48–49): P(q0 = 0) = Φ(−μ′/σ) and F(q0) = Φ(√q0 − μ′/σ) above 0; at μ′ = 0 this is
+ * ½δ(q0) + ½χ²₁. σ is σ_A from the Asimov dataset of the generation point (see sigmaMu), not
+ * the curvature σ_μ that standardises μ̂ in `mu`.
  */
 export const toyQ0Schema = z.strictObject({
   generatedMu: z.number(),
+  /**
+   * the σ of the comparison: at μ′ ≠ 0, σ_A = |μ′|/√q0,A, where q0,A is −2 ln λ(0) on the
+   * Asimov dataset of the generation point (every bin at its expected yield, global
+   * observables at the generated θ and γ), as Cowan et al. 2011, §5 (eqs. 29–32 or near them;
+   * numbering from memory) obtain the σ of the asymptotic formulae. At μ′ = 0, where σ does not
+   * enter, and where the Asimov fit failed (the summary then says so), the reference fit's
+   * curvature σ_μ. (The field keeps its name so that stored summaries still parse.)
+   */
   sigmaMu: z.number(),
   n: z.number().int(),
   zeroFraction: z.number(),

@@ -303,6 +303,81 @@ describe('pseudo-experiments', () => {
     });
   });
 
+  describe('σ of the asymptotic q0 distribution from the Asimov dataset of the generation point (Cowan et al. 2011, §5: σ_A² = μ′²/q0,A)', () => {
+    /** −2 ln λ(0) of one bin with n = μ′s + b and b known: 2[n ln(n/b) − n + b]; at μ′ = 1 Cowan et al. 2011, eq. 97. */
+    const closedForm = (s: number, b: number, mu: number) => {
+      const n = mu * s + b;
+      return 2 * (n * Math.log(n / b) - n + b);
+    };
+
+    for (const { s, b, mu } of [
+      { s: 10, b: 100, mu: 1 },
+      { s: 30, b: 20, mu: 1 },
+      { s: 10, b: 100, mu: 2.5 },
+      { s: 10, b: 100, mu: -0.5 },
+    ]) {
+      it(`gives q0,A = 2[n ln(n/b) − n + b] on one bin with s = ${s}, b = ${b} drawn at μ′ = ${mu}${mu === 1 ? ' (eq. 97: 2[(s + b) ln(1 + s/b) − s])' : ''}`, () => {
+        // the observed count sets the reference fit but not the generation point μ′
+        const model = countingModel({ s, b, n: b + 3 });
+        const plan = prepareToys(model, options, { kind: 'fixed-mu', mu });
+        expect(plan.generatedMu).toBe(mu);
+        const q0A = closedForm(s, b, mu);
+        if (mu === 1) expectClose(q0A, 2 * ((s + b) * Math.log(1 + s / b) - s), 1e-12);
+        expectClose(plan.q0Asimov!, q0A, 1e-6);
+        expectClose(plan.sigmaQ0!, Math.abs(mu) / Math.sqrt(q0A), 1e-6);
+        // the curvature σ_μ of the reference fit stays what standardises μ̂
+        expect(plan.sigmaMu).toBeCloseTo(Math.sqrt(b + 3) / s, 6);
+        expect(plan.warnings).toEqual([]);
+      });
+    }
+
+    it('leaves σ to σ_μ at μ′ = 0, where q0 follows ½δ(q0) + ½χ²₁ whatever σ is', () => {
+      const plan = prepareToys(countingModel({ s: 10, b: 100, n: 100 }), options, { kind: 'fixed-mu', mu: 0 });
+      expect(plan.q0Asimov).toBeNull();
+      expect(plan.sigmaQ0).toBe(plan.sigmaMu);
+    });
+
+    it('falls back to σ_μ for a plan stored before plans carried σ_A', () => {
+      const model = countingModel({ s: 10, b: 100, n: 110 });
+      const plan = prepareToys(model, options, { kind: 'best-fit' });
+      const outcomes = runToys(model, options, plan, 5, range(0, 10));
+      const { sigmaQ0: _s, q0Asimov: _q, ...stored } = plan;
+      expect(summariseToys(stored as typeof plan, outcomes, 10).q0!.sigmaMu).toBe(plan.sigmaMu);
+      expect(summariseToys(plan, outcomes, 10).q0!.sigmaMu).toBe(plan.sigmaQ0);
+    });
+
+    it('on the medium synthetic model drawn at the best fit, gives the toys\' p-value of q0,obs and the mean of √q0 (where σ_μ of the curvature does not)', () => {
+      const medium = syntheticModel('medium');
+      const N = 200;
+      const plan = prepareToys(medium, options, { kind: 'best-fit' });
+      expect(plan.warnings).toEqual([]);
+      expect(plan.q0Asimov).not.toBeNull();
+      // on this model √q0,obs ≈ 4.90 while μ̂/σ_μ ≈ 4.23: the likelihood is not parabolic between μ̂ and 0
+      expect(plan.sigmaQ0!).toBeLessThan(0.9 * plan.sigmaMu!);
+      const outcomes = runToys(medium, options, plan, 2026, range(0, N));
+      expect(outcomes.every((o) => o.ok)).toBe(true);
+      const summary = summariseToys(plan, outcomes, N);
+      const q0 = summary.q0!;
+      expect(q0.sigmaMu).toBe(plan.sigmaQ0);
+      expect(q0.toyPValue).toBeGreaterThan(0);
+      expect(q0.toyPValue).toBeLessThan(1);
+      // binomial standard error of a fraction of N toys, at the asymptotic p and at the toys' p
+      const error = (p: number) => Math.sqrt((p * (1 - p)) / N);
+      const combined = Math.hypot(error(q0.asymptoticPValue!), q0.toyPValueError!);
+      expectClose(q0.toyPValue!, q0.asymptoticPValue!, 0, 3 * combined);
+      expect(summary.warnings.some((w) => w.includes('differs from the asymptotic'))).toBe(false);
+      // √q0 of the toys ~ N(μ′/σ, 1) (Cowan et al. 2011, eq. 48; the q0 = 0 part is Φ(−μ′/σ) ≈ 0 here)
+      const roots = outcomes.map((o) => Math.sqrt(o.q0!));
+      const mean = roots.reduce((a, x) => a + x, 0) / N;
+      const sd = Math.sqrt(roots.reduce((a, x) => a + (x - mean) ** 2, 0) / (N - 1));
+      expectClose(mean, plan.generatedMu / plan.sigmaQ0!, 0, 3 * (sd / Math.sqrt(N)));
+      // the same toys compared with σ = σ_μ fail both checks
+      const withCurvature = summariseToys({ ...plan, sigmaQ0: plan.sigmaMu }, outcomes, N).q0!;
+      expect(Math.abs(withCurvature.toyPValue! - withCurvature.asymptoticPValue!)).toBeGreaterThan(3 * Math.hypot(error(withCurvature.asymptoticPValue!), withCurvature.toyPValueError!));
+      expect(Math.abs(mean - plan.generatedMu / plan.sigmaMu!)).toBeGreaterThan(3 * (sd / Math.sqrt(N)));
+    });
+  });
+
   it('summarises failed, missing and too few toys in a form the schema accepts, with warnings', () => {
     const plan = prepareToys(small, options, { kind: 'best-fit' });
     const outcomes = runToys(small, options, plan, 3, range(0, 12));
