@@ -1,4 +1,3 @@
-import { eq, inArray } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { fits } from '../db/schema';
 import type { Piscina } from 'piscina';
@@ -8,6 +7,7 @@ import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
 import { siblingWorker, workerPool } from '../fit/pool';
 import type { DiagnosisTask } from './diagnosis.worker';
 import { executeFit, INTERRUPTED } from './execute-fit';
+import { localRunner } from './local-runner';
 import { startJobThread, type JobThread } from './fit-job';
 
 /**
@@ -36,76 +36,23 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
   const jobs = () => (thread ??= startJobThread(options.threads, options.niceness));
   let diagnoses: Piscina | null = null;
   const diagnosisThread = () => (diagnoses ??= workerPool(siblingWorker(import.meta.url, 'diagnosis.worker'), { minThreads: 0, maxThreads: 1, idleTimeout: 5 * 60_000 }));
-  const queue: number[] = [];
-  const cancelled = new Map<number, string>();
-  let current: { id: number; controller: AbortController } | null = null;
-  let draining: Promise<void> | null = null;
-
-  const finish = (id: number, values: Partial<typeof fits.$inferInsert>) => db.update(fits).set({ finishedAt: new Date(), ...values }).where(eq(fits.id, id));
-
-  async function run(id: number) {
-    const controller = new AbortController();
-    current = { id, controller };
-    try {
-      await executeFit(db, id, (model, fitOptions, onProgress, signal) => jobs().run(model, fitOptions, onProgress, signal), {
-        signal: controller.signal,
-        log,
-        cancelledBy: () => cancelled.get(id),
-      });
-    } finally {
-      current = null;
-      cancelled.delete(id);
-    }
-  }
-
-  function drain() {
-    if (draining) return;
-    draining = (async () => {
-      while (queue.length) {
-        const id = queue.shift()!;
-        try {
-          await run(id);
-        } catch (e) {
-          log(`[fit ${id}] could not be run: ${e instanceof Error ? e.message : String(e)}`);
-        }
-      }
-      draining = null;
-    })();
-  }
+  const runner = localRunner(
+    db,
+    fits,
+    (id, signal, cancelledBy) => executeFit(db, id, (model, fitOptions, onProgress, s) => jobs().run(model, fitOptions, onProgress, s), { signal, log, cancelledBy }),
+    { interrupted: INTERRUPTED, what: 'fit', log },
+  );
 
   return {
-    enqueue: (id) => {
-      queue.push(id);
-      drain();
-    },
-    cancel: async (id, by) => {
-      if (current?.id === id) {
-        cancelled.set(id, by);
-        current.controller.abort();
-        return true;
-      }
-      const at = queue.indexOf(id);
-      if (at < 0) return false;
-      queue.splice(at, 1);
-      await finish(id, { state: 'cancelled', failure: `Cancelled by ${by} before it started.`, stage: 'cancelled' });
-      return true;
-    },
-    recover: async () => {
-      await db.update(fits).set({ state: 'failed', failure: INTERRUPTED, finishedAt: new Date(), stage: 'interrupted' }).where(eq(fits.state, 'running'));
-      const waiting = await db.select({ id: fits.id }).from(fits).where(inArray(fits.state, ['queued'])).orderBy(fits.id);
-      for (const w of waiting) queue.push(w.id);
-      if (queue.length) drain();
-    },
-    idle: async () => {
-      while (draining) await draining;
-    },
+    enqueue: runner.enqueue,
+    cancel: runner.cancel,
+    recover: runner.recover,
+    idle: runner.idle,
     diagnose: async (model, fitOptions, parameter) =>
       (await diagnosisThread().run({ model, options: fitOptions, parameter, niceness: options.niceness ?? 0 } satisfies DiagnosisTask)) as ParameterDiagnosisNumbers,
     close: async () => {
       await diagnoses?.destroy();
-      queue.length = 0;
-      current?.controller.abort();
-      while (draining) await draining.catch(() => {});
+      await runner.stop();
       await thread?.close();
     },
   };

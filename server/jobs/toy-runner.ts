@@ -1,6 +1,6 @@
-import { eq } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { toyRuns } from '../db/schema';
+import { localRunner, type JobTable } from './local-runner';
 import { executeToys, threadToyExecutor, toyThreads, TOYS_INTERRUPTED } from '../work/toys';
 
 /**
@@ -20,61 +20,19 @@ export type ToyRunner = {
 export function createToyRunner(db: Db, log: (line: string) => void, options: { threads?: number; niceness?: number } = {}): ToyRunner {
   let threads: ReturnType<typeof toyThreads> | null = null;
   const pool = () => (threads ??= toyThreads(options.threads ?? 1, options.niceness ?? 0));
-  const queue: number[] = [];
-  const cancelled = new Map<number, string>();
-  let current: { id: number; controller: AbortController } | null = null;
-  let draining: Promise<void> | null = null;
-
-  async function run(id: number) {
-    const controller = new AbortController();
-    current = { id, controller };
-    try {
-      await executeToys(db, id, threadToyExecutor(pool(), 'this server'), { signal: controller.signal, log, cancelledBy: () => cancelled.get(id) });
-    } finally {
-      current = null;
-      cancelled.delete(id);
-    }
-  }
-  function drain() {
-    if (draining) return;
-    draining = (async () => {
-      while (queue.length) {
-        const id = queue.shift()!;
-        await run(id).catch((e) => log(`[toys ${id}] could not be run: ${e instanceof Error ? e.message : String(e)}`));
-      }
-      draining = null;
-    })();
-  }
+  const runner = localRunner(
+    db,
+    toyRuns as unknown as JobTable,
+    (id, signal, cancelledBy) => executeToys(db, id, threadToyExecutor(pool(), 'this server'), { signal, log, cancelledBy }),
+    { interrupted: TOYS_INTERRUPTED, what: 'toys', log },
+  );
   return {
-    enqueue: (id) => {
-      queue.push(id);
-      drain();
-    },
-    cancel: async (id, by) => {
-      if (current?.id === id) {
-        cancelled.set(id, by);
-        current.controller.abort();
-        return true;
-      }
-      const at = queue.indexOf(id);
-      if (at < 0) return false;
-      queue.splice(at, 1);
-      await db.update(toyRuns).set({ state: 'cancelled', failure: `Cancelled by ${by} before it started.`, stage: 'cancelled', finishedAt: new Date() }).where(eq(toyRuns.id, id));
-      return true;
-    },
-    recover: async () => {
-      await db.update(toyRuns).set({ state: 'failed', failure: TOYS_INTERRUPTED, finishedAt: new Date(), stage: 'interrupted' }).where(eq(toyRuns.state, 'running'));
-      const waiting = await db.select({ id: toyRuns.id }).from(toyRuns).where(eq(toyRuns.state, 'queued')).orderBy(toyRuns.id);
-      for (const w of waiting) queue.push(w.id);
-      if (queue.length) drain();
-    },
-    idle: async () => {
-      while (draining) await draining;
-    },
+    enqueue: runner.enqueue,
+    cancel: runner.cancel,
+    recover: runner.recover,
+    idle: runner.idle,
     close: async () => {
-      queue.length = 0;
-      current?.controller.abort();
-      while (draining) await draining.catch(() => {});
+      await runner.stop();
       await threads?.close();
     },
   };

@@ -11,6 +11,7 @@ import { keptResults } from '../kept';
 import { encodeJson, type Encoded } from '../routes/encoded';
 import { isWithheld } from './blinding.service';
 import { findVersion } from './versions.service';
+import { untilStopped } from '../jobs/local-runner';
 
 type FitRow = Omit<typeof fits.$inferSelect, 'result'>;
 
@@ -157,12 +158,7 @@ export async function cancelFit(ctx: AppContext, access: Access, id: number): Pr
       .set({ state: 'cancelled', failure: `Cancelled by ${access.userName} before it started.`, finishedAt: new Date(), stage: 'cancelled' })
       .where(and(eq(fits.id, id), eq(fits.state, 'queued')));
   }
-  // the engine checks for cancellation between steps: wait briefly for this fit (only) to stop
-  let after = await findFit(ctx, access, id);
-  for (let waited = 0; after.fit.state === 'running' && waited < 10_000; waited += 50) {
-    await new Promise((r) => setTimeout(r, 50));
-    after = await findFit(ctx, access, id);
-  }
+  const after = await untilStopped(() => findFit(ctx, access, id), (r) => r.fit.state === 'running');
   return summaryOf(after.fit, after.version, after.by);
 }
 

@@ -6,6 +6,7 @@ import type { AppContext } from '../context';
 import { toyRuns, users } from '../db/schema';
 import { conflict, notFound } from '../errors';
 import { findFit } from './fits.service';
+import { untilStopped } from '../jobs/local-runner';
 
 type ToyRow = typeof toyRuns.$inferSelect;
 
@@ -93,11 +94,6 @@ export async function cancelToys(ctx: AppContext, access: Access, id: number): P
       .set({ state: 'cancelled', failure: `Cancelled by ${access.userName} before it started.`, finishedAt: new Date(), stage: 'cancelled' })
       .where(and(eq(toyRuns.id, id), eq(toyRuns.state, 'queued')));
   }
-  // the engine checks for cancellation between toys: wait briefly for this run to stop
-  let after = await findToyRun(ctx, access, id);
-  for (let waited = 0; after.run.state === 'running' && waited < 10_000; waited += 50) {
-    await new Promise((r) => setTimeout(r, 50));
-    after = await findToyRun(ctx, access, id);
-  }
+  const after = await untilStopped(() => findToyRun(ctx, access, id), (r) => r.run.state === 'running');
   return toyRunOf(after.run, after.by);
 }

@@ -4,6 +4,7 @@ import type { Db } from '../db/client';
 import { fits } from '../db/schema';
 import { FitCancelledError } from '../fit/errors';
 import { executeFit } from '../jobs/execute-fit';
+import { abortWhenCancelled } from '../jobs/local-runner';
 import { JobError } from '../jobs/fit-job';
 import { fitOutcome } from '../jobs/fit-outcome';
 import { ShardFailedError, type Queue } from './queue';
@@ -15,15 +16,7 @@ import { queuedFitPool } from './queued-pool';
  * checks the fit's row every second, so a cancellation from the server stops it.
  */
 export async function coordinateFit(db: Db, queue: Queue, fitId: number, log: (line: string) => void, retried: boolean) {
-  const controller = new AbortController();
-  const watch = setInterval(async () => {
-    try {
-      const [row] = await db.select({ state: fits.state }).from(fits).where(eq(fits.id, fitId));
-      if (!row || row.state === 'cancelled') controller.abort();
-    } catch {
-      // the next check will tell
-    }
-  }, 1000);
+  const watch = abortWhenCancelled(db, fits, fitId);
   const workers: Record<string, number> = {};
   try {
     await executeFit(
@@ -43,9 +36,9 @@ export async function coordinateFit(db: Db, queue: Queue, fitId: number, log: (l
           if (Object.keys(workers).length) await db.update(fits).set({ workers }).where(eq(fits.id, fitId));
         }
       },
-      { signal: controller.signal, log, cancelledBy: () => undefined, takeOver: retried },
+      { signal: watch.signal, log, cancelledBy: () => undefined, takeOver: retried },
     );
   } finally {
-    clearInterval(watch);
+    watch.stop();
   }
 }

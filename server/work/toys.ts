@@ -9,6 +9,7 @@ import { fits, modelVersions, toyRuns } from '../db/schema';
 import { FitCancelledError, FitInputError } from '../fit/errors';
 import { siblingWorker, workerPool } from '../fit/pool';
 import { prepareToys, summariseToys, type ToyOutcome, type ToyPlan, type ToyTask } from '../fit/toys';
+import { abortWhenCancelled, type JobTable } from '../jobs/local-runner';
 import { QUEUES, runSharded, ShardFailedError, type Queue } from './queue';
 
 /** Toys per batch: a batch is the unit a thread or a worker takes; the numbers do not depend on it. */
@@ -180,18 +181,10 @@ export function toyBatchWorker(threads: number, niceness: number) {
 
 /** A toy run taken from the queue by a worker; the run's row is checked every second for a cancellation. */
 export async function coordinateToys(db: Db, queue: Queue, id: number, log: (line: string) => void, retried: boolean) {
-  const controller = new AbortController();
-  const watch = setInterval(async () => {
-    try {
-      const [row] = await db.select({ state: toyRuns.state }).from(toyRuns).where(eq(toyRuns.id, id));
-      if (!row || row.state === 'cancelled') controller.abort();
-    } catch {
-      // the next check will tell
-    }
-  }, 1000);
+  const watch = abortWhenCancelled(db, toyRuns as unknown as JobTable, id);
   try {
-    await executeToys(db, id, queuedToyExecutor(db, queue), { signal: controller.signal, log, cancelledBy: () => undefined, takeOver: retried });
+    await executeToys(db, id, queuedToyExecutor(db, queue), { signal: watch.signal, log, cancelledBy: () => undefined, takeOver: retried });
   } finally {
-    clearInterval(watch);
+    watch.stop();
   }
 }
