@@ -114,7 +114,7 @@ export function Q0ToyPanel({ q0 }: { q0: ToyQ0 | null }) {
                     {formatCount(zeroCount)} of {formatCount(q0.n)}
                   </span>
                 </td>
-                <td className={`${tdClass} text-right tabular-nums`} title={`Φ(−μ′/σ_μ) with μ′ = ${formatEdge(q0.generatedMu)} and σ_μ = ${formatFixed(q0.sigmaMu, 4)}${background ? ': one half at μ′ = 0' : ''}`}>
+                <td className={`${tdClass} text-right tabular-nums`} title={`Φ(−μ′/σ_A) with μ′ = ${formatEdge(q0.generatedMu)} and σ_A = ${formatFixed(q0.sigmaMu, 4)}${background ? ': one half at μ′ = 0' : ''}`}>
                   {formatFixed(q0.expectedZeroFraction, dec)}
                 </td>
                 <td className={`${tdClass} whitespace-nowrap`}>
@@ -135,7 +135,7 @@ export function Q0ToyPanel({ q0 }: { q0: ToyQ0 | null }) {
                         {p.count === 0 ? ', 95 % CL' : ''}
                       </span>
                     </td>
-                    <td className={`${tdClass} text-right tabular-nums`} data-testid="asymptotic-p-value" title={background ? 'From ½δ(q0) + ½χ²₁: p = 1 − Φ(√q0,obs)' : 'From F(q0) = Φ(√q0 − μ′/σ_μ)'}>
+                    <td className={`${tdClass} text-right tabular-nums`} data-testid="asymptotic-p-value" title={background ? 'From ½δ(q0) + ½χ²₁: p = 1 − Φ(√q0,obs)' : 'From F(q0) = Φ(√q0 − μ′/σ_A), σ_A from the Asimov dataset at the generation point'}>
                       {formatProbability(p.asymptotic)}
                     </td>
                     <td className={`${tdClass} whitespace-nowrap`}>
@@ -180,7 +180,7 @@ export function Q0ToyPanel({ q0 }: { q0: ToyQ0 | null }) {
           description={
             background
               ? `The toys with q0 above 0, with what the asymptotic formula expects in each bin: ½χ²₁ over all ${formatCount(q0.n)} toys (the other half at q0 = 0). A heavier tail than the line means the asymptotic p-value is too small.`
-              : `The toys with q0 above 0, with what the asymptotic formula expects in each bin for data drawn at μ′ = ${formatEdge(q0.generatedMu)}: F(q0) = Φ(√q0 − μ′/σ_μ).`
+              : `The toys with q0 above 0, with what the asymptotic formula expects in each bin for data drawn at μ′ = ${formatEdge(q0.generatedMu)}: F(q0) = Φ(√q0 − μ′/σ_A), with σ_A from the Asimov dataset at the generation point.`
           }
           xTitle="q0"
           valueName="q0"
