@@ -3,7 +3,10 @@ import { loadavg } from 'node:os';
 import { eq } from 'drizzle-orm';
 import { openServerDatabase } from '../server/db/client';
 import { analyses, fits, modelVersions, toyRuns } from '../server/db/schema';
-import { syntheticModel } from '../server/fit';
+import { createFitPool, fitModel, syntheticModel } from '../server/fit';
+import { prepareToys } from '../server/fit/toys';
+import { toyBatches, toyThreads } from '../server/work/toys';
+import { fitOptionsSchema } from '@shared/schemas/fit';
 import { QUEUES, startQueue } from '../server/work/queue';
 import { startPostgres } from './postgres-server';
 
@@ -14,7 +17,8 @@ import { startPostgres } from './postgres-server';
  *     minimum; the refits go back to the queue as shards for every worker);
  *   - 1000 toys of the medium synthetic model, drawn at its best fit, in batches of 25.
  * Prints wall times from the moment the work is queued to the moment its row says done, and the
- * speed-up of 2 workers over 1 (target: at least 1.7×).
+ * speed-up of 2 workers over 1 (target: at least 1.7×). First, as the machine's own ceiling, the
+ * same work in one process with 1 and then 2 engine threads and no queue.
  *
  *   npm run bench:scale [-- --toys N --repeat K]
  */
@@ -88,7 +92,35 @@ async function stopWorkers(children: ChildProcess[]) {
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 const f2 = (x: number) => x.toFixed(2);
 
+/** The same work in this process on 1 and 2 threads, no database: what two threads give on this machine. */
+async function ceiling() {
+  const out: Record<number, { impacts: number; toys: number }> = {};
+  const large = syntheticModel('large');
+  const medium = syntheticModel('medium');
+  const options = fitOptionsSchema.parse({ impacts: 'none' });
+  const plan = prepareToys(medium, options, { kind: 'best-fit' });
+  for (const n of [1, 2]) {
+    const pool = createFitPool({ threads: n });
+    const toys = toyThreads(n, 0);
+    try {
+      await fitModel(large, { impacts: 'full' }, { pool });
+      let t0 = performance.now();
+      await fitModel(large, { impacts: 'full' }, { pool });
+      const impacts = (performance.now() - t0) / 1000;
+      t0 = performance.now();
+      await Promise.all(toyBatches(TOYS).map((indices) => toys.run({ model: medium, options, plan, seed: 2026, indices, key: `ceiling-${n}` })));
+      out[n] = { impacts, toys: (performance.now() - t0) / 1000 };
+      console.log(`one process, ${n} thread(s): large full impacts ${f2(impacts)} s, ${TOYS} toys ${f2(out[n].toys)} s`);
+    } finally {
+      await pool.destroy();
+      await toys.close();
+    }
+  }
+  return out;
+}
+
 try {
+  const machine = await ceiling();
   console.log(`PostgreSQL at ${postgres.url}; load average before: ${loadavg().map(f2).join(' ')}`);
   const large = await insertModel('bench-large', 'large');
   const medium = await insertModel('bench-medium', 'medium');
@@ -124,6 +156,7 @@ try {
   console.log(`| large model, full impacts | ${f2(median(one.impacts))} s | ${f2(median(two.impacts))} s | ${f2(impacts)}× |`);
   console.log(`| medium model, ${TOYS} toys | ${f2(median(one.toys))} s | ${f2(median(two.toys))} s | ${f2(toys)}× |`);
   console.log(`| both | ${f2(median(one.impacts) + median(one.toys))} s | ${f2(median(two.impacts) + median(two.toys))} s | ${f2(total)}× |`);
+  console.log(`| ceiling: one process, no queue, 1 → 2 threads | impacts ${f2(machine[1].impacts)} → ${f2(machine[2].impacts)} s | toys ${f2(machine[1].toys)} → ${f2(machine[2].toys)} s | ${f2(machine[1].impacts / machine[2].impacts)}× / ${f2(machine[1].toys / machine[2].toys)}× |`);
   console.log('');
   console.log(`target ≥ 1.7× with 2 workers: impacts ${impacts >= 1.7 ? 'met' : 'missed'}, toys ${toys >= 1.7 ? 'met' : 'missed'}, both ${total >= 1.7 ? 'met' : 'missed'}`);
   console.log(`load average after: ${loadavg().map(f2).join(' ')}`);

@@ -7,7 +7,7 @@ import type { FitContext } from './fit/covariance';
 import type { WorkerBatch } from './fit/fit-worker';
 import { toShared } from './fit/pool';
 import { coordinateFit } from './work/coordinate';
-import { QUEUES, startQueue, workShards } from './work/queue';
+import { QUEUES, startQueue, takeJobs, workShards } from './work/queue';
 import { coordinateToys, toyBatchWorker } from './work/toys';
 
 /**
@@ -41,16 +41,16 @@ async function main() {
     log,
   });
   const toyShards = await workShards(database.db, queue, { queue: QUEUES.toyBatch, worker: name, concurrency: threads, prepare: toys.prepare, compute: toys.compute, log });
-  await queue.work<{ fitId: number }>(QUEUES.fit, { batchSize: 1, includeMetadata: true }, async ([job]) => {
+  const fitJobs = takeJobs<{ fitId: number }>(queue, QUEUES.fit, 1, async (job) => {
     log(`fit ${job.data.fitId}: started${job.retryCount ? ' (retry)' : ''}`);
     await coordinateFit(database.db, queue, job.data.fitId, log, job.retryCount > 0);
     log(`fit ${job.data.fitId}: done`);
-  });
-  await queue.work<{ toyRunId: number }>(QUEUES.toys, { batchSize: 1, includeMetadata: true }, async ([job]) => {
+  }, log);
+  const toyJobs = takeJobs<{ toyRunId: number }>(queue, QUEUES.toys, 1, async (job) => {
     log(`toy run ${job.data.toyRunId}: started${job.retryCount ? ' (retry)' : ''}`);
     await coordinateToys(database.db, queue, job.data.toyRunId, log, job.retryCount > 0);
     log(`toy run ${job.data.toyRunId}: done`);
-  });
+  }, log);
   console.log(`Plumbline worker ${name} is taking work from ${redacted(config.DATABASE_URL)} with ${threads} engine thread(s).`);
 
   let stopping = false;
@@ -59,6 +59,8 @@ async function main() {
     stopping = true;
     // shards in hand are finished (they are short); a fit or toy run being coordinated is
     // failed by the queue and retried by another worker
+    void fitJobs.stop();
+    void toyJobs.stop();
     await Promise.race([Promise.all([refitShards.stop(), toyShards.stop()]), new Promise((r) => setTimeout(r, 10_000))]);
     await queue.stop({ graceful: false, wait: true, timeout: 5000 }).catch(() => {});
     await refits.destroy();

@@ -72,6 +72,9 @@ const MIGRATIONS_LOCK = 7_262_201;
  */
 export async function openServerDatabase(url: string, poolSize = 10): Promise<Database> {
   const pool = new pg.Pool({ connectionString: url, max: poolSize, application_name: 'plumbline' });
+  // a connection that drops while idle (the server restarts, the network breaks) is dropped from
+  // the pool and replaced at the next query; unhandled, its error would end the process
+  pool.on('error', (e) => console.error(`[database] an idle connection failed: ${e.message}`));
   try {
     const connection = await pool.connect();
     try {

@@ -30,12 +30,11 @@ const EXPIRY_SECONDS: Record<QueueName, number> = { [QUEUES.fit]: 4 * 3600, [QUE
 
 export type Queue = PgBoss;
 
-export async function startQueue(url: string, log: (line: string) => void, options: { pollSeconds?: number } = {}): Promise<Queue> {
+export async function startQueue(url: string, log: (line: string) => void): Promise<Queue> {
   const boss = new PgBoss({
     connectionString: url,
     max: 4,
     application_name: 'plumbline-queue',
-    pollingIntervalSeconds: options.pollSeconds ?? 0.5,
     maintenanceIntervalSeconds: 30,
   });
   boss.on('error', (e: Error) => log(`[queue] ${e.message}`));
@@ -52,8 +51,9 @@ export async function startQueue(url: string, log: (line: string) => void, optio
   return boss;
 }
 
-/** How often an idle worker slot asks for a shard. */
+/** How often an idle worker slot asks for a job, and how often a coordinator reads its shards' outputs. */
 const IDLE_POLL_MS = 150;
+const POLL_MS = 50;
 
 export type ShardData<P> = { run: string; shard: number; payload: P };
 
@@ -102,7 +102,7 @@ export async function runSharded<P, R>(
             throw new ShardFailedError(`shard ${ids.indexOf(id) + 1} of ${payloads.length} ended as ${job.state}: ${describeOutput(job.output)}`);
         }
       }
-      await sleep(100, signal);
+      await sleep(POLL_MS, signal);
     }
     return outputs;
   } catch (e) {
@@ -110,8 +110,8 @@ export async function runSharded<P, R>(
     if (left.length) await queue.cancel(spec.queue, left).catch(() => {});
     throw e;
   } finally {
-    await db.delete(workResults).where(eq(workResults.run, run));
-    await db.delete(workInputs).where(eq(workInputs.run, run));
+    // off the fit's path: the outputs are read, and nobody asks for this run again
+    void Promise.all([db.delete(workResults).where(eq(workResults.run, run)), db.delete(workInputs).where(eq(workInputs.run, run))]).catch(() => {});
   }
 }
 
@@ -186,17 +186,24 @@ export async function workShards<I, P, R>(
       throw e;
     }
   };
-  // A loop per slot rather than the queue's own polling: a slot that finished a shard asks for the
-  // next at once, and an idle slot asks every IDLE_POLL_MS, so short shards do not wait for a tick.
+  return takeJobs<ShardData<P>>(queue, spec.queue, spec.concurrency, handle, spec.log);
+}
+
+/**
+ * Takes jobs of one queue, `concurrency` at a time, until stopped: a loop per slot rather than the
+ * queue's own polling, so a slot that finished a job asks for the next at once, and an idle slot
+ * asks every IDLE_POLL_MS. A job whose handler throws is failed, and the queue retries it once.
+ */
+export function takeJobs<T>(queue: Queue, name: QueueName, concurrency: number, handle: (job: PgBoss.JobWithMetadata<T>) => Promise<void>, log: (line: string) => void) {
   let stopped = false;
   const slot = async () => {
     while (!stopped) {
-      let job: PgBoss.JobWithMetadata<ShardData<P>> | undefined;
+      let job: PgBoss.JobWithMetadata<T> | undefined;
       try {
-        [job] = await queue.fetch<ShardData<P>>(spec.queue, { batchSize: 1, includeMetadata: true });
+        [job] = await queue.fetch<T>(name, { batchSize: 1, includeMetadata: true });
       } catch (e) {
         if (stopped) return;
-        spec.log(`[${spec.queue}] could not fetch: ${(e as Error).message}`);
+        log(`[${name}] could not fetch: ${(e as Error).message}`);
       }
       if (!job) {
         await sleep(IDLE_POLL_MS);
@@ -204,15 +211,15 @@ export async function workShards<I, P, R>(
       }
       try {
         await handle(job);
-        await queue.complete(spec.queue, job.id);
+        await queue.complete(name, job.id);
       } catch (e) {
-        await queue.fail(spec.queue, job.id, { message: e instanceof Error ? e.message : String(e) }).catch(() => {});
+        await queue.fail(name, job.id, { message: e instanceof Error ? e.message : String(e) }).catch(() => {});
       }
     }
   };
-  const slots = Array.from({ length: spec.concurrency }, slot);
+  const slots = Array.from({ length: concurrency }, slot);
   return {
-    /** stops taking shards; resolves when the shards in hand are done */
+    /** stops taking jobs; resolves when the jobs in hand are done */
     stop: async () => {
       stopped = true;
       await Promise.all(slots);
