@@ -8,6 +8,7 @@ import type { WorkerBatch } from './fit/fit-worker';
 import { toShared } from './fit/pool';
 import { coordinateFit } from './work/coordinate';
 import { QUEUES, startQueue, takeJobs, workShards } from './work/queue';
+import { startHeartbeat } from './work/heartbeat';
 import { coordinateToys, toyBatchWorker } from './work/toys';
 
 /**
@@ -28,6 +29,7 @@ async function main() {
 
   const database = await openServerDatabase(config.DATABASE_URL, 4 + 2 * threads);
   const queue = await startQueue(config.DATABASE_URL, log);
+  const heartbeat = await startHeartbeat(database.db, config.DATABASE_URL, name, threads);
   const refits = createFitPool({ threads, niceness: config.FIT_NICENESS });
   const toys = toyBatchWorker(threads, config.FIT_NICENESS);
 
@@ -43,12 +45,12 @@ async function main() {
   const toyShards = await workShards(database.db, queue, { queue: QUEUES.toyBatch, worker: name, concurrency: threads, prepare: toys.prepare, compute: toys.compute, log });
   const fitJobs = takeJobs<{ fitId: number }>(queue, QUEUES.fit, 1, async (job) => {
     log(`fit ${job.data.fitId}: started${job.retryCount ? ' (retry)' : ''}`);
-    await coordinateFit(database.db, queue, job.data.fitId, log, job.retryCount > 0);
+    await coordinateFit(database.db, queue, job.data.fitId, log, name);
     log(`fit ${job.data.fitId}: done`);
   }, log);
   const toyJobs = takeJobs<{ toyRunId: number }>(queue, QUEUES.toys, 1, async (job) => {
     log(`toy run ${job.data.toyRunId}: started${job.retryCount ? ' (retry)' : ''}`);
-    await coordinateToys(database.db, queue, job.data.toyRunId, log, job.retryCount > 0);
+    await coordinateToys(database.db, queue, job.data.toyRunId, log, name);
     log(`toy run ${job.data.toyRunId}: done`);
   }, log);
   console.log(`Plumbline worker ${name} is taking work from ${redacted(config.DATABASE_URL)} with ${threads} engine thread(s).`);
@@ -59,6 +61,7 @@ async function main() {
     stopping = true;
     // shards in hand are finished (they are short); a fit or toy run being coordinated is
     // failed by the queue and retried by another worker
+    await heartbeat.stop();
     void fitJobs.stop();
     void toyJobs.stop();
     await Promise.race([Promise.all([refitShards.stop(), toyShards.stop()]), new Promise((r) => setTimeout(r, 10_000))]);

@@ -268,6 +268,8 @@ export const fits = pgTable(
     headline: jsonb('headline').$type<{ mu: number; muError: number | null; z: number | null; warnings: number } | null>(),
     /** worker processes that ran its refits, with the number of shards each (queued work only) */
     workers: jsonb('workers').$type<Record<string, number> | null>(),
+    /** the worker process coordinating it (queued work only): if it stops being seen, the fit is failed */
+    coordinatedBy: varchar('coordinated_by', { length: 200 }),
     createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
     createdAt: createdAt(),
     startedAt: timestamp('started_at', { withTimezone: true }),
@@ -296,6 +298,8 @@ export const toyRuns = pgTable(
     failure: text('failure'),
     /** the workers (processes, or threads here) that ran its batches, with the number each ran */
     workers: jsonb('workers').$type<Record<string, number> | null>(),
+    /** the worker process coordinating it (queued work only) */
+    coordinatedBy: varchar('coordinated_by', { length: 200 }),
     summary: jsonb('summary'),
     createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
     createdAt: createdAt(),
@@ -314,6 +318,14 @@ export const workInputs = pgTable('work_inputs', {
   run: varchar('run', { length: 100 }).primaryKey(),
   data: bytea('data').notNull(),
   createdAt: createdAt(),
+});
+
+/** Worker processes taking queued work, each seen every few seconds while it runs (server/worker.ts). */
+export const workerProcesses = pgTable('worker_processes', {
+  name: varchar('name', { length: 200 }).primaryKey(),
+  threads: integer('threads').notNull(),
+  startedAt: timestamp('started_at', { withTimezone: true }).notNull().defaultNow(),
+  seenAt: timestamp('seen_at', { withTimezone: true }).notNull().defaultNow(),
 });
 
 export const workResults = pgTable(

@@ -1,4 +1,4 @@
-import { and, eq, inArray } from 'drizzle-orm';
+import { and, eq } from 'drizzle-orm';
 import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
 import { fitOptionsSchema, type FitOptions, type FitResult } from '@shared/schemas/fit';
 import type { Db } from '../db/client';
@@ -17,23 +17,23 @@ export type ComputeFit = (model: ExchangeModel, options: FitOptions, onProgress:
  * One fit job from its row to its stored result, wherever it runs (a thread of the server, or a
  * worker process): marks it running, writes progress at most every 300 ms, stores the result or
  * a failure a person can act on. The final write applies only while the row is still running,
- * so a cancellation recorded meanwhile (by the server, from another process) stands.
- * `takeOver` lets a retried job restart a fit whose first worker stopped.
+ * so a cancellation recorded meanwhile (by the server, from another process) stands. A queued
+ * fit names its `coordinator`, so that the server can fail it if that worker stops being seen.
  */
 export async function executeFit(
   db: Db,
   id: number,
   compute: ComputeFit,
-  control: { signal: AbortSignal; log: (line: string) => void; cancelledBy: () => string | undefined; takeOver?: boolean; onProgressWrite?: () => Promise<void> },
+  control: { signal: AbortSignal; log: (line: string) => void; cancelledBy: () => string | undefined; coordinator?: string; onProgressWrite?: () => Promise<void> },
 ): Promise<void> {
   const { signal, log } = control;
   const [fit] = await db.select().from(fits).where(eq(fits.id, id));
-  if (!fit || !(fit.state === 'queued' || (control.takeOver && fit.state === 'running'))) return;
+  if (!fit || fit.state !== 'queued') return;
   const [version] = await db.select().from(modelVersions).where(eq(modelVersions.id, fit.modelVersionId));
   const started = await db
     .update(fits)
-    .set({ state: 'running', startedAt: new Date(), progress: 0, stage: 'starting', failure: null })
-    .where(and(eq(fits.id, id), inArray(fits.state, control.takeOver ? ['queued', 'running'] : ['queued'])))
+    .set({ state: 'running', startedAt: new Date(), progress: 0, stage: 'starting', failure: null, coordinatedBy: control.coordinator ?? null })
+    .where(and(eq(fits.id, id), eq(fits.state, 'queued')))
     .returning({ id: fits.id });
   if (started.length === 0) return;
   const finish = (values: Partial<typeof fits.$inferInsert>) =>

@@ -15,7 +15,7 @@ import { queuedFitPool } from './queued-pool';
  * Asimov fits) runs here; the refits go back to the queue as shards for every worker. The worker
  * checks the fit's row every second, so a cancellation from the server stops it.
  */
-export async function coordinateFit(db: Db, queue: Queue, fitId: number, log: (line: string) => void, retried: boolean) {
+export async function coordinateFit(db: Db, queue: Queue, fitId: number, log: (line: string) => void, worker: string) {
   const watch = abortWhenCancelled(db, fits, fitId);
   const workers: Record<string, number> = {};
   try {
@@ -36,7 +36,7 @@ export async function coordinateFit(db: Db, queue: Queue, fitId: number, log: (l
           if (Object.keys(workers).length) await db.update(fits).set({ workers }).where(eq(fits.id, fitId));
         }
       },
-      { signal: watch.signal, log, cancelledBy: () => undefined, takeOver: retried },
+      { signal: watch.signal, log, cancelledBy: () => undefined, coordinator: worker },
     );
   } finally {
     watch.stop();

@@ -3,6 +3,7 @@ import type { Db } from '../db/client';
 import { fits, toyRuns } from '../db/schema';
 import type { FitRunner } from '../jobs/fit-runner';
 import type { ToyRunner } from '../jobs/toy-runner';
+import { sweepLostCoordinators } from './heartbeat';
 import { QUEUES, type Queue } from './queue';
 
 /**
@@ -26,7 +27,7 @@ function queuedRows(db: Db, queue: Queue, table: typeof fits, name: string, data
         .returning({ id: table.id });
       return rows.length > 0;
     },
-    // the queue keeps queued work, and a worker that stopped has its job retried by another
+    // the queue keeps queued work; runs whose worker stopped are failed by the sweep below
     recover: async () => {},
     idle: async () => {
       for (;;) {
@@ -38,8 +39,31 @@ function queuedRows(db: Db, queue: Queue, table: typeof fits, name: string, data
   };
 }
 
-export function queuedFitRunner(db: Db, queue: Queue, local: FitRunner): FitRunner {
-  return { ...queuedRows(db, queue, fits, QUEUES.fit, (fitId) => ({ fitId })), diagnose: local.diagnose, close: local.close };
+/**
+ * Every SWEEP_MS the server fails the runs whose coordinating worker is no longer seen
+ * (work/heartbeat.ts); the fit runner's recover() starts that watch and close() ends it.
+ */
+const SWEEP_MS = 10_000;
+
+export function queuedFitRunner(db: Db, queue: Queue, local: FitRunner, log: (line: string) => void = console.error): FitRunner {
+  let timer: NodeJS.Timeout | null = null;
+  const sweep = () =>
+    sweepLostCoordinators(db).then(
+      (n) => n > 0 && log(`[queue] ${n} run(s) failed: their worker is no longer seen`),
+      (e) => log(`[queue] could not check the workers: ${(e as Error).message}`),
+    );
+  return {
+    ...queuedRows(db, queue, fits, QUEUES.fit, (fitId) => ({ fitId })),
+    recover: async () => {
+      await sweep();
+      timer ??= setInterval(sweep, SWEEP_MS);
+    },
+    diagnose: local.diagnose,
+    close: async () => {
+      if (timer) clearInterval(timer);
+      await local.close();
+    },
+  };
 }
 
 export function queuedToyRunner(db: Db, queue: Queue): ToyRunner {

@@ -1,6 +1,6 @@
 import { randomUUID } from 'node:crypto';
 import path from 'node:path';
-import { and, eq, inArray } from 'drizzle-orm';
+import { and, eq } from 'drizzle-orm';
 import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
 import { fitOptionsSchema, type FitOptions } from '@shared/schemas/fit';
 import { toyHypothesisSchema, toySummarySchema, type ToyHypothesis } from '@shared/schemas/toys';
@@ -42,15 +42,15 @@ export async function executeToys(
   db: Db,
   id: number,
   executor: ToyExecutor,
-  control: { signal: AbortSignal; log: (line: string) => void; cancelledBy: () => string | undefined; takeOver?: boolean },
+  control: { signal: AbortSignal; log: (line: string) => void; cancelledBy: () => string | undefined; coordinator?: string },
 ) {
   const { signal, log } = control;
   const [run] = await db.select().from(toyRuns).where(eq(toyRuns.id, id));
-  if (!run || !(run.state === 'queued' || (control.takeOver && run.state === 'running'))) return;
+  if (!run || run.state !== 'queued') return;
   const started = await db
     .update(toyRuns)
-    .set({ state: 'running', startedAt: new Date(), progress: 0, stage: 'refitting the reference', failure: null })
-    .where(and(eq(toyRuns.id, id), inArray(toyRuns.state, control.takeOver ? ['queued', 'running'] : ['queued'])))
+    .set({ state: 'running', startedAt: new Date(), progress: 0, stage: 'refitting the reference', failure: null, coordinatedBy: control.coordinator ?? null })
+    .where(and(eq(toyRuns.id, id), eq(toyRuns.state, 'queued')))
     .returning({ id: toyRuns.id });
   if (started.length === 0) return;
   const finish = (values: Partial<typeof toyRuns.$inferInsert>) =>
@@ -180,10 +180,10 @@ export function toyBatchWorker(threads: number, niceness: number) {
 }
 
 /** A toy run taken from the queue by a worker; the run's row is checked every second for a cancellation. */
-export async function coordinateToys(db: Db, queue: Queue, id: number, log: (line: string) => void, retried: boolean) {
+export async function coordinateToys(db: Db, queue: Queue, id: number, log: (line: string) => void, worker: string) {
   const watch = abortWhenCancelled(db, toyRuns as unknown as JobTable, id);
   try {
-    await executeToys(db, id, queuedToyExecutor(db, queue), { signal: watch.signal, log, cancelledBy: () => undefined, takeOver: retried });
+    await executeToys(db, id, queuedToyExecutor(db, queue), { signal: watch.signal, log, cancelledBy: () => undefined, coordinator: worker });
   } finally {
     watch.stop();
   }

@@ -205,5 +205,31 @@ describe('PostgreSQL server and two worker processes', () => {
       await db.end();
     }
   }, 300_000);
-});
 
+  it('fails a run whose coordinating worker is no longer seen, and leaves one whose worker is alive', async () => {
+    const db = new pg.Client({ connectionString: postgres.url });
+    await db.connect();
+    try {
+      // both workers keep their rows fresh
+      const { rows: seen } = await db.query("select name from worker_processes where seen_at > now() - interval '30 seconds' order by name");
+      expect(seen.map((r) => r.name)).toEqual(['worker-one', 'worker-two']);
+      const insert = (by: string) =>
+        db.query("insert into fits (analysis_id, model_version_id, options, state, coordinated_by) select analysis_id, model_version_id, '{}', 'running', $2 from fits where id = $1 returning id", [fitId, by]);
+      const ghost = (await insert('vanished-worker')).rows[0].id;
+      const alive = (await insert('worker-one')).rows[0].id;
+      // the server's sweep, every 10 s
+      const row = await until(
+        'the sweep',
+        async () => (await db.query('select state, failure from fits where id = $1', [ghost])).rows[0],
+        (r) => r.state !== 'running',
+        40,
+      );
+      expect(row.state).toBe('failed');
+      expect(row.failure).toMatch(/\(vanished-worker\) stopped or lost the database/);
+      expect((await db.query('select state from fits where id = $1', [alive])).rows[0].state).toBe('running');
+      await db.query("update fits set state = 'failed' where id = $1", [alive]);
+    } finally {
+      await db.end();
+    }
+  }, 60_000);
+});

@@ -1,0 +1,9 @@
+CREATE TABLE "worker_processes" (
+	"name" varchar(200) PRIMARY KEY NOT NULL,
+	"threads" integer NOT NULL,
+	"started_at" timestamp with time zone DEFAULT now() NOT NULL,
+	"seen_at" timestamp with time zone DEFAULT now() NOT NULL
+);
+--> statement-breakpoint
+ALTER TABLE "fits" ADD COLUMN "coordinated_by" varchar(200);--> statement-breakpoint
+ALTER TABLE "toy_runs" ADD COLUMN "coordinated_by" varchar(200);
