@@ -320,6 +320,18 @@ export const workInputs = pgTable('work_inputs', {
   createdAt: createdAt(),
 });
 
+/** Which worker took which shard: a shard whose takers are all gone is sent again (work/queue.ts). */
+export const workClaims = pgTable(
+  'work_claims',
+  {
+    run: varchar('run', { length: 100 }).notNull(),
+    shard: integer('shard').notNull(),
+    worker: varchar('worker', { length: 200 }).notNull(),
+    claimedAt: timestamp('claimed_at', { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.run, t.shard, t.worker] })],
+);
+
 /** Worker processes taking queued work, each seen every few seconds while it runs (server/worker.ts). */
 export const workerProcesses = pgTable('worker_processes', {
   name: varchar('name', { length: 200 }).primaryKey(),

@@ -1,9 +1,10 @@
 import { randomUUID } from 'node:crypto';
 import v8 from 'node:v8';
-import { and, eq, notInArray } from 'drizzle-orm';
+import { and, eq, notInArray, sql } from 'drizzle-orm';
 import PgBoss from 'pg-boss';
 import type { Db } from '../db/client';
-import { workInputs, workResults } from '../db/schema';
+import { workClaims, workerProcesses, workInputs, workResults } from '../db/schema';
+import { LOST_AFTER_SECONDS } from './heartbeat';
 import { FitCancelledError } from '../fit/errors';
 
 /**
@@ -72,7 +73,9 @@ export async function runSharded<P, R>(
 ): Promise<R[]> {
   const { run, payloads, signal } = spec;
   if (payloads.length === 0) return [];
+  // the queue's job id of each shard: a shard sent again gets a new one
   const ids = payloads.map(() => randomUUID());
+  const resent = new Array<number>(payloads.length).fill(0);
   const outputs: R[] = new Array(payloads.length);
   const done: number[] = [];
   try {
@@ -92,9 +95,17 @@ export async function runSharded<P, R>(
         spec.onShard?.(row.shard, outputs[row.shard], row.worker);
       }
       if (done.length === payloads.length) break;
-      // a worker that stopped without a word: its shard expires, is retried, and may fail for good
       if (Date.now() - lastStateCheck > 3000) {
         lastStateCheck = Date.now();
+        // a shard whose takers have all stopped being seen is sent again, at most twice
+        for (const shard of await lostShards(db, run, done)) {
+          if (resent[shard] >= 2) throw new ShardFailedError(`shard ${shard + 1} of ${payloads.length} was lost with the workers that took it, three times`);
+          resent[shard] += 1;
+          ids[shard] = randomUUID();
+          await db.delete(workClaims).where(and(eq(workClaims.run, run), eq(workClaims.shard, shard)));
+          await queue.insert([{ id: ids[shard], name: spec.queue, data: { run, shard, payload: payloads[shard] } satisfies ShardData<P> }]);
+        }
+        // a shard that failed for good, or was cancelled
         const left = ids.filter((_, shard) => !done.includes(shard));
         for (const id of left.slice(0, 20)) {
           const job = await queue.getJobById(spec.queue, id);
@@ -111,8 +122,23 @@ export async function runSharded<P, R>(
     throw e;
   } finally {
     // off the fit's path: the outputs are read, and nobody asks for this run again
-    void Promise.all([db.delete(workResults).where(eq(workResults.run, run)), db.delete(workInputs).where(eq(workInputs.run, run))]).catch(() => {});
+    void Promise.all([
+      db.delete(workResults).where(eq(workResults.run, run)),
+      db.delete(workInputs).where(eq(workInputs.run, run)),
+      db.delete(workClaims).where(eq(workClaims.run, run)),
+    ]).catch(() => {});
   }
+}
+
+/** Shards of a run, not done, taken only by workers no longer seen (work/heartbeat.ts). */
+async function lostShards(db: Db, run: string, done: number[]): Promise<number[]> {
+  const alive = sql`exists (select 1 from ${workerProcesses} where ${workerProcesses.name} = ${workClaims.worker} and ${workerProcesses.seenAt} > now() - make_interval(secs => ${LOST_AFTER_SECONDS}))`;
+  const rows = await db
+    .select({ shard: workClaims.shard, alive: sql<boolean>`bool_or(${alive})` })
+    .from(workClaims)
+    .where(done.length ? and(eq(workClaims.run, run), notInArray(workClaims.shard, done)) : eq(workClaims.run, run))
+    .groupBy(workClaims.shard);
+  return rows.filter((r) => !r.alive).map((r) => r.shard);
 }
 
 function describeOutput(output: unknown) {
@@ -169,6 +195,7 @@ export async function workShards<I, P, R>(
     const { run, shard, payload } = job.data;
     const [already] = await db.select({ shard: workResults.shard }).from(workResults).where(and(eq(workResults.run, run), eq(workResults.shard, shard)));
     if (already) return;
+    await db.insert(workClaims).values({ run, shard, worker: spec.worker }).onConflictDoNothing();
     try {
       const input = await inputOf(run);
       // the run ended (cancelled or failed) and its input is gone: nothing to do

@@ -10,6 +10,8 @@ import { createFitPool, fitModel, type FitPool } from '../../server/fit';
 import { prepareToys, runToys, summariseToys } from '../../server/fit/toys';
 import { openServerDatabase, type Database } from '../../server/db/client';
 import { QUEUES, runSharded, ShardFailedError, startQueue, workShards, type Queue } from '../../server/work/queue';
+import { startHeartbeat } from '../../server/work/heartbeat';
+import { workClaims } from '../../server/db/schema';
 import { toyBatches } from '../../server/work/toys';
 import { DEMO, PASSWORD } from '../server/helpers';
 import { startServer, type RunningServer } from './support';
@@ -78,10 +80,12 @@ describe('shards on the queue', () => {
   let queue: Queue;
   const attempts = new Map<string, number>();
   let shards: { stop: () => Promise<void> };
+  let heartbeat: { stop: () => Promise<void> };
 
   beforeAll(async () => {
     database = await openServerDatabase(postgres.url, 4);
     queue = await startQueue(postgres.url, () => {});
+    heartbeat = await startHeartbeat(database.db, postgres.url, 'test-process', 2);
     // this process takes shards too, on a queue of its own runs: "flaky" fails each shard's first attempt, "broken" every attempt
     shards = await workShards<string, number, number>(database.db, queue, {
       queue: QUEUES.refits,
@@ -101,6 +105,7 @@ describe('shards on the queue', () => {
 
   afterAll(async () => {
     await shards?.stop();
+    await heartbeat?.stop();
     await queue?.stop({ graceful: false, wait: true, timeout: 5000 });
     await database?.close();
   });
@@ -119,6 +124,34 @@ describe('shards on the queue', () => {
     await expect(run).rejects.toThrow(/shard 2 of 3 failed twice .*shard 2 cannot be computed/);
     // once, and once more: no third attempt
     expect(attempts.get('broken:1')).toBe(2);
+  }, 60_000);
+
+  it('sends a shard again when the worker that took it is no longer seen', async () => {
+    // a run on the toy-batch queue, which no one here takes yet
+    const run = `lost-${Date.now()}`;
+    const outputs = runSharded<number, number>(database.db, queue, { run, queue: QUEUES.toyBatch, input: 'plain', payloads: [7] });
+    // a worker takes the shard and vanishes: the job stays active, its claim names a worker never seen
+    let taken: unknown[] = [];
+    for (let k = 0; k < 50 && taken.length === 0; k++) {
+      taken = await queue.fetch(QUEUES.toyBatch, { batchSize: 1 });
+      if (!taken.length) await new Promise((r) => setTimeout(r, 100));
+    }
+    expect(taken).toHaveLength(1);
+    await database.db.insert(workClaims).values({ run, shard: 0, worker: 'vanished-worker' });
+    // now this process takes toy batches too: it gets the shard only if it is sent again
+    const rescue = await workShards<string, number, number>(database.db, queue, {
+      queue: QUEUES.toyBatch,
+      worker: 'test-process',
+      concurrency: 1,
+      prepare: (input) => input as string,
+      compute: async (_kind, n) => n * 3,
+      log: () => {},
+    });
+    try {
+      expect(await outputs).toEqual([21]);
+    } finally {
+      await rescue.stop();
+    }
   }, 60_000);
 });
 
