@@ -8,7 +8,7 @@ import type { WorkerBatch } from './fit/fit-worker';
 import { toShared } from './fit/pool';
 import { coordinateFit } from './work/coordinate';
 import { QUEUES, startQueue, takeJobs, workShards } from './work/queue';
-import { startHeartbeat } from './work/heartbeat';
+import { failCoordinatedBy, startHeartbeat } from './work/heartbeat';
 import { coordinateToys, toyBatchWorker } from './work/toys';
 
 /**
@@ -59,11 +59,12 @@ async function main() {
   const stop = async () => {
     if (stopping) return;
     stopping = true;
-    // shards in hand are finished (they are short); a fit or toy run being coordinated is
-    // failed by the queue and retried by another worker
-    await heartbeat.stop();
+    // a fit or toy run being coordinated here is failed with that reason (its job is not taken
+    // up again); shards in hand are finished first, they are short
     void fitJobs.stop();
     void toyJobs.stop();
+    await failCoordinatedBy(database.db, name).catch((e) => log(`could not mark its runs: ${(e as Error).message}`));
+    await heartbeat.stop();
     await Promise.race([Promise.all([refitShards.stop(), toyShards.stop()]), new Promise((r) => setTimeout(r, 10_000))]);
     await queue.stop({ graceful: false, wait: true, timeout: 5000 }).catch(() => {});
     await refits.destroy();

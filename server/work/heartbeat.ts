@@ -1,7 +1,7 @@
-import { and, eq, isNotNull, sql } from 'drizzle-orm';
+import { and, eq, isNotNull, lt, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { siblingWorker, workerPool } from '../fit/pool';
-import { fits, toyRuns, workerProcesses } from '../db/schema';
+import { fits, toyRuns, workClaims, workerProcesses, workInputs, workResults } from '../db/schema';
 
 /** A worker says it is alive this often, and is taken for gone after LOST_AFTER_SECONDS unseen. */
 const BEAT_MS = 5000;
@@ -54,5 +54,21 @@ export async function sweepLostCoordinators(db: Db): Promise<number> {
       failed += done.length;
     }
   }
+  // a run whose coordinator stopped leaves its shared input and outputs behind: kept a week, in
+  // case a run is that long, then removed
+  const week = sql`now() - interval '7 days'`;
+  await db.delete(workInputs).where(lt(workInputs.createdAt, week));
+  await db.delete(workResults).where(lt(workResults.finishedAt, week));
+  await db.delete(workClaims).where(lt(workClaims.claimedAt, week));
   return failed;
+}
+
+/** A worker that is being stopped fails the runs it coordinates at once, rather than leaving them to the sweep. */
+export async function failCoordinatedBy(db: Db, name: string) {
+  for (const table of [fits, toyRuns as unknown as typeof fits]) {
+    await db
+      .update(table)
+      .set({ state: 'failed', failure: `The worker coordinating this run (${name}) was stopped. Start it again; another worker will take it.`, stage: 'worker stopped', finishedAt: new Date() })
+      .where(and(eq(table.state, 'running'), eq(table.coordinatedBy, name)));
+  }
 }

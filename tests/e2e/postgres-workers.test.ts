@@ -265,4 +265,32 @@ describe('PostgreSQL server and two worker processes', () => {
       await db.end();
     }
   }, 60_000);
+
+  it('a worker stopped with SIGTERM fails the run it coordinates, with that reason', async () => {
+    const started = await send('post', `${A}/fits/${fitId}/toys`, { count: 20_000, seed: 5 });
+    expect(started.status).toBe(202);
+    const db = new pg.Client({ connectionString: postgres.url });
+    await db.connect();
+    try {
+      const running = await until(
+        'the toys to start',
+        async () => (await db.query('select state, coordinated_by from toy_runs where id = $1', [started.body.id])).rows[0],
+        (r) => r.state === 'running' && r.coordinated_by !== null,
+        60,
+      );
+      const coordinator = workers.find((w) => w.name === running.coordinated_by)!;
+      coordinator.child.kill('SIGTERM');
+      const run = await until(
+        'the run to fail',
+        async () => (await analyst.get(`${A}/toys/${started.body.id}`)).body as ToyRun,
+        (r) => r.state !== 'running',
+        30,
+      );
+      expect(run.state).toBe('failed');
+      expect(run.failure).toBe(`The worker coordinating this run (${coordinator.name}) was stopped. Start it again; another worker will take it.`);
+      expect(run.summary).toBeNull();
+    } finally {
+      await db.end();
+    }
+  }, 120_000);
 });
