@@ -88,17 +88,24 @@ function sharedContext(ctx: FitContext): FitContext {
   return copy;
 }
 
-export function toShared(x: unknown): unknown {
+/** A copy of plain data (objects, arrays) in which every typed array is copied into `buffer` (its byte length given). */
+function copyTypedArrays(x: unknown, buffer: (bytes: number) => ArrayBufferLike): unknown {
   if (ArrayBuffer.isView(x) && !(x instanceof DataView)) {
-    const bytes = new Uint8Array(new SharedArrayBuffer(x.byteLength));
+    const bytes = new Uint8Array(buffer(x.byteLength));
     bytes.set(new Uint8Array(x.buffer, x.byteOffset, x.byteLength));
     const View = x.constructor as new (buffer: ArrayBufferLike) => ArrayBufferView;
     return new View(bytes.buffer);
   }
-  if (Array.isArray(x)) return x.map(toShared);
-  if (x !== null && typeof x === 'object') return Object.fromEntries(Object.entries(x).map(([k, v]) => [k, toShared(v)]));
+  if (Array.isArray(x)) return x.map((v) => copyTypedArrays(v, buffer));
+  if (x !== null && typeof x === 'object') return Object.fromEntries(Object.entries(x).map(([k, v]) => [k, copyTypedArrays(v, buffer)]));
   return x;
 }
+
+/** Typed arrays into shared memory: sending the copy to a thread copies only the small fields. */
+export const toShared = (x: unknown) => copyTypedArrays(x, (n) => new SharedArrayBuffer(n));
+
+/** Typed arrays out of shared memory, so that the copy can be serialised (v8.serialize refuses shared memory). */
+export const toPlain = (x: unknown) => copyTypedArrays(x, (n) => new ArrayBuffer(n));
 
 /**
  * Runs jobs in this thread or, with a pool, in interleaved batches (several per thread so the

@@ -1,9 +1,10 @@
-import { and, eq } from 'drizzle-orm';
+import { eq } from 'drizzle-orm';
 import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
 import { fitOptionsSchema, type FitOptions, type FitResult } from '@shared/schemas/fit';
 import type { Db } from '../db/client';
 import { fits, modelVersions } from '../db/schema';
 import { JobError } from './fit-job';
+import { jobRow } from './job-rows';
 
 export const NOT_FINITE =
   'The fit ended with a number that is not finite (NaN or infinite), so none of its numbers are shown. Check the model for extreme yields or variations, and tell an admin.';
@@ -15,52 +16,26 @@ export type ComputeFit = (model: ExchangeModel, options: FitOptions, onProgress:
 
 /**
  * One fit job from its row to its stored result, wherever it runs (a thread of the server, or a
- * worker process): marks it running, writes progress at most every 300 ms, stores the result or
- * a failure a person can act on. The final write applies only while the row is still running,
- * so a cancellation recorded meanwhile (by the server, from another process) stands. A queued
- * fit names its `coordinator`, so that the server can fail it if that worker stops being seen.
+ * worker process): marks it running, writes progress, stores the result or a failure a person can
+ * act on (jobRow). A queued fit names its `coordinator`, so that the server can fail it if that
+ * worker stops being seen.
  */
 export async function executeFit(
   db: Db,
   id: number,
   compute: ComputeFit,
-  control: { signal: AbortSignal; log: (line: string) => void; cancelledBy: () => string | undefined; coordinator?: string; onProgressWrite?: () => Promise<void> },
+  control: { signal: AbortSignal; log: (line: string) => void; cancelledBy: () => string | undefined; coordinator?: string },
 ): Promise<void> {
   const { signal, log } = control;
   const [fit] = await db.select().from(fits).where(eq(fits.id, id));
   if (!fit || fit.state !== 'queued') return;
   const [version] = await db.select().from(modelVersions).where(eq(modelVersions.id, fit.modelVersionId));
-  const started = await db
-    .update(fits)
-    .set({ state: 'running', startedAt: new Date(), progress: 0, stage: 'starting', failure: null, coordinatedBy: control.coordinator ?? null })
-    .where(and(eq(fits.id, id), eq(fits.state, 'queued')))
-    .returning({ id: fits.id });
-  if (started.length === 0) return;
-  const finish = (values: Partial<typeof fits.$inferInsert>) =>
-    db
-      .update(fits)
-      .set({ finishedAt: new Date(), ...values })
-      .where(and(eq(fits.id, id), eq(fits.state, 'running')));
-
-  // progress writes are chained so that a late one never overwrites the final state
-  let writes = Promise.resolve();
-  let last = 0;
-  const onProgress = (fraction: number, stage: string) => {
-    const now = Date.now();
-    if (now - last < 300) return;
-    last = now;
-    writes = writes
-      .then(() => db.update(fits).set({ progress: Math.min(0.99, fraction), stage }).where(and(eq(fits.id, id), eq(fits.state, 'running'))))
-      .then(() => control.onProgressWrite?.())
-      .then(
-        () => {},
-        () => {},
-      );
-  };
+  const row = jobRow(db, fits, id);
+  if (!(await row.start({ stage: 'starting', coordinatedBy: control.coordinator ?? null }))) return;
+  const finish = row.finish;
   try {
     const model = exchangeModelSchema.parse(version.model);
-    const result = await compute(model, fitOptionsSchema.parse(fit.options), onProgress, signal);
-    await writes;
+    const result = await compute(model, fitOptionsSchema.parse(fit.options), row.progress, signal);
     await finish({
       state: result.status === 'converged' ? 'succeeded' : 'failed',
       failure: result.status === 'converged' ? null : (result.convergence.failure ?? 'The fit did not converge.'),
@@ -73,7 +48,6 @@ export async function executeFit(
       stage: 'done',
     });
   } catch (e) {
-    await writes;
     const kind = e instanceof JobError ? e.kind : 'internal';
     if (kind === 'cancelled') await finish({ state: 'cancelled', failure: `Cancelled by ${control.cancelledBy() ?? 'a user'}.`, stage: 'cancelled' });
     else if (kind === 'input') await finish({ state: 'failed', failure: `The model or options cannot be fitted: ${(e as Error).message}`, stage: 'failed' });

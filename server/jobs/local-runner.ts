@@ -1,9 +1,6 @@
-import { and, eq } from 'drizzle-orm';
+import { eq } from 'drizzle-orm';
 import type { Db } from '../db/client';
-import { fits } from '../db/schema';
-
-/** Rows that run as jobs: fits and toy runs share their id, state, stage, failure and finish time. */
-export type JobTable = typeof fits;
+import { cancelQueuedRow, type JobTable } from './job-rows';
 
 /** What both in-process runners offer the services. */
 export type LocalRunner = {
@@ -68,10 +65,7 @@ export function localRunner(
       const at = queue.indexOf(id);
       if (at < 0) return false;
       queue.splice(at, 1);
-      await db
-        .update(table)
-        .set({ state: 'cancelled', failure: `Cancelled by ${by} before it started.`, stage: 'cancelled', finishedAt: new Date() })
-        .where(and(eq(table.id, id), eq(table.state, 'queued')));
+      await cancelQueuedRow(db, table, id, by);
       return true;
     },
     recover: async () => {

@@ -1,6 +1,6 @@
 import type { Db } from '../db/client';
-import { toyRuns } from '../db/schema';
-import { localRunner, type JobTable } from './local-runner';
+import { toyRunsTable } from './job-rows';
+import { localRunner } from './local-runner';
 import { executeToys, threadToyExecutor, toyThreads, TOYS_INTERRUPTED } from '../work/toys';
 
 /**
@@ -22,7 +22,7 @@ export function createToyRunner(db: Db, log: (line: string) => void, options: { 
   const pool = () => (threads ??= toyThreads(options.threads ?? 1, options.niceness ?? 0));
   const runner = localRunner(
     db,
-    toyRuns as unknown as JobTable,
+    toyRunsTable,
     (id, signal, cancelledBy) => executeToys(db, id, threadToyExecutor(pool(), 'this server'), { signal, log, cancelledBy }),
     { interrupted: TOYS_INTERRUPTED, what: 'toys', log },
   );

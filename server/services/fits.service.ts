@@ -11,6 +11,7 @@ import { keptResults } from '../kept';
 import { encodeJson, type Encoded } from '../routes/encoded';
 import { isWithheld } from './blinding.service';
 import { findVersion } from './versions.service';
+import { cancelJob } from '../jobs/job-rows';
 import { untilStopped } from '../jobs/local-runner';
 
 type FitRow = Omit<typeof fits.$inferSelect, 'result'>;
@@ -150,14 +151,7 @@ export async function startFit(ctx: AppContext, access: Access, body: unknown): 
 export async function cancelFit(ctx: AppContext, access: Access, id: number): Promise<FitSummary> {
   const row = await findFit(ctx, access, id);
   if (row.fit.state !== 'queued' && row.fit.state !== 'running') throw conflict(`Fit ${id} has ended (${row.fit.state}); there is nothing to cancel.`);
-  const here = await ctx.fits.cancel(id, access.userName);
-  if (!here) {
-    if (row.fit.state === 'running') throw conflict(`Fit ${id} is running in another server process; it cannot be cancelled from here.`);
-    await ctx.db
-      .update(fits)
-      .set({ state: 'cancelled', failure: `Cancelled by ${access.userName} before it started.`, finishedAt: new Date(), stage: 'cancelled' })
-      .where(and(eq(fits.id, id), eq(fits.state, 'queued')));
-  }
+  await cancelJob(ctx.db, fits, ctx.fits, { id, state: row.fit.state, what: `Fit ${id}` }, access.userName);
   const after = await untilStopped(() => findFit(ctx, access, id), (r) => r.fit.state === 'running');
   return summaryOf(after.fit, after.version, after.by);
 }

@@ -6,6 +6,7 @@ import type { AppContext } from '../context';
 import { toyRuns, users } from '../db/schema';
 import { conflict, notFound } from '../errors';
 import { findFit } from './fits.service';
+import { cancelJob, toyRunsTable } from '../jobs/job-rows';
 import { untilStopped } from '../jobs/local-runner';
 
 type ToyRow = typeof toyRuns.$inferSelect;
@@ -86,14 +87,7 @@ export async function startToys(ctx: AppContext, access: Access, fitId: number, 
 export async function cancelToys(ctx: AppContext, access: Access, id: number): Promise<ToyRun> {
   const row = await findToyRun(ctx, access, id);
   if (row.run.state !== 'queued' && row.run.state !== 'running') throw conflict(`Toy run ${id} has ended (${row.run.state}); there is nothing to cancel.`);
-  const here = await ctx.toys.cancel(id, access.userName);
-  if (!here) {
-    if (row.run.state === 'running') throw conflict(`Toy run ${id} is running in another server process; it cannot be cancelled from here.`);
-    await ctx.db
-      .update(toyRuns)
-      .set({ state: 'cancelled', failure: `Cancelled by ${access.userName} before it started.`, finishedAt: new Date(), stage: 'cancelled' })
-      .where(and(eq(toyRuns.id, id), eq(toyRuns.state, 'queued')));
-  }
+  await cancelJob(ctx.db, toyRunsTable, ctx.toys, { id, state: row.run.state, what: `Toy run ${id}` }, access.userName);
   const after = await untilStopped(() => findToyRun(ctx, access, id), (r) => r.run.state === 'running');
   return toyRunOf(after.run, after.by);
 }

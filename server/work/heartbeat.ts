@@ -1,11 +1,16 @@
-import { and, eq, isNotNull, lt, sql } from 'drizzle-orm';
+import { and, eq, isNotNull, lt, not, sql, type SQLWrapper } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { siblingWorker, workerPool } from '../fit/pool';
-import { fits, toyRuns, workClaims, workerProcesses, workInputs, workResults } from '../db/schema';
+import { workClaims, workerProcesses, workInputs, workResults } from '../db/schema';
+import { JOB_TABLES } from '../jobs/job-rows';
 
 /** A worker says it is alive this often, and is taken for gone after LOST_AFTER_SECONDS unseen. */
 const BEAT_MS = 5000;
 export const LOST_AFTER_SECONDS = 30;
+
+/** True where the worker named by `name` (a column) has been seen within LOST_AFTER_SECONDS. */
+export const seenRecently = (name: SQLWrapper) =>
+  sql`exists (select 1 from ${workerProcesses} where ${workerProcesses.name} = ${name} and ${workerProcesses.seenAt} > now() - make_interval(secs => ${LOST_AFTER_SECONDS}))`;
 
 /** Keeps this worker's row in worker_processes fresh, from a thread of its own; stop() removes it. */
 export async function startHeartbeat(db: Db, url: string, name: string, threads: number) {
@@ -29,8 +34,8 @@ export async function startHeartbeat(db: Db, url: string, name: string, threads:
   };
 }
 
-const lost = (by: string) =>
-  `The worker coordinating this run (${by}) stopped or lost the database: it has not been seen for ${LOST_AFTER_SECONDS} s. Start it again; another worker will take it.`;
+/** The reason a run is failed with, around the worker's name. */
+const LOST = ['The worker coordinating this run (', `) stopped or lost the database: it has not been seen for ${LOST_AFTER_SECONDS} s. Start it again; another worker will take it.`] as const;
 
 /**
  * Fails the fits and toy runs whose coordinating worker is no longer seen (stopped, killed, or cut
@@ -39,20 +44,13 @@ const lost = (by: string) =>
  */
 export async function sweepLostCoordinators(db: Db): Promise<number> {
   let failed = 0;
-  for (const table of [fits, toyRuns as unknown as typeof fits]) {
-    const gone = sql`not exists (select 1 from ${workerProcesses} where ${workerProcesses.name} = ${table.coordinatedBy} and ${workerProcesses.seenAt} > now() - make_interval(secs => ${LOST_AFTER_SECONDS}))`;
+  for (const table of JOB_TABLES) {
     const rows = await db
-      .select({ id: table.id, by: table.coordinatedBy })
-      .from(table)
-      .where(and(eq(table.state, 'running'), isNotNull(table.coordinatedBy), gone));
-    for (const row of rows) {
-      const done = await db
-        .update(table)
-        .set({ state: 'failed', failure: lost(row.by!), stage: 'worker lost', finishedAt: new Date() })
-        .where(and(eq(table.id, row.id), eq(table.state, 'running')))
-        .returning({ id: table.id });
-      failed += done.length;
-    }
+      .update(table)
+      .set({ state: 'failed', failure: sql`${LOST[0]}::text || ${table.coordinatedBy} || ${LOST[1]}::text`, stage: 'worker lost', finishedAt: new Date() })
+      .where(and(eq(table.state, 'running'), isNotNull(table.coordinatedBy), not(seenRecently(table.coordinatedBy))))
+      .returning({ id: table.id });
+    failed += rows.length;
   }
   // a run whose coordinator stopped leaves its shared input and outputs behind: kept a week, in
   // case a run is that long, then removed
@@ -65,7 +63,7 @@ export async function sweepLostCoordinators(db: Db): Promise<number> {
 
 /** A worker that is being stopped fails the runs it coordinates at once, rather than leaving them to the sweep. */
 export async function failCoordinatedBy(db: Db, name: string) {
-  for (const table of [fits, toyRuns as unknown as typeof fits]) {
+  for (const table of JOB_TABLES) {
     await db
       .update(table)
       .set({ state: 'failed', failure: `The worker coordinating this run (${name}) was stopped. Start it again; another worker will take it.`, stage: 'worker stopped', finishedAt: new Date() })

@@ -3,8 +3,8 @@ import v8 from 'node:v8';
 import { and, eq, notInArray, sql } from 'drizzle-orm';
 import PgBoss from 'pg-boss';
 import type { Db } from '../db/client';
-import { workClaims, workerProcesses, workInputs, workResults } from '../db/schema';
-import { LOST_AFTER_SECONDS } from './heartbeat';
+import { workClaims, workInputs, workResults } from '../db/schema';
+import { seenRecently } from './heartbeat';
 import { FitCancelledError } from '../fit/errors';
 
 /**
@@ -132,9 +132,8 @@ export async function runSharded<P, R>(
 
 /** Shards of a run, not done, taken only by workers no longer seen (work/heartbeat.ts). */
 async function lostShards(db: Db, run: string, done: number[]): Promise<number[]> {
-  const alive = sql`exists (select 1 from ${workerProcesses} where ${workerProcesses.name} = ${workClaims.worker} and ${workerProcesses.seenAt} > now() - make_interval(secs => ${LOST_AFTER_SECONDS}))`;
   const rows = await db
-    .select({ shard: workClaims.shard, alive: sql<boolean>`bool_or(${alive})` })
+    .select({ shard: workClaims.shard, alive: sql<boolean>`bool_or(${seenRecently(workClaims.worker)})` })
     .from(workClaims)
     .where(done.length ? and(eq(workClaims.run, run), notInArray(workClaims.shard, done)) : eq(workClaims.run, run))
     .groupBy(workClaims.shard);

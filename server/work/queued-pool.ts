@@ -1,5 +1,4 @@
-import type { FitContext } from '../fit/covariance';
-import type { FitPool } from '../fit/pool';
+import { toPlain, type FitPool } from '../fit/pool';
 import type { WorkerBatch } from '../fit/fit-worker';
 import type { JobResult } from '../fit/jobs';
 import type { Db } from '../db/client';
@@ -13,19 +12,18 @@ const THREADS_EQUIVALENT = 3;
  * the shards of one run, whose contexts are stored once. Any worker takes shards; the outputs
  * come back in order, so the fit's numbers do not depend on who computed what.
  */
-export function queuedFitPool(db: Db, queue: Queue, run: string, onShard?: (worker: string) => void): FitPool & { shards: () => number } {
+export function queuedFitPool(db: Db, queue: Queue, run: string, onShard?: (worker: string) => void): FitPool {
   let pending: { batch: WorkerBatch; resolve: (r: JobResult[]) => void; reject: (e: unknown) => void; signal?: AbortSignal }[] = [];
   let round = 0;
-  let shards = 0;
   const flush = () => {
     const batches = pending;
     pending = [];
+    if (batches.length === 0) return;
     const contexts = batches[0].batch.contexts;
-    shards += batches.length;
     runSharded<WorkerBatch['jobs'], JobResult[]>(db, queue, {
       run: `${run}:${round++}`,
       queue: QUEUES.refits,
-      input: contexts.map(plainCopy),
+      input: toPlain(contexts),
       payloads: batches.map((b) => b.batch.jobs),
       signal: batches[0].signal,
       onShard: (shard, output, worker) => {
@@ -36,7 +34,6 @@ export function queuedFitPool(db: Db, queue: Queue, run: string, onShard?: (work
   };
   return {
     threads: THREADS_EQUIVALENT,
-    shards: () => shards,
     runBatch: (batch, signal) =>
       new Promise<JobResult[]>((resolve, reject) => {
         // the engine sends all batches of a round in one tick, with the same contexts
@@ -46,15 +43,4 @@ export function queuedFitPool(db: Db, queue: Queue, run: string, onShard?: (work
       }),
     destroy: async () => {},
   };
-}
-
-/** The context with its typed arrays copied out of shared memory, so that it can be serialised. */
-function plainCopy(ctx: FitContext): FitContext {
-  return copy(ctx) as FitContext;
-}
-function copy(x: unknown): unknown {
-  if (ArrayBuffer.isView(x) && !(x instanceof DataView)) return (x as unknown as { slice: () => unknown }).slice();
-  if (Array.isArray(x)) return x.map(copy);
-  if (x !== null && typeof x === 'object') return Object.fromEntries(Object.entries(x).map(([k, v]) => [k, copy(v)]));
-  return x;
 }

@@ -1,6 +1,7 @@
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
-import { fits, toyRuns } from '../db/schema';
+import { fits } from '../db/schema';
+import { toyRunsTable, type JobTable } from '../jobs/job-rows';
 import type { FitRunner } from '../jobs/fit-runner';
 import type { ToyRunner } from '../jobs/toy-runner';
 import { sweepLostCoordinators } from './heartbeat';
@@ -12,7 +13,7 @@ import { QUEUES, type Queue } from './queue';
  * worker reads within a second. Nothing runs here but the per-parameter diagnosis, which
  * answers a request and keeps its own thread.
  */
-function queuedRows(db: Db, queue: Queue, table: typeof fits, name: string, data: (id: number) => object) {
+function queuedRows(db: Db, queue: Queue, table: JobTable, name: string, data: (id: number) => object) {
   const open = inArray(table.state, ['queued', 'running']);
   return {
     enqueue: async (id: number) => {
@@ -67,5 +68,5 @@ export function queuedFitRunner(db: Db, queue: Queue, local: FitRunner, log: (li
 }
 
 export function queuedToyRunner(db: Db, queue: Queue): ToyRunner {
-  return { ...queuedRows(db, queue, toyRuns as unknown as typeof fits, QUEUES.toys, (toyRunId) => ({ toyRunId })), close: async () => {} };
+  return { ...queuedRows(db, queue, toyRunsTable, QUEUES.toys, (toyRunId) => ({ toyRunId })), close: async () => {} };
 }

@@ -1,6 +1,6 @@
 import { randomUUID } from 'node:crypto';
 import path from 'node:path';
-import { and, eq } from 'drizzle-orm';
+import { eq } from 'drizzle-orm';
 import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
 import { fitOptionsSchema, type FitOptions } from '@shared/schemas/fit';
 import { toyHypothesisSchema, toySummarySchema, type ToyHypothesis } from '@shared/schemas/toys';
@@ -9,7 +9,8 @@ import { fits, modelVersions, toyRuns } from '../db/schema';
 import { FitCancelledError, FitInputError } from '../fit/errors';
 import { siblingWorker, workerPool } from '../fit/pool';
 import { prepareToys, summariseToys, type ToyOutcome, type ToyPlan, type ToyTask } from '../fit/toys';
-import { abortWhenCancelled, type JobTable } from '../jobs/local-runner';
+import { jobRow, toyRunsTable } from '../jobs/job-rows';
+import { abortWhenCancelled } from '../jobs/local-runner';
 import { QUEUES, runSharded, ShardFailedError, type Queue } from './queue';
 
 /** Toys per batch: a batch is the unit a thread or a worker takes; the numbers do not depend on it. */
@@ -35,8 +36,7 @@ export const TOYS_INTERRUPTED = 'Interrupted: the server stopped while these toy
 /**
  * One toy run from its row to its stored summary: the fit's model and options, the plan (the
  * reference fit refitted, the generation point), the batches, then the summary. Progress is the
- * toys done over the toys asked for. The final write applies only while the row is running, so
- * a cancellation recorded meanwhile stands.
+ * toys done over the toys asked for; the row's lifecycle is jobRow's.
  */
 export async function executeToys(
   db: Db,
@@ -47,19 +47,10 @@ export async function executeToys(
   const { signal, log } = control;
   const [run] = await db.select().from(toyRuns).where(eq(toyRuns.id, id));
   if (!run || run.state !== 'queued') return;
-  const started = await db
-    .update(toyRuns)
-    .set({ state: 'running', startedAt: new Date(), progress: 0, stage: 'refitting the reference', failure: null, coordinatedBy: control.coordinator ?? null })
-    .where(and(eq(toyRuns.id, id), eq(toyRuns.state, 'queued')))
-    .returning({ id: toyRuns.id });
-  if (started.length === 0) return;
-  const finish = (values: Partial<typeof toyRuns.$inferInsert>) =>
-    db
-      .update(toyRuns)
-      .set({ finishedAt: new Date(), ...values })
-      .where(and(eq(toyRuns.id, id), eq(toyRuns.state, 'running')));
+  const row = jobRow(db, toyRunsTable, id);
+  if (!(await row.start({ stage: 'refitting the reference', coordinatedBy: control.coordinator ?? null }))) return;
   const workers: Record<string, number> = {};
-  let writes = Promise.resolve();
+  const finish = (values: Partial<typeof toyRuns.$inferInsert>) => row.finish({ ...values, workers });
   try {
     const [fit] = await db.select({ options: fits.options, versionId: fits.modelVersionId, state: fits.state }).from(fits).where(eq(fits.id, run.fitId));
     if (!fit || fit.state !== 'succeeded') throw new FitInputError('the fit these toys belong to has no converged result any more');
@@ -70,36 +61,25 @@ export async function executeToys(
     if (signal.aborted) throw new FitCancelledError();
 
     let done = 0;
-    let last = 0;
     const onBatch = (toys: number, worker: string) => {
       done += toys;
       workers[worker] = (workers[worker] ?? 0) + 1;
-      if (Date.now() - last < 300) return;
-      last = Date.now();
-      const progress = Math.min(0.99, done / run.count);
-      writes = writes
-        .then(() => db.update(toyRuns).set({ progress, stage: `${done} of ${run.count} toys` }).where(and(eq(toyRuns.id, id), eq(toyRuns.state, 'running'))))
-        .then(
-          () => {},
-          () => {},
-        );
+      row.progress(done / run.count, `${done} of ${run.count} toys`);
     };
     await db.update(toyRuns).set({ stage: `0 of ${run.count} toys` }).where(eq(toyRuns.id, id));
     const input: ToyInput = { model, options, plan, seed: run.seed, key: `toys:${id}:${randomUUID()}` };
     const outcomes = (await executor.runBatches(input, toyBatches(run.count), onBatch, signal)).flat();
-    await writes;
     const summary = toySummarySchema.parse(summariseToys(plan, outcomes, run.count));
-    await finish({ state: 'succeeded', summary, progress: 1, stage: 'done', workers });
+    await finish({ state: 'succeeded', summary, progress: 1, stage: 'done' });
   } catch (e) {
-    await writes;
-    if (e instanceof FitCancelledError || signal.aborted) await finish({ state: 'cancelled', failure: `Cancelled by ${control.cancelledBy() ?? 'a user'}.`, stage: 'cancelled', workers });
-    else if (e instanceof FitInputError) await finish({ state: 'failed', failure: `No toys can be drawn: ${e.message}.`, stage: 'failed', workers });
+    if (e instanceof FitCancelledError || signal.aborted) await finish({ state: 'cancelled', failure: `Cancelled by ${control.cancelledBy() ?? 'a user'}.`, stage: 'cancelled' });
+    else if (e instanceof FitInputError) await finish({ state: 'failed', failure: `No toys can be drawn: ${e.message}.`, stage: 'failed' });
     else if (e instanceof ShardFailedError) {
       log(`[toys ${id}] ${e.message}`);
-      await finish({ state: 'failed', failure: `A batch of toys failed on the workers, and again when retried: ${e.message}. Tell an admin; the workers' logs say more.`, stage: 'failed', workers });
+      await finish({ state: 'failed', failure: `A batch of toys failed on the workers, and again when retried: ${e.message}. Tell an admin; the workers' logs say more.`, stage: 'failed' });
     } else {
       log(`[toys ${id}] ${e instanceof Error ? (e.stack ?? e.message) : String(e)}`);
-      await finish({ state: 'failed', failure: 'The toys stopped on an internal error; it has been logged. Try again, and tell an admin if it persists.', stage: 'failed', workers });
+      await finish({ state: 'failed', failure: 'The toys stopped on an internal error; it has been logged. Try again, and tell an admin if it persists.', stage: 'failed' });
     }
   }
 }
@@ -181,7 +161,7 @@ export function toyBatchWorker(threads: number, niceness: number) {
 
 /** A toy run taken from the queue by a worker; the run's row is checked every second for a cancellation. */
 export async function coordinateToys(db: Db, queue: Queue, id: number, log: (line: string) => void, worker: string) {
-  const watch = abortWhenCancelled(db, toyRuns as unknown as JobTable, id);
+  const watch = abortWhenCancelled(db, toyRunsTable, id);
   try {
     await executeToys(db, id, queuedToyExecutor(db, queue), { signal: watch.signal, log, cancelledBy: () => undefined, coordinator: worker });
   } finally {
