@@ -2,7 +2,7 @@ import { useRef } from 'react';
 import { scaleLinear } from 'd3-scale';
 import type { FitResultHead } from '@shared/schemas/fits';
 import { BottomAxis } from '../../../components/charts/axes';
-import { ExportButtons } from '../../../components/charts/export-buttons';
+import { ChartFigure } from '../../../components/charts/chart-figure';
 import { Panel } from '../../../components/ui/page';
 import { theme } from '../../../lib/palette';
 import { formatFixed } from '../../../lib/stats-format';
@@ -47,11 +47,7 @@ export function GroupsChart({ bars, title }: { bars: GroupBar[]; title: string }
   const colour = { total: theme.ink, split: theme.teal, group: theme.plum } as const;
   const firstGroup = bars.findIndex((b) => b.kind === 'group');
   return (
-    <figure className="flex flex-col gap-1">
-      <div className="flex items-center justify-between gap-2">
-        <figcaption className="text-sm font-semibold text-ink">{title}</figcaption>
-        <ExportButtons title={title} svg={ref} />
-      </div>
+    <ChartFigure title={title} svg={ref}>
       <svg
         ref={ref}
         viewBox={`0 0 ${W} ${H}`}
@@ -79,7 +75,7 @@ export function GroupsChart({ bars, title }: { bars: GroupBar[]; title: string }
         })}
         <BottomAxis scale={x} y={M.top + bars.length * ROW} title="uncertainty on μ (multiples of the nominal signal)" />
       </svg>
-    </figure>
+    </ChartFigure>
   );
 }
 

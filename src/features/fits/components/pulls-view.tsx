@@ -4,7 +4,7 @@ import { scaleLinear } from 'd3-scale';
 import type { NuisanceReport } from '@shared/schemas/fit';
 import type { FitResultHead } from '@shared/schemas/fits';
 import { BottomAxis } from '../../../components/charts/axes';
-import { ExportButtons } from '../../../components/charts/export-buttons';
+import { ChartFigure } from '../../../components/charts/chart-figure';
 import { CheckboxField, SelectField } from '../../../components/ui/field';
 import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { theme } from '../../../lib/palette';
@@ -104,11 +104,7 @@ export function PullsChart({
   const y0 = M.top;
   const clampX = (v: number) => x(Math.max(-lim, Math.min(lim, v)));
   return (
-    <figure className="flex flex-col gap-1">
-      <div className="flex items-center justify-between gap-2">
-        <figcaption className="text-sm font-semibold text-ink">{title}</figcaption>
-        <ExportButtons title={title} svg={ref} />
-      </div>
+    <ChartFigure title={title} svg={ref}>
       <svg
         ref={ref}
         viewBox={`0 0 ${W} ${H}`}
@@ -240,7 +236,7 @@ export function PullsChart({
           held at its start value
         </li>
       </ul>
-    </figure>
+    </ChartFigure>
   );
 }
 

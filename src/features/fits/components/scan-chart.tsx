@@ -3,7 +3,7 @@ import { scaleLinear } from 'd3-scale';
 import { line } from 'd3-shape';
 import type { ParameterScan } from '@shared/schemas/fit';
 import { BottomAxis, GridLines, LeftAxis } from '../../../components/charts/axes';
-import { ExportButtons } from '../../../components/charts/export-buttons';
+import { ChartFigure } from '../../../components/charts/chart-figure';
 import { theme } from '../../../lib/palette';
 import { formatFixed } from '../../../lib/stats-format';
 
@@ -38,11 +38,7 @@ export function ScanChart({ scan, parameterLabel = 'μ' }: { scan: ParameterScan
   const lo68 = scan.crossings68.low;
   const hi68 = scan.crossings68.high;
   return (
-    <figure className="flex flex-col gap-1">
-      <div className="flex items-center justify-between gap-2">
-        <figcaption className="text-sm font-semibold text-ink">{title}</figcaption>
-        <ExportButtons title={title} svg={ref} />
-      </div>
+    <ChartFigure title={title} svg={ref}>
       <svg
         ref={ref}
         viewBox={`0 0 ${W} ${H}`}
@@ -74,6 +70,6 @@ export function ScanChart({ scan, parameterLabel = 'μ' }: { scan: ParameterScan
         <LeftAxis scale={y} x={M.left} title="q = 2ΔNLL" />
         <BottomAxis scale={x} y={H - M.bottom} title={parameterLabel} />
       </svg>
-    </figure>
+    </ChartFigure>
   );
 }

@@ -3,7 +3,7 @@ import { scaleLinear, scaleLog } from 'd3-scale';
 import { curveStepAfter, line } from 'd3-shape';
 import type { Histogram } from '@shared/schemas/toys';
 import { BottomAxis, GridLines, LeftAxis } from '../../../components/charts/axes';
-import { ExportButtons } from '../../../components/charts/export-buttons';
+import { ChartFigure } from '../../../components/charts/chart-figure';
 import { formatCount, formatEdge } from '../../../lib/format';
 import { theme } from '../../../lib/palette';
 import { uniformBins } from '../toy-stats';
@@ -92,11 +92,7 @@ export function ToyHistogramChart({
   ].filter((s): s is string => s !== null);
 
   return (
-    <figure className="flex flex-col gap-1">
-      <div className="flex items-center justify-between gap-2">
-        <figcaption className="text-sm font-semibold text-ink">{title}</figcaption>
-        <ExportButtons title={title} svg={ref} />
-      </div>
+    <ChartFigure title={title} svg={ref}>
       <svg
         ref={ref}
         viewBox={`0 0 ${W} ${H}`}
@@ -176,6 +172,6 @@ export function ToyHistogramChart({
           </li>
         )}
       </ul>
-    </figure>
+    </ChartFigure>
   );
 }
