@@ -9,7 +9,7 @@ import { toShared } from './fit/pool';
 import { coordinateFit } from './work/coordinate';
 import { QUEUES, startQueue, takeJobs, workShards } from './work/queue';
 import { failCoordinatedBy, startHeartbeat } from './work/heartbeat';
-import { coordinateToys, toyBatchWorker } from './work/toys';
+import { coordinateToys, toyBatchWorker, toyThreads } from './work/toys';
 
 /**
  * A worker process: takes fits, refit shards, toy runs and toy batches from the queue in the
@@ -31,7 +31,8 @@ async function main() {
   const queue = await startQueue(config.DATABASE_URL, log);
   const heartbeat = await startHeartbeat(database.db, config.DATABASE_URL, name, threads);
   const refits = createFitPool({ threads, niceness: config.FIT_NICENESS });
-  const toys = toyBatchWorker(threads, config.FIT_NICENESS);
+  // toy batches on T threads, and a thread for the plan of a toy run this worker coordinates
+  const toys = toyThreads(threads, config.FIT_NICENESS);
 
   const refitShards = await workShards<FitContext[], WorkerBatch['jobs'], unknown>(database.db, queue, {
     queue: QUEUES.refits,
@@ -42,7 +43,7 @@ async function main() {
     compute: (contexts, jobs) => refits.runBatch({ contexts, jobs }),
     log,
   });
-  const toyShards = await workShards(database.db, queue, { queue: QUEUES.toyBatch, worker: name, concurrency: threads, prepare: toys.prepare, compute: toys.compute, log });
+  const toyShards = await workShards(database.db, queue, { queue: QUEUES.toyBatch, worker: name, concurrency: threads, ...toyBatchWorker(toys), log });
   const fitJobs = takeJobs<{ fitId: number }>(queue, QUEUES.fit, 1, async (job) => {
     log(`fit ${job.data.fitId}: started${job.retryCount ? ' (retry)' : ''}`);
     await coordinateFit(database.db, queue, job.data.fitId, log, name);
@@ -50,7 +51,7 @@ async function main() {
   }, log);
   const toyJobs = takeJobs<{ toyRunId: number }>(queue, QUEUES.toys, 1, async (job) => {
     log(`toy run ${job.data.toyRunId}: started${job.retryCount ? ' (retry)' : ''}`);
-    await coordinateToys(database.db, queue, job.data.toyRunId, log, name);
+    await coordinateToys(database.db, queue, toys, job.data.toyRunId, log, name);
     log(`toy run ${job.data.toyRunId}: done`);
   }, log);
   console.log(`Plumbline worker ${name} is taking work from ${redacted(config.DATABASE_URL)} with ${threads} engine thread(s).`);

@@ -8,7 +8,7 @@ import type { Db } from '../db/client';
 import { fits, modelVersions, toyRuns } from '../db/schema';
 import { FitCancelledError, FitInputError } from '../fit/errors';
 import { siblingWorker, workerPool } from '../fit/pool';
-import { prepareToys, summariseToys, type ToyOutcome, type ToyPlan, type ToyTask } from '../fit/toys';
+import { summariseToys, type ToyOutcome, type ToyPlan, type ToyTask } from '../fit/toys';
 import { jobRow, toyRunsTable } from '../jobs/job-rows';
 import { abortWhenCancelled } from '../jobs/local-runner';
 import { QUEUES, runSharded, ShardFailedError, type Queue } from './queue';
@@ -133,10 +133,10 @@ function cancelled(signal: AbortSignal) {
   };
 }
 
-/** Batches through the queue: the plan is made by the coordinating worker, every worker takes batches. */
-export function queuedToyExecutor(db: Db, queue: Queue): ToyExecutor {
+/** Batches through the queue: the plan is made on the coordinating worker's plan thread, every worker takes batches. */
+export function queuedToyExecutor(db: Db, queue: Queue, threads: ReturnType<typeof toyThreads>): ToyExecutor {
   return {
-    prepare: async (model, options, hypothesis) => prepareToys(model, options, hypothesis),
+    prepare: (model, options, hypothesis, signal) => threads.prepare(model, options, hypothesis, signal).catch(cancelled(signal)),
     runBatches: (input, batches, onBatch, signal) =>
       runSharded<number[], ToyOutcome[]>(db, queue, {
         run: input.key!,
@@ -149,21 +149,19 @@ export function queuedToyExecutor(db: Db, queue: Queue): ToyExecutor {
   };
 }
 
-/** A worker's side of toy batches taken from the queue. */
-export function toyBatchWorker(threads: number, niceness: number) {
-  const pool = toyThreads(threads, niceness);
+/** A worker's side of toy batches taken from the queue, on its toy threads. */
+export function toyBatchWorker(pool: ReturnType<typeof toyThreads>) {
   return {
     prepare: (input: unknown) => input as ToyInput,
     compute: (input: ToyInput, indices: number[]) => pool.run({ ...input, indices }),
-    close: pool.close,
   };
 }
 
 /** A toy run taken from the queue by a worker; the run's row is checked every second for a cancellation. */
-export async function coordinateToys(db: Db, queue: Queue, id: number, log: (line: string) => void, worker: string) {
+export async function coordinateToys(db: Db, queue: Queue, threads: ReturnType<typeof toyThreads>, id: number, log: (line: string) => void, worker: string) {
   const watch = abortWhenCancelled(db, toyRunsTable, id);
   try {
-    await executeToys(db, id, queuedToyExecutor(db, queue), { signal: watch.signal, log, cancelledBy: () => undefined, coordinator: worker });
+    await executeToys(db, id, queuedToyExecutor(db, queue, threads), { signal: watch.signal, log, cancelledBy: () => undefined, coordinator: worker });
   } finally {
     watch.stop();
   }
