@@ -31,8 +31,10 @@ const envSchema = z.object({
   FIT_THREADS: z.coerce.number().int().min(1).max(256).optional(),
   /** CPU niceness of the fit threads (0 normal … 19 lowest): requests come before fits. */
   FIT_NICENESS: z.coerce.number().int().min(0).max(19).default(15),
-  /** Sign-in attempts per IP per 15 minutes. */
+  /** Failed sign-ins per address (IP) per 15 minutes; successful ones do not count. */
   SIGN_IN_LIMIT: z.coerce.number().int().min(1).default(20),
+  /** All sign-in attempts per address (IP) per 15 minutes, failed or not: a cap well above a team's use. */
+  SIGN_IN_ATTEMPT_LIMIT: z.coerce.number().int().min(1).default(500),
 });
 
 export type Config = z.infer<typeof envSchema> & { dataDir: string; sessionSecret: string; secureCookies: boolean };
@@ -56,5 +58,5 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
 
 /** Config for tests: in-memory database, random secret. */
 export function testConfig(overrides: Partial<Config> = {}): Config {
-  return { ...loadConfig({ NODE_ENV: 'test' }), sessionSecret: randomBytes(32).toString('hex'), SIGN_IN_LIMIT: 1000, ...overrides };
+  return { ...loadConfig({ NODE_ENV: 'test' }), sessionSecret: randomBytes(32).toString('hex'), SIGN_IN_LIMIT: 1000, SIGN_IN_ATTEMPT_LIMIT: 100_000, ...overrides };
 }

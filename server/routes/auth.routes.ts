@@ -13,12 +13,21 @@ export async function me(ctx: AppContext, user: Express.User): Promise<Me> {
 }
 
 export function authRoutes(ctx: AppContext, passport: PassportStatic): ApiRoute[] {
-  const signInLimit = rateLimit({
-    windowMs: 15 * 60 * 1000,
+  // failures are counted per address, so that a person who signs in often is never refused; a
+  // separate, higher cap on every attempt keeps one address from sending sign-ins without end
+  const limited = (message: string): RequestHandler => (_req, _res, next) => next(new AppError(429, message, 'rate_limited'));
+  const window = { windowMs: 15 * 60 * 1000, standardHeaders: 'draft-8' as const, legacyHeaders: false };
+  const failedSignIns = rateLimit({
+    ...window,
     limit: ctx.config.SIGN_IN_LIMIT,
-    standardHeaders: 'draft-8',
-    legacyHeaders: false,
-    handler: (_req, _res, next) => next(new AppError(429, 'Too many sign-in attempts from this address. Wait 15 minutes and try again.', 'rate_limited')),
+    skipSuccessfulRequests: true,
+    handler: limited(`Too many failed sign-ins from this address (${ctx.config.SIGN_IN_LIMIT} in 15 minutes). Wait 15 minutes and try again.`),
+  });
+  const allSignIns = rateLimit({
+    ...window,
+    limit: ctx.config.SIGN_IN_ATTEMPT_LIMIT,
+    identifier: 'all-sign-ins',
+    handler: limited(`Too many sign-in attempts from this address (${ctx.config.SIGN_IN_ATTEMPT_LIMIT} in 15 minutes). Wait 15 minutes and try again.`),
   });
 
   const signIn: RequestHandler = (req, res, next) => {
@@ -39,7 +48,7 @@ export function authRoutes(ctx: AppContext, passport: PassportStatic): ApiRoute[
     route('get', '/api/auth/csrf', (req, res) => {
       res.json({ token: csrf.generateToken(req) });
     }),
-    route('post', '/api/auth/sign-in', signInLimit, signIn),
+    route('post', '/api/auth/sign-in', allSignIns, failedSignIns, signIn),
     route('post', '/api/auth/sign-out', (req, res, next) => {
       req.logOut((err) => {
         if (err) return next(err);

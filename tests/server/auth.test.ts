@@ -157,11 +157,31 @@ describe('bad requests get a 4xx JSON message and write nothing', () => {
 });
 
 describe('sign-in rate limit', () => {
-  it('answers 429 once an address has used up its sign-in attempts', async () => {
+  it('answers 429 once an address has used up its failed sign-ins, and then refuses even the right password', async () => {
     const t = await createTestApp({ SIGN_IN_LIMIT: 3 });
     const statuses: number[] = [];
     for (let i = 0; i < 4; i++) statuses.push((await new Client(t.app).signIn(DEMO.reader, 'wrong-password')).status);
     expect(statuses).toEqual([401, 401, 401, 429]);
+    const right = await new Client(t.app).signIn(DEMO.reader);
+    expect(right.status).toBe(429);
+    expect(right.body.error.message).toMatch(/Too many failed sign-ins from this address \(3 in 15 minutes\)/);
+    await t.close();
+  });
+
+  it('never counts a successful sign-in against the limit of failures', async () => {
+    const t = await createTestApp({ SIGN_IN_LIMIT: 3 });
+    const statuses: number[] = [];
+    for (let i = 0; i < 12; i++) statuses.push((await new Client(t.app).signIn(DEMO.reader)).status);
+    expect(statuses).toEqual(Array(12).fill(200));
+    expect((await new Client(t.app).signIn(DEMO.reader, 'wrong-password')).status).toBe(401);
+    await t.close();
+  });
+
+  it('keeps a separate, higher cap on every attempt from one address', async () => {
+    const t = await createTestApp({ SIGN_IN_LIMIT: 3, SIGN_IN_ATTEMPT_LIMIT: 5 });
+    const statuses: number[] = [];
+    for (let i = 0; i < 6; i++) statuses.push((await new Client(t.app).signIn(DEMO.reader)).status);
+    expect(statuses).toEqual([200, 200, 200, 200, 200, 429]);
     await t.close();
   });
 });
