@@ -41,6 +41,15 @@ export function entryPermissions(access: Access, entry: Pick<EntryRow, 'ownerId'
   };
 }
 
+/**
+ * Rights before state: whether the caller could edit this entry in some state (owner or analyst).
+ * A caller without the right hears 403; one with it, whose entry is in the wrong state, hears 409.
+ */
+function assertMayEdit(access: Access, entry: Pick<EntryRow, 'ownerId' | 'state'>, what: 'edit' | 'upload', message: string) {
+  if (!entryPermissions(access, { ...entry, state: 'draft' })[what]) throw forbidden(message);
+  if (entry.state === 'retired') throw conflict(`This entry is retired; reopen it before ${what === 'edit' ? 'changing it' : 'uploading'}.`);
+}
+
 const snapshot = (e: EntryRow, group: string | null) => ({
   label: e.label,
   group,
@@ -155,7 +164,7 @@ export async function updateEntry(ctx: AppContext, access: Access, key: string, 
   const input = entryPatchSchema.parse(body);
   const entry = await findEntry(ctx.db, access.analysis.id, key);
   const rights = entryPermissions(access, entry);
-  if (!rights.edit) throw forbidden(entry.state === 'retired' ? 'This entry is retired; reopen it before editing.' : 'Only the entry\u2019s owner or an analyst can edit it.');
+  assertMayEdit(access, entry, 'edit', 'Only the entry\u2019s owner or an analyst can edit it.');
   if (input.version !== entry.version) throw conflict(`Someone else changed "${key}" since you opened it (version ${entry.version}, yours ${input.version}). Reload it, then make your change again.`);
   if (input.ownerId !== undefined && input.ownerId !== entry.ownerId) {
     if (!rights.reassign) throw forbidden('Only an analyst can give an entry another owner.');
@@ -210,9 +219,10 @@ export async function reviewEntry(ctx: AppContext, access: Access, key: string, 
   const { action, comment } = reviewActionSchema.parse(body);
   const step = REVIEW[action];
   const entry = await findEntry(ctx.db, access.analysis.id, key);
+  // rights first: a caller who may not take this step in any state it applies to hears 403, not the entry's state
+  if (!step.from.some((state) => entryPermissions(access, { ...entry, state })[step.allowed])) throw forbidden();
   if (!step.from.includes(entry.state))
     throw conflict(`"${key}" is ${entry.state.replace('_', ' ')}; "${action.replace('_', ' ')}" applies only to an entry that is ${step.from.map((s) => s.replace('_', ' ')).join(' or ')}.`);
-  if (!entryPermissions(access, entry)[step.allowed]) throw forbidden();
   if (action === 'send_back' && !comment.trim()) throw badRequest('Say what must change: sending an entry back needs a comment.', [{ path: ['comment'], message: 'is required when sending back' }]);
   await ctx.db.transaction(async (tx) => {
     await tx.update(entries).set({ state: step.to, version: entry.version + 1, updatedAt: new Date() }).where(eq(entries.id, entry.id));
@@ -261,7 +271,7 @@ export async function uploadVariations(
   baseUrl: string,
 ): Promise<VariationPreview> {
   const entry = await findEntry(ctx.db, access.analysis.id, key);
-  if (!entryPermissions(access, entry).upload) throw forbidden(entry.state === 'retired' ? 'This entry is retired; reopen it before uploading.' : 'Only the entry\u2019s owner or an analyst can upload its variations.');
+  assertMayEdit(access, entry, 'upload', 'Only the entry\u2019s owner or an analyst can upload its variations.');
   const options = parseOptions(rawOptions);
   const upload = readUpload(file);
   const model = indexModel(await loadModelRows(ctx.db, access.analysis.id));
@@ -308,7 +318,7 @@ export async function uploadVariations(
 
 export async function deleteEffect(ctx: AppContext, access: Access, key: string, effectId: number, baseUrl: string): Promise<EntryDetail> {
   const entry = await findEntry(ctx.db, access.analysis.id, key);
-  if (!entryPermissions(access, entry).edit) throw forbidden('Only the entry\u2019s owner or an analyst can remove its effects.');
+  assertMayEdit(access, entry, 'edit', 'Only the entry\u2019s owner or an analyst can remove its effects.');
   const [effect] = await ctx.db.select().from(effects).where(and(eq(effects.id, effectId), eq(effects.entryId, entry.id)));
   if (!effect) throw notFound(`Effect ${effectId} of "${key}"`);
   const model = indexModel(await loadModelRows(ctx.db, access.analysis.id));

@@ -130,8 +130,9 @@ describe('register entries and their review', () => {
 
   it('retires and reopens an entry; a retired entry is read-only and left out of the model export', async () => {
     expect((await analyst.send('post', `${A}/entries/flare_timing/review`, { action: 'retire' })).body.state).toBe('retired');
+    // the owner has the right to edit: the entry's state refuses it (rights first, then state)
     const locked = await contact.send('patch', `${A}/entries/flare_timing`, { label: 'x', version: 99 });
-    expect(locked.status).toBe(403);
+    expect(locked.status).toBe(409);
     expect(locked.body.error.message).toMatch(/retired/);
     const exported = (await analyst.get(`${A}/exchange`)).body;
     expect(exported.systematics.map((s: { key: string }) => s.key)).not.toContain('flare_timing');
