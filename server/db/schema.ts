@@ -1,4 +1,5 @@
 
+import { sql } from 'drizzle-orm';
 import {
   boolean,
   customType,
@@ -61,6 +62,14 @@ export const analyses = pgTable('analyses', {
   muMax: doublePrecision('mu_max').notNull().default(20),
   /** Constraint below this is flagged over-constrained (MODEL.md §6). */
   overConstraintThreshold: doublePrecision('over_constraint_threshold').notNull().default(0.5),
+  /**
+   * Keys of every region that has been a signal region while the analysis was not unblinded (kept by
+   * triggers in drizzle/0008): their observed counts stay withheld until unblinding, whatever
+   * their role now, and in every version frozen earlier.
+   */
+  blindedRegions: text('blinded_regions').array().notNull().default(sql`'{}'::text[]`),
+  /** Conveners who must approve an unblinding request (1 or 2), each other than the requester. */
+  unblindingApprovals: integer('unblinding_approvals').notNull().default(1),
   createdAt: createdAt(),
 });
 
@@ -70,6 +79,10 @@ export const memberships = pgTable(
     analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
     userId: integer('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
     role: memberRole('role').notNull(),
+    /** When the current role was given: a convener approves only a request made after it. */
+    roleSince: timestamp('role_since', { withTimezone: true, mode: 'date' }).notNull().defaultNow(),
+    /** Who added the member or gave the current role (the inviter, for an accepted invitation). */
+    grantedById: integer('granted_by_id').references(() => users.id, { onDelete: 'set null' }),
     createdAt: createdAt(),
   },
   (t) => [primaryKey({ columns: [t.analysisId, t.userId] })],
@@ -258,6 +271,8 @@ export const fits = pgTable(
     modelVersionId: integer('model_version_id').notNull().references(() => modelVersions.id),
     label: varchar('label', { length: 200 }).notNull().default(''),
     options: jsonb('options').notNull(),
+    /** Regions that enter its likelihood (by its version's roles and its options), fixed at start. */
+    regionsInFit: text('regions_in_fit').array().notNull().default(sql`'{}'::text[]`),
     state: fitState('state').notNull().default('queued'),
     progress: doublePrecision('progress').notNull().default(0),
     stage: varchar('stage', { length: 100 }).notNull().default(''),

@@ -1,5 +1,6 @@
 /** The fit engine's public API (MODEL.md; docs/fit-engine.md). */
 export { fitModel, type FitControl } from './fit';
+export { regionEntersFit } from './problem';
 export { scanParameter } from './parameter-scan';
 export { createFitPool, type FitPool, type FitPoolOptions } from './pool';
 export { FitCancelledError, FitInputError } from './errors';

@@ -16,8 +16,7 @@ export function buildProblem(model: ExchangeModel, options: Pick<FitOptions, 'da
   options.excludeRegions.forEach((key, i) => {
     if (!keys.has(key)) throw new FitInputError(`unknown region "${key}" in the regions to exclude`, ['excludeRegions', i]);
   });
-  const excluded = new Set(options.excludeRegions);
-  const inFit = (key: string, role: string) => !excluded.has(key) && (role === 'control' || (role === 'signal' && !options.controlOnly));
+  const inFit = regionEntersFit(options);
   const compiled = buildModel(model, inFit);
   if (!compiled.regions.some((r) => r.inFit)) throw new FitInputError('no signal or control region is left in the fit', ['regions']);
 
@@ -36,6 +35,12 @@ export function buildProblem(model: ExchangeModel, options: Pick<FitOptions, 'da
     });
   }
   return problem;
+}
+
+/** Whether a region enters the likelihood (MODEL.md §4): signal and control regions, less those left out. */
+export function regionEntersFit(options: Pick<FitOptions, 'controlOnly' | 'excludeRegions'>) {
+  const excluded = new Set(options.excludeRegions);
+  return (key: string, role: string) => !excluded.has(key) && (role === 'control' || (role === 'signal' && !options.controlOnly));
 }
 
 /**

@@ -153,3 +153,38 @@ export async function notifyUnblindingDecided(ctx: AppContext, p: { baseUrl: str
     ].join('\n'),
   });
 }
+
+/** One of two required approvals: the conveners and analysts hear that a second is awaited. */
+export async function notifyUnblindingApprovedOnce(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; by: string; note: string }) {
+  const to = [...new Set([...(await emailsOf(ctx, p.analysis.id, 'analyst')), ...(await emailsOf(ctx, p.analysis.id, 'convener'))])];
+  await ctx.mailer.send({
+    to,
+    analysisId: p.analysis.id,
+    subject: `[${p.analysis.slug}] Unblinding approved by ${p.by}; a second convener must approve`,
+    text: [
+      `${p.by} approved unblinding "${p.analysis.name}". This analysis needs two conveners to approve: it stays blinded until another convener does.`,
+      p.note ? `\n${p.note}` : '',
+      '',
+      `${p.baseUrl}/a/${p.analysis.slug}`,
+    ].join('\n'),
+  });
+}
+
+/**
+ * An admin changed their own membership of a blinded analysis, or made someone a convener of it:
+ * every convener is told.
+ */
+export async function notifyAdminMembershipChange(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; own: boolean; text: string }) {
+  await ctx.mailer.send({
+    to: await emailsOf(ctx, p.analysis.id, 'convener'),
+    analysisId: p.analysis.id,
+    subject: p.own ? `[${p.analysis.slug}] An admin changed their own membership of this blinded analysis` : `[${p.analysis.slug}] An admin gave the convener role in this blinded analysis`,
+    text: [
+      p.text,
+      '',
+      'Admins manage memberships of every analysis. While an analysis is blinded, a change an admin makes to their own membership, and every convener role an admin gives, is announced to every convener and written in the blinding log, so that no one stands on both sides of an unblinding unseen.',
+      '',
+      `${p.baseUrl}/a/${p.analysis.slug}`,
+    ].join('\n'),
+  });
+}

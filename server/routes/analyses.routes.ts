@@ -4,6 +4,7 @@ import { createAnalysis, getOverview, listAnalyses } from '../services/analyses.
 import { addMember, changeRole, listMembers, removeMember } from '../services/members.service';
 import { getModelEncoded } from '../services/model.service';
 import { listEntriesEncoded } from '../services/register.service';
+import { baseUrl } from './base-url';
 import { sendEncoded } from './encoded';
 import { idParam, route, type ApiRoute } from './route';
 
@@ -24,13 +25,13 @@ export const analysesRoutes = (ctx: AppContext, auth: ReturnType<typeof authoriz
     res.json(await listMembers(ctx, accessOf(req)));
   }),
   route('post', '/api/analyses/:slug/members', auth.may('members.manage'), async (req, res) => {
-    res.status(201).json(await addMember(ctx, accessOf(req), req.body));
+    res.status(201).json(await addMember(ctx, accessOf(req), req.body, baseUrl(ctx, req)));
   }),
   route('patch', '/api/analyses/:slug/members/:userId', auth.may('members.manage'), async (req, res) => {
-    res.json(await changeRole(ctx, accessOf(req), userIdParam.parse(req.params.userId), req.body));
+    res.json(await changeRole(ctx, accessOf(req), userIdParam.parse(req.params.userId), req.body, baseUrl(ctx, req)));
   }),
   route('delete', '/api/analyses/:slug/members/:userId', auth.may('members.manage'), async (req, res) => {
-    await removeMember(ctx, accessOf(req), userIdParam.parse(req.params.userId));
+    await removeMember(ctx, accessOf(req), userIdParam.parse(req.params.userId), baseUrl(ctx, req));
     res.status(204).end();
   }),
 

@@ -1,6 +1,6 @@
 import type { AppContext } from '../context';
 import { accessOf, type authorizer } from '../auth/authorize';
-import { blindingLog, decideUnblinding, requestUnblinding } from '../services/blinding.service';
+import { blindingLog, changeBlindingSettings, decideUnblinding, requestUnblinding } from '../services/blinding.service';
 import { diagnoseInFit } from '../services/diagnosis.service';
 import { answerQuestion, getQuestion, listQuestions, raiseQuestion, stepQuestion } from '../services/questions.service';
 import { baseUrl } from './base-url';
@@ -42,5 +42,8 @@ export const reviewRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer
   }),
   route('post', '/api/analyses/:slug/blinding/decision', auth.may('blinding.decide'), async (req, res) => {
     res.json(await decideUnblinding(ctx, accessOf(req), req.body, baseUrl(ctx, req)));
+  }),
+  route('put', '/api/analyses/:slug/blinding/settings', auth.may('blinding.decide'), async (req, res) => {
+    res.json(await changeBlindingSettings(ctx, accessOf(req), req.body));
   }),
 ];

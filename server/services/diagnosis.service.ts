@@ -8,8 +8,8 @@ import { entries, modelVersions, users } from '../db/schema';
 import { conflict, notFound } from '../errors';
 import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
 import { keptResults } from '../kept';
-import { isWithheld } from './blinding.service';
-import { findFit, storedHead, storedPart, summaryOf } from './fits.service';
+import { isWithheld, withheldResultMessage } from './blinding.service';
+import { findFit, storedHead, storedPart, summaryOf, withheldReadBy } from './fits.service';
 
 /**
  * The diagnosis of one nuisance parameter in one succeeded fit: the engine's numbers
@@ -32,6 +32,8 @@ const numbersFor = (ctx: AppContext, fitId: number, versionId: number, options: 
 export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: number, parameter: string): Promise<Diagnosis> {
   const row = await findFit(ctx, access, fitId);
   if (row.fit.state !== 'succeeded') throw conflict(`Fit ${fitId} has ${row.fit.state === 'failed' ? 'failed' : `not succeeded (${row.fit.state})`}: there is nothing to diagnose.`);
+  const withheld = withheldReadBy(access.analysis, row.fit);
+  if (withheld.length) throw conflict(withheldResultMessage(withheld));
   const result = (await storedHead(ctx, fitId))!;
   if (result.status !== 'converged') throw conflict(`Fit ${fitId} did not converge: there is nothing to diagnose.`);
   const report = result.nuisance.find((n) => n.name === parameter);
@@ -49,7 +51,7 @@ export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: numb
   const observed = result.data.dataset === 'observed';
   const regions: DiagnosisRegion[] = numbers.regions.map((r) => {
     const spec = specs.find((x) => x.key === r.region)!;
-    const hidden = observed && isWithheld(access.analysis, { role: r.role });
+    const hidden = observed && isWithheld(access.analysis, { key: r.region, role: r.role });
     return {
       region: r.region,
       label: spec.label ?? r.region,
@@ -101,7 +103,7 @@ export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: numb
     scan: numbers.scan,
   };
   return {
-    fit: summaryOf(row.fit, row.version, row.by),
+    fit: summaryOf(access.analysis, row.fit, row.version, row.by),
     parameter: { name: parameter, label: p.label, group: report.group, entry: entry ? { key: entry.key, owner: entry.owner } : null },
     value: base.value,
     error: base.error,

@@ -9,14 +9,26 @@ import { fits, modelVersions, users } from '../db/schema';
 import { conflict, notFound } from '../errors';
 import { keptResults } from '../kept';
 import { encodeJson, type Encoded } from '../routes/encoded';
-import { isWithheld } from './blinding.service';
+import { regionEntersFit } from '../fit';
+import { isWithheld, withheldInFit, withheldResultMessage, type BlindingRule } from './blinding.service';
 import { findVersion } from './versions.service';
 import { cancelJob } from '../jobs/job-rows';
 import { untilStopped } from '../jobs/local-runner';
 
 type FitRow = Omit<typeof fits.$inferSelect, 'result'>;
 
-export function summaryOf(fit: FitRow, version: number, createdBy: string | null): FitSummary {
+/**
+ * The blinded regions whose observed counts a stored fit read (a fit made before the region's
+ * data were blinded, or through a version frozen with another role): while any remain blinded,
+ * none of its numbers leave the server.
+ */
+export function withheldReadBy(analysis: BlindingRule, fit: Pick<FitRow, 'options' | 'regionsInFit'>) {
+  if (analysis.blinding === 'unblinded' || (fit.options as { dataset?: string }).dataset !== 'observed') return [];
+  return fit.regionsInFit.filter((key) => analysis.blindedRegions.includes(key));
+}
+
+export function summaryOf(analysis: BlindingRule, fit: FitRow, version: number, createdBy: string | null): FitSummary {
+  const withheld = withheldReadBy(analysis, fit);
   return {
     id: fit.id,
     label: fit.label,
@@ -30,7 +42,8 @@ export function summaryOf(fit: FitRow, version: number, createdBy: string | null
     createdBy,
     startedAt: fit.startedAt?.toISOString() ?? null,
     finishedAt: fit.finishedAt?.toISOString() ?? null,
-    headline: fit.state === 'succeeded' ? (fit.headline ?? null) : null,
+    headline: fit.state === 'succeeded' && !withheld.length ? (fit.headline ?? null) : null,
+    withheld: withheld.length ? withheldResultMessage(withheld) : null,
   };
 }
 
@@ -73,14 +86,12 @@ export async function storedPart<K extends FitPartName>(ctx: AppContext, id: num
   return { stored: !!row?.stored, part: row?.part ?? null };
 }
 
-/** The region keys whose observed counts are withheld now (blinded analysis, signal regions). */
+/** The region keys whose observed counts are withheld now (regions blinded by the analysis). */
 function withheldRegions(access: Access, result: Pick<FitResult, 'yields'>) {
-  const roles = new Map<string, string>();
-  result.yields.prefit.forEach((r) => roles.set(r.region, r.role));
-  return new Set([...roles].filter(([, role]) => isWithheld(access.analysis, { role })).map(([key]) => key));
+  return new Set(result.yields.prefit.filter((r) => isWithheld(access.analysis, { key: r.region, role: r.role })).map((r) => r.region));
 }
 
-/** The blinding rule applied to a stored result: observed signal-region counts never leave while blinded. */
+/** The blinding rule applied to a stored result: observed counts of blinded regions never leave while blinded. */
 export function blindResult<R extends Pick<FitResult, 'data' | 'yields'>>(access: Access, result: R | null): R | null {
   if (!result || result.data.dataset !== 'observed') return result;
   const hidden = withheldRegions(access, result);
@@ -90,7 +101,7 @@ export function blindResult<R extends Pick<FitResult, 'data' | 'yields'>>(access
 
 export async function listFits(ctx: AppContext, access: Access): Promise<FitSummary[]> {
   const rows = await fitRows(ctx, access.analysis.id).orderBy(desc(fits.id));
-  return rows.map((r) => summaryOf(r.fit, r.version, r.by));
+  return rows.map((r) => summaryOf(access.analysis, r.fit, r.version, r.by));
 }
 
 /**
@@ -103,7 +114,8 @@ const encodedResponses = keptResults<Encoded>(24);
 const headOf = ({ yields: _y, gammas: { list: _l, ...gammas }, ...head }: StoredHead): FitResultHead => ({ ...head, gammas });
 
 export function getFitEncoded(ctx: AppContext, access: Access, id: number, part: 'head' | FitPartName = 'head'): Promise<Encoded> {
-  const key = `${access.analysis.id}:${id}:${access.analysis.blinding === 'unblinded' ? 'open' : 'blind'}:${part}`;
+  const rule = access.analysis.blinding === 'unblinded' ? 'open' : `blind(${access.analysis.blindedRegions.join(',')})`;
+  const key = `${access.analysis.id}:${id}:${rule}:${part}`;
   return encodedResponses(ctx.db, key, () => encodeFit(ctx, access, id, part));
 }
 
@@ -111,12 +123,14 @@ export function getFitEncoded(ctx: AppContext, access: Access, id: number, part:
 async function encodeFit(ctx: AppContext, access: Access, id: number, part: 'head' | FitPartName): Promise<{ value: Encoded; final: boolean }> {
   const row = await findFit(ctx, access, id);
   const active = row.fit.state === 'queued' || row.fit.state === 'running';
+  const summary = summaryOf(access.analysis, row.fit, row.version, row.by);
   if (active && part !== 'head') throw conflict(`Fit ${id} has not finished yet; its ${part} is there when it ends.`);
   if (part === 'head') {
     // the parts hold no observed counts: the blinding rule concerns the head's data only
-    const head = active ? null : blindResult(access, await storedHead(ctx, id));
-    return { value: await encodeJson({ ...summaryOf(row.fit, row.version, row.by), result: head && headOf(head) }), final: !active };
+    const head = active || summary.withheld ? null : blindResult(access, await storedHead(ctx, id));
+    return { value: await encodeJson({ ...summary, result: head && headOf(head) }), final: !active };
   }
+  if (summary.withheld) throw conflict(summary.withheld);
   const { stored, part: value } = await storedPart(ctx, id, part);
   if (!stored) throw conflict(`Fit ${id} ended without a result (${row.fit.state}).`);
   return { value: await encodeJson(value), final: true };
@@ -131,21 +145,21 @@ export async function startFit(ctx: AppContext, access: Access, body: unknown): 
   const version = await findVersion(ctx, access.analysis.id, input.version);
   const model = version.model as ExchangeModel;
   const options = input.options;
-  if (options.dataset === 'observed') {
-    const included = model.regions.filter((r) => isWithheld(access.analysis, r) && !options.controlOnly && !options.excludeRegions.includes(r.key));
-    if (included.length)
-      throw conflict(
-        `This analysis is blinded: a fit to observed data may not include a signal region (${included.map((r) => r.key).join(', ')}). Fit the control regions only, or an Asimov dataset, until a convener approves unblinding.`,
-      );
-  }
+  const included = withheldInFit(access.analysis, model.regions, options);
+  if (included.length)
+    throw conflict(
+      `This analysis is blinded: a fit to observed data may not include a blinded region (${included.join(', ')}; a region that has been a signal region since blinding began stays blinded whatever role a version gives it). Fit the control regions only, or an Asimov dataset, until a convener approves unblinding.`,
+    );
   const unknown = options.excludeRegions.filter((k) => !model.regions.some((r) => r.key === k));
   if (unknown.length) throw conflict(`Model version ${version.number} has no region ${unknown.map((k) => `"${k}"`).join(', ')} to leave out.`);
+  const enters = regionEntersFit(options);
+  const regionsInFit = model.regions.filter((r) => enters(r.key, r.role)).map((r) => r.key);
   const [fit] = await ctx.db
     .insert(fits)
-    .values({ analysisId: access.analysis.id, modelVersionId: version.id, label: input.label, options, createdById: access.userId })
+    .values({ analysisId: access.analysis.id, modelVersionId: version.id, label: input.label, options, regionsInFit, createdById: access.userId })
     .returning();
   await ctx.fits.enqueue(fit.id);
-  return summaryOf(fit, version.number, access.userName);
+  return summaryOf(access.analysis, fit, version.number, access.userName);
 }
 
 export async function cancelFit(ctx: AppContext, access: Access, id: number): Promise<FitSummary> {
@@ -153,7 +167,7 @@ export async function cancelFit(ctx: AppContext, access: Access, id: number): Pr
   if (row.fit.state !== 'queued' && row.fit.state !== 'running') throw conflict(`Fit ${id} has ended (${row.fit.state}); there is nothing to cancel.`);
   await cancelJob(ctx.db, fits, ctx.fits, { id, state: row.fit.state, what: `Fit ${id}` }, access.userName);
   const after = await untilStopped(() => findFit(ctx, access, id), (r) => r.fit.state === 'running');
-  return summaryOf(after.fit, after.version, after.by);
+  return summaryOf(access.analysis, after.fit, after.version, after.by);
 }
 
 type Nuisance = FitResult['nuisance'][number];
@@ -163,6 +177,8 @@ const diff = (a: number | null | undefined, b: number | null | undefined) => ({ 
 /** Result of a converged fit, or a refusal that says why there are no numbers. */
 async function convergedResult(ctx: AppContext, access: Access, id: number) {
   const row = await findFit(ctx, access, id);
+  const withheld = withheldReadBy(access.analysis, row.fit);
+  if (withheld.length) throw conflict(withheldResultMessage(withheld));
   const result = blindResult(access, await storedResult(ctx, id));
   if (row.fit.state !== 'succeeded' || !result || result.status !== 'converged')
     throw conflict(`Fit ${id} ${row.fit.state === 'failed' ? `failed (${row.fit.failure})` : `is ${row.fit.state}`}: it has no results to compare or export.`);
@@ -187,8 +203,8 @@ export async function compareFits(ctx: AppContext, access: Access, aId: number, 
   });
   parameters.sort((p, q) => q.change - p.change || p.name.localeCompare(q.name));
   return {
-    a: summaryOf(a.row.fit, a.row.version, a.row.by),
-    b: summaryOf(b.row.fit, b.row.version, b.row.by),
+    a: summaryOf(access.analysis, a.row.fit, a.row.version, a.row.by),
+    b: summaryOf(access.analysis, b.row.fit, b.row.version, b.row.by),
     mu: diff(a.result.summary?.mu.value, b.result.summary?.mu.value),
     muError: diff(a.result.summary?.mu.error, b.result.summary?.mu.error),
     // JSON has no infinity: a parameter present in one fit only sorts first and reports change 0
@@ -203,7 +219,8 @@ export async function exportFit(ctx: AppContext, access: Access, id: number, for
   const stem = `${access.analysis.slug}-fit-${id}`;
   if (format !== 'csv') {
     const row = await findFit(ctx, access, id);
-    const detail = { ...summaryOf(row.fit, row.version, row.by), result: blindResult(access, await storedResult(ctx, id)) };
+    const summary = summaryOf(access.analysis, row.fit, row.version, row.by);
+    const detail = { ...summary, result: summary.withheld ? null : blindResult(access, await storedResult(ctx, id)) };
     return { type: 'application/json', filename: `${stem}.json`, body: JSON.stringify(detail, null, 2) };
   }
   const which = exportTableSchema.parse(table);

@@ -9,6 +9,7 @@ import { findUserByEmail } from '../db/users.repository';
 import { AppError, conflict, notFound } from '../errors';
 import { notifyAdded, notifyInvitation } from '../mail/notifications';
 import { addMembership } from './members.service';
+import { logMembershipChange } from './blinding.service';
 
 /** An invitation link works once and for 14 days (common practice, no source). */
 const INVITATION_DAYS = 14;
@@ -19,7 +20,7 @@ export async function invite(ctx: AppContext, access: Access, body: unknown, bas
   const { email, role } = invitationInputSchema.parse(body);
   const user = await findUserByEmail(ctx.db, email);
   if (user) {
-    await addMembership(ctx, access, user, role);
+    await addMembership(ctx, access, user, role, baseUrl);
     await notifyAdded(ctx, { baseUrl, analysis: access.analysis, email, role, inviter: access.userName });
     return { outcome: 'added' as const, email };
   }
@@ -50,13 +51,14 @@ export async function showInvitation(ctx: AppContext, token: string): Promise<In
 /** Creates the account and the membership in one transaction; the caller signs the new user in. */
 export async function acceptInvitation(ctx: AppContext, token: string, body: unknown) {
   const input = acceptInvitationSchema.parse(body);
-  const { invitation } = await openInvitation(ctx, token);
+  const { invitation, analysis, inviter } = await openInvitation(ctx, token);
   if (await findUserByEmail(ctx.db, invitation.email)) throw conflict(`An account for ${invitation.email} exists already: sign in, and ask the convener to add you.`);
   const passwordHash = await hashPassword(input.password);
   return ctx.db.transaction(async (tx) => {
     const [user] = await tx.insert(users).values({ email: invitation.email, name: input.name, passwordHash }).returning({ id: users.id, email: users.email, name: users.name, isAdmin: users.isAdmin });
-    await tx.insert(memberships).values({ analysisId: invitation.analysisId, userId: user.id, role: invitation.role });
+    await tx.insert(memberships).values({ analysisId: invitation.analysisId, userId: user.id, role: invitation.role, grantedById: invitation.invitedById });
     await tx.update(invitations).set({ acceptedAt: new Date() }).where(eq(invitations.id, invitation.id));
+    await logMembershipChange(tx, analysis, user, { kind: 'joined', user, role: invitation.role, invitedBy: inviter });
     return user;
   });
 }

@@ -6,6 +6,7 @@ import { countConveners, listMembers as listMemberRows } from '../db/analyses.re
 import { memberships } from '../db/schema';
 import { findUserByEmail } from '../db/users.repository';
 import { conflict, notFound } from '../errors';
+import { announceMembershipChange, logMembershipChange, type MembershipChange } from './blinding.service';
 
 const toMember = (m: { userId: number; email: string; name: string; role: Member['role']; since: Date }): Member => ({
   ...m,
@@ -28,34 +29,66 @@ async function assertKeepsAConvener(ctx: AppContext, access: Access, member: { r
     throw conflict('This is the analysis\u2019s only convener. Make someone else convener first.');
 }
 
-/** Adds an existing account as a member; someone who is one already is refused, naming their role. */
-export async function addMembership(ctx: AppContext, access: Access, user: { id: number; name: string }, role: Member['role']) {
-  const [existing] = await ctx.db.select().from(memberships).where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, user.id)));
-  if (existing) throw conflict(`${user.name} is already a member (${existing.role}). Change their role instead.`);
-  await ctx.db.insert(memberships).values({ analysisId: access.analysis.id, userId: user.id, role });
+const actorOf = (access: Access) => ({ id: access.userId, name: access.userName, isAdmin: access.isAdmin });
+
+/**
+ * Writes a membership change with its line in the blinding log (while the analysis is not
+ * unblinded) in one transaction, then tells the conveners when an admin changed their own.
+ */
+async function recordChange(ctx: AppContext, access: Access, change: MembershipChange, write: (tx: Parameters<Parameters<AppContext['db']['transaction']>[0]>[0]) => Promise<unknown>, baseUrl: string) {
+  await ctx.db.transaction(async (tx) => {
+    await write(tx);
+    await logMembershipChange(tx, access.analysis, actorOf(access), change);
+  });
+  await announceMembershipChange(ctx, access.analysis, actorOf(access), change, baseUrl);
 }
 
-export async function addMember(ctx: AppContext, access: Access, body: unknown): Promise<Member> {
+/**
+ * Adds an existing account as a member, granted by the caller; someone who is one already is
+ * refused, naming their role.
+ */
+export async function addMembership(ctx: AppContext, access: Access, user: { id: number; name: string }, role: Member['role'], baseUrl: string) {
+  const [existing] = await ctx.db.select().from(memberships).where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, user.id)));
+  if (existing) throw conflict(`${user.name} is already a member (${existing.role}). Change their role instead.`);
+  await recordChange(ctx, access, { kind: 'added', user, role }, (tx) => tx.insert(memberships).values({ analysisId: access.analysis.id, userId: user.id, role, grantedById: access.userId }), baseUrl);
+}
+
+export async function addMember(ctx: AppContext, access: Access, body: unknown, baseUrl: string): Promise<Member> {
   const input = addMemberSchema.parse(body);
   const user = await findUserByEmail(ctx.db, input.email);
   if (!user) throw notFound(`An account with the e-mail ${input.email} (an admin creates accounts on the Accounts screen)`);
-  await addMembership(ctx, access, user, input.role);
+  await addMembership(ctx, access, user, input.role, baseUrl);
   return toMember(await findMember(ctx, access, user.id));
 }
 
-export async function changeRole(ctx: AppContext, access: Access, userId: number, body: unknown): Promise<Member> {
+/** A new role is granted by the caller from now: a new convener approves only requests made after it. */
+export async function changeRole(ctx: AppContext, access: Access, userId: number, body: unknown, baseUrl: string): Promise<Member> {
   const input = updateMemberSchema.parse(body);
   const member = await findMember(ctx, access, userId);
   await assertKeepsAConvener(ctx, access, member, input.role);
-  await ctx.db
-    .update(memberships)
-    .set({ role: input.role })
-    .where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, userId)));
+  if (member.role !== input.role)
+    await recordChange(
+      ctx,
+      access,
+      { kind: 'role', user: { id: userId, name: member.name }, from: member.role, role: input.role },
+      (tx) =>
+        tx
+          .update(memberships)
+          .set({ role: input.role, roleSince: new Date(), grantedById: access.userId })
+          .where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, userId))),
+      baseUrl,
+    );
   return toMember(await findMember(ctx, access, userId));
 }
 
-export async function removeMember(ctx: AppContext, access: Access, userId: number): Promise<void> {
+export async function removeMember(ctx: AppContext, access: Access, userId: number, baseUrl: string): Promise<void> {
   const member = await findMember(ctx, access, userId);
   await assertKeepsAConvener(ctx, access, member, null);
-  await ctx.db.delete(memberships).where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, userId)));
+  await recordChange(
+    ctx,
+    access,
+    { kind: 'removed', user: { id: userId, name: member.name }, role: member.role },
+    (tx) => tx.delete(memberships).where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, userId))),
+    baseUrl,
+  );
 }

@@ -21,7 +21,7 @@ import { effects, floatingNorms, processes, regions, templates } from '../db/sch
 import { conflict, notFound, unprocessable } from '../errors';
 import { binCell, numberCell, readCsv } from '../uploads/csv';
 import { readUpload } from '../uploads/upload';
-import { isWithheld } from './blinding.service';
+import { assertRoleMayChange, isWithheld } from './blinding.service';
 
 /**
  * The analysts' model editor. Every change is refused whole when it would leave the model
@@ -71,6 +71,7 @@ export async function createRegion(ctx: AppContext, access: Access, body: unknow
 export async function updateRegion(ctx: AppContext, access: Access, key: string, body: unknown): Promise<Region> {
   const input = regionPatchSchema.parse(body);
   const region = await findRegion(ctx.db, access, key);
+  if (input.role) assertRoleMayChange(access.analysis, region, input.role);
   if (input.edges) {
     const bad = edgesIssue(input.edges);
     if (bad) throw bad;

@@ -42,6 +42,6 @@ export async function getModel(ctx: AppContext, access: Access): Promise<Model> 
  * signal-region counts are withheld), and shared by every reader until the model changes.
  */
 export function getModelEncoded(ctx: AppContext, access: Access): Promise<Encoded> {
-  const rule = access.analysis.blinding === 'unblinded' ? 'open' : 'blind';
+  const rule = access.analysis.blinding === 'unblinded' ? 'open' : `blind(${access.analysis.blindedRegions.join(',')})`;
   return keptWithModel(ctx.client, access.analysis.id, `model response (${rule})`, async () => encodeJson(await getModel(ctx, access), 'until-changed'));
 }

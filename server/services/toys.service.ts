@@ -5,13 +5,15 @@ import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { toyRuns, users } from '../db/schema';
 import { conflict, notFound } from '../errors';
-import { findFit } from './fits.service';
+import { withheldResultMessage } from './blinding.service';
+import { findFit, withheldReadBy } from './fits.service';
 import { cancelJob, toyRunsTable } from '../jobs/job-rows';
 import { untilStopped } from '../jobs/local-runner';
 
 type ToyRow = typeof toyRuns.$inferSelect;
 
-function toyRunOf(row: Omit<ToyRow, 'summary'> & { summary?: unknown }, createdBy: string | null): ToyRun {
+/** A toy run as sent; `withheld` (the fit read blinded data) keeps its summary back. */
+function toyRunOf(row: Omit<ToyRow, 'summary'> & { summary?: unknown }, createdBy: string | null, withheld = false): ToyRun {
   return {
     id: row.id,
     fitId: row.fitId,
@@ -29,7 +31,7 @@ function toyRunOf(row: Omit<ToyRow, 'summary'> & { summary?: unknown }, createdB
     finishedAt: row.finishedAt?.toISOString() ?? null,
     workers: Object.keys(row.workers ?? {}).length,
     // never a number from a run that did not succeed
-    summary: row.state === 'succeeded' && row.summary ? toySummarySchema.parse(row.summary) : null,
+    summary: row.state === 'succeeded' && row.summary && !withheld ? toySummarySchema.parse(row.summary) : null,
   };
 }
 
@@ -37,14 +39,15 @@ const { summary: _summary, ...listColumns } = getTableColumns(toyRuns);
 
 /** The toy runs of one fit, newest first, without their summaries. */
 export async function listToyRuns(ctx: AppContext, access: Access, fitId: number): Promise<ToyRun[]> {
-  await findFit(ctx, access, fitId);
+  const fit = await findFit(ctx, access, fitId);
+  const withheld = withheldReadBy(access.analysis, fit.fit).length > 0;
   const rows = await ctx.db
     .select({ run: listColumns, by: users.name })
     .from(toyRuns)
     .leftJoin(users, eq(users.id, toyRuns.createdById))
     .where(and(eq(toyRuns.analysisId, access.analysis.id), eq(toyRuns.fitId, fitId)))
     .orderBy(desc(toyRuns.id));
-  return rows.map((r) => toyRunOf(r.run, r.by));
+  return rows.map((r) => toyRunOf(r.run, r.by, withheld));
 }
 
 async function findToyRun(ctx: AppContext, access: Access, id: number) {
@@ -59,7 +62,8 @@ async function findToyRun(ctx: AppContext, access: Access, id: number) {
 
 export async function getToyRun(ctx: AppContext, access: Access, id: number): Promise<ToyRun> {
   const row = await findToyRun(ctx, access, id);
-  return toyRunOf(row.run, row.by);
+  const fit = await findFit(ctx, access, row.run.fitId);
+  return toyRunOf(row.run, row.by, withheldReadBy(access.analysis, fit.fit).length > 0);
 }
 
 /** Toys are drawn from a converged fit only: its best fit (or the best fit at a chosen μ) is where they come from. */
@@ -67,6 +71,8 @@ export async function startToys(ctx: AppContext, access: Access, fitId: number, 
   const input = startToysSchema.parse(body);
   const fit = await findFit(ctx, access, fitId);
   if (fit.fit.state !== 'succeeded') throw conflict(`Fit ${fitId} has not converged (${fit.fit.state}); toys are drawn from a converged fit only.`);
+  const withheld = withheldReadBy(access.analysis, fit.fit);
+  if (withheld.length) throw conflict(withheldResultMessage(withheld));
   if (input.hypothesis.kind === 'fixed-mu' && fit.fit.headline === null) throw conflict(`Fit ${fitId} has no headline μ̂; toys at a chosen μ need a fit of μ.`);
   const [row] = await ctx.db
     .insert(toyRuns)

@@ -56,6 +56,11 @@ export const fitSummarySchema = z.object({
       warnings: z.number(),
     })
     .nullable(),
+  /**
+   * Why none of this fit's numbers are sent: it read the observed counts of regions the analysis
+   * keeps blinded (a fit made through a version that gave such a region another role). Null otherwise.
+   */
+  withheld: z.string().nullable(),
 });
 export type FitSummary = z.infer<typeof fitSummarySchema>;
 

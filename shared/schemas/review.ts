@@ -152,7 +152,21 @@ export type QuestionStep = z.input<typeof questionStepSchema>;
 
 // ---- blinding
 
-export const blindingActionSchema = z.enum(['requested', 'approved', 'declined', 'withdrawn']);
+export const blindingActionSchema = z.enum([
+  'requested',
+  /** one of two required approvals */
+  'first_approval',
+  'approved',
+  'declined',
+  'withdrawn',
+  /** the number of approvals required changed */
+  'settings',
+  /** membership changes while the analysis is not unblinded */
+  'member_added',
+  'member_joined',
+  'role_changed',
+  'member_removed',
+]);
 export type BlindingAction = z.infer<typeof blindingActionSchema>;
 
 export const blindingEventSchema = z.object({
@@ -167,6 +181,10 @@ export type BlindingEvent = z.infer<typeof blindingEventSchema>;
 /** GET /api/analyses/:slug/blinding */
 export const blindingLogSchema = z.object({
   state: z.enum(['blinded', 'unblinding_requested', 'unblinded']),
+  /** conveners other than the requester who must approve (1 or 2) */
+  approvalsRequired: z.number().int(),
+  /** approvals given so far to the pending request */
+  approvalsGiven: z.number().int(),
   events: z.array(blindingEventSchema),
 });
 export type BlindingLog = z.infer<typeof blindingLogSchema>;
@@ -183,3 +201,7 @@ export const unblindingDecisionSchema = z.strictObject({
   note: z.string().trim().max(20_000).default(''),
 });
 export type UnblindingDecision = z.input<typeof unblindingDecisionSchema>;
+
+/** PUT …/blinding/settings (convener): how many conveners must approve unblinding. */
+export const blindingSettingsSchema = z.strictObject({ approvals: z.union([z.literal(1), z.literal(2)]) });
+export type BlindingSettings = z.infer<typeof blindingSettingsSchema>;

@@ -84,5 +84,5 @@ export function questionDetail(overrides: Partial<QuestionDetail> = {}): Questio
 }
 
 export function blindingLog(overrides: Partial<BlindingLog> = {}): BlindingLog {
-  return { state: 'blinded', events: [], ...overrides };
+  return { state: 'blinded', approvalsRequired: 1, approvalsGiven: 0, events: [], ...overrides };
 }

@@ -139,5 +139,27 @@ describe('a convener questions an over-constrained parameter, the owner answers,
     await page.getByRole('heading', { name: 'This analysis is blinded' }).waitFor();
     await page.getByRole('form', { name: 'Request unblinding' }).waitFor();
     await screenshot(page, 'review-overview-blinded');
+
+    // a convener asks for two approvals; the analyst requests; one approval leaves it blinded
+    await as(live, 'mira@lantern.example');
+    await page.goto(`${live.server.url}/a/vireon-search`);
+    await page.getByText('Unblinding needs one convener other than the requester to approve.').waitFor();
+    await page.getByRole('button', { name: 'Require two conveners to approve' }).click();
+    await page.getByText('Unblinding needs two conveners other than the requester to approve.').waitFor();
+    await as(live, 'otto@lantern.example');
+    await page.goto(`${live.server.url}/a/vireon-search`);
+    await page.getByLabel('Why the analysis is ready to unblind').fill('The control regions and the hidden-signal checks are understood.');
+    await page.getByRole('button', { name: 'Request unblinding' }).click();
+    await page.getByRole('heading', { name: 'Unblinding has been requested' }).waitFor();
+    await as(live, 'mira@lantern.example');
+    await page.goto(`${live.server.url}/a/vireon-search`);
+    await page.getByRole('button', { name: 'Approve unblinding' }).click();
+    await page.getByText('1 of 2 approvals given.', { exact: false }).waitFor();
+    await page.getByRole('list', { name: 'Blinding log' }).getByText('approved unblinding (first of two approvals)').waitFor();
+    await page.getByRole('heading', { name: 'Unblinding has been requested' }).waitFor();
+    await screenshot(page, 'review-overview-two-approvals');
+    // approving twice is refused with the reason
+    await page.getByRole('button', { name: 'Approve unblinding' }).click();
+    await page.getByText('You have approved this request already: a second convener must approve it.').waitFor();
   });
 });

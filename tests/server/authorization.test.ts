@@ -289,6 +289,13 @@ export const MATRIX: Record<string, Row> = {
     },
     expect: conveners(200),
   },
+  'PUT /api/analyses/:slug/blinding/settings': {
+    call: async (t) => {
+      await setBlinding(t, 'blinded');
+      return { path: `${A}/blinding/settings`, body: { approvals: 1 } };
+    },
+    expect: conveners(200),
+  },
 
   // invitations: conveners and admins invite; the link itself is the credential
   'POST /api/analyses/:slug/invitations': { call: (_t, who, n) => ({ path: `${A}/invitations`, body: { email: `guest-${who}-${n}@lantern.example`, role: 'reader' } }), expect: managers(201) },

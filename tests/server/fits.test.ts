@@ -68,7 +68,7 @@ describe('model versions and fit runs', () => {
     const before = (await analyst.get(`${V}/fits`)).body.length;
     const res = await analyst.send('post', `${V}/fits`, { version: 1, options: { dataset: 'observed' } });
     expect(res.status).toBe(409);
-    expect(res.body.error.message).toMatch(/blinded: a fit to observed data may not include a signal region \(SR-core, SR-wide\)/);
+    expect(res.body.error.message).toMatch(/blinded: a fit to observed data may not include a blinded region \(SR-core, SR-wide;/);
     const excludedOne = await analyst.send('post', `${V}/fits`, { version: 1, options: { dataset: 'observed', excludeRegions: ['SR-core'] } });
     expect(excludedOne.status).toBe(409);
     expect((await analyst.get(`${V}/fits`)).body.length).toBe(before);

@@ -170,6 +170,12 @@ function FitBody({ slug, fit, tab }: { slug: string; fit: FitDetail; tab: FitTab
         <p>It stopped before it finished, so there is no result. Start a new fit from the fits page.</p>
       </EmptyState>
     );
+  if (fit.withheld)
+    return (
+      <EmptyState title="Withheld while the analysis is blinded">
+        <p>{fit.withheld}</p>
+      </EmptyState>
+    );
   const result = fit.result;
   if (fit.state === 'failed' || !result || result.status !== 'converged' || !result.summary)
     return (

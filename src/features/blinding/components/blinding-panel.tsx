@@ -11,6 +11,7 @@ import { BlindingBadge } from '../../analyses/components/blinding-badge';
 import { useCan } from '../../analyses/use-can';
 import { useDecideUnblinding } from '../api/decide-unblinding';
 import { useBlinding } from '../api/get-blinding';
+import { useChangeBlindingSettings } from '../api/change-blinding-settings';
 import { useRequestUnblinding } from '../api/request-unblinding';
 
 const STATE_WORDS: Record<Blinding, { heading: string; text: string }> = {
@@ -30,10 +31,43 @@ const STATE_WORDS: Record<Blinding, { heading: string; text: string }> = {
 
 const ACTION_WORDS: Record<BlindingAction, string> = {
   requested: 'requested unblinding',
+  first_approval: 'approved unblinding (first of two approvals)',
   approved: 'approved unblinding',
   declined: 'declined unblinding',
   withdrawn: 'withdrew the request',
+  settings: 'changed who must approve',
+  member_added: 'added a member',
+  member_joined: 'joined',
+  role_changed: 'changed a role',
+  member_removed: 'removed a member',
 };
+
+const DUTIES =
+  'The server lets a convener approve only if they are not the requester, held the convener role before the request, did not invite the requester or give them their role, and were not invited or given their role by the requester. While the analysis is blinded, every membership change is written in this log.';
+
+/** How many conveners must approve: a convener changes it while no request is pending. */
+function ApprovalsSetting({ slug, log, mayChange }: { slug: string; log: BlindingLog; mayChange: boolean }) {
+  const change = useChangeBlindingSettings(slug);
+  const required = log.approvalsRequired;
+  const words = required === 2 ? 'two conveners' : 'one convener';
+  return (
+    <div className="flex flex-col gap-1 text-sm text-ink-soft">
+      <p>
+        Unblinding needs <span className="font-semibold text-ink">{words}</span> other than the requester to approve.
+        {log.state === 'unblinding_requested' && required === 2 && ` ${log.approvalsGiven} of 2 approvals given.`}
+      </p>
+      <p className="text-xs text-ink-muted">{DUTIES}</p>
+      {mayChange && log.state === 'blinded' && (
+        <div>
+          <Button size="sm" busy={change.isPending} onClick={() => change.mutate({ approvals: required === 2 ? 1 : 2 })}>
+            {required === 2 ? 'Let one convener approve' : 'Require two conveners to approve'}
+          </Button>
+          <FormError error={change.error} />
+        </div>
+      )}
+    </div>
+  );
+}
 
 function RequestForm({ slug }: { slug: string }) {
   const request = useRequestUnblinding(slug);
@@ -100,21 +134,35 @@ function DecisionForm({ slug }: { slug: string }) {
   );
 }
 
+const MEMBERSHIP: BlindingAction[] = ['member_added', 'member_joined', 'role_changed', 'member_removed'];
+
 function Log({ log }: { log: BlindingLog }) {
   if (log.events.length === 0) return <p className="text-sm text-ink-muted">Nothing has been requested or decided yet.</p>;
   return (
     <ol aria-label="Blinding log" className="flex flex-col divide-y divide-rule">
-      {[...log.events].reverse().map((e) => (
-        <li key={e.id} className="py-1.5 text-sm">
-          <p>
-            <span className="font-semibold">{e.by ?? 'a former member'}</span> {ACTION_WORDS[e.action]}
-            <span className="ml-2 text-xs text-ink-muted">
-              <time dateTime={e.at}>{formatDateTime(e.at)}</time>
-            </span>
-          </p>
-          {e.note && <p className="text-sm whitespace-pre-wrap text-ink-soft">{e.note}</p>}
-        </li>
-      ))}
+      {[...log.events].reverse().map((e) => {
+        const membership = MEMBERSHIP.includes(e.action);
+        return (
+          <li key={e.id} className="py-1.5 text-sm">
+            <p>
+              {membership ? (
+                <>
+                  <span className="mr-1.5 rounded-sm bg-paper-sunk px-1 text-xs font-medium text-ink-soft">membership</span>
+                  {e.note}
+                </>
+              ) : (
+                <>
+                  <span className="font-semibold">{e.by ?? 'a former member'}</span> {ACTION_WORDS[e.action]}
+                </>
+              )}
+              <span className="ml-2 text-xs text-ink-muted">
+                <time dateTime={e.at}>{formatDateTime(e.at)}</time>
+              </span>
+            </p>
+            {e.note && !membership && <p className="text-sm whitespace-pre-wrap text-ink-soft">{e.note}</p>}
+          </li>
+        );
+      })}
     </ol>
   );
 }
@@ -142,6 +190,7 @@ export function BlindingPanel({ slug, state: fallback }: { slug: string; state: 
           {state === 'blinded' && can('blinding.request') && <RequestForm slug={slug} />}
           {state === 'unblinding_requested' && can('blinding.decide') && <DecisionForm slug={slug} />}
           {state === 'unblinding_requested' && !can('blinding.decide') && <p className="text-xs text-ink-muted">A convener decides on the request.</p>}
+          {state !== 'unblinded' && log.data && <ApprovalsSetting slug={slug} log={log.data} mayChange={can('blinding.decide')} />}
         </div>
         <div>
           <h3 className="mb-1 text-sm font-semibold text-ink">Log</h3>

@@ -12,6 +12,12 @@ import { FitProgress, FitStateBadge } from './fit-state';
 
 function Headline({ fit }: { fit: FitSummary }) {
   const h = fit.headline;
+  if (fit.withheld)
+    return (
+      <span className="text-xs font-medium text-amber-ink" title={fit.withheld}>
+        withheld while blinded
+      </span>
+    );
   if (!h) return <span className="text-ink-muted">–</span>;
   const dec = decimalsFor(h.muError);
   const muText = `${formatFixed(h.mu, dec)}${h.muError !== null ? ` ± ${formatFixed(h.muError, dec)}` : ''}`;
