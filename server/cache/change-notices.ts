@@ -1,22 +1,22 @@
-import type { DbClient } from './client';
-import { keptOnce } from '../kept';
+import type { DbClient } from '../db/client';
+import { buildOnce } from './results';
 
 /**
  * Copies kept in memory stay true by listening to what the database announces: triggers in the
  * migrations `pg_notify` a channel at commit whenever rows a copy depends on change, and the
- * embedded database delivers the notice before the writing query returns. `watched` makes the
+ * embedded database delivers the notice before the writing query returns. `untilNotified` makes the
  * per-database state of one channel once, subscribes it, and hands every caller the same state.
  *
  * A PostgreSQL server delivers notices after the commit, on another connection, and other
  * processes write too: there, nothing is kept (every caller gets a new state, so every read goes
  * to the database) and a reader never sees a copy older than its own write.
  */
-const watchers = new WeakMap<object, Map<string, Promise<unknown>>>();
+const listeners = new WeakMap<object, Map<string, Promise<unknown>>>();
 
-export function watched<T>(client: DbClient, channel: string, create: () => T, onNotice: (state: T, payload: string) => void): Promise<T> {
+export function untilNotified<T>(client: DbClient, channel: string, create: () => T, onNotice: (state: T, payload: string) => void): Promise<T> {
   if (!client.listen) return Promise.resolve(create());
-  let channels = watchers.get(client);
-  if (!channels) watchers.set(client, (channels = new Map()));
+  let channels = listeners.get(client);
+  if (!channels) listeners.set(client, (channels = new Map()));
   let state = channels.get(channel) as Promise<T> | undefined;
   if (!state) {
     const value = create();
@@ -31,9 +31,9 @@ export function watched<T>(client: DbClient, channel: string, create: () => T, o
  * the analysis id). Each copy is built once: readers arriving while it is built share it, and a
  * build that fails is not kept. Copies are shared: callers must not change them.
  */
-export function keptPerAnalysis(channel: string) {
+export function copiesUntilChanged(channel: string) {
   return async <T>(client: DbClient, analysisId: number, what: string, build: () => Promise<T>): Promise<T> => {
-    const analyses = await watched(
+    const analyses = await untilNotified(
       client,
       channel,
       () => new Map<number, Map<string, Promise<unknown>>>(),
@@ -41,6 +41,11 @@ export function keptPerAnalysis(channel: string) {
     );
     let copies = analyses.get(analysisId);
     if (!copies) analyses.set(analysisId, (copies = new Map()));
-    return keptOnce(copies, what, build);
+    return buildOnce(copies, what, build);
   };
 }
+
+/** Copies that depend on an analysis's model (regions, processes, normalisations, templates, effects). */
+export const untilModelChanges = copiesUntilChanged('model_changed');
+/** Copies that depend on an analysis's register (entries, effects, groups, questions, owners' names). */
+export const untilRegisterChanges = copiesUntilChanged('register_changed');

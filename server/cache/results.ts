@@ -3,7 +3,7 @@
  * first; each is computed once even when many ask at the same time (they share the promise).
  * A failure is not kept, nor a result whose `final` is false (it may still change).
  */
-export function keptResults<T>(keep: number) {
+export function recentResults<T>(keep: number) {
   const perDb = new WeakMap<object, Map<string, Promise<T>>>();
   return (db: object, key: string, make: () => Promise<{ value: T; final: boolean }>): Promise<T> => {
     let kept = perDb.get(db);
@@ -25,7 +25,7 @@ export function keptResults<T>(keep: number) {
 }
 
 /** The copy under `key`, built once: callers arriving while it is built share it, and a build that fails is not kept. */
-export function keptOnce<T>(copies: Map<string, Promise<unknown>>, key: string, build: () => Promise<T>): Promise<T> {
+export function buildOnce<T>(copies: Map<string, Promise<unknown>>, key: string, build: () => Promise<T>): Promise<T> {
   const copy = copies.get(key) as Promise<T> | undefined;
   if (copy) return copy;
   const ready = build();

@@ -1,6 +1,6 @@
 import { and, asc, count, eq, sql } from 'drizzle-orm';
 import type { MemberRole } from '@shared/permissions';
-import { watched } from './announcements';
+import { untilNotified } from '../cache/change-notices';
 import type { Db } from './client';
 import { analyses, entries, memberships, users } from './schema';
 
@@ -12,7 +12,7 @@ export type AnalysisRow = typeof analyses.$inferSelect;
  * memberships (triggers in drizzle/0003; see announcements.ts). No writer has to remember it.
  */
 const accessCopies = (db: Db) =>
-  watched(
+  untilNotified(
     db.$client,
     'access_changed',
     () => new Map<string, ReturnType<typeof readAnalysisAccess>>(),

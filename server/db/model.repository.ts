@@ -1,5 +1,5 @@
 import { asc, eq } from 'drizzle-orm';
-import { keptPerAnalysis } from './announcements';
+import { untilModelChanges } from '../cache/change-notices';
 import type { Db, DbClient } from './client';
 import type { DbOrTx } from './revisions.repository';
 import { floatingNorms, processes, regions, templates } from './schema';
@@ -21,12 +21,11 @@ export type ModelRows = Awaited<ReturnType<typeof loadModelRows>>;
  * templates and effects) live until the database announces a change to them: triggers in
  * drizzle/0005 notify "model_changed" at commit.
  */
-export const keptWithModel = keptPerAnalysis('model_changed');
 
 /** The model rows as last read, for views (never inside a transaction that writes): shared, not to be changed. */
-export const keptModelRows = (ctx: { db: Db; client: DbClient }, analysisId: number) => keptWithModel(ctx.client, analysisId, 'rows', () => loadModelRows(ctx.db, analysisId));
-export const keptModelIndex = (ctx: { db: Db; client: DbClient }, analysisId: number) =>
-  keptWithModel(ctx.client, analysisId, 'index', async () => indexModel(await keptModelRows(ctx, analysisId)));
+export const cachedModelRows = (ctx: { db: Db; client: DbClient }, analysisId: number) => untilModelChanges(ctx.client, analysisId, 'rows', () => loadModelRows(ctx.db, analysisId));
+export const cachedModelIndex = (ctx: { db: Db; client: DbClient }, analysisId: number) =>
+  untilModelChanges(ctx.client, analysisId, 'index', async () => indexModel(await cachedModelRows(ctx, analysisId)));
 
 /** Look-ups by key over a model's rows, for validating uploads and building views. */
 export function indexModel(rows: ModelRows) {

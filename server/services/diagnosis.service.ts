@@ -7,7 +7,7 @@ import type { AppContext } from '../context';
 import { entries, modelVersions, users } from '../db/schema';
 import { conflict, notFound } from '../errors';
 import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
-import { keptResults } from '../kept';
+import { recentResults } from '../cache/results';
 import { isWithheld, withheldResultMessage } from './blinding.service';
 import { findFit, storedHead, storedPart, summaryOf, withheldReadBy } from './fits.service';
 
@@ -19,7 +19,7 @@ import { findFit, storedHead, storedPart, summaryOf, withheldReadBy } from './fi
  * plain words in which every sentence names the panel element that shows its numbers.
  */
 type Computed = { numbers: ParameterDiagnosisNumbers; regions: ExchangeModel['regions'] };
-const computed = keptResults<Computed>(64);
+const computed = recentResults<Computed>(64);
 
 const numbersFor = (ctx: AppContext, fitId: number, versionId: number, options: unknown, parameter: string) =>
   computed(ctx.db, `${fitId}\u0000${parameter}`, async () => {

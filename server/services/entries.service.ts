@@ -1,3 +1,4 @@
+import { untilModelChanges } from '../cache/change-notices';
 import { and, eq } from 'drizzle-orm';
 import { can } from '@shared/permissions';
 import {
@@ -13,7 +14,7 @@ import { largestEffectPct } from '@shared/validation/variation-warnings';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { findEntry, type EntryRow } from '../db/entries.repository';
-import { indexModel, keptModelIndex, keptWithModel, loadModelRows } from '../db/model.repository';
+import { indexModel, cachedModelIndex, loadModelRows } from '../db/model.repository';
 import { addRevision, entryRevisions, type DbOrTx } from '../db/revisions.repository';
 import { effects, entries, groups, memberships, uploads, users } from '../db/schema';
 import { badRequest, conflict, forbidden, notFound, unprocessable } from '../errors';
@@ -116,8 +117,8 @@ export async function getEntryDetail(ctx: AppContext, access: Access, key: strin
 
 /** An entry's effects as its page draws them, shared by every reader until the model changes. */
 function effectViews(ctx: AppContext, analysisId: number, entryId: number): Promise<EntryDetail['effects']> {
-  return keptWithModel(ctx.client, analysisId, `effects of entry ${entryId}`, async () => {
-    const model = await keptModelIndex(ctx, analysisId);
+  return untilModelChanges(ctx.client, analysisId, `effects of entry ${entryId}`, async () => {
+    const model = await cachedModelIndex(ctx, analysisId);
     const effectRows = await ctx.db
       .select({ effect: effects, upload: { id: uploads.id, filename: uploads.filename, sha256: uploads.sha256, createdAt: uploads.createdAt } })
       .from(effects)

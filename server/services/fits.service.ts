@@ -7,8 +7,8 @@ import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { fits, modelVersions, users } from '../db/schema';
 import { conflict, notFound } from '../errors';
-import { keptResults } from '../kept';
-import { encodeJson, type Encoded } from '../routes/encoded';
+import { recentResults } from '../cache/results';
+import { encodeJson, type Encoded } from '../cache/encoded-json';
 import { regionEntersFit } from '../fit';
 import { isWithheld, withheldInFit, withheldResultMessage, type BlindingRule } from './blinding.service';
 import { findVersion } from './versions.service';
@@ -109,7 +109,7 @@ export async function listFits(ctx: AppContext, access: Access): Promise<FitSumm
  * head, and each large part) is encoded once and kept (per database, a few fits), keyed by what
  * decides its bytes: the fit, the part, and whether blinding removes data from it.
  */
-const encodedResponses = keptResults<Encoded>(24);
+const encodedResponses = recentResults<Encoded>(24);
 
 const headOf = ({ yields: _y, gammas: { list: _l, ...gammas }, ...head }: StoredHead): FitResultHead => ({ ...head, gammas });
 

@@ -1,8 +1,9 @@
+import { untilModelChanges } from '../cache/change-notices';
 import type { Model, Process, Region } from '@shared/schemas/api';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { keptModelRows, keptWithModel, type ModelRows } from '../db/model.repository';
-import { encodeJson, type Encoded } from '../routes/encoded';
+import { cachedModelRows, type ModelRows } from '../db/model.repository';
+import { encodeJson, type Encoded } from '../cache/encoded-json';
 import { isWithheld, visibleObserved } from './blinding.service';
 
 /** A region as clients see it: its observed counts go through the blinding rule. */
@@ -19,7 +20,7 @@ export const regionView = (access: Access, r: ModelRows['regions'][number]): Reg
 export const processView = (p: ModelRows['processes'][number]): Process => ({ key: p.key, label: p.label, kind: p.kind, colour: p.colour });
 
 export async function getModel(ctx: AppContext, access: Access): Promise<Model> {
-  const rows = await keptModelRows(ctx, access.analysis.id);
+  const rows = await cachedModelRows(ctx, access.analysis.id);
   const regionKey = new Map(rows.regions.map((r) => [r.id, r.key]));
   const processKey = new Map(rows.processes.map((p) => [p.id, p.key]));
   const normKey = new Map(rows.floatingNorms.map((f) => [f.id, f.key]));
@@ -43,5 +44,5 @@ export async function getModel(ctx: AppContext, access: Access): Promise<Model> 
  */
 export function getModelEncoded(ctx: AppContext, access: Access): Promise<Encoded> {
   const rule = access.analysis.blinding === 'unblinded' ? 'open' : `blind(${access.analysis.blindedRegions.join(',')})`;
-  return keptWithModel(ctx.client, access.analysis.id, `model response (${rule})`, async () => encodeJson(await getModel(ctx, access), 'until-changed'));
+  return untilModelChanges(ctx.client, access.analysis.id, `model response (${rule})`, async () => encodeJson(await getModel(ctx, access), 'until-changed'));
 }

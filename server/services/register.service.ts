@@ -4,9 +4,8 @@ import type { Db } from '../db/client';
 import type { EntrySummary } from '@shared/schemas/api';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { keptPerAnalysis } from '../db/announcements';
-import { keptWithModel } from '../db/model.repository';
-import { encodeJson, type Encoded } from '../routes/encoded';
+import { untilModelChanges, untilRegisterChanges } from '../cache/change-notices';
+import { encodeJson, type Encoded } from '../cache/encoded-json';
 import { effects, entries, groups, processes, questions, regions, templates, users } from '../db/schema';
 
 /**
@@ -17,12 +16,11 @@ import { effects, entries, groups, processes, questions, regions, templates, use
  * and the embedded database delivers the announcement before the writing query returns. The
  * aggregate over the effects is kept apart, until the model changes (`effectSummaries`).
  */
-const keptWithRegister = keptPerAnalysis('register_changed');
 
 /** The register as response bytes, built once per change; readers arriving while it is built share it. */
 export function listEntriesEncoded(ctx: AppContext, access: Access): Promise<Encoded> {
   const analysisId = access.analysis.id;
-  return keptWithRegister(ctx.client, analysisId, 'register response', async () => encodeJson(await readEntries(ctx, analysisId), 'until-changed'));
+  return untilRegisterChanges(ctx.client, analysisId, 'register response', async () => encodeJson(await readEntries(ctx, analysisId), 'until-changed'));
 }
 
 async function readEntries(ctx: AppContext, analysisId: number): Promise<EntrySummary[]> {
@@ -66,7 +64,7 @@ async function readEntries(ctx: AppContext, analysisId: number): Promise<EntrySu
  * rebuilds the register without it.
  */
 function effectSummaries(ctx: AppContext, analysisId: number) {
-  return keptWithModel(ctx.client, analysisId, 'effect summaries', async () => {
+  return untilModelChanges(ctx.client, analysisId, 'effect summaries', async () => {
     const sums = await ctx.db
       .select({
         entryId: effects.entryId,
