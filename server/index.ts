@@ -7,6 +7,7 @@ import { createApp } from './app';
 import { ConfigError, loadConfig, type Config } from './config';
 import { DatabaseUnreachableError, DataDirLockedError, openDatabase, projectRoot, redacted } from './db/client';
 import { createMailer } from './mail/mailer';
+import { outboxStore } from './db/outbox.repository';
 import { createFitRunner } from './jobs/fit-runner';
 import { createToyRunner } from './jobs/toy-runner';
 import { startQueue } from './work/queue';
@@ -47,7 +48,7 @@ async function main() {
   const config = { ...base, sessionSecret: sessionSecret(base) };
   const seed = await seedDemo(database.db);
   await backfillEffectSizes(database.db);
-  const mailer = await createMailer(database.db, config);
+  const mailer = await createMailer(outboxStore(database.db), config);
   const threads = config.FIT_THREADS ?? Math.max(1, availableParallelism() - 1);
   const local = createFitRunner(database.db, console.error, { threads, niceness: config.FIT_NICENESS });
   // with a PostgreSQL server, fits and toys wait on its queue for worker processes

@@ -1,4 +1,4 @@
-import { and, asc, count, eq, sql } from 'drizzle-orm';
+import { and, asc, count, eq, inArray, sql } from 'drizzle-orm';
 import type { MemberRole } from '@shared/permissions';
 import { untilNotified } from '../cache/change-notices';
 import type { Db } from './client';
@@ -85,3 +85,13 @@ export const membershipsOf = (db: Db, userId: number) =>
     .innerJoin(analyses, eq(analyses.id, memberships.analysisId))
     .where(eq(memberships.userId, userId))
     .orderBy(asc(analyses.name));
+
+/** E-mail addresses of the members who hold one of these roles. */
+export async function memberEmails(db: Db, analysisId: number, roles: MemberRole[]) {
+  const rows = await db
+    .select({ email: users.email })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(and(eq(memberships.analysisId, analysisId), inArray(memberships.role, roles)));
+  return rows.map((r) => r.email);
+}

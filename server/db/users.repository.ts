@@ -12,3 +12,5 @@ export async function insertUser(db: Db, values: typeof users.$inferInsert) {
   const [row] = await db.insert(users).values(values).returning({ id: users.id, email: users.email, name: users.name, isAdmin: users.isAdmin });
   return row;
 }
+
+export const emailOfUser = async (db: Db, id: number) => (await db.select({ email: users.email }).from(users).where(eq(users.id, id)))[0]?.email;

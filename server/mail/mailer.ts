@@ -4,8 +4,7 @@ import nodemailer, { type Transporter } from 'nodemailer';
 import { simpleParser } from 'mailparser';
 import { SMTPServer } from 'smtp-server';
 import type { Config } from '../config';
-import type { Db } from '../db/client';
-import { outbox } from '../db/schema';
+import type { OutboxStore } from '../db/outbox.repository';
 
 export type Mail = { to: string[]; subject: string; text: string; analysisId?: number | null };
 
@@ -30,7 +29,7 @@ const ANALYSIS_HEADER = 'x-plumbline-analysis';
  * it receives is parsed (mailparser) and written to the outbox, which admins read on the Outbox
  * screen. With SMTP_URL mail goes to that server and the outbox keeps a copy of what was sent.
  */
-export async function createMailer(db: Db, config: Config, log: (line: string) => void = console.log): Promise<Mailer> {
+export async function createMailer(record: OutboxStore, config: Config, log: (line: string) => void = console.log): Promise<Mailer> {
   let capture: SMTPServer | null = null;
   let transport: Transporter;
   const pending = new Set<Promise<unknown>>();
@@ -54,7 +53,7 @@ export async function createMailer(db: Db, config: Config, log: (line: string) =
           simpleParser(stream)
             .then(async (parsed) => {
               const analysis = parsed.headers.get(ANALYSIS_HEADER);
-              await db.insert(outbox).values({
+              await record({
                 to: session.envelope.rcptTo.map((r) => r.address).join(', '),
                 subject: parsed.subject ?? '',
                 body: parsed.text ?? '',
@@ -83,11 +82,11 @@ export async function createMailer(db: Db, config: Config, log: (line: string) =
         text: mail.text,
         headers: mail.analysisId ? { [ANALYSIS_HEADER]: String(mail.analysisId) } : {},
       });
-      if (!capture) await db.insert(outbox).values({ to, subject: mail.subject, body: mail.text, messageId: info.messageId, analysisId: mail.analysisId ?? null, delivered: true });
+      if (!capture) await record({ to, subject: mail.subject, body: mail.text, messageId: info.messageId, analysisId: mail.analysisId ?? null, delivered: true });
     } catch (e) {
       const reason = e instanceof Error ? e.message : String(e);
       log(`[mail] could not send "${mail.subject}" to ${to}: ${reason}`);
-      await db.insert(outbox).values({ to, subject: mail.subject, body: mail.text, analysisId: mail.analysisId ?? null, delivered: false, error: reason });
+      await record({ to, subject: mail.subject, body: mail.text, analysisId: mail.analysisId ?? null, delivered: false, error: reason });
     }
   };
 

@@ -1,31 +1,17 @@
-import { and, eq } from 'drizzle-orm';
 import { ROLE_LABELS, type MemberRole } from '@shared/permissions';
 import type { AppContext } from '../context';
-import { memberships, users } from '../db/schema';
 import type { AnalysisRow } from '../db/analyses.repository';
 
-/** The product's e-mails: who gets which message, in plain words, with a link to act on. */
+/**
+ * The product's e-mails, in plain words, with a link to act on. The services decide who gets
+ * each one (services/recipients.service.ts) and pass the addresses in `to`; a message with no
+ * one to go to is not sent.
+ */
 
 type Entry = { key: string; label: string; ownerId: number | null };
+type To = { to: string[] };
 
 const entryLink = (baseUrl: string, analysis: AnalysisRow, entry: Entry) => `${baseUrl}/a/${analysis.slug}/entries/${encodeURIComponent(entry.key)}`;
-
-async function emailsOf(ctx: AppContext, analysisId: number, role: MemberRole) {
-  const rows = await ctx.db
-    .select({ email: users.email })
-    .from(memberships)
-    .innerJoin(users, eq(users.id, memberships.userId))
-    .where(and(eq(memberships.analysisId, analysisId), eq(memberships.role, role)));
-  return rows.map((r) => r.email);
-}
-
-async function emailOf(ctx: AppContext, userId: number | null) {
-  if (!userId) return [];
-  const [u] = await ctx.db.select({ email: users.email }).from(users).where(eq(users.id, userId));
-  return u ? [u.email] : [];
-}
-
-const ownerEmail = (ctx: AppContext, entry: Entry) => emailOf(ctx, entry.ownerId);
 
 export async function notifyInvitation(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; email: string; role: MemberRole; inviter: string; token: string }) {
   await ctx.mailer.send({
@@ -50,27 +36,30 @@ export async function notifyAdded(ctx: AppContext, p: { baseUrl: string; analysi
   });
 }
 
-export async function notifySubmitted(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; entry: Entry; by: string; reason: string }) {
+export async function notifySubmitted(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; entry: Entry; by: string; reason: string } & To) {
+  if (!p.to.length) return;
   await ctx.mailer.send({
-    to: await emailsOf(ctx, p.analysis.id, 'convener'),
+    to: p.to,
     analysisId: p.analysis.id,
     subject: `[${p.analysis.slug}] ${p.entry.key} awaits review`,
     text: [`${p.by} ${p.reason} the register entry "${p.entry.label}" (${p.entry.key}); it awaits a convener's review.`, '', entryLink(p.baseUrl, p.analysis, p.entry)].join('\n'),
   });
 }
 
-export async function notifyAccepted(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; entry: Entry; by: string; comment: string }) {
+export async function notifyAccepted(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; entry: Entry; by: string; comment: string } & To) {
+  if (!p.to.length) return;
   await ctx.mailer.send({
-    to: await ownerEmail(ctx, p.entry),
+    to: p.to,
     analysisId: p.analysis.id,
     subject: `[${p.analysis.slug}] ${p.entry.key} was accepted`,
     text: [`${p.by} accepted the register entry "${p.entry.label}" (${p.entry.key}).`, p.comment ? `\nComment: ${p.comment}` : '', '', entryLink(p.baseUrl, p.analysis, p.entry)].join('\n'),
   });
 }
 
-export async function notifySentBack(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; entry: Entry; by: string; comment: string }) {
+export async function notifySentBack(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; entry: Entry; by: string; comment: string } & To) {
+  if (!p.to.length) return;
   await ctx.mailer.send({
-    to: await ownerEmail(ctx, p.entry),
+    to: p.to,
     analysisId: p.analysis.id,
     subject: `[${p.analysis.slug}] ${p.entry.key} was sent back`,
     text: [`${p.by} sent the register entry "${p.entry.label}" (${p.entry.key}) back to you with this comment:`, '', p.comment, '', 'Change what is asked, then submit it again:', entryLink(p.baseUrl, p.analysis, p.entry)].join('\n'),
@@ -79,21 +68,14 @@ export async function notifySentBack(ctx: AppContext, p: { baseUrl: string; anal
 
 // ---- questions on parameters
 
-type QuestionMail = { baseUrl: string; analysis: AnalysisRow; questionId: number; title: string; entry: Entry; by: string; byId: number };
+type QuestionMail = { baseUrl: string; analysis: AnalysisRow; questionId: number; title: string; entry: Entry; by: string };
 const questionLink = (p: QuestionMail) => `${p.baseUrl}/a/${p.analysis.slug}/questions/${p.questionId}`;
 
-/** Everyone to tell, less the person who acted (they know). */
-async function without(ctx: AppContext, byId: number, lists: Promise<string[]>[]) {
-  const [me] = await emailOf(ctx, byId);
-  return [...new Set((await Promise.all(lists)).flat())].filter((e) => e !== me);
-}
-
 /** A convener asked: the entry's owner and the analysts hear of it. */
-export async function notifyQuestionRaised(ctx: AppContext, p: QuestionMail & { body: string; fit: string | null }) {
-  const to = await without(ctx, p.byId, [ownerEmail(ctx, p.entry), emailsOf(ctx, p.analysis.id, 'analyst')]);
-  if (!to.length) return;
+export async function notifyQuestionRaised(ctx: AppContext, p: QuestionMail & { body: string; fit: string | null } & To) {
+  if (!p.to.length) return;
   await ctx.mailer.send({
-    to,
+    to: p.to,
     analysisId: p.analysis.id,
     subject: `[${p.analysis.slug}] Question on ${p.entry.key}: ${p.title}`,
     text: [`${p.by} asks about "${p.entry.label}" (${p.entry.key})${p.fit ? ` in ${p.fit}` : ''}:`, '', p.body, '', 'Answer it here:', questionLink(p)].join('\n'),
@@ -101,11 +83,10 @@ export async function notifyQuestionRaised(ctx: AppContext, p: QuestionMail & { 
 }
 
 /** Someone answered: the convener who asked and the owner hear of it. */
-export async function notifyQuestionAnswered(ctx: AppContext, p: QuestionMail & { body: string; authorId: number | null }) {
-  const to = await without(ctx, p.byId, [emailOf(ctx, p.authorId), ownerEmail(ctx, p.entry)]);
-  if (!to.length) return;
+export async function notifyQuestionAnswered(ctx: AppContext, p: QuestionMail & { body: string; authorId: number | null } & To) {
+  if (!p.to.length) return;
   await ctx.mailer.send({
-    to,
+    to: p.to,
     analysisId: p.analysis.id,
     subject: `[${p.analysis.slug}] Answer on ${p.entry.key}: ${p.title}`,
     text: [`${p.by} answered the question "${p.title}" on ${p.entry.key}:`, '', p.body, '', questionLink(p)].join('\n'),
@@ -113,11 +94,10 @@ export async function notifyQuestionAnswered(ctx: AppContext, p: QuestionMail & 
 }
 
 /** Resolved or reopened: the owner hears of it. */
-export async function notifyQuestionStep(ctx: AppContext, p: QuestionMail & { step: 'resolved' | 'reopened'; note: string }) {
-  const to = await without(ctx, p.byId, [ownerEmail(ctx, p.entry)]);
-  if (!to.length) return;
+export async function notifyQuestionStep(ctx: AppContext, p: QuestionMail & { step: 'resolved' | 'reopened'; note: string } & To) {
+  if (!p.to.length) return;
   await ctx.mailer.send({
-    to,
+    to: p.to,
     analysisId: p.analysis.id,
     subject: `[${p.analysis.slug}] Question on ${p.entry.key} ${p.step}: ${p.title}`,
     text: [`${p.by} ${p.step} the question "${p.title}" on ${p.entry.key}.`, p.note ? `\n${p.note}` : '', '', questionLink(p)].join('\n'),
@@ -127,9 +107,10 @@ export async function notifyQuestionStep(ctx: AppContext, p: QuestionMail & { st
 // ---- blinding
 
 /** An analyst asks to unblind: the conveners decide. */
-export async function notifyUnblindingRequested(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; by: string; note: string }) {
+export async function notifyUnblindingRequested(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; by: string; note: string } & To) {
+  if (!p.to.length) return;
   await ctx.mailer.send({
-    to: await emailsOf(ctx, p.analysis.id, 'convener'),
+    to: p.to,
     analysisId: p.analysis.id,
     subject: `[${p.analysis.slug}] Unblinding requested by ${p.by}`,
     text: [`${p.by} asks to unblind "${p.analysis.name}":`, '', p.note, '', 'Approve or decline on the analysis overview:', `${p.baseUrl}/a/${p.analysis.slug}`].join('\n'),
@@ -137,10 +118,10 @@ export async function notifyUnblindingRequested(ctx: AppContext, p: { baseUrl: s
 }
 
 /** The decision: the analysts (the requester among them) hear of it. */
-export async function notifyUnblindingDecided(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; by: string; approved: boolean; note: string }) {
-  const to = [...new Set([...(await emailsOf(ctx, p.analysis.id, 'analyst')), ...(await emailsOf(ctx, p.analysis.id, 'convener'))])];
+export async function notifyUnblindingDecided(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; by: string; approved: boolean; note: string } & To) {
+  if (!p.to.length) return;
   await ctx.mailer.send({
-    to,
+    to: p.to,
     analysisId: p.analysis.id,
     subject: `[${p.analysis.slug}] Unblinding ${p.approved ? 'approved' : 'declined'} by ${p.by}`,
     text: [
@@ -155,10 +136,10 @@ export async function notifyUnblindingDecided(ctx: AppContext, p: { baseUrl: str
 }
 
 /** One of two required approvals: the conveners and analysts hear that a second is awaited. */
-export async function notifyUnblindingApprovedOnce(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; by: string; note: string }) {
-  const to = [...new Set([...(await emailsOf(ctx, p.analysis.id, 'analyst')), ...(await emailsOf(ctx, p.analysis.id, 'convener'))])];
+export async function notifyUnblindingApprovedOnce(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; by: string; note: string } & To) {
+  if (!p.to.length) return;
   await ctx.mailer.send({
-    to,
+    to: p.to,
     analysisId: p.analysis.id,
     subject: `[${p.analysis.slug}] Unblinding approved by ${p.by}; a second convener must approve`,
     text: [
@@ -174,9 +155,10 @@ export async function notifyUnblindingApprovedOnce(ctx: AppContext, p: { baseUrl
  * An admin changed their own membership of a blinded analysis, or made someone a convener of it:
  * every convener is told.
  */
-export async function notifyAdminMembershipChange(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; own: boolean; text: string }) {
+export async function notifyAdminMembershipChange(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; own: boolean; text: string } & To) {
+  if (!p.to.length) return;
   await ctx.mailer.send({
-    to: await emailsOf(ctx, p.analysis.id, 'convener'),
+    to: p.to,
     analysisId: p.analysis.id,
     subject: p.own ? `[${p.analysis.slug}] An admin changed their own membership of this blinded analysis` : `[${p.analysis.slug}] An admin gave the convener role in this blinded analysis`,
     text: [

@@ -1,16 +1,12 @@
 import type { RequestHandler } from 'express';
 import { rateLimit } from 'express-rate-limit';
 import type { PassportStatic } from 'passport';
-import { signInSchema, type Me } from '@shared/schemas/api';
+import { signInSchema } from '@shared/schemas/api';
 import type { AppContext } from '../context';
-import { membershipsOf } from '../db/analyses.repository';
+import { me } from '../services/users.service';
 import { AppError, unauthorised } from '../errors';
 import { csrf } from '../auth/csrf';
 import { route, type ApiRoute } from './route';
-
-export async function me(ctx: AppContext, user: Express.User): Promise<Me> {
-  return { user, memberships: await membershipsOf(ctx.db, user.id) };
-}
 
 export function authRoutes(ctx: AppContext, passport: PassportStatic): ApiRoute[] {
   // failures are counted per address, so that a person who signs in often is never refused; a

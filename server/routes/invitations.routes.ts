@@ -2,7 +2,7 @@ import type { AppContext } from '../context';
 import { accessOf, type authorizer } from '../auth/authorize';
 import { csrf } from '../auth/csrf';
 import { acceptInvitation, invite, showInvitation } from '../services/invitations.service';
-import { me } from './auth.routes';
+import { me } from '../services/users.service';
 import { baseUrl } from './base-url';
 import { route, type ApiRoute } from './route';
 

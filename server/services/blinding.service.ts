@@ -16,6 +16,7 @@ import {
   setUnblindingApprovals,
 } from '../db/blinding.repository';
 import type { DbOrTx } from '../db/revisions.repository';
+import { withRoles } from './recipients.service';
 import { badRequest, conflict, forbidden } from '../errors';
 import { regionEntersFit } from '../fit';
 import { notifyAdminMembershipChange, notifyUnblindingApprovedOnce, notifyUnblindingDecided, notifyUnblindingRequested } from '../mail/notifications';
@@ -96,7 +97,7 @@ export async function requestUnblinding(ctx: AppContext, access: Access, body: u
   const { note } = unblindingRequestSchema.parse(body);
   if (!(await moveBlindingState(ctx.db, access.analysis.id, 'blinded', 'unblinding_requested', { userId: access.userId, action: 'requested', note })))
     throw conflict(`Unblinding can be requested only while the analysis is blinded with no request pending; it is ${await stateWords(ctx, access)}.`);
-  await notifyUnblindingRequested(ctx, { baseUrl, analysis: access.analysis, by: access.userName, note });
+  await notifyUnblindingRequested(ctx, { to: await withRoles(ctx, access.analysis.id, 'convener'), baseUrl, analysis: access.analysis, by: access.userName, note });
   return blindingLog(ctx, access);
 }
 
@@ -137,12 +138,12 @@ export async function decideUnblinding(ctx: AppContext, access: Access, body: un
   const final = !approve || request.approvedBy.length + 1 >= state.unblindingApprovals;
   if (!final) {
     await addBlindingEvent(ctx.db, { analysisId: access.analysis.id, userId: access.userId, action: 'first_approval', note });
-    await notifyUnblindingApprovedOnce(ctx, { baseUrl, analysis: access.analysis, by: access.userName, note });
+    await notifyUnblindingApprovedOnce(ctx, { to: await withRoles(ctx, access.analysis.id, 'analyst', 'convener'), baseUrl, analysis: access.analysis, by: access.userName, note });
     return blindingLog(ctx, access);
   }
   const moved = await moveBlindingState(ctx.db, access.analysis.id, 'unblinding_requested', approve ? 'unblinded' : 'blinded', { userId: access.userId, action: approve ? 'approved' : 'declined', note });
   if (!moved) throw conflict(`There is no unblinding request to decide: the analysis is ${await stateWords(ctx, access)}.`);
-  await notifyUnblindingDecided(ctx, { baseUrl, analysis: access.analysis, by: access.userName, approved: approve, note });
+  await notifyUnblindingDecided(ctx, { to: await withRoles(ctx, access.analysis.id, 'analyst', 'convener'), baseUrl, analysis: access.analysis, by: access.userName, approved: approve, note });
   return blindingLog(ctx, access);
 }
 
@@ -198,5 +199,5 @@ export async function announceMembershipChange(ctx: AppContext, analysis: Analys
   if (analysis.blinding === 'unblinded' || !actor.isAdmin) return;
   const own = change.user.id === actor.id;
   const convener = change.kind !== 'removed' && change.role === 'convener';
-  if (own || convener) await notifyAdminMembershipChange(ctx, { baseUrl, analysis, own, text: describe(change, actor.name) });
+  if (own || convener) await notifyAdminMembershipChange(ctx, { to: await withRoles(ctx, analysis.id, 'convener'), baseUrl, analysis, own, text: describe(change, actor.name) });
 }

@@ -21,6 +21,7 @@ import { badRequest, conflict, forbidden, notFound, unprocessable } from '../err
 import { notifyAccepted, notifySentBack, notifySubmitted } from '../mail/notifications';
 import { readUpload } from '../uploads/upload';
 import { groupIdFor } from './groups.service';
+import { personal, withRoles } from './recipients.service';
 import { readVariationFile } from './variation-files';
 
 
@@ -204,7 +205,7 @@ export async function updateEntry(ctx: AppContext, access: Access, key: string, 
       after: snapshot(after, groupChanged ? (group ?? null) : oldGroup),
     });
   });
-  if (backToReview) await notifySubmitted(ctx, { baseUrl, analysis: access.analysis, entry, by: access.userName, reason: 'changed the accepted' });
+  if (backToReview) await notifySubmitted(ctx, { to: await withRoles(ctx, access.analysis.id, 'convener'), baseUrl, analysis: access.analysis, entry, by: access.userName, reason: 'changed the accepted' });
   return getEntryDetail(ctx, access, key);
 }
 
@@ -238,9 +239,9 @@ export async function reviewEntry(ctx: AppContext, access: Access, key: string, 
     });
   });
   const note = { baseUrl, analysis: access.analysis, entry, by: access.userName, comment };
-  if (action === 'submit') await notifySubmitted(ctx, { ...note, reason: 'submitted' });
-  if (action === 'accept') await notifyAccepted(ctx, note);
-  if (action === 'send_back') await notifySentBack(ctx, note);
+  if (action === 'submit') await notifySubmitted(ctx, { ...note, to: await withRoles(ctx, access.analysis.id, 'convener'), reason: 'submitted' });
+  if (action === 'accept') await notifyAccepted(ctx, { ...note, to: await personal(ctx, entry.ownerId) });
+  if (action === 'send_back') await notifySentBack(ctx, { ...note, to: await personal(ctx, entry.ownerId) });
   return getEntryDetail(ctx, access, key);
 }
 
@@ -313,7 +314,7 @@ export async function uploadVariations(
       after: { upload: stored.id, sha256: upload.sha256, effects: ready.map((e) => ({ region: e.region, process: e.process, kind: e.kind, transformed: e.transformed })) },
     });
   });
-  if (backToReview) await notifySubmitted(ctx, { baseUrl, analysis: access.analysis, entry, by: access.userName, reason: 'uploaded new variations for the accepted' });
+  if (backToReview) await notifySubmitted(ctx, { to: await withRoles(ctx, access.analysis.id, 'convener'), baseUrl, analysis: access.analysis, entry, by: access.userName, reason: 'uploaded new variations for the accepted' });
   return { ...preview, saved: true };
 }
 
@@ -337,6 +338,6 @@ export async function deleteEffect(ctx: AppContext, access: Access, key: string,
       before: { effect: { kind: effect.kind, up: effect.up, down: effect.down } },
     });
   });
-  if (backToReview) await notifySubmitted(ctx, { baseUrl, analysis: access.analysis, entry, by: access.userName, reason: 'removed an effect of the accepted' });
+  if (backToReview) await notifySubmitted(ctx, { to: await withRoles(ctx, access.analysis.id, 'convener'), baseUrl, analysis: access.analysis, entry, by: access.userName, reason: 'removed an effect of the accepted' });
   return getEntryDetail(ctx, access, key);
 }

@@ -13,6 +13,7 @@ import { answers, entries, fits, groups, questions, users } from '../db/schema';
 import { findEntry } from '../db/entries.repository';
 import { conflict, notFound } from '../errors';
 import { notifyQuestionAnswered, notifyQuestionRaised, notifyQuestionStep } from '../mail/notifications';
+import { audience, personal, withRoles } from './recipients.service';
 
 /**
  * Questions on parameters: a convener raises one on a register entry (optionally tied to a fit),
@@ -111,7 +112,6 @@ const mailOf = (access: Access, baseUrl: string, row: { q: { id: number; title: 
   title: row.q.title,
   entry: row.entry,
   by: access.userName,
-  byId: access.userId,
 });
 
 export async function raiseQuestion(ctx: AppContext, access: Access, body: unknown, baseUrl: string): Promise<QuestionDetail> {
@@ -130,7 +130,12 @@ export async function raiseQuestion(ctx: AppContext, access: Access, body: unkno
     .insert(questions)
     .values({ analysisId: access.analysis.id, entryId: entry.id, fitId: input.fitId, authorId: access.userId, title: input.title, body: input.body })
     .returning({ id: questions.id });
-  await notifyQuestionRaised(ctx, { ...mailOf(access, baseUrl, { q: { id: q.id, title: input.title }, entry }), body: input.body, fit: fitLabel });
+  await notifyQuestionRaised(ctx, {
+    ...mailOf(access, baseUrl, { q: { id: q.id, title: input.title }, entry }),
+    to: await audience(ctx, access.userId, [personal(ctx, entry.ownerId), withRoles(ctx, access.analysis.id, 'analyst')]),
+    body: input.body,
+    fit: fitLabel,
+  });
   return getQuestion(ctx, access, q.id);
 }
 
@@ -142,7 +147,12 @@ export async function answerQuestion(ctx: AppContext, access: Access, id: number
     await tx.insert(answers).values({ questionId: id, authorId: access.userId, body: input.body });
     if (row.q.state === 'open') await tx.update(questions).set({ state: 'answered' }).where(eq(questions.id, id));
   });
-  await notifyQuestionAnswered(ctx, { ...mailOf(access, baseUrl, row), body: input.body, authorId: row.q.authorId });
+  await notifyQuestionAnswered(ctx, {
+    ...mailOf(access, baseUrl, row),
+    to: await audience(ctx, access.userId, [personal(ctx, row.q.authorId), personal(ctx, row.entry.ownerId)]),
+    body: input.body,
+    authorId: row.q.authorId,
+  });
   return getQuestion(ctx, access, id);
 }
 
@@ -159,6 +169,11 @@ export async function stepQuestion(ctx: AppContext, access: Access, id: number, 
       .set(step === 'resolve' ? { state: 'resolved', resolvedAt: new Date(), resolvedById: access.userId } : { state: 'open', resolvedAt: null, resolvedById: null })
       .where(eq(questions.id, id));
   });
-  await notifyQuestionStep(ctx, { ...mailOf(access, baseUrl, row), step: step === 'resolve' ? 'resolved' : 'reopened', note });
+  await notifyQuestionStep(ctx, {
+    ...mailOf(access, baseUrl, row),
+    to: await audience(ctx, access.userId, [personal(ctx, row.entry.ownerId)]),
+    step: step === 'resolve' ? 'resolved' : 'reopened',
+    note,
+  });
   return getQuestion(ctx, access, id);
 }

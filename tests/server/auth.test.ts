@@ -10,6 +10,7 @@ import { openDatabase, DataDirLockedError } from '../../server/db/client';
 import { analyses, users } from '../../server/db/schema';
 import { seedDemo } from '../../server/seed/demo';
 import { createMailer } from '../../server/mail/mailer';
+import { outboxStore } from '../../server/db/outbox.repository';
 import { createToyRunner } from '../../server/jobs/toy-runner';
 import { createFitRunner } from '../../server/jobs/fit-runner';
 import { Client, createTestApp, DEMO, signedIn, type TestApp } from './helpers';
@@ -193,7 +194,7 @@ describe('a data folder', () => {
       const config = testConfig();
       let database = await openDatabase(dir);
       await seedDemo(database.db);
-      let mailer = await createMailer(database.db, config, () => {});
+      let mailer = await createMailer(outboxStore(database.db), config, () => {});
       let fits = createFitRunner(database.db, () => {}, { threads: 1 });
       const client = await signedIn(createApp(database, config, { mailer, fits, toys: createToyRunner(database.db, () => {}), log: () => {} }).app, DEMO.reader);
       const cookie = (await client.get('/api/auth/me')).request.cookies;
@@ -202,7 +203,7 @@ describe('a data folder', () => {
       await database.close();
 
       database = await openDatabase(dir);
-      mailer = await createMailer(database.db, config, () => {});
+      mailer = await createMailer(outboxStore(database.db), config, () => {});
       fits = createFitRunner(database.db, () => {}, { threads: 1 });
       const res = await request(createApp(database, config, { mailer, fits, toys: createToyRunner(database.db, () => {}), log: () => {} }).app).get('/api/auth/me').set('Cookie', cookie);
       expect(res.status).toBe(200);

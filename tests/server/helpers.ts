@@ -5,6 +5,7 @@ import { testConfig, type Config } from '../../server/config';
 import { openDatabase, type Database } from '../../server/db/client';
 import { hashPassword } from '../../server/auth/passwords';
 import { createMailer, type Mailer } from '../../server/mail/mailer';
+import { outboxStore } from '../../server/db/outbox.repository';
 import { createFitRunner, type FitRunner } from '../../server/jobs/fit-runner';
 import { createToyRunner, type ToyRunner } from '../../server/jobs/toy-runner';
 import { users } from '../../server/db/schema';
@@ -30,7 +31,7 @@ export async function createTestApp(overrides: Partial<Config> = {}): Promise<Te
   await seedDemo(database.db);
   await database.db.insert(users).values({ email: DEMO.outsider, name: 'Ona Outsider', passwordHash: await hashPassword(PASSWORD) });
   const config = testConfig(overrides);
-  const mailer = await createMailer(database.db, config, () => {});
+  const mailer = await createMailer(outboxStore(database.db), config, () => {});
   const fits = createFitRunner(database.db, () => {}, { threads: 2 });
   const toys = createToyRunner(database.db, () => {}, { threads: 2 });
   const app = createApp(database, config, { mailer, fits, toys, log: () => {} });

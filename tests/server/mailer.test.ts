@@ -5,6 +5,7 @@ import { testConfig } from '../../server/config';
 import { openDatabase } from '../../server/db/client';
 import { outbox } from '../../server/db/schema';
 import { createMailer } from '../../server/mail/mailer';
+import { outboxStore } from '../../server/db/outbox.repository';
 
 describe('the mailer', () => {
   it('hands a message over without waiting for the mail server, and records what became of it in the outbox', async () => {
@@ -13,7 +14,7 @@ describe('the mailer', () => {
     const silent = net.createServer((s) => void sockets.push(s)).listen(0, '127.0.0.1');
     await once(silent, 'listening');
     const database = await openDatabase();
-    const mailer = await createMailer(database.db, testConfig({ SMTP_URL: `smtp://127.0.0.1:${(silent.address() as AddressInfo).port}` }), () => {});
+    const mailer = await createMailer(outboxStore(database.db), testConfig({ SMTP_URL: `smtp://127.0.0.1:${(silent.address() as AddressInfo).port}` }), () => {});
     try {
       const started = Date.now();
       await mailer.send({ to: ['nell@lantern.example'], subject: 'Handed over', text: 'The request that sent this did not wait.' });
