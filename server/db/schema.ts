@@ -17,6 +17,7 @@ import {
   uniqueIndex,
   varchar,
 } from 'drizzle-orm/pg-core';
+import { BLINDING_STATES, EFFECT_KINDS, ENTRY_STATES, FIT_STATES, MEMBER_ROLES, PROCESS_KINDS, QUESTION_STATES, REGION_ROLES } from '../../shared/vocabulary';
 
 /**
  * The single source of truth for the data model. Migrations in drizzle/ are generated from
@@ -31,14 +32,14 @@ const bytea = customType<{ data: Buffer; driverData: Buffer | Uint8Array }>({
 
 const createdAt = () => timestamp('created_at', { withTimezone: true, mode: 'date' }).notNull().defaultNow();
 
-export const memberRole = pgEnum('member_role', ['convener', 'analyst', 'contact', 'reader']);
-export const regionRole = pgEnum('region_role', ['signal', 'control', 'validation']);
-export const processKind = pgEnum('process_kind', ['signal', 'background']);
-export const effectKind = pgEnum('effect_kind', ['scale', 'shape']);
-export const entryState = pgEnum('entry_state', ['draft', 'submitted', 'accepted', 'sent_back', 'retired']);
-export const blindingState = pgEnum('blinding_state', ['blinded', 'unblinding_requested', 'unblinded']);
-export const fitState = pgEnum('fit_state', ['queued', 'running', 'succeeded', 'failed', 'cancelled']);
-export const questionState = pgEnum('question_state', ['open', 'answered', 'resolved']);
+export const memberRole = pgEnum('member_role', MEMBER_ROLES);
+export const regionRole = pgEnum('region_role', REGION_ROLES);
+export const processKind = pgEnum('process_kind', PROCESS_KINDS);
+export const effectKind = pgEnum('effect_kind', EFFECT_KINDS);
+export const entryState = pgEnum('entry_state', ENTRY_STATES);
+export const blindingState = pgEnum('blinding_state', BLINDING_STATES);
+export const fitState = pgEnum('fit_state', FIT_STATES);
+export const questionState = pgEnum('question_state', QUESTION_STATES);
 
 export const users = pgTable('users', {
   id: serial('id').primaryKey(),

@@ -1,12 +1,13 @@
 import { z } from 'zod';
+import { BLINDING_STATES, EFFECT_KINDS, ENTRY_STATES, PROCESS_KINDS, REGION_ROLES } from '../vocabulary';
 import { MEMBER_ROLES, ACTIONS } from '../permissions';
 
 /** Request and response contracts of the HTTP API (server parses with them, client types with them). */
 
 export const memberRoleSchema = z.enum(MEMBER_ROLES);
 export const actionSchema = z.enum(ACTIONS);
-export const blindingSchema = z.enum(['blinded', 'unblinding_requested', 'unblinded']);
-export const entryStateSchema = z.enum(['draft', 'submitted', 'accepted', 'sent_back', 'retired']);
+export const blindingSchema = z.enum(BLINDING_STATES);
+export const entryStateSchema = z.enum(ENTRY_STATES);
 export type EntryState = z.infer<typeof entryStateSchema>;
 export type Blinding = z.infer<typeof blindingSchema>;
 
@@ -117,7 +118,7 @@ export type UpdateMember = z.infer<typeof updateMemberSchema>;
 export const regionSchema = z.object({
   key: z.string(),
   label: z.string(),
-  role: z.enum(['signal', 'control', 'validation']),
+  role: z.enum(REGION_ROLES),
   observable: z.string(),
   unit: z.string(),
   edges: z.array(z.number()),
@@ -130,7 +131,7 @@ export type Region = z.infer<typeof regionSchema>;
 export const processSchema = z.object({
   key: z.string(),
   label: z.string(),
-  kind: z.enum(['signal', 'background']),
+  kind: z.enum(PROCESS_KINDS),
   colour: z.string().nullable(),
 });
 export type Process = z.infer<typeof processSchema>;
@@ -160,7 +161,7 @@ export const entrySummarySchema = z.object({
   state: entryStateSchema,
   processes: z.array(z.string()),
   regions: z.array(z.string()),
-  kinds: z.array(z.enum(['scale', 'shape'])),
+  kinds: z.array(z.enum(EFFECT_KINDS)),
   /** largest |variation| over nominal in any bin, in percent */
   largestEffectPct: z.number().nullable(),
   warnings: z.number(),

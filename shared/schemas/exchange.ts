@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { PROCESS_KINDS, REGION_ROLES } from '../vocabulary';
 
 /**
  * The exchange file: one JSON document holding a whole binned model (regions with their
@@ -35,7 +36,7 @@ export const ratioNumber = finite.gt(0, 'must be greater than 0').min(1 / LIMITS
 /** A parameter's start or bound. */
 const parameterNumber = finite.min(-LIMITS.parameter, 'must be at least -1e6').max(LIMITS.parameter, 'must be at most 1e6');
 
-export const regionRoleSchema = z.enum(['signal', 'control', 'validation']);
+export const regionRoleSchema = z.enum(REGION_ROLES);
 export type RegionRole = z.infer<typeof regionRoleSchema>;
 
 export const exchangeRegionSchema = z.strictObject({
@@ -54,7 +55,7 @@ export const exchangeProcessSchema = z.strictObject({
   key: keySchema,
   label: z.string().max(200).optional(),
   /** Signal processes are multiplied by the signal strength μ. */
-  kind: z.enum(['signal', 'background']),
+  kind: z.enum(PROCESS_KINDS),
   /** Display colour (#rrggbb); optional. */
   colour: z.string().regex(/^#[0-9a-fA-F]{6}$/).optional(),
 });

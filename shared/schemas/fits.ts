@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { FIT_STATES } from '../vocabulary';
 import { correlationSchema, fitOptionsSchema, fitResultSchema, informationSchema } from './fit';
 
 /** Contracts of model versions, fit runs, results, exports and comparisons. */
@@ -21,7 +22,7 @@ export const freezeVersionSchema = z.strictObject({
 });
 export type FreezeVersion = z.input<typeof freezeVersionSchema>;
 
-export const fitStateSchema = z.enum(['queued', 'running', 'succeeded', 'failed', 'cancelled']);
+export const fitStateSchema = z.enum(FIT_STATES);
 export type FitState = z.infer<typeof fitStateSchema>;
 
 export const startFitSchema = z.strictObject({

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { EFFECT_KINDS, PROCESS_KINDS } from '../vocabulary';
 import { memberRoleSchema, entryStateSchema } from './api';
 import { keySchema, LIMITS, ratioNumber, regionRoleSchema, varianceNumber, yieldNumber } from './exchange';
 
@@ -28,7 +29,7 @@ export const observedInputSchema = z.strictObject({ observed: z.array(yieldNumbe
 const processFields = {
   key: keySchema,
   label: text(200),
-  kind: z.enum(['signal', 'background']),
+  kind: z.enum(PROCESS_KINDS),
   colour: z.string().regex(/^#[0-9a-fA-F]{6}$/, 'must be a colour like #2e6f95').nullable(),
 };
 export const processInputSchema = z.strictObject({ ...processFields, label: processFields.label.default(''), colour: processFields.colour.default(null) });
@@ -108,7 +109,7 @@ export type VariationWarningView = z.infer<typeof variationWarningSchema>;
 const effectShownSchema = z.object({
   region: z.string(),
   process: z.string(),
-  kind: z.enum(['scale', 'shape']),
+  kind: z.enum(EFFECT_KINDS),
   up: z.union([z.number(), z.array(z.number())]),
   down: z.union([z.number(), z.array(z.number())]),
   /** the template the variation is relative to, for the per-bin preview */

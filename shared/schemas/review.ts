@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { BLINDING_STATES, QUESTION_STATES, REGION_ROLES } from '../vocabulary';
 import { impactPairSchema, parameterScanSchema } from './fit';
 import { fitSummarySchema } from './fits';
 
@@ -34,7 +35,7 @@ export type DiagnosisBin = z.infer<typeof diagnosisBinSchema>;
 export const diagnosisRegionSchema = z.object({
   region: z.string(),
   label: z.string(),
-  role: z.enum(['signal', 'control', 'validation']),
+  role: z.enum(REGION_ROLES),
   information: z.number(),
   /** share of the whole information (constraint included), 0–1 */
   share: z.number(),
@@ -93,7 +94,7 @@ export type Diagnosis = z.infer<typeof diagnosisSchema>;
 
 // ---- questions on parameters
 
-export const questionStateSchema = z.enum(['open', 'answered', 'resolved']);
+export const questionStateSchema = z.enum(QUESTION_STATES);
 export type QuestionState = z.infer<typeof questionStateSchema>;
 
 const person = z.object({ id: z.number(), name: z.string() }).nullable();
@@ -180,7 +181,7 @@ export type BlindingEvent = z.infer<typeof blindingEventSchema>;
 
 /** GET /api/analyses/:slug/blinding */
 export const blindingLogSchema = z.object({
-  state: z.enum(['blinded', 'unblinding_requested', 'unblinded']),
+  state: z.enum(BLINDING_STATES),
   /** conveners other than the requester who must approve (1 or 2) */
   approvalsRequired: z.number().int(),
   /** approvals given so far to the pending request */
