@@ -1,15 +1,15 @@
-import { and, eq } from 'drizzle-orm';
 import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
 import { fitOptionsSchema } from '@shared/schemas/fit';
 import type { Diagnosis, DiagnosisClaim, DiagnosisRegion } from '@shared/schemas/review';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { entries, modelVersions, users } from '../db/schema';
+import { entryWithOwner } from '../db/entries.repository';
 import { conflict, notFound } from '../errors';
 import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
 import { recentResults } from '../cache/results';
 import { isWithheld, withheldResultMessage } from './blinding.service';
-import { findFit, storedHead, storedPart, summaryOf, withheldReadBy } from './fits.service';
+import { findFit, summaryOf, withheldReadBy } from './fits.service';
+import { storedHead, storedPart, versionModel } from '../db/fits.repository';
 
 /**
  * The diagnosis of one nuisance parameter in one succeeded fit: the engine's numbers
@@ -23,8 +23,7 @@ const computed = recentResults<Computed>(64);
 
 const numbersFor = (ctx: AppContext, fitId: number, versionId: number, options: unknown, parameter: string) =>
   computed(ctx.db, `${fitId}\u0000${parameter}`, async () => {
-    const [version] = await ctx.db.select({ model: modelVersions.model }).from(modelVersions).where(eq(modelVersions.id, versionId));
-    const model = exchangeModelSchema.parse(version.model);
+    const model = exchangeModelSchema.parse(await versionModel(ctx.db, versionId));
     // the regions' labels and edges are all the panel needs of the model afterwards
     return { value: { numbers: await ctx.fits.diagnose(model, fitOptionsSchema.parse(options), parameter), regions: model.regions }, final: true };
   });
@@ -34,18 +33,14 @@ export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: numb
   if (row.fit.state !== 'succeeded') throw conflict(`Fit ${fitId} has ${row.fit.state === 'failed' ? 'failed' : `not succeeded (${row.fit.state})`}: there is nothing to diagnose.`);
   const withheld = withheldReadBy(access.analysis, row.fit);
   if (withheld.length) throw conflict(withheldResultMessage(withheld));
-  const result = (await storedHead(ctx, fitId))!;
+  const result = (await storedHead(ctx.db, fitId))!;
   if (result.status !== 'converged') throw conflict(`Fit ${fitId} did not converge: there is nothing to diagnose.`);
   const report = result.nuisance.find((n) => n.name === parameter);
   if (!report) throw notFound(`Nuisance parameter "${parameter}" in fit ${fitId}`);
   if (report.fixed) throw conflict(`${parameter} is held in fit ${fitId}: it has no post-fit width to diagnose.`);
   const { numbers, regions: specs } = await numbersFor(ctx, fitId, row.fit.modelVersionId, row.fit.options, parameter);
   if (numbers.failure) throw conflict(`The diagnosis of ${parameter} could not be made: ${numbers.failure}.`);
-  const [entry] = await ctx.db
-    .select({ key: entries.key, owner: users.name })
-    .from(entries)
-    .leftJoin(users, eq(users.id, entries.ownerId))
-    .where(and(eq(entries.analysisId, access.analysis.id), eq(entries.key, parameter)));
+  const entry = await entryWithOwner(ctx.db, access.analysis.id, parameter);
   const p = result.parameters.find((x) => x.name === parameter)!;
   const total = numbers.information.total;
   const observed = result.data.dataset === 'observed';
@@ -77,7 +72,7 @@ export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: numb
     };
   });
 
-  const { part: correlation } = await storedPart(ctx, fitId, 'correlation');
+  const { part: correlation } = await storedPart(ctx.db, fitId, 'correlation');
   const labels = new Map(result.parameters.map((x) => [x.name, x.label]));
   const correlations: Diagnosis['correlations'] = [];
   if (correlation) {

@@ -1,5 +1,4 @@
 import { untilModelChanges } from '../cache/change-notices';
-import { and, eq } from 'drizzle-orm';
 import { can } from '@shared/permissions';
 import {
   entryInputSchema,
@@ -13,10 +12,24 @@ import type { EntryState } from '@shared/schemas/api';
 import { largestEffectPct } from '@shared/validation/variation-warnings';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { findEntry, type EntryRow } from '../db/entries.repository';
+import {
+  deleteEffectRow,
+  effectsOf,
+  effectsWithUploads,
+  entryExists,
+  entryForPage,
+  findEffect,
+  findEntry,
+  groupName,
+  insertEntry,
+  insertUpload,
+  isMember,
+  replaceEffect,
+  updateEntryRow,
+  type EntryRow,
+} from '../db/entries.repository';
 import { indexModel, cachedModelIndex, loadModelRows } from '../db/model.repository';
 import { addRevision, entryRevisions, type DbOrTx } from '../db/revisions.repository';
-import { effects, entries, groups, memberships, uploads, users } from '../db/schema';
 import { badRequest, conflict, forbidden, notFound, unprocessable } from '../errors';
 import { notifyAccepted, notifySentBack, notifySubmitted } from '../mail/notifications';
 import { readUpload } from '../uploads/upload';
@@ -62,16 +75,9 @@ const snapshot = (e: EntryRow, group: string | null) => ({
   state: e.state,
 });
 
-async function groupName(db: DbOrTx, id: number | null) {
-  if (!id) return null;
-  const [g] = await db.select({ name: groups.name }).from(groups).where(eq(groups.id, id));
-  return g?.name ?? null;
-}
-
 async function assertOwnerIsMember(db: DbOrTx, analysisId: number, ownerId: number | null) {
   if (ownerId === null) return;
-  const [m] = await db.select().from(memberships).where(and(eq(memberships.analysisId, analysisId), eq(memberships.userId, ownerId)));
-  if (!m) throw unprocessable('The owner must be a member of this analysis: add them on the Members screen first.', [{ path: ['ownerId'], message: 'is not a member of this analysis' }]);
+  if (!(await isMember(db, analysisId, ownerId))) throw unprocessable('The owner must be a member of this analysis: add them on the Members screen first.', [{ path: ['ownerId'], message: 'is not a member of this analysis' }]);
 }
 
 /**
@@ -80,12 +86,7 @@ async function assertOwnerIsMember(db: DbOrTx, analysisId: number, ownerId: numb
  * (`effectViews`); the entry's own fields, owner, group and history are read each time.
  */
 export async function getEntryDetail(ctx: AppContext, access: Access, key: string): Promise<EntryDetail> {
-  const [row] = await ctx.db
-    .select({ entry: entries, owner: { id: users.id, name: users.name, email: users.email }, group: groups.name })
-    .from(entries)
-    .leftJoin(users, eq(users.id, entries.ownerId))
-    .leftJoin(groups, eq(groups.id, entries.groupId))
-    .where(and(eq(entries.analysisId, access.analysis.id), eq(entries.key, key)));
+  const row = await entryForPage(ctx.db, access.analysis.id, key);
   if (!row) throw notFound(`Register entry "${key}"`);
   const { entry } = row;
   const effectList = await effectViews(ctx, access.analysis.id, entry.id);
@@ -120,12 +121,7 @@ export async function getEntryDetail(ctx: AppContext, access: Access, key: strin
 function effectViews(ctx: AppContext, analysisId: number, entryId: number): Promise<EntryDetail['effects']> {
   return untilModelChanges(ctx.client, analysisId, `effects of entry ${entryId}`, async () => {
     const model = await cachedModelIndex(ctx, analysisId);
-    const effectRows = await ctx.db
-      .select({ effect: effects, upload: { id: uploads.id, filename: uploads.filename, sha256: uploads.sha256, createdAt: uploads.createdAt } })
-      .from(effects)
-      .leftJoin(uploads, eq(uploads.id, effects.uploadId))
-      .where(eq(effects.entryId, entryId))
-      .orderBy(effects.id);
+    const effectRows = await effectsWithUploads(ctx.db, entryId);
     return effectRows.map(({ effect: e, upload }) => {
       const region = model.regionById.get(e.regionId)!;
       const process = model.processById.get(e.processId)!;
@@ -148,14 +144,19 @@ function effectViews(ctx: AppContext, analysisId: number, entryId: number): Prom
 export async function createEntry(ctx: AppContext, access: Access, body: unknown): Promise<EntryDetail> {
   const input = entryInputSchema.parse(body);
   const analysisId = access.analysis.id;
-  const [existing] = await ctx.db.select({ id: entries.id }).from(entries).where(and(eq(entries.analysisId, analysisId), eq(entries.key, input.key)));
-  if (existing) throw conflict(`The register already has an entry with the key "${input.key}".`);
+  if (await entryExists(ctx.db, analysisId, input.key)) throw conflict(`The register already has an entry with the key "${input.key}".`);
   await assertOwnerIsMember(ctx.db, analysisId, input.ownerId);
   await ctx.db.transaction(async (tx) => {
-    const [entry] = await tx
-      .insert(entries)
-      .values({ analysisId, key: input.key, label: input.label, groupId: await groupIdFor(tx, analysisId, input.group), ownerId: input.ownerId, description: input.description, justification: input.justification, references: input.references })
-      .returning();
+    const entry = await insertEntry(tx, {
+      analysisId,
+      key: input.key,
+      label: input.label,
+      groupId: await groupIdFor(tx, analysisId, input.group),
+      ownerId: input.ownerId,
+      description: input.description,
+      justification: input.justification,
+      references: input.references,
+    });
     await addRevision(tx, { analysisId, entryId: entry.id, authorId: access.userId, action: 'created', summary: `Created "${input.label}" as a draft.`, after: snapshot(entry, input.group) });
   });
   return getEntryDetail(ctx, access, input.key);
@@ -183,17 +184,13 @@ export async function updateEntry(ctx: AppContext, access: Access, key: string, 
 
   const backToReview = entry.state === 'accepted';
   await ctx.db.transaction(async (tx) => {
-    const [after] = await tx
-      .update(entries)
-      .set({
-        ...Object.fromEntries(changed),
-        ...(groupChanged ? { groupId: await groupIdFor(tx, access.analysis.id, group ?? null) } : {}),
-        state: backToReview ? 'submitted' : entry.state,
-        version: entry.version + 1,
-        updatedAt: new Date(),
-      })
-      .where(eq(entries.id, entry.id))
-      .returning();
+    const after = await updateEntryRow(tx, entry.id, {
+      ...Object.fromEntries(changed),
+      ...(groupChanged ? { groupId: await groupIdFor(tx, access.analysis.id, group ?? null) } : {}),
+      state: backToReview ? 'submitted' : entry.state,
+      version: entry.version + 1,
+      updatedAt: new Date(),
+    });
     const names = [...changed.map(([k]) => k), ...(groupChanged ? ['group'] : [])];
     await addRevision(tx, {
       analysisId: access.analysis.id,
@@ -227,7 +224,7 @@ export async function reviewEntry(ctx: AppContext, access: Access, key: string, 
     throw conflict(`"${key}" is ${entry.state.replace('_', ' ')}; "${action.replace('_', ' ')}" applies only to an entry that is ${step.from.map((s) => s.replace('_', ' ')).join(' or ')}.`);
   if (action === 'send_back' && !comment.trim()) throw badRequest('Say what must change: sending an entry back needs a comment.', [{ path: ['comment'], message: 'is required when sending back' }]);
   await ctx.db.transaction(async (tx) => {
-    await tx.update(entries).set({ state: step.to, version: entry.version + 1, updatedAt: new Date() }).where(eq(entries.id, entry.id));
+    await updateEntryRow(tx, entry.id, { state: step.to, version: entry.version + 1, updatedAt: new Date() });
     await addRevision(tx, {
       analysisId: access.analysis.id,
       entryId: entry.id,
@@ -279,7 +276,7 @@ export async function uploadVariations(
   const model = indexModel(await loadModelRows(ctx.db, access.analysis.id));
   const ready = readVariationFile(upload, model, options);
 
-  const current = await ctx.db.select().from(effects).where(eq(effects.entryId, entry.id));
+  const current = await effectsOf(ctx.db, entry.id);
   const idOf = (e: { region: string; process: string }) => ({ regionId: model.regions.get(e.region)!.id, processId: model.processes.get(e.process)!.id });
   const replaces = (e: (typeof ready)[number]) => current.some((c) => c.kind === e.kind && c.regionId === idOf(e).regionId && c.processId === idOf(e).processId);
   const preview: VariationPreview = {
@@ -292,16 +289,19 @@ export async function uploadVariations(
 
   const backToReview = entry.state === 'accepted';
   await ctx.db.transaction(async (tx) => {
-    const [stored] = await tx
-      .insert(uploads)
-      .values({ analysisId: access.analysis.id, entryId: entry.id, userId: access.userId, filename: upload.filename, mediaType: upload.mediaType, sha256: upload.sha256, size: upload.size, content: upload.text })
-      .returning({ id: uploads.id });
-    for (const e of ready) {
-      const ids = idOf(e);
-      await tx.delete(effects).where(and(eq(effects.entryId, entry.id), eq(effects.regionId, ids.regionId), eq(effects.processId, ids.processId), eq(effects.kind, e.kind)));
-      await tx.insert(effects).values({ entryId: entry.id, ...ids, kind: e.kind, up: e.up, down: e.down, warnings: e.warnings, largestPct: largestEffectPct(e.kind, e.up, e.down, e.nominal), uploadId: stored.id });
-    }
-    await tx.update(entries).set({ state: backToReview ? 'submitted' : entry.state, version: entry.version + 1, updatedAt: new Date() }).where(eq(entries.id, entry.id));
+    const uploadId = await insertUpload(tx, {
+      analysisId: access.analysis.id,
+      entryId: entry.id,
+      userId: access.userId,
+      filename: upload.filename,
+      mediaType: upload.mediaType,
+      sha256: upload.sha256,
+      size: upload.size,
+      content: upload.text,
+    });
+    for (const e of ready)
+      await replaceEffect(tx, { entryId: entry.id, ...idOf(e), kind: e.kind, up: e.up, down: e.down, warnings: e.warnings, largestPct: largestEffectPct(e.kind, e.up, e.down, e.nominal), uploadId });
+    await updateEntryRow(tx, entry.id, { state: backToReview ? 'submitted' : entry.state, version: entry.version + 1, updatedAt: new Date() });
     const counts = (['shape', 'scale'] as const).map((k) => [k, ready.filter((e) => e.kind === k).length] as const).filter(([, n]) => n);
     const warnings = ready.reduce((n, e) => n + e.warnings.length, 0);
     await addRevision(tx, {
@@ -311,7 +311,7 @@ export async function uploadVariations(
       action: 'variations.uploaded',
       summary: `Uploaded "${upload.filename}" (SHA-256 ${upload.sha256.slice(0, 12)}…): ${counts.map(([k, n]) => `${n} ${k} effect${n > 1 ? 's' : ''}`).join(', ')}${warnings ? `, ${warnings} warning${warnings > 1 ? 's' : ''}` : ''}.${backToReview ? ' The entry was accepted, so it returns to review.' : ''}`,
       before: { effects: current.map((c) => ({ region: model.regionById.get(c.regionId)!.key, process: model.processById.get(c.processId)!.key, kind: c.kind })) },
-      after: { upload: stored.id, sha256: upload.sha256, effects: ready.map((e) => ({ region: e.region, process: e.process, kind: e.kind, transformed: e.transformed })) },
+      after: { upload: uploadId, sha256: upload.sha256, effects: ready.map((e) => ({ region: e.region, process: e.process, kind: e.kind, transformed: e.transformed })) },
     });
   });
   if (backToReview) await notifySubmitted(ctx, { to: await withRoles(ctx, access.analysis.id, 'convener'), baseUrl, analysis: access.analysis, entry, by: access.userName, reason: 'uploaded new variations for the accepted' });
@@ -321,14 +321,14 @@ export async function uploadVariations(
 export async function deleteEffect(ctx: AppContext, access: Access, key: string, effectId: number, baseUrl: string): Promise<EntryDetail> {
   const entry = await findEntry(ctx.db, access.analysis.id, key);
   assertMayEdit(access, entry, 'edit', 'Only the entry\u2019s owner or an analyst can remove its effects.');
-  const [effect] = await ctx.db.select().from(effects).where(and(eq(effects.id, effectId), eq(effects.entryId, entry.id)));
+  const effect = await findEffect(ctx.db, entry.id, effectId);
   if (!effect) throw notFound(`Effect ${effectId} of "${key}"`);
   const model = indexModel(await loadModelRows(ctx.db, access.analysis.id));
   const where = `${effect.kind} effect on region "${model.regionById.get(effect.regionId)!.key}", process "${model.processById.get(effect.processId)!.key}"`;
   const backToReview = entry.state === 'accepted';
   await ctx.db.transaction(async (tx) => {
-    await tx.delete(effects).where(eq(effects.id, effect.id));
-    await tx.update(entries).set({ state: backToReview ? 'submitted' : entry.state, version: entry.version + 1, updatedAt: new Date() }).where(eq(entries.id, entry.id));
+    await deleteEffectRow(tx, effect.id);
+    await updateEntryRow(tx, entry.id, { state: backToReview ? 'submitted' : entry.state, version: entry.version + 1, updatedAt: new Date() });
     await addRevision(tx, {
       analysisId: access.analysis.id,
       entryId: entry.id,

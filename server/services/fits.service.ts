@@ -1,11 +1,11 @@
 import Papa from 'papaparse';
-import { and, desc, eq, getTableColumns, sql } from 'drizzle-orm';
 import { fitOptionsSchema, type FitResult } from '@shared/schemas/fit';
-import { exportTableSchema, startFitSchema, type FitComparison, type FitPart, type FitPartName, type FitResultHead, type FitSummary } from '@shared/schemas/fits';
+import { exportTableSchema, startFitSchema, type FitComparison, type FitPartName, type FitResultHead, type FitSummary } from '@shared/schemas/fits';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { fits, modelVersions, users } from '../db/schema';
+import { findFitRow, insertFit, listFitRows, storedHead, storedPart, storedResult, type FitRow, type StoredHead } from '../db/fits.repository';
+import { fits } from '../db/schema';
 import { conflict, notFound } from '../errors';
 import { recentResults } from '../cache/results';
 import { encodeJson, type Encoded } from '../cache/encoded-json';
@@ -15,7 +15,6 @@ import { findVersion } from './versions.service';
 import { cancelJob } from '../jobs/job-rows';
 import { untilStopped } from '../jobs/local-runner';
 
-type FitRow = Omit<typeof fits.$inferSelect, 'result'>;
 
 /**
  * The blinded regions whose observed counts a stored fit read (a fit made before the region's
@@ -47,43 +46,10 @@ export function summaryOf(analysis: BlindingRule, fit: FitRow, version: number, 
   };
 }
 
-// every column but the result, which can be megabytes: lists and summaries never read it
-const { result: _result, ...summaryColumns } = getTableColumns(fits);
-const fitRows = (ctx: AppContext, analysisId: number) =>
-  ctx.db
-    .select({ fit: summaryColumns, version: modelVersions.number, by: users.name })
-    .from(fits)
-    .innerJoin(modelVersions, eq(modelVersions.id, fits.modelVersionId))
-    .leftJoin(users, eq(users.id, fits.createdById))
-    .where(eq(fits.analysisId, analysisId))
-    .$dynamic();
-
 export async function findFit(ctx: AppContext, access: Access, id: number) {
-  const [row] = await fitRows(ctx, access.analysis.id).where(and(eq(fits.analysisId, access.analysis.id), eq(fits.id, id)));
+  const row = await findFitRow(ctx.db, access.analysis.id, id);
   if (!row) throw notFound(`Fit ${id}`);
   return row;
-}
-
-async function storedResult(ctx: AppContext, id: number) {
-  const [row] = await ctx.db.select({ result: fits.result }).from(fits).where(eq(fits.id, id));
-  return (row?.result ?? null) as FitResult | null;
-}
-
-/** A stored result without its two largest parts (the database leaves them out, not this process). */
-export type StoredHead = Omit<FitResult, 'correlation' | 'information'>;
-export async function storedHead(ctx: AppContext, id: number) {
-  const [row] = await ctx.db.select({ head: sql<StoredHead | null>`${fits.result} - 'correlation' - 'information'` }).from(fits).where(eq(fits.id, id));
-  return row?.head ?? null;
-}
-
-/** One large part of a stored result, read alone; `stored` is false when the fit has no result. */
-export async function storedPart<K extends FitPartName>(ctx: AppContext, id: number, part: K) {
-  const path = part === 'gammas' ? ['gammas', 'list'] : [part];
-  const [row] = await ctx.db
-    .select({ stored: sql<boolean>`${fits.result} is not null`, part: sql<FitPart<K> | null>`${fits.result} #> ${`{${path.join(',')}}`}::text[]` })
-    .from(fits)
-    .where(eq(fits.id, id));
-  return { stored: !!row?.stored, part: row?.part ?? null };
 }
 
 /** The region keys whose observed counts are withheld now (regions blinded by the analysis). */
@@ -100,7 +66,7 @@ export function blindResult<R extends Pick<FitResult, 'data' | 'yields'>>(access
 }
 
 export async function listFits(ctx: AppContext, access: Access): Promise<FitSummary[]> {
-  const rows = await fitRows(ctx, access.analysis.id).orderBy(desc(fits.id));
+  const rows = await listFitRows(ctx.db, access.analysis.id);
   return rows.map((r) => summaryOf(access.analysis, r.fit, r.version, r.by));
 }
 
@@ -127,11 +93,11 @@ async function encodeFit(ctx: AppContext, access: Access, id: number, part: 'hea
   if (active && part !== 'head') throw conflict(`Fit ${id} has not finished yet; its ${part} is there when it ends.`);
   if (part === 'head') {
     // the parts hold no observed counts: the blinding rule concerns the head's data only
-    const head = active || summary.withheld ? null : blindResult(access, await storedHead(ctx, id));
+    const head = active || summary.withheld ? null : blindResult(access, await storedHead(ctx.db, id));
     return { value: await encodeJson({ ...summary, result: head && headOf(head) }), final: !active };
   }
   if (summary.withheld) throw conflict(summary.withheld);
-  const { stored, part: value } = await storedPart(ctx, id, part);
+  const { stored, part: value } = await storedPart(ctx.db, id, part);
   if (!stored) throw conflict(`Fit ${id} ended without a result (${row.fit.state}).`);
   return { value: await encodeJson(value), final: true };
 }
@@ -154,10 +120,7 @@ export async function startFit(ctx: AppContext, access: Access, body: unknown): 
   if (unknown.length) throw conflict(`Model version ${version.number} has no region ${unknown.map((k) => `"${k}"`).join(', ')} to leave out.`);
   const enters = regionEntersFit(options);
   const regionsInFit = model.regions.filter((r) => enters(r.key, r.role)).map((r) => r.key);
-  const [fit] = await ctx.db
-    .insert(fits)
-    .values({ analysisId: access.analysis.id, modelVersionId: version.id, label: input.label, options, regionsInFit, createdById: access.userId })
-    .returning();
+  const fit = await insertFit(ctx.db, { analysisId: access.analysis.id, modelVersionId: version.id, label: input.label, options, regionsInFit, createdById: access.userId });
   await ctx.fits.enqueue(fit.id);
   return summaryOf(access.analysis, fit, version.number, access.userName);
 }
@@ -179,7 +142,7 @@ async function convergedResult(ctx: AppContext, access: Access, id: number) {
   const row = await findFit(ctx, access, id);
   const withheld = withheldReadBy(access.analysis, row.fit);
   if (withheld.length) throw conflict(withheldResultMessage(withheld));
-  const result = blindResult(access, await storedResult(ctx, id));
+  const result = blindResult(access, await storedResult(ctx.db, id));
   if (row.fit.state !== 'succeeded' || !result || result.status !== 'converged')
     throw conflict(`Fit ${id} ${row.fit.state === 'failed' ? `failed (${row.fit.failure})` : `is ${row.fit.state}`}: it has no results to compare or export.`);
   return { row, result };
@@ -220,7 +183,7 @@ export async function exportFit(ctx: AppContext, access: Access, id: number, for
   if (format !== 'csv') {
     const row = await findFit(ctx, access, id);
     const summary = summaryOf(access.analysis, row.fit, row.version, row.by);
-    const detail = { ...summary, result: summary.withheld ? null : blindResult(access, await storedResult(ctx, id)) };
+    const detail = { ...summary, result: summary.withheld ? null : blindResult(access, await storedResult(ctx.db, id)) };
     return { type: 'application/json', filename: `${stem}.json`, body: JSON.stringify(detail, null, 2) };
   }
   const which = exportTableSchema.parse(table);

@@ -1,4 +1,3 @@
-import { and, count, eq, max, type SQL } from 'drizzle-orm';
 import type { Region, Process } from '@shared/schemas/api';
 import { LIMITS } from '@shared/schemas/exchange';
 import { processView, regionView } from './model.service';
@@ -17,7 +16,24 @@ import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { indexModel, loadModelRows, type ModelIndex } from '../db/model.repository';
 import { addRevision, type DbOrTx } from '../db/revisions.repository';
-import { effects, floatingNorms, processes, regions, templates } from '../db/schema';
+import {
+  countEffects,
+  countTemplatesOfRegion,
+  deleteFloatingNormRow,
+  deleteProcessRow,
+  deleteRegionRow,
+  deleteTemplateRow,
+  floatingNormByKey,
+  insertFloatingNorm,
+  insertProcess,
+  insertRegion,
+  processByKey,
+  regionByKey,
+  saveTemplate,
+  templateOf,
+  updateProcessRow,
+  updateRegionRow,
+} from '../db/model-edits.repository';
 import { conflict, notFound, unprocessable } from '../errors';
 import { binCell, numberCell, readCsv } from '../uploads/csv';
 import { readUpload } from '../uploads/upload';
@@ -39,18 +55,18 @@ function edgesIssue(edges: number[]) {
 }
 
 async function findRegion(db: DbOrTx, access: Access, key: string) {
-  const [r] = await db.select().from(regions).where(and(eq(regions.analysisId, access.analysis.id), eq(regions.key, key)));
+  const r = await regionByKey(db, access.analysis.id, key);
   if (!r) throw notFound(`Region "${key}"`);
   return r;
 }
 async function findProcess(db: DbOrTx, access: Access, key: string) {
-  const [p] = await db.select().from(processes).where(and(eq(processes.analysisId, access.analysis.id), eq(processes.key, key)));
+  const p = await processByKey(db, access.analysis.id, key);
   if (!p) throw notFound(`Process "${key}"`);
   return p;
 }
 /** A region, process or template that register effects vary stays until those effects are removed. */
-async function refuseIfVaried(db: DbOrTx, varying: SQL | undefined, what: string) {
-  const [{ n }] = await db.select({ n: count() }).from(effects).where(varying);
+async function refuseIfVaried(db: DbOrTx, varying: { regionId?: number; processId?: number }, what: string) {
+  const n = await countEffects(db, varying);
   if (n > 0) throw conflict(`${n} register effect${n === 1 ? '' : 's'} vary ${what}. Remove them from their entries first.`);
 }
 
@@ -58,11 +74,9 @@ export async function createRegion(ctx: AppContext, access: Access, body: unknow
   const input = regionInputSchema.parse(body);
   const bad = edgesIssue(input.edges);
   if (bad) throw bad;
-  const [dup] = await ctx.db.select({ id: regions.id }).from(regions).where(and(eq(regions.analysisId, access.analysis.id), eq(regions.key, input.key)));
-  if (dup) throw conflict(`A region with the key "${input.key}" already exists.`);
+  if (await regionByKey(ctx.db, access.analysis.id, input.key)) throw conflict(`A region with the key "${input.key}" already exists.`);
   return ctx.db.transaction(async (tx) => {
-    const [{ top }] = await tx.select({ top: max(regions.position) }).from(regions).where(eq(regions.analysisId, access.analysis.id));
-    const [r] = await tx.insert(regions).values({ analysisId: access.analysis.id, ...input, position: (top ?? -1) + 1 }).returning();
+    const r = await insertRegion(tx, { analysisId: access.analysis.id, ...input });
     await modelRevision(tx, access, 'region.created', `Added the ${r.role} region "${r.key}" with ${r.edges.length - 1} bins.`, undefined, input);
     return regionView(access, r);
   });
@@ -77,13 +91,13 @@ export async function updateRegion(ctx: AppContext, access: Access, key: string,
     if (bad) throw bad;
     const bins = input.edges.length - 1;
     if (bins !== region.edges.length - 1) {
-      const [{ n }] = await ctx.db.select({ n: count() }).from(templates).where(eq(templates.regionId, region.id));
+      const n = await countTemplatesOfRegion(ctx.db, region.id);
       if (n > 0 || region.observed)
         throw conflict(`Region "${key}" has ${n} template${n === 1 ? '' : 's'}${region.observed ? ' and observed data' : ''} with ${region.edges.length - 1} bins. Change the edges without changing the bin count, or remove them first.`);
     }
   }
   return ctx.db.transaction(async (tx) => {
-    const [r] = await tx.update(regions).set(input).where(eq(regions.id, region.id)).returning();
+    const r = await updateRegionRow(tx, region.id, input);
     await modelRevision(tx, access, 'region.edited', `Changed ${Object.keys(input).join(', ')} of region "${key}".`, { ...region, observed: undefined }, { ...r, observed: undefined });
     return regionView(access, r);
   });
@@ -91,9 +105,9 @@ export async function updateRegion(ctx: AppContext, access: Access, key: string,
 
 export async function deleteRegion(ctx: AppContext, access: Access, key: string) {
   const region = await findRegion(ctx.db, access, key);
-  await refuseIfVaried(ctx.db, eq(effects.regionId, region.id), `templates of region "${key}"`);
+  await refuseIfVaried(ctx.db, { regionId: region.id }, `templates of region "${key}"`);
   await ctx.db.transaction(async (tx) => {
-    await tx.delete(regions).where(eq(regions.id, region.id));
+    await deleteRegionRow(tx, region.id);
     await modelRevision(tx, access, 'region.deleted', `Removed region "${key}" and its templates.`, { key, role: region.role, edges: region.edges });
   });
 }
@@ -104,7 +118,7 @@ export async function setObserved(ctx: AppContext, access: Access, key: string, 
   const bins = region.edges.length - 1;
   if (observed && observed.length !== bins) throw unprocessable(`Region "${key}" has ${bins} bins but ${observed.length} observed counts were given`, [{ path: ['observed'], message: `needs ${bins} values` }]);
   return ctx.db.transaction(async (tx) => {
-    const [r] = await tx.update(regions).set({ observed }).where(eq(regions.id, region.id)).returning();
+    const r = await updateRegionRow(tx, region.id, { observed });
     // the revision records that data changed, not the counts themselves (they may be blinded)
     await modelRevision(tx, access, 'data.recorded', observed ? `Recorded observed data in region "${key}" (${bins} bins).` : `Cleared the observed data of region "${key}".`);
     return regionView(access, r);
@@ -113,11 +127,9 @@ export async function setObserved(ctx: AppContext, access: Access, key: string, 
 
 export async function createProcess(ctx: AppContext, access: Access, body: unknown): Promise<Process> {
   const input = processInputSchema.parse(body);
-  const [dup] = await ctx.db.select({ id: processes.id }).from(processes).where(and(eq(processes.analysisId, access.analysis.id), eq(processes.key, input.key)));
-  if (dup) throw conflict(`A process with the key "${input.key}" already exists.`);
+  if (await processByKey(ctx.db, access.analysis.id, input.key)) throw conflict(`A process with the key "${input.key}" already exists.`);
   return ctx.db.transaction(async (tx) => {
-    const [{ top }] = await tx.select({ top: max(processes.position) }).from(processes).where(eq(processes.analysisId, access.analysis.id));
-    const [p] = await tx.insert(processes).values({ analysisId: access.analysis.id, ...input, position: (top ?? -1) + 1 }).returning();
+    const p = await insertProcess(tx, { analysisId: access.analysis.id, ...input });
     await modelRevision(tx, access, 'process.created', `Added the ${p.kind} process "${p.key}".`, undefined, input);
     return processView(p);
   });
@@ -127,7 +139,7 @@ export async function updateProcess(ctx: AppContext, access: Access, key: string
   const input = processPatchSchema.parse(body);
   const process = await findProcess(ctx.db, access, key);
   return ctx.db.transaction(async (tx) => {
-    const [p] = await tx.update(processes).set(input).where(eq(processes.id, process.id)).returning();
+    const p = await updateProcessRow(tx, process.id, input);
     await modelRevision(tx, access, 'process.edited', `Changed ${Object.keys(input).join(', ')} of process "${key}".`, process, p);
     return processView(p);
   });
@@ -135,9 +147,9 @@ export async function updateProcess(ctx: AppContext, access: Access, key: string
 
 export async function deleteProcess(ctx: AppContext, access: Access, key: string) {
   const process = await findProcess(ctx.db, access, key);
-  await refuseIfVaried(ctx.db, eq(effects.processId, process.id), `templates of process "${key}"`);
+  await refuseIfVaried(ctx.db, { processId: process.id }, `templates of process "${key}"`);
   await ctx.db.transaction(async (tx) => {
-    await tx.delete(processes).where(eq(processes.id, process.id));
+    await deleteProcessRow(tx, process.id);
     await modelRevision(tx, access, 'process.deleted', `Removed process "${key}" and its templates.`, { key, kind: process.kind });
   });
 }
@@ -146,20 +158,19 @@ export async function createFloatingNorm(ctx: AppContext, access: Access, body: 
   const input = floatingNormInputSchema.parse(body);
   if (!(input.min < input.max) || input.start < input.min || input.start > input.max)
     throw unprocessable('The start value must lie within [min, max], and min must be below max', [{ path: ['start'], message: 'must lie within [min, max]' }]);
-  const [dup] = await ctx.db.select({ id: floatingNorms.id }).from(floatingNorms).where(and(eq(floatingNorms.analysisId, access.analysis.id), eq(floatingNorms.key, input.key)));
-  if (dup) throw conflict(`A floating normalisation with the key "${input.key}" already exists.`);
+  if (await floatingNormByKey(ctx.db, access.analysis.id, input.key)) throw conflict(`A floating normalisation with the key "${input.key}" already exists.`);
   return ctx.db.transaction(async (tx) => {
-    const [f] = await tx.insert(floatingNorms).values({ analysisId: access.analysis.id, ...input }).returning();
+    const f = await insertFloatingNorm(tx, { analysisId: access.analysis.id, ...input });
     await modelRevision(tx, access, 'norm.created', `Added the floating normalisation "${f.key}".`, undefined, input);
     return { key: f.key, label: f.label, start: f.start, min: f.min, max: f.max };
   });
 }
 
 export async function deleteFloatingNorm(ctx: AppContext, access: Access, key: string) {
-  const [f] = await ctx.db.select().from(floatingNorms).where(and(eq(floatingNorms.analysisId, access.analysis.id), eq(floatingNorms.key, key)));
+  const f = await floatingNormByKey(ctx.db, access.analysis.id, key);
   if (!f) throw notFound(`Floating normalisation "${key}"`);
   await ctx.db.transaction(async (tx) => {
-    await tx.delete(floatingNorms).where(eq(floatingNorms.id, f.id));
+    await deleteFloatingNormRow(tx, f.id);
     await modelRevision(tx, access, 'norm.deleted', `Removed the floating normalisation "${key}"; its templates no longer float.`, f);
   });
 }
@@ -175,15 +186,13 @@ export async function putTemplate(ctx: AppContext, access: Access, regionKey: st
   if (issues.length) throw unprocessable(`The template does not match the binning of region "${regionKey}"`, issues);
   let floatingNormId: number | null = null;
   if (input.floatingNorm) {
-    const [f] = await ctx.db.select().from(floatingNorms).where(and(eq(floatingNorms.analysisId, access.analysis.id), eq(floatingNorms.key, input.floatingNorm)));
+    const f = await floatingNormByKey(ctx.db, access.analysis.id, input.floatingNorm);
     if (!f) throw unprocessable(`There is no floating normalisation "${input.floatingNorm}"`, [{ path: ['floatingNorm'], message: 'unknown key' }]);
     floatingNormId = f.id;
   }
   return ctx.db.transaction(async (tx) => {
-    const [old] = await tx.select().from(templates).where(and(eq(templates.regionId, region.id), eq(templates.processId, process.id)));
-    const values = { nominal: input.nominal, variance: input.variance, floatingNormId };
-    if (old) await tx.update(templates).set(values).where(eq(templates.id, old.id));
-    else await tx.insert(templates).values({ analysisId: access.analysis.id, regionId: region.id, processId: process.id, ...values });
+    const old = await templateOf(tx, region.id, process.id);
+    await saveTemplate(tx, old?.id ?? null, { analysisId: access.analysis.id, regionId: region.id, processId: process.id, nominal: input.nominal, variance: input.variance, floatingNormId });
     await modelRevision(tx, access, 'template.saved', `${old ? 'Replaced' : 'Added'} the template of process "${processKey}" in region "${regionKey}".`, old ? { nominal: old.nominal } : undefined, { nominal: input.nominal });
     return { region: regionKey, process: processKey, nominal: input.nominal, variance: input.variance, floatingNorm: input.floatingNorm };
   });
@@ -192,11 +201,11 @@ export async function putTemplate(ctx: AppContext, access: Access, regionKey: st
 export async function deleteTemplate(ctx: AppContext, access: Access, regionKey: string, processKey: string) {
   const region = await findRegion(ctx.db, access, regionKey);
   const process = await findProcess(ctx.db, access, processKey);
-  const [t] = await ctx.db.select().from(templates).where(and(eq(templates.regionId, region.id), eq(templates.processId, process.id)));
+  const t = await templateOf(ctx.db, region.id, process.id);
   if (!t) throw notFound(`The template of process "${processKey}" in region "${regionKey}"`);
-  await refuseIfVaried(ctx.db, and(eq(effects.regionId, region.id), eq(effects.processId, process.id)), 'this template');
+  await refuseIfVaried(ctx.db, { regionId: region.id, processId: process.id }, 'this template');
   await ctx.db.transaction(async (tx) => {
-    await tx.delete(templates).where(eq(templates.id, t.id));
+    await deleteTemplateRow(tx, t.id);
     await modelRevision(tx, access, 'template.deleted', `Removed the template of process "${processKey}" in region "${regionKey}".`, { nominal: t.nominal });
   });
 }
@@ -271,8 +280,7 @@ export async function uploadModelCsv(ctx: AppContext, access: Access, kindRaw: u
           const regionId = model.regions.get(c.region)!.id;
           const processId = model.processes.get(c.process)!.id;
           const old = model.template(c.region, c.process);
-          if (old) await tx.update(templates).set({ nominal: c.nominal, variance: c.variance }).where(eq(templates.id, old.id));
-          else await tx.insert(templates).values({ analysisId: access.analysis.id, regionId, processId, nominal: c.nominal, variance: c.variance });
+          await saveTemplate(tx, old?.id ?? null, { analysisId: access.analysis.id, regionId, processId, nominal: c.nominal, variance: c.variance, floatingNormId: old?.floatingNormId ?? null });
         }
         await modelRevision(tx, access, 'templates.uploaded', `Uploaded "${upload.filename}" (SHA-256 ${upload.sha256.slice(0, 12)}…): ${changes.length} template${changes.length === 1 ? '' : 's'}.`, undefined, {
           sha256: upload.sha256,
@@ -284,7 +292,7 @@ export async function uploadModelCsv(ctx: AppContext, access: Access, kindRaw: u
   const changes = readObservedCsv(upload.text, upload.filename, model);
   if (save)
     await ctx.db.transaction(async (tx) => {
-      for (const c of changes) await tx.update(regions).set({ observed: c.counts }).where(eq(regions.id, model.regions.get(c.region)!.id));
+      for (const c of changes) await updateRegionRow(tx, model.regions.get(c.region)!.id, { observed: c.counts });
       await modelRevision(tx, access, 'data.uploaded', `Uploaded observed data "${upload.filename}" (SHA-256 ${upload.sha256.slice(0, 12)}…) for ${changes.map((c) => c.region).join(', ')}.`);
     });
   // a blinded signal region's totals are not echoed back

@@ -1,16 +1,13 @@
-import { and, desc, eq, getTableColumns } from 'drizzle-orm';
 import { randomInt } from 'node:crypto';
 import { startToysSchema, toyHypothesisSchema, toySummarySchema, type ToyRun } from '@shared/schemas/toys';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { toyRuns, users } from '../db/schema';
+import { findToyRow, insertToyRun, listToyRows, type ToyRow } from '../db/toys.repository';
 import { conflict, notFound } from '../errors';
 import { withheldResultMessage } from './blinding.service';
 import { findFit, withheldReadBy } from './fits.service';
 import { cancelJob, toyRunsTable } from '../jobs/job-rows';
 import { untilStopped } from '../jobs/local-runner';
-
-type ToyRow = typeof toyRuns.$inferSelect;
 
 /** A toy run as sent; `withheld` (the fit read blinded data) keeps its summary back. */
 function toyRunOf(row: Omit<ToyRow, 'summary'> & { summary?: unknown }, createdBy: string | null, withheld = false): ToyRun {
@@ -35,27 +32,16 @@ function toyRunOf(row: Omit<ToyRow, 'summary'> & { summary?: unknown }, createdB
   };
 }
 
-const { summary: _summary, ...listColumns } = getTableColumns(toyRuns);
-
 /** The toy runs of one fit, newest first, without their summaries. */
 export async function listToyRuns(ctx: AppContext, access: Access, fitId: number): Promise<ToyRun[]> {
   const fit = await findFit(ctx, access, fitId);
   const withheld = withheldReadBy(access.analysis, fit.fit).length > 0;
-  const rows = await ctx.db
-    .select({ run: listColumns, by: users.name })
-    .from(toyRuns)
-    .leftJoin(users, eq(users.id, toyRuns.createdById))
-    .where(and(eq(toyRuns.analysisId, access.analysis.id), eq(toyRuns.fitId, fitId)))
-    .orderBy(desc(toyRuns.id));
+  const rows = await listToyRows(ctx.db, access.analysis.id, fitId);
   return rows.map((r) => toyRunOf(r.run, r.by, withheld));
 }
 
 async function findToyRun(ctx: AppContext, access: Access, id: number) {
-  const [row] = await ctx.db
-    .select({ run: toyRuns, by: users.name })
-    .from(toyRuns)
-    .leftJoin(users, eq(users.id, toyRuns.createdById))
-    .where(and(eq(toyRuns.analysisId, access.analysis.id), eq(toyRuns.id, id)));
+  const row = await findToyRow(ctx.db, access.analysis.id, id);
   if (!row) throw notFound(`Toy run ${id}`);
   return row;
 }
@@ -74,18 +60,15 @@ export async function startToys(ctx: AppContext, access: Access, fitId: number, 
   const withheld = withheldReadBy(access.analysis, fit.fit);
   if (withheld.length) throw conflict(withheldResultMessage(withheld));
   if (input.hypothesis.kind === 'fixed-mu' && fit.fit.headline === null) throw conflict(`Fit ${fitId} has no headline μ̂; toys at a chosen μ need a fit of μ.`);
-  const [row] = await ctx.db
-    .insert(toyRuns)
-    .values({
-      analysisId: access.analysis.id,
-      fitId,
-      label: input.label,
-      count: input.count,
-      hypothesis: input.hypothesis,
-      seed: input.seed ?? randomInt(0, 2 ** 31 - 1),
-      createdById: access.userId,
-    })
-    .returning();
+  const row = await insertToyRun(ctx.db, {
+    analysisId: access.analysis.id,
+    fitId,
+    label: input.label,
+    count: input.count,
+    hypothesis: input.hypothesis,
+    seed: input.seed ?? randomInt(0, 2 ** 31 - 1),
+    createdById: access.userId,
+  });
   await ctx.toys.enqueue(row.id);
   return toyRunOf(row, access.userName);
 }

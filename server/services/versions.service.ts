@@ -1,16 +1,13 @@
 import { createHash } from 'node:crypto';
-import { and, desc, eq, max } from 'drizzle-orm';
 import { can } from '@shared/permissions';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import { freezeVersionSchema, type ModelVersion } from '@shared/schemas/fits';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { addRevision } from '../db/revisions.repository';
-import { modelVersions, users } from '../db/schema';
+import { findVersionRow, insertNextVersion, listVersionRows, type VersionRow } from '../db/versions.repository';
 import { forbidden, notFound, unprocessable } from '../errors';
 import { buildExchange } from './exchange-export.service';
-
-type VersionRow = typeof modelVersions.$inferSelect;
 
 const view = (v: VersionRow, createdBy: string | null): ModelVersion => {
   const model = v.model as ExchangeModel;
@@ -26,17 +23,12 @@ const view = (v: VersionRow, createdBy: string | null): ModelVersion => {
 };
 
 export async function listVersions(ctx: AppContext, access: Access): Promise<ModelVersion[]> {
-  const rows = await ctx.db
-    .select({ version: modelVersions, by: users.name })
-    .from(modelVersions)
-    .leftJoin(users, eq(users.id, modelVersions.createdById))
-    .where(eq(modelVersions.analysisId, access.analysis.id))
-    .orderBy(desc(modelVersions.number));
+  const rows = await listVersionRows(ctx.db, access.analysis.id);
   return rows.map((r) => view(r.version, r.by));
 }
 
 export async function findVersion(ctx: AppContext, analysisId: number, number: number) {
-  const [v] = await ctx.db.select().from(modelVersions).where(and(eq(modelVersions.analysisId, analysisId), eq(modelVersions.number, number)));
+  const v = await findVersionRow(ctx.db, analysisId, number);
   if (!v) throw notFound(`Model version ${number}`);
   return v;
 }
@@ -52,19 +44,14 @@ export async function freezeVersion(ctx: AppContext, access: Access, body: unkno
     const model = await buildExchange(tx, access.analysis, { withhold: false });
     if (!model.regions.length || !model.processes.length) throw unprocessable('The model has no regions or no processes yet: there is nothing to freeze.');
     const json = JSON.stringify(model);
-    const [{ top }] = await tx.select({ top: max(modelVersions.number) }).from(modelVersions).where(eq(modelVersions.analysisId, access.analysis.id));
-    const [v] = await tx
-      .insert(modelVersions)
-      .values({
-        analysisId: access.analysis.id,
-        number: (top ?? 0) + 1,
-        note: input.note,
-        forApproval: input.forApproval,
-        model,
-        sha256: createHash('sha256').update(json).digest('hex'),
-        createdById: access.userId,
-      })
-      .returning();
+    const v = await insertNextVersion(tx, {
+      analysisId: access.analysis.id,
+      note: input.note,
+      forApproval: input.forApproval,
+      model,
+      sha256: createHash('sha256').update(json).digest('hex'),
+      createdById: access.userId,
+    });
     await addRevision(tx, {
       analysisId: access.analysis.id,
       authorId: access.userId,
