@@ -1,8 +1,8 @@
-import { and, asc, count, eq, inArray, sql } from 'drizzle-orm';
+import { and, asc, count, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { MemberRole } from '@shared/permissions';
 import { untilNotified } from '../cache/change-notices';
 import type { Db } from './client';
-import { analyses, entries, memberships, users } from './schema';
+import { analyses, entries, fits, memberships, modelVersions, processes, questions, regions, users } from './schema';
 
 export type AnalysisRow = typeof analyses.$inferSelect;
 
@@ -94,4 +94,27 @@ export async function memberEmails(db: Db, analysisId: number, roles: MemberRole
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(and(eq(memberships.analysisId, analysisId), inArray(memberships.role, roles)));
   return rows.map((r) => r.email);
+}
+
+export async function analysisBySlug(db: Db, slug: string) {
+  const [a] = await db.select().from(analyses).where(eq(analyses.slug, slug));
+  return a;
+}
+
+/** What the overview counts and shows: rows per table, entries by state, the newest version and fit, open questions. */
+export async function overviewFacts(db: Db, analysisId: number) {
+  const countIn = async (table: typeof regions | typeof processes | typeof memberships) => (await db.select({ n: count() }).from(table).where(eq(table.analysisId, analysisId)))[0].n;
+  const byState = await db.select({ state: entries.state, n: count() }).from(entries).where(eq(entries.analysisId, analysisId)).groupBy(entries.state);
+  const [version] = await db
+    .select({ number: modelVersions.number, createdAt: modelVersions.createdAt, note: modelVersions.note })
+    .from(modelVersions)
+    .where(eq(modelVersions.analysisId, analysisId))
+    .orderBy(desc(modelVersions.number))
+    .limit(1);
+  const [fit] = await db.select({ id: fits.id, state: fits.state, label: fits.label, createdAt: fits.createdAt }).from(fits).where(eq(fits.analysisId, analysisId)).orderBy(desc(fits.id)).limit(1);
+  const [open] = await db
+    .select({ n: count() })
+    .from(questions)
+    .where(and(eq(questions.analysisId, analysisId), eq(questions.state, 'open')));
+  return { regions: await countIn(regions), processes: await countIn(processes), members: await countIn(memberships), byState, version, fit, openQuestions: open.n };
 }

@@ -7,6 +7,7 @@ import { conflict } from '../errors';
 export type JobTable = typeof fits;
 export const JOB_TABLES: readonly JobTable[] = [fits, toyRuns as unknown as JobTable];
 export const toyRunsTable = JOB_TABLES[1];
+export const fitsTable = JOB_TABLES[0];
 
 type JobValues = Partial<typeof fits.$inferInsert>;
 

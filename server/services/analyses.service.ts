@@ -1,10 +1,8 @@
-import { and, count, desc, eq } from 'drizzle-orm';
 import { allowedActions } from '@shared/permissions';
 import { createAnalysisSchema, type AnalysisOverview, type AnalysisSummary, type EntryState } from '@shared/schemas/api';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { insertAnalysis, listAnalysesFor } from '../db/analyses.repository';
-import { analyses, entries, fits, memberships, modelVersions, processes, questions, regions } from '../db/schema';
+import { analysisBySlug, insertAnalysis, listAnalysesFor, overviewFacts } from '../db/analyses.repository';
 import { conflict } from '../errors';
 
 export async function listAnalyses(ctx: AppContext, user: Express.User): Promise<AnalysisSummary[]> {
@@ -22,8 +20,7 @@ export async function listAnalyses(ctx: AppContext, user: Express.User): Promise
 
 export async function createAnalysis(ctx: AppContext, body: unknown): Promise<AnalysisSummary> {
   const input = createAnalysisSchema.parse(body);
-  const [existing] = await ctx.db.select({ id: analyses.id }).from(analyses).where(eq(analyses.slug, input.slug));
-  if (existing) throw conflict(`An analysis with the short name "${input.slug}" already exists; choose another.`);
+  if (await analysisBySlug(ctx.db, input.slug)) throw conflict(`An analysis with the short name "${input.slug}" already exists; choose another.`);
   const a = await insertAnalysis(ctx.db, {
     slug: input.slug,
     name: input.name,
@@ -33,29 +30,12 @@ export async function createAnalysis(ctx: AppContext, body: unknown): Promise<An
   return { slug: a.slug, name: a.name, description: a.description, blinding: a.blinding, role: null, entries: 0, members: 0 };
 }
 
-const countOf = async (ctx: AppContext, table: typeof regions | typeof processes | typeof memberships, analysisId: number) =>
-  (await ctx.db.select({ n: count() }).from(table).where(eq(table.analysisId, analysisId)))[0].n;
-
 export async function getOverview(ctx: AppContext, access: Access): Promise<AnalysisOverview> {
   const a = access.analysis;
-  const byState = await ctx.db
-    .select({ state: entries.state, n: count() })
-    .from(entries)
-    .where(eq(entries.analysisId, a.id))
-    .groupBy(entries.state);
+  const facts = await overviewFacts(ctx.db, a.id);
   const entriesByState: Record<EntryState, number> = { draft: 0, submitted: 0, accepted: 0, sent_back: 0, retired: 0 };
-  byState.forEach((r) => (entriesByState[r.state] = r.n));
-  const [version] = await ctx.db
-    .select({ number: modelVersions.number, createdAt: modelVersions.createdAt, note: modelVersions.note })
-    .from(modelVersions)
-    .where(eq(modelVersions.analysisId, a.id))
-    .orderBy(desc(modelVersions.number))
-    .limit(1);
-  const [fit] = await ctx.db.select({ id: fits.id, state: fits.state, label: fits.label, createdAt: fits.createdAt }).from(fits).where(eq(fits.analysisId, a.id)).orderBy(desc(fits.id)).limit(1);
-  const [open] = await ctx.db
-    .select({ n: count() })
-    .from(questions)
-    .where(and(eq(questions.analysisId, a.id), eq(questions.state, 'open')));
+  facts.byState.forEach((r) => (entriesByState[r.state] = r.n));
+  const { version, fit } = facts;
   return {
     analysis: {
       slug: a.slug,
@@ -69,14 +49,14 @@ export async function getOverview(ctx: AppContext, access: Access): Promise<Anal
     role: access.role,
     permissions: allowedActions(access.role, access.isAdmin),
     counts: {
-      regions: await countOf(ctx, regions, a.id),
-      processes: await countOf(ctx, processes, a.id),
-      members: await countOf(ctx, memberships, a.id),
+      regions: facts.regions,
+      processes: facts.processes,
+      members: facts.members,
       entries: Object.values(entriesByState).reduce((s, n) => s + n, 0),
       entriesByState,
     },
     modelVersion: version ? { number: version.number, createdAt: version.createdAt.toISOString(), note: version.note } : null,
     latestFit: fit ? { id: fit.id, state: fit.state, label: fit.label, createdAt: fit.createdAt.toISOString() } : null,
-    openQuestions: open.n,
+    openQuestions: facts.openQuestions,
   };
 }

@@ -1,9 +1,8 @@
-import { asc, eq, ne, and } from 'drizzle-orm';
 import { EXCHANGE_FORMAT, EXCHANGE_VERSION, type ExchangeModel } from '@shared/schemas/exchange';
 import type { AnalysisRow } from '../db/analyses.repository';
 import type { DbOrTx } from '../db/revisions.repository';
 import { indexModel, loadModelRows } from '../db/model.repository';
-import { effects, entries, groups } from '../db/schema';
+import { effectsOfAnalysis, exportedEntries } from '../db/exchange.repository';
 import { isWithheld } from './blinding.service';
 
 /**
@@ -17,20 +16,8 @@ export async function buildExchange(db: DbOrTx, analysis: AnalysisRow, opts: { w
   const { rows } = model;
   const label = (l: string, fallback = '') => (l && l !== fallback ? { label: l } : {});
 
-  const entryRows = await db
-    .select({ entry: entries, group: groups.name })
-    .from(entries)
-    .leftJoin(groups, eq(groups.id, entries.groupId))
-    .where(and(eq(entries.analysisId, analysis.id), ne(entries.state, 'retired')))
-    .orderBy(asc(entries.id));
-  const effectRows = entryRows.length
-    ? await db
-        .select()
-        .from(effects)
-        .innerJoin(entries, eq(entries.id, effects.entryId))
-        .where(eq(entries.analysisId, analysis.id))
-        .orderBy(asc(effects.id))
-    : [];
+  const entryRows = await exportedEntries(db, analysis.id);
+  const effectRows = entryRows.length ? await effectsOfAnalysis(db, analysis.id) : [];
   const effectsByEntry = new Map<number, typeof effectRows>();
   for (const row of effectRows) {
     const list = effectsByEntry.get(row.effects.entryId);

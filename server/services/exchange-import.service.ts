@@ -1,9 +1,9 @@
-import { count, eq } from 'drizzle-orm';
 import { exchangeModelSchema, type ExchangeModel, type ExchangeModelInput } from '@shared/schemas/exchange';
 import type { EntryState } from '@shared/schemas/api';
 import { largestEffectPct, scaleWarnings, shapeWarnings } from '@shared/validation/variation-warnings';
 import { addRevision, type DbOrTx, type Tx } from '../db/revisions.repository';
-import { effects, entries, floatingNorms, groups, processes, regions, revisions, templates } from '../db/schema';
+import { insertEffects, insertFloatingNorms, insertGroups, insertProcesses, insertRegions, insertTemplates, regionCount } from '../db/exchange.repository';
+import { insertEntry } from '../db/entries.repository';
 import { conflict, unprocessable, zodIssues } from '../errors';
 
 export type EntryMeta = { ownerId?: number | null; state?: EntryState; justification?: string; references?: string[] };
@@ -31,8 +31,7 @@ export async function importModel(
 ) {
   const model = parseExchange(document);
   return db.transaction(async (tx) => {
-    const [{ n }] = await tx.select({ n: count() }).from(regions).where(eq(regions.analysisId, analysisId));
-    if (n > 0) throw conflict('This analysis already has a model. Import into a new analysis.');
+    if ((await regionCount(tx, analysisId)) > 0) throw conflict('This analysis already has a model. Import into a new analysis.');
     const counts = await writeModel(tx, analysisId, model, options);
     if (options.file)
       await addRevision(tx, {
@@ -46,89 +45,80 @@ export async function importModel(
 }
 
 async function writeModel(tx: Tx, analysisId: number, model: ExchangeModel, options: { authorId: number | null; entryMeta?: Record<string, EntryMeta> }) {
-  const regionRows = await tx
-    .insert(regions)
-    .values(
-      model.regions.map((r, i) => ({
-        analysisId,
-        key: r.key,
-        label: r.label ?? '',
-        role: r.role,
-        observable: r.observable.name,
-        unit: r.observable.unit,
-        edges: r.edges,
-        observed: r.observed ?? null,
-        position: i,
-      })),
-    )
-    .returning();
-  const processRows = await tx
-    .insert(processes)
-    .values(model.processes.map((p, i) => ({ analysisId, key: p.key, label: p.label ?? '', kind: p.kind, colour: p.colour ?? null, position: i })))
-    .returning();
-  const normRows = model.floatingNorms.length
-    ? await tx
-        .insert(floatingNorms)
-        .values(model.floatingNorms.map((f) => ({ analysisId, key: f.key, label: f.label ?? '', start: f.start, min: f.min, max: f.max })))
-        .returning()
-    : [];
+  const regionRows = await insertRegions(
+    tx,
+    model.regions.map((r, i) => ({
+      analysisId,
+      key: r.key,
+      label: r.label ?? '',
+      role: r.role,
+      observable: r.observable.name,
+      unit: r.observable.unit,
+      edges: r.edges,
+      observed: r.observed ?? null,
+      position: i,
+    })),
+  );
+  const processRows = await insertProcesses(
+    tx,
+    model.processes.map((p, i) => ({ analysisId, key: p.key, label: p.label ?? '', kind: p.kind, colour: p.colour ?? null, position: i })),
+  );
+  const normRows = await insertFloatingNorms(
+    tx,
+    model.floatingNorms.map((f) => ({ analysisId, key: f.key, label: f.label ?? '', start: f.start, min: f.min, max: f.max })),
+  );
   const regionId = new Map(regionRows.map((r) => [r.key, r.id]));
   const processId = new Map(processRows.map((p) => [p.key, p.id]));
   const normOf = new Map<string, number>();
   model.floatingNorms.forEach((f, i) => f.targets.forEach((t) => normOf.set(`${t.region}/${t.process}`, normRows[i].id)));
 
-  if (model.templates.length)
-    await tx.insert(templates).values(
-      model.templates.map((t) => ({
-        analysisId,
-        regionId: regionId.get(t.region)!,
-        processId: processId.get(t.process)!,
-        nominal: t.nominal,
-        variance: t.variance ?? null,
-        floatingNormId: normOf.get(`${t.region}/${t.process}`) ?? null,
-      })),
-    );
+  await insertTemplates(
+    tx,
+    model.templates.map((t) => ({
+      analysisId,
+      regionId: regionId.get(t.region)!,
+      processId: processId.get(t.process)!,
+      nominal: t.nominal,
+      variance: t.variance ?? null,
+      floatingNormId: normOf.get(`${t.region}/${t.process}`) ?? null,
+    })),
+  );
   const nominalOf = new Map(model.templates.map((t) => [`${t.region}/${t.process}`, t.nominal]));
 
   const groupNames = [...new Set(model.systematics.map((s) => s.group).filter((g): g is string => !!g))];
-  const groupRows = groupNames.length
-    ? await tx
-        .insert(groups)
-        .values(groupNames.map((name, i) => ({ analysisId, name, position: i })))
-        .returning()
-    : [];
+  const groupRows = await insertGroups(
+    tx,
+    groupNames.map((name, i) => ({ analysisId, name, position: i })),
+  );
   const groupId = new Map(groupRows.map((g) => [g.name, g.id]));
 
   for (const s of model.systematics) {
     const meta = options.entryMeta?.[s.key] ?? {};
-    const [entry] = await tx
-      .insert(entries)
-      .values({
-        analysisId,
-        key: s.key,
-        label: s.label ?? s.key,
-        groupId: s.group ? groupId.get(s.group)! : null,
-        ownerId: meta.ownerId ?? null,
-        description: s.description ?? '',
-        justification: meta.justification ?? '',
-        references: meta.references ?? [],
-        state: meta.state ?? 'draft',
-      })
-      .returning();
-    if (s.effects.length)
-      await tx.insert(effects).values(
-        s.effects.map((e) => ({
-          entryId: entry.id,
-          regionId: regionId.get(e.region)!,
-          processId: processId.get(e.process)!,
-          kind: e.kind,
-          up: e.up,
-          down: e.down,
-          warnings: e.kind === 'scale' ? scaleWarnings(e.up, e.down) : shapeWarnings(nominalOf.get(`${e.region}/${e.process}`)!, e.up, e.down),
-          largestPct: largestEffectPct(e.kind, e.up, e.down, nominalOf.get(`${e.region}/${e.process}`)),
-        })),
-      );
-    await tx.insert(revisions).values({
+    const entry = await insertEntry(tx, {
+      analysisId,
+      key: s.key,
+      label: s.label ?? s.key,
+      groupId: s.group ? groupId.get(s.group)! : null,
+      ownerId: meta.ownerId ?? null,
+      description: s.description ?? '',
+      justification: meta.justification ?? '',
+      references: meta.references ?? [],
+      state: meta.state ?? 'draft',
+    });
+    await insertEffects(
+      tx,
+      s.effects.map((e) => ({
+        entryId: entry.id,
+        regionId: regionId.get(e.region)!,
+        processId: processId.get(e.process)!,
+        kind: e.kind,
+        up: e.up,
+        down: e.down,
+        warnings: e.kind === 'scale' ? scaleWarnings(e.up, e.down) : shapeWarnings(nominalOf.get(`${e.region}/${e.process}`)!, e.up, e.down),
+        largestPct: largestEffectPct(e.kind, e.up, e.down, nominalOf.get(`${e.region}/${e.process}`)),
+      })),
+    );
+    await addRevision(tx, {
       analysisId,
       entryId: entry.id,
       authorId: options.authorId,

@@ -5,14 +5,13 @@ import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { findFitRow, insertFit, listFitRows, storedHead, storedPart, storedResult, type FitRow, type StoredHead } from '../db/fits.repository';
-import { fits } from '../db/schema';
 import { conflict, notFound } from '../errors';
 import { recentResults } from '../cache/results';
 import { encodeJson, type Encoded } from '../cache/encoded-json';
 import { regionEntersFit } from '../fit';
 import { isWithheld, withheldInFit, withheldResultMessage, type BlindingRule } from './blinding.service';
 import { findVersion } from './versions.service';
-import { cancelJob } from '../jobs/job-rows';
+import { cancelJob, fitsTable } from '../jobs/job-rows';
 import { untilStopped } from '../jobs/local-runner';
 
 
@@ -128,7 +127,7 @@ export async function startFit(ctx: AppContext, access: Access, body: unknown): 
 export async function cancelFit(ctx: AppContext, access: Access, id: number): Promise<FitSummary> {
   const row = await findFit(ctx, access, id);
   if (row.fit.state !== 'queued' && row.fit.state !== 'running') throw conflict(`Fit ${id} has ended (${row.fit.state}); there is nothing to cancel.`);
-  await cancelJob(ctx.db, fits, ctx.fits, { id, state: row.fit.state, what: `Fit ${id}` }, access.userName);
+  await cancelJob(ctx.db, fitsTable, ctx.fits, { id, state: row.fit.state, what: `Fit ${id}` }, access.userName);
   const after = await untilStopped(() => findFit(ctx, access, id), (r) => r.fit.state === 'running');
   return summaryOf(access.analysis, after.fit, after.version, after.by);
 }

@@ -1,21 +1,15 @@
-import { and, asc, eq, max } from 'drizzle-orm';
 import { groupInputSchema, moveEntrySchema, type GroupsView } from '@shared/schemas/register';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { findEntry } from '../db/entries.repository';
+import { findEntry, updateEntryRow } from '../db/entries.repository';
+import { deleteGroupRow, groupById, groupByName, groupsAndEntries, insertGroup, renameGroupRow } from '../db/groups.repository';
 import { addRevision, type DbOrTx } from '../db/revisions.repository';
-import { entries, groups } from '../db/schema';
 import { conflict, notFound } from '../errors';
 
 /** Groups of register entries (jets, leptons, theory…): the grouped impacts use them. */
 
 export async function groupsView(db: DbOrTx, analysisId: number): Promise<GroupsView> {
-  const groupRows = await db.select().from(groups).where(eq(groups.analysisId, analysisId)).orderBy(asc(groups.position), asc(groups.id));
-  const entryRows = await db
-    .select({ key: entries.key, groupId: entries.groupId })
-    .from(entries)
-    .where(eq(entries.analysisId, analysisId))
-    .orderBy(asc(entries.key));
+  const { groupRows, entryRows } = await groupsAndEntries(db, analysisId);
   return {
     groups: groupRows.map((g) => ({ id: g.id, name: g.name, position: g.position, entries: entryRows.filter((e) => e.groupId === g.id).map((e) => e.key) })),
     ungrouped: entryRows.filter((e) => e.groupId === null).map((e) => e.key),
@@ -25,21 +19,18 @@ export async function groupsView(db: DbOrTx, analysisId: number): Promise<Groups
 /** The id of the group with this name, created when missing. */
 export async function groupIdFor(db: DbOrTx, analysisId: number, name: string | null): Promise<number | null> {
   if (!name) return null;
-  const [found] = await db.select({ id: groups.id }).from(groups).where(and(eq(groups.analysisId, analysisId), eq(groups.name, name)));
-  if (found) return found.id;
-  const [{ top }] = await db.select({ top: max(groups.position) }).from(groups).where(eq(groups.analysisId, analysisId));
-  const [created] = await db.insert(groups).values({ analysisId, name, position: (top ?? -1) + 1 }).returning({ id: groups.id });
-  return created.id;
+  const found = await groupByName(db, analysisId, name);
+  return found ? found.id : insertGroup(db, analysisId, name);
 }
 
 async function findGroup(ctx: AppContext, access: Access, id: number) {
-  const [g] = await ctx.db.select().from(groups).where(and(eq(groups.id, id), eq(groups.analysisId, access.analysis.id)));
+  const g = await groupById(ctx.db, access.analysis.id, id);
   if (!g) throw notFound(`Group ${id}`);
   return g;
 }
 
 async function assertNameFree(ctx: AppContext, access: Access, name: string, except?: number) {
-  const [g] = await ctx.db.select({ id: groups.id }).from(groups).where(and(eq(groups.analysisId, access.analysis.id), eq(groups.name, name)));
+  const g = await groupByName(ctx.db, access.analysis.id, name);
   if (g && g.id !== except) throw conflict(`A group named "${name}" already exists.`);
 }
 
@@ -54,14 +45,14 @@ export async function renameGroup(ctx: AppContext, access: Access, id: number, b
   const { name } = groupInputSchema.parse(body);
   await findGroup(ctx, access, id);
   await assertNameFree(ctx, access, name, id);
-  await ctx.db.update(groups).set({ name }).where(eq(groups.id, id));
+  await renameGroupRow(ctx.db, id, name);
   return (await groupsView(ctx.db, access.analysis.id)).groups.find((g) => g.id === id)!;
 }
 
 /** Deleting a group leaves its entries ungrouped; nothing else changes. */
 export async function deleteGroup(ctx: AppContext, access: Access, id: number) {
   await findGroup(ctx, access, id);
-  await ctx.db.delete(groups).where(eq(groups.id, id));
+  await deleteGroupRow(ctx.db, id);
 }
 
 export async function moveEntry(ctx: AppContext, access: Access, key: string, body: unknown): Promise<GroupsView> {
@@ -71,7 +62,7 @@ export async function moveEntry(ctx: AppContext, access: Access, key: string, bo
   const after = groupId ? (await findGroup(ctx, access, groupId)).name : null;
   if (entry.groupId !== groupId)
     await ctx.db.transaction(async (tx) => {
-      await tx.update(entries).set({ groupId, version: entry.version + 1, updatedAt: new Date() }).where(eq(entries.id, entry.id));
+      await updateEntryRow(tx, entry.id, { groupId, version: entry.version + 1, updatedAt: new Date() });
       await addRevision(tx, {
         analysisId: access.analysis.id,
         entryId: entry.id,

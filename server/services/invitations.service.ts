@@ -1,11 +1,10 @@
 import { createHash, randomBytes } from 'node:crypto';
-import { and, eq, isNull } from 'drizzle-orm';
 import { acceptInvitationSchema, invitationInputSchema, type InvitationView } from '@shared/schemas/register';
 import type { Access } from '../auth/authorize';
 import { hashPassword } from '../auth/passwords';
 import type { AppContext } from '../context';
-import { analyses, invitations, memberships, users } from '../db/schema';
-import { findUserByEmail } from '../db/users.repository';
+import { insertInvitation, insertMembership, markInvitationAccepted, openInvitationByHash } from '../db/memberships.repository';
+import { findUserByEmail, insertUser } from '../db/users.repository';
 import { AppError, conflict, notFound } from '../errors';
 import { notifyAdded, notifyInvitation } from '../mail/notifications';
 import { addMembership } from './members.service';
@@ -25,18 +24,13 @@ export async function invite(ctx: AppContext, access: Access, body: unknown, bas
     return { outcome: 'added' as const, email };
   }
   const token = randomBytes(24).toString('base64url');
-  await ctx.db.insert(invitations).values({ analysisId: access.analysis.id, email, role, tokenHash: hashToken(token), invitedById: access.userId });
+  await insertInvitation(ctx.db, { analysisId: access.analysis.id, email, role, tokenHash: hashToken(token), invitedById: access.userId });
   await notifyInvitation(ctx, { baseUrl, analysis: access.analysis, email, role, inviter: access.userName, token });
   return { outcome: 'invited' as const, email };
 }
 
 async function openInvitation(ctx: AppContext, token: string) {
-  const [row] = await ctx.db
-    .select({ invitation: invitations, analysis: analyses, inviter: users.name })
-    .from(invitations)
-    .innerJoin(analyses, eq(analyses.id, invitations.analysisId))
-    .innerJoin(users, eq(users.id, invitations.invitedById))
-    .where(and(eq(invitations.tokenHash, hashToken(token)), isNull(invitations.acceptedAt)));
+  const row = await openInvitationByHash(ctx.db, hashToken(token));
   if (!row) throw notFound('This invitation (it may have been used already)');
   if (Date.now() - row.invitation.createdAt.getTime() > INVITATION_DAYS * 86400_000)
     throw new AppError(410, `This invitation has expired (links work for ${INVITATION_DAYS} days). Ask the convener to invite you again.`, 'expired');
@@ -55,9 +49,9 @@ export async function acceptInvitation(ctx: AppContext, token: string, body: unk
   if (await findUserByEmail(ctx.db, invitation.email)) throw conflict(`An account for ${invitation.email} exists already: sign in, and ask the convener to add you.`);
   const passwordHash = await hashPassword(input.password);
   return ctx.db.transaction(async (tx) => {
-    const [user] = await tx.insert(users).values({ email: invitation.email, name: input.name, passwordHash }).returning({ id: users.id, email: users.email, name: users.name, isAdmin: users.isAdmin });
-    await tx.insert(memberships).values({ analysisId: invitation.analysisId, userId: user.id, role: invitation.role, grantedById: invitation.invitedById });
-    await tx.update(invitations).set({ acceptedAt: new Date() }).where(eq(invitations.id, invitation.id));
+    const user = await insertUser(tx, { email: invitation.email, name: input.name, passwordHash });
+    await insertMembership(tx, { analysisId: invitation.analysisId, userId: user.id, role: invitation.role, grantedById: invitation.invitedById });
+    await markInvitationAccepted(tx, invitation.id);
     await logMembershipChange(tx, analysis, user, { kind: 'joined', user, role: invitation.role, invitedBy: inviter });
     return user;
   });

@@ -1,9 +1,9 @@
-import { and, eq } from 'drizzle-orm';
 import { addMemberSchema, updateMemberSchema, type Member } from '@shared/schemas/api';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { countConveners, listMembers as listMemberRows } from '../db/analyses.repository';
-import { memberships } from '../db/schema';
+import { deleteMembership, insertMembership, membershipRow, updateMembership } from '../db/memberships.repository';
+import type { Tx } from '../db/revisions.repository';
 import { findUserByEmail } from '../db/users.repository';
 import { conflict, notFound } from '../errors';
 import { announceMembershipChange, logMembershipChange, type MembershipChange } from './blinding.service';
@@ -35,7 +35,7 @@ const actorOf = (access: Access) => ({ id: access.userId, name: access.userName,
  * Writes a membership change with its line in the blinding log (while the analysis is not
  * unblinded) in one transaction, then tells the conveners when an admin changed their own.
  */
-async function recordChange(ctx: AppContext, access: Access, change: MembershipChange, write: (tx: Parameters<Parameters<AppContext['db']['transaction']>[0]>[0]) => Promise<unknown>, baseUrl: string) {
+async function recordChange(ctx: AppContext, access: Access, change: MembershipChange, write: (tx: Tx) => Promise<unknown>, baseUrl: string) {
   await ctx.db.transaction(async (tx) => {
     await write(tx);
     await logMembershipChange(tx, access.analysis, actorOf(access), change);
@@ -48,9 +48,9 @@ async function recordChange(ctx: AppContext, access: Access, change: MembershipC
  * refused, naming their role.
  */
 export async function addMembership(ctx: AppContext, access: Access, user: { id: number; name: string }, role: Member['role'], baseUrl: string) {
-  const [existing] = await ctx.db.select().from(memberships).where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, user.id)));
+  const existing = await membershipRow(ctx.db, access.analysis.id, user.id);
   if (existing) throw conflict(`${user.name} is already a member (${existing.role}). Change their role instead.`);
-  await recordChange(ctx, access, { kind: 'added', user, role }, (tx) => tx.insert(memberships).values({ analysisId: access.analysis.id, userId: user.id, role, grantedById: access.userId }), baseUrl);
+  await recordChange(ctx, access, { kind: 'added', user, role }, (tx) => insertMembership(tx, { analysisId: access.analysis.id, userId: user.id, role, grantedById: access.userId }), baseUrl);
 }
 
 export async function addMember(ctx: AppContext, access: Access, body: unknown, baseUrl: string): Promise<Member> {
@@ -71,11 +71,7 @@ export async function changeRole(ctx: AppContext, access: Access, userId: number
       ctx,
       access,
       { kind: 'role', user: { id: userId, name: member.name }, from: member.role, role: input.role },
-      (tx) =>
-        tx
-          .update(memberships)
-          .set({ role: input.role, roleSince: new Date(), grantedById: access.userId })
-          .where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, userId))),
+      (tx) => updateMembership(tx, access.analysis.id, userId, { role: input.role, roleSince: new Date(), grantedById: access.userId }),
       baseUrl,
     );
   return toMember(await findMember(ctx, access, userId));
@@ -88,7 +84,7 @@ export async function removeMember(ctx: AppContext, access: Access, userId: numb
     ctx,
     access,
     { kind: 'removed', user: { id: userId, name: member.name }, role: member.role },
-    (tx) => tx.delete(memberships).where(and(eq(memberships.analysisId, access.analysis.id), eq(memberships.userId, userId))),
+    (tx) => deleteMembership(tx, access.analysis.id, userId),
     baseUrl,
   );
 }

@@ -1,4 +1,3 @@
-import { aliasedTable, and, eq, sql, type SQL } from 'drizzle-orm';
 import {
   answerQuestionSchema,
   questionFilterSchema,
@@ -9,7 +8,7 @@ import {
 } from '@shared/schemas/review';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { answers, entries, fits, groups, questions, users } from '../db/schema';
+import { answersOf, fitOfAnalysis, insertAnswer, insertQuestion, questionRows, questionWithEntry, updateQuestion, type QuestionFilter } from '../db/questions.repository';
 import { findEntry } from '../db/entries.repository';
 import { conflict, notFound } from '../errors';
 import { notifyQuestionAnswered, notifyQuestionRaised, notifyQuestionStep } from '../mail/notifications';
@@ -23,34 +22,10 @@ import { audience, personal, withRoles } from './recipients.service';
  * the thread as answers, so the thread is the whole history.
  */
 
-const author = aliasedTable(users, 'author');
-const owner = aliasedTable(users, 'owner');
-const resolver = aliasedTable(users, 'resolver');
-
 const person = (p: { id: number; name: string } | null) => (p ? { id: p.id, name: p.name } : null);
 
-async function readQuestions(ctx: AppContext, access: Access, where: SQL[]): Promise<(QuestionSummary & { body: string })[]> {
-  const answerCount = sql<number>`(select count(*)::int from ${answers} where ${answers.questionId} = ${questions.id})`;
-  const lastAnswer = sql<Date | null>`(select max(${answers.createdAt}) from ${answers} where ${answers.questionId} = ${questions.id})`;
-  const rows = await ctx.db
-    .select({
-      q: questions,
-      entry: { key: entries.key, label: entries.label, group: groups.name },
-      owner: { id: owner.id, name: owner.name },
-      author: { id: author.id, name: author.name },
-      resolver: { id: resolver.id, name: resolver.name },
-      fit: { id: fits.id, label: fits.label },
-      answers: answerCount,
-      lastAnswer,
-    })
-    .from(questions)
-    .innerJoin(entries, eq(entries.id, questions.entryId))
-    .leftJoin(groups, eq(groups.id, entries.groupId))
-    .leftJoin(owner, eq(owner.id, entries.ownerId))
-    .leftJoin(author, eq(author.id, questions.authorId))
-    .leftJoin(resolver, eq(resolver.id, questions.resolvedById))
-    .leftJoin(fits, eq(fits.id, questions.fitId))
-    .where(and(eq(questions.analysisId, access.analysis.id), ...where));
+async function readQuestions(ctx: AppContext, access: Access, filter: QuestionFilter): Promise<(QuestionSummary & { body: string })[]> {
+  const rows = await questionRows(ctx.db, access.analysis.id, filter);
   const list = rows.map((r): QuestionSummary & { body: string } => {
     const times = [r.q.createdAt, r.q.resolvedAt, r.lastAnswer ? new Date(r.lastAnswer) : null].filter((t): t is Date => !!t);
     return {
@@ -73,34 +48,19 @@ async function readQuestions(ctx: AppContext, access: Access, where: SQL[]): Pro
 
 export async function listQuestions(ctx: AppContext, access: Access, query: unknown): Promise<QuestionSummary[]> {
   const f = questionFilterSchema.parse(query);
-  const where: SQL[] = [];
-  if (f.state) where.push(eq(questions.state, f.state));
-  if (f.owner) where.push(eq(entries.ownerId, f.owner));
-  if (f.group) where.push(eq(groups.name, f.group));
-  if (f.fit) where.push(eq(questions.fitId, f.fit));
-  if (f.entry) where.push(eq(entries.key, f.entry));
   // the list leaves the bodies out: a thread is read one at a time
-  return (await readQuestions(ctx, access, where)).map(({ body: _body, ...summary }) => summary);
+  return (await readQuestions(ctx, access, f)).map(({ body: _body, ...summary }) => summary);
 }
 
 export async function getQuestion(ctx: AppContext, access: Access, id: number): Promise<QuestionDetail> {
-  const [question] = await readQuestions(ctx, access, [eq(questions.id, id)]);
+  const [question] = await readQuestions(ctx, access, { id });
   if (!question) throw notFound(`Question ${id}`);
-  const thread = await ctx.db
-    .select({ id: answers.id, body: answers.body, createdAt: answers.createdAt, author: { id: users.id, name: users.name } })
-    .from(answers)
-    .leftJoin(users, eq(users.id, answers.authorId))
-    .where(eq(answers.questionId, id))
-    .orderBy(answers.createdAt, answers.id);
+  const thread = await answersOf(ctx.db, id);
   return { ...question, thread: thread.map((a) => ({ id: a.id, body: a.body, createdAt: a.createdAt.toISOString(), author: person(a.author) })) };
 }
 
 async function questionRow(ctx: AppContext, access: Access, id: number) {
-  const [row] = await ctx.db
-    .select({ q: questions, entry: { key: entries.key, label: entries.label, ownerId: entries.ownerId } })
-    .from(questions)
-    .innerJoin(entries, eq(entries.id, questions.entryId))
-    .where(and(eq(questions.id, id), eq(questions.analysisId, access.analysis.id)));
+  const row = await questionWithEntry(ctx.db, access.analysis.id, id);
   if (!row) throw notFound(`Question ${id}`);
   return row;
 }
@@ -119,17 +79,11 @@ export async function raiseQuestion(ctx: AppContext, access: Access, body: unkno
   const entry = await findEntry(ctx.db, access.analysis.id, input.entry);
   let fitLabel: string | null = null;
   if (input.fitId !== null) {
-    const [fit] = await ctx.db
-      .select({ id: fits.id, label: fits.label })
-      .from(fits)
-      .where(and(eq(fits.analysisId, access.analysis.id), eq(fits.id, input.fitId)));
+    const fit = await fitOfAnalysis(ctx.db, access.analysis.id, input.fitId);
     if (!fit) throw notFound(`Fit ${input.fitId}`);
     fitLabel = `fit ${fit.id}${fit.label ? ` (${fit.label})` : ''}`;
   }
-  const [q] = await ctx.db
-    .insert(questions)
-    .values({ analysisId: access.analysis.id, entryId: entry.id, fitId: input.fitId, authorId: access.userId, title: input.title, body: input.body })
-    .returning({ id: questions.id });
+  const q = { id: await insertQuestion(ctx.db, { analysisId: access.analysis.id, entryId: entry.id, fitId: input.fitId, authorId: access.userId, title: input.title, body: input.body }) };
   await notifyQuestionRaised(ctx, {
     ...mailOf(access, baseUrl, { q: { id: q.id, title: input.title }, entry }),
     to: await audience(ctx, access.userId, [personal(ctx, entry.ownerId), withRoles(ctx, access.analysis.id, 'analyst')]),
@@ -144,8 +98,8 @@ export async function answerQuestion(ctx: AppContext, access: Access, id: number
   const row = await questionRow(ctx, access, id);
   if (row.q.state === 'resolved') throw conflict('This question is resolved. A convener reopens it before it takes new answers.');
   await ctx.db.transaction(async (tx) => {
-    await tx.insert(answers).values({ questionId: id, authorId: access.userId, body: input.body });
-    if (row.q.state === 'open') await tx.update(questions).set({ state: 'answered' }).where(eq(questions.id, id));
+    await insertAnswer(tx, { questionId: id, authorId: access.userId, body: input.body });
+    if (row.q.state === 'open') await updateQuestion(tx, id, { state: 'answered' });
   });
   await notifyQuestionAnswered(ctx, {
     ...mailOf(access, baseUrl, row),
@@ -163,11 +117,8 @@ export async function stepQuestion(ctx: AppContext, access: Access, id: number, 
   if (step === 'resolve' && row.q.state === 'resolved') throw conflict('This question is already resolved.');
   if (step === 'reopen' && row.q.state !== 'resolved') throw conflict('Only a resolved question can be reopened; this one is still ' + row.q.state + '.');
   await ctx.db.transaction(async (tx) => {
-    if (note) await tx.insert(answers).values({ questionId: id, authorId: access.userId, body: note });
-    await tx
-      .update(questions)
-      .set(step === 'resolve' ? { state: 'resolved', resolvedAt: new Date(), resolvedById: access.userId } : { state: 'open', resolvedAt: null, resolvedById: null })
-      .where(eq(questions.id, id));
+    if (note) await insertAnswer(tx, { questionId: id, authorId: access.userId, body: note });
+    await updateQuestion(tx, id, step === 'resolve' ? { state: 'resolved', resolvedAt: new Date(), resolvedById: access.userId } : { state: 'open', resolvedAt: null, resolvedById: null });
   });
   await notifyQuestionStep(ctx, {
     ...mailOf(access, baseUrl, row),

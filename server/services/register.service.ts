@@ -1,4 +1,3 @@
-import { and, asc, eq, lt, ne, sql } from 'drizzle-orm';
 import { largestEffectPct } from '@shared/validation/variation-warnings';
 import type { Db } from '../db/client';
 import type { EntrySummary } from '@shared/schemas/api';
@@ -6,7 +5,7 @@ import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { untilModelChanges, untilRegisterChanges } from '../cache/change-notices';
 import { encodeJson, type Encoded } from '../cache/encoded-json';
-import { effects, entries, groups, processes, questions, regions, templates, users } from '../db/schema';
+import { effectSums, effectsWithoutSize, registerRows, setEffectSize, unresolvedQuestionCounts } from '../db/register.repository';
 
 /**
  * The register of a large analysis is an aggregate over tens of thousands of effects, read far
@@ -24,19 +23,9 @@ export function listEntriesEncoded(ctx: AppContext, access: Access): Promise<Enc
 }
 
 async function readEntries(ctx: AppContext, analysisId: number): Promise<EntrySummary[]> {
-  const rows = await ctx.db
-    .select({ entry: entries, group: groups.name, owner: { id: users.id, name: users.name, email: users.email } })
-    .from(entries)
-    .leftJoin(groups, eq(groups.id, entries.groupId))
-    .leftJoin(users, eq(users.id, entries.ownerId))
-    .where(eq(entries.analysisId, analysisId))
-    .orderBy(asc(entries.key));
+  const rows = await registerRows(ctx.db, analysisId);
   const byEntry = await effectSummaries(ctx, analysisId);
-  const unresolved = await ctx.db
-    .select({ entryId: questions.entryId, count: sql<number>`count(*)::int` })
-    .from(questions)
-    .where(and(eq(questions.analysisId, analysisId), ne(questions.state, 'resolved')))
-    .groupBy(questions.entryId);
+  const unresolved = await unresolvedQuestionCounts(ctx.db, analysisId);
   const openByEntry = new Map(unresolved.map((x) => [x.entryId, x.count]));
   return rows.map(({ entry, group, owner }) => {
     const own = byEntry.get(entry.id);
@@ -65,32 +54,14 @@ async function readEntries(ctx: AppContext, analysisId: number): Promise<EntrySu
  */
 function effectSummaries(ctx: AppContext, analysisId: number) {
   return untilModelChanges(ctx.client, analysisId, 'effect summaries', async () => {
-    const sums = await ctx.db
-      .select({
-        entryId: effects.entryId,
-        regions: sql<string[]>`array_agg(distinct ${regions.key} order by ${regions.key})`,
-        processes: sql<string[]>`array_agg(distinct ${processes.key} order by ${processes.key})`,
-        kinds: sql<('scale' | 'shape')[]>`array_agg(distinct ${effects.kind}::text order by ${effects.kind}::text)`,
-        largestPct: sql<number>`max(${effects.largestPct})`,
-        warnings: sql<number>`sum(jsonb_array_length(${effects.warnings}))::int`,
-      })
-      .from(effects)
-      .innerJoin(entries, eq(entries.id, effects.entryId))
-      .innerJoin(regions, eq(regions.id, effects.regionId))
-      .innerJoin(processes, eq(processes.id, effects.processId))
-      .where(eq(entries.analysisId, analysisId))
-      .groupBy(effects.entryId);
+    const sums = await effectSums(ctx.db, analysisId);
     return new Map(sums.map((x) => [x.entryId, x]));
   });
 }
 
 /** Effects written before their size was stored get it computed once, at start. */
 export async function backfillEffectSizes(db: Db) {
-  const missing = await db
-    .select({ id: effects.id, kind: effects.kind, up: effects.up, down: effects.down, nominal: templates.nominal })
-    .from(effects)
-    .leftJoin(templates, and(eq(templates.regionId, effects.regionId), eq(templates.processId, effects.processId)))
-    .where(lt(effects.largestPct, 0));
-  for (const e of missing) await db.update(effects).set({ largestPct: largestEffectPct(e.kind, e.up, e.down, e.nominal ?? undefined) }).where(eq(effects.id, e.id));
+  const missing = await effectsWithoutSize(db);
+  for (const e of missing) await setEffectSize(db, e.id, largestEffectPct(e.kind, e.up, e.down, e.nominal ?? undefined));
   return missing.length;
 }
