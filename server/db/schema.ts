@@ -57,11 +57,11 @@ export const analyses = pgTable('analyses', {
   name: varchar('name', { length: 200 }).notNull(),
   description: text('description').notNull().default(''),
   blinding: blindingState('blinding').notNull().default('blinded'),
-  /** Signal strength μ: start and bounds (MODEL.md §1). */
+  /** Signal strength μ: start and bounds (docs/likelihood.md §1). */
   muStart: doublePrecision('mu_start').notNull().default(1),
   muMin: doublePrecision('mu_min').notNull().default(-10),
   muMax: doublePrecision('mu_max').notNull().default(20),
-  /** Constraint below this is flagged over-constrained (MODEL.md §6). */
+  /** Constraint below this is flagged over-constrained (docs/likelihood.md §6). */
   overConstraintThreshold: doublePrecision('over_constraint_threshold').notNull().default(0.5),
   /**
    * Keys of every region that has been a signal region while the analysis was not unblinded (kept by

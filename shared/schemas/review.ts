@@ -8,7 +8,7 @@ import { fitSummarySchema } from './fits';
  * on parameters, and the blinding log with its request and decision.
  */
 
-// ---- diagnosis of one parameter in one fit (MODEL.md §6)
+// ---- diagnosis of one parameter in one fit (docs/likelihood.md §6)
 
 /** One bin of a region: what constrains the parameter there, next to what the data can resolve. */
 export const diagnosisBinSchema = z.object({
