@@ -2,7 +2,7 @@ import { useEffect, useState, type ReactNode } from 'react';
 import { QueryClientProvider } from '@tanstack/react-query';
 import { onUnauthenticated } from '../lib/api-client';
 import { createQueryClient } from '../lib/query-client';
-import { meQueryKey } from '../features/auth/api/get-me';
+import { queryKeys } from '../lib/query-keys';
 
 /**
  * Server state lives in TanStack Query. When any request answers 401 the session is gone:
@@ -14,7 +14,7 @@ export function AppProvider({ children }: { children: ReactNode }) {
   useEffect(
     () =>
       onUnauthenticated(() => {
-        queryClient.setQueryData(meQueryKey, null);
+        queryClient.setQueryData(queryKeys.me, null);
       }),
     [queryClient],
   );

@@ -1,8 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { AnalysisSummary, CreateAnalysis } from '@shared/schemas/api';
 import { api } from '../../../lib/api-client';
-import { analysesQueryKey } from './get-analyses';
-import { meQueryKey } from '../../auth/api/get-me';
+import { queryKeys } from '../../../lib/query-keys';
 
 export function createAnalysis(body: CreateAnalysis): Promise<AnalysisSummary> {
   return api.post<AnalysisSummary>('/api/analyses', body);
@@ -13,8 +12,8 @@ export function useCreateAnalysis() {
   return useMutation({
     mutationFn: createAnalysis,
     onSuccess: () => {
-      void queryClient.invalidateQueries({ queryKey: analysesQueryKey });
-      void queryClient.invalidateQueries({ queryKey: meQueryKey });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.analyses });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.me });
     },
   });
 }

@@ -1,8 +1,7 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { Me } from '@shared/schemas/api';
 import { api, isApiRequestError } from '../../../lib/api-client';
-
-export const meQueryKey = ['auth', 'me'] as const;
+import { queryKeys } from '../../../lib/query-keys';
 
 /** The signed-in user and their memberships, or null when nobody is signed in. */
 export async function getMe(): Promise<Me | null> {
@@ -14,7 +13,7 @@ export async function getMe(): Promise<Me | null> {
   }
 }
 
-export const meQueryOptions = () => queryOptions({ queryKey: meQueryKey, queryFn: getMe, staleTime: 5 * 60_000 });
+export const meQueryOptions = () => queryOptions({ queryKey: queryKeys.me, queryFn: getMe, staleTime: 5 * 60_000 });
 
 export function useMe() {
   return useQuery(meQueryOptions());

@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { Me, SignIn } from '@shared/schemas/api';
 import { api, csrfTokensIssued, resetCsrfToken } from '../../../lib/api-client';
-import { meQueryKey } from './get-me';
+import { queryKeys } from '../../../lib/query-keys';
 
 export async function signIn(body: SignIn): Promise<Me> {
   const issuedBefore = csrfTokensIssued();
@@ -18,7 +18,7 @@ export function useSignIn() {
     onSuccess: (me) => {
       // Nothing cached for a previous user may leak into this session.
       queryClient.clear();
-      queryClient.setQueryData(meQueryKey, me);
+      queryClient.setQueryData(queryKeys.me, me);
     },
   });
 }

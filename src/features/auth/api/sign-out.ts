@@ -1,6 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api, resetCsrfToken } from '../../../lib/api-client';
-import { meQueryKey } from './get-me';
+import { queryKeys } from '../../../lib/query-keys';
 
 export async function signOut(): Promise<void> {
   try {
@@ -16,7 +16,7 @@ export function useSignOut() {
     mutationFn: signOut,
     onSettled: () => {
       queryClient.clear();
-      queryClient.setQueryData(meQueryKey, null);
+      queryClient.setQueryData(queryKeys.me, null);
     },
   });
 }

@@ -1,15 +1,14 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { BlindingLog } from '@shared/schemas/review';
 import { analysisPath, api } from '../../../lib/api-client';
-
-export const blindingQueryKey = (slug: string) => ['analyses', slug, 'blinding'] as const;
+import { queryKeys } from '../../../lib/query-keys';
 
 /** The blinding state of an analysis and its log of requests and decisions. */
 export function getBlinding(slug: string): Promise<BlindingLog> {
   return api.get<BlindingLog>(analysisPath(slug, 'blinding'));
 }
 
-export const blindingQueryOptions = (slug: string) => queryOptions({ queryKey: blindingQueryKey(slug), queryFn: () => getBlinding(slug) });
+export const blindingQueryOptions = (slug: string) => queryOptions({ queryKey: queryKeys.blinding(slug), queryFn: () => getBlinding(slug) });
 
 export function useBlinding(slug: string) {
   return useQuery(blindingQueryOptions(slug));

@@ -1,9 +1,7 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { Diagnosis } from '@shared/schemas/review';
 import { analysisPath, api } from '../../../lib/api-client';
-import { fitKeys } from '../../fits/api/keys';
-
-export const diagnosisQueryKey = (slug: string, fitId: number, parameter: string) => [...fitKeys.fit(slug, fitId), 'diagnosis', parameter] as const;
+import { queryKeys } from '../../../lib/query-keys';
 
 /**
  * The diagnosis of one parameter in one finished fit. The first call for a parameter refits the
@@ -14,7 +12,7 @@ export function getDiagnosis(slug: string, fitId: number, parameter: string): Pr
 }
 
 export const diagnosisQueryOptions = (slug: string, fitId: number, parameter: string) =>
-  queryOptions({ queryKey: diagnosisQueryKey(slug, fitId, parameter), queryFn: () => getDiagnosis(slug, fitId, parameter), staleTime: 5 * 60_000 });
+  queryOptions({ queryKey: queryKeys.diagnosis(slug, fitId, parameter), queryFn: () => getDiagnosis(slug, fitId, parameter), staleTime: 5 * 60_000 });
 
 export function useDiagnosis(slug: string, fitId: number, parameter: string | null) {
   return useQuery({ ...diagnosisQueryOptions(slug, fitId, parameter ?? ''), enabled: !!parameter });

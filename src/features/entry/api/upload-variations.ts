@@ -1,8 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { VariationOptions, VariationPreview } from '@shared/schemas/register';
 import { analysisPath, api } from '../../../lib/api-client';
-import { entriesQueryKey } from '../../register/api/get-entries';
-import { analysisQueryKey } from '../../analyses/api/get-analysis';
+import { queryKeys } from '../../../lib/query-keys';
 
 /**
  * `save: false` validates the file and returns the preview, writing nothing; `save: true`
@@ -22,8 +21,8 @@ export function useUploadVariations(slug: string, key: string) {
     onSuccess: (preview) => {
       if (!preview.saved) return;
       // The entry (effects, revisions, maybe its state) and the register's summary both changed.
-      void queryClient.invalidateQueries({ queryKey: entriesQueryKey(slug) });
-      void queryClient.invalidateQueries({ queryKey: analysisQueryKey(slug) });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.entries(slug) });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.overview(slug) });
     },
   });
 }

@@ -2,7 +2,7 @@ import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { FitSummary } from '@shared/schemas/fits';
 import { analysisPath, api } from '../../../lib/api-client';
 import { invalidateFitLists } from './get-fit';
-import { fitKeys } from './keys';
+import { queryKeys } from '../../../lib/query-keys';
 
 export function cancelFit(slug: string, id: number): Promise<FitSummary> {
   return api.post<FitSummary>(analysisPath(slug, 'fits', id, 'cancel'));
@@ -14,7 +14,7 @@ export function useCancelFit(slug: string) {
     mutationFn: (id: number) => cancelFit(slug, id),
     onSuccess: (_fit, id) => {
       invalidateFitLists(queryClient, slug);
-      void queryClient.invalidateQueries({ queryKey: fitKeys.fit(slug, id), exact: true });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.fit(slug, id), exact: true });
     },
   });
 }

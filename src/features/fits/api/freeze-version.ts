@@ -1,8 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { FreezeVersion, ModelVersion } from '@shared/schemas/fits';
 import { analysisPath, api } from '../../../lib/api-client';
-import { analysisQueryKey } from '../../analyses/api/get-analysis';
-import { fitKeys } from './keys';
+import { queryKeys } from '../../../lib/query-keys';
 
 export function freezeVersion(slug: string, body: FreezeVersion): Promise<ModelVersion> {
   return api.post<ModelVersion>(analysisPath(slug, 'versions'), body);
@@ -14,8 +13,8 @@ export function useFreezeVersion(slug: string) {
   return useMutation({
     mutationFn: (body: FreezeVersion) => freezeVersion(slug, body),
     onSuccess: () => {
-      void queryClient.invalidateQueries({ queryKey: fitKeys.versions(slug) });
-      void queryClient.invalidateQueries({ queryKey: analysisQueryKey(slug) });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.versions(slug) });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.overview(slug) });
     },
   });
 }

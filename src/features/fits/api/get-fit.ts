@@ -1,9 +1,8 @@
 import { queryOptions, useQuery, type QueryClient } from '@tanstack/react-query';
 import type { FitDetail } from '@shared/schemas/fits';
 import { analysisPath, api } from '../../../lib/api-client';
-import { analysisQueryKey } from '../../analyses/api/get-analysis';
 import { isActive, POLL_MS } from './fit-states';
-import { fitKeys } from './keys';
+import { queryKeys } from '../../../lib/query-keys';
 
 /** One fit with its stored result (null until the job ends). */
 export function getFit(slug: string, id: number): Promise<FitDetail> {
@@ -13,7 +12,7 @@ export function getFit(slug: string, id: number): Promise<FitDetail> {
 /** A finished fit never changes; a queued or running one is asked again every POLL_MS. */
 export const fitQueryOptions = (slug: string, id: number) =>
   queryOptions({
-    queryKey: fitKeys.fit(slug, id),
+    queryKey: queryKeys.fit(slug, id),
     queryFn: () => getFit(slug, id),
     refetchInterval: (query) => (query.state.data && isActive(query.state.data.state) ? POLL_MS : false),
     staleTime: (query) => (query.state.data && !isActive(query.state.data.state) ? Infinity : 0),
@@ -25,6 +24,6 @@ export function useFit(slug: string, id: number) {
 
 /** When a job ends, the list and the overview's "latest fit" card change too. */
 export function invalidateFitLists(queryClient: QueryClient, slug: string) {
-  void queryClient.invalidateQueries({ queryKey: fitKeys.fits(slug), exact: true });
-  void queryClient.invalidateQueries({ queryKey: analysisQueryKey(slug) });
+  void queryClient.invalidateQueries({ queryKey: queryKeys.fits(slug), exact: true });
+  void queryClient.invalidateQueries({ queryKey: queryKeys.overview(slug) });
 }

@@ -2,7 +2,7 @@ import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { FitSummary } from '@shared/schemas/fits';
 import { analysisPath, api } from '../../../lib/api-client';
 import { isActive, POLL_MS } from './fit-states';
-import { fitKeys } from './keys';
+import { queryKeys } from '../../../lib/query-keys';
 
 /** The fits of an analysis, newest first. */
 export function getFits(slug: string): Promise<FitSummary[]> {
@@ -12,7 +12,7 @@ export function getFits(slug: string): Promise<FitSummary[]> {
 /** The list polls while any fit in it is queued or running, and stops once every job has ended. */
 export const fitsQueryOptions = (slug: string) =>
   queryOptions({
-    queryKey: fitKeys.fits(slug),
+    queryKey: queryKeys.fits(slug),
     queryFn: () => getFits(slug),
     refetchInterval: (query) => (query.state.data?.some((f) => isActive(f.state)) ? POLL_MS : false),
   });

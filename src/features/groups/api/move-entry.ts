@@ -1,8 +1,8 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { GroupsView } from '@shared/schemas/register';
 import { analysisPath, api } from '../../../lib/api-client';
-import { groupsQueryKey } from './get-groups';
 import { invalidateGroups } from './invalidate';
+import { queryKeys } from '../../../lib/query-keys';
 
 export function moveEntry(slug: string, key: string, groupId: number | null): Promise<GroupsView> {
   return api.put<GroupsView>(analysisPath(slug, 'entries', key, 'group'), { groupId });
@@ -20,7 +20,7 @@ export function withEntryMoved(view: GroupsView, key: string, groupId: number | 
 /** Moves show at once; a refusal puts the board back as it was and reports the server's words. */
 export function useMoveEntry(slug: string) {
   const queryClient = useQueryClient();
-  const key = groupsQueryKey(slug);
+  const key = queryKeys.groups(slug);
   return useMutation({
     mutationFn: ({ entry, groupId }: { entry: string; groupId: number | null }) => moveEntry(slug, entry, groupId),
     onMutate: async ({ entry, groupId }) => {

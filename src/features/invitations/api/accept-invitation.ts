@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { Me } from '@shared/schemas/api';
 import { api, csrfTokensIssued, resetCsrfToken } from '../../../lib/api-client';
-import { meQueryKey } from '../../auth/api/get-me';
+import { queryKeys } from '../../../lib/query-keys';
 
 export type AcceptInvitation = { name: string; password: string };
 
@@ -19,7 +19,7 @@ export function useAcceptInvitation(token: string) {
     mutationFn: (body: AcceptInvitation) => acceptInvitation(token, body),
     onSuccess: (me) => {
       queryClient.clear();
-      queryClient.setQueryData(meQueryKey, me);
+      queryClient.setQueryData(queryKeys.me, me);
     },
   });
 }

@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { analysisPath, api } from '../../../lib/api-client';
-import { groupsQueryKey } from '../../groups/api/get-groups';
 import { invalidateModel } from './invalidate';
+import { queryKeys } from '../../../lib/query-keys';
 
 /** What an import created, counted. */
 export type ImportResult = { regions: number; processes: number; entries: number };
@@ -22,7 +22,7 @@ export function useImportExchange(slug: string) {
     mutationFn: (file: File) => importExchange(slug, file),
     onSuccess: () => {
       invalidateModel(queryClient, slug);
-      void queryClient.invalidateQueries({ queryKey: groupsQueryKey(slug) });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.groups(slug) });
     },
   });
 }

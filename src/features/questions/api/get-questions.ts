@@ -1,7 +1,7 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { QuestionFilter, QuestionSummary } from '@shared/schemas/review';
 import { analysisPath, api } from '../../../lib/api-client';
-import { questionKeys } from './keys';
+import { queryKeys } from '../../../lib/query-keys';
 
 /** The query string of a filter: only the filters that are set, in a fixed order. */
 export function questionQuery(filter: QuestionFilter): string {
@@ -20,7 +20,7 @@ export function getQuestions(slug: string, filter: QuestionFilter = {}): Promise
 }
 
 export const questionsQueryOptions = (slug: string, filter: QuestionFilter = {}) =>
-  queryOptions({ queryKey: questionKeys.list(slug, filter), queryFn: () => getQuestions(slug, filter) });
+  queryOptions({ queryKey: queryKeys.questionList(slug, filter), queryFn: () => getQuestions(slug, filter) });
 
 export function useQuestions(slug: string, filter: QuestionFilter = {}) {
   return useQuery(questionsQueryOptions(slug, filter));

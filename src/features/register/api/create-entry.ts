@@ -1,9 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { EntryDetail, EntryInput } from '@shared/schemas/register';
 import { analysisPath, api } from '../../../lib/api-client';
-import { analysisQueryKey } from '../../analyses/api/get-analysis';
-import { groupsQueryKey } from '../../groups/api/get-groups';
-import { entriesQueryKey } from './get-entries';
+import { queryKeys } from '../../../lib/query-keys';
 
 export function createEntry(slug: string, body: EntryInput): Promise<EntryDetail> {
   return api.post<EntryDetail>(analysisPath(slug, 'entries'), body);
@@ -14,9 +12,9 @@ export function useCreateEntry(slug: string) {
   return useMutation({
     mutationFn: (body: EntryInput) => createEntry(slug, body),
     onSuccess: () => {
-      void queryClient.invalidateQueries({ queryKey: entriesQueryKey(slug) });
-      void queryClient.invalidateQueries({ queryKey: groupsQueryKey(slug) });
-      void queryClient.invalidateQueries({ queryKey: analysisQueryKey(slug) });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.entries(slug) });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.groups(slug) });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.overview(slug) });
     },
   });
 }

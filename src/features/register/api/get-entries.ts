@@ -2,14 +2,13 @@ import { useMemo } from 'react';
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { EntrySummary } from '@shared/schemas/api';
 import { api } from '../../../lib/api-client';
-
-export const entriesQueryKey = (slug: string) => ['analyses', slug, 'entries'] as const;
+import { queryKeys } from '../../../lib/query-keys';
 
 export function getEntries(slug: string): Promise<EntrySummary[]> {
   return api.get<EntrySummary[]>(`/api/analyses/${encodeURIComponent(slug)}/entries`);
 }
 
-export const entriesQueryOptions = (slug: string) => queryOptions({ queryKey: entriesQueryKey(slug), queryFn: () => getEntries(slug) });
+export const entriesQueryOptions = (slug: string) => queryOptions({ queryKey: queryKeys.entries(slug), queryFn: () => getEntries(slug) });
 
 export function useEntries(slug: string) {
   return useQuery(entriesQueryOptions(slug));

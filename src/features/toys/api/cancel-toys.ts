@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { ToyRun } from '@shared/schemas/toys';
 import { analysisPath, api } from '../../../lib/api-client';
-import { toyKeys } from './keys';
+import { queryKeys } from '../../../lib/query-keys';
 
 export function cancelToys(slug: string, toyId: number): Promise<ToyRun> {
   return api.post<ToyRun>(analysisPath(slug, 'toys', toyId, 'cancel'));
@@ -12,8 +12,8 @@ export function useCancelToys(slug: string, fitId: number) {
   return useMutation({
     mutationFn: (toyId: number) => cancelToys(slug, toyId),
     onSuccess: (_run, toyId) => {
-      void queryClient.invalidateQueries({ queryKey: toyKeys.runs(slug, fitId), exact: true });
-      void queryClient.invalidateQueries({ queryKey: toyKeys.run(slug, toyId), exact: true });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.toyRuns(slug, fitId), exact: true });
+      void queryClient.invalidateQueries({ queryKey: queryKeys.toyRun(slug, toyId), exact: true });
     },
   });
 }

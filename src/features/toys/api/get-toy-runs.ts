@@ -2,7 +2,7 @@ import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { ToyRun } from '@shared/schemas/toys';
 import { analysisPath, api } from '../../../lib/api-client';
 import { isActive, POLL_MS } from '../../fits/api/fit-states';
-import { toyKeys } from './keys';
+import { queryKeys } from '../../../lib/query-keys';
 
 /** The toy runs of a fit, newest first; the list carries no summaries. */
 export function getToyRuns(slug: string, fitId: number): Promise<ToyRun[]> {
@@ -12,7 +12,7 @@ export function getToyRuns(slug: string, fitId: number): Promise<ToyRun[]> {
 /** The list polls while any run in it is queued or running, and stops once every run has ended. */
 export const toyRunsQueryOptions = (slug: string, fitId: number) =>
   queryOptions({
-    queryKey: toyKeys.runs(slug, fitId),
+    queryKey: queryKeys.toyRuns(slug, fitId),
     queryFn: () => getToyRuns(slug, fitId),
     refetchInterval: (query) => (query.state.data?.some((r) => isActive(r.state)) ? POLL_MS : false),
   });

@@ -1,7 +1,7 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { StartToys, ToyRun } from '@shared/schemas/toys';
 import { analysisPath, api } from '../../../lib/api-client';
-import { toyKeys } from './keys';
+import { queryKeys } from '../../../lib/query-keys';
 
 /** Queue a toy run of a converged fit; the server answers 202 with the run, queued. */
 export function startToys(slug: string, fitId: number, body: StartToys): Promise<ToyRun> {
@@ -12,6 +12,6 @@ export function useStartToys(slug: string, fitId: number) {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: (body: StartToys) => startToys(slug, fitId, body),
-    onSuccess: () => void queryClient.invalidateQueries({ queryKey: toyKeys.runs(slug, fitId), exact: true }),
+    onSuccess: () => void queryClient.invalidateQueries({ queryKey: queryKeys.toyRuns(slug, fitId), exact: true }),
   });
 }
