@@ -31,6 +31,11 @@ const envSchema = z.object({
   FIT_THREADS: z.coerce.number().int().min(1).max(256).optional(),
   /** CPU niceness of the fit threads (0 normal … 19 lowest): requests come before fits. */
   FIT_NICENESS: z.coerce.number().int().min(0).max(19).default(15),
+  /**
+   * Web server processes sharing the port (node:cluster). Above 1 only with DATABASE_URL: the
+   * embedded database belongs to one process.
+   */
+  WEB_PROCESSES: z.coerce.number().int().min(1).max(64).default(1),
   /** Failed sign-ins per address (IP) per 15 minutes; successful ones do not count. */
   SIGN_IN_LIMIT: z.coerce.number().int().min(1).default(20),
   /** All sign-in attempts per address (IP) per 15 minutes, failed or not: a cap well above a team's use. */
@@ -48,6 +53,8 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     throw new ConfigError(`Plumbline cannot start: bad configuration\n${lines.join('\n')}`);
   }
   const c = parsed.data;
+  if (c.WEB_PROCESSES > 1 && !c.DATABASE_URL)
+    throw new ConfigError('Plumbline cannot start: bad configuration\n  WEB_PROCESSES: above 1 needs DATABASE_URL (the embedded database belongs to one process)');
   return {
     ...c,
     dataDir: path.resolve(c.PLUMBLINE_DATA_DIR),

@@ -1,4 +1,5 @@
-import { existsSync, readFileSync, writeFileSync } from 'node:fs';
+import cluster from 'node:cluster';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { randomBytes } from 'node:crypto';
 import path from 'node:path';
 import { availableParallelism } from 'node:os';
@@ -19,6 +20,7 @@ import { backfillEffectSizes } from './services/register.service';
 function sessionSecret(config: Config) {
   if (config.sessionSecret) return config.sessionSecret;
   const file = path.join(config.dataDir, 'session-secret');
+  mkdirSync(config.dataDir, { recursive: true });
   if (!existsSync(file)) writeFileSync(file, randomBytes(32).toString('hex'), { mode: 0o600 });
   return readFileSync(file, 'utf8').trim();
 }
@@ -41,13 +43,29 @@ async function serveClient(app: express.Express, config: Config) {
   return async () => {};
 }
 
-async function main() {
-  if (process.argv.includes('--dev')) process.env.NODE_ENV = 'development';
-  const base = loadConfig();
-  const database = await openDatabase(base.dataDir, base.DATABASE_URL);
-  const config = { ...base, sessionSecret: sessionSecret(base) };
+type Demo = Awaited<ReturnType<typeof seedDemo>>;
+
+/** Opens the database (migrations run under a lock), writes the demo into an empty one, and fills what older versions left out. */
+async function prepare(config: Config) {
+  const database = await openDatabase(config.dataDir, config.DATABASE_URL);
   const seed = await seedDemo(database.db);
   await backfillEffectSizes(database.db);
+  return { database, seed };
+}
+
+function announce(config: Config, port: number, seed: Demo, mail: string) {
+  const where = config.DATABASE_URL ? `database ${redacted(config.DATABASE_URL)}; fits and toys run by worker processes (npm run worker)` : `data in ${config.dataDir}`;
+  const processes = config.WEB_PROCESSES > 1 ? `; ${config.WEB_PROCESSES} web server processes share the port` : '';
+  console.log(`Plumbline is running at http://localhost:${port} (${config.NODE_ENV}; ${where}${processes})`);
+  console.log(`E-mail is ${mail}.`);
+  if (seed.seeded) console.log('The invented demo scenario was written into the new database.');
+  console.log(`Demo accounts (password for all: ${seed.password}):`);
+  for (const a of seed.accounts) console.log(`  ${a.email.padEnd(26)} ${a.note}`);
+}
+
+/** One web server process: the API and the client on the port, fits and toys on its threads or the queue. */
+async function serve(config: Config, prepared: Awaited<ReturnType<typeof prepare>> | null, onListening: (port: number, mail: string) => void) {
+  const { database } = prepared ?? { database: await openDatabase(config.dataDir, config.DATABASE_URL) };
   const mailer = await createMailer(outboxStore(database.db), config);
   const threads = config.FIT_THREADS ?? Math.max(1, availableParallelism() - 1);
   const local = createFitRunner(database.db, console.error, { threads, niceness: config.FIT_NICENESS });
@@ -62,13 +80,7 @@ async function main() {
 
   const server = app.listen(config.PORT, config.HOST, () => {
     const address = server.address();
-    const port = typeof address === 'object' && address ? address.port : config.PORT;
-    const where = config.DATABASE_URL ? `database ${redacted(config.DATABASE_URL)}; fits and toys run by worker processes (npm run worker)` : `data in ${config.dataDir}`;
-    console.log(`Plumbline is running at http://localhost:${port} (${config.NODE_ENV}; ${where})`);
-    console.log(`E-mail is ${mailer.describe()}.`);
-    if (seed.seeded) console.log('The invented demo scenario was written into the new database.');
-    console.log(`Demo accounts (password for all: ${seed.password}):`);
-    for (const a of seed.accounts) console.log(`  ${a.email.padEnd(26)} ${a.note}`);
+    onListening(typeof address === 'object' && address ? address.port : config.PORT, mailer.describe());
   });
 
   let stopping = false;
@@ -86,6 +98,47 @@ async function main() {
   };
   process.on('SIGINT', stop);
   process.on('SIGTERM', stop);
+}
+
+/**
+ * With WEB_PROCESSES above 1 (a PostgreSQL server only), this process prepares the database once
+ * and starts that many web server processes sharing the port (node:cluster deals out the
+ * connections); a process that dies is started again. Nothing is kept in memory on a server
+ * database, so any process may answer any request.
+ */
+async function primary(config: Config) {
+  const { database, seed } = await prepare(config);
+  await database.close();
+  let listening = 0;
+  let stopping = false;
+  const start = () =>
+    cluster.fork().on('message', (m: { port?: number; mail?: string }) => {
+      if (m.port !== undefined && ++listening === config.WEB_PROCESSES) announce(config, m.port, seed, m.mail ?? '');
+    });
+  for (let i = 0; i < config.WEB_PROCESSES; i++) start();
+  cluster.on('exit', (worker, code, signal) => {
+    if (stopping) return;
+    console.error(`A web server process (pid ${worker.process.pid}) ended (${signal ?? `code ${code}`}); starting another.`);
+    start();
+  });
+  const stop = () => {
+    stopping = true;
+    for (const w of Object.values(cluster.workers ?? {})) w?.kill('SIGTERM');
+    const check = setInterval(() => Object.keys(cluster.workers ?? {}).length === 0 && process.exit(0), 100);
+    check.unref();
+  };
+  process.on('SIGINT', stop);
+  process.on('SIGTERM', stop);
+}
+
+async function main() {
+  if (process.argv.includes('--dev')) process.env.NODE_ENV = 'development';
+  const base = loadConfig();
+  const config = { ...base, sessionSecret: sessionSecret(base) };
+  if (config.WEB_PROCESSES > 1 && cluster.isPrimary) return primary(config);
+  if (cluster.isWorker) return serve(config, null, (port, mail) => process.send?.({ port, mail }));
+  const prepared = await prepare(config);
+  await serve(config, prepared, (port, mail) => announce(config, port, prepared.seed, mail));
 }
 
 main().catch((e) => {

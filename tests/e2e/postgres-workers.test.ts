@@ -1,3 +1,4 @@
+import { readdirSync, readFileSync } from 'node:fs';
 import { spawn, type ChildProcess } from 'node:child_process';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
@@ -155,9 +156,9 @@ describe('shards on the queue', () => {
   }, 60_000);
 });
 
-describe('PostgreSQL server and two worker processes', () => {
+describe('PostgreSQL server, two web server processes on one port, and two worker processes', () => {
   beforeAll(async () => {
-    server = await startServer({ DATABASE_URL: postgres.url });
+    server = await startServer({ DATABASE_URL: postgres.url, WEB_PROCESSES: '2' });
     await Promise.all([startWorker('worker-one', postgres.url), startWorker('worker-two', postgres.url)]);
   }, 180_000);
   let analyst: ReturnType<typeof request.agent>;
@@ -169,9 +170,23 @@ describe('PostgreSQL server and two worker processes', () => {
   let version = 0;
   const A = '/api/analyses/cascade-rate';
 
-  it('serves the app from the server database: sign-in, a frozen version', async () => {
+  it('serves the app from the server database through both web server processes: sign-in, a frozen version', async () => {
+    // node:cluster: the process started forks two web server processes that share the port
+    const children = readdirSync('/proc')
+      .filter((d) => /^\d+$/.test(d))
+      .filter((d) => {
+        try {
+          return readFileSync(`/proc/${d}/stat`, 'utf8').split(') ')[1].split(' ')[1] === String(server.process.pid);
+        } catch {
+          return false;
+        }
+      });
+    expect(children).toHaveLength(2);
+    expect(server.output()).toMatch(/2 web server processes share the port/);
     analyst = request.agent(server.url);
     expect((await send('post', '/api/auth/sign-in', { email: DEMO.analyst, password: PASSWORD })).status).toBe(200);
+    // a session made by one process holds in the other: every request of these may reach either
+    for (let i = 0; i < 10; i++) expect((await request(server.url).get('/api/analyses').set('Cookie', analyst.jar.getCookies({ domain: '127.0.0.1', path: '/', secure: false, script: false }).toValueString())).status).toBe(200);
     const frozen = await send('post', `${A}/versions`, { note: 'for the workers' });
     expect(frozen.status).toBe(201);
     version = frozen.body.number;

@@ -14,4 +14,9 @@ describe('configuration checked at boot', () => {
     expect(() => loadConfig({ SESSION_SECRET: 'short' })).toThrow(/SESSION_SECRET: must be at least 32 characters/);
     expect(() => loadConfig({ SMTP_URL: 'not a url' })).toThrow(/SMTP_URL/);
   });
+
+  it('refuses several web server processes on the embedded database, which belongs to one process', () => {
+    expect(() => loadConfig({ WEB_PROCESSES: '2' })).toThrow(/WEB_PROCESSES: above 1 needs DATABASE_URL/);
+    expect(loadConfig({ WEB_PROCESSES: '2', DATABASE_URL: 'postgres://u@localhost/db' }).WEB_PROCESSES).toBe(2);
+  });
 });
