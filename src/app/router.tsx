@@ -1,7 +1,7 @@
 import type { ReactNode } from 'react';
 import { createBrowserRouter, Outlet } from 'react-router';
-import { AppShell, RequireAdmin } from '../components/layout/app-shell';
-import { AnalysisLayout } from '../components/layout/analysis-layout';
+import { AnalysisLayout } from './layout/analysis-layout';
+import { AppShell, RequireAdmin } from './layout/app-shell';
 import { NotFound, RootError, RouteError } from '../components/errors/route-error';
 import { SignInRoute } from './routes/sign-in';
 import { InvitationRoute } from './routes/invitation';

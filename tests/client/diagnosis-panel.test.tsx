@@ -3,7 +3,8 @@ import { afterEach, describe, expect, it, vi } from 'vitest';
 import { cleanup, screen, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import type { Diagnosis } from '@shared/schemas/review';
-import { DiagnosisPanel, evidenceId, widthWords } from '../../src/features/diagnosis/components/diagnosis-panel';
+import { DiagnosisWithQuestions } from '../../src/app/routes/analysis/fit-views/diagnosis';
+import { evidenceId, widthWords } from '../../src/features/diagnosis/components/diagnosis-panel';
 import { convergedResult } from './fit-fixtures';
 import { json, renderWithApp, stubServer } from './helpers';
 import { diagnosis, questionSummary } from './review-fixtures';
@@ -20,7 +21,7 @@ function renderPanel(d: Diagnosis = diagnosis(), mayRaise = false) {
     if (url === '/api/analyses/demo/questions' && method === 'POST') return json(201, { ...questionSummary(), body: 'x', thread: [] });
     return undefined;
   });
-  const utils = renderWithApp(<DiagnosisPanel slug="demo" diagnosis={d} result={result} yields={result.yields} mayRaise={mayRaise} />);
+  const utils = renderWithApp(<DiagnosisWithQuestions slug="demo" diagnosis={d} result={result} yields={result.yields} mayRaise={mayRaise} />);
   return { ...utils, calls };
 }
 

@@ -33,24 +33,7 @@ export function rankByImpact(list: NuisanceReport[], mode: ImpactMode): Nuisance
   });
 }
 
-/** |pull| above which a parameter is marked as strongly pulled (in units of its prior width). */
-export const STRONG_PULL = 1;
-
-export function isStronglyPulled(n: NuisanceReport): boolean {
-  return Math.abs(n.pull) > STRONG_PULL;
-}
-
 /** Labels of fitted parameters by name. */
 export function labelsOf(r: FitResultHead): Map<string, string> {
   return new Map(r.parameters.map((p) => [p.name, p.label]));
-}
-
-export const NO_GROUP = '(no group)';
-export function groupName(g: string | null): string {
-  return g ?? NO_GROUP;
-}
-
-/** Where a parameter's diagnosis in a fit lives. */
-export function diagnosisPath(slug: string, fitId: number, name: string): string {
-  return `/a/${slug}/fits/${fitId}/diagnostics?parameter=${encodeURIComponent(name)}`;
 }

@@ -1,9 +1,7 @@
 import { useMemo } from 'react';
 import type { QuestionSummary } from '@shared/schemas/review';
+import type { QuestionMark } from '../../components/status/question-marker';
 import { useQuestions } from './api/get-questions';
-
-/** What a parameter's marker says: how many of its questions are not resolved, and whether one still waits for an answer. */
-export type QuestionMark = { state: 'open' | 'answered'; count: number };
 
 /** Per register entry (= parameter name), its unresolved questions; resolved ones leave no mark. */
 export function questionMarks(list: QuestionSummary[]): Map<string, QuestionMark> {

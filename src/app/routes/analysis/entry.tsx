@@ -1,9 +1,9 @@
 import { useMemo, useState } from 'react';
 import { Link, useParams } from 'react-router';
+import { EntryStateBadge } from '../../../components/status/entry-state';
 import { PageHeader, Panel } from '../../../components/ui/page';
 import { QueryView } from '../../../components/ui/query-view';
 import { useEntries, useEntryGroups } from '../../../features/register/api/get-entries';
-import { EntryStateBadge } from '../../../features/register/components/entry-state-badge';
 import { useEntry } from '../../../features/entry/api/get-entry';
 import { EntryMetadata } from '../../../features/entry/components/entry-metadata';
 import { ReviewPanel } from '../../../features/entry/components/review-panel';

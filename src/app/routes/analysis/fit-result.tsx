@@ -1,35 +1,30 @@
-import { useEffect, useRef, useState, type ReactNode } from 'react';
+import { useEffect, useRef, type ReactNode } from 'react';
 import { Link, NavLink, Navigate, useParams } from 'react-router';
 import { useQueryClient } from '@tanstack/react-query';
 import type { FitDetail, FitPart, FitPartName, FitResultHead } from '@shared/schemas/fits';
-import { useCan } from '../../../features/analyses/use-can';
-import { useCancelFit } from '../../../features/fits/api/cancel-fit';
-import { invalidateFitLists, useFit } from '../../../features/fits/api/get-fit';
-import { useFitPart } from '../../../features/fits/api/get-fit-part';
-import { isActive } from '../../../features/fits/api/fit-states';
-import { CompareView } from '../../../features/fits/components/compare-view';
-import { ConvergenceReport } from '../../../features/fits/components/convergence';
-import { CorrelationView } from '../../../features/fits/components/correlation-view';
-import { DiagnosticsView } from '../../../features/fits/components/diagnostics-view';
-import { DistributionsView } from '../../../features/fits/components/distributions-view';
-import { FitHeader, StickyConvergence } from '../../../features/fits/components/fit-header';
-import { FitProgress } from '../../../features/fits/components/fit-state';
-import { GroupsView } from '../../../features/fits/components/groups-view';
-import { ImpactTable } from '../../../features/fits/components/impact-table';
-import { PullsView } from '../../../features/fits/components/pulls-view';
-import { SummaryView } from '../../../features/fits/components/summary-view';
-import { fitName } from '../../../features/fits/describe';
-import { FIT_TABS, fitTab, type FitTabId } from '../../../features/fits/fit-tabs';
-import { diagnosisPath } from '../../../features/fits/result-helpers';
-import { RaiseQuestionForm } from '../../../features/questions/components/raise-question-form';
-import { useQuestionMarks } from '../../../features/questions/use-question-marks';
-import { useModel } from '../../../features/model/api/get-model';
-import { ToysView } from '../../../features/toys/components/toys-view';
+import { FitProgress } from '../../../components/status/fit-state';
 import { Button } from '../../../components/ui/button';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { FormError } from '../../../components/ui/error-notice';
 import { Panel } from '../../../components/ui/page';
 import { QueryView } from '../../../components/ui/query-view';
+import { diagnosisPath, fitPath, isActive } from '../../../lib/fits';
+import { useCan } from '../../../features/analyses/use-can';
+import { useCancelFit } from '../../../features/fits/api/cancel-fit';
+import { invalidateFitLists, useFit } from '../../../features/fits/api/get-fit';
+import { useFitPart } from '../../../features/fits/api/get-fit-part';
+import { CompareView } from '../../../features/fits/components/compare-view';
+import { ConvergenceReport } from '../../../features/fits/components/convergence';
+import { CorrelationView } from '../../../features/fits/components/correlation-view';
+import { DistributionsView } from '../../../features/fits/components/distributions-view';
+import { FitHeader, StickyConvergence } from '../../../features/fits/components/fit-header';
+import { GroupsView } from '../../../features/fits/components/groups-view';
+import { SummaryView } from '../../../features/fits/components/summary-view';
+import { FIT_TABS, fitTab, type FitTabId } from '../../../features/fits/fit-tabs';
+import { useModel } from '../../../features/model/api/get-model';
+import { ToysView } from '../../../features/toys/components/toys-view';
+import { DiagnosticsTab } from './fit-views/diagnosis';
+import { ImpactsWithQuestions, PullsWithQuestions } from './fit-views/questions';
 
 function Tabs({ base, current }: { base: string; current: FitTabId }) {
   return (
@@ -65,44 +60,6 @@ function WithPart<K extends FitPartName>({ slug, fitId, part, children }: { slug
   );
 }
 
-/** The impact ranking with the question markers and, for a convener, a question raised from a row. */
-function ImpactsWithQuestions({ slug, fit, result }: { slug: string; fit: FitDetail; result: FitResultHead }) {
-  const marks = useQuestionMarks(slug);
-  const mayRaise = useCan(slug)('question.raise');
-  const [raising, setRaising] = useState<string | null>(null);
-  const panel = useRef<HTMLDivElement>(null);
-  // The form opens above the table: the focus moves into it, and back to the row's button when it
-  // closes (found again by name: raising a question redraws the table's rows).
-  const view = useRef<HTMLDivElement>(null);
-  useEffect(() => {
-    if (!raising) return;
-    panel.current?.scrollIntoView?.({ behavior: 'smooth', block: 'nearest' });
-    panel.current?.querySelector<HTMLElement>('input, textarea')?.focus({ preventScroll: true });
-  }, [raising]);
-  const close = () => {
-    const name = raising;
-    setRaising(null);
-    if (name) view.current?.querySelector<HTMLElement>(`[data-raise="${CSS.escape(name)}"]`)?.focus();
-  };
-  return (
-    <div ref={view} className="flex flex-col gap-3">
-      {raising && (
-        <div ref={panel}>
-          <Panel title={`Raise a question on ${raising}`}>
-            <RaiseQuestionForm key={raising} slug={slug} entry={raising} fit={{ id: fit.id, label: fitName(fit) }} onCancel={close} />
-          </Panel>
-        </div>
-      )}
-      <ImpactTable slug={slug} fitId={fit.id} result={result} marks={marks} onRaise={mayRaise ? setRaising : undefined} />
-    </div>
-  );
-}
-
-function PullsWithQuestions({ slug, fit, result }: { slug: string; fit: FitDetail; result: FitResultHead }) {
-  const marks = useQuestionMarks(slug);
-  return <PullsView result={result} slug={slug} fitId={fit.id} marks={marks} />;
-}
-
 /** The distributions, drawn with the model's region and process labels. */
 function DistributionsWithModel({ slug, fit, result }: { slug: string; fit: FitDetail; result: FitResultHead }) {
   const model = useModel(slug);
@@ -114,6 +71,7 @@ function DistributionsWithModel({ slug, fit, result }: { slug: string; fit: FitD
 }
 
 function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit: FitDetail; result: FitResultHead }) {
+  const can = useCan(slug);
   const nuisance = new Set(result.nuisance.filter((n) => !n.fixed).map((n) => n.name));
   switch (tab) {
     case 'summary':
@@ -133,9 +91,9 @@ function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit:
     case 'distributions':
       return <DistributionsWithModel slug={slug} fit={fit} result={result} />;
     case 'diagnostics':
-      return <DiagnosticsView slug={slug} fitId={fit.id} result={result} />;
+      return <DiagnosticsTab slug={slug} fitId={fit.id} result={result} />;
     case 'toys':
-      return <ToysView slug={slug} fitId={fit.id} muHat={result.summary && !result.summary.mu.fixed ? result.summary.mu.value : null} />;
+      return <ToysView slug={slug} fitId={fit.id} muHat={result.summary && !result.summary.mu.fixed ? result.summary.mu.value : null} mayRun={can('fit.run')} />;
     case 'compare':
       return <CompareView slug={slug} fitId={fit.id} />;
   }
@@ -162,7 +120,7 @@ function Running({ slug, fit }: { slug: string; fit: FitDetail }) {
 }
 
 function FitBody({ slug, fit, tab }: { slug: string; fit: FitDetail; tab: FitTabId }) {
-  const base = `/a/${slug}/fits/${fit.id}`;
+  const base = fitPath(slug, fit.id);
   if (isActive(fit.state)) return <Running slug={slug} fit={fit} />;
   if (fit.state === 'cancelled')
     return (

@@ -2,7 +2,7 @@ import { Link } from 'react-router';
 import type { AnalysisSummary } from '@shared/schemas/api';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { plural } from '../../../lib/format';
-import { BlindingBadge } from './blinding-badge';
+import { BlindingBadge } from '../../../components/status/blinding-badge';
 import { RoleBadge } from './role-badge';
 
 export function AnalysesList({ analyses, isAdmin }: { analyses: AnalysisSummary[]; isAdmin: boolean }) {

@@ -4,7 +4,8 @@ import { ROLE_LABELS } from '@shared/permissions';
 import { Panel } from '../../../components/ui/page';
 import { formatDate, formatDateTime, plural } from '../../../lib/format';
 import type { FitState } from '@shared/schemas/fits';
-import { FIT_STATE_META, fitName } from '../../fits/describe';
+import { FIT_STATE_META } from '../../../components/status/fit-state';
+import { fitName, fitPath } from '../../../lib/fits';
 import { ACTION_LABELS } from '../action-labels';
 import { EntryStateBar } from './entry-state-bar';
 
@@ -47,7 +48,7 @@ export function AnalysisOverview({ overview, isAdmin }: { overview: Overview; is
       <Panel title="Latest fit">
         {latestFit ? (
           <div>
-            <Link to={`${base}/fits/${latestFit.id}`} className="text-lg font-semibold text-teal-ink hover:underline">
+            <Link to={fitPath(analysis.slug, latestFit.id)} className="text-lg font-semibold text-teal-ink hover:underline">
               {fitName(latestFit)}
             </Link>
             <p className="text-xs text-ink-muted">

@@ -1,5 +1,6 @@
 import type { EntryState } from '@shared/schemas/api';
-import { ENTRY_STATES, ENTRY_STATE_META } from '../../register/entry-states';
+import { ENTRY_STATES } from '@shared/vocabulary';
+import { ENTRY_STATE_META } from '../../../components/status/entry-state';
 
 /** Register entries by review state: one proportional bar and a legend with the counts. */
 export function EntryStateBar({ counts }: { counts: Partial<Record<EntryState, number>> }) {

@@ -7,8 +7,7 @@ import { TextAreaField } from '../../../components/ui/field';
 import { Loading } from '../../../components/ui/loading';
 import { isApiRequestError } from '../../../lib/api-client';
 import { formatDateTime } from '../../../lib/format';
-import { BlindingBadge } from '../../analyses/components/blinding-badge';
-import { useCan } from '../../analyses/use-can';
+import { BlindingBadge } from '../../../components/status/blinding-badge';
 import { useDecideUnblinding } from '../api/decide-unblinding';
 import { useBlinding } from '../api/get-blinding';
 import { useChangeBlindingSettings } from '../api/change-blinding-settings';
@@ -171,9 +170,8 @@ function Log({ log }: { log: BlindingLog }) {
  * The blinding state, large, with what it means; the log of requests and decisions; an analyst's
  * request and a convener's decision when the state allows them.
  */
-export function BlindingPanel({ slug, state: fallback }: { slug: string; state: Blinding }) {
+export function BlindingPanel({ slug, state: fallback, mayRequest, mayDecide }: { slug: string; state: Blinding; mayRequest: boolean; mayDecide: boolean }) {
   const log = useBlinding(slug);
-  const can = useCan(slug);
   const state = log.data?.state ?? fallback;
   const words = STATE_WORDS[state];
   return (
@@ -187,10 +185,10 @@ export function BlindingPanel({ slug, state: fallback }: { slug: string; state: 
             <BlindingBadge blinding={state} />
           </div>
           <p className="text-sm text-ink-soft">{words.text}</p>
-          {state === 'blinded' && can('blinding.request') && <RequestForm slug={slug} />}
-          {state === 'unblinding_requested' && can('blinding.decide') && <DecisionForm slug={slug} />}
-          {state === 'unblinding_requested' && !can('blinding.decide') && <p className="text-xs text-ink-muted">A convener decides on the request.</p>}
-          {state !== 'unblinded' && log.data && <ApprovalsSetting slug={slug} log={log.data} mayChange={can('blinding.decide')} />}
+          {state === 'blinded' && mayRequest && <RequestForm slug={slug} />}
+          {state === 'unblinding_requested' && mayDecide && <DecisionForm slug={slug} />}
+          {state === 'unblinding_requested' && !mayDecide && <p className="text-xs text-ink-muted">A convener decides on the request.</p>}
+          {state !== 'unblinded' && log.data && <ApprovalsSetting slug={slug} log={log.data} mayChange={mayDecide} />}
         </div>
         <div>
           <h3 className="mb-1 text-sm font-semibold text-ink">Log</h3>

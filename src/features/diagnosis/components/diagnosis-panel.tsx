@@ -4,21 +4,18 @@ import type { Model } from '@shared/schemas/api';
 import type { NuisanceReport } from '@shared/schemas/fit';
 import type { FitPart, FitResultHead } from '@shared/schemas/fits';
 import type { Diagnosis, DiagnosisClaim, DiagnosisRegion } from '@shared/schemas/review';
+import { fitRegionChart } from '../../../components/charts/fit-region-chart';
+import { ConstraintMeter, ImpactGlyph, PullGlyph } from '../../../components/charts/parameter-glyphs';
+import { ScanChart } from '../../../components/charts/scan-chart';
 import { StackedChart } from '../../../components/charts/stacked-chart';
+import { ConvergenceBadge } from '../../../components/status/convergence-badge';
 import { Badge } from '../../../components/ui/badge';
 import { Button } from '../../../components/ui/button';
+import { DefinitionRow } from '../../../components/ui/definition-row';
+import { diagnosisPath, fitName, groupName, isStronglyPulled } from '../../../lib/fits';
 import { formatEdge } from '../../../lib/format';
 import { correlationColour, theme } from '../../../lib/palette';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
-import { ConvergenceBadge } from '../../fits/components/convergence';
-import { fitRegionChart } from '../../fits/components/distributions-view';
-import { ConstraintMeter, ImpactGlyph, PullGlyph } from '../../fits/components/glyphs';
-import { ScanChart } from '../../fits/components/scan-chart';
-import { Row } from '../../fits/components/summary-view';
-import { fitName } from '../../fits/describe';
-import { diagnosisPath, groupName, isStronglyPulled } from '../../fits/result-helpers';
-import { EntryQuestions } from '../../questions/components/entry-questions';
-import { RaiseQuestionForm } from '../../questions/components/raise-question-form';
 import { formatShare, ShareBars, type ShareItem } from './share-bars';
 import { VariationChart, VariationTable } from './variation-chart';
 
@@ -151,7 +148,15 @@ export type DiagnosisPanelProps = {
   /** the yields part, for the highlighted distributions; null while it loads */
   yields: FitPart<'yields'> | null;
   model?: Model;
-  mayRaise: boolean;
+  /**
+   * The questions on this parameter's register entry, as the screen composes them (they belong to
+   * another feature): `list` shows them; `raise`, given only to those who may raise one, draws the
+   * form for a new question with a suggested title, and calls `close` when it is done with.
+   */
+  questions?: {
+    list: ReactNode;
+    raise?: (form: { entry: string; fit: { id: number; label: string }; defaultTitle: string; close: () => void }) => ReactNode;
+  };
 };
 
 /**
@@ -159,7 +164,7 @@ export type DiagnosisPanelProps = {
  * information comes from (regions, bins) next to what the data can resolve, its own likelihood
  * scan, its correlations, and a summary in words whose every sentence points at its evidence.
  */
-export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, mayRaise }: DiagnosisPanelProps) {
+export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, questions }: DiagnosisPanelProps) {
   const [lit, setLit] = useState<Evidence | null>(null);
   const [raising, setRaising] = useState(false);
   const timer = useRef<ReturnType<typeof setTimeout> | null>(null);
@@ -206,16 +211,21 @@ export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, mayR
             {fitLabel}
           </p>
         </div>
-        {mayRaise && d.parameter.entry && (
+        {questions?.raise && d.parameter.entry && (
           <Button variant="primary" size="sm" onClick={() => setRaising((r) => !r)} aria-expanded={raising}>
             Raise a question on {name}
           </Button>
         )}
       </header>
 
-      {raising && d.parameter.entry && (
+      {raising && questions?.raise && d.parameter.entry && (
         <section aria-label="Raise a question" className="rounded-lg border border-teal/40 bg-paper-raised px-4 py-3">
-          <RaiseQuestionForm slug={slug} entry={d.parameter.entry.key} fit={{ id: d.fit.id, label: fitLabel }} defaultTitle={d.overConstrained ? `Why is ${name} constrained to ${formatFixed(d.constraint, 2)}?` : ''} onCancel={() => setRaising(false)} />
+          {questions.raise({
+            entry: d.parameter.entry.key,
+            fit: { id: d.fit.id, label: fitLabel },
+            defaultTitle: d.overConstrained ? `Why is ${name} constrained to ${formatFixed(d.constraint, 2)}?` : '',
+            close: () => setRaising(false),
+          })}
         </section>
       )}
 
@@ -265,19 +275,19 @@ export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, mayR
 
         <Section evidence="pull" title="Pull, constraint and impact" lit={lit === 'pull'}>
           <dl className="grid grid-cols-[auto_1fr] items-center gap-x-4 gap-y-1.5 text-sm">
-            <Row label="Pull" title="(θ̂ − 0)/1: the shift of the best fit in units of the prior width">
+            <DefinitionRow label="Pull" title="(θ̂ − 0)/1: the shift of the best fit in units of the prior width">
               <span className="flex items-center gap-2">
                 <PullGlyph n={n} /> {formatSigned(d.pull, 3)}
                 {isStronglyPulled(n) && <Badge tone="plum">strongly pulled</Badge>}
               </span>
-            </Row>
-            <Row label="Constraint" title="σ̂/1: post-fit width over the prior width">
+            </DefinitionRow>
+            <DefinitionRow label="Constraint" title="σ̂/1: post-fit width over the prior width">
               <span className="flex items-center gap-2">
                 <ConstraintMeter n={n} threshold={threshold} /> {formatFixed(d.constraint, 3)}
                 {d.overConstrained && <Badge tone="amber" title={`Post-fit width below ${threshold} of the prior`}>over-constrained (below {threshold})</Badge>}
               </span>
-            </Row>
-            <Row label="Post-fit impact" title="Δμ with θ fixed at θ̂ + σ̂ / θ̂ − σ̂, all else refitted, in units of μ">
+            </DefinitionRow>
+            <DefinitionRow label="Post-fit impact" title="Δμ with θ fixed at θ̂ + σ̂ / θ̂ − σ̂, all else refitted, in units of μ">
               {d.postfitImpact ? (
                 <span className="flex items-center gap-2">
                   <ImpactGlyph up={d.postfitImpact.up} down={d.postfitImpact.down} preUp={d.prefitImpact?.up} preDown={d.prefitImpact?.down} scale={impactScale} />
@@ -286,34 +296,34 @@ export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, mayR
               ) : (
                 <span className="text-ink-muted">not computed (run the fit with full impacts)</span>
               )}
-            </Row>
-            <Row label="Pre-fit impact" title="Δμ with θ fixed at θ̂ ± 1, all else refitted, in units of μ">
+            </DefinitionRow>
+            <DefinitionRow label="Pre-fit impact" title="Δμ with θ fixed at θ̂ ± 1, all else refitted, in units of μ">
               {d.prefitImpact ? `${formatSigned(d.prefitImpact.up, 4)} / ${formatSigned(d.prefitImpact.down, 4)}` : '–'}
-            </Row>
-            <Row label="Quick impact" title="ρ(μ, θ)·σ_μ from the covariance, in units of μ (no refit)">
+            </DefinitionRow>
+            <DefinitionRow label="Quick impact" title="ρ(μ, θ)·σ_μ from the covariance, in units of μ (no refit)">
               {formatSigned(d.quickImpact, 4)}
-            </Row>
-            <Row label="Rank" title="Order by the post-fit impact max(|Δμ+|, |Δμ−|), 1 = largest">
+            </DefinitionRow>
+            <DefinitionRow label="Rank" title="Order by the post-fit impact max(|Δμ+|, |Δμ−|), 1 = largest">
               {d.rank ?? '–'}
-            </Row>
+            </DefinitionRow>
           </dl>
           <p className="mt-2 text-xs text-ink-muted">Glyphs: the pull with ±σ̂ on the prior band ±1 (±2 lighter); the constraint meter marks the prior (1) and the {threshold} threshold.</p>
         </Section>
 
         <Section evidence="width" title="Width: the data alone against the fit" lit={lit === 'width'}>
           <dl className="grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
-            <Row label="With no correlations" title="1/√(total information): the width the data and the prior alone would leave">
+            <DefinitionRow label="With no correlations" title="1/√(total information): the width the data and the prior alone would leave">
               <strong>{formatFixed(d.information.width, 3)}</strong> of the prior width
-            </Row>
-            <Row label="Post-fit σ̂" title="√V_θθ from the fit, in units of the prior width">
+            </DefinitionRow>
+            <DefinitionRow label="Post-fit σ̂" title="√V_θθ from the fit, in units of the prior width">
               <strong>{formatFixed(d.error, 3)}</strong> of the prior width
-            </Row>
-            <Row label="Ratio σ̂ / width" title="Near 1: the data alone explain the constraint; clearly above 1: correlations widen it">
+            </DefinitionRow>
+            <DefinitionRow label="Ratio σ̂ / width" title="Near 1: the data alone explain the constraint; clearly above 1: correlations widen it">
               {formatFixed(ratio, 2)}
-            </Row>
-            <Row label="Total information" title="Σ over bins of (∂ν/∂θ)²/ν, plus 1 from the prior">
+            </DefinitionRow>
+            <DefinitionRow label="Total information" title="Σ over bins of (∂ν/∂θ)²/ν, plus 1 from the prior">
               {formatFixed(d.information.total, 3)}
-            </Row>
+            </DefinitionRow>
           </dl>
           <p className="mt-2 text-sm text-ink-soft">{widthWords(d.error, d.information.width)}</p>
         </Section>
@@ -392,9 +402,9 @@ export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, mayR
         </p>
       </Section>
 
-      {d.parameter.entry && (
+      {d.parameter.entry && questions && (
         <Section title="Questions on this parameter" lit={false}>
-          <EntryQuestions slug={slug} entry={d.parameter.entry.key} />
+          {questions.list}
         </Section>
       )}
     </article>

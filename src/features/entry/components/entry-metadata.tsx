@@ -1,11 +1,11 @@
 import { useState, type FormEvent } from 'react';
 import type { Member } from '@shared/schemas/api';
 import { entryPatchSchema, type EntryDetail } from '@shared/schemas/register';
+import { draftBody, EntryFields, type EntryDraft } from '../../../components/forms/entry-fields';
 import { Button } from '../../../components/ui/button';
 import { FormError } from '../../../components/ui/error-notice';
 import { checkWith, fieldError, type FieldErrors } from '../../../lib/form-issues';
 import { isApiRequestError } from '../../../lib/api-client';
-import { draftBody, EntryFields, type EntryDraft } from '../../register/components/entry-fields';
 import { useUpdateEntry } from '../api/update-entry';
 
 function draftOf(e: EntryDetail): EntryDraft {

@@ -2,8 +2,7 @@ import { useId, useState } from 'react';
 import type { EntryDetail, ReviewAction } from '@shared/schemas/register';
 import { Button } from '../../../components/ui/button';
 import { FormError } from '../../../components/ui/error-notice';
-import { ENTRY_STATE_META } from '../../register/entry-states';
-import { EntryStateBadge } from '../../register/components/entry-state-badge';
+import { ENTRY_STATE_META, EntryStateBadge } from '../../../components/status/entry-state';
 import { useReviewEntry } from '../api/review-entry';
 
 type Step = ReviewAction['action'];

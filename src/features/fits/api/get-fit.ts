@@ -1,7 +1,7 @@
 import { queryOptions, useQuery, type QueryClient } from '@tanstack/react-query';
 import type { FitDetail } from '@shared/schemas/fits';
 import { analysisPath, api } from '../../../lib/api-client';
-import { isActive, POLL_MS } from './fit-states';
+import { isActive, POLL_MS } from '../../../lib/fits';
 import { queryKeys } from '../../../lib/query-keys';
 
 /** One fit with its stored result (null until the job ends). */

@@ -1,7 +1,7 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { FitSummary } from '@shared/schemas/fits';
 import { analysisPath, api } from '../../../lib/api-client';
-import { isActive, POLL_MS } from './fit-states';
+import { isActive, POLL_MS } from '../../../lib/fits';
 import { queryKeys } from '../../../lib/query-keys';
 
 /** The fits of an analysis, newest first. */

@@ -7,7 +7,7 @@ import { formatDateTime } from '../../../lib/format';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
 import { useComparison } from '../api/get-comparison';
 import { useFits } from '../api/get-fits';
-import { datasetInWords, fitName } from '../describe';
+import { datasetInWords, fitName } from '../../../lib/fits';
 
 type Delta = FitComparison['mu'];
 

@@ -1,24 +1,12 @@
 import { useState } from 'react';
 import type { FitResultHead } from '@shared/schemas/fits';
-import { Badge } from '../../../components/ui/badge';
+import { ConvergenceBadge } from '../../../components/status/convergence-badge';
 import { formatCompact } from '../../../lib/stats-format';
 
 type Convergence = FitResultHead['convergence'];
 
 /** Above this the fit's Hessian is close to singular and the errors deserve a second look (a rule of thumb). */
 const CONDITION_WARN = 1e6;
-
-export function ConvergenceBadge({ status }: { status: FitResultHead['status'] }) {
-  return status === 'converged' ? (
-    <Badge tone="teal" title="The minimiser reached the stopping rule: Newton decrement gᵀH⁻¹g/2 below 1e-9">
-      Converged
-    </Badge>
-  ) : (
-    <Badge tone="danger" title="The minimiser did not reach the stopping rule; no result is shown">
-      Not converged
-    </Badge>
-  );
-}
 
 /**
  * The convergence line shown above every result view: status, iterations, final decrement,

@@ -8,7 +8,8 @@ import { correlationColour, theme } from '../../../lib/palette';
 import { formatSigned } from '../../../lib/stats-format';
 import { correlationSvg, drawCorrelation, layoutMatrix } from '../correlation-draw';
 import { keepCorrelated, orderByClustering, orderByGroup, rho, strongestPairs, type CorrelationMatrix } from '../correlation-order';
-import { groupName, labelsOf } from '../result-helpers';
+import { groupName } from '../../../lib/fits';
+import { labelsOf } from '../result-helpers';
 import { groupsOf } from './group-filter';
 
 type Ordering = 'group' | 'cluster';

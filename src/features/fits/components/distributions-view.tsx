@@ -2,57 +2,15 @@ import { useMemo, useRef, useState } from 'react';
 import type { Model } from '@shared/schemas/api';
 import type { FitPart, FitResultHead } from '@shared/schemas/fits';
 import { ExportButtons } from '../../../components/charts/export-buttons';
-import { StackedChart, type StackedChartData } from '../../../components/charts/stacked-chart';
+import { fitRegionChart, type FitStage, type RegionYields } from '../../../components/charts/fit-region-chart';
+import { StackedChart } from '../../../components/charts/stacked-chart';
 import { Badge } from '../../../components/ui/badge';
 import { Panel } from '../../../components/ui/page';
 import { formatEdge } from '../../../lib/format';
-import { processColour } from '../../../lib/palette';
 
-type Stage = 'prefit' | 'postfit';
-type RegionYields = FitPart<'yields'>['prefit'][number];
+type Stage = FitStage;
 
 const ROLE_LABEL = { signal: 'signal region', control: 'control region', validation: 'validation region' } as const;
-
-/**
- * One region of a fit as the stacked chart draws it. Labels, colours, the observable and its unit
- * come from the model when it has the region and processes (the result names them by key).
- */
-export function fitRegionChart(result: FitResultHead, y: RegionYields, stage: Stage, model?: Model): StackedChartData {
-  const region = model?.regions.find((r) => r.key === y.region);
-  const procIndex = new Map((model?.processes ?? []).map((p, i) => [p.key, i]));
-  const signal = (key: string) => model?.processes.find((p) => p.key === key)?.kind === 'signal';
-  const layers = y.processes
-    .map((p, i) => ({ p, i }))
-    .sort((a, b) => Number(signal(a.p.process)) - Number(signal(b.p.process)) || a.i - b.i)
-    .map(({ p, i }) => {
-      const mp = model?.processes.find((q) => q.key === p.process);
-      return { key: p.process, label: mp?.label || p.process, colour: processColour(procIndex.get(p.process) ?? i, mp?.colour), values: p.values };
-    });
-  const dataRegion = result.data.regions.find((d) => d.region === y.region);
-  const values = dataRegion?.values ?? null;
-  const asimov = result.data.dataset === 'asimov';
-  return {
-    stage: stage === 'prefit' ? 'Pre-fit' : 'Post-fit',
-    regionLabel: region?.label || y.region,
-    observable: region?.observable ?? 'observable',
-    unit: region?.unit ?? null,
-    edges: y.edges,
-    layers,
-    expected: y.total.values,
-    band: y.total.errors,
-    bandInfo: {
-      label: stage === 'prefit' ? 'Pre-fit uncertainty ±1σ' : 'Post-fit uncertainty ±1σ',
-      title:
-        stage === 'prefit'
-          ? '±1σ of the total expectation from the priors (θ: 1, γ: template statistics), propagated linearly; μ and the normalisations add nothing'
-          : '±1σ of the total expectation from the fit’s full covariance, propagated linearly',
-      inMain: true,
-    },
-    data: values,
-    dataLabel: asimov ? `Asimov data (μ = ${formatEdge(result.data.asimovMu ?? 1)})` : 'Observed',
-    withheld: values === null,
-  };
-}
 
 function RegionChart({ result, y, stage, model }: { result: FitResultHead; y: RegionYields; stage: Stage; model?: Model }) {
   const ref = useRef<SVGSVGElement>(null);

@@ -1,9 +1,9 @@
 import type { FitDetail } from '@shared/schemas/fits';
 import { formatDateTime } from '../../../lib/format';
 import { EXPORT_TABLES, exportCsvUrl, exportJsonUrl } from '../api/export-links';
-import { datasetInWords, fitName, optionsInWords } from '../describe';
+import { FitStateBadge } from '../../../components/status/fit-state';
+import { datasetInWords, fitName, optionsInWords } from '../../../lib/fits';
 import { ConvergenceStrip } from './convergence';
-import { FitStateBadge } from './fit-state';
 
 /** Downloads of a stored result: the whole result as JSON and every table as CSV. */
 export function ExportLinks({ slug, fit }: { slug: string; fit: FitDetail }) {

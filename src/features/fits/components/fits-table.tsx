@@ -6,9 +6,8 @@ import { tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { formatDateTime } from '../../../lib/format';
 import { decimalsFor, formatFixed, formatSigma } from '../../../lib/stats-format';
 import { useCancelFit } from '../api/cancel-fit';
-import { isActive } from '../api/fit-states';
-import { datasetInWords, fitName, optionsInWords } from '../describe';
-import { FitProgress, FitStateBadge } from './fit-state';
+import { FitProgress, FitStateBadge } from '../../../components/status/fit-state';
+import { datasetInWords, fitName, fitPath, isActive, optionsInWords } from '../../../lib/fits';
 
 function Headline({ fit }: { fit: FitSummary }) {
   const h = fit.headline;
@@ -85,7 +84,7 @@ export function FitsTable({ slug, fits, mayRun }: { slug: string; fits: FitSumma
             {fits.map((f) => (
               <tr key={f.id} className="hover:bg-paper-sunk/50">
                 <td className={tdClass}>
-                  <Link to={`/a/${slug}/fits/${f.id}`} className="font-medium text-teal-ink hover:underline">
+                  <Link to={fitPath(slug, f.id)} className="font-medium text-teal-ink hover:underline">
                     {fitName(f)}
                   </Link>
                   <span className="block text-2xs text-ink-muted">#{f.id}</span>

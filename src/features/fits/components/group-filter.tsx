@@ -1,5 +1,5 @@
 import { SelectField } from '../../../components/ui/field';
-import { groupName } from '../result-helpers';
+import { groupName } from '../../../lib/fits';
 
 /** The groups present among some parameters, alphabetically, "(no group)" last. */
 export function groupsOf(list: { group: string | null }[]): string[] {

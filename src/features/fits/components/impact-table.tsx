@@ -18,10 +18,10 @@ import { SelectField } from '../../../components/ui/field';
 import { tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { SortableTh } from '../../../components/ui/sortable-th';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
-import { QuestionMarker } from '../../questions/components/question-marker';
-import type { QuestionMark } from '../../questions/use-question-marks';
-import { diagnosisPath, groupName, impactMode, impactSize, isStronglyPulled, labelsOf, rankByImpact, type ImpactMode } from '../result-helpers';
-import { ConstraintMeter, ImpactGlyph, PullGlyph } from './glyphs';
+import { ConstraintMeter, ImpactGlyph, PullGlyph } from '../../../components/charts/parameter-glyphs';
+import { QuestionMarker, type QuestionMark } from '../../../components/status/question-marker';
+import { diagnosisPath, groupName, isStronglyPulled } from '../../../lib/fits';
+import { impactMode, impactSize, labelsOf, rankByImpact, type ImpactMode } from '../result-helpers';
 import { GroupFilter, groupsOf } from './group-filter';
 
 export type ImpactRow = NuisanceReport & { label: string; position: number; size: number | null };

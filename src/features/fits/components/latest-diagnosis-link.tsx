@@ -2,7 +2,7 @@ import { useQueries } from '@tanstack/react-query';
 import { Link } from 'react-router';
 import { useFits } from '../api/get-fits';
 import { fitQueryOptions } from '../api/get-fit';
-import { diagnosisPath } from '../result-helpers';
+import { diagnosisPath } from '../../../lib/fits';
 
 /** How many of the newest succeeded fits are read to find one that fitted the parameter. */
 const LOOK_BACK = 3;

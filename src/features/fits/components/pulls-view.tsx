@@ -9,10 +9,10 @@ import { CheckboxField, SelectField } from '../../../components/ui/field';
 import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { theme } from '../../../lib/palette';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
-import { QuestionMarker } from '../../questions/components/question-marker';
-import type { QuestionMark } from '../../questions/use-question-marks';
-import { diagnosisPath, groupName, isStronglyPulled, labelsOf, STRONG_PULL } from '../result-helpers';
-import { markColour } from './glyphs';
+import { markColour } from '../../../components/charts/parameter-glyphs';
+import { QuestionMarker, type QuestionMark } from '../../../components/status/question-marker';
+import { diagnosisPath, groupName, isStronglyPulled, STRONG_PULL } from '../../../lib/fits';
+import { labelsOf } from '../result-helpers';
 import { GroupFilter, groupsOf } from './group-filter';
 
 export type PullSort = 'group' | 'name' | 'pull' | 'absPull' | 'constraint' | 'normalisedPull';

@@ -1,21 +1,9 @@
-import type { ReactNode } from 'react';
 import type { FitResultHead } from '@shared/schemas/fits';
+import { ScanChart } from '../../../components/charts/scan-chart';
+import { DefinitionRow } from '../../../components/ui/definition-row';
 import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { decimalsFor, formatFixed, formatProbability, formatSigma, formatSigned } from '../../../lib/stats-format';
 import { ConvergenceReport } from './convergence';
-import { ScanChart } from './scan-chart';
-
-/** A term and its number in a definition list, the number explained on hover. */
-export function Row({ label, title, children }: { label: ReactNode; title: string; children: ReactNode }) {
-  return (
-    <>
-      <dt className="text-ink-muted">{label}</dt>
-      <dd className="tabular-nums" title={title}>
-        {children}
-      </dd>
-    </>
-  );
-}
 
 /** μ̂ with its 68 % errors: the scan's crossings when there is a scan, else ±σ_μ from the covariance. */
 export function MuHeadline({ result }: { result: FitResultHead }) {
@@ -66,25 +54,25 @@ export function SummaryView({ result }: { result: FitResultHead }) {
           <MuHeadline result={result} />
           {!mu.fixed && (
             <dl className="mt-3 grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
-              <Row label="σ_μ" title="√V_μμ: the symmetric error from the covariance at the minimum">
+              <DefinitionRow label="σ_μ" title="√V_μμ: the symmetric error from the covariance at the minimum">
                 {formatFixed(mu.error, dec)}
-              </Row>
-              <Row label="95 % interval" title="Where the scan crosses q = 3.84 (absolute values of μ)">
+              </DefinitionRow>
+              <DefinitionRow label="95 % interval" title="Where the scan crosses q = 3.84 (absolute values of μ)">
                 {i95 && i95.low !== null && i95.high !== null ? `[${formatFixed(mu.value + i95.low, dec)}, ${formatFixed(mu.value + i95.high, dec)}]` : <span className="text-ink-muted">needs a scan</span>}
-              </Row>
-              <Row label="Statistical part" title="σ_μ with every nuisance parameter and γ held at its best fit (μ and the normalisations free)">
+              </DefinitionRow>
+              <DefinitionRow label="Statistical part" title="σ_μ with every nuisance parameter and γ held at its best fit (μ and the normalisations free)">
                 ± {formatFixed(mu.stat, dec)}
-              </Row>
-              <Row label="Systematic part" title="√(σ_μ² − σ_stat²): what the nuisance parameters add">
+              </DefinitionRow>
+              <DefinitionRow label="Systematic part" title="√(σ_μ² − σ_stat²): what the nuisance parameters add">
                 ± {formatFixed(mu.syst, dec)}
-              </Row>
+              </DefinitionRow>
             </dl>
           )}
         </Panel>
 
         <Panel title="Significance and limit">
           <dl className="grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
-            <Row
+            <DefinitionRow
               label={asimov ? 'Significance (this Asimov dataset)' : 'Observed significance'}
               title="Z = √q₀ with q₀ = 2[NLL(μ = 0) − NLL(μ̂)], in standard deviations; 0 when μ̂ ≤ 0"
             >
@@ -95,8 +83,8 @@ export function SummaryView({ result }: { result: FitResultHead }) {
               ) : (
                 <span className="text-ink-muted">not computed</span>
               )}
-            </Row>
-            <Row label="Expected significance" title="Z on the pre-fit Asimov dataset at the μ shown, in standard deviations; p₀ is its one-sided p-value">
+            </DefinitionRow>
+            <DefinitionRow label="Expected significance" title="Z on the pre-fit Asimov dataset at the μ shown, in standard deviations; p₀ is its one-sided p-value">
               {s.expected ? (
                 <>
                   {formatSigma(s.expected.z)} <span className="text-ink-muted">(p₀ = {formatProbability(s.expected.p0)}, Asimov μ = {formatFixed(s.expected.asimovMu, 2)})</span>
@@ -104,30 +92,30 @@ export function SummaryView({ result }: { result: FitResultHead }) {
               ) : (
                 <span className="text-ink-muted">not asked for</span>
               )}
-            </Row>
+            </DefinitionRow>
             {lim ? (
               <>
-                <Row label={`${Math.round(lim.cl * 100)} % CL limit (observed)`} title="CLs upper limit on μ with the asymptotic q̃_μ distributions, in multiples of the nominal signal">
+                <DefinitionRow label={`${Math.round(lim.cl * 100)} % CL limit (observed)`} title="CLs upper limit on μ with the asymptotic q̃_μ distributions, in multiples of the nominal signal">
                   {lim.observed === null ? <span className="text-ink-muted">outside the μ range</span> : `μ < ${formatFixed(lim.observed, 3)}`}
-                </Row>
-                <Row label="Expected limit" title="Median expected limit from the background-only Asimov dataset">
+                </DefinitionRow>
+                <DefinitionRow label="Expected limit" title="Median expected limit from the background-only Asimov dataset">
                   {lim.expected.median === null ? '–' : `μ < ${formatFixed(lim.expected.median, 3)}`}
-                </Row>
-                <Row label="±1σ band" title="Expected limit if the background-only data fluctuated by ∓1σ">
+                </DefinitionRow>
+                <DefinitionRow label="±1σ band" title="Expected limit if the background-only data fluctuated by ∓1σ">
                   [{formatFixed(lim.expected.minus1, 3)}, {formatFixed(lim.expected.plus1, 3)}]
-                </Row>
-                <Row label="±2σ band" title="Expected limit if the background-only data fluctuated by ∓2σ">
+                </DefinitionRow>
+                <DefinitionRow label="±2σ band" title="Expected limit if the background-only data fluctuated by ∓2σ">
                   [{formatFixed(lim.expected.minus2, 3)}, {formatFixed(lim.expected.plus2, 3)}]
-                </Row>
+                </DefinitionRow>
               </>
             ) : (
-              <Row label="Upper limit" title="Ask for a CLs limit when running the fit">
+              <DefinitionRow label="Upper limit" title="Ask for a CLs limit when running the fit">
                 <span className="text-ink-muted">not asked for</span>
-              </Row>
+              </DefinitionRow>
             )}
-            <Row label="Goodness of fit" title="Saturated-model statistic t = 2Σ[ν − n + n ln(n/ν)] at the best fit, with its χ² p-value for the degrees of freedom shown">
+            <DefinitionRow label="Goodness of fit" title="Saturated-model statistic t = 2Σ[ν − n + n ln(n/ν)] at the best fit, with its χ² p-value for the degrees of freedom shown">
               t = {formatFixed(s.goodnessOfFit.t, 2)} for {s.goodnessOfFit.dof} dof, p = {formatProbability(s.goodnessOfFit.p)}
-            </Row>
+            </DefinitionRow>
           </dl>
         </Panel>
       </div>

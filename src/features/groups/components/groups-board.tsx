@@ -24,7 +24,7 @@ import type { GroupsView } from '@shared/schemas/register';
 import { Button } from '../../../components/ui/button';
 import { FormError } from '../../../components/ui/error-notice';
 import { TextField } from '../../../components/ui/field';
-import { EntryStateBadge } from '../../register/components/entry-state-badge';
+import { EntryStateBadge } from '../../../components/status/entry-state';
 import { useCreateGroup } from '../api/create-group';
 import { useDeleteGroup } from '../api/delete-group';
 import { useMoveEntry } from '../api/move-entry';

@@ -2,8 +2,7 @@ import { Link } from 'react-router';
 import type { QuestionSummary } from '@shared/schemas/review';
 import { tableClass, tdClass, thClass } from '../../../components/ui/page';
 import { formatDateTime } from '../../../lib/format';
-import { fitName } from '../../fits/describe';
-import { diagnosisPath } from '../../fits/result-helpers';
+import { diagnosisPath, fitName } from '../../../lib/fits';
 import { QuestionStateBadge } from './question-state-badge';
 
 /** The question queue: one row per question, newest activity first; the title opens its thread. */

@@ -5,7 +5,7 @@ import { Button } from '../../../components/ui/button';
 import { FormError } from '../../../components/ui/error-notice';
 import { CheckboxField, TextAreaField, TextField } from '../../../components/ui/field';
 import { isApiRequestError } from '../../../lib/api-client';
-import { fitName } from '../../fits/describe';
+import { fitName } from '../../../lib/fits';
 import { useRaiseQuestion } from '../api/raise-question';
 
 /**

@@ -1,11 +1,11 @@
 import { useState, type FormEvent } from 'react';
 import { entryInputSchema } from '@shared/schemas/register';
 import type { Member } from '@shared/schemas/api';
+import { draftBody, emptyDraft, EntryFields } from '../../../components/forms/entry-fields';
 import { Button } from '../../../components/ui/button';
 import { FormError } from '../../../components/ui/error-notice';
 import { checkWith, fieldError, type FieldErrors } from '../../../lib/form-issues';
 import { useCreateEntry } from '../api/create-entry';
-import { draftBody, emptyDraft, EntryFields } from './entry-fields';
 
 export function NewEntryForm({ slug, members, groups, onCreated, onCancel }: { slug: string; members: Member[]; groups: string[]; onCreated: (key: string) => void; onCancel: () => void }) {
   const [draft, setDraft] = useState(emptyDraft);

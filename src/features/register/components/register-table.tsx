@@ -25,9 +25,9 @@ import { SelectField } from '../../../components/ui/field';
 import { tableClass, tdClass } from '../../../components/ui/page';
 import { SortableTh } from '../../../components/ui/sortable-th';
 import { formatPercent } from '../../../lib/format';
-import { QuestionMarker } from '../../questions/components/question-marker';
-import { ENTRY_STATE_META, ENTRY_STATES } from '../entry-states';
-import { EntryStateBadge } from './entry-state-badge';
+import { ENTRY_STATES } from '@shared/vocabulary';
+import { ENTRY_STATE_META, EntryStateBadge } from '../../../components/status/entry-state';
+import { QuestionMarker } from '../../../components/status/question-marker';
 
 /** Equality on the column's value; '' is a real choice ("no group", "unassigned"), only undefined clears it. */
 const exact = constructFilterFn({ filter: (data, wanted) => data === wanted, autoRemove: (v) => v === undefined || v === null });

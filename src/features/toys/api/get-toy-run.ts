@@ -1,7 +1,7 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { ToyRun } from '@shared/schemas/toys';
 import { analysisPath, api } from '../../../lib/api-client';
-import { isActive, POLL_MS } from '../../fits/api/fit-states';
+import { isActive, POLL_MS } from '../../../lib/fits';
 import { queryKeys } from '../../../lib/query-keys';
 
 /** One toy run, with its summary once it has succeeded. */

@@ -3,7 +3,7 @@ import type { ToyRun, ToySummary } from '@shared/schemas/toys';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { Panel } from '../../../components/ui/page';
 import { formatCount, formatEdge } from '../../../lib/format';
-import { FitStateBadge } from '../../fits/components/fit-state';
+import { FitStateBadge } from '../../../components/status/fit-state';
 import { hypothesisInWords, toyRunName } from '../toy-stats';
 import { MuToyPanel } from './mu-toy-panel';
 import { Q0ToyPanel } from './q0-toy-panel';

@@ -5,7 +5,6 @@ import { EmptyState } from '../../../components/ui/empty-state';
 import { FormError } from '../../../components/ui/error-notice';
 import { Panel } from '../../../components/ui/page';
 import { QueryView } from '../../../components/ui/query-view';
-import { useCan } from '../../analyses/use-can';
 import { useCancelToys } from '../api/cancel-toys';
 import { useToyRun } from '../api/get-toy-run';
 import { useToyRuns } from '../api/get-toy-runs';
@@ -49,9 +48,8 @@ function SelectedRun({ slug, fitId, toyId, mayRun }: { slug: string; fitId: numb
  * The pseudo-experiments of a converged fit: the form to ask for toys (for those who may run
  * fits), the fit's toy runs, and the chosen run's comparison with the asymptotic formulas.
  */
-export function ToysView({ slug, fitId, muHat }: { slug: string; fitId: number; muHat: number | null }) {
+export function ToysView({ slug, fitId, muHat, mayRun }: { slug: string; fitId: number; muHat: number | null; mayRun: boolean }) {
   const runs = useToyRuns(slug, fitId);
-  const mayRun = useCan(slug)('fit.run');
   const [params, setParams] = useSearchParams();
   const wanted = /^\d+$/.test(params.get('run') ?? '') ? Number(params.get('run')) : null;
   const selected = runs.data ? chooseRun(runs.data, wanted) : null;

@@ -1,7 +1,7 @@
 import { useId } from 'react';
 import type { Member } from '@shared/schemas/api';
 import { ROLE_LABELS } from '@shared/permissions';
-import { SelectField, TextAreaField, TextField } from '../../../components/ui/field';
+import { SelectField, TextAreaField, TextField } from '../ui/field';
 
 /** What the entry forms edit, as the fields hold it (references one per line). */
 export type EntryDraft = { key: string; label: string; group: string; ownerId: string; description: string; justification: string; references: string };

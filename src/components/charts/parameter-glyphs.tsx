@@ -1,7 +1,7 @@
 import type { NuisanceReport } from '@shared/schemas/fit';
-import { theme } from '../../../lib/palette';
-import { formatFixed, formatSigned } from '../../../lib/stats-format';
-import { isStronglyPulled } from '../result-helpers';
+import { theme } from '../../lib/palette';
+import { formatFixed, formatSigned } from '../../lib/stats-format';
+import { isStronglyPulled } from '../../lib/fits';
 
 /**
  * Small inline glyphs for one nuisance parameter, drawn in a table cell. Each carries its

@@ -1,11 +1,11 @@
 import { Link, NavLink, Navigate, Outlet, useLocation, useNavigate } from 'react-router';
 import type { Me } from '@shared/schemas/api';
+import { Mark } from '../../components/layout/mark';
+import { ErrorNotice } from '../../components/ui/error-notice';
+import { Loading } from '../../components/ui/loading';
 import { useMe } from '../../features/auth/api/get-me';
 import { useSignOut } from '../../features/auth/api/sign-out';
 import { ApiRequestError } from '../../lib/api-client';
-import { ErrorNotice } from '../ui/error-notice';
-import { Loading } from '../ui/loading';
-import { Mark } from './mark';
 
 const topLink = ({ isActive }: { isActive: boolean }) =>
   `rounded-md px-2.5 py-1 text-sm font-medium ${isActive ? 'bg-paper-sunk text-ink' : 'text-ink-soft hover:bg-paper-sunk hover:text-ink'}`;

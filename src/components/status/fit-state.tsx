@@ -1,6 +1,14 @@
 import type { FitState, FitSummary } from '@shared/schemas/fits';
-import { Badge } from '../../../components/ui/badge';
-import { FIT_STATE_META } from '../describe';
+import { Badge, type Tone } from '../ui/badge';
+
+/** The state of a fit or a toy run in words, with its badge tone and what it means. */
+export const FIT_STATE_META: Record<FitState, { label: string; tone: Tone; title: string }> = {
+  queued: { label: 'Queued', tone: 'neutral', title: 'Waiting for a free worker on the server' },
+  running: { label: 'Running', tone: 'teal', title: 'The fit is running on the server' },
+  succeeded: { label: 'Finished', tone: 'neutral', title: 'The job ended; see the convergence report for whether the fit converged' },
+  failed: { label: 'Failed', tone: 'danger', title: 'The fit did not converge or the job stopped; no numbers are shown' },
+  cancelled: { label: 'Cancelled', tone: 'amber', title: 'Cancelled before it finished' },
+};
 
 export function FitStateBadge({ state }: { state: FitState }) {
   const m = FIT_STATE_META[state];

@@ -1,5 +1,8 @@
 import { Link } from 'react-router';
 
+/** What a parameter's marker says: how many of its questions are not resolved, and whether one still waits for an answer. */
+export type QuestionMark = { state: 'open' | 'answered'; count: number };
+
 /**
  * A small mark beside a parameter with unresolved questions; its words are in the label, not in the colour.
  * Given `link`, the mark is a link to those questions, named by `link.label` and explained by `link.title`.

@@ -1,5 +1,5 @@
 import type { Blinding } from '@shared/schemas/api';
-import { Badge } from '../../../components/ui/badge';
+import { Badge } from '../ui/badge';
 
 const LABEL: Record<Blinding, { text: string; title: string; tone: 'amber' | 'teal' | 'neutral' }> = {
   blinded: {

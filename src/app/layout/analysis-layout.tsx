@@ -1,10 +1,10 @@
 import { Link, NavLink, Outlet, useParams } from 'react-router';
+import { BlindingBadge } from '../../components/status/blinding-badge';
+import { ErrorNotice } from '../../components/ui/error-notice';
+import { Loading } from '../../components/ui/loading';
 import { useAnalysis } from '../../features/analyses/api/get-analysis';
-import { BlindingBadge } from '../../features/analyses/components/blinding-badge';
 import { RoleBadge } from '../../features/analyses/components/role-badge';
 import { useMe } from '../../features/auth/api/get-me';
-import { ErrorNotice } from '../ui/error-notice';
-import { Loading } from '../ui/loading';
 
 const SECTIONS = [
   { to: '', label: 'Overview', end: true },

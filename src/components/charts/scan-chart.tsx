@@ -2,10 +2,10 @@ import { useRef } from 'react';
 import { scaleLinear } from 'd3-scale';
 import { line } from 'd3-shape';
 import type { ParameterScan } from '@shared/schemas/fit';
-import { BottomAxis, GridLines, LeftAxis } from '../../../components/charts/axes';
-import { ChartFigure } from '../../../components/charts/chart-figure';
-import { theme } from '../../../lib/palette';
-import { formatFixed } from '../../../lib/stats-format';
+import { BottomAxis, GridLines, LeftAxis } from './axes';
+import { ChartFigure } from './chart-figure';
+import { theme } from '../../lib/palette';
+import { formatFixed } from '../../lib/stats-format';
 
 const W = 520;
 const H = 260;

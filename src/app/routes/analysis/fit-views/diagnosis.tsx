@@ -1,16 +1,37 @@
 import { useSearchParams } from 'react-router';
 import type { FitResultHead } from '@shared/schemas/fits';
-import { SelectField } from '../../../components/ui/field';
-import { Panel } from '../../../components/ui/page';
-import { ErrorNotice } from '../../../components/ui/error-notice';
-import { Loading } from '../../../components/ui/loading';
-import { useCan } from '../../analyses/use-can';
-import { useDiagnosis } from '../../diagnosis/api/get-diagnosis';
-import { DiagnosisPanel } from '../../diagnosis/components/diagnosis-panel';
-import { useModel } from '../../model/api/get-model';
-import { useFitPart } from '../api/get-fit-part';
-import { labelsOf } from '../result-helpers';
-import { ConvergenceReport } from './convergence';
+import { ErrorNotice } from '../../../../components/ui/error-notice';
+import { SelectField } from '../../../../components/ui/field';
+import { Loading } from '../../../../components/ui/loading';
+import { Panel } from '../../../../components/ui/page';
+import { useCan } from '../../../../features/analyses/use-can';
+import { useDiagnosis } from '../../../../features/diagnosis/api/get-diagnosis';
+import { DiagnosisPanel, type DiagnosisPanelProps } from '../../../../features/diagnosis/components/diagnosis-panel';
+import { useFitPart } from '../../../../features/fits/api/get-fit-part';
+import { ConvergenceReport } from '../../../../features/fits/components/convergence';
+import { labelsOf } from '../../../../features/fits/result-helpers';
+import { useModel } from '../../../../features/model/api/get-model';
+import { EntryQuestions } from '../../../../features/questions/components/entry-questions';
+import { RaiseQuestionForm } from '../../../../features/questions/components/raise-question-form';
+
+/** A parameter's diagnosis with the questions on its register entry, and for those who may, a new question raised from it. */
+export function DiagnosisWithQuestions({ mayRaise, ...panel }: Omit<DiagnosisPanelProps, 'questions'> & { mayRaise: boolean }) {
+  const { slug } = panel;
+  const entry = panel.diagnosis.parameter.entry;
+  return (
+    <DiagnosisPanel
+      {...panel}
+      questions={
+        entry
+          ? {
+              list: <EntryQuestions slug={slug} entry={entry.key} />,
+              raise: mayRaise ? (f) => <RaiseQuestionForm slug={slug} entry={f.entry} fit={f.fit} defaultTitle={f.defaultTitle} onCancel={f.close} /> : undefined,
+            }
+          : undefined
+      }
+    />
+  );
+}
 
 /** One parameter's diagnosis, fetched when chosen; the first look refits along its scan. */
 function ParameterDiagnosis({ slug, fitId, result, name }: { slug: string; fitId: number; result: FitResultHead; name: string }) {
@@ -29,11 +50,11 @@ function ParameterDiagnosis({ slug, fitId, result, name }: { slug: string; fitId
       </div>
     );
   if (diagnosis.isError) return <ErrorNotice error={diagnosis.error} onRetry={() => void diagnosis.refetch()} />;
-  return <DiagnosisPanel slug={slug} diagnosis={diagnosis.data} result={result} yields={yields.data ?? null} model={model.data} mayRaise={mayRaise} />;
+  return <DiagnosisWithQuestions slug={slug} diagnosis={diagnosis.data} result={result} yields={yields.data ?? null} model={model.data} mayRaise={mayRaise} />;
 }
 
 /** The diagnosis view: one parameter (chosen here or from any result table) and the convergence report in full. */
-export function DiagnosticsView({ slug, fitId, result }: { slug: string; fitId: number; result: FitResultHead }) {
+export function DiagnosticsTab({ slug, fitId, result }: { slug: string; fitId: number; result: FitResultHead }) {
   const [params, setParams] = useSearchParams();
   const name = params.get('parameter');
   const labels = labelsOf(result);
