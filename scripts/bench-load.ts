@@ -1,24 +1,53 @@
-import { readFileSync } from 'node:fs';
+import { spawn, type ChildProcess } from 'node:child_process';
+import { readdirSync, readFileSync } from 'node:fs';
 import os from 'node:os';
+import { parseArgs } from 'node:util';
 import autocannon from 'autocannon';
 import type { MemberRole } from '@shared/permissions';
 import { syntheticModel } from '../server/fit';
 import { startServer } from '../tests/e2e/support';
+import { startPostgres, type PostgresServer } from './postgres-server';
 
 /**
  * npm run bench:load — 200 signed-in people (200 accounts, each with its own session and CSRF
- * token) work on one analysis on loopback for 60 s: mostly reading (the register, an entry, a fit
- * result, the questions, the model) and sometimes writing (editing an entry's description,
- * renaming a group, raising and answering questions), while full-impacts fits of the large
- * benchmark model run on the same server. Prints throughput, latency percentiles (from every
- * response), errors, timeouts and non-2xx answers, and whether the targets were met.
+ * token) work on one analysis on loopback: mostly reading (the register, an entry, a fit result,
+ * the questions, the model) and sometimes writing (editing an entry's description, renaming a
+ * group, raising and answering questions), while full-impacts fits of the large benchmark model
+ * run on the same server. Two paces, one after the other, each for BENCH_SECONDS (60 s):
  *
- * Each person is an autocannon instance with one connection. autocannon gives every connection of
- * an instance a copy of the same initialContext and starts it afresh at each pass through the
- * request list, so a person's cookie, token and entry version live in that person's closure.
+ *   - team: each person sends a request, then thinks for 1–3 s (uniformly at random), as a team
+ *     at work does. Target: p99 under 250 ms and no errors.
+ *   - saturation: each person sends the next request as soon as the last is answered; the
+ *     throughput is what the server can serve.
  *
- * BENCH_SECONDS shortens the load; BENCH_CONNECTIONS changes the number of people (at most 250).
+ * Prints throughput, latency percentiles (from every response), errors, timeouts and non-2xx
+ * answers, per request kind, and whether the targets were met. Options:
+ *
+ *   --pace team|saturation|both      (default both)
+ *   --postgres                       a throwaway PostgreSQL server (Debian's package) instead of the
+ *                                    embedded database, with --web-processes web server processes
+ *                                    sharing the port (default 2) and --workers worker processes
+ *                                    taking the fits (default 2)
+ *
+ * In the saturation pace each person is an autocannon instance with one connection. autocannon
+ * gives every connection of an instance a copy of the same initialContext and starts it afresh at
+ * each pass through the request list, so a person's cookie, token and entry version live in that
+ * person's closure. The team pace sends with fetch, one keep-alive connection per person.
+ *
+ * BENCH_SECONDS shortens each pace; BENCH_CONNECTIONS changes the number of people (at most 250).
  */
+let args: { pace: string; postgres: boolean; 'web-processes': string; workers: string };
+try {
+  args = parseArgs({
+    options: { pace: { type: 'string', default: 'both' }, postgres: { type: 'boolean', default: false }, 'web-processes': { type: 'string', default: '2' }, workers: { type: 'string', default: '2' } },
+  }).values as typeof args;
+  if (!['team', 'saturation', 'both'].includes(args.pace)) throw new Error(`--pace must be team, saturation or both, not "${args.pace}"`);
+  for (const k of ['web-processes', 'workers'] as const) if (!/^[1-9]\d?$/.test(args[k])) throw new Error(`--${k} must be a whole number from 1 to 99, not "${args[k]}"`);
+} catch (e) {
+  console.error(`bench:load: ${(e as Error).message}`);
+  process.exit(2);
+}
+const PACES = (args.pace === 'both' ? ['team', 'saturation'] : [args.pace]) as ('team' | 'saturation')[];
 const PEOPLE = Number(process.env.BENCH_CONNECTIONS ?? 200);
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 60);
 const TARGET_P99_MS = 250;
@@ -99,8 +128,116 @@ type Person = { i: number; role: MemberRole; session: Session; entry: string; ve
 type Kind = 'read' | 'write';
 type Step = { kind: Kind; name: string; method: 'GET' | 'POST' | 'PATCH'; path: () => string; body?: () => unknown; onOk?: (body: string) => void };
 
+/** The web server processes whose request threads serve the load: the server, or with node:cluster its node children. */
+function webProcesses(pid: number, clustered: boolean): number[] {
+  if (!clustered) return [pid];
+  const read = (d: string, file: string) => {
+    try {
+      return readFileSync(`/proc/${d}/${file}`, 'utf8');
+    } catch {
+      return '';
+    }
+  };
+  return readdirSync('/proc')
+    .filter((d) => /^\d+$/.test(d) && read(d, 'stat').split(') ')[1]?.split(' ')[1] === String(pid) && read(d, 'comm').trim() === 'node')
+    .map(Number);
+}
+
+function startWorkers(url: string, n: number): Promise<ChildProcess[]> {
+  return Promise.all(
+    Array.from({ length: n }, (_, k) => {
+      const child = spawn(process.execPath, ['--import', 'tsx', 'server/worker.ts', '--threads', '1', '--name', `load-${k + 1}`], {
+        env: { ...process.env, DATABASE_URL: url },
+        stdio: ['ignore', 'pipe', 'inherit'],
+      });
+      return new Promise<ChildProcess>((resolve, reject) => {
+        child.stdout!.on('data', (d: Buffer) => d.toString().includes('is taking work') && resolve(child));
+        child.on('exit', (code) => reject(new Error(`worker exited with ${code}`)));
+      });
+    }),
+  );
+}
+
+type Tally = { count: number; non2xx: number; failed: number; times: number[] };
+
+/** The figures of one pace, from every response in it. */
+class Measure {
+  readonly tallies = new Map<string, Tally>();
+  readonly all: number[] = [];
+  readonly failures: string[] = [];
+  timeouts = 0;
+  connectionErrors = 0;
+  tallyOf(name: string) {
+    return this.tallies.get(name) ?? (this.tallies.set(name, { count: 0, non2xx: 0, failed: 0, times: [] }), this.tallies.get(name)!);
+  }
+  response(step: Step, status: number, time: number, body?: string) {
+    for (const t of [this.tallyOf(step.kind), this.tallyOf(step.name)]) {
+      t.count++;
+      if (status < 200 || status >= 300) t.non2xx++;
+      t.times.push(time);
+    }
+    this.all.push(time);
+    if ((status < 200 || status >= 300) && this.failures.length < 10) this.failures.push(`${step.method} ${step.name} -> ${status} ${body?.slice(0, 200) ?? ''}`);
+  }
+  noAnswer(step: Step, timedOut: boolean) {
+    if (timedOut) this.timeouts++;
+    else this.connectionErrors++;
+    this.tallyOf(step.kind).failed++;
+    this.tallyOf(step.name).failed++;
+  }
+  get non2xx() {
+    return this.tallyOf('read').non2xx + this.tallyOf('write').non2xx;
+  }
+  print(title: string, elapsed: number, cpuUsed: number, loadBefore: number) {
+    this.all.sort((a, b) => a - b);
+    console.log(`\n${title}`);
+    console.log(`machine: ${os.cpus().length} cores, load average ${loadBefore.toFixed(1)} before and ${os.loadavg()[0].toFixed(1)} after (the server, its fit threads and this load generator share them)`);
+    if (!Number.isNaN(cpuUsed)) console.log(`the request threads used ${seconds(cpuUsed)} of CPU in ${seconds(elapsed * 1000)}: ${(cpuUsed / Math.max(1, this.all.length)).toFixed(2)} ms per response`);
+    console.table({
+      responses: this.all.length,
+      'requests/s': Math.round(this.all.length / elapsed),
+      'p50 ms': ms(percentile(this.all, 50)),
+      'p95 ms': ms(percentile(this.all, 95)),
+      'p99 ms': ms(percentile(this.all, 99)),
+      'max ms': ms(this.all[this.all.length - 1]),
+      'connection errors': this.connectionErrors,
+      timeouts: this.timeouts,
+      'non-2xx': this.non2xx,
+    });
+    const row = (t: Tally) => {
+      const sorted = [...t.times].sort((a, b) => a - b);
+      return {
+        responses: t.count,
+        share: `${((100 * t.count) / Math.max(1, this.all.length)).toFixed(1)} %`,
+        'p50 ms': ms(percentile(sorted, 50)),
+        'p99 ms': ms(percentile(sorted, 99)),
+        'max ms': ms(sorted[sorted.length - 1]),
+        'non-2xx': t.non2xx,
+        'no answer': t.failed,
+      };
+    };
+    const kinds: Kind[] = ['read', 'write'];
+    console.table(Object.fromEntries(kinds.map((k) => [`${k}s`, row(this.tallyOf(k))])));
+    const names = [...this.tallies.keys()].filter((n) => !kinds.includes(n as Kind)).sort();
+    console.table(Object.fromEntries(names.map((n) => [n, row(this.tallyOf(n))])));
+    if (this.failures.length) console.log(`first non-2xx answers:\n  ${this.failures.join('\n  ')}`);
+  }
+}
+
 async function main() {
-  const server = await startServer({ UPLOAD_LIMIT_BYTES: String(200_000_000), SIGN_IN_LIMIT: String(10 * PEOPLE + 100) });
+  let postgres: PostgresServer | null = null;
+  let workers: ChildProcess[] = [];
+  const env: Record<string, string> = { UPLOAD_LIMIT_BYTES: String(200_000_000), SIGN_IN_LIMIT: String(10 * PEOPLE + 100), SIGN_IN_ATTEMPT_LIMIT: String(10 * PEOPLE + 100) };
+  if (args.postgres) {
+    postgres = await startPostgres();
+    Object.assign(env, { DATABASE_URL: postgres.url, WEB_PROCESSES: args['web-processes'] });
+  }
+  const server = await startServer(env);
+  if (postgres) workers = await startWorkers(postgres.url, Number(args.workers));
+  const where = postgres
+    ? `a PostgreSQL server, ${args['web-processes']} web server process(es) sharing the port and ${args.workers} worker process(es) taking the fits`
+    : 'the embedded database, fits on the server\u2019s own threads';
+  console.log(`server on ${where}`);
   try {
     const admin = new Session(server.url);
     await admin.send('POST', '/api/auth/sign-in', { email: 'admin@lantern.example', password: 'lantern-demo-2026' });
@@ -162,135 +299,56 @@ async function main() {
     );
     console.log(`response sizes (uncompressed): register ${(sizes[0] / 1e3).toFixed(0)} kB, entry ${(sizes[1] / 1e3).toFixed(0)} kB, fit head ${(sizes[2] / 1e3).toFixed(0)} kB, questions ${(sizes[3] / 1e3).toFixed(0)} kB, model ${(sizes[4] / 1e3).toFixed(0)} kB`);
 
-    type Tally = { count: number; non2xx: number; failed: number; times: number[] };
-    const tallies = new Map<string, Tally>();
-    const tallyOf = (name: string) => tallies.get(name) ?? (tallies.set(name, { count: 0, non2xx: 0, failed: 0, times: [] }), tallies.get(name)!);
-    const failures: string[] = [];
-    const all: number[] = [];
-
-    // The people connect and sign in gently first (one cheap request a second each), so that all 200
-    // connections are open before the load: a saturated server takes in a new connection only once per
-    // turn of its event loop, and a person still waiting to connect would only measure that. Then every
-    // person goes at full speed, and only what happens in the next SECONDS counts.
-    let phase = 'connecting' as 'connecting' | 'ramp' | 'load' | 'over';
-    const connected = new Map<number, { rate: number }>();
-    const WARM: Step = { kind: 'read', name: 'warm-up', method: 'GET', path: () => '/api/auth/me' };
-    let warmFailures = 0;
-
-    const run = (p: Person) => {
-      let instance!: autocannon.Instance;
-      const done = new Promise<autocannon.Result>((resolve, reject) => {
-        let writes = 0;
-        let visits = 0;
-        const other = () => keys[(p.i * 7 + visits++) % keys.length];
-        const entryEdit: Step = {
-          kind: 'write',
-          name: 'PATCH entry',
-          method: 'PATCH',
-          path: () => `${A}/entries/${p.entry}`,
-          body: () => ({ description: `Edited by bench person ${p.i}, change ${writes}.`, version: p.version }),
-          onOk: (body) => (p.version = (JSON.parse(body) as { version: number }).version),
-        };
-        const answer: Step = {
-          kind: 'write',
-          name: 'POST answer',
-          method: 'POST',
-          path: () => `${A}/questions/${questionIds[(p.i + writes) % questionIds.length]}/answers`,
-          body: () => ({ body: `Answer ${writes} from bench person ${p.i}: the control region constrains it.` }),
-        };
-        const rename: Step = { kind: 'write', name: 'PATCH group', method: 'PATCH', path: () => `${A}/groups/${p.group}`, body: () => ({ name: `team ${p.i} (${writes})` }) };
-        const raise: Step = {
-          kind: 'write',
-          name: 'POST question',
-          method: 'POST',
-          path: () => `${A}/questions`,
-          body: () => ({ entry: keys[(p.i + writes) % keys.length], title: `Question ${writes} from bench person ${p.i}`, body: 'Where does its constraint come from?' }),
-        };
-        const writeSteps: Step[] = { convener: [answer, raise], analyst: [entryEdit, rename, answer], contact: [entryEdit, answer], reader: [] }[p.role];
-        const read = (name: string, path: () => string): Step => ({ kind: 'read', name, method: 'GET', path });
-        // what each person does, over and over: six reads, then one write
-        const steps: (() => Step)[] = [
-          () => read('GET register', () => `${A}/entries`),
-          () => read('GET entry', () => `${A}/entries/${other()}`),
-          () => read('GET fit head', () => `${A}/fits/${quick.id}`),
-          () => read('GET questions', () => `${A}/questions`),
-          () => read('GET register', () => `${A}/entries`),
-          () => read('GET model', () => `${A}/model`),
-          // the write of this pass; the next pass takes the next kind (a reader reads an entry)
-          () => (writeSteps.length ? writeSteps[writes++ % writeSteps.length] : read('GET entry', () => `${A}/entries/${p.entry}`)),
-        ];
-        let current: Step | null = null;
-        let previous: Step | null = null;
-        instance = autocannon(
-          {
-            url: server.url,
-            connections: 1,
-            // ended by stop() once the measured seconds are over
-            duration: SECONDS + CONNECT_LIMIT_S + 30,
-            connectionRate: 1,
-            timeout: 10,
-            requests: steps.map((next) => ({
-              setupRequest: (req: autocannon.Request) => {
-                previous = current;
-                const step = (current = phase === 'connecting' ? WARM : next());
-                const headers: Record<string, string> = { cookie: p.session.cookie };
-                if (step.method === 'GET') {
-                  // as a browser does
-                  headers['accept-encoding'] = 'gzip, deflate, br';
-                  return { ...req, method: step.method, path: step.path(), headers };
-                }
-                return {
-                  ...req,
-                  method: step.method,
-                  path: step.path(),
-                  headers: { ...headers, 'content-type': 'application/json', 'x-csrf-token': p.session.csrf },
-                  body: JSON.stringify(step.body?.() ?? {}),
-                };
-              },
-              onResponse: (status: number, body: string) => {
-                const step = current!;
-                if (status >= 200 && status < 300) step.onOk?.(body);
-                else if (failures.length < 10) failures.push(`${step.method} ${step.name} -> ${status} ${body.slice(0, 200)}`);
-              },
-            })),
-          },
-          (err, result) => (err ? reject(err) : resolve(result)),
-        );
-        instance.on('response', (client, status, _bytes, responseTime) => {
-          if (current === WARM) {
-            if (status >= 200 && status < 300) connected.set(p.i, client as unknown as { rate: number });
-            else warmFailures++;
-            return;
-          }
-          if (phase !== 'load') return;
-          for (const t of [tallyOf(current!.kind), tallyOf(current!.name)]) {
-            t.count++;
-            if (status < 200 || status >= 300) t.non2xx++;
-            t.times.push(responseTime);
-          }
-          all.push(responseTime);
-        });
-        // a timeout or a connection error: no response, counted against the step that was waiting
-        // (autocannon reconnects and sets up the next request before it reports a timeout, and after
-        // it reports a connection error)
-        instance.on('reqError', (err: Error) => {
-          const timedOut = err?.message === 'request timed out';
-          const step = timedOut ? previous : current;
-          if (phase !== 'load' || !step || step === WARM) return;
-          if (timedOut) timeouts++;
-          else connectionErrors++;
-          tallyOf(step.kind).failed++;
-          tallyOf(step.name).failed++;
-        });
-      });
-      return { instance, done };
+    /** What each person does, over and over: six reads, then one write (a reader reads an entry). */
+    const stepsOf = (p: Person) => {
+      let writes = 0;
+      let visits = 0;
+      let at = 0;
+      const other = () => keys[(p.i * 7 + visits++) % keys.length];
+      const entryEdit: Step = {
+        kind: 'write',
+        name: 'PATCH entry',
+        method: 'PATCH',
+        path: () => `${A}/entries/${p.entry}`,
+        body: () => ({ description: `Edited by bench person ${p.i}, change ${writes}.`, version: p.version }),
+        onOk: (body) => (p.version = (JSON.parse(body) as { version: number }).version),
+      };
+      const answer: Step = {
+        kind: 'write',
+        name: 'POST answer',
+        method: 'POST',
+        path: () => `${A}/questions/${questionIds[(p.i + writes) % questionIds.length]}/answers`,
+        body: () => ({ body: `Answer ${writes} from bench person ${p.i}: the control region constrains it.` }),
+      };
+      const rename: Step = { kind: 'write', name: 'PATCH group', method: 'PATCH', path: () => `${A}/groups/${p.group}`, body: () => ({ name: `team ${p.i} (${writes})` }) };
+      const raise: Step = {
+        kind: 'write',
+        name: 'POST question',
+        method: 'POST',
+        path: () => `${A}/questions`,
+        body: () => ({ entry: keys[(p.i + writes) % keys.length], title: `Question ${writes} from bench person ${p.i}`, body: 'Where does its constraint come from?' }),
+      };
+      const writeSteps: Step[] = { convener: [answer, raise], analyst: [entryEdit, rename, answer], contact: [entryEdit, answer], reader: [] }[p.role];
+      const read = (name: string, path: () => string): Step => ({ kind: 'read', name, method: 'GET', path });
+      const steps: (() => Step)[] = [
+        () => read('GET register', () => `${A}/entries`),
+        () => read('GET entry', () => `${A}/entries/${other()}`),
+        () => read('GET fit head', () => `${A}/fits/${quick.id}`),
+        () => read('GET questions', () => `${A}/questions`),
+        () => read('GET register', () => `${A}/entries`),
+        () => read('GET model', () => `${A}/model`),
+        () => (writeSteps.length ? writeSteps[writes++ % writeSteps.length] : read('GET entry', () => `${A}/entries/${p.entry}`)),
+      ];
+      return { list: steps, next: () => steps[at++ % steps.length]() };
     };
-    let timeouts = 0;
-    let connectionErrors = 0;
+    const headersOf = (p: Person, step: Step): Record<string, string> =>
+      step.method === 'GET'
+        ? { cookie: p.session.cookie, 'accept-encoding': 'gzip, deflate, br' }
+        : { cookie: p.session.cookie, 'content-type': 'application/json', 'x-csrf-token': p.session.csrf };
 
     // A full-impacts fit of the large model runs through the whole load: one more waits in the queue
     // behind the running one, so that the next starts the moment one ends. Fit states are sampled
-    // one after another; a sample that finds no fit running (or gets no answer) fails the run.
+    // one after another; a sample that finds no fit running (or gets no answer) fails the pace.
     type FitState = { id: number; state: string; progress: number; startedAt: string | null; finishedAt: string | null; failure: string | null };
     const fullFits: number[] = [];
     const queueFull = async () => fullFits.push((await admin.send('POST', `${A}/fits`, { version, label: 'full impacts', options: { dataset: 'observed', impacts: 'full' } })).id);
@@ -298,104 +356,182 @@ async function main() {
     await queueFull();
     await queueFull();
     while (!(await fullStates()).some((f) => f.state === 'running')) await new Promise((r) => setTimeout(r, 50));
-    // (samples count while the load runs; before it, the sampler only keeps a fit waiting in the queue)
-    const samples: string[] = [];
+    let measuring = false;
+    let samples: string[] = [];
     let sampling = true;
     const sampler = (async () => {
       while (sampling) {
         try {
           const states = await fullStates();
-          if (phase === 'load') samples.push(states.some((f) => f.state === 'running') ? 'running' : 'none running');
+          if (measuring) samples.push(states.some((f) => f.state === 'running') ? 'running' : 'none running');
           if (!states.some((f) => f.state === 'queued')) await queueFull();
         } catch (e) {
-          if (phase === 'load') samples.push(`no answer (${(e as Error).message})`);
+          if (measuring) samples.push(`no answer (${(e as Error).message})`);
         }
         await new Promise((r) => setTimeout(r, 1000));
       }
     })();
+    const webPids = webProcesses(server.process.pid!, !!postgres && Number(args['web-processes']) > 1);
+    const cpuNow = () => webPids.reduce((sum, pid) => sum + mainThreadCpuMs(pid), 0);
 
-    t0 = Date.now();
-    const runs = people.map(run);
-    while (connected.size < PEOPLE && Date.now() - t0 < CONNECT_LIMIT_S * 1000) await new Promise((r) => setTimeout(r, 100));
-    if (connected.size < PEOPLE || warmFailures) throw new Error(`only ${connected.size} of ${PEOPLE} people connected and signed in within ${CONNECT_LIMIT_S} s (${warmFailures} refused)`);
-    console.log(`${PEOPLE} connections open, one per person, in ${seconds(Date.now() - t0)}`);
-    // full speed: a person waiting for its next second of the gentle pace goes on within a second
-    phase = 'ramp';
-    for (const client of connected.values()) client.rate = 1e9;
-    await new Promise((r) => setTimeout(r, 1000));
+    /** Measures one pace over SECONDS; `during` runs the load and resolves when it has stopped. */
+    const measure = async (pace: 'team' | 'saturation', m: Measure, start: () => Promise<() => Promise<void>>) => {
+      const stop = await start();
+      const loadBefore = os.loadavg()[0];
+      const cpuBefore = cpuNow();
+      const loadStart = Date.now();
+      const loadStartMono = process.hrtime.bigint() / 1000n;
+      samples = [];
+      measuring = true;
+      await new Promise((r) => setTimeout(r, SECONDS * 1000));
+      measuring = false;
+      const elapsed = (Date.now() - loadStart) / 1000;
+      const cpuUsed = cpuNow() - cpuBefore;
+      if (process.env.SERVER_NODE_ARGS) console.log(`load window (monotonic µs): ${loadStartMono} to ${process.hrtime.bigint() / 1000n}`);
+      await stop();
+      const title =
+        pace === 'team'
+          ? `team pace: ${PEOPLE} signed-in people, each sending a request and then thinking for 1–3 s, for ${SECONDS} s (register: ${keys.length} entries; ${where})`
+          : `saturation: ${PEOPLE} signed-in people sending back to back for ${SECONDS} s (register: ${keys.length} entries; ${where})`;
+      m.print(title, elapsed, cpuUsed, loadBefore);
+      const running = samples.filter((x) => x === 'running').length;
+      const notRunning = [...new Set(samples.filter((x) => x !== 'running'))];
+      console.log(`full-impacts fits during the load: one running in ${running} of ${samples.length} samples${notRunning.length ? `; the others: ${notRunning.join(', ')}` : ''}`);
+      const fitRan = samples.length > 0 && running === samples.length;
+      if (!fitRan) console.log('a full-impacts fit did not run through the whole load: these figures do not measure the target');
+      const p99 = percentile(m.all, 99);
+      if (pace === 'team') {
+        const met = fitRan && m.connectionErrors === 0 && m.timeouts === 0 && m.non2xx === 0 && p99 < TARGET_P99_MS;
+        console.log(`team target: no errors or timeouts, no non-2xx, p99 under ${TARGET_P99_MS} ms, while a full-impacts fit runs -> ${met ? 'met' : 'NOT met'}`);
+      } else console.log(`saturation throughput: ${Math.round(m.all.length / elapsed)} requests/s, with ${m.connectionErrors + m.timeouts + m.non2xx} errors`);
+    };
 
-    const loadBefore = os.loadavg()[0];
-    const cpuBefore = mainThreadCpuMs(server.process.pid);
-    const loadStart = Date.now();
-    const loadStartMono = process.hrtime.bigint() / 1000n;
-    phase = 'load';
-    await new Promise((r) => setTimeout(r, SECONDS * 1000));
-    phase = 'over';
-    const elapsed = (Date.now() - loadStart) / 1000;
-    const cpuUsed = mainThreadCpuMs(server.process.pid) - cpuBefore;
-    // to cut what a profiled server (SERVER_NODE_ARGS) recorded to the load: its clock is this monotonic one
-    if (process.env.SERVER_NODE_ARGS) console.log(`load window (monotonic µs): ${loadStartMono} to ${process.hrtime.bigint() / 1000n}`);
-    for (const r of runs) r.instance.stop();
-    await Promise.all(runs.map((r) => r.done));
+    /** Team pace: every person sends, waits for the answer, thinks for 1–3 s, and sends again. */
+    const team = async () => {
+      const m = new Measure();
+      await measure('team', m, async () => {
+        let going = true;
+        const loops = people.map(async (p) => {
+          const steps = stepsOf(p);
+          // the people start spread over the first three seconds
+          await new Promise((r) => setTimeout(r, Math.random() * 3000));
+          while (going) {
+            const step = steps.next();
+            const t = performance.now();
+            try {
+              const res = await fetch(server.url + step.path(), { method: step.method, headers: headersOf(p, step), body: step.method === 'GET' ? undefined : JSON.stringify(step.body?.() ?? {}), signal: AbortSignal.timeout(10_000) });
+              const body = await res.text();
+              if (measuring) m.response(step, res.status, performance.now() - t, body);
+              if (res.ok) step.onOk?.(body);
+            } catch (e) {
+              if (measuring) m.noAnswer(step, (e as Error).name === 'TimeoutError');
+            }
+            await new Promise((r) => setTimeout(r, 1000 + 2000 * Math.random()));
+          }
+        });
+        return async () => {
+          going = false;
+          await Promise.all(loops);
+        };
+      });
+    };
+
+    /**
+     * Saturation: every person an autocannon instance with one connection. The people connect and
+     * sign in gently first (one cheap request a second each), so that all connections are open before
+     * the load: a saturated server takes in a new connection only once per turn of its event loop,
+     * and a person still waiting to connect would only measure that. Then every person goes at full speed.
+     */
+    const saturation = async () => {
+      const m = new Measure();
+      await measure('saturation', m, async () => {
+        let phase = 'connecting' as 'connecting' | 'load';
+        const connected = new Map<number, { rate: number }>();
+        const WARM: Step = { kind: 'read', name: 'warm-up', method: 'GET', path: () => '/api/auth/me' };
+        let warmFailures = 0;
+        const runs = people.map((p) => {
+          let instance!: autocannon.Instance;
+          const steps = stepsOf(p);
+          const done = new Promise<autocannon.Result>((resolve, reject) => {
+            let current: Step | null = null;
+            let previous: Step | null = null;
+            instance = autocannon(
+              {
+                url: server.url,
+                connections: 1,
+                // ended by stop() once the measured seconds are over
+                duration: SECONDS + CONNECT_LIMIT_S + 30,
+                connectionRate: 1,
+                timeout: 10,
+                requests: steps.list.map(() => ({
+                  setupRequest: (req: autocannon.Request) => {
+                    previous = current;
+                    const step = (current = phase === 'connecting' ? WARM : steps.next());
+                    return { ...req, method: step.method, path: step.path(), headers: headersOf(p, step), ...(step.method === 'GET' ? {} : { body: JSON.stringify(step.body?.() ?? {}) }) };
+                  },
+                  onResponse: (status: number, body: string) => {
+                    if (status >= 200 && status < 300) current!.onOk?.(body);
+                    else if (measuring && current !== WARM && m.failures.length < 10) m.failures.push(`${current!.method} ${current!.name} -> ${status} ${body.slice(0, 200)}`);
+                  },
+                })),
+              },
+              (err, result) => (err ? reject(err) : resolve(result)),
+            );
+            instance.on('response', (client, status, _bytes, responseTime) => {
+              if (current === WARM) {
+                if (status >= 200 && status < 300) connected.set(p.i, client as unknown as { rate: number });
+                else warmFailures++;
+                return;
+              }
+              if (measuring) m.response(current!, status, responseTime);
+            });
+            // a timeout or a connection error: no response, counted against the step that was waiting
+            // (autocannon reconnects and sets up the next request before it reports a timeout, and after
+            // it reports a connection error)
+            instance.on('reqError', (err: Error) => {
+              const timedOut = err?.message === 'request timed out';
+              const step = timedOut ? previous : current;
+              if (measuring && step && step !== WARM) m.noAnswer(step, timedOut);
+            });
+          });
+          return { instance, done };
+        });
+        const t = Date.now();
+        while (connected.size < PEOPLE && Date.now() - t < CONNECT_LIMIT_S * 1000) await new Promise((r) => setTimeout(r, 100));
+        if (connected.size < PEOPLE || warmFailures) throw new Error(`only ${connected.size} of ${PEOPLE} people connected and signed in within ${CONNECT_LIMIT_S} s (${warmFailures} refused)`);
+        console.log(`\n${PEOPLE} connections open, one per person, in ${seconds(Date.now() - t)}`);
+        // full speed: a person waiting for its next second of the gentle pace goes on within a second
+        phase = 'load';
+        for (const client of connected.values()) client.rate = 1e9;
+        await new Promise((r) => setTimeout(r, 1000));
+        return async () => {
+          for (const r of runs) r.instance.stop();
+          await Promise.all(runs.map((r) => r.done));
+        };
+      });
+    };
+
+    for (const pace of PACES) await (pace === 'team' ? team() : saturation());
     sampling = false;
     await sampler;
-
-    const non2xx = tallyOf('read').non2xx + tallyOf('write').non2xx;
-    all.sort((a, b) => a - b);
-    const p99 = percentile(all, 99);
-    console.log(`\nload: ${PEOPLE} signed-in people for ${SECONDS} s on one analysis (register: ${keys.length} entries)`);
-    console.log(`machine: ${os.cpus().length} cores, load average ${loadBefore.toFixed(1)} before and ${os.loadavg()[0].toFixed(1)} after (the server, its fit threads and this load generator share them)`);
-    if (!Number.isNaN(cpuUsed)) console.log(`the server's request thread used ${seconds(cpuUsed)} of CPU in ${seconds(elapsed * 1000)} of load: ${(cpuUsed / Math.max(1, all.length)).toFixed(2)} ms per response`);
-    console.table({
-      responses: all.length,
-      'requests/s': Math.round(all.length / elapsed),
-      'p50 ms': ms(percentile(all, 50)),
-      'p95 ms': ms(percentile(all, 95)),
-      'p99 ms': ms(p99),
-      'max ms': ms(all[all.length - 1]),
-      'connection errors': connectionErrors,
-      timeouts,
-      'non-2xx': non2xx,
-    });
-    const row = (t: Tally) => {
-      const s = [...t.times].sort((a, b) => a - b);
-      return {
-        responses: t.count,
-        share: `${((100 * t.count) / Math.max(1, all.length)).toFixed(1)} %`,
-        'p50 ms': ms(percentile(s, 50)),
-        'p99 ms': ms(percentile(s, 99)),
-        'max ms': ms(s[s.length - 1]),
-        'non-2xx': t.non2xx,
-        'no answer': t.failed,
-      };
-    };
-    const kinds: Kind[] = ['read', 'write'];
-    console.table(Object.fromEntries(kinds.map((k) => [`${k}s`, row(tallyOf(k))])));
-    const names = [...tallies.keys()].filter((n) => !kinds.includes(n as Kind)).sort();
-    console.table(Object.fromEntries(names.map((n) => [n, row(tallyOf(n))])));
-    if (failures.length) console.log(`first non-2xx answers:\n  ${failures.join('\n  ')}`);
-
-    const running = samples.filter((x) => x === 'running').length;
-    const notRunning = [...new Set(samples.filter((x) => x !== 'running'))];
-    console.log(`full-impacts fits during the load: one running in ${running} of ${samples.length} samples${notRunning.length ? `; the others: ${notRunning.join(', ')}` : ''}`);
     // the fits that started during the load run to their end; those still waiting are cancelled
     const atEnd = await fullStates();
     for (const f of atEnd.filter((x) => x.state === 'queued')) await admin.send('POST', `${A}/fits/${f.id}/cancel`);
     for (const f of atEnd.filter((x) => x.state === 'running')) await waitFor(f.id);
     const ran = (await fullStates()).filter((f) => f.startedAt !== null).sort((x, y) => x.id - y.id);
+    console.log('');
     for (const f of ran) {
       const took = f.finishedAt ? seconds(new Date(f.finishedAt).getTime() - new Date(f.startedAt!).getTime()) : 'no end';
-      console.log(`  full-impacts fit ${f.id}: ${f.state} in ${took}${f.failure ? `: ${f.failure}` : ''}`);
+      console.log(`full-impacts fit ${f.id}: ${f.state} in ${took}${f.failure ? `: ${f.failure}` : ''}`);
     }
-    const fitRan = samples.length > 0 && running === samples.length && ran.length > 0 && ran.every((f) => f.state === 'succeeded');
-    if (!fitRan) console.log('a full-impacts fit did not run, or did not succeed, through the whole load: these figures do not measure the target');
-    const met = fitRan && connectionErrors === 0 && timeouts === 0 && non2xx === 0 && p99 < TARGET_P99_MS;
-    console.log(`targets: no errors or timeouts, no non-2xx, p99 under ${TARGET_P99_MS} ms, while a full-impacts fit runs -> ${met ? 'met' : 'NOT met'}`);
+    if (!ran.every((f) => f.state === 'succeeded')) console.log('a full-impacts fit did not succeed: the figures above do not measure the target');
   } catch (e) {
     console.error(`the server's last output:\n${server.output().slice(-4000)}`);
     throw e;
   } finally {
+    await Promise.all(workers.map((w) => new Promise((r) => (w.once('exit', r), w.kill('SIGTERM')))));
     await server.stop();
+    postgres?.stop();
   }
 }
 
