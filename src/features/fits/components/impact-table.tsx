@@ -1,22 +1,9 @@
 import { useMemo, useState } from 'react';
 import { Link, useNavigate } from 'react-router';
-import {
-  createColumnHelper,
-  createSortedRowModel,
-  FlexRender,
-  rowSortingFeature,
-  sortFn_alphanumeric,
-  sortFn_basic,
-  sortFn_text,
-  tableFeatures,
-  useTable,
-  type SortingState,
-} from '@tanstack/react-table';
 import type { NuisanceReport } from '@shared/schemas/fit';
 import type { FitResultHead } from '@shared/schemas/fits';
+import { DataTable, dataColumns } from '../../../components/ui/data-table';
 import { SelectField } from '../../../components/ui/field';
-import { tableClass, tdClass, thClass } from '../../../components/ui/page';
-import { SortableTh } from '../../../components/ui/sortable-th';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
 import { ConstraintMeter, ImpactGlyph, PullGlyph } from '../../../components/charts/parameter-glyphs';
 import { QuestionMarker, type QuestionMark } from '../../../components/status/question-marker';
@@ -26,13 +13,7 @@ import { GroupFilter, groupsOf } from './group-filter';
 
 export type ImpactRow = NuisanceReport & { label: string; position: number; size: number | null };
 
-const features = tableFeatures({
-  rowSortingFeature,
-  sortedRowModel: createSortedRowModel(),
-  sortFns: { alphanumeric: sortFn_alphanumeric, text: sortFn_text, basic: sortFn_basic },
-});
-
-const col = createColumnHelper<typeof features, ImpactRow>();
+const col = dataColumns<ImpactRow>();
 
 type Review = { marks?: Map<string, QuestionMark>; onRaise?: (name: string) => void };
 
@@ -41,6 +22,7 @@ function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: numbe
     col.accessor('position', {
       header: '#',
       sortFn: 'basic',
+      meta: { numeric: true },
       cell: (c) => (
         <span className="text-ink-muted tabular-nums" title={mode === 'none' ? 'Row number' : `Rank by ${mode === 'postfit' ? 'post-fit' : 'quick'} impact, 1 = largest`}>
           {c.getValue()}
@@ -124,6 +106,7 @@ function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: numbe
             header: 'max |Δμ|',
             sortFn: 'basic',
             sortUndefined: 'last',
+            meta: { numeric: true },
             cell: (c) => (
               <span className="text-xs tabular-nums" title={mode === 'postfit' ? 'max(|Δμ+|, |Δμ−|) of the post-fit refits, in units of μ' : '|ρ(μ, θ)·σ_μ|, in units of μ'}>
                 {formatFixed(c.row.original.size, 4)}
@@ -136,6 +119,8 @@ function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: numbe
           col.display({
             id: 'ask',
             header: 'Actions',
+            enableSorting: false,
+            meta: { srOnlyHeader: true },
             cell: (c) => (
               <button
                 type="button"
@@ -157,7 +142,6 @@ function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: numbe
   ]);
 }
 
-const NUMERIC = new Set(['position', 'size']);
 const TOP_CHOICES = [10, 20, 50, 0] as const;
 
 /** The scale of the impact glyphs: the largest |Δμ| among the rows shown, post- and pre-fit. */
@@ -180,7 +164,6 @@ export function ImpactTable({ slug, fitId, result, marks, onRaise }: { slug: str
   const threshold = result.options.overConstraintThreshold;
   const [top, setTop] = useState<number>(20);
   const [group, setGroup] = useState<string | null>(null);
-  const [sorting, setSorting] = useState<SortingState>([]);
 
   const ranked = useMemo(() => {
     const labels = labelsOf(result);
@@ -195,7 +178,6 @@ export function ImpactTable({ slug, fitId, result, marks, onRaise }: { slug: str
   }, [ranked, group, top]);
   const scale = useMemo(() => impactScale(ranked, mode), [ranked, mode]);
   const columns = useMemo(() => makeColumns(slug, fitId, mode, scale, threshold, { marks, onRaise }), [slug, fitId, mode, scale, threshold, marks, onRaise]);
-  const table = useTable({ features, columns, data: rows, state: { sorting }, onSortingChange: setSorting });
   const held = result.nuisance.filter((n) => n.fixed);
 
   return (
@@ -229,49 +211,16 @@ export function ImpactTable({ slug, fitId, result, marks, onRaise }: { slug: str
         {mode === 'none' && 'This fit was run without impacts: the table lists pulls and constraints only, by name.'}
         {' '}Click a row for the parameter's diagnosis.{marks && marks.size > 0 && ' A “?” marks a parameter with a question not yet resolved.'}
       </p>
-      <div className="overflow-x-auto rounded-lg border border-rule bg-paper-raised">
-        <table className={tableClass} aria-label="Impact ranking">
-          <thead>
-            {table.getHeaderGroups().map((g) => (
-              <tr key={g.id}>
-                {g.headers.map((header) =>
-                  header.column.id === 'ask' ? (
-                    <th key={header.id} scope="col" className={thClass}>
-                      <span className="sr-only">Actions</span>
-                    </th>
-                  ) : (
-                  <SortableTh key={header.id} sorted={header.column.getIsSorted()} onSort={header.column.getToggleSortingHandler()} numeric={NUMERIC.has(header.column.id)}>
-                    {<table.FlexRender header={header} />}
-                  </SortableTh>
-                  ),
-                )}
-              </tr>
-            ))}
-          </thead>
-          <tbody>
-            {table.getRowModel().rows.map((row) => (
-              <tr
-                key={row.id}
-                onClick={() => navigate(diagnosisPath(slug, fitId, row.original.name))}
-                className="cursor-pointer hover:bg-teal-soft/40"
-              >
-                {row.getAllCells().map((cell) => (
-                  <td key={cell.id} className={`${tdClass} py-1 align-middle whitespace-nowrap ${NUMERIC.has(cell.column.id) ? 'text-right' : ''}`}>
-                    <FlexRender cell={cell} />
-                  </td>
-                ))}
-              </tr>
-            ))}
-            {rows.length === 0 && (
-              <tr>
-                <td colSpan={columns.length} className={`${tdClass} py-6 text-center text-ink-muted`}>
-                  No nuisance parameter in this group.
-                </td>
-              </tr>
-            )}
-          </tbody>
-        </table>
-      </div>
+      <DataTable
+        columns={columns}
+        data={rows}
+        sortable
+        getRowId={(r) => r.name}
+        label="Impact ranking"
+        cellClass="py-1 align-middle whitespace-nowrap"
+        onRowClick={(r) => navigate(diagnosisPath(slug, fitId, r.name))}
+        empty="No nuisance parameter in this group."
+      />
     </div>
   );
 }

@@ -1,11 +1,10 @@
-import { memo, startTransition, useMemo, useState } from 'react';
+import { startTransition, useMemo, useState } from 'react';
 import { Link } from 'react-router';
 import {
   columnFilteringFeature,
   columnVisibilityFeature,
   constructFilterFn,
   createColumnHelper,
-  FlexRender,
   createFilteredRowModel,
   createSortedRowModel,
   globalFilteringFeature,
@@ -22,8 +21,7 @@ import {
 import type { EntryState, EntrySummary } from '@shared/schemas/api';
 import { EmptyState } from '../../../components/ui/empty-state';
 import { SelectField } from '../../../components/ui/field';
-import { tableClass, tdClass } from '../../../components/ui/page';
-import { SortableTh } from '../../../components/ui/sortable-th';
+import { TableView } from '../../../components/ui/data-table';
 import { formatPercent } from '../../../lib/format';
 import { ENTRY_STATES } from '@shared/vocabulary';
 import { ENTRY_STATE_META, EntryStateBadge } from '../../../components/status/entry-state';
@@ -72,12 +70,14 @@ function ListCell({ items, noun }: { items: string[]; noun: [string, string] }) 
   );
 }
 
+/** Short values (key, group, owner, state, the numbers) stay on one line so rows stay one line high; labels and lists may wrap. */
 function makeColumns(slug: string) {
   return col.columns([
     col.accessor('key', {
       header: 'Key',
       sortFn: 'alphanumeric',
       enableHiding: false,
+      meta: { nowrap: true },
       cell: (c) => {
         const open = c.row.original.openQuestions;
         return (
@@ -106,6 +106,7 @@ function makeColumns(slug: string) {
       header: 'Group',
       sortFn: 'text',
       filterFn: 'exact',
+      meta: { nowrap: true },
       cell: (c) => c.getValue() || <span className="text-ink-muted">none</span>,
     }),
     col.accessor((e) => e.owner?.name ?? '', {
@@ -113,6 +114,7 @@ function makeColumns(slug: string) {
       header: 'Owner',
       sortFn: 'text',
       filterFn: 'exact',
+      meta: { nowrap: true },
       cell: (c) => {
         const owner = c.row.original.owner;
         return owner ? <span title={owner.email}>{owner.name}</span> : <span className="text-ink-muted">unassigned</span>;
@@ -135,6 +137,7 @@ function makeColumns(slug: string) {
       header: 'Largest effect',
       sortFn: 'basic',
       sortUndefined: 'last',
+      meta: { numeric: true, nowrap: true },
       cell: (c) => {
         const v = c.row.original.largestEffectPct;
         return v === null ? (
@@ -152,12 +155,14 @@ function makeColumns(slug: string) {
       id: 'state',
       header: 'State',
       filterFn: 'exact',
+      meta: { nowrap: true },
       sortFn: (a, b) => ENTRY_STATES.indexOf(a.original.state) - ENTRY_STATES.indexOf(b.original.state),
       cell: (c) => <EntryStateBadge state={c.row.original.state} />,
     }),
     col.accessor('warnings', {
       header: 'Warnings',
       sortFn: 'basic',
+      meta: { numeric: true, nowrap: true },
       cell: (c) => {
         const n = c.getValue();
         return n > 0 ? (
@@ -185,9 +190,6 @@ const COLUMN_LABELS: Record<string, string> = {
   state: 'State',
   warnings: 'Warnings',
 };
-const NUMERIC = new Set(['largestEffect', 'warnings']);
-/** Short values stay on one line so rows stay one line high; labels and lists may wrap. */
-const NOWRAP = new Set(['key', 'group', 'owner', 'state', 'largestEffect', 'warnings']);
 /** Sentinel of the "any" choice of a filter select (every real value, '' included, is a choice). */
 const ANY = '\u0000any';
 
@@ -231,26 +233,6 @@ function ColumnMenu({ table }: { table: Table }) {
     </details>
   );
 }
-
-type Row = ReturnType<Table['getRowModel']>['rows'][number];
-
-/**
- * One row, re-rendered only when its entry or the visible columns change. Row objects are kept
- * by the table across sorting and filtering, so a re-sort or a narrower filter moves rows
- * instead of rendering them again.
- */
-const RowView = memo(function RowView({ row }: { row: Row; entry: EntrySummary; visibility: string }) {
-  return (
-    <tr className="hover:bg-paper-sunk/50">
-      {row.getVisibleCells().map((cell) => (
-        <td key={cell.id} className={`${tdClass} ${NUMERIC.has(cell.column.id) ? 'text-right' : ''} ${NOWRAP.has(cell.column.id) ? 'whitespace-nowrap' : ''}`}>
-          <FlexRender cell={cell} />
-        </td>
-      ))}
-    </tr>
-  );
-});
-
 
 /** The search field keeps its own text, so typing renders only the field; the table follows in a transition. */
 function SearchBox({ onSearch }: { onSearch: (text: string) => void }) {
@@ -321,8 +303,6 @@ export function RegisterTable({ slug, entries }: { slug: string; entries: EntryS
   };
   const setFilter = (id: string) => (v: string) =>
     setColumnFilters((fs) => [...fs.filter((f) => f.id !== id), ...(v === ANY ? [] : [{ id, value: v }])]);
-  const visibleCount = table.getVisibleLeafColumns().length;
-  const visibility = JSON.stringify(columnVisibility);
   const filtered = globalFilter.trim() !== '' || columnFilters.length > 0;
 
   if (entries.length === 0)
@@ -348,33 +328,14 @@ export function RegisterTable({ slug, entries }: { slug: string; entries: EntryS
       <p className="mb-1.5 text-xs text-ink-muted" aria-live="polite">
         Showing {rows.length} of {entries.length} entries
       </p>
-      <div className="overflow-x-auto rounded-lg border border-rule bg-paper-raised">
-        <table className={tableClass} aria-label="Register entries">
-          <thead>
-            {table.getHeaderGroups().map((group) => (
-              <tr key={group.id}>
-                {group.headers.map((header) => (
-                  <SortableTh key={header.id} sorted={header.column.getIsSorted()} onSort={header.column.getToggleSortingHandler()} numeric={NUMERIC.has(header.column.id)}>
-                    {header.isPlaceholder ? null : <table.FlexRender header={header} />}
-                  </SortableTh>
-                ))}
-              </tr>
-            ))}
-          </thead>
-          <tbody>
-            {rows.map((row) => (
-              <RowView key={row.id} row={row} entry={row.original} visibility={visibility} />
-            ))}
-            {rows.length === 0 && (
-              <tr>
-                <td colSpan={visibleCount} className={`${tdClass} py-6 text-center text-ink-muted`}>
-                  {filtered ? `No entry matches${globalFilter.trim() ? ` “${globalFilter.trim()}”` : ''} with these filters.` : 'No entries.'}
-                </td>
-              </tr>
-            )}
-          </tbody>
-        </table>
-      </div>
+      {/* Rows are kept by the table across sorting and filtering, and drawn again only when their entry or the visible columns change. */}
+      <TableView
+        table={table}
+        label="Register entries"
+        stickyFirstColumn
+        memoRows
+        empty={filtered ? `No entry matches${globalFilter.trim() ? ` “${globalFilter.trim()}”` : ''} with these filters.` : 'No entries.'}
+      />
     </div>
   );
 }

@@ -1,19 +1,8 @@
 import { createContext, useContext, useMemo, useState } from 'react';
-import {
-  createColumnHelper,
-  createSortedRowModel,
-  FlexRender,
-  rowSortingFeature,
-  sortFn_alphanumeric,
-  sortFn_basic,
-  tableFeatures,
-  useTable,
-  type SortingState,
-} from '@tanstack/react-table';
 import type { ToyDistribution } from '@shared/schemas/toys';
 import { CheckboxField } from '../../../components/ui/field';
-import { Panel, tableClass, tdClass } from '../../../components/ui/page';
-import { SortableTh } from '../../../components/ui/sortable-th';
+import { DataTable, dataColumns } from '../../../components/ui/data-table';
+import { Panel } from '../../../components/ui/page';
 import { formatCount } from '../../../lib/format';
 import { normalPdf } from '../../../lib/normal';
 import { decimalsFor, formatFixed, formatSigned } from '../../../lib/stats-format';
@@ -23,13 +12,7 @@ import { ToyHistogramChart } from './toy-histogram-chart';
 
 export type ToyPullRow = ToyDistribution & { dev: Deviation; flagged: boolean; worst: number };
 
-const features = tableFeatures({
-  rowSortingFeature,
-  sortedRowModel: createSortedRowModel(),
-  sortFns: { alphanumeric: sortFn_alphanumeric, basic: sortFn_basic },
-});
-
-const col = createColumnHelper<typeof features, ToyPullRow>();
+const col = dataColumns<ToyPullRow>();
 
 /** Larger |distance| sorts as larger; a missing one sorts last. */
 const byAbs = (a: number | null, b: number | null) => (a === null ? (b === null ? 0 : -1) : b === null ? 1 : Math.abs(a) - Math.abs(b));
@@ -74,6 +57,7 @@ const columns = col.columns([
   col.accessor('n', {
     header: 'Toys used',
     sortFn: 'basic',
+    meta: { numeric: true },
     cell: (c) => (
       <span className="tabular-nums" title="Toys whose fit converged">
         {formatCount(c.getValue())}
@@ -83,6 +67,7 @@ const columns = col.columns([
   col.accessor('mean', {
     header: 'Mean',
     sortFn: 'basic',
+    meta: { numeric: true },
     cell: (c) => {
       const r = c.row.original;
       const dec = decimalsFor(r.meanError);
@@ -97,6 +82,7 @@ const columns = col.columns([
     id: 'meanErrors',
     header: 'Mean / error',
     sortFn: (a, b) => byAbs(a.original.dev.mean, b.original.dev.mean),
+    meta: { numeric: true },
     cell: (c) => (
       <span className="text-xs tabular-nums" title={`How many standard errors the mean lies from 0; beyond ${FLAG_ERRORS} is marked`}>
         {formatErrors(c.row.original.dev.mean)}
@@ -106,6 +92,7 @@ const columns = col.columns([
   col.accessor('sd', {
     header: 'SD',
     sortFn: 'basic',
+    meta: { numeric: true },
     cell: (c) => {
       const r = c.row.original;
       const dec = decimalsFor(r.sdError);
@@ -120,6 +107,7 @@ const columns = col.columns([
     id: 'sdErrors',
     header: '(SD − 1) / error',
     sortFn: (a, b) => byAbs(a.original.dev.sd, b.original.dev.sd),
+    meta: { numeric: true },
     cell: (c) => (
       <span className="text-xs tabular-nums" title={`How many standard errors the sd lies from 1; beyond ${FLAG_ERRORS} is marked`}>
         {formatErrors(c.row.original.dev.sd)}
@@ -133,8 +121,6 @@ const columns = col.columns([
   }),
 ]);
 
-const NUMERIC = new Set(['n', 'mean', 'meanErrors', 'sd', 'sdErrors']);
-
 /**
  * Every nuisance parameter's standardised toy distribution as a sortable table: mean and sd with
  * their standard errors and their distances from 0 and 1, marking those beyond FLAG_ERRORS. The
@@ -143,11 +129,9 @@ const NUMERIC = new Set(['n', 'mean', 'meanErrors', 'sd', 'sdErrors']);
 export function ToyPullsTable({ pulls }: { pulls: ToyDistribution[] }) {
   const all = useMemo(() => toyPullRows(pulls), [pulls]);
   const [markedOnly, setMarkedOnly] = useState(false);
-  const [sorting, setSorting] = useState<SortingState>([]);
   const [chosen, setChosen] = useState<string | null>(null);
   const rows = useMemo(() => (markedOnly ? all.filter((r) => r.flagged) : all), [all, markedOnly]);
   const selected = all.find((r) => r.name === chosen) ?? rows[0] ?? null;
-  const table = useTable({ features, columns, data: rows, state: { sorting }, onSortingChange: setSorting });
   const marked = all.filter((r) => r.flagged).length;
   const choice = useMemo(() => ({ chosen: selected?.name ?? null, choose: setChosen }), [selected?.name]);
 
@@ -169,47 +153,19 @@ export function ToyPullsTable({ pulls }: { pulls: ToyDistribution[] }) {
           <CheckboxField label={`Marked only (${marked} of ${all.length})`} checked={markedOnly} onChange={(e) => setMarkedOnly(e.target.checked)} />
         </div>
         <Choice.Provider value={choice}>
-          <div className="max-h-[28rem] overflow-auto rounded-lg border border-rule">
-            <table className={tableClass} aria-label="Nuisance parameters over the toys">
-              <thead className="sticky top-0">
-                {table.getHeaderGroups().map((g) => (
-                  <tr key={g.id}>
-                    {g.headers.map((header) => (
-                      <SortableTh key={header.id} sorted={header.column.getIsSorted()} onSort={header.column.getToggleSortingHandler()} numeric={NUMERIC.has(header.column.id)}>
-                        {<table.FlexRender header={header} />}
-                      </SortableTh>
-                    ))}
-                  </tr>
-                ))}
-              </thead>
-              <tbody>
-                {table.getRowModel().rows.map((row) => {
-                  const on = row.original.name === selected?.name;
-                  return (
-                    <tr
-                      key={row.id}
-                      onClick={() => setChosen(row.original.name)}
-                      aria-current={on ? 'true' : undefined}
-                      className={`cursor-pointer ${on ? 'bg-teal-soft/60' : row.original.flagged ? 'bg-plum-soft/25 hover:bg-teal-soft/40' : 'hover:bg-teal-soft/40'}`}
-                    >
-                      {row.getAllCells().map((cell) => (
-                        <td key={cell.id} className={`${tdClass} py-1 align-middle whitespace-nowrap ${NUMERIC.has(cell.column.id) ? 'text-right' : ''}`}>
-                          <FlexRender cell={cell} />
-                        </td>
-                      ))}
-                    </tr>
-                  );
-                })}
-                {rows.length === 0 && (
-                  <tr>
-                    <td colSpan={columns.length} className={`${tdClass} py-6 text-center text-ink-muted`}>
-                      No parameter is marked.
-                    </td>
-                  </tr>
-                )}
-              </tbody>
-            </table>
-          </div>
+          <DataTable
+            columns={columns}
+            data={rows}
+            sortable
+            getRowId={(r) => r.name}
+            label="Nuisance parameters over the toys"
+            frameClass="max-h-[28rem]"
+            stickyFirstColumn
+            cellClass="py-1 align-middle whitespace-nowrap"
+            rowTone={(r) => (r.name === selected?.name ? 'current' : r.flagged ? 'marked' : undefined)}
+            onRowClick={(r) => setChosen(r.name)}
+            empty="No parameter is marked."
+          />
         </Choice.Provider>
         {selected && (
           <section aria-label={`Toy distribution of ${selected.name}`} className="grid gap-4 lg:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]">
