@@ -1,4 +1,4 @@
-import { untilModelChanges } from '../cache/change-notices';
+import { untilModelChanges, untilRegisterChanges } from '../cache/change-notices';
 import { can } from '@shared/permissions';
 import {
   entryInputSchema,
@@ -86,11 +86,9 @@ async function assertOwnerIsMember(db: DbOrTx, analysisId: number, ownerId: numb
  * (`effectViews`); the entry's own fields, owner, group and history are read each time.
  */
 export async function getEntryDetail(ctx: AppContext, access: Access, key: string): Promise<EntryDetail> {
-  const row = await entryForPage(ctx.db, access.analysis.id, key);
-  if (!row) throw notFound(`Register entry "${key}"`);
+  const { row, history } = await entryPage(ctx, access.analysis.id, key);
   const { entry } = row;
   const effectList = await effectViews(ctx, access.analysis.id, entry.id);
-  const history = await entryRevisions(ctx.db, entry.id);
   return {
     key: entry.key,
     label: entry.label,
@@ -115,6 +113,15 @@ export async function getEntryDetail(ctx: AppContext, access: Access, key: strin
     })),
     can: entryPermissions(access, entry),
   };
+}
+
+/** An entry's own fields, owner, group and history, shared by every reader until the register changes. */
+function entryPage(ctx: AppContext, analysisId: number, key: string) {
+  return untilRegisterChanges(ctx.client, analysisId, `entry page ${key}`, async () => {
+    const row = await entryForPage(ctx.db, analysisId, key);
+    if (!row) throw notFound(`Register entry "${key}"`);
+    return { row, history: await entryRevisions(ctx.db, row.entry.id) };
+  });
 }
 
 /** An entry's effects as its page draws them, shared by every reader until the model changes. */

@@ -13,6 +13,7 @@ import { findEntry } from '../db/entries.repository';
 import { conflict, notFound } from '../errors';
 import { notifyQuestionAnswered, notifyQuestionRaised, notifyQuestionStep } from '../mail/notifications';
 import { audience, personal, withRoles } from './recipients.service';
+import { untilRegisterChanges } from '../cache/change-notices';
 
 /**
  * Questions on parameters: a convener raises one on a register entry (optionally tied to a fit),
@@ -24,7 +25,18 @@ import { audience, personal, withRoles } from './recipients.service';
 
 const person = (p: { id: number; name: string } | null) => (p ? { id: p.id, name: p.name } : null);
 
-async function readQuestions(ctx: AppContext, access: Access, filter: QuestionFilter): Promise<(QuestionSummary & { body: string })[]> {
+/**
+ * The questions a filter selects. The queue as most people open it (all, or one state) is shared
+ * by every reader until the register (questions, answers, entries) changes; narrower filters, of
+ * which there can be any number, are read each time.
+ */
+function readQuestions(ctx: AppContext, access: Access, filter: QuestionFilter): Promise<(QuestionSummary & { body: string })[]> {
+  const { state, ...narrower } = filter;
+  if (Object.values(narrower).some((v) => v !== undefined)) return buildQuestions(ctx, access, filter);
+  return untilRegisterChanges(ctx.client, access.analysis.id, `questions ${state ?? 'all'}`, () => buildQuestions(ctx, access, filter));
+}
+
+async function buildQuestions(ctx: AppContext, access: Access, filter: QuestionFilter): Promise<(QuestionSummary & { body: string })[]> {
   const rows = await questionRows(ctx.db, access.analysis.id, filter);
   const list = rows.map((r): QuestionSummary & { body: string } => {
     const times = [r.q.createdAt, r.q.resolvedAt, r.lastAnswer ? new Date(r.lastAnswer) : null].filter((t): t is Date => !!t);
