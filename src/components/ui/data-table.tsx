@@ -45,7 +45,7 @@ export type DataColumnMeta<TData = unknown> = {
   /** The title of a body cell (its unit or meaning), for every row or per row. */
   cellTitle?: string | ((row: TData) => string | undefined);
   /** Further attributes of a body cell (a test id). */
-  cellProps?: (row: TData) => Record<string, string>;
+  cellProps?: (row: TData) => Record<string, string | undefined>;
 };
 
 declare module '@tanstack/table-core' {
@@ -132,7 +132,9 @@ function BodyCell<TFeatures extends TableFeatures, TData extends RowData>({ cell
   const original = cell.row.original;
   const own = typeof meta.cellClass === 'function' ? meta.cellClass(original) : (meta.cellClass ?? '');
   const title = typeof meta.cellTitle === 'function' ? meta.cellTitle(original) : meta.cellTitle;
-  const className = `${TD} ${rowHeader ? 'text-left font-normal' : ''} ${meta.numeric ? 'text-right tabular-nums' : ''} ${meta.nowrap ? 'whitespace-nowrap' : ''} ${sticky ? `${STICKY} z-[1]` : ''} ${extra} ${own}`;
+  // A row header is bold by default; it takes the weight its column asks for, else the body's.
+  const weight = rowHeader && !/\bfont-(light|normal|medium|semibold|bold)\b/.test(own) ? 'font-normal' : '';
+  const className = `${TD} ${rowHeader ? `text-left ${weight}` : ''} ${meta.numeric ? 'text-right tabular-nums' : ''} ${meta.nowrap ? 'whitespace-nowrap' : ''} ${sticky ? `${STICKY} z-[1]` : ''} ${extra} ${own}`;
   const props = { className, title, ...meta.cellProps?.(original) };
   return rowHeader ? (
     <th scope="row" {...props}>

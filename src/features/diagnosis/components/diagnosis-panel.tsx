@@ -376,9 +376,7 @@ export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, ques
           {shown.map((r) => (
             <div key={r.region} className="grid gap-3 2xl:grid-cols-[minmax(0,40rem)_1fr]">
               <VariationChart region={r} parameter={name} />
-              <div className="overflow-x-auto">
-                <VariationTable region={r} />
-              </div>
+              <VariationTable region={r} />
             </div>
           ))}
         </div>

@@ -3,7 +3,7 @@ import { scaleBand, scaleLinear } from 'd3-scale';
 import type { DiagnosisRegion } from '@shared/schemas/review';
 import { LeftAxis } from '../../../components/charts/axes';
 import { ExportButtons } from '../../../components/charts/export-buttons';
-import { tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { DataTable, dataColumns } from '../../../components/ui/data-table';
 import { formatEdge } from '../../../lib/format';
 import { theme } from '../../../lib/palette';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
@@ -108,60 +108,47 @@ export function VariationChart({ region, parameter }: { region: DiagnosisRegion;
   );
 }
 
-/** The same numbers per bin, as a table. */
+type Bin = DiagnosisRegion['bins'][number];
+
+const bin = dataColumns<Bin>();
+const events = (header: string, headerTitle: string, value: (b: Bin) => number, format: (v: number) => string) =>
+  bin.accessor(value, { id: header, header, meta: { numeric: true, headerTitle, cellTitle: 'events' }, cell: (c) => format(c.getValue()) });
+
+const binColumns = [
+  bin.accessor('bin', {
+    header: 'Bin',
+    meta: { nowrap: true },
+    cell: (c) => (
+      <>
+        {c.getValue() + 1}{' '}
+        <span className="text-2xs text-ink-muted">
+          {formatEdge(c.row.original.low)}–{formatEdge(c.row.original.high)}
+        </span>
+      </>
+    ),
+  }),
+  events('Expected', 'ν̂: the expected count at the best fit', (b) => b.expected, (v) => formatFixed(v, 1)),
+  events('Precision ±', "√ν̂: the data's statistical precision in this bin", (b) => b.precision, (v) => formatFixed(v, 1)),
+  events('θ = +1', 'Change of the expected count with θ = +1, all else at the best fit', (b) => b.up, (v) => formatSigned(v, 2)),
+  events('θ = −1', 'Change of the expected count with θ = −1, all else at the best fit', (b) => b.down, (v) => formatSigned(v, 2)),
+  bin.accessor('ratio', {
+    header: 'Ratio',
+    meta: { numeric: true, headerTitle: 'max(|up|, |down|) / √ν̂', cellTitle: (b) => ratioWords(b.ratio), cellClass: (b) => (b.ratio >= 1 ? 'font-semibold text-plum' : '') },
+    cell: (c) => formatFixed(c.getValue(), 2),
+  }),
+  bin.accessor('share', { header: 'Information', meta: { numeric: true, headerTitle: "Share of the parameter's whole information" }, cell: (c) => formatShare(c.getValue()) }),
+];
+
+/** The same numbers per bin, as a table; a bin whose change exceeds the data's precision is marked. */
 export function VariationTable({ region }: { region: DiagnosisRegion }) {
   return (
-    <table className={tableClass} aria-label={`Variations against the data's precision in ${region.label}`}>
-      <thead>
-        <tr>
-          <th scope="col" className={thClass}>
-            Bin
-          </th>
-          <th scope="col" className={`${thClass} text-right`} title="ν̂: the expected count at the best fit">
-            Expected
-          </th>
-          <th scope="col" className={`${thClass} text-right`} title="√ν̂: the data's statistical precision in this bin">
-            Precision ±
-          </th>
-          <th scope="col" className={`${thClass} text-right`} title="Change of the expected count with θ = +1, all else at the best fit">
-            θ = +1
-          </th>
-          <th scope="col" className={`${thClass} text-right`} title="Change of the expected count with θ = −1, all else at the best fit">
-            θ = −1
-          </th>
-          <th scope="col" className={`${thClass} text-right`} title="max(|up|, |down|) / √ν̂">
-            Ratio
-          </th>
-          <th scope="col" className={`${thClass} text-right`} title="Share of the parameter's whole information">
-            Information
-          </th>
-        </tr>
-      </thead>
-      <tbody>
-        {region.bins.map((b) => (
-          <tr key={b.bin} className={b.ratio >= 1 ? 'bg-plum-soft/40' : undefined}>
-            <td className={`${tdClass} whitespace-nowrap`}>
-              {b.bin + 1} <span className="text-2xs text-ink-muted">{formatEdge(b.low)}–{formatEdge(b.high)}</span>
-            </td>
-            <td className={`${tdClass} text-right tabular-nums`} title="events">
-              {formatFixed(b.expected, 1)}
-            </td>
-            <td className={`${tdClass} text-right tabular-nums`} title="events">
-              {formatFixed(b.precision, 1)}
-            </td>
-            <td className={`${tdClass} text-right tabular-nums`} title="events">
-              {formatSigned(b.up, 2)}
-            </td>
-            <td className={`${tdClass} text-right tabular-nums`} title="events">
-              {formatSigned(b.down, 2)}
-            </td>
-            <td className={`${tdClass} text-right tabular-nums ${b.ratio >= 1 ? 'font-semibold text-plum' : ''}`} title={ratioWords(b.ratio)}>
-              {formatFixed(b.ratio, 2)}
-            </td>
-            <td className={`${tdClass} text-right tabular-nums`}>{formatShare(b.share)}</td>
-          </tr>
-        ))}
-      </tbody>
-    </table>
+    <DataTable
+      columns={binColumns}
+      data={region.bins}
+      getRowId={(b) => String(b.bin)}
+      label={`Variations against the data's precision in ${region.label}`}
+      frame="plain"
+      rowTone={(b) => (b.ratio >= 1 ? 'marked' : undefined)}
+    />
   );
 }

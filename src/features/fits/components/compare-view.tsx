@@ -1,7 +1,9 @@
 import { useSearchParams } from 'react-router';
+import type { RowData } from '@tanstack/react-table';
 import type { FitComparison, FitSummary } from '@shared/schemas/fits';
 import { SelectField } from '../../../components/ui/field';
-import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { DataTable, dataColumns, type DataColumn } from '../../../components/ui/data-table';
+import { Panel } from '../../../components/ui/page';
 import { QueryView } from '../../../components/ui/query-view';
 import { formatDateTime } from '../../../lib/format';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
@@ -11,106 +13,88 @@ import { datasetInWords, fitName } from '../../../lib/fits';
 
 type Delta = FitComparison['mu'];
 
-function DeltaCells({ d, digits = 3, title }: { d: Delta; digits?: number; title: string }) {
-  const big = d.delta !== null && Math.abs(d.delta) >= 0.5;
-  return (
-    <>
-      <td className={`${tdClass} text-right tabular-nums`} title={`${title} in this fit`}>
-        {formatFixed(d.a, digits)}
-      </td>
-      <td className={`${tdClass} text-right tabular-nums`} title={`${title} in the other fit`}>
-        {formatFixed(d.b, digits)}
-      </td>
-      <td className={`${tdClass} text-right tabular-nums ${big ? 'font-semibold text-plum' : ''}`} title={`Change of the ${title.toLowerCase()}: other − this`}>
-        {formatSigned(d.delta, digits)}
-      </td>
-    </>
-  );
+/** A quantity in both fits and its change: three numeric columns, the change marked when it reaches 0.5. */
+function deltaColumns<T extends RowData>(label: string, delta: (row: T) => Delta, title: (row: T) => string, digits = 3): DataColumn<T>[] {
+  const col = dataColumns<T>();
+  return [
+    col.accessor((r) => delta(r).a, {
+      id: `${label}-a`,
+      header: `${label}, this`,
+      meta: { numeric: true, cellTitle: (r) => `${title(r)} in this fit` },
+      cell: (c) => formatFixed(c.getValue(), digits),
+    }),
+    col.accessor((r) => delta(r).b, {
+      id: `${label}-b`,
+      header: 'other',
+      meta: { numeric: true, cellTitle: (r) => `${title(r)} in the other fit` },
+      cell: (c) => formatFixed(c.getValue(), digits),
+    }),
+    col.accessor((r) => delta(r).delta, {
+      id: `${label}-delta`,
+      header: 'Δ',
+      meta: {
+        numeric: true,
+        cellTitle: (r) => `Change of the ${title(r).toLowerCase()}: other − this`,
+        cellClass: (r) => {
+          const d = delta(r).delta;
+          return d !== null && Math.abs(d) >= 0.5 ? 'font-semibold text-plum' : '';
+        },
+      },
+      cell: (c) => formatSigned(c.getValue(), digits),
+    }),
+  ];
 }
 
 function fitNameAndVersion(f: FitSummary) {
   return `${fitName(f)} (#${f.id}, version ${f.version})`;
 }
 
+type Quantity = { name: string; delta: Delta; title: string };
+type ParameterChange = FitComparison['parameters'][number];
+
+const quantity = dataColumns<Quantity>();
+const muColumns = [quantity.accessor('name', { header: 'Quantity' }), ...deltaColumns<Quantity>('Value', (r) => r.delta, (r) => r.title)];
+
+const change = dataColumns<ParameterChange>();
+const parameterColumns = [
+  change.accessor('name', {
+    header: 'Parameter',
+    meta: { nowrap: true },
+    cell: (c) => {
+      const p = c.row.original;
+      return (
+        <>
+          <span className="font-mono text-xs">{p.name}</span>
+          {p.only && <span className="ml-1 text-xs text-amber-ink">only in {p.only === 'a' ? 'this fit' : 'the other fit'}</span>}
+          {p.group && <span className="ml-2 text-2xs text-ink-muted">{p.group}</span>}
+        </>
+      );
+    },
+  }),
+  ...deltaColumns<ParameterChange>('Pull', (p) => p.pull, () => 'Pull'),
+  ...deltaColumns<ParameterChange>('Constraint', (p) => p.constraint, () => 'Constraint'),
+  ...deltaColumns<ParameterChange>('Impact', (p) => p.impact, () => 'Impact max(|Δμ+|, |Δμ−|)', 4),
+  change.accessor('change', {
+    header: 'Change',
+    meta: { numeric: true, headerTitle: 'The largest |Δ| of pull, constraint and impact: the sort key', cellClass: 'font-semibold', cellTitle: 'Largest |Δ| of pull, constraint and impact' },
+    cell: (c) => formatFixed(c.getValue(), 3),
+  }),
+];
+
 /** The changes from this fit to another, largest first. */
 export function ComparisonTable({ comparison: c }: { comparison: FitComparison }) {
   const params = [...c.parameters].sort((x, y) => y.change - x.change || x.name.localeCompare(y.name));
-  const head = (label: string) => (
-    <>
-      <th scope="col" className={`${thClass} text-right`}>
-        {label}, this
-      </th>
-      <th scope="col" className={`${thClass} text-right`}>
-        other
-      </th>
-      <th scope="col" className={`${thClass} text-right`}>
-        Δ
-      </th>
-    </>
-  );
+  const mu: Quantity[] = [
+    { name: 'μ̂', delta: c.mu, title: 'Best-fit μ' },
+    { name: 'σ_μ', delta: c.muError, title: 'σ_μ' },
+  ];
   return (
     <div className="flex flex-col gap-4">
       <Panel title="Signal strength">
-        <table className={tableClass} aria-label="Change in the signal strength">
-          <thead>
-            <tr>
-              <th scope="col" className={thClass}>
-                Quantity
-              </th>
-              {head('Value')}
-            </tr>
-          </thead>
-          <tbody>
-            <tr>
-              <th scope="row" className={`${tdClass} text-left font-normal`}>
-                μ̂
-              </th>
-              <DeltaCells d={c.mu} title="Best-fit μ" />
-            </tr>
-            <tr>
-              <th scope="row" className={`${tdClass} text-left font-normal`}>
-                σ_μ
-              </th>
-              <DeltaCells d={c.muError} title="σ_μ" />
-            </tr>
-          </tbody>
-        </table>
+        <DataTable columns={muColumns} data={mu} label="Change in the signal strength" rowHeader="name" frame="plain" />
       </Panel>
       <Panel title={`Nuisance parameters, largest change first (${params.length})`}>
-        <div className="overflow-x-auto">
-          <table className={tableClass} aria-label="Changes per parameter">
-            <thead>
-              <tr>
-                <th scope="col" className={thClass}>
-                  Parameter
-                </th>
-                {head('Pull')}
-                {head('Constraint')}
-                {head('Impact')}
-                <th scope="col" className={`${thClass} text-right`} title="The largest |Δ| of pull, constraint and impact: the sort key">
-                  Change
-                </th>
-              </tr>
-            </thead>
-            <tbody>
-              {params.map((p) => (
-                <tr key={p.name}>
-                  <th scope="row" className={`${tdClass} text-left font-normal whitespace-nowrap`}>
-                    <span className="font-mono text-xs">{p.name}</span>
-                    {p.only && <span className="ml-1 text-xs text-amber-ink">only in {p.only === 'a' ? 'this fit' : 'the other fit'}</span>}
-                    {p.group && <span className="ml-2 text-2xs text-ink-muted">{p.group}</span>}
-                  </th>
-                  <DeltaCells d={p.pull} title="Pull" />
-                  <DeltaCells d={p.constraint} title="Constraint" />
-                  <DeltaCells d={p.impact} digits={4} title="Impact max(|Δμ+|, |Δμ−|)" />
-                  <td className={`${tdClass} text-right font-semibold tabular-nums`} title="Largest |Δ| of pull, constraint and impact">
-                    {formatFixed(p.change, 3)}
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
-        </div>
+        <DataTable columns={parameterColumns} data={params} getRowId={(p) => p.name} label="Changes per parameter" rowHeader="name" frame="plain" stickyFirstColumn />
       </Panel>
     </div>
   );

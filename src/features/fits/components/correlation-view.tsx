@@ -2,7 +2,8 @@ import { useEffect, useMemo, useRef, useState, type KeyboardEvent, type MouseEve
 import { Link } from 'react-router';
 import type { FitResultHead } from '@shared/schemas/fits';
 import { ExportButtons } from '../../../components/charts/export-buttons';
-import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { DataTable, dataColumns } from '../../../components/ui/data-table';
+import { Panel } from '../../../components/ui/page';
 import { canvasToPng, chartFileName, downloadBlob } from '../../../lib/chart-export';
 import { correlationColour, theme } from '../../../lib/palette';
 import { formatSigned } from '../../../lib/stats-format';
@@ -39,6 +40,48 @@ function ColourKey() {
       <span>+1</span>
     </div>
   );
+}
+
+type NamedPair = { a: string; b: string; rho: number };
+
+const pairColumn = dataColumns<NamedPair>();
+
+function pairColumns(labels: Map<string, string>, linkTo?: (name: string) => string | null) {
+  const name = (id: 'a' | 'b') =>
+    pairColumn.accessor(id, {
+      header: 'Parameter',
+      meta: { cellClass: 'font-mono text-xs', cellTitle: (p) => labels.get(p[id]) },
+      cell: (c) => {
+        const to = linkTo?.(c.getValue());
+        return to ? (
+          <Link to={to} className="text-teal-ink hover:underline" title={`Open the diagnosis of ${c.getValue()}`}>
+            {c.getValue()}
+          </Link>
+        ) : (
+          c.getValue()
+        );
+      },
+    });
+  return [
+    name('a'),
+    name('b'),
+    pairColumn.accessor('rho', {
+      header: 'ρ',
+      meta: { numeric: true, cellTitle: 'Post-fit correlation coefficient' },
+      cell: (c) => (
+        <span className="inline-flex items-center gap-1.5 tabular-nums">
+          <span aria-hidden className="inline-block size-3 rounded-sm border" style={{ background: correlationColour(c.getValue()), borderColor: theme.rule }} />
+          {formatSigned(c.getValue(), 3)}
+        </span>
+      ),
+    }),
+  ];
+}
+
+/** The strongest pairs among the parameters shown, each name a link to its diagnosis. */
+function StrongestCorrelations({ pairs, labels, linkTo }: { pairs: NamedPair[]; labels: Map<string, string>; linkTo?: (name: string) => string | null }) {
+  const columns = useMemo(() => pairColumns(labels, linkTo), [labels, linkTo]);
+  return <DataTable columns={columns} data={pairs} getRowId={(p) => `${p.a}-${p.b}`} label="Strongest correlations" frame="plain" />;
 }
 
 /**
@@ -210,48 +253,7 @@ export function CorrelationView({ result, correlation, linkTo }: { result: FitRe
         {pairs.length === 0 ? (
           <p className="text-sm text-ink-muted">Fewer than two parameters shown.</p>
         ) : (
-          <table className={tableClass} aria-label="Strongest correlations">
-            <thead>
-              <tr>
-                <th scope="col" className={thClass}>
-                  Parameter
-                </th>
-                <th scope="col" className={thClass}>
-                  Parameter
-                </th>
-                <th scope="col" className={`${thClass} text-right`}>
-                  ρ
-                </th>
-              </tr>
-            </thead>
-            <tbody>
-              {pairs.map((p) => (
-                <tr key={`${p.a}-${p.b}`}>
-                  {[p.a, p.b].map((i) => {
-                    const name = m.names[i];
-                    const to = linkTo?.(name);
-                    return (
-                      <td key={i} className={`${tdClass} font-mono text-xs`} title={labels.get(name)}>
-                        {to ? (
-                          <Link to={to} className="text-teal-ink hover:underline" title={`Open the diagnosis of ${name}`}>
-                            {name}
-                          </Link>
-                        ) : (
-                          name
-                        )}
-                      </td>
-                    );
-                  })}
-                  <td className={`${tdClass} text-right`} title="Post-fit correlation coefficient">
-                    <span className="inline-flex items-center gap-1.5 tabular-nums">
-                      <span aria-hidden className="inline-block size-3 rounded-sm border" style={{ background: correlationColour(p.rho), borderColor: theme.rule }} />
-                      {formatSigned(p.rho, 3)}
-                    </span>
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
+          <StrongestCorrelations pairs={pairs.map((p) => ({ a: m.names[p.a], b: m.names[p.b], rho: p.rho }))} labels={labels} linkTo={linkTo} />
         )}
       </Panel>
     </div>

@@ -2,7 +2,7 @@ import { Link } from 'react-router';
 import type { FitSummary } from '@shared/schemas/fits';
 import { Button } from '../../../components/ui/button';
 import { FormError } from '../../../components/ui/error-notice';
-import { tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { DataTable, dataColumns } from '../../../components/ui/data-table';
 import { formatDateTime } from '../../../lib/format';
 import { decimalsFor, formatFixed, formatSigma } from '../../../lib/stats-format';
 import { useCancelFit } from '../api/cancel-fit';
@@ -45,85 +45,87 @@ function Headline({ fit }: { fit: FitSummary }) {
   );
 }
 
+const col = dataColumns<FitSummary>();
+
+function makeColumns(slug: string, mayRun: boolean, cancel: ReturnType<typeof useCancelFit>) {
+  return col.columns([
+    col.accessor('id', {
+      id: 'fit',
+      header: 'Fit',
+      cell: (c) => (
+        <>
+          <Link to={fitPath(slug, c.row.original.id)} className="font-medium text-teal-ink hover:underline">
+            {fitName(c.row.original)}
+          </Link>
+          <span className="block text-2xs text-ink-muted">#{c.getValue()}</span>
+        </>
+      ),
+    }),
+    col.accessor('version', { header: 'Version', meta: { numeric: true, cellTitle: 'The frozen model version this fit used' } }),
+    col.accessor('options', {
+      header: 'Dataset and options',
+      meta: { cellClass: 'text-xs' },
+      cell: (c) => (
+        <>
+          <span className="block text-ink">{datasetInWords(c.getValue())}</span>
+          <span className="block text-ink-muted">{optionsInWords(c.getValue())}</span>
+        </>
+      ),
+    }),
+    col.accessor('state', {
+      header: 'State',
+      cell: (c) => {
+        const f = c.row.original;
+        return (
+          <div className="flex flex-col gap-1">
+            <FitStateBadge state={f.state} />
+            {isActive(f.state) && <FitProgress fit={f} />}
+            {f.state === 'failed' && f.failure && <span className="max-w-xs text-xs text-danger">{f.failure}</span>}
+          </div>
+        );
+      },
+    }),
+    col.display({ id: 'result', header: 'Result', meta: { numeric: true }, cell: (c) => <Headline fit={c.row.original} /> }),
+    col.accessor('createdAt', {
+      header: 'Started',
+      meta: { nowrap: true, cellClass: 'text-xs text-ink-soft' },
+      cell: (c) => (
+        <>
+          {formatDateTime(c.getValue())}
+          {c.row.original.createdBy && <span className="block text-ink-muted">{c.row.original.createdBy}</span>}
+        </>
+      ),
+    }),
+    ...(mayRun
+      ? [
+          col.display({
+            id: 'actions',
+            header: 'Actions',
+            meta: { srOnlyHeader: true },
+            cell: (c) => {
+              const f = c.row.original;
+              return (
+                isActive(f.state) && (
+                  <Button size="sm" variant="danger" busy={cancel.isPending && cancel.variables === f.id} onClick={() => cancel.mutate(f.id)} aria-label={`Cancel ${f.label || `fit ${f.id}`}`}>
+                    Cancel
+                  </Button>
+                )
+              );
+            },
+          }),
+        ]
+      : []),
+  ]);
+}
+
 /** Every fit of the analysis, newest first, with live progress for running ones. */
 export function FitsTable({ slug, fits, mayRun }: { slug: string; fits: FitSummary[]; mayRun: boolean }) {
   const cancel = useCancelFit(slug);
+  const columns = makeColumns(slug, mayRun, cancel);
   return (
     <div className="flex flex-col gap-2">
       <FormError error={cancel.error} />
-      <div className="overflow-x-auto rounded-lg border border-rule bg-paper-raised">
-        <table className={tableClass} aria-label="Fits">
-          <thead>
-            <tr>
-              <th scope="col" className={thClass}>
-                Fit
-              </th>
-              <th scope="col" className={`${thClass} text-right`}>
-                Version
-              </th>
-              <th scope="col" className={thClass}>
-                Dataset and options
-              </th>
-              <th scope="col" className={thClass}>
-                State
-              </th>
-              <th scope="col" className={`${thClass} text-right`}>
-                Result
-              </th>
-              <th scope="col" className={thClass}>
-                Started
-              </th>
-              {mayRun && (
-                <th scope="col" className={thClass}>
-                  <span className="sr-only">Actions</span>
-                </th>
-              )}
-            </tr>
-          </thead>
-          <tbody>
-            {fits.map((f) => (
-              <tr key={f.id} className="hover:bg-paper-sunk/50">
-                <td className={tdClass}>
-                  <Link to={fitPath(slug, f.id)} className="font-medium text-teal-ink hover:underline">
-                    {fitName(f)}
-                  </Link>
-                  <span className="block text-2xs text-ink-muted">#{f.id}</span>
-                </td>
-                <td className={`${tdClass} text-right tabular-nums`} title="The frozen model version this fit used">
-                  {f.version}
-                </td>
-                <td className={`${tdClass} text-xs`}>
-                  <span className="block text-ink">{datasetInWords(f.options)}</span>
-                  <span className="block text-ink-muted">{optionsInWords(f.options)}</span>
-                </td>
-                <td className={tdClass}>
-                  <div className="flex flex-col gap-1">
-                    <FitStateBadge state={f.state} />
-                    {isActive(f.state) && <FitProgress fit={f} />}
-                    {f.state === 'failed' && f.failure && <span className="max-w-xs text-xs text-danger">{f.failure}</span>}
-                  </div>
-                </td>
-                <td className={`${tdClass} text-right`}>
-                  <Headline fit={f} />
-                </td>
-                <td className={`${tdClass} text-xs whitespace-nowrap text-ink-soft`}>
-                  {formatDateTime(f.createdAt)}
-                  {f.createdBy && <span className="block text-ink-muted">{f.createdBy}</span>}
-                </td>
-                {mayRun && (
-                  <td className={tdClass}>
-                    {isActive(f.state) && (
-                      <Button size="sm" variant="danger" busy={cancel.isPending && cancel.variables === f.id} onClick={() => cancel.mutate(f.id)} aria-label={`Cancel ${f.label || `fit ${f.id}`}`}>
-                        Cancel
-                      </Button>
-                    )}
-                  </td>
-                )}
-              </tr>
-            ))}
-          </tbody>
-        </table>
-      </div>
+      <DataTable columns={columns} data={fits} getRowId={(f) => String(f.id)} label="Fits" />
     </div>
   );
 }

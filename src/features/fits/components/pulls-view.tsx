@@ -6,7 +6,8 @@ import type { FitResultHead } from '@shared/schemas/fits';
 import { BottomAxis } from '../../../components/charts/axes';
 import { ChartFigure } from '../../../components/charts/chart-figure';
 import { CheckboxField, SelectField } from '../../../components/ui/field';
-import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { DataTable, dataColumns } from '../../../components/ui/data-table';
+import { Panel } from '../../../components/ui/page';
 import { theme } from '../../../lib/palette';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
 import { markColour } from '../../../components/charts/parameter-glyphs';
@@ -240,6 +241,47 @@ export function PullsChart({
   );
 }
 
+const pull = dataColumns<NuisanceReport>();
+
+/** The pulls as numbers, each name a link to its diagnosis when there is one. */
+function pullColumns(linkTo: ((name: string) => string) | null, marks?: Map<string, QuestionMark>) {
+  return [
+    pull.accessor('name', {
+      header: 'Parameter',
+      meta: { cellClass: 'font-mono text-xs' },
+      cell: (c) => {
+        const name = c.getValue();
+        const mark = marks?.get(name);
+        return (
+          <span className="flex items-center gap-1.5">
+            {linkTo ? (
+              <Link to={linkTo(name)} className="text-teal-ink hover:underline" title={`Open the diagnosis of ${name}`}>
+                {name}
+              </Link>
+            ) : (
+              name
+            )}
+            {mark && <QuestionMarker state={mark.state} count={mark.count} />}
+          </span>
+        );
+      },
+    }),
+    pull.accessor((r) => groupName(r.group), { id: 'group', header: 'Group', meta: { cellClass: 'text-xs' } }),
+    pull.accessor('pull', { header: 'Pull', meta: { numeric: true, headerTitle: '(θ̂ − 0)/1' }, cell: (c) => formatSigned(c.getValue(), 3) }),
+    pull.accessor('constraint', { header: 'Constraint', meta: { numeric: true, headerTitle: 'σ̂/1' }, cell: (c) => formatFixed(c.getValue(), 3) }),
+    pull.accessor('normalisedPull', { header: 'Normalised pull', meta: { numeric: true, headerTitle: 'θ̂/√(1 − σ̂²) when σ̂ < 1' }, cell: (c) => formatSigned(c.getValue(), 3) }),
+    pull.display({
+      id: 'flags',
+      header: 'Flags',
+      meta: { cellClass: 'text-xs' },
+      cell: (c) => {
+        const r = c.row.original;
+        return [r.fixed && 'held', r.overConstrained && 'over-constrained', isStronglyPulled(r) && 'strongly pulled'].filter(Boolean).join(', ');
+      },
+    }),
+  ];
+}
+
 /** The pulls view: chart, sort and filters, the numbers as a table, and the floating normalisations apart. */
 export function PullsView({ result, slug, fitId, marks }: { result: FitResultHead; slug?: string; fitId?: number; marks?: Map<string, QuestionMark> }) {
   const navigate = useNavigate();
@@ -258,6 +300,7 @@ export function PullsView({ result, slug, fitId, marks }: { result: FitResultHea
   const over = result.nuisance.filter((n) => n.overConstrained).length;
   const pulled = result.nuisance.filter(isStronglyPulled).length;
   const norms = result.parameters.filter((p) => p.kind === 'normalisation');
+  const numberColumns = pullColumns(linkTo, marks);
 
   return (
     <div className="flex flex-col gap-4">
@@ -299,55 +342,7 @@ export function PullsView({ result, slug, fitId, marks }: { result: FitResultHea
       )}
       <details className="rounded-lg border border-rule bg-paper-raised px-4 py-2">
         <summary className="cursor-pointer text-sm font-semibold text-ink">The numbers as a table</summary>
-        <table className={`${tableClass} mt-2`} aria-label="Pulls and constraints">
-          <thead>
-            <tr>
-              <th scope="col" className={thClass}>
-                Parameter
-              </th>
-              <th scope="col" className={thClass}>
-                Group
-              </th>
-              <th scope="col" className={`${thClass} text-right`} title="(θ̂ − 0)/1">
-                Pull
-              </th>
-              <th scope="col" className={`${thClass} text-right`} title="σ̂/1">
-                Constraint
-              </th>
-              <th scope="col" className={`${thClass} text-right`} title="θ̂/√(1 − σ̂²) when σ̂ < 1">
-                Normalised pull
-              </th>
-              <th scope="col" className={thClass}>
-                Flags
-              </th>
-            </tr>
-          </thead>
-          <tbody>
-            {rows.map((r) => (
-              <tr key={r.name}>
-                <td className={`${tdClass} font-mono text-xs`}>
-                  <span className="flex items-center gap-1.5">
-                    {linkTo ? (
-                      <Link to={linkTo(r.name)} className="text-teal-ink hover:underline" title={`Open the diagnosis of ${r.name}`}>
-                        {r.name}
-                      </Link>
-                    ) : (
-                      r.name
-                    )}
-                    {marks?.get(r.name) && <QuestionMarker state={marks.get(r.name)!.state} count={marks.get(r.name)!.count} />}
-                  </span>
-                </td>
-                <td className={`${tdClass} text-xs`}>{groupName(r.group)}</td>
-                <td className={`${tdClass} text-right tabular-nums`}>{formatSigned(r.pull, 3)}</td>
-                <td className={`${tdClass} text-right tabular-nums`}>{formatFixed(r.constraint, 3)}</td>
-                <td className={`${tdClass} text-right tabular-nums`}>{formatSigned(r.normalisedPull, 3)}</td>
-                <td className={`${tdClass} text-xs`}>
-                  {[r.fixed && 'held', r.overConstrained && 'over-constrained', isStronglyPulled(r) && 'strongly pulled'].filter(Boolean).join(', ')}
-                </td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
+        <DataTable columns={numberColumns} data={rows} getRowId={(r) => r.name} label="Pulls and constraints" frame="plain" frameClass="mt-2" />
       </details>
       <Panel title="Floating normalisations">
         {norms.length === 0 ? (

@@ -1,9 +1,35 @@
 import type { FitResultHead } from '@shared/schemas/fits';
 import { ScanChart } from '../../../components/charts/scan-chart';
 import { DefinitionRow } from '../../../components/ui/definition-row';
-import { Panel, tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { DataTable, dataColumns } from '../../../components/ui/data-table';
+import { Panel } from '../../../components/ui/page';
 import { decimalsFor, formatFixed, formatProbability, formatSigma, formatSigned } from '../../../lib/stats-format';
 import { ConvergenceReport } from './convergence';
+
+type Parameter = FitResultHead['parameters'][number];
+
+const norm = dataColumns<Parameter>();
+const normColumns = [
+  norm.accessor('name', {
+    header: 'Normalisation',
+    cell: (c) => {
+      const p = c.row.original;
+      return (
+        <>
+          {p.label || p.name} <span className="font-mono text-2xs text-ink-muted">{p.name}</span>
+          {p.atBound && <span className="ml-1 text-xs font-semibold text-amber-ink">at a bound</span>}
+          {p.fixed && <span className="ml-1 text-xs text-ink-muted">held</span>}
+        </>
+      );
+    },
+  }),
+  norm.accessor('value', {
+    header: 'Best fit',
+    meta: { numeric: true, cellTitle: 'Best-fit scale factor of the processes it multiplies (1 = nominal)' },
+    cell: (c) => formatFixed(c.getValue(), 3),
+  }),
+  norm.accessor('error', { header: 'σ', meta: { numeric: true, cellTitle: '√V from the covariance' }, cell: (c) => formatFixed(c.getValue(), 3) }),
+];
 
 /** μ̂ with its 68 % errors: the scan's crossings when there is a scan, else ±σ_μ from the covariance. */
 export function MuHeadline({ result }: { result: FitResultHead }) {
@@ -131,38 +157,7 @@ export function SummaryView({ result }: { result: FitResultHead }) {
           {norms.length === 0 ? (
             <p className="text-sm text-ink-muted">This model has no floating normalisation.</p>
           ) : (
-            <table className={tableClass} aria-label="Floating normalisations">
-              <thead>
-                <tr>
-                  <th scope="col" className={thClass}>
-                    Normalisation
-                  </th>
-                  <th scope="col" className={`${thClass} text-right`}>
-                    Best fit
-                  </th>
-                  <th scope="col" className={`${thClass} text-right`}>
-                    σ
-                  </th>
-                </tr>
-              </thead>
-              <tbody>
-                {norms.map((p) => (
-                  <tr key={p.name}>
-                    <td className={tdClass}>
-                      {p.label || p.name} <span className="font-mono text-2xs text-ink-muted">{p.name}</span>
-                      {p.atBound && <span className="ml-1 text-xs font-semibold text-amber-ink">at a bound</span>}
-                      {p.fixed && <span className="ml-1 text-xs text-ink-muted">held</span>}
-                    </td>
-                    <td className={`${tdClass} text-right tabular-nums`} title="Best-fit scale factor of the processes it multiplies (1 = nominal)">
-                      {formatFixed(p.value, 3)}
-                    </td>
-                    <td className={`${tdClass} text-right tabular-nums`} title="√V from the covariance">
-                      {formatFixed(p.error, 3)}
-                    </td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
+            <DataTable columns={normColumns} data={norms} getRowId={(p) => p.name} label="Floating normalisations" frame="plain" />
           )}
         </Panel>
         <Panel title="Convergence report">

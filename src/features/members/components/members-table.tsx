@@ -1,8 +1,9 @@
+import { useMemo } from 'react';
 import type { Member } from '@shared/schemas/api';
 import { MEMBER_ROLES, ROLE_LABELS, type MemberRole } from '@shared/permissions';
 import { ConfirmButton } from '../../../components/ui/confirm-button';
 import { FormError } from '../../../components/ui/error-notice';
-import { tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { DataTable, dataColumns } from '../../../components/ui/data-table';
 import { formatDate } from '../../../lib/format';
 import { useRemoveMember } from '../api/remove-member';
 import { useUpdateMember } from '../api/update-member';
@@ -47,50 +48,33 @@ function RemoveButton({ slug, member }: { slug: string; member: Member }) {
   );
 }
 
+const col = dataColumns<Member>();
+
+function makeColumns(slug: string, canManage: boolean, myUserId: number | undefined) {
+  return col.columns([
+    col.accessor('name', {
+      header: 'Name',
+      meta: { cellClass: 'font-medium' },
+      cell: (c) => (
+        <>
+          {c.getValue()}
+          {c.row.original.userId === myUserId && <span className="ml-1.5 text-xs font-normal text-ink-muted">(you)</span>}
+        </>
+      ),
+    }),
+    col.accessor('email', { header: 'E-mail' }),
+    col.accessor('role', { header: 'Role', cell: (c) => (canManage ? <RoleSelect slug={slug} member={c.row.original} /> : ROLE_LABELS[c.getValue()]) }),
+    col.accessor('since', { header: 'Member since', cell: (c) => formatDate(c.getValue()) }),
+    ...(canManage
+      ? [col.display({ id: 'actions', header: 'Actions', meta: { srOnlyHeader: true, headerClass: 'text-right', cellClass: 'text-right' }, cell: (c) => <RemoveButton slug={slug} member={c.row.original} /> })]
+      : []),
+  ]);
+}
+
 export function MembersTable({ slug, members, canManage, myUserId }: { slug: string; members: Member[]; canManage: boolean; myUserId?: number }) {
-  const sorted = [...members].sort((a, b) => ROLE_ORDER[a.role] - ROLE_ORDER[b.role] || a.name.localeCompare(b.name));
+  const sorted = useMemo(() => [...members].sort((a, b) => ROLE_ORDER[a.role] - ROLE_ORDER[b.role] || a.name.localeCompare(b.name)), [members]);
+  const columns = useMemo(() => makeColumns(slug, canManage, myUserId), [slug, canManage, myUserId]);
   return (
-    <div className="overflow-x-auto rounded-lg border border-rule bg-paper-raised">
-      <table className={tableClass} aria-label="Members">
-        <thead>
-          <tr>
-            <th scope="col" className={thClass}>Name</th>
-            <th scope="col" className={thClass}>E-mail</th>
-            <th scope="col" className={thClass}>Role</th>
-            <th scope="col" className={thClass}>Member since</th>
-            {canManage && (
-              <th scope="col" className={`${thClass} text-right`}>
-                <span className="sr-only">Actions</span>
-              </th>
-            )}
-          </tr>
-        </thead>
-        <tbody>
-          {sorted.map((m) => (
-            <tr key={m.userId}>
-              <th scope="row" className={`${tdClass} text-left font-medium`}>
-                {m.name}
-                {m.userId === myUserId && <span className="ml-1.5 text-xs font-normal text-ink-muted">(you)</span>}
-              </th>
-              <td className={tdClass}>{m.email}</td>
-              <td className={tdClass}>{canManage ? <RoleSelect slug={slug} member={m} /> : ROLE_LABELS[m.role]}</td>
-              <td className={tdClass}>{formatDate(m.since)}</td>
-              {canManage && (
-                <td className={`${tdClass} text-right`}>
-                  <RemoveButton slug={slug} member={m} />
-                </td>
-              )}
-            </tr>
-          ))}
-          {sorted.length === 0 && (
-            <tr>
-              <td colSpan={canManage ? 5 : 4} className={`${tdClass} py-6 text-center text-ink-muted`}>
-                Nobody has a role in this analysis yet.
-              </td>
-            </tr>
-          )}
-        </tbody>
-      </table>
-    </div>
+    <DataTable columns={columns} data={sorted} getRowId={(m) => String(m.userId)} label="Members" rowHeader="name" empty="Nobody has a role in this analysis yet." />
   );
 }

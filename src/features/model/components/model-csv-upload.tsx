@@ -4,7 +4,7 @@ import { Button } from '../../../components/ui/button';
 import { UploadError } from '../../../components/ui/error-notice';
 import { SelectField } from '../../../components/ui/field';
 import { FileField, FormatReminder } from '../../../components/ui/file-field';
-import { tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { DataTable, dataColumns } from '../../../components/ui/data-table';
 import { formatCount } from '../../../lib/format';
 import { useUploadModelCsv } from '../api/upload-model-csv';
 
@@ -26,6 +26,27 @@ CR-shower,2,171
 …one row per bin…`,
   },
 };
+
+type Change = ModelUploadResult['changes'][number];
+
+const change = dataColumns<Change>();
+
+/** What a file would set: per region (and process, for templates) its bins and total. */
+function changeColumns(kind: ModelCsvKind) {
+  return [
+    change.accessor('region', { header: 'Region', meta: { cellClass: 'font-mono' } }),
+    ...(kind === 'templates' ? [change.accessor('process', { header: 'Process', meta: { cellClass: 'font-mono' } })] : []),
+    change.accessor('bins', { header: 'Bins', meta: { numeric: true } }),
+    change.accessor('total', {
+      header: 'Total',
+      meta: { numeric: true, cellTitle: (c) => (c.total === null ? 'Signal-region data are not shown while the analysis is blinded' : 'Sum over the bins') },
+      cell: (c) => {
+        const total = c.getValue();
+        return total === null ? <span className="text-amber-ink">withheld while blinded</span> : `${formatCount(Math.round(total * 10) / 10)} events`;
+      },
+    }),
+  ];
+}
 
 /** Upload templates or observed data as CSV: preview what the file sets, then save. Nothing is written until Save. */
 export function ModelCsvUpload({ slug }: { slug: string }) {
@@ -111,28 +132,13 @@ export function ModelCsvUpload({ slug }: { slug: string }) {
       {preview && (
         <section aria-label="Preview of the CSV upload" className="rounded-lg border-2 border-dashed border-teal/50 bg-teal-soft/20 px-3 py-2">
           <h3 className="mb-2 text-sm font-semibold">Preview: the file would set these; nothing is saved until you press Save</h3>
-          <table className={tableClass} aria-label="What the file sets">
-            <thead>
-              <tr>
-                <th scope="col" className={thClass}>Region</th>
-                {kind === 'templates' && <th scope="col" className={thClass}>Process</th>}
-                <th scope="col" className={`${thClass} text-right`}>Bins</th>
-                <th scope="col" className={`${thClass} text-right`}>Total</th>
-              </tr>
-            </thead>
-            <tbody>
-              {preview.changes.map((c) => (
-                <tr key={`${c.region}|${c.process ?? ''}`}>
-                  <td className={`${tdClass} font-mono`}>{c.region}</td>
-                  {kind === 'templates' && <td className={`${tdClass} font-mono`}>{c.process}</td>}
-                  <td className={`${tdClass} text-right tabular-nums`}>{c.bins}</td>
-                  <td className={`${tdClass} text-right tabular-nums`} title={c.total === null ? 'Signal-region data are not shown while the analysis is blinded' : 'Sum over the bins'}>
-                    {c.total === null ? <span className="text-amber-ink">withheld while blinded</span> : `${formatCount(Math.round(c.total * 10) / 10)} events`}
-                  </td>
-                </tr>
-              ))}
-            </tbody>
-          </table>
+          <DataTable
+            columns={changeColumns(kind)}
+            data={preview.changes}
+            getRowId={(c) => `${c.region}|${c.process ?? ''}`}
+            label="What the file sets"
+            frame="plain"
+          />
         </section>
       )}
     </div>

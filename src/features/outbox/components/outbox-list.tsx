@@ -1,7 +1,7 @@
-import { Fragment, useState } from 'react';
+import { useState } from 'react';
 import { Badge } from '../../../components/ui/badge';
 import { EmptyState } from '../../../components/ui/empty-state';
-import { tableClass, tdClass, thClass } from '../../../components/ui/page';
+import { DataTable, dataColumns } from '../../../components/ui/data-table';
 import { formatDateTime } from '../../../lib/format';
 import type { OutboxMessage } from '../api/get-outbox';
 
@@ -23,6 +23,45 @@ function Delivery({ m }: { m: OutboxMessage }) {
   );
 }
 
+const col = dataColumns<OutboxMessage>();
+
+function makeColumns(open: ReadonlySet<number>, toggle: (id: number) => void) {
+  return col.columns([
+    col.accessor('to', { header: 'To', meta: { nowrap: true } }),
+    col.accessor('subject', {
+      header: 'Subject',
+      cell: (c) => {
+        const m = c.row.original;
+        const isOpen = open.has(m.id);
+        return (
+          <button
+            type="button"
+            aria-expanded={isOpen}
+            aria-controls={`outbox-body-${m.id}`}
+            onClick={() => toggle(m.id)}
+            className="inline-flex items-start gap-1.5 rounded text-left font-medium text-ink hover:text-teal-ink"
+          >
+            <span aria-hidden className="w-3 text-ink-muted">{isOpen ? '▾' : '▸'}</span>
+            {m.subject}
+          </button>
+        );
+      },
+    }),
+    col.accessor('analysis', { header: 'Analysis', meta: { nowrap: true }, cell: (c) => c.getValue() ?? <span className="text-ink-muted">none</span> }),
+    col.accessor('createdAt', { header: 'Time', meta: { nowrap: true, cellClass: 'tabular-nums' }, cell: (c) => formatDateTime(c.getValue()) }),
+    col.display({
+      id: 'delivery',
+      header: 'Delivery',
+      cell: (c) => (
+        <>
+          <Delivery m={c.row.original} />
+          {c.row.original.error && <p className="mt-1 max-w-xs text-xs text-danger">{c.row.original.error}</p>}
+        </>
+      ),
+    }),
+  ]);
+}
+
 /** Newest first; each message's body opens below its row. */
 export function OutboxList({ messages }: { messages: OutboxMessage[] }) {
   const [open, setOpen] = useState<ReadonlySet<number>>(new Set());
@@ -40,56 +79,19 @@ export function OutboxList({ messages }: { messages: OutboxMessage[] }) {
       else next.add(id);
       return next;
     });
+  const columns = makeColumns(open, toggle);
   return (
-    <div className="overflow-x-auto rounded-lg border border-rule bg-paper-raised">
-      <table className={tableClass} aria-label="Outbox">
-        <thead>
-          <tr>
-            <th scope="col" className={thClass}>To</th>
-            <th scope="col" className={thClass}>Subject</th>
-            <th scope="col" className={thClass}>Analysis</th>
-            <th scope="col" className={thClass}>Time</th>
-            <th scope="col" className={thClass}>Delivery</th>
-          </tr>
-        </thead>
-        <tbody>
-          {sorted.map((m) => {
-            const isOpen = open.has(m.id);
-            return (
-              <Fragment key={m.id}>
-                <tr className={isOpen ? 'bg-paper-sunk/40' : undefined}>
-                  <td className={`${tdClass} whitespace-nowrap`}>{m.to}</td>
-                  <td className={tdClass}>
-                    <button
-                      type="button"
-                      aria-expanded={isOpen}
-                      aria-controls={`outbox-body-${m.id}`}
-                      onClick={() => toggle(m.id)}
-                      className="inline-flex items-start gap-1.5 rounded text-left font-medium text-ink hover:text-teal-ink"
-                    >
-                      <span aria-hidden className="w-3 text-ink-muted">{isOpen ? '▾' : '▸'}</span>
-                      {m.subject}
-                    </button>
-                  </td>
-                  <td className={`${tdClass} whitespace-nowrap`}>{m.analysis ?? <span className="text-ink-muted">none</span>}</td>
-                  <td className={`${tdClass} whitespace-nowrap tabular-nums`}>{formatDateTime(m.createdAt)}</td>
-                  <td className={tdClass}>
-                    <Delivery m={m} />
-                    {m.error && <p className="mt-1 max-w-xs text-xs text-danger">{m.error}</p>}
-                  </td>
-                </tr>
-                {isOpen && (
-                  <tr id={`outbox-body-${m.id}`}>
-                    <td colSpan={5} className={`${tdClass} bg-paper-sunk/40`}>
-                      <pre className="max-h-96 overflow-auto font-sans text-sm whitespace-pre-wrap text-ink-soft">{m.body}</pre>
-                    </td>
-                  </tr>
-                )}
-              </Fragment>
-            );
-          })}
-        </tbody>
-      </table>
-    </div>
+    <DataTable
+      columns={columns}
+      data={sorted}
+      getRowId={(m) => String(m.id)}
+      label="Outbox"
+      rowTone={(m) => (open.has(m.id) ? 'open' : undefined)}
+      below={(m) =>
+        open.has(m.id)
+          ? { id: `outbox-body-${m.id}`, content: <pre className="max-h-96 overflow-auto font-sans text-sm whitespace-pre-wrap text-ink-soft">{m.body}</pre> }
+          : null
+      }
+    />
   );
 }
