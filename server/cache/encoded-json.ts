@@ -1,9 +1,10 @@
 import { createHash } from 'node:crypto';
 import { promisify } from 'node:util';
-import { brotliCompress, brotliCompressSync, constants, gzip, gzipSync } from 'node:zlib';
+import { brotliCompress, brotliCompressSync, constants, gunzip, gzip, gzipSync } from 'node:zlib';
 
 const gzipAsync = promisify(gzip);
 const brotliAsync = promisify(brotliCompress);
+const gunzipAsync = promisify(gunzip);
 
 /** A JSON response encoded once: its bytes, a gzip copy when it is worth one, and its ETag. */
 export type Encoded = { body: Buffer; gzip: Buffer | null; brotli: Buffer | null; etag: string };
@@ -31,4 +32,16 @@ export async function encodeJson(value: unknown, lifetime: 'final' | 'until-chan
     brotli: br,
     etag: `"${createHash('sha1').update(body).digest('base64url')}"`,
   };
+}
+
+/**
+ * A JSON response stored as bytes (gzip or plain text): the gzip copy as stored, the text when a
+ * client takes no gzip, and a brotli copy made once off the request thread.
+ */
+export async function storedEncoding(stored: { encoding: 'gzip' | 'identity'; data: Buffer }): Promise<Encoded> {
+  const body = stored.encoding === 'gzip' ? await gunzipAsync(stored.data) : stored.data;
+  const worth = body.length > 16 * 1024;
+  const gz = stored.encoding === 'gzip' ? stored.data : worth ? await gzipAsync(body, { level: 6 }) : null;
+  const br = worth ? await brotliAsync(body, { params: { [constants.BROTLI_PARAM_QUALITY]: body.length < 1 << 20 ? 11 : 6, [constants.BROTLI_PARAM_SIZE_HINT]: body.length } }) : null;
+  return { body, gzip: gz, brotli: br, etag: `"${createHash('sha1').update(stored.data).digest('base64url')}"` };
 }

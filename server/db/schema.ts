@@ -295,6 +295,24 @@ export const fits = pgTable(
 );
 
 /**
+ * The two largest parts of a fit's result (the correlation matrix and the per-bin information of
+ * every parameter: megabytes for a large model), kept apart from fits.result as JSON bytes,
+ * gzip-compressed where the fit ran, so that storing a result costs the web server little and a
+ * part is served as it is stored.
+ */
+export const fitParts = pgTable(
+  'fit_parts',
+  {
+    fitId: integer('fit_id').notNull().references(() => fits.id, { onDelete: 'cascade' }),
+    part: varchar('part', { length: 20 }).notNull(),
+    /** 'gzip' or 'identity' (JSON text as stored before parts were compressed) */
+    encoding: varchar('encoding', { length: 10 }).notNull(),
+    data: bytea('data').notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.fitId, t.part] })],
+);
+
+/**
  * Pseudo-experiments of a converged fit (shared/schemas/toys.ts): asked for by an analyst,
  * run in batches (threads here, or worker processes through the queue), summarised at the end.
  */

@@ -1,8 +1,10 @@
 import { eq } from 'drizzle-orm';
 import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
-import { fitOptionsSchema, type FitOptions, type FitResult } from '@shared/schemas/fit';
+import { fitOptionsSchema, type FitOptions } from '@shared/schemas/fit';
 import type { Db } from '../db/client';
 import { fits, modelVersions } from '../db/schema';
+import { dropFitParts, storeFitParts } from '../db/fits.repository';
+import type { StorableResult } from './fit-outcome';
 import { JobError } from './fit-job';
 import { jobRow } from './job-rows';
 
@@ -12,7 +14,7 @@ export const NOT_FINITE =
 export const INTERRUPTED = 'Interrupted: the server stopped while this fit was running. Start it again.';
 
 /** Runs the engine on a model; throws JobError (cancelled, input, numeric, internal). */
-export type ComputeFit = (model: ExchangeModel, options: FitOptions, onProgress: (fraction: number, stage: string) => void, signal: AbortSignal) => Promise<FitResult>;
+export type ComputeFit = (model: ExchangeModel, options: FitOptions, onProgress: (fraction: number, stage: string) => void, signal: AbortSignal) => Promise<StorableResult>;
 
 /**
  * One fit job from its row to its stored result, wherever it runs (a thread of the server, or a
@@ -35,8 +37,11 @@ export async function executeFit(
   const finish = row.finish;
   try {
     const model = exchangeModelSchema.parse(version.model);
-    const result = await compute(model, fitOptionsSchema.parse(fit.options), row.progress, signal);
-    await finish({
+    const { result, parts } = await compute(model, fitOptionsSchema.parse(fit.options), row.progress, signal);
+    // the large parts first, so that a fit readers see as ended has them; gone again if the row
+    // was cancelled meanwhile by another process
+    await storeFitParts(db, id, parts);
+    const stored = await finish({
       state: result.status === 'converged' ? 'succeeded' : 'failed',
       failure: result.status === 'converged' ? null : (result.convergence.failure ?? 'The fit did not converge.'),
       result,
@@ -47,6 +52,7 @@ export async function executeFit(
       progress: 1,
       stage: 'done',
     });
+    if (!stored) await dropFitParts(db, id);
   } catch (e) {
     const kind = e instanceof JobError ? e.kind : 'internal';
     if (kind === 'cancelled') await finish({ state: 'cancelled', failure: `Cancelled by ${control.cancelledBy() ?? 'a user'}.`, stage: 'cancelled' });

@@ -1,8 +1,9 @@
 import { MessageChannel } from 'node:worker_threads';
 import type { ExchangeModel } from '@shared/schemas/exchange';
-import type { FitOptions, FitResult } from '@shared/schemas/fit';
+import type { FitOptions } from '@shared/schemas/fit';
 import { siblingWorker, workerPool } from '../fit/pool';
 import type { JobOutcome } from './fit-job.worker';
+import type { StorableResult } from './fit-outcome';
 
 export class JobError extends Error {
   constructor(
@@ -16,7 +17,7 @@ export class JobError extends Error {
 
 /** The job thread, seen from the server thread: run a fit there (cancellable), close the thread. */
 export type JobThread = {
-  run: (model: ExchangeModel, options: FitOptions, onProgress: (fraction: number, stage: string) => void, signal: AbortSignal) => Promise<FitResult>;
+  run: (model: ExchangeModel, options: FitOptions, onProgress: (fraction: number, stage: string) => void, signal: AbortSignal) => Promise<StorableResult>;
   close: () => Promise<void>;
 };
 
@@ -31,7 +32,7 @@ export function startJobThread(threads?: number, niceness = 0): JobThread {
       try {
         const outcome = (await piscina.run({ model, options, threads, niceness, progress: port2 }, { transferList: [port2], signal })) as JobOutcome;
         if (!outcome.ok) throw new JobError(outcome.kind, outcome.message);
-        return outcome.result;
+        return outcome.stored;
       } catch (e) {
         if (e instanceof JobError) throw e;
         if (signal.aborted) throw new JobError('cancelled', 'cancelled');

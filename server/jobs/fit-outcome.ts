@@ -1,8 +1,26 @@
+import { gzipSync } from 'node:zlib';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import { fitResultSchema, type FitOptions, type FitResult } from '@shared/schemas/fit';
 import { fitModel, FitCancelledError, FitInputError, type FitControl } from '../fit';
 
-export type JobOutcome = { ok: true; result: FitResult } | { ok: false; kind: 'input' | 'numeric' | 'internal'; message: string };
+/** The parts of a result stored apart from the rest (db/fits.repository.ts). */
+export const LARGE_PARTS = ['correlation', 'information'] as const;
+export type LargePart = (typeof LARGE_PARTS)[number];
+
+/**
+ * A result as it is stored: everything but the two largest parts, which are JSON compressed with
+ * gzip. Made where the fit ran (the fit's own thread, or a worker process), so that the web
+ * server never serialises or compresses megabytes on its request thread.
+ */
+export type StorableResult = { result: Omit<FitResult, LargePart>; parts: Record<LargePart, Uint8Array> };
+
+export function storable(result: FitResult): StorableResult {
+  const { correlation, information, ...rest } = result;
+  const pack = (value: unknown) => new Uint8Array(gzipSync(JSON.stringify(value), { level: 6 }));
+  return { result: rest, parts: { correlation: pack(correlation), information: pack(information) } };
+}
+
+export type JobOutcome = { ok: true; stored: StorableResult } | { ok: false; kind: 'input' | 'numeric' | 'internal'; message: string };
 
 /**
  * A fit whose result keeps its contract: only finite numbers (one NaN or infinity and no number
@@ -13,7 +31,7 @@ export async function fitOutcome(model: ExchangeModel, options: FitOptions, cont
     const result = await fitModel(model, options, control);
     const checked = fitResultSchema.safeParse(result);
     if (!checked.success) return { ok: false, kind: 'numeric', message: notFinite(checked.error.issues) };
-    return { ok: true, result };
+    return { ok: true, stored: storable(result) };
   } catch (e) {
     if (e instanceof FitCancelledError) throw e;
     const kind = e instanceof FitInputError ? 'input' : 'internal';

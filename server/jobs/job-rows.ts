@@ -41,12 +41,15 @@ export function jobRow(db: Db, table: JobTable, id: number) {
           () => {},
         );
     },
+    /** True when the end was written (the row was still running). */
     finish: async (values: JobValues) => {
       await writes;
-      await db
+      const rows = await db
         .update(table)
         .set({ finishedAt: new Date(), ...values })
-        .where(running);
+        .where(running)
+        .returning({ id: table.id });
+      return rows.length > 0;
     },
   };
 }

@@ -4,10 +4,10 @@ import { exportTableSchema, startFitSchema, type FitComparison, type FitPartName
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { findFitRow, insertFit, listFitRows, storedHead, storedPart, storedResult, type FitRow, type StoredHead } from '../db/fits.repository';
+import { findFitRow, insertFit, listFitRows, storedHead, storedPart, storedPartBytes, storedResult, type FitRow, type StoredHead } from '../db/fits.repository';
 import { conflict, notFound } from '../errors';
 import { recentResults } from '../cache/results';
-import { encodeJson, type Encoded } from '../cache/encoded-json';
+import { encodeJson, storedEncoding, type Encoded } from '../cache/encoded-json';
 import { regionEntersFit } from '../fit';
 import { isWithheld, withheldInFit, withheldResultMessage, type BlindingRule } from './blinding.service';
 import { findVersion } from './versions.service';
@@ -96,6 +96,12 @@ async function encodeFit(ctx: AppContext, access: Access, id: number, part: 'hea
     return { value: await encodeJson({ ...summary, result: head && headOf(head) }), final: !active };
   }
   if (summary.withheld) throw conflict(summary.withheld);
+  if (part === 'correlation' || part === 'information') {
+    // served as stored: the gzip bytes made where the fit ran go out as they are
+    const bytes = row.fit.state === 'succeeded' || row.fit.state === 'failed' ? await storedPartBytes(ctx.db, id, part) : undefined;
+    if (!bytes) throw conflict(`Fit ${id} ended without a result (${row.fit.state}).`);
+    return { value: await storedEncoding(bytes), final: true };
+  }
   const { stored, part: value } = await storedPart(ctx.db, id, part);
   if (!stored) throw conflict(`Fit ${id} ended without a result (${row.fit.state}).`);
   return { value: await encodeJson(value), final: true };

@@ -27,7 +27,7 @@ export async function coordinateFit(db: Db, queue: Queue, fitId: number, log: (l
         try {
           const outcome = await fitOutcome(model, options, { pool, onProgress, signal });
           if (!outcome.ok) throw new JobError(outcome.kind, outcome.message);
-          return outcome.result;
+          return outcome.stored;
         } catch (e) {
           if (e instanceof FitCancelledError || signal.aborted) throw new JobError('cancelled', 'cancelled');
           if (e instanceof ShardFailedError) throw new JobError('shards', e.message);

@@ -2,10 +2,11 @@ import { eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { exchangeModelSchema } from '@shared/schemas/exchange';
 import { fitOptionsSchema } from '@shared/schemas/fit';
-import { fits, modelVersions } from '../../server/db/schema';
+import { fitParts, fits, modelVersions } from '../../server/db/schema';
 import { fitModel } from '../../server/fit';
 import { INTERRUPTED } from '../../server/jobs/fit-runner';
 import { demoScenario } from '../../server/seed/scenario';
+import { storedResult } from '../../server/db/fits.repository';
 import { createTestApp, DEMO, signedIn, type Client, type TestApp } from './helpers';
 
 const V = '/api/analyses/vireon-search';
@@ -202,9 +203,12 @@ describe('a finished fit\u2019s response', () => {
       const parts = Object.fromEntries(
         await Promise.all(['correlation', 'information', 'yields', 'gammas'].map(async (p) => [p, (await analyst.get(`${C}/fits/${started.body.id}/parts/${p}`)).body])),
       );
-      const [stored] = await t.database.db.select({ result: fits.result }).from(fits).where(eq(fits.id, started.body.id));
+      const stored = await storedResult(t.database.db, started.body.id);
       const { gammas, ...large } = parts;
-      expect({ ...head, ...large, gammas: { ...head.gammas, list: gammas } }).toEqual(stored.result);
+      expect({ ...head, ...large, gammas: { ...head.gammas, list: gammas } }).toEqual(stored);
+      // the two largest parts are stored apart, compressed where the fit ran
+      const rows = await t.database.db.select({ part: fitParts.part, encoding: fitParts.encoding }).from(fitParts).where(eq(fitParts.fitId, started.body.id));
+      expect(rows.map((r) => `${r.part}:${r.encoding}`).sort()).toEqual(['correlation:gzip', 'information:gzip']);
       const wrong = await analyst.get(`${C}/fits/${started.body.id}/parts/everything`);
       expect(wrong.status).toBe(400);
       expect(wrong.body.error.message).toMatch(/correlation, information, yields, gammas/);
