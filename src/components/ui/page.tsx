@@ -25,8 +25,3 @@ export function Panel({ title, children, className = '', actions }: { title?: Re
     </section>
   );
 }
-
-/** Shared look of the app's read-only tables: dense rows, ruled, header on paper. */
-export const tableClass = 'w-full border-collapse text-sm';
-export const thClass = 'border-b border-rule-strong bg-paper-sunk/70 px-3 py-1.5 text-left text-xs font-semibold text-ink-soft';
-export const tdClass = 'border-b border-rule px-3 py-1.5 align-top';

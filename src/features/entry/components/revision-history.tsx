@@ -18,7 +18,12 @@ const ACTION_WORDS: Record<string, string> = {
 
 const show = (v: unknown) => (v === undefined ? '—' : typeof v === 'string' ? v || '(empty)' : JSON.stringify(v, null, 1));
 
-/** Before and after, field by field where both are objects; otherwise the two values whole. */
+/**
+ * Before and after, field by field where both are objects; otherwise the two values whole.
+ * Written by hand rather than with the data table: it is a small diff inside one revision (fixed
+ * column widths, the old value on red and the new on teal, long values wrapping), not a listing
+ * to sort, scroll or follow into.
+ */
 function Change({ before, after }: { before: unknown; after: unknown }) {
   const isObj = (x: unknown): x is Record<string, unknown> => typeof x === 'object' && x !== null && !Array.isArray(x);
   if (isObj(before) || isObj(after)) {
