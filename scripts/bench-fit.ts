@@ -117,7 +117,7 @@ for (const size of sizes) {
     'impacts s': jobs.length ? bestMedian(impactTimes) : '-',
     'steps/refit': mean((w) => w.steps + w.normalisationSteps),
     'gradients/refit': mean((w) => w.gradients),
-    'Newton fall-backs': impacts.filter((r) => r.work?.refreshed).length,
+    'Newton fall-backs': impacts.filter((r) => r.work && r.work.rung !== 'warm').length,
     'failed refits': failedImpacts,
     'scan s': bestMedian(scanTimes),
     'all outputs s': endToEnd.toFixed(3),

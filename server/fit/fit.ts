@@ -5,7 +5,7 @@ import { curvatureAt, gammaVariance, type FitContext } from './covariance';
 import { FitCancelledError, FitInputError, throwIfAborted } from './errors';
 import { postfitYields, prefitYields } from './expected-yields';
 import { informationBreakdown } from './information';
-import type { Job, JobResult } from './jobs';
+import { addRefits, noRefits, type Job, type JobResult, type RefitCounts } from './jobs';
 import { clippedSampleBins, createScratch, EDGE_TOLERANCE, minimise, type MinimiseResult } from './minimiser';
 import { correlationMatrix, errorOf, groupImpact, isAtBound, nuisanceTable, parameterTable, statOnlyError } from './parameters-report';
 import { runJobs, type FitPool } from './pool';
@@ -57,11 +57,8 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   }));
   if (clipped.length > 0) {
     const names = clipped.slice(0, 10).map((c) => `${c.region} bin ${c.bin} (${c.process})`);
-    warnings.push(
-      `The expected yield is clipped at zero in ${clipped.length} bin(s): ${names.join(', ')}${clipped.length > 10 ? ', …' : ''}.` +
-        (min.status === 'edge' ? ' The minimum sits on that edge: the fit held it there and stopped without meeting the decrement limit.' : ''),
-    );
-  }
+    warnings.push(`The expected yield is clipped at zero in ${clipped.length} bin(s): ${names.join(', ')}${clipped.length > 10 ? ', …' : ''}.` + edgeSentence(min));
+  } else if (min.edge) warnings.push(edgeSentence(min).trim());
   if (min.message && min.status !== 'failed') warnings.push(`Newton: ${min.message}.`);
 
   const base = { started, options, problem, warnings, min, clipped };
@@ -133,6 +130,9 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
 
   const results = await runJobs(contexts, jobs, { pool, signal, onProgress: (f) => progress(0.35 + 0.6 * f, 'refits') });
   throwIfAborted(signal);
+  const refits = countRefits(results);
+  if (refits.failed > 0) warnings.push(`${refits.failed} conditional fit(s) failed on every rung (warm, Newton, cold); the outputs that need them are left empty.`);
+  lowerMinimumWarning(jobs, results, contexts, warnings);
 
   // Per-parameter tables.
   const parameters = parameterTable(ctx);
@@ -140,7 +140,7 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   const muHat = ctx.phi[0];
   const delta = (r: JobResult, what: string): number | null => {
     if (!r.ok || r.mu === null) {
-      warnings.push(`The refit for ${what} did not converge; its impact is left empty.`);
+      warnings.push(`The refit for ${what} did not converge on any rung; its impact is left empty.`);
       return null;
     }
     return r.mu - muHat;
@@ -246,6 +246,8 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
       warnings,
       failure: null,
       seconds: (performance.now() - started) / 1000,
+      refits,
+      clipEdge: edgeReport(min),
     },
     parameters,
     nuisance,
@@ -278,6 +280,54 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   };
   progress(1, 'done');
   return result;
+}
+
+/** The clip-edge outcome for the report (MODEL.md §9: the edge held, or released to a lower NLL). */
+function edgeReport(min: MinimiseResult): FitResult['convergence']['clipEdge'] {
+  return min.edge ? { kept: min.edge.kept, heldNll: min.edge.heldNll, releasedNll: min.edge.releasedNll } : null;
+}
+
+function edgeSentence(min: MinimiseResult): string {
+  const e = min.edge;
+  if (!e) return '';
+  if (e.kept === 'released') return ` The fit met a clip edge; leaving it lowered the NLL by ${(e.heldNll - e.releasedNll!).toExponential(2)}, so the minimum off the edge is kept.`;
+  const tried = e.releasedNll === null ? 'leaving it to either side raises the NLL' : `leaving it reached an NLL higher by ${(e.releasedNll - e.heldNll).toExponential(2)}`;
+  return ` The minimum sits on that edge (${tried}): the fit holds the edge, where the decrement is measured along it.`;
+}
+
+/** Conditional fits of every job (the pre-fit refits of impact jobs included), by rung. */
+function countRefits(results: JobResult[]): RefitCounts {
+  const total = noRefits();
+  for (const r of results) {
+    addRefits(total, r.refits);
+    if (r.next) addRefits(total, r.next.refits);
+  }
+  return total;
+}
+
+/**
+ * A conditional fit can only lie above the minimum. One that lies below it by more than the
+ * rounding found another, lower minimum: the likelihood has several, and the best fit is not
+ * the lowest (MODEL.md gives no rule for this; the result says so rather than hiding it).
+ */
+function lowerMinimumWarning(jobs: Job[], results: JobResult[], contexts: FitContext[], warnings: string[]): void {
+  let lowest = 0;
+  let where = '';
+  results.forEach((r, k) => {
+    const job = jobs[k];
+    if (job.kind !== 'fix') return;
+    const ctx = contexts[job.context];
+    const m = ctx.problem.model;
+    for (const [res, value] of [[r, job.value], [r.next, job.next]] as const) {
+      if (!res?.ok || res.nll === null || value === undefined) continue;
+      const below = ctx.nll - res.nll;
+      if (below > 1e-7 * (1 + Math.abs(ctx.nll)) && below > lowest) {
+        lowest = below;
+        where = `${m.names[job.index]} = ${Number(value.toPrecision(4))}`;
+      }
+    }
+  });
+  if (lowest > 0) warnings.push(`A refit with ${where} reached an NLL ${lowest.toExponential(2)} below the best fit: the likelihood has more than one minimum, and the best fit is not the lowest.`);
 }
 
 /** Orders by the largest post-fit |Δμ| (falling back to the quick impact without refits). */
@@ -332,6 +382,8 @@ function failedResult(base: FailureBase, failure: string): FitResult {
       warnings: base.warnings,
       failure,
       seconds: (performance.now() - base.started) / 1000,
+      refits: noRefits(),
+      clipEdge: edgeReport(min),
     },
     parameters: [],
     nuisance: [],

@@ -1,5 +1,5 @@
 import { clsValue, expectedLimitFactor } from './cls';
-import { conditionalFit, type WarmStart } from './conditional-fit';
+import { conditionalFit, type ConditionalResult, type RefitWork, type WarmStart } from './conditional-fit';
 import type { FitContext } from './covariance';
 import { createScratch, type Scratch } from './minimiser';
 
@@ -22,14 +22,36 @@ export type Job =
   /** Observed CLs limit (observed context, background-only Asimov context). */
   | { kind: 'observed-limit'; context: number; asimov: number; cl: number };
 
+/** Conditional fits of a job by the rung of the ladder that met the stop test, and those where every rung failed. */
+export interface RefitCounts {
+  warm: number;
+  newton: number;
+  cold: number;
+  failed: number;
+}
+
+export function noRefits(): RefitCounts {
+  return { warm: 0, newton: 0, cold: 0, failed: 0 };
+}
+
+export function addRefits(into: RefitCounts, from: RefitCounts): RefitCounts {
+  into.warm += from.warm;
+  into.newton += from.newton;
+  into.cold += from.cold;
+  into.failed += from.failed;
+  return into;
+}
+
 export interface JobResult {
   ok: boolean;
   value: number | null;
   nll: number | null;
   mu: number | null;
   message: string | null;
-  /** Work done by a 'fix' refit: quasi-Newton steps, normalisation steps, gradients, Newton fall-back. */
-  work?: { steps: number; normalisationSteps: number; gradients: number; refreshed: boolean };
+  /** The conditional fits this job ran (for a 'fix' job with `next`, the first value only). */
+  refits: RefitCounts;
+  /** Work done by a 'fix' refit (absent when the value is the minimum itself). */
+  work?: RefitWork & { rung: ConditionalResult['rung'] };
   /** The result at the job's `next` value. */
   next?: JobResult;
 }
@@ -57,12 +79,22 @@ export class JobRunner {
    * ran before it on the same thread (serial and parallel paths agree exactly).
    */
   private warm = new Map<number, WarmStart>();
+  /** Conditional fits of the job being run. */
+  private counts = noRefits();
+
+  /** One conditional fit, counted by its rung. */
+  private refit(c: number, index: number, value: number, warm: WarmStart | null): ConditionalResult {
+    const r = conditionalFit(this.contexts[c], index, value, this.scratchFor(c), TOLERANCE, warm);
+    if (r.rung) this.counts[r.rung]++;
+    else this.counts.failed++;
+    return r;
+  }
 
   /** 2ΔNLL with φ_index fixed at value (null if the conditional fit failed). */
   private q(c: number, index: number, value: number): number | null {
     const ctx = this.contexts[c];
     if (value === ctx.phi[index]) return 0;
-    const r = conditionalFit(ctx, index, value, this.scratchFor(c), 1e-9, this.warm.get(c) ?? null);
+    const r = this.refit(c, index, value, this.warm.get(c) ?? null);
     if (!r.ok) return null;
     this.warm.set(c, { value, phi: r.phi, gamma: r.gamma });
     return Math.max(0, 2 * (r.nll - ctx.nll));
@@ -70,12 +102,22 @@ export class JobRunner {
 
   run(job: Job): JobResult {
     this.warm.clear();
+    this.counts = noRefits();
+    const result = this.dispatch(job);
+    return { ...result, refits: this.counts };
+  }
+
+  private dispatch(job: Job): Omit<JobResult, 'refits'> {
     switch (job.kind) {
       case 'fix': {
         const first = this.fix(job.context, job.index, job.value, null);
         if (job.next === undefined) return first.result;
+        const counts = this.counts;
+        this.counts = noRefits();
         const next = this.fix(job.context, job.index, job.next, first.warm);
-        return { ...first.result, next: next.result };
+        const nextResult = { ...next.result, refits: this.counts };
+        this.counts = counts;
+        return { ...first.result, next: nextResult };
       }
       case 'crossing':
         return this.crossing(job.context, job.index, job.level, job.direction);
@@ -87,11 +129,11 @@ export class JobRunner {
   }
 
   /** One conditional fit with φ_index = value, optionally from a nearby conditional minimum. */
-  private fix(c: number, index: number, value: number, warm: WarmStart | null): { result: JobResult; warm: WarmStart | null } {
+  private fix(c: number, index: number, value: number, warm: WarmStart | null): { result: Omit<JobResult, 'refits'>; warm: WarmStart | null } {
     const ctx = this.contexts[c];
     if (value === ctx.phi[index]) return { result: { ok: true, value, nll: ctx.nll, mu: ctx.phi[0], message: null }, warm: null };
-    const r = conditionalFit(ctx, index, value, this.scratchFor(c), 1e-9, warm);
-    const work = { steps: r.chordSteps, normalisationSteps: r.normalisationSteps, gradients: r.gradients, refreshed: r.refreshed };
+    const r = this.refit(c, index, value, warm);
+    const work = { ...r.work, rung: r.rung };
     if (!r.ok) return { result: { ...failed(r.message), work }, warm: null };
     return { result: { ok: true, value, nll: r.nll, mu: r.phi[0], message: r.message, work }, warm: { value, phi: r.phi, gamma: r.gamma } };
   }
@@ -100,7 +142,7 @@ export class JobRunner {
    * Bracket, then solve √q(x) = √level by the Illinois variant of regula falsi (√q is close to
    * linear in x, so few conditional fits are needed; Dowell & Jarratt, BIT 11 (1971) 168).
    */
-  private crossing(c: number, index: number, level: number, dir: 1 | -1): JobResult {
+  private crossing(c: number, index: number, level: number, dir: 1 | -1): Omit<JobResult, 'refits'> {
     const ctx = this.contexts[c];
     const m = ctx.problem.model;
     const P = m.nDense;
@@ -131,7 +173,7 @@ export class JobRunner {
   }
 
   /** μ = σ_A(μ) K with σ_A(μ)² = μ²/q_μ,A on the background-only Asimov dataset, by fixed-point iteration. */
-  private expectedLimit(c: number, n: number, cl: number): JobResult {
+  private expectedLimit(c: number, n: number, cl: number): Omit<JobResult, 'refits'> {
     const ctx = this.contexts[c];
     const m = ctx.problem.model;
     const K = expectedLimitFactor(n, 1 - cl);
@@ -149,7 +191,7 @@ export class JobRunner {
   }
 
   /** Solves CLs(μ) = 1 − cl for μ above max(μ̂, 0). */
-  private observedLimit(c: number, a: number, cl: number): JobResult {
+  private observedLimit(c: number, a: number, cl: number): Omit<JobResult, 'refits'> {
     const ctx = this.contexts[c];
     const asimov = this.contexts[a];
     const m = ctx.problem.model;
@@ -193,7 +235,10 @@ export class JobRunner {
   }
 }
 
-function failed(message: string | null): JobResult {
+/** The stop test of every refit: the main fit's (MODEL.md §5, §9). */
+const TOLERANCE = 1e-9;
+
+function failed(message: string | null): Omit<JobResult, 'refits'> {
   return { ok: false, value: null, nll: null, mu: null, message };
 }
 

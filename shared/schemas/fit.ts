@@ -87,6 +87,8 @@ export const gammaReportSchema = z.strictObject({
 
 export const clippedBinSchema = z.strictObject({ region: z.string(), bin: z.number().int(), process: z.string() });
 
+export const refitCountsSchema = z.strictObject({ warm: z.number().int(), newton: z.number().int(), cold: z.number().int(), failed: z.number().int() });
+
 export const convergenceSchema = z.strictObject({
   iterations: z.number().int(),
   /** Newton decrement gᵀH⁻¹g/2 at the last point; null if it could not be computed. */
@@ -100,6 +102,18 @@ export const convergenceSchema = z.strictObject({
   /** Why the fit failed (null when converged). */
   failure: z.string().nullable(),
   seconds: num,
+  /**
+   * Conditional fits (impacts, scan points, crossings, q0, limits) by the rung of the refit ladder
+   * that met the stop test (warm quasi-Newton, Newton from where it stood, cold fit), and those
+   * where every rung failed. Absent in results stored before the ladder existed.
+   */
+  refits: refitCountsSchema.optional(),
+  /**
+   * Where the minimum sits on a clip edge: whether the edge was kept held or leaving it reached
+   * a lower NLL ('released'), with the NLL of each (releasedNll null when no side lowered the
+   * NLL). Null or absent when no clip edge was met.
+   */
+  clipEdge: z.strictObject({ kept: z.enum(['held', 'released']), heldNll: num, releasedNll: nullableNum }).nullable().optional(),
 });
 
 export const correlationSchema = z.strictObject({
