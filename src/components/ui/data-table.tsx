@@ -81,7 +81,7 @@ const TINT = {
   open: 'bg-paper-sunk/40 [--row-tint:color-mix(in_oklab,var(--color-paper-sunk)_40%,transparent)]',
 } as const;
 
-const STICKY = 'sticky left-0 bg-paper-raised bg-[image:linear-gradient(var(--row-tint),var(--row-tint))] shadow-[inset_-1px_0_0_var(--color-rule)]';
+const STICKY = 'sticky left-0 bg-paper-raised bg-[image:linear-gradient(var(--row-tint),var(--row-tint))]';
 const TH = 'border-b border-rule-strong px-3 py-1.5 text-left text-xs font-semibold text-ink-soft';
 const TD = 'border-b border-rule px-3 py-1.5 align-top';
 
@@ -116,7 +116,7 @@ function HeaderCell<TFeatures extends TableFeatures, TData extends RowData>({ he
       </th>
     );
   return (
-    <th scope="col" aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : 'none'} className={className} title={meta.headerTitle}>
+    <th scope="col" aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : 'none'} className={className}>
       <button type="button" onClick={column.getToggleSortingHandler?.()} className="inline-flex items-center gap-1 rounded hover:text-ink" title={meta.headerTitle ?? 'Sort by this column'}>
         {content}
         <span aria-hidden className={`w-2.5 text-2xs ${sorted ? 'text-teal-ink' : 'text-rule-strong'}`}>
@@ -166,7 +166,9 @@ function visibleCells<TFeatures extends TableFeatures, TData extends RowData>(ro
 }
 
 function RowView<TFeatures extends TableFeatures, TData extends RowData>({ row, tone, clickable, onClick, rowHeader, sticky, cellClass }: RowViewProps<TFeatures, TData>) {
-  const tint = tone ? `${TINT[tone]} ${tone === 'current' ? '' : clickable ? TINT.clickable : TINT.hover}` : clickable ? TINT.clickable : TINT.hover;
+  // The current row keeps its tint under the pointer; the others take the hover tint.
+  const hover = tone === 'current' ? (clickable ? 'cursor-pointer' : '') : clickable ? TINT.clickable : TINT.hover;
+  const tint = `${tone ? TINT[tone] : ''} ${hover}`;
   return (
     <tr className={tint} aria-current={tone === 'current' ? 'true' : undefined} onClick={clickable ? (e) => onClick(row, e) : undefined}>
       {visibleCells(row).map((cell, i) => (
