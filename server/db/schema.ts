@@ -209,6 +209,9 @@ export const effects = pgTable(
     up: jsonb('up').$type<number | number[]>().notNull(),
     down: jsonb('down').$type<number | number[]>().notNull(),
     warnings: jsonb('warnings').$type<EffectWarning[]>().notNull().default([]),
+    /** per-bin variance of the up and down shifts of a shape effect, when the upload gave them */
+    upShiftVariance: jsonb('up_shift_variance').$type<number[] | null>(),
+    downShiftVariance: jsonb('down_shift_variance').$type<number[] | null>(),
     /** largest |variation − nominal| / nominal over the bins, in percent; stored when written (−1: not yet computed) */
     largestPct: doublePrecision('largest_pct').notNull().default(-1),
     uploadId: integer('upload_id').references(() => uploads.id, { onDelete: 'set null' }),

@@ -35,7 +35,7 @@ import { notifyAccepted, notifySentBack, notifySubmitted } from '../mail/notific
 import { readUpload } from '../uploads/upload';
 import { groupIdFor } from './groups.service';
 import { personal, withRoles } from './recipients.service';
-import { readVariationFile } from './variation-files';
+import { readVariationFile, shapePrecision } from './variation-files';
 
 
 /** What the caller may do with this entry: the permission table plus ownership and review state. */
@@ -132,7 +132,13 @@ function effectViews(ctx: AppContext, analysisId: number, entryId: number): Prom
     return effectRows.map(({ effect: e, upload }) => {
       const region = model.regionById.get(e.regionId)!;
       const process = model.processById.get(e.processId)!;
+      const template = model.template(region.key, process.key);
+      const precision =
+        e.kind === 'shape' && template
+          ? shapePrecision(template.nominal, e.up as number[], e.down as number[], { up: e.upShiftVariance, down: e.downShiftVariance }, template.variance)
+          : null;
       return {
+        precision,
         id: e.id,
         region: region.key,
         process: process.key,
@@ -285,12 +291,12 @@ export async function uploadVariations(
 
   const current = await effectsOf(ctx.db, entry.id);
   const idOf = (e: { region: string; process: string }) => ({ regionId: model.regions.get(e.region)!.id, processId: model.processes.get(e.process)!.id });
-  const replaces = (e: (typeof ready)[number]) => current.some((c) => c.kind === e.kind && c.regionId === idOf(e).regionId && c.processId === idOf(e).processId);
+  const replaces = (e: { kind: string; region: string; process: string }) => current.some((c) => c.kind === e.kind && c.regionId === idOf(e).regionId && c.processId === idOf(e).processId);
   const preview: VariationPreview = {
     saved: false,
     filename: upload.filename,
     sha256: upload.sha256,
-    effects: ready.map((e) => ({ ...e, replaces: replaces(e) })),
+    effects: ready.map(({ shiftVariance: _v, ...e }) => ({ ...e, replaces: replaces(e) })),
   };
   if (!save) return preview;
 
@@ -307,7 +313,18 @@ export async function uploadVariations(
       content: upload.text,
     });
     for (const e of ready)
-      await replaceEffect(tx, { entryId: entry.id, ...idOf(e), kind: e.kind, up: e.up, down: e.down, warnings: e.warnings, largestPct: largestEffectPct(e.kind, e.up, e.down, e.nominal), uploadId });
+      await replaceEffect(tx, {
+        entryId: entry.id,
+        ...idOf(e),
+        kind: e.kind,
+        up: e.up,
+        down: e.down,
+        upShiftVariance: e.shiftVariance.up,
+        downShiftVariance: e.shiftVariance.down,
+        warnings: e.warnings,
+        largestPct: largestEffectPct(e.kind, e.up, e.down, e.nominal),
+        uploadId,
+      });
     await updateEntryRow(tx, entry.id, { state: backToReview ? 'submitted' : entry.state, version: entry.version + 1, updatedAt: new Date() });
     const counts = (['shape', 'scale'] as const).map((k) => [k, ready.filter((e) => e.kind === k).length] as const).filter(([, n]) => n);
     const warnings = ready.reduce((n, e) => n + e.warnings.length, 0);

@@ -4,6 +4,7 @@ import { LIMITS } from '@shared/schemas/exchange';
 import type { ModelIndex } from '../db/model.repository';
 import { binCell, FileProblems, numberCell, readCsv } from '../uploads/csv';
 import { looksLikeJson, type UploadedFile } from '../uploads/upload';
+import { shiftPrecision, SIGNIFICANT_P, type ShiftPrecision } from '../variations/precision';
 
 /**
  * Variation files: CSV (columns region,process,kind,bin,up,down; docs/uploads.md) or JSON
@@ -20,6 +21,9 @@ export type RawEffect = {
   up: number | number[];
   /** null: one-sided, needs the mirror option */
   down: number | number[] | null;
+  /** per-bin variance of each shift (shape effects), when the file gives it */
+  upShiftVariance: number[] | null;
+  downShiftVariance: number[] | null;
   where: Where;
 };
 export type ReadyEffect = {
@@ -32,12 +36,17 @@ export type ReadyEffect = {
   edges: number[];
   warnings: VariationWarning[];
   transformed: string[];
+  /** the variance of each shift per bin, as given (after the options), or null */
+  shiftVariance: { up: number[] | null; down: number[] | null };
+  /** the shifts' errors and χ² tests (shape effects) */
+  precision: { up: ShiftPrecision; down: ShiftPrecision } | null;
 };
 
 const VARIATION_COLUMNS = ['region', 'process', 'kind', 'bin', 'up', 'down'];
+const SHIFT_VARIANCE_COLUMNS = ['up_shift_variance', 'down_shift_variance'] as const;
 
 function readCsvVariations(file: UploadedFile, model: ModelIndex, problems: FileProblems): RawEffect[] {
-  const { rows } = readCsv(file.text, file.filename, { required: VARIATION_COLUMNS }, problems);
+  const { rows } = readCsv(file.text, file.filename, { required: VARIATION_COLUMNS, optional: [...SHIFT_VARIANCE_COLUMNS] }, problems);
   const groups = new Map<string, { region: string; process: string; kind: 'scale' | 'shape'; rows: typeof rows }>();
   for (const row of rows) {
     const region = row.get('region');
@@ -75,7 +84,8 @@ function readCsvVariations(file: UploadedFile, model: ModelIndex, problems: File
       const up = numberCell(problems, first, 'up', { positive: true, min: 1 / LIMITS.ratio, max: LIMITS.ratio });
       const down = numberCell(problems, first, 'down', { positive: true, min: 1 / LIMITS.ratio, max: LIMITS.ratio });
       if (first.get('up') === '') problems.at(first.line, 'up', 'is empty: give the ratio at +1σ (e.g. 1.04)');
-      if (up !== null) effects.push({ region: g.region, process: g.process, kind: 'scale', up, down, where: { line: first.line, column: null } });
+      for (const column of SHIFT_VARIANCE_COLUMNS) if (first.get(column)) problems.at(first.line, column, 'leave it empty in a scale row: a shift variance is given per bin of a shape effect');
+      if (up !== null) effects.push({ region: g.region, process: g.process, kind: 'scale', up, down, upShiftVariance: null, downShiftVariance: null, where: { line: first.line, column: null } });
       continue;
     }
     const bins = model.bins(g.region);
@@ -83,6 +93,8 @@ function readCsvVariations(file: UploadedFile, model: ModelIndex, problems: File
     const down = new Array<number>(bins).fill(NaN);
     const seen = new Map<number, number>();
     let withDown = 0;
+    const variances = { up_shift_variance: new Array<number>(bins).fill(NaN), down_shift_variance: new Array<number>(bins).fill(NaN) };
+    const given = { up_shift_variance: 0, down_shift_variance: 0 };
     for (const r of g.rows) {
       const bin = binCell(problems, r, { region: g.region, bins, of: `region "${g.region}", process "${g.process}"`, seen, emptyHint: `is empty: a shape row gives one bin (1 to ${bins})` });
       if (bin === null) continue;
@@ -92,14 +104,32 @@ function readCsvVariations(file: UploadedFile, model: ModelIndex, problems: File
       if (r.get('down') !== '') withDown++;
       if (u !== null) up[bin - 1] = u;
       if (d !== null) down[bin - 1] = d;
+      for (const column of SHIFT_VARIANCE_COLUMNS) {
+        if (!r.get(column)) continue;
+        given[column]++;
+        const v = numberCell(problems, r, column, { min: 0, max: LIMITS.variance });
+        if (v !== null) variances[column][bin - 1] = v;
+      }
     }
+    for (const column of SHIFT_VARIANCE_COLUMNS)
+      if (given[column] > 0 && given[column] < g.rows.length)
+        problems.at(first.line, column, `is given in ${given[column]} of ${g.rows.length} rows of region "${g.region}", process "${g.process}": give it in every row, or in none`);
     const missing = [...Array(bins).keys()].map((b) => b + 1).filter((b) => !seen.has(b));
     if (missing.length && seen.size > 0) {
         problems.at(null, null, `region "${g.region}" has ${bins} bins but the file gives ${seen.size} for process "${g.process}" (missing bin ${missing.slice(0, 10).join(', ')}${missing.length > 10 ? ', …' : ''})`);
     }
     if (withDown > 0 && withDown < g.rows.length)
       problems.at(first.line, 'down', `is given in ${withDown} of ${g.rows.length} rows of region "${g.region}", process "${g.process}": give it in every row, or in none for a one-sided variation`);
-    effects.push({ region: g.region, process: g.process, kind: 'shape', up, down: withDown ? down : null, where: { line: first.line, column: null } });
+    effects.push({
+      region: g.region,
+      process: g.process,
+      kind: 'shape',
+      up,
+      down: withDown ? down : null,
+      upShiftVariance: given.up_shift_variance ? variances.up_shift_variance : null,
+      downShiftVariance: given.down_shift_variance ? variances.down_shift_variance : null,
+      where: { line: first.line, column: null },
+    });
   }
   return effects;
 }
@@ -125,12 +155,14 @@ function readJsonVariations(file: UploadedFile, model: ModelIndex, problems: Fil
     if (!model.template(e.region, e.process)) return problems.at(null, `effects.${i}.process`, `region "${e.region}" has no template for process "${e.process}" to vary`);
     if (e.kind === 'shape') {
       const bins = model.bins(e.region);
-      for (const side of ['up', 'down'] as const) {
+      for (const side of ['up', 'down', 'up_shift_variance', 'down_shift_variance'] as const) {
         const values = e[side];
         if (values && values.length !== bins) problems.at(null, `effects.${i}.${side}`, `has ${values.length} values but region "${e.region}" has ${bins} bins`);
       }
+      effects.push({ region: e.region, process: e.process, kind: e.kind, up: e.up, down: e.down ?? null, upShiftVariance: e.up_shift_variance ?? null, downShiftVariance: e.down_shift_variance ?? null, where });
+      return;
     }
-    effects.push({ region: e.region, process: e.process, kind: e.kind, up: e.up, down: e.down ?? null, where });
+    effects.push({ region: e.region, process: e.process, kind: e.kind, up: e.up, down: e.down ?? null, upShiftVariance: null, downShiftVariance: null, where });
   });
   return effects;
 }
@@ -139,11 +171,14 @@ const mirrorShape = (nominal: number[], up: number[]) => nominal.map((n, b) => M
 
 /** Applies the options and computes each effect's warnings. */
 function prepare(raw: RawEffect, options: Required<VariationOptions>, model: ModelIndex, problems: FileProblems): ReadyEffect | null {
-  const nominal = model.template(raw.region, raw.process)!.nominal;
+  const template = model.template(raw.region, raw.process)!;
+  const nominal = template.nominal;
   const edges = model.regions.get(raw.region)!.edges;
   const transformed: string[] = [];
   let { kind, up } = raw;
   let down = raw.down;
+  let upVar = raw.upShiftVariance;
+  let downVar = raw.downShiftVariance;
   if (down === null) {
     if (!options.mirror) {
       problems.at(raw.where.line, raw.where.line ? 'down' : `${raw.where.column}.down`, `no down variation for region "${raw.region}", process "${raw.process}": give it, or choose the option to mirror one-sided variations`);
@@ -151,6 +186,8 @@ function prepare(raw: RawEffect, options: Required<VariationOptions>, model: Mod
     }
     // mirror: a scale ratio κ becomes 1/κ (symmetric in log space); a template ν+ becomes 2ν0 − ν+ (clipped at 0)
     down = kind === 'scale' ? 1 / (up as number) : mirrorShape(nominal, up as number[]);
+    // the mirrored shift is the up shift negated: the same variance
+    downVar = upVar;
     transformed.push(kind === 'scale' ? 'down mirrored as 1/up' : 'down mirrored as 2 × nominal − up');
   } else if (options.symmetrise) {
     if (kind === 'scale') {
@@ -162,6 +199,9 @@ function prepare(raw: RawEffect, options: Required<VariationOptions>, model: Mod
       const d = down as number[];
       up = nominal.map((n, b) => n + (u[b] - d[b]) / 2);
       down = nominal.map((n, b) => Math.max(0, n - (u[b] - d[b]) / 2));
+      // half the difference of the shifts, taken as independent
+      if (upVar && downVar) upVar = downVar = upVar.map((v, b) => (v + downVar![b]) / 4);
+      else upVar = downVar = null;
     }
     transformed.push('symmetrised: nominal ± half the up−down difference');
   }
@@ -172,10 +212,34 @@ function prepare(raw: RawEffect, options: Required<VariationOptions>, model: Mod
       up = flat.up;
       down = flat.down;
       transformed.push(`flat shape stored as a scale effect (×${flat.up.toFixed(4)} / ×${flat.down.toFixed(4)})`);
+      upVar = downVar = null;
     }
   }
   const warnings = kind === 'scale' ? scaleWarnings(up as number, down as number) : shapeWarnings(nominal, up as number[], down as number[]);
-  return { region: raw.region, process: raw.process, kind, up, down, nominal, edges, warnings, transformed };
+  const precision = kind === 'shape' ? shapePrecision(nominal, up as number[], down as number[], { up: upVar, down: downVar }, template.variance) : null;
+  // a flat shape is already flagged as one (better as a scale effect)
+  if (precision && !warnings.some((w) => w.code === 'flat-shape')) warnings.push(...noiseWarnings(precision));
+  return { region: raw.region, process: raw.process, kind, up, down, nominal, edges, warnings, transformed, shiftVariance: { up: upVar, down: downVar }, precision };
+}
+
+/** The precision of both shifts of a shape effect. */
+export function shapePrecision(nominal: number[], up: number[], down: number[], shiftVariance: { up: number[] | null; down: number[] | null }, templateVariance: number[] | null) {
+  return { up: shiftPrecision(nominal, up, shiftVariance.up, templateVariance), down: shiftPrecision(nominal, down, shiftVariance.down, templateVariance) };
+}
+
+/** A shape that neither side makes significant over its noise, against a flat shape: a candidate for smoothing or a scale effect. */
+export function noiseWarnings(precision: { up: ShiftPrecision; down: ShiftPrecision }): VariationWarning[] {
+  const { up, down } = precision;
+  if (!up.againstFlat || !down.againstFlat) return [];
+  if (up.againstFlat.p <= SIGNIFICANT_P || down.againstFlat.p <= SIGNIFICANT_P) return [];
+  const estimated = up.source === 'estimated' || down.source === 'estimated' ? ' (errors estimated from the template variance, as the file gives no shift variance)' : '';
+  const f = (c: { chi2: number; dof: number; p: number }) => `χ² ${c.chi2.toFixed(1)} for ${c.dof} dof, p = ${c.p.toFixed(2)}`;
+  return [
+    {
+      code: 'within-noise',
+      message: `The shape is not significant over its statistical noise against a flat shift (up: ${f(up.againstFlat)}; down: ${f(down.againstFlat)})${estimated}: smooth it, or enter it as a scale effect.`,
+    },
+  ];
 }
 
 /** Reads, checks and transforms a variation file; throws (422, every problem named) if anything is wrong. */

@@ -105,6 +105,18 @@ export type ReviewAction = z.input<typeof reviewActionSchema>;
 export const variationWarningSchema = z.object({ code: z.string(), message: z.string(), bins: z.array(z.number()).optional() });
 export type VariationWarningView = z.infer<typeof variationWarningSchema>;
 
+const chiSquareSchema = z.object({ chi2: z.number(), dof: z.number(), p: z.number() });
+/** The error of a shift per bin and its χ² against zero and against a flat shift (server/variations/precision.ts). */
+export const shiftPrecisionSchema = z.object({
+  /** σ of the shift per bin; null where no error can be given */
+  errors: z.array(z.number().nullable()),
+  /** given in the file, estimated from the template variance (×2), or none */
+  source: z.enum(['given', 'estimated', 'none']),
+  againstZero: chiSquareSchema.nullable(),
+  againstFlat: chiSquareSchema.extend({ relativeShift: z.number() }).nullable(),
+});
+export type ShiftPrecisionView = z.infer<typeof shiftPrecisionSchema>;
+
 /** A variation as the screens draw it: with the nominal and binning it is relative to. */
 const effectShownSchema = z.object({
   region: z.string(),
@@ -116,6 +128,8 @@ const effectShownSchema = z.object({
   nominal: z.array(z.number()),
   edges: z.array(z.number()),
   warnings: z.array(variationWarningSchema),
+  /** shape effects: each shift's statistical precision */
+  precision: z.object({ up: shiftPrecisionSchema, down: shiftPrecisionSchema }).nullable(),
 });
 
 export const effectViewSchema = effectShownSchema.extend({
@@ -195,7 +209,16 @@ export const variationJsonSchema = z.strictObject({
     .array(
       z.discriminatedUnion('kind', [
         z.strictObject({ region: keySchema, process: keySchema, kind: z.literal('scale'), up: ratioNumber, down: ratioNumber.optional() }),
-        z.strictObject({ region: keySchema, process: keySchema, kind: z.literal('shape'), up: z.array(yieldNumber), down: z.array(yieldNumber).optional() }),
+        z.strictObject({
+          region: keySchema,
+          process: keySchema,
+          kind: z.literal('shape'),
+          up: z.array(yieldNumber),
+          down: z.array(yieldNumber).optional(),
+          /** per bin, the variance of the shift (for the same events reweighted, Σ(w_varied − w_nominal)²) */
+          up_shift_variance: z.array(varianceNumber).optional(),
+          down_shift_variance: z.array(varianceNumber).optional(),
+        }),
       ]),
     )
     .min(1, 'needs at least one effect'),

@@ -28,6 +28,7 @@ const preview = (saved: boolean): VariationPreview => ({
       edges: [1000, 1100, 1200],
       warnings: [{ code: 'same-side', message: 'Up and down lie on the same side of the nominal in bin 2.', bins: [1] }],
       transformed: ['mirrored'],
+      precision: null,
       replaces: true,
     },
   ],

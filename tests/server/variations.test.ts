@@ -216,4 +216,71 @@ describe('uploading variations', () => {
     expect(res.body.error.message).toMatch(/owner or an analyst/);
     expect(await dbSnapshot(t)).toBe(before);
   });
+
+  describe('the statistical precision of each shift', () => {
+    const VHEADER = 'region,process,kind,bin,up,down,up_shift_variance,down_shift_variance';
+    const withVariances = (f: (b: number) => (number | string)[]) => [VHEADER, ...Array.from({ length: 8 }, (_, i) => `CR-shower,continuum,shape,${i + 1},${f(i + 1).join(',')}`)].join('\n') + '\n';
+    const nominalOf = async () => (await contact.get('/api/analyses/vireon-search/model')).body.templates.find((x: { region: string; process: string }) => x.region === 'CR-shower' && x.process === 'continuum').nominal as number[];
+
+    it('takes per-bin shift variances, and previews each shift with its error and its χ² against zero and a flat shift', async () => {
+      const nominal = await nominalOf();
+      // a clear slope: +10 % in bin 1 down to −10 % in bin 8, each shift known to 1 % of the nominal
+      const rel = (b: number) => 0.1 - (0.2 * (b - 1)) / 7;
+      const file = withVariances((b) => [nominal[b - 1] * (1 + rel(b)), nominal[b - 1] * (1 - rel(b)), (0.01 * nominal[b - 1]) ** 2, (0.01 * nominal[b - 1]) ** 2]);
+      const res = await contact.upload(`${ENTRY}/variations`, { name: 'v.csv', content: file });
+      expect(res.status).toBe(200);
+      const p = res.body.effects[0].precision;
+      expect(p.up.source).toBe('given');
+      p.up.errors.forEach((e: number, b: number) => expect(e).toBeCloseTo(0.01 * nominal[b], 9));
+      // against zero: Σ (rel_b / 0.01)² = 10⁴ Σ rel_b², 8 dof (hand-computed from the shifts above)
+      const expected = Array.from({ length: 8 }, (_, i) => (rel(i + 1) / 0.01) ** 2).reduce((a, b) => a + b, 0);
+      expect(p.up.againstZero.chi2).toBeCloseTo(expected, 6);
+      expect(p.up.againstFlat.p).toBeLessThan(1e-6);
+      expect(res.body.effects[0].warnings.map((w: { code: string }) => w.code)).not.toContain('within-noise');
+    });
+
+    it('flags a shape that is not significant over its noise as a candidate for smoothing or a scale effect', async () => {
+      const nominal = await nominalOf();
+      // ±0.5 % wiggles on a 3 % scale shift, each shift known to 2 %: the shape is noise
+      const res = await contact.upload(`${ENTRY}/variations`, {
+        name: 'v.csv',
+        content: withVariances((b) => [nominal[b - 1] * (1.03 + (b % 2 ? 0.005 : -0.005)), nominal[b - 1] * (0.97 - (b % 2 ? 0.005 : -0.005)), (0.02 * nominal[b - 1]) ** 2, (0.02 * nominal[b - 1]) ** 2]),
+      });
+      expect(res.status).toBe(200);
+      const warning = res.body.effects[0].warnings.find((w: { code: string }) => w.code === 'within-noise');
+      expect(warning.message).toMatch(/not significant over its statistical noise against a flat shift .*: smooth it, or enter it as a scale effect/);
+      expect(res.body.effects[0].precision.up.againstFlat.relativeShift).toBeCloseTo(0.03, 3);
+    });
+
+    it('estimates the errors from the template variance when the file gives none, and says so', async () => {
+      const res = await contact.upload(`${ENTRY}/variations`, { name: 'v.csv', content: csv(...shapeRows()) });
+      expect(res.status).toBe(200);
+      expect(res.body.effects[0].precision.up.source).toBe('estimated');
+    });
+
+    it('keeps the variances with a saved effect and shows them on the entry', async () => {
+      const nominal = await nominalOf();
+      const save = await contact.upload(`${ENTRY}/variations?save=1`, { name: 'v.csv', content: withVariances((b) => [nominal[b - 1] * 1.1, nominal[b - 1] * 0.9, 4, 9]) });
+      expect(save.status).toBe(201);
+      const entry = (await contact.get(ENTRY)).body;
+      const shape = entry.effects.find((e: { kind: string; region: string }) => e.kind === 'shape' && e.region === 'CR-shower');
+      expect(shape.precision.up.errors).toEqual(Array(8).fill(2));
+      expect(shape.precision.down.errors).toEqual(Array(8).fill(3));
+    });
+
+    it('refuses a negative variance, a variance in some rows only, and one on a scale row, naming row and column', async () => {
+      await refused({ name: 'v.csv', content: withVariances((b) => [100, 90, b === 3 ? -1 : 1, 1]) }, /Row 4, column "up_shift_variance": .*-1/);
+      await refused({ name: 'v.csv', content: withVariances((b) => [100, 90, b === 3 ? '' : 1, 1]) }, /column "up_shift_variance": is given in 7 of 8 rows/);
+      await refused({ name: 'v.csv', content: [VHEADER, 'CR-shower,showerpair,scale,,1.1,0.9,0.01,'].join('\n') + '\n' }, /Row 2, column "up_shift_variance": leave it empty in a scale row/);
+    });
+
+    it('reads the variances from the JSON form too, and refuses ones of the wrong length', async () => {
+      const nominal = await nominalOf();
+      const effect = { region: 'CR-shower', process: 'continuum', kind: 'shape', up: nominal.map((n) => n * 1.1), down: nominal.map((n) => n * 0.9), up_shift_variance: Array(8).fill(1), down_shift_variance: Array(8).fill(1) };
+      const ok = await contact.upload(`${ENTRY}/variations`, { name: 'v.json', content: JSON.stringify({ effects: [effect] }) });
+      expect(ok.status).toBe(200);
+      expect(ok.body.effects[0].precision.down.errors).toEqual(Array(8).fill(1));
+      await refused({ name: 'v.json', content: JSON.stringify({ effects: [{ ...effect, down_shift_variance: [1, 2] }] }) }, /effects\.0\.down_shift_variance.*has 2 values but region "CR-shower" has 8 bins/);
+    });
+  });
 });
