@@ -93,3 +93,7 @@ export async function replaceEffect(db: DbOrTx, values: typeof effects.$inferIns
 export async function deleteEffectRow(db: DbOrTx, id: number) {
   await db.delete(effects).where(eq(effects.id, id));
 }
+
+export async function updateEffectRow(db: DbOrTx, id: number, values: Partial<typeof effects.$inferInsert>) {
+  await db.update(effects).set(values).where(eq(effects.id, id));
+}

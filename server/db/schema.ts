@@ -212,6 +212,8 @@ export const effects = pgTable(
     /** per-bin variance of the up and down shifts of a shape effect, when the upload gave them */
     upShiftVariance: jsonb('up_shift_variance').$type<number[] | null>(),
     downShiftVariance: jsonb('down_shift_variance').$type<number[] | null>(),
+    /** how a shape effect was smoothed (method and parameters) and its variation as uploaded, or null */
+    smoothing: jsonb('smoothing').$type<{ method: string; params: Record<string, number>; original: { up: number[]; down: number[] }; by: string; at: string } | null>(),
     /** largest |variation − nominal| / nominal over the bins, in percent; stored when written (−1: not yet computed) */
     largestPct: doublePrecision('largest_pct').notNull().default(-1),
     uploadId: integer('upload_id').references(() => uploads.id, { onDelete: 'set null' }),

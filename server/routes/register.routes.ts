@@ -2,6 +2,7 @@ import type { AppContext } from '../context';
 import { accessOf, type authorizer } from '../auth/authorize';
 import { singleFile } from '../uploads/upload';
 import { createEntry, deleteEffect, getEntryDetail, reviewEntry, updateEntry, uploadVariations } from '../services/entries.service';
+import { smoothEffect } from '../services/smoothing.service';
 import { createGroup, deleteGroup, groupsView, moveEntry, renameGroup } from '../services/groups.service';
 import { baseUrl, wantsSave } from './base-url';
 import { idParam, route, type ApiRoute } from './route';
@@ -32,6 +33,9 @@ export const registerRoutes = (ctx: AppContext, auth: ReturnType<typeof authoriz
     }),
     route('delete', '/api/analyses/:slug/entries/:key/effects/:effectId', auth.may('analysis.read'), async (req, res) => {
       res.json(await deleteEffect(ctx, accessOf(req), key(req), effectIdParam.parse(req.params.effectId), baseUrl(ctx, req)));
+    }),
+    route('post', '/api/analyses/:slug/entries/:key/effects/:effectId/smooth', auth.may('variation.upload'), async (req, res) => {
+      res.json(await smoothEffect(ctx, accessOf(req), key(req), effectIdParam.parse(req.params.effectId), req.body, baseUrl(ctx, req)));
     }),
     route('put', '/api/analyses/:slug/entries/:key/group', auth.may('groups.edit'), async (req, res) => {
       res.json(await moveEntry(ctx, accessOf(req), key(req), req.body));

@@ -60,7 +60,7 @@ export function entryPermissions(access: Access, entry: Pick<EntryRow, 'ownerId'
  * Rights before state: whether the caller could edit this entry in some state (owner or analyst).
  * A caller without the right hears 403; one with it, whose entry is in the wrong state, hears 409.
  */
-function assertMayEdit(access: Access, entry: Pick<EntryRow, 'ownerId' | 'state'>, what: 'edit' | 'upload', message: string) {
+export function assertMayEdit(access: Access, entry: Pick<EntryRow, 'ownerId' | 'state'>, what: 'edit' | 'upload', message: string) {
   if (!entryPermissions(access, { ...entry, state: 'draft' })[what]) throw forbidden(message);
   if (entry.state === 'retired') throw conflict(`This entry is retired; reopen it before ${what === 'edit' ? 'changing it' : 'uploading'}.`);
 }
@@ -139,6 +139,7 @@ function effectViews(ctx: AppContext, analysisId: number, entryId: number): Prom
           : null;
       return {
         precision,
+        smoothing: e.smoothing ? { method: e.smoothing.method, params: e.smoothing.params, by: e.smoothing.by, at: e.smoothing.at } : null,
         id: e.id,
         region: region.key,
         process: process.key,

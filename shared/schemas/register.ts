@@ -130,6 +130,8 @@ const effectShownSchema = z.object({
   warnings: z.array(variationWarningSchema),
   /** shape effects: each shift's statistical precision */
   precision: z.object({ up: shiftPrecisionSchema, down: shiftPrecisionSchema }).nullable(),
+  /** how it was smoothed, if it was (the variation as uploaded is kept) */
+  smoothing: z.object({ method: z.string(), params: z.record(z.string(), z.number()), by: z.string(), at: z.string() }).nullable().optional(),
 });
 
 export const effectViewSchema = effectShownSchema.extend({
@@ -137,6 +139,30 @@ export const effectViewSchema = effectShownSchema.extend({
   upload: z.object({ id: z.number(), filename: z.string(), sha256: z.string(), createdAt: z.string() }).nullable(),
 });
 export type EffectView = z.infer<typeof effectViewSchema>;
+
+/**
+ * POST …/entries/:key/effects/:effectId/smooth: smooth a shape effect's relative shift in its
+ * region, previewed (save false) or saved; `restore` brings back the variation as uploaded.
+ * Running medians need at least three filled bins; the local regression's window is a number of
+ * bins, at least 3 and at most the filled bins of the region.
+ */
+export const smoothRequestSchema = z.discriminatedUnion('method', [
+  z.strictObject({ method: z.literal('median-hanning'), save: z.boolean().default(false) }),
+  z.strictObject({ method: z.literal('local-regression'), window: z.number().int().min(3).max(1000), iterations: z.number().int().min(0).max(10).default(2), save: z.boolean().default(false) }),
+  z.strictObject({ method: z.literal('restore'), save: z.boolean().default(false) }),
+]);
+export type SmoothRequest = z.input<typeof smoothRequestSchema>;
+
+export const smoothPreviewSchema = z.object({
+  saved: z.boolean(),
+  method: z.string(),
+  nominal: z.array(z.number()),
+  edges: z.array(z.number()),
+  before: z.object({ up: z.array(z.number()), down: z.array(z.number()) }),
+  after: z.object({ up: z.array(z.number()), down: z.array(z.number()) }),
+  warnings: z.array(variationWarningSchema),
+});
+export type SmoothPreview = z.infer<typeof smoothPreviewSchema>;
 
 export const revisionSchema = z.object({
   id: z.number(),

@@ -232,6 +232,18 @@ export const MATRIX: Record<string, Row> = {
     },
     expect: editors(200),
   },
+  'POST /api/analyses/:slug/entries/:key/effects/:effectId/smooth': {
+    call: async (t) => {
+      const region = (await ids(t)).region;
+      const [e] = await t.database.db.insert(entries).values({ analysisId: (await ids(t)).analysisId, key: `smooth_${(created += 1)}`, label: 'Smoothing fixture', ownerId: (await ids(t)).juno }).returning();
+      const [effect] = await t.database.db
+        .insert(effects)
+        .values({ entryId: e.id, regionId: region, processId: (await ids(t)).process, kind: 'shape', up: Array(8).fill(110), down: Array(8).fill(90) })
+        .returning();
+      return { path: `${A}/entries/${e.key}/effects/${effect.id}/smooth`, body: { method: 'median-hanning' } };
+    },
+    expect: editors(200),
+  },
   'PUT /api/analyses/:slug/entries/:key/group': { call: async (t) => ({ path: `${A}/entries/${(await freshEntry(t)).key}/group`, body: { groupId: null } }), expect: analystOnly(200) },
   'GET /api/analyses/:slug/groups': { call: () => ({ path: `${A}/groups` }), expect: members(200) },
   'POST /api/analyses/:slug/groups': { call: (_t, who, n) => ({ path: `${A}/groups`, body: { name: `group ${who} ${n}` } }), expect: analystOnly(201) },
