@@ -3,6 +3,7 @@ import { accessOf, type authorizer } from '../auth/authorize';
 import { singleFile } from '../uploads/upload';
 import { createEntry, deleteEffect, getEntryDetail, reviewEntry, updateEntry, uploadVariations } from '../services/entries.service';
 import { smoothEffect } from '../services/smoothing.service';
+import { uploadReplicas } from '../services/replicas.service';
 import { createGroup, deleteGroup, groupsView, moveEntry, renameGroup } from '../services/groups.service';
 import { baseUrl, wantsSave } from './base-url';
 import { idParam, route, type ApiRoute } from './route';
@@ -30,6 +31,10 @@ export const registerRoutes = (ctx: AppContext, auth: ReturnType<typeof authoriz
     route('post', '/api/analyses/:slug/entries/:key/variations', auth.may('variation.upload'), file, async (req, res) => {
       const save = wantsSave(req);
       res.status(save ? 201 : 200).json(await uploadVariations(ctx, accessOf(req), key(req), req.file, req.body?.options, save, baseUrl(ctx, req)));
+    }),
+    route('post', '/api/analyses/:slug/entries/:key/replicas', auth.may('variation.upload'), file, async (req, res) => {
+      const save = wantsSave(req);
+      res.status(save ? 201 : 200).json(await uploadReplicas(ctx, accessOf(req), key(req), req.file, req.body?.options, save, baseUrl(ctx, req)));
     }),
     route('delete', '/api/analyses/:slug/entries/:key/effects/:effectId', auth.may('analysis.read'), async (req, res) => {
       res.json(await deleteEffect(ctx, accessOf(req), key(req), effectIdParam.parse(req.params.effectId), baseUrl(ctx, req)));

@@ -282,3 +282,41 @@ export const outboxMessageSchema = z.object({
   analysis: z.string().nullable(),
 });
 export type OutboxMessage = z.infer<typeof outboxMessageSchema>;
+
+// ---- replica sets: one systematic from N alternative templates
+
+/** The options of a replica-set upload (form field "options", JSON). */
+export const replicaOptionsSchema = z.strictObject({
+  /** envelope of the alternatives (default); nominal ± their standard deviation; or their principal components */
+  method: z.enum(['envelope', 'spread', 'components']).default('envelope'),
+  /** components: keep the leading ones until they hold this fraction of the variance */
+  keep: z.number().gt(0).max(1).default(0.95),
+});
+export type ReplicaOptions = z.input<typeof replicaOptionsSchema>;
+
+export const replicaPreviewSchema = z.object({
+  saved: z.boolean(),
+  filename: z.string(),
+  sha256: z.string(),
+  method: z.enum(['envelope', 'spread', 'components']),
+  region: z.string(),
+  process: z.string(),
+  templates: z.array(z.string()),
+  nominal: z.array(z.number()),
+  edges: z.array(z.number()),
+  /** the effects written: on this entry, and for components 2…k on entries of their own */
+  effects: z.array(
+    z.object({
+      entry: z.string(),
+      created: z.boolean(),
+      up: z.array(z.number()),
+      down: z.array(z.number()),
+      /** components: the share of the replicas' variance */
+      fraction: z.number().nullable(),
+      warnings: z.array(variationWarningSchema),
+    }),
+  ),
+  /** components: the share of the variance the kept components hold */
+  kept: z.number().nullable(),
+});
+export type ReplicaPreview = z.infer<typeof replicaPreviewSchema>;

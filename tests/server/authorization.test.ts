@@ -232,6 +232,13 @@ export const MATRIX: Record<string, Row> = {
     },
     expect: editors(200),
   },
+  'POST /api/analyses/:slug/entries/:key/replicas': {
+    call: async (t) => ({
+      path: `${A}/entries/${(await freshEntry(t)).key}/replicas`,
+      file: { name: 'r.csv', content: ['region,process,template,bin,yield', ...[1, 2].flatMap((k) => Array.from({ length: 8 }, (_, b) => `CR-shower,continuum,alt${k},${b + 1},${100 + k}`))].join('\n') + '\n' },
+    }),
+    expect: editors(200),
+  },
   'POST /api/analyses/:slug/entries/:key/effects/:effectId/smooth': {
     call: async (t) => {
       const region = (await ids(t)).region;
