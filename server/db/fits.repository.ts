@@ -4,6 +4,7 @@ import { and, desc, eq, getTableColumns, sql } from 'drizzle-orm';
 import type { FitResult } from '@shared/schemas/fit';
 import type { FitPart, FitPartName } from '@shared/schemas/fits';
 import type { Db } from './client';
+import type { DbOrTx } from './revisions.repository';
 import { fitParts, fits, modelVersions, users } from './schema';
 
 export type FitRow = Omit<typeof fits.$inferSelect, 'result'>;
@@ -29,7 +30,7 @@ export async function findFitRow(db: Db, analysisId: number, id: number) {
   return row;
 }
 
-export async function insertFit(db: Db, values: typeof fits.$inferInsert) {
+export async function insertFit(db: DbOrTx, values: typeof fits.$inferInsert) {
   const [fit] = await db.insert(fits).values(values).returning();
   return fit;
 }
@@ -98,3 +99,10 @@ export async function versionModel(db: Db, versionId: number) {
   const [version] = await db.select({ model: modelVersions.model }).from(modelVersions).where(eq(modelVersions.id, versionId));
   return version?.model;
 }
+
+/** The fits of a review set, in the order they were made. */
+export const fitRowsOfSet = (db: Db, analysisId: number, setId: number) => fitRows(db, analysisId).where(and(eq(fits.analysisId, analysisId), eq(fits.reviewSetId, setId))).orderBy(fits.id);
+
+/** The checks run from a parameter's diagnosis in a fit. */
+export const checksOf = (db: Db, analysisId: number, fitId: number, parameter: string) =>
+  fitRows(db, analysisId).where(and(eq(fits.analysisId, analysisId), eq(fits.checkOfFitId, fitId), eq(fits.checkOfParameter, parameter))).orderBy(fits.id);

@@ -12,6 +12,7 @@ import {
   pgTable,
   primaryKey,
   serial,
+  type AnyPgColumn,
   text,
   timestamp,
   uniqueIndex,
@@ -269,6 +270,21 @@ export const modelVersions = pgTable(
   (t) => [uniqueIndex('model_versions_analysis_number').on(t.analysisId, t.number)],
 );
 
+/**
+ * A review set: the standard family of linked fits of one model version that a convener reads side
+ * by side (docs/likelihood.md §9; services/review-sets.service.ts).
+ */
+export const reviewSets = pgTable('review_sets', {
+  id: serial('id').primaryKey(),
+  analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+  modelVersionId: integer('model_version_id').notNull().references(() => modelVersions.id),
+  label: varchar('label', { length: 200 }).notNull().default(''),
+  /** blinded or not when it was made: which members it has depends on it */
+  blinded: boolean('blinded').notNull(),
+  createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+  createdAt: createdAt(),
+});
+
 export const fits = pgTable(
   'fits',
   {
@@ -277,6 +293,12 @@ export const fits = pgTable(
     modelVersionId: integer('model_version_id').notNull().references(() => modelVersions.id),
     label: varchar('label', { length: 200 }).notNull().default(''),
     options: jsonb('options').notNull(),
+    /** The review set it belongs to, and its part in it (e.g. "control-only", "held:jets"). */
+    reviewSetId: integer('review_set_id').references((): AnyPgColumn => reviewSets.id, { onDelete: 'set null' }),
+    variant: varchar('variant', { length: 80 }),
+    /** A check run from a parameter's diagnosis: the fit and parameter it checks (e.g. its decorrelation). */
+    checkOfFitId: integer('check_of_fit_id').references((): AnyPgColumn => fits.id, { onDelete: 'set null' }),
+    checkOfParameter: varchar('check_of_parameter', { length: 128 }),
     /** Regions that enter its likelihood (by its version's roles and its options), fixed at start. */
     regionsInFit: text('regions_in_fit').array().notNull().default(sql`'{}'::text[]`),
     state: fitState('state').notNull().default('queued'),

@@ -28,3 +28,8 @@ export async function insertNextVersion(tx: DbOrTx, values: Omit<typeof modelVer
     .returning();
   return v;
 }
+
+export async function findVersionById(db: Db, id: number) {
+  const [v] = await db.select().from(modelVersions).where(eq(modelVersions.id, id));
+  return v;
+}

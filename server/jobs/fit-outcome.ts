@@ -1,7 +1,7 @@
 import { gzipSync } from 'node:zlib';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import { fitResultSchema, type FitOptions, type FitResult } from '@shared/schemas/fit';
-import { fitModel, FitCancelledError, FitInputError, type FitControl } from '../fit';
+import { fitModel, FitCancelledError, FitInputError, hideMu, type FitControl } from '../fit';
 
 /** The parts of a result stored apart from the rest (db/fits.repository.ts). */
 export const LARGE_PARTS = ['correlation', 'information'] as const;
@@ -28,9 +28,11 @@ export type JobOutcome = { ok: true; stored: StorableResult } | { ok: false; kin
  */
 export async function fitOutcome(model: ExchangeModel, options: FitOptions, control: FitControl): Promise<JobOutcome> {
   try {
-    const result = await fitModel(model, options, control);
-    const checked = fitResultSchema.safeParse(result);
+    const computed = await fitModel(model, options, control);
+    const checked = fitResultSchema.safeParse(computed);
     if (!checked.success) return { ok: false, kind: 'numeric', message: notFinite(checked.error.issues) };
+    // a fit with μ hidden keeps nothing computed from μ̂ or from signal-region data, from here on
+    const result = options.hiddenMu ? hideMu(computed) : computed;
     return { ok: true, stored: storable(result) };
   } catch (e) {
     if (e instanceof FitCancelledError) throw e;

@@ -5,10 +5,12 @@ import { cancelFit, compareFits, exportFit, getFitEncoded, listFits, startFit } 
 import { freezeVersion, listVersions } from '../services/versions.service';
 import { fitPartNames, type FitPartName } from '@shared/schemas/fits';
 import { sendEncoded } from './encoded';
+import { getReviewSet, listReviewSets, startReviewSet } from '../services/review-sets.service';
 import { idParam, route, type ApiRoute } from './route';
 
 const fitIdParam = idParam('fit id');
 const otherIdParam = idParam('other fit id');
+const setIdParam = idParam('review set id');
 const partParam = z.enum(fitPartNames as [FitPartName, ...FitPartName[]], { error: `the part in the address must be one of ${fitPartNames.join(', ')}` });
 
 export const fitsRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>): ApiRoute[] => [
@@ -38,6 +40,15 @@ export const fitsRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>)
   }),
   route('get', '/api/analyses/:slug/fits/:fitId/compare/:otherId', auth.may('analysis.read'), async (req, res) => {
     res.json(await compareFits(ctx, accessOf(req), fitIdParam.parse(req.params.fitId), otherIdParam.parse(req.params.otherId)));
+  }),
+  route('get', '/api/analyses/:slug/review-sets', auth.may('analysis.read'), async (req, res) => {
+    res.json(await listReviewSets(ctx, accessOf(req)));
+  }),
+  route('post', '/api/analyses/:slug/review-sets', auth.may('fit.run'), async (req, res) => {
+    res.status(202).json(await startReviewSet(ctx, accessOf(req), req.body));
+  }),
+  route('get', '/api/analyses/:slug/review-sets/:setId', auth.may('analysis.read'), async (req, res) => {
+    res.json(await getReviewSet(ctx, accessOf(req), setIdParam.parse(req.params.setId)));
   }),
   route('get', '/api/analyses/:slug/fits/:fitId/export', auth.may('analysis.read'), async (req, res) => {
     const out = await exportFit(ctx, accessOf(req), fitIdParam.parse(req.params.fitId), req.query.format, req.query.table);

@@ -1,7 +1,7 @@
 import type { AppContext } from '../context';
 import { accessOf, type authorizer } from '../auth/authorize';
 import { blindingLog, changeBlindingSettings, decideUnblinding, requestUnblinding } from '../services/blinding.service';
-import { diagnoseInFit } from '../services/diagnosis.service';
+import { diagnoseInFit, runDiagnosisChecks } from '../services/diagnosis.service';
 import { answerQuestion, getQuestion, listQuestions, raiseQuestion, stepQuestion } from '../services/questions.service';
 import { baseUrl } from './base-url';
 import { idParam, route, type ApiRoute } from './route';
@@ -13,6 +13,9 @@ const questionIdParam = idParam('question id');
 export const reviewRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>): ApiRoute[] => [
   route('get', '/api/analyses/:slug/fits/:fitId/diagnosis/:parameter', auth.may('analysis.read'), async (req, res) => {
     res.json(await diagnoseInFit(ctx, accessOf(req), fitIdParam.parse(req.params.fitId), String(req.params.parameter)));
+  }),
+  route('post', '/api/analyses/:slug/fits/:fitId/diagnosis/:parameter/checks', auth.may('fit.run'), async (req, res) => {
+    res.status(202).json(await runDiagnosisChecks(ctx, accessOf(req), fitIdParam.parse(req.params.fitId), String(req.params.parameter), req.body));
   }),
 
   route('get', '/api/analyses/:slug/questions', auth.may('analysis.read'), async (req, res) => {

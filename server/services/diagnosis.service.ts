@@ -1,6 +1,6 @@
 import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
-import { fitOptionsSchema } from '@shared/schemas/fit';
-import type { Diagnosis, DiagnosisClaim, DiagnosisRegion } from '@shared/schemas/review';
+import { fitOptionsSchema, type FitOptions } from '@shared/schemas/fit';
+import { diagnosisChecksSchema, type Diagnosis, type DiagnosisClaim, type DiagnosisRegion } from '@shared/schemas/review';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { entryWithOwner } from '../db/entries.repository';
@@ -8,8 +8,9 @@ import { conflict, notFound } from '../errors';
 import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
 import { recentResults } from '../cache/results';
 import { isWithheld, withheldResultMessage } from './blinding.service';
-import { findFit, summaryOf, withheldReadBy } from './fits.service';
-import { storedHead, storedPart, versionModel } from '../db/fits.repository';
+import { checkedFit, findFit, summaryOf, withheldReadBy } from './fits.service';
+import { checksOf, insertFit, storedHead, storedPart, versionModel } from '../db/fits.repository';
+import { findVersionById } from '../db/versions.repository';
 
 /**
  * The diagnosis of one nuisance parameter in one succeeded fit: the engine's numbers
@@ -42,9 +43,13 @@ export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: numb
   if (numbers.failure) throw conflict(`The diagnosis of ${parameter} could not be made: ${numbers.failure}.`);
   const entry = await entryWithOwner(ctx.db, access.analysis.id, parameter);
   const p = result.parameters.find((x) => x.name === parameter)!;
-  const total = numbers.information.total;
   const observed = result.data.dataset === 'observed';
-  const regions: DiagnosisRegion[] = numbers.regions.map((r) => {
+  // a fit with μ hidden shows nothing of the signal regions, whose expected yields carry μ̂
+  const hidesMu = result.options.hiddenMu === true;
+  let total = numbers.information.total;
+  const shown = numbers.regions.filter((r) => !hidesMu || (r.role !== 'signal' && !isWithheld(access.analysis, { key: r.region, role: r.role })));
+  if (hidesMu) total = numbers.information.constraint + shown.reduce((s, r) => s + r.information, 0);
+  const regions: DiagnosisRegion[] = shown.map((r) => {
     const spec = specs.find((x) => x.key === r.region)!;
     const hidden = observed && isWithheld(access.analysis, { key: r.region, role: r.role });
     return {
@@ -92,7 +97,7 @@ export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: numb
     constraint: report.constraint,
     overConstrained: report.overConstrained,
     threshold: result.options.overConstraintThreshold,
-    information: { total, constraint: numbers.information.constraint, width: numbers.information.width },
+    information: { total, constraint: numbers.information.constraint, width: hidesMu ? 1 / Math.sqrt(total) : numbers.information.width },
     regions,
     correlations,
     scan: numbers.scan,
@@ -115,7 +120,47 @@ export async function diagnoseInFit(ctx: AppContext, access: Access, fitId: numb
     correlations,
     summary: summarise(parameter, base),
     warnings: result.convergence.warnings,
+    checks: (await checksOf(ctx.db, access.analysis.id, fitId, parameter)).map((r) => ({ ...summaryOf(access.analysis, r.fit, r.version, r.by), variant: r.fit.variant })),
   };
+}
+
+/**
+ * One click from the diagnosis: the fit again with the parameter split by region (is a control
+ * region's constraint carried into the signal regions?), and with its strongest partner held at
+ * its best fit (is the constraint shared?). Both link back to this fit and parameter.
+ */
+export async function runDiagnosisChecks(ctx: AppContext, access: Access, fitId: number, parameter: string, body: unknown): Promise<Diagnosis['checks']> {
+  const { checks } = diagnosisChecksSchema.parse(body ?? {});
+  const row = await findFit(ctx, access, fitId);
+  if (row.fit.state !== 'succeeded') throw conflict(`Fit ${fitId} has not succeeded: there is nothing to check.`);
+  const head = (await storedHead(ctx.db, fitId))!;
+  const report = head.nuisance.find((n) => n.name === parameter);
+  if (!report) throw notFound(`Nuisance parameter "${parameter}" in fit ${fitId}`);
+  const version = await findVersionById(ctx.db, row.fit.modelVersionId);
+  const base = fitOptionsSchema.parse(row.fit.options);
+  const planned: { variant: string; label: string; options: FitOptions }[] = [];
+  if (checks.includes('decorrelate')) planned.push({ variant: `decorrelate:${parameter}`, label: `${parameter} split by region`, options: { ...base, decorrelate: [{ parameter, by: 'region' }] } });
+  if (checks.includes('partner')) {
+    const { part: correlation } = await storedPart(ctx.db, fitId, 'correlation');
+    const i = correlation ? correlation.names.indexOf(parameter) : -1;
+    const n = correlation?.names.length ?? 0;
+    let partner: string | null = null;
+    let best = 0;
+    for (let j = 0; correlation && i >= 0 && j < n; j++) {
+      const rho = Math.abs(correlation.values[i * n + j]);
+      if (j !== i && correlation.names[j] !== 'mu' && rho > best) [partner, best] = [correlation.names[j], rho];
+    }
+    if (!partner) throw conflict(`${parameter} has no correlated partner in fit ${fitId} to hold.`);
+    planned.push({ variant: `partner:${partner}`, label: `${parameter} with ${partner} held`, options: { ...base, hold: [...base.hold, { parameter: partner, value: 'best' }] } });
+  }
+  const rows = planned.map((p) => ({ ...p, row: checkedFit(access, version, p.options) }));
+  const ids = await ctx.db.transaction(async (tx) => {
+    const out: number[] = [];
+    for (const p of rows) out.push((await insertFit(tx, { ...p.row, label: p.label, variant: p.variant, checkOfFitId: fitId, checkOfParameter: parameter })).id);
+    return out;
+  });
+  for (const id of ids) await ctx.fits.enqueue(id);
+  return (await checksOf(ctx.db, access.analysis.id, fitId, parameter)).map((r) => ({ ...summaryOf(access.analysis, r.fit, r.version, r.by), variant: r.fit.variant }));
 }
 
 const pct = (x: number) => `${Math.round(x * 100)} %`;

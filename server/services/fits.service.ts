@@ -1,14 +1,14 @@
 import Papa from 'papaparse';
-import { fitOptionsSchema, type FitResult } from '@shared/schemas/fit';
+import { fitOptionsSchema, type FitOptions, type FitResult } from '@shared/schemas/fit';
 import { exportTableSchema, startFitSchema, type FitComparison, type FitPartName, type FitResultHead, type FitSummary } from '@shared/schemas/fits';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { findFitRow, insertFit, listFitRows, storedHead, storedPart, storedPartBytes, storedResult, type FitRow, type StoredHead } from '../db/fits.repository';
-import { conflict, notFound } from '../errors';
+import { badRequest, conflict, notFound } from '../errors';
 import { recentResults } from '../cache/results';
 import { encodeJson, storedEncoding, type Encoded } from '../cache/encoded-json';
-import { regionEntersFit } from '../fit';
+import { regionEntersFit, variantIssues } from '../fit';
 import { isWithheld, withheldInFit, withheldResultMessage, type BlindingRule } from './blinding.service';
 import { findVersion } from './versions.service';
 import { cancelJob, fitsTable } from '../jobs/job-rows';
@@ -21,7 +21,9 @@ import { untilStopped } from '../jobs/local-runner';
  * none of its numbers leave the server.
  */
 export function withheldReadBy(analysis: BlindingRule, fit: Pick<FitRow, 'options' | 'regionsInFit'>) {
-  if (analysis.blinding === 'unblinded' || (fit.options as { dataset?: string }).dataset !== 'observed') return [];
+  const options = fit.options as { dataset?: string; hiddenMu?: boolean };
+  // a hidden-μ fit keeps nothing computed from μ̂ or from signal-region data (fit/variants.ts)
+  if (analysis.blinding === 'unblinded' || options.dataset !== 'observed' || options.hiddenMu) return [];
   return fit.regionsInFit.filter((key) => analysis.blindedRegions.includes(key));
 }
 
@@ -114,20 +116,38 @@ async function encodeFit(ctx: AppContext, access: Access, id: number, part: 'hea
 export async function startFit(ctx: AppContext, access: Access, body: unknown): Promise<FitSummary> {
   const input = startFitSchema.parse(body);
   const version = await findVersion(ctx, access.analysis.id, input.version);
-  const model = version.model as ExchangeModel;
-  const options = input.options;
-  const included = withheldInFit(access.analysis, model.regions, options);
-  if (included.length)
-    throw conflict(
-      `This analysis is blinded: a fit to observed data may not include a blinded region (${included.join(', ')}; a region that has been a signal region since blinding began stays blinded whatever role a version gives it). Fit the control regions only, or an Asimov dataset, until a convener approves unblinding.`,
-    );
-  const unknown = options.excludeRegions.filter((k) => !model.regions.some((r) => r.key === k));
-  if (unknown.length) throw conflict(`Model version ${version.number} has no region ${unknown.map((k) => `"${k}"`).join(', ')} to leave out.`);
-  const enters = regionEntersFit(options);
-  const regionsInFit = model.regions.filter((r) => enters(r.key, r.role)).map((r) => r.key);
-  const fit = await insertFit(ctx.db, { analysisId: access.analysis.id, modelVersionId: version.id, label: input.label, options, regionsInFit, createdById: access.userId });
+  const fit = await insertFit(ctx.db, { ...checkedFit(access, version, input.options), label: input.label });
   await ctx.fits.enqueue(fit.id);
   return summaryOf(access.analysis, fit, version.number, access.userName);
+}
+
+/**
+ * A fit's row before it is stored, or a refusal that names the field: an option that names a
+ * parameter, group or systematic the version does not have, every parameter held, a region to
+ * leave out that does not exist, and while the analysis is blinded an observed fit of a blinded
+ * region (a hidden-μ fit excepted: nothing computed from μ̂ or from those data is kept) or
+ * expected numbers built on the background fitted in the signal regions.
+ */
+export function checkedFit(access: Access, version: { id: number; number: number; model: unknown }, options: FitOptions) {
+  const model = version.model as ExchangeModel;
+  const issues = variantIssues(model, options).map((i) => ({ path: ['options', ...i.path], message: i.message }));
+  const unknown = options.excludeRegions.filter((k) => !model.regions.some((r) => r.key === k));
+  if (unknown.length) issues.push({ path: ['options', 'excludeRegions'], message: `model version ${version.number} has no region ${unknown.map((k) => `"${k}"`).join(', ')} to leave out` });
+  if (options.hiddenMu && options.dataset !== 'observed') issues.push({ path: ['options', 'hiddenMu'], message: 'μ is hidden in a fit to observed data only' });
+  if (options.hiddenMu && options.controlOnly) issues.push({ path: ['options', 'hiddenMu'], message: 'a fit of the control regions alone holds μ: there is nothing to hide' });
+  const blinded = access.analysis.blinding !== 'unblinded';
+  if (blinded && options.expectedFrom === 'background')
+    issues.push({ path: ['options', 'expectedFrom'], message: 'the background fitted in the signal regions may serve as the basis of expected numbers only once the analysis is unblinded; use "control" meanwhile' });
+  const included = options.hiddenMu ? [] : withheldInFit(access.analysis, model.regions, options);
+  if (included.length)
+    issues.push({
+      path: ['options', 'dataset'],
+      message: `this analysis is blinded: a fit to observed data may not include a blinded region (${included.join(', ')}; a region that has been a signal region since blinding began stays blinded whatever role a version gives it). Fit the control regions only, an Asimov dataset, or hide μ, until a convener approves unblinding`,
+    });
+  if (issues.length) throw badRequest(`The fit cannot be started: ${issues.map((i) => i.message).join('; ')}.`, issues);
+  const enters = regionEntersFit(options);
+  const regionsInFit = model.regions.filter((r) => enters(r.key, r.role)).map((r) => r.key);
+  return { analysisId: access.analysis.id, modelVersionId: version.id, options, regionsInFit, createdById: access.userId };
 }
 
 export async function cancelFit(ctx: AppContext, access: Access, id: number): Promise<FitSummary> {
@@ -193,6 +213,8 @@ export async function exportFit(ctx: AppContext, access: Access, id: number, for
   }
   const which = exportTableSchema.parse(table);
   const { result } = await convergedResult(ctx, access, id);
+  if (!result.summary && (which === 'summary' || which === 'parameters'))
+    throw conflict(`Fit ${id} hides μ: its ${which} table would show what it hides. Its pulls (nuisance) and correlations are there.`);
   const s = result.summary!;
   const tables: Record<typeof which, () => string> = {
     summary: () =>

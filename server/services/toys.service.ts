@@ -59,6 +59,7 @@ export async function startToys(ctx: AppContext, access: Access, fitId: number, 
   if (fit.fit.state !== 'succeeded') throw conflict(`Fit ${fitId} has not converged (${fit.fit.state}); toys are drawn from a converged fit only.`);
   const withheld = withheldReadBy(access.analysis, fit.fit);
   if (withheld.length) throw conflict(withheldResultMessage(withheld));
+  if ((fit.fit.options as { hiddenMu?: boolean }).hiddenMu) throw conflict(`Fit ${fitId} hides μ: pseudo-experiments drawn at its best fit would show it.`);
   if (input.hypothesis.kind === 'fixed-mu' && fit.fit.headline === null) throw conflict(`Fit ${fitId} has no headline μ̂; toys at a chosen μ need a fit of μ.`);
   const row = await insertToyRun(ctx.db, {
     analysisId: access.analysis.id,

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { variantOptionsShape, variantReportSchema } from './variants';
 
 /**
  * Fit options and the fit result: what the engine accepts and returns, what the API serves
@@ -26,6 +27,8 @@ export const fitOptionsSchema = z.strictObject({
   expected: z.boolean().default(true),
   /** Constraint (σ̂/1) below which a nuisance parameter is flagged as over-constrained. */
   overConstraintThreshold: z.number().gt(0).lt(1).default(0.5),
+  /** The variant of the fit: held parameters, statistics only, decorrelation, expected basis, hidden μ, breakdown (variants.ts). */
+  ...variantOptionsShape,
 });
 export type FitOptions = z.infer<typeof fitOptionsSchema>;
 export type FitOptionsInput = z.input<typeof fitOptionsSchema>;
@@ -214,5 +217,7 @@ export const fitResultSchema = z.strictObject({
   information: z.array(informationSchema),
   yields: z.strictObject({ prefit: z.array(regionYieldsSchema), postfit: z.array(regionYieldsSchema).nullable() }),
   data: z.strictObject({ dataset: z.enum(['observed', 'asimov']), asimovMu: nullableNum, regions: z.array(dataRegionSchema) }),
+  /** What variant this fit is (absent in results stored before variants existed: the nominal fit). */
+  variant: variantReportSchema.optional(),
 });
 export type FitResult = z.infer<typeof fitResultSchema>;

@@ -89,8 +89,13 @@ export const diagnosisSchema = z.object({
   summary: z.array(diagnosisClaimSchema),
   /** Convergence warnings of the fit, shown beside every number of the panel. */
   warnings: z.array(z.string()),
+  /** Checks run from this panel (its decorrelation by region, its strongest partner held), newest last. */
+  checks: z.array(fitSummarySchema.extend({ variant: z.string().nullable() })),
 });
 export type Diagnosis = z.infer<typeof diagnosisSchema>;
+
+/** POST …/fits/:fitId/diagnosis/:parameter/checks: what the convener asks to run. */
+export const diagnosisChecksSchema = z.strictObject({ checks: z.array(z.enum(['decorrelate', 'partner'])).min(1).default(['decorrelate', 'partner']) });
 
 // ---- questions on parameters
 

@@ -58,6 +58,7 @@ export function diagnosis(overrides: Partial<Diagnosis> = {}): Diagnosis {
       { text: 'It is anti-correlated with k_bkg (ρ = −0.62).', evidence: 'correlations' },
     ],
     warnings: ['jes_flavour has a tiny effect.'],
+    checks: [],
     ...overrides,
   };
 }

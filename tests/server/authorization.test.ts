@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { hashPassword } from '../../server/auth/passwords';
-import { analyses, effects, entries, fits, groups, invitations, memberships, modelVersions, processes, questions, regions, toyRuns, users } from '../../server/db/schema';
+import { analyses, effects, entries, fits, groups, invitations, memberships, modelVersions, processes, questions, regions, reviewSets, toyRuns, users } from '../../server/db/schema';
 import { Client, createTestApp, dbSnapshot, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
 
 /**
@@ -136,6 +136,15 @@ async function queuedFit(t: TestApp) {
   const [v] = await t.database.db.select().from(modelVersions).where(and(eq(modelVersions.analysisId, analysisId), eq(modelVersions.number, version)));
   const [f] = await t.database.db.insert(fits).values({ analysisId, modelVersionId: v.id, options: {} }).returning();
   return f.id;
+}
+/** a review set of the fit fixture's version whose one member waits in the database */
+async function queuedReviewSet(t: TestApp) {
+  const { version } = await convergedFit(t);
+  const { analysisId } = await ids(t);
+  const [v] = await t.database.db.select().from(modelVersions).where(and(eq(modelVersions.analysisId, analysisId), eq(modelVersions.number, version)));
+  const [set] = await t.database.db.insert(reviewSets).values({ analysisId, modelVersionId: v.id, blinded: true }).returning();
+  await t.database.db.insert(fits).values({ analysisId, modelVersionId: v.id, options: {}, reviewSetId: set.id, variant: 'control-only' });
+  return set.id;
 }
 /** a toy run of the fit fixture waiting in the database (not in this process's queue) */
 async function queuedToys(t: TestApp) {
@@ -282,6 +291,13 @@ export const MATRIX: Record<string, Row> = {
   },
   'GET /api/analyses/:slug/toys/:toyId': { call: async (t) => ({ path: `${A}/toys/${await queuedToys(t)}` }), expect: members(200) },
   'POST /api/analyses/:slug/toys/:toyId/cancel': { call: async (t) => ({ path: `${A}/toys/${await queuedToys(t)}/cancel` }), expect: analystOnly(200) },
+  'GET /api/analyses/:slug/review-sets': { call: () => ({ path: `${A}/review-sets` }), expect: members(200) },
+  'POST /api/analyses/:slug/review-sets': { call: async (t) => ({ path: `${A}/review-sets`, body: { version: (await convergedFit(t)).version } }), expect: analystOnly(202) },
+  'GET /api/analyses/:slug/review-sets/:setId': { call: async (t) => ({ path: `${A}/review-sets/${await queuedReviewSet(t)}` }), expect: members(200) },
+  'POST /api/analyses/:slug/fits/:fitId/diagnosis/:parameter/checks': {
+    call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/diagnosis/flare_escale/checks`, body: { checks: ['decorrelate'] } }),
+    expect: analystOnly(202),
+  },
   'GET /api/analyses/:slug/fits/:fitId/export': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/export?format=csv&table=summary` }), expect: members(200) },
 
   // the review loop: diagnosis, questions, blinding

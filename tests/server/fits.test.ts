@@ -68,10 +68,11 @@ describe('model versions and fit runs', () => {
     await analyst.send('post', `${V}/versions`, {});
     const before = (await analyst.get(`${V}/fits`)).body.length;
     const res = await analyst.send('post', `${V}/fits`, { version: 1, options: { dataset: 'observed' } });
-    expect(res.status).toBe(409);
+    expect(res.status).toBe(400);
     expect(res.body.error.message).toMatch(/blinded: a fit to observed data may not include a blinded region \(SR-core, SR-wide;/);
+    expect(res.body.error.issues[0].path).toEqual(['options', 'dataset']);
     const excludedOne = await analyst.send('post', `${V}/fits`, { version: 1, options: { dataset: 'observed', excludeRegions: ['SR-core'] } });
-    expect(excludedOne.status).toBe(409);
+    expect(excludedOne.status).toBe(400);
     expect((await analyst.get(`${V}/fits`)).body.length).toBe(before);
   });
 
