@@ -76,4 +76,29 @@ describe('migrations of data stored by earlier versions', () => {
       rmSync(before, { recursive: true, force: true });
     }
   });
+
+  it('renames the template-statistics parameters of results stored before to tstat:<region>:<bin>', async () => {
+    const client = new PGlite();
+    const db = drizzle(client, { schema });
+    const before = migrationsUpTo('0013_review_sets');
+    try {
+      await migrate(db, { migrationsFolder: before });
+      await client.exec(`
+        insert into analyses (slug, name) values ('a', 'A');
+        insert into model_versions (analysis_id, number, model, sha256) values (1, 1, '{"regions": []}', 'x');`);
+      const result = {
+        gammas: { list: [{ name: 'gamma_CR_low_12', region: 'CR_low', bin: 12 }, { name: 'gamma_SR-core_0', region: 'SR-core', bin: 0 }] },
+        convergence: { parametersAtBound: ['gamma_CR_low_12'], warnings: ['gamma_CR_low_12 is at a bound of its range; gamma_SR-core_0 too.'] },
+      };
+      await client.query('insert into fits (analysis_id, model_version_id, options, state, result) values (1, 1, $1, $2, $3)', [{}, 'succeeded', result]);
+      await migrate(db, { migrationsFolder: path.resolve('drizzle') });
+      const { rows } = await client.query<{ result: typeof result }>('select result from fits');
+      expect(rows[0].result.gammas.list.map((g) => g.name)).toEqual(['tstat:CR_low:12', 'tstat:SR-core:0']);
+      expect(rows[0].result.convergence).toEqual({ parametersAtBound: ['tstat:CR_low:12'], warnings: ['tstat:CR_low:12 is at a bound of its range; tstat:SR-core:0 too.'] });
+      expect(JSON.stringify(rows[0].result)).not.toMatch(/gamma_/);
+    } finally {
+      await client.close();
+      rmSync(before, { recursive: true, force: true });
+    }
+  });
 });
