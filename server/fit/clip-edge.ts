@@ -3,7 +3,7 @@ import { cholesky, choleskySolve } from './cholesky';
 import { computeDerivatives } from './derivatives';
 import { evenPart } from './interpolation';
 import { negativeLogLikelihood } from './likelihood';
-import { edgeSampleBins, factorDamped, freeSet, newtonLoop, project, roundingOf, templateSize, type MinimiseOptions, type NewtonResult, type Scratch } from './newton';
+import { chooseEliminated, edgeSampleBins, factorDamped, freeSet, newtonLoop, project, roundingOf, templateSize, type MinimiseOptions, type NewtonResult, type Scratch } from './newton';
 
 /**
  * The clip edge (MODEL.md §3): ν_sb = max(0, A_sb) × … is not smooth where a template A_sb
@@ -43,10 +43,20 @@ export function resolveEdge(problem: FitProblem, start: NewtonResult, scratch: S
   let report: EdgeReport | null = null;
   for (let round = 0; round < ROUNDS; round++) {
     negativeLogLikelihood(m, problem.data, problem.gammaHeld, best.phi, best.gamma, scratch.ws, problem.globals);
-    const bins = edgeSampleBins(problem, scratch.ws);
+    const bins = best.edgeBins && best.edgeBins.length > 0 ? best.edgeBins : edgeSampleBins(problem, scratch.ws);
     if (bins.length === 0) break;
     const held = holdEdge(problem, best.phi, best.gamma, bins, scratch, options);
-    if (held.ok && held.nll <= best.nll + roundingOf(problem, scratch.ws, best.nll)) {
+    if (!held.ok) {
+      // Not a minimum on the edge: Newton goes on from there, stopping on an edge only where the
+      // line search fails; a second stop there is kept only once it can be held.
+      if (round > 0) return { ...best, status: 'failed', message: 'the fit could not settle on a clip edge', edge: report };
+      const on = newtonLoop(problem, best.phi, best.gamma, scratch, { ...options, watchKinks: false });
+      const iterations = best.iterations + on.iterations;
+      if (on.status !== 'edge') return { ...on, iterations, edge: report };
+      best = { ...on, iterations };
+      continue;
+    }
+    if (held.nll <= best.nll + roundingOf(problem, scratch.ws, best.nll)) {
       best = { ...best, phi: held.phi, gamma: held.gamma, nll: held.nll, decrement: held.decrement, iterations: best.iterations + held.iterations };
     }
     report = { kept: 'held', bins, heldNll: best.nll, releasedNll: null };
@@ -135,12 +145,12 @@ function holdEdge(problem: FitProblem, phi0: Float64Array, gamma0: Float64Array,
   let lambda = new Float64Array(k);
   const trueNll = () => negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws, problem.globals);
   const fail = (iterations: number): Held => ({ ok: false, phi, gamma, nll: trueNll(), decrement: NaN, iterations, lambda });
-  for (let g = 0; g < G; g++) eliminate[g] = gammaHeld[g] ? 0 : 1;
 
   let F = negativeLogLikelihood(off.model, data, gammaHeld, phi, gamma, ws, globals);
   if (!Number.isFinite(F)) return fail(0);
   for (let it = 0; it < 50; it++) {
     edgeConstraints(m, bins, phi, c, J, J2);
+    chooseEliminated(off, phi, gamma, scratch);
     computeDerivatives(off.model, data, phi, gamma, eliminate, ws, d, true, false, globals);
     const free = freeSet(off, phi, d.g);
     const n = free.length;

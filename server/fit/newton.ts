@@ -41,6 +41,8 @@ export function createScratch(problem: FitProblem): Scratch {
 export interface MinimiseOptions {
   tolerance?: number;
   maxIterations?: number;
+  /** Stop on a kink the steps keep crossing (default true; clip-edge.ts turns it off to go on when holding failed). */
+  watchKinks?: boolean;
   /** Checked between iterations; an aborted signal ends the loop early (status 'cancelled'). */
   signal?: AbortSignal;
 }
@@ -57,6 +59,8 @@ export interface NewtonResult {
   decrement: number;
   damped: boolean;
   message: string | null;
+  /** With status 'edge': the sample-bins that sit on the clip edge or kept crossing it. */
+  edgeBins?: { sample: number; bin: number }[];
 }
 
 const BOUND_EPS = 1e-12;
@@ -74,7 +78,10 @@ export function newtonLoop(problem: FitProblem, phi0: Float64Array, gamma0: Floa
 
   let nll = negativeLogLikelihood(m, data, gammaHeld, phi, gamma, ws, globals);
   let damped = false;
+  const crossing = new CrossingWatch(problem);
+  crossing.record(ws);
   const result = (status: NewtonStatus, it: number, dec: number, message: string | null): NewtonResult => ({ status, phi, gamma, nll, iterations: it, decrement: dec, damped, message });
+  const edge = (it: number, dec: number): NewtonResult => ({ ...result('edge', it, dec, null), edgeBins: crossing.bins(ws) });
   if (!Number.isFinite(nll)) return result('failed', 0, NaN, 'the starting point gives zero expected events in a bin with observed events');
 
   const deltaPhi = new Float64Array(P);
@@ -89,19 +96,7 @@ export function newtonLoop(problem: FitProblem, phi0: Float64Array, gamma0: Floa
   };
   for (let it = 0; ; it++) {
     if (options.signal?.aborted) return result('cancelled', it, lastDec, 'cancelled');
-    // γ held outside the fit or active at a bound are not eliminated.
-    let anyAtBound = false;
-    for (let g = 0; g < G; g++) if (!gammaHeld[g] && (gamma[g] <= BOUND_EPS || gamma[g] >= 10 - BOUND_EPS)) anyAtBound = true;
-    if (anyAtBound) computeDerivatives(m, data, phi, gamma, eliminate.fill(0), ws, d, false, false, globals);
-    for (let g = 0; g < G; g++) {
-      if (gammaHeld[g]) {
-        eliminate[g] = 0;
-        continue;
-      }
-      const atLow = anyAtBound && gamma[g] <= BOUND_EPS && d.gGamma[g] > 0;
-      const atHigh = anyAtBound && gamma[g] >= 10 - BOUND_EPS && d.gGamma[g] < 0;
-      eliminate[g] = atLow || atHigh ? 0 : 1;
-    }
+    chooseEliminated(problem, phi, gamma, scratch);
     computeDerivatives(m, data, phi, gamma, eliminate, ws, d, true, false, globals);
 
     // Free dense set: not held, not pressed against a bound.
@@ -165,13 +160,97 @@ export function newtonLoop(problem: FitProblem, phi0: Float64Array, gamma0: Floa
     if (!accepted) {
       // Restore the yields at the current point for the caller.
       nll = negativeLogLikelihood(m, data, gammaHeld, phi, gamma, ws, globals);
-      if (edgeSampleBins(problem, ws).length > 0) return result('edge', it, dec, null);
+      if (edgeSampleBins(problem, ws).length > 0) return edge(it, dec);
       // A decrease below the rounding of the NLL cannot be seen: the stop is then as good as
       // the arithmetic allows, and is reported so. Anywhere above that, the line search failed.
       if (dec < roundingOf(problem, ws, nll)) return result('converged', it, dec, `the decrement stopped at ${dec.toExponential(2)}, limited by the rounding of the NLL`);
       return result('failed', it, dec, `the line search could not lower the NLL (decrement ${dec.toExponential(2)})`);
     }
-    if (it >= 40 && edgeSampleBins(problem, ws).length > 0) return result('edge', it + 1, dec, null);
+    if (it >= 40 && edgeSampleBins(problem, ws).length > 0) return edge(it + 1, dec);
+    // Steps that keep taking templates across the clip without the quadratic convergence of
+    // Newton are circling a kink: those templates are the edge.
+    if (options.watchKinks !== false && crossing.stalled(ws, dec)) return edge(it + 1, dec);
+  }
+}
+
+/**
+ * Watches the side of the clip every template with a shape effect is on, step by step. The
+ * loop is stalled on a kink when, three steps running near the minimum (decrement below 1e-2),
+ * some template changed side while the decrement fell by less than a factor 4 (Newton's own
+ * rate is quadratic).
+ */
+class CrossingWatch {
+  private side: Uint8Array;
+  private crossed = new Set<number>();
+  private slow = 0;
+  private lastDec = Infinity;
+  constructor(private readonly problem: FitProblem) {
+    this.side = new Uint8Array(problem.model.nominal.length);
+  }
+
+  /** Remembers the side of every template at the yields in ws; returns the sample-bins that changed side. */
+  record(ws: Workspace): number[] {
+    const m = this.problem.model;
+    const changed: number[] = [];
+    for (let s = 0; s < m.nSamples; s++) {
+      if (!m.sampleInFit[s] || m.shapePtr[s] === m.shapePtr[s + 1]) continue;
+      const sb0 = m.sampleBinStart[s];
+      for (let j = 0; j < m.sampleNBins[s]; j++) {
+        const on = ws.A[sb0 + j] > 0 ? 1 : 2;
+        if (this.side[sb0 + j] !== 0 && this.side[sb0 + j] !== on) changed.push(sb0 + j);
+        this.side[sb0 + j] = on;
+      }
+    }
+    return changed;
+  }
+
+  stalled(ws: Workspace, dec: number): boolean {
+    const changed = this.record(ws);
+    // Far from the minimum Newton is not quadratic yet (damped, line search cutting the steps).
+    const slow = changed.length > 0 && dec < 1e-2 && dec > 0.25 * this.lastDec;
+    this.lastDec = dec;
+    if (!slow) {
+      this.slow = 0;
+      this.crossed.clear();
+      return false;
+    }
+    for (const sb of changed) this.crossed.add(sb);
+    return ++this.slow >= 3;
+  }
+
+  /** The edge: templates on it now, and those that kept crossing. */
+  bins(ws: Workspace): { sample: number; bin: number }[] {
+    const m = this.problem.model;
+    const out = edgeSampleBins(this.problem, ws);
+    const seen = new Set(out.map(({ sample, bin }) => m.sampleBinStart[sample] + bin));
+    for (const sb of this.crossed) {
+      if (seen.has(sb)) continue;
+      let s = 0;
+      while (m.sampleBinStart[s + 1] !== undefined && m.sampleBinStart[s + 1] <= sb && s + 1 < m.nSamples) s++;
+      out.push({ sample: s, bin: sb - m.sampleBinStart[s] });
+    }
+    return out;
+  }
+}
+
+/**
+ * The γ eliminated in the Schur complement (scratch.eliminate): every free γ except those held
+ * at a bound by a gradient pointing outwards (active set), which stay where they are for the step.
+ */
+export function chooseEliminated(problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch): void {
+  const { model: m, data, gammaHeld, globals } = problem;
+  const { ws, d, eliminate } = scratch;
+  let anyAtBound = false;
+  for (let g = 0; g < m.nGamma; g++) if (!gammaHeld[g] && (gamma[g] <= BOUND_EPS || gamma[g] >= 10 - BOUND_EPS)) anyAtBound = true;
+  if (anyAtBound) computeDerivatives(m, data, phi, gamma, eliminate.fill(0), ws, d, false, false, globals);
+  for (let g = 0; g < m.nGamma; g++) {
+    if (gammaHeld[g]) {
+      eliminate[g] = 0;
+      continue;
+    }
+    const atLow = anyAtBound && gamma[g] <= BOUND_EPS && d.gGamma[g] > 0;
+    const atHigh = anyAtBound && gamma[g] >= 10 - BOUND_EPS && d.gGamma[g] < 0;
+    eliminate[g] = atLow || atHigh ? 0 : 1;
   }
 }
 
