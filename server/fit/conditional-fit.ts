@@ -2,7 +2,8 @@ import type { FitProblem } from './compiled-model';
 import type { FitContext } from './covariance';
 import { minimise, type Scratch } from './minimiser';
 import { startPoint } from './problem';
-import { warmRefit } from './warm-refit';
+import { mirroredStarts, movedBistable } from './basins';
+import { outOfBounds, profiledNll, warmRefit } from './warm-refit';
 
 /**
  * A conditional fit: one parameter fixed at a value, all else refitted (impacts, scans, q0,
@@ -61,14 +62,44 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
   const idx = Int32Array.from([...ctx.free].filter((p) => p !== index));
   const n = idx.length;
 
-  // From the minimum, or from a nearby conditional minimum, along V[:,i].
-  const phi = Float64Array.from(warm ? warm.phi : ctx.phi);
+  // From the minimum, or from a nearby conditional minimum, along V[:,i]: the linear response,
+  // or a fraction of it where the whole of it raises F (see linearResponseStart).
+  const base = Float64Array.from(warm ? warm.phi : ctx.phi);
   const gamma = Float64Array.from(warm ? warm.gamma : ctx.gamma);
+  base[index] = value;
   const Vii = V[index * P + index];
   const delta = value - (warm ? warm.value : ctx.phi[index]);
-  for (let a = 0; a < n; a++) phi[idx[a]] += (V[idx[a] * P + index] * delta) / Vii;
-  phi[index] = value;
+  const response = new Float64Array(n);
+  for (let a = 0; a < n; a++) response[a] = (V[idx[a] * P + index] * delta) / Vii;
+  const phi = linearResponseStart(ctx, conditional, idx, base, response, gamma, scratch);
   return ladder(ctx, conditional, idx, index, value, phi, gamma, scratch, tolerance, MAX_STEPS);
+}
+
+/**
+ * The start of the warm rung: the base point (φ_i moved to its value) plus the linear response
+ * α·r, with α the first of 1, ½, ¼, ⅛ whose point stays in the bounds and has a lower F than
+ * the base, else the base itself. The linear response is the exact conditional minimum of the
+ * quadratic model; where the likelihood is far from quadratic it can land in the basin of
+ * another minimum (same-side variations, clipped templates), and a warm fit from there would
+ * settle in that basin. Checking F first keeps the start on the side of the base point. γ is
+ * profiled at the chosen point (in place).
+ */
+function linearResponseStart(ctx: FitContext, conditional: FitProblem, idx: Int32Array, base: Float64Array, response: Float64Array, gamma: Float64Array, scratch: Scratch): Float64Array {
+  const F0 = profiledNll(ctx.problem, base, Float64Array.from(gamma), scratch);
+  const trial = new Float64Array(base.length);
+  const trialGamma = new Float64Array(gamma.length);
+  for (let alpha = 1; alpha >= 0.125; alpha /= 2) {
+    trial.set(base);
+    for (let a = 0; a < idx.length; a++) trial[idx[a]] += alpha * response[a];
+    if (outOfBounds(conditional, trial)) continue;
+    trialGamma.set(gamma);
+    const F = profiledNll(ctx.problem, trial, trialGamma, scratch);
+    if (Number.isFinite(F) && (F < F0 || !Number.isFinite(F0))) {
+      gamma.set(trialGamma);
+      return trial;
+    }
+  }
+  return base;
 }
 
 /**
@@ -94,8 +125,6 @@ function ladder(
   const m = ctx.problem.model;
   const w = warmRefit(ctx, conditional, idx, index, phi, gamma, scratch, tolerance, maxSteps);
   const work: RefitWork = { steps: w.steps, normalisationSteps: w.normalisationSteps, gradients: w.gradients, products: w.products, newtonIterations: 0 };
-  if (w.ok) return { ok: true, nll: w.nll, phi, gamma, rung: 'warm', decrement: w.decrement, work, message: null };
-
   const newton = (rung: Rung, phi0: Float64Array, gamma0: Float64Array): ConditionalResult | null => {
     const start = Float64Array.from(phi0);
     for (let i = 0; i < m.nDense; i++) start[i] = Math.min(m.upper[i], Math.max(m.lower[i], start[i]));
@@ -106,8 +135,39 @@ function ladder(
     if (r.status !== 'converged' && r.status !== 'edge') return null;
     return { ok: true, nll: r.nll, phi: r.phi, gamma: r.gamma, rung, decrement: r.decrement, work, message: r.message };
   };
+  // The warm rung again from the context's minimum with only φ_i moved (no linear response), or
+  // Newton from there where it fails.
+  const warmFromMinimum = (): ConditionalResult | null => {
+    const start = Float64Array.from(ctx.phi);
+    const g = Float64Array.from(ctx.gamma);
+    if (index >= 0) start[index] = value;
+    const again = warmRefit(ctx, conditional, idx, index, start, g, scratch, tolerance, maxSteps);
+    work.steps += again.steps;
+    work.gradients += again.gradients;
+    work.products += again.products;
+    return again.ok ? { ok: true, nll: again.nll, phi: start, gamma: g, rung: 'cold', decrement: again.decrement, work, message: null } : newton('cold', ctx.phi, ctx.gamma);
+  };
+  // Where the model has same-side effects, the minimum found may sit in one of two basins of
+  // such a parameter; the other is looked for (basins.ts) and the lower NLL kept.
+  const lower = (a: ConditionalResult, b: ConditionalResult | null) => (b && b.nll < a.nll - 1e-12 * (1 + Math.abs(a.nll)) ? b : a);
+  const checked = (r: ConditionalResult): ConditionalResult => {
+    if (index < 0) return r;
+    let best = r;
+    if (movedBistable(ctx, r.phi)) best = lower(best, warmFromMinimum());
+    for (const start of mirroredStarts(ctx, conditional, index, best.phi, best.gamma, best.nll, scratch).slice(0, 2)) {
+      const again = warmRefit(ctx, conditional, idx, index, start.phi, start.gamma, scratch, tolerance, maxSteps);
+      work.steps += again.steps;
+      work.gradients += again.gradients;
+      work.products += again.products;
+      const found = again.ok ? { ...best, nll: again.nll, phi: start.phi, gamma: start.gamma, decrement: again.decrement } : newton(best.rung ?? 'newton', start.phi, start.gamma);
+      best = lower(best, found);
+    }
+    return best;
+  };
+  if (w.ok) return checked({ ok: true, nll: w.nll, phi, gamma, rung: 'warm', decrement: w.decrement, work, message: null });
+
   const fromHere = newton('newton', phi, gamma);
-  if (fromHere) return fromHere;
+  if (fromHere) return checked(fromHere);
   const fromMinimum = newton('cold', ctx.phi, ctx.gamma);
   if (fromMinimum) return fromMinimum;
   const s = startPoint(m);

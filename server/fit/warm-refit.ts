@@ -70,10 +70,7 @@ export function warmRefit(
   if (outOfBounds(conditional, phi)) return outcome(false, NaN, NaN, 'the start lies outside the bounds');
 
   const { ws, d, trialPhi, trialGamma } = scratch;
-  const profiled = (p: Float64Array, g: Float64Array) => {
-    profileGammas(m, problem.data, problem.gammaHeld, p, g, ws, problem.globals);
-    return poissonSum(m, problem.data, ws) + constraintSum(m, p, g, problem.gammaHeld, problem.globals);
-  };
+  const profiled = (p: Float64Array, g: Float64Array) => profiledNll(problem, p, g, scratch);
   const gradient = (p: Float64Array, g: Float64Array, out: Float64Array | null) => {
     work.gradients++;
     computeDerivatives(m, problem.data, p, g, ctx.eliminate, ws, d, false, false, problem.globals);
@@ -183,8 +180,8 @@ export function warmRefit(
   };
 
   /** The checked finish from a point where the quasi-Newton estimate met the tolerance. */
-  const finish = (): WarmOutcome => {
-    for (let round = 0; round < CHECK_ROUNDS; round++) {
+  const finish = (rounds: number): WarmOutcome => {
+    for (let round = 0; round < rounds; round++) {
       const check = newtonCheck({ n, applyM, hessianTimes }, g, tolerance);
       work.products += check.products;
       const dec = check.decrement;
@@ -216,7 +213,7 @@ export function warmRefit(
       for (let a = 0; a < n; a++) check.step[a] *= alpha;
       addPair(check.step, gOld, g);
     }
-    return outcome(false, F, NaN, `the Newton decrement did not fall below ${tolerance} in ${CHECK_ROUNDS} checked steps`);
+    return outcome(false, F, NaN, `the Newton decrement did not fall below ${tolerance} in ${rounds} checked steps`);
   };
 
   let gNew = new Float64Array(n);
@@ -231,7 +228,7 @@ export function warmRefit(
       step[a] = -step[a];
     }
     dec *= 0.5;
-    if (dec < tolerance) return finish();
+    if (dec < tolerance) return finish(CHECK_ROUNDS);
     if (it >= maxSteps) return outcome(false, F, NaN, `no convergence in ${maxSteps} quasi-Newton steps`);
     if (!(dec >= 0)) return outcome(false, F, NaN, 'the quasi-Newton direction is not a descent direction');
     const alpha = lineSearch(step, dec);
@@ -315,6 +312,13 @@ function settleNormalisations(
     if (decq < 1e-4) break;
   }
   return { F, steps, gradientIsCurrent };
+}
+
+/** F(φ) = min_γ NLL(φ, γ): γ profiled in closed form into `gamma`, the yields left in the scratch. */
+export function profiledNll(problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch): number {
+  const m = problem.model;
+  profileGammas(m, problem.data, problem.gammaHeld, phi, gamma, scratch.ws, problem.globals);
+  return poissonSum(m, problem.data, scratch.ws) + constraintSum(m, phi, gamma, problem.gammaHeld, problem.globals);
 }
 
 export function outOfBounds(problem: FitProblem, phi: Float64Array): boolean {
