@@ -1,6 +1,7 @@
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import { fitOptionsSchema, type FitOptionsInput, type FitResult, type NuisanceReport } from '@shared/schemas/fit';
-import type { FitProblem } from './compiled-model';
+import type { CompiledModel, FitProblem } from './compiled-model';
+import type { BreakdownRow, VariantReport } from '@shared/schemas/variants';
 import { curvatureAt, gammaVariance, type FitContext } from './covariance';
 import { FitCancelledError, FitInputError, throwIfAborted } from './errors';
 import { postfitYields, prefitYields } from './expected-yields';
@@ -10,6 +11,8 @@ import { clippedSampleBins, createScratch, EDGE_TOLERANCE, minimise, type Minimi
 import { correlationMatrix, errorOf, groupImpact, isAtBound, nuisanceTable, parameterTable, statOnlyError } from './parameters-report';
 import { runJobs, type FitPool } from './pool';
 import { asimovData, buildProblem, startPoint } from './problem';
+import { applyHeld, decorrelationReports, frozenShare, needsBestFit, resolveHeld, variantModel, type HeldValue } from './variants';
+import { createWorkspace, evaluateYields } from './yields';
 import { assembleScan, scanJobs } from './scan';
 import { discovery, goodnessOfFit } from './significance';
 
@@ -39,15 +42,40 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   const progress = (fraction: number, stage: string) => control.onProgress?.(Math.min(1, fraction), stage);
   throwIfAborted(signal);
 
-  const problem = buildProblem(model, options);
+  // §9.3–9.4 change the model; §9.5 may change the data (an Asimov dataset built on a reference fit)
+  const variant = variantModel(model, options);
+  let problem = buildProblem(variant.model, options);
   const m = problem.model;
   const warnings: string[] = [];
   for (let i = 0; i < m.nDense; i++) {
     if (problem.held[i] && !(i === 0 && options.controlOnly)) warnings.push(`${m.names[i]} affects no bin in the fit and is held at its start value.`);
   }
   progress(0, 'fit');
+  const reference = options.expectedFrom === 'prefit' ? null : referenceFit(variant.model, options, signal);
+  if (reference && 'failure' in reference) {
+    const none = { started, options, problem, warnings, min: reference.min, clipped: [] };
+    return failedResult(none, `the reference fit for expected numbers (${options.expectedFrom === 'control' ? 'control regions, μ held at 0' : 'all regions, μ held at 0'}) did not converge: ${reference.failure}`);
+  }
+  const expectedProblem = (mu: number): FitProblem => (reference ? { ...problem, ...measuredAsimov(m, reference, mu) } : { ...problem, data: asimovData(m, mu) });
+  if (options.dataset === 'asimov' && reference) problem = expectedProblem(options.asimovMu);
   const scratch = createScratch(problem);
   const start = startPoint(m);
+  // §9.1–9.2: what is held, at a number or at its best fit to the same data
+  let held: HeldValue[] = [];
+  if (options.hold.length || options.holdGroups.length || options.statOnly) {
+    let best: MinimiseResult | null = null;
+    if (needsBestFit(options)) {
+      best = minimise(problem, start.phi, start.gamma, scratch, { signal });
+      if (best.status === 'cancelled') throw new FitCancelledError();
+      if (best.status === 'failed') return failedResult({ started, options, problem, warnings, min: best, clipped: [] }, `the fit with nothing held, which gives the values held at "best", did not converge: ${best.message}`);
+    }
+    held = resolveHeld(m, problem, options, best ? best.phi : null);
+    if (best) {
+      start.phi.set(best.phi);
+      if (options.statOnly) start.gamma.set(best.gamma);
+    }
+    problem = applyHeld(problem, held, start.phi, options.statOnly);
+  }
   const min = minimise(problem, start.phi, start.gamma, scratch, { signal });
   if (min.status === 'cancelled') throw new FitCancelledError();
   const clipped = clippedSampleBins(problem, scratch.ws, min.status === 'edge' ? EDGE_TOLERANCE : 0).map(({ sample, bin }) => ({
@@ -75,12 +103,15 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   const jobs: Job[] = [];
   const push = (job: Job) => jobs.push(job) - 1;
 
-  // Asimov datasets for the expected significance (μ = 1) and the limit (μ = 0).
+  // Asimov datasets for the expected significance (μ = 1) and the limit (μ = 0): pre-fit, or
+  // built on the reference fit (§9.5), whose minimum is then known to be the reference point
   const asimovContext = (mu: number, what: string): number | null => {
     throwIfAborted(signal);
-    const pa: FitProblem = { ...problem, data: asimovData(m, mu) };
+    const pa: FitProblem = expectedProblem(mu);
     const sa = createScratch(pa);
-    const s0 = startPoint(m);
+    const s0 = reference ? { phi: Float64Array.from(reference.phi), gamma: Float64Array.from(reference.gamma) } : startPoint(m);
+    if (reference) s0.phi[0] = mu;
+    for (const h of held) s0.phi[h.index] = h.value;
     const r = minimise(pa, s0.phi, s0.gamma, sa, { signal });
     if (r.status === 'cancelled') throw new FitCancelledError();
     if (r.status === 'failed') {
@@ -120,6 +151,8 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     scanPlan = { grid, first: jobs.length };
     sj.forEach(push);
   }
+  // §9.7: each group held at its best fit (and every γ, and every θ), μ's q = 1 crossings again
+  const breakdownPlan = options.breakdown && muFree ? planBreakdown(ctx, problem, scratch, contexts, push, scanPlan === null, warnings) : null;
   const limitJobs =
     limitCtx !== null
       ? {
@@ -213,7 +246,7 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     const region = m.regions[m.binRegion[b]];
     const variance = gammaVariance(ctx, g);
     return {
-      name: `gamma_${region.key}_${b - region.firstBin}`,
+      name: `tstat:${region.key}:${b - region.firstBin}`,
       region: region.key,
       bin: b - region.firstBin,
       value: ctx.gamma[g],
@@ -230,6 +263,16 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   ];
   for (const name of atBound) warnings.push(`${name} is at a bound of its range; its σ describes the curvature there only.`);
 
+  const breakdown = breakdownPlan ? assembleBreakdown(breakdownPlan, results, ctx, scan, groupedImpacts, syst) : null;
+  const variantReport: VariantReport = {
+    held: held.map((h) => ({ parameter: m.names[h.index], value: h.value, asked: h.asked })),
+    statOnly: options.statOnly,
+    templateStats: options.templateStats,
+    expectedFrom: options.expectedFrom,
+    hiddenMu: options.hiddenMu,
+    decorrelation: decorrelationReports(m, problem.held, ctx.phi, ctx.V, variant.decorrelation),
+    breakdown,
+  };
   const gof = goodnessOfFit(m, problem.data, scratch.ws.nu, problem.held);
   throwIfAborted(signal);
   const result: FitResult = {
@@ -277,9 +320,100 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     information: informationBreakdown(ctx),
     yields: { prefit: prefitYields(m), postfit: postfitYields(ctx) },
     data: dataSection(problem, options),
+    variant: variantReport,
   };
   progress(1, 'done');
   return result;
+}
+
+/**
+ * §9.5, the reference of expected numbers: the best fit of the control regions alone (`control`)
+ * or of all regions (`background`), to the observed data, with μ held at 0.
+ */
+function referenceFit(model: ExchangeModel, options: FitResult['options'], signal: AbortSignal | undefined): { phi: Float64Array; gamma: Float64Array } | { failure: string; min: MinimiseResult } {
+  const pr = buildProblem(model, { ...options, dataset: 'observed', controlOnly: options.expectedFrom === 'control' });
+  pr.held = Uint8Array.from(pr.held);
+  pr.held[0] = 1;
+  const s0 = startPoint(pr.model);
+  s0.phi[0] = 0;
+  const r = minimise(pr, s0.phi, s0.gamma, createScratch(pr), { signal });
+  if (r.status === 'cancelled') throw new FitCancelledError();
+  if (r.status === 'failed') return { failure: r.message ?? 'no minimum', min: r };
+  return { phi: r.phi, gamma: r.gamma };
+}
+
+/**
+ * §9.5: the Asimov dataset at μ_inj with everything else at the reference fit, n = ν(μ_inj, k̂, θ̂,
+ * γ̂) in every bin, and the global observables at the reference's θ̂ and γ̂, so that a fit to it
+ * returns the reference values.
+ */
+function measuredAsimov(m: CompiledModel, reference: { phi: Float64Array; gamma: Float64Array }, mu: number): Pick<FitProblem, 'data' | 'globals'> {
+  const phi = Float64Array.from(reference.phi);
+  phi[0] = mu;
+  const ws = createWorkspace(m);
+  evaluateYields(m, phi, reference.gamma, ws, true);
+  return { data: Float64Array.from(ws.nu), globals: { theta: Float64Array.from(reference.phi), gamma: Float64Array.from(reference.gamma) } };
+}
+
+type BreakdownPlan = { rows: { group: string; context: number; jobs: [number, number] }[]; nominalJobs: [number, number] | null };
+
+/**
+ * §9.7: a context per group with the group held at the best fit (the minimum is the same point,
+ * the curvature is that of the problem with the group held), and μ's q = 1 crossings on each;
+ * "template statistics" holds every γ and "all systematics" every θ. The nominal crossings come
+ * from the scan, or get jobs of their own without one.
+ */
+function planBreakdown(
+  ctx: FitContext,
+  problem: FitProblem,
+  scratch: ReturnType<typeof createScratch>,
+  contexts: FitContext[],
+  push: (job: Job) => number,
+  ownNominal: boolean,
+  warnings: string[],
+): BreakdownPlan {
+  const m = problem.model;
+  const groups = new Map<string, number[]>();
+  for (let i = m.thetaStart; i < m.nDense; i++) {
+    if (problem.held[i]) continue;
+    const g = m.groups[i] ?? 'ungrouped';
+    groups.set(g, [...(groups.get(g) ?? []), i]);
+  }
+  const plans: { group: string; thetas: number[]; gammas: boolean }[] = [...groups].map(([group, thetas]) => ({ group, thetas, gammas: false }));
+  if (problem.gammaHeld.some((h) => !h)) plans.push({ group: 'template statistics', thetas: [], gammas: true });
+  const all = [...groups.values()].flat();
+  if (all.length) plans.push({ group: 'all systematics', thetas: all, gammas: false });
+  const crossings = (c: number): [number, number] => [push({ kind: 'crossing', context: c, index: 0, level: 1, direction: -1 }), push({ kind: 'crossing', context: c, index: 0, level: 1, direction: 1 })];
+  const rows: BreakdownPlan['rows'] = [];
+  for (const plan of plans) {
+    const held = Uint8Array.from(problem.held);
+    for (const i of plan.thetas) held[i] = 1;
+    const pg: FitProblem = { ...problem, held, gammaHeld: plan.gammas ? new Uint8Array(problem.gammaHeld.length).fill(1) : problem.gammaHeld };
+    const c = curvatureAt(pg, ctx.phi, ctx.gamma, scratch);
+    if (!c.ok) {
+      warnings.push(`The breakdown for ${plan.group} is not available: ${c.message}`);
+      continue;
+    }
+    const index = contexts.push(c.context) - 1;
+    rows.push({ group: plan.group, context: index, jobs: crossings(index) });
+  }
+  return { rows, nominalJobs: ownNominal ? crossings(0) : null };
+}
+
+function assembleBreakdown(plan: BreakdownPlan, results: JobResult[], ctx: FitContext, scan: FitResult['scan'], grouped: FitResult['groupedImpacts'], syst: number | null): BreakdownRow[] {
+  const mu = ctx.phi[0];
+  const sides = (jobs: [number, number]) => {
+    const at = (k: number) => (results[k].ok && results[k].value !== null ? Math.abs(results[k].value! - mu) : null);
+    return { low: at(jobs[0]), high: at(jobs[1]) };
+  };
+  const nominal = plan.nominalJobs
+    ? sides(plan.nominalJobs)
+    : { low: scan?.crossings68.low != null ? Math.abs(scan.crossings68.low - mu) : null, high: scan?.crossings68.high != null ? Math.abs(scan.crossings68.high - mu) : null };
+  return plan.rows.map((row) => {
+    const share = frozenShare(nominal, sides(row.jobs));
+    const schur = row.group === 'all systematics' ? syst : (grouped.find((g) => g.group === row.group)?.impact ?? null);
+    return { group: row.group, ...share, schur };
+  });
 }
 
 /** The clip-edge outcome for the report (MODEL.md §9: the edge held, or released to a lower NLL). */
