@@ -14,6 +14,7 @@ import { createToyRunner } from './jobs/toy-runner';
 import { startQueue } from './work/queue';
 import { queuedFitRunner, queuedToyRunner } from './work/queued-runners';
 import { seedDemo } from './seed/demo';
+import { seedStory, storyPending } from './seed/story';
 import { backfillEffectSizes } from './services/register.service';
 
 /** Without SESSION_SECRET, a random secret is kept in the data folder so sessions survive restarts. */
@@ -75,7 +76,13 @@ async function serve(config: Config, prepared: Awaited<ReturnType<typeof prepare
   const toys = queue ? queuedToyRunner(database.db, queue) : createToyRunner(database.db, console.error, { threads, niceness: config.FIT_NICENESS });
   await fits.recover();
   await toys.recover();
-  const { app } = createApp(database, config, { mailer, fits, toys });
+  const { app, ctx } = createApp(database, config, { mailer, fits, toys });
+  // the demo's story on its first start: fits computed, questions asked, mail sent (seed/story.ts)
+  if ((prepared || process.env.PLUMBLINE_STORY === '1') && (await storyPending(ctx))) {
+    const started = Date.now();
+    await seedStory(ctx, (config.PUBLIC_URL ?? `http://localhost:${config.PORT || 3000}`).replace(/\/$/, ''), { waitForFits: !queue });
+    console.log(`The demo's fits, questions and e-mails were made in ${((Date.now() - started) / 1000).toFixed(1)} s.`);
+  }
   const closeClient = await serveClient(app, config);
 
   const server = app.listen(config.PORT, config.HOST, () => {
@@ -111,10 +118,15 @@ async function primary(config: Config) {
   await database.close();
   let listening = 0;
   let stopping = false;
-  const start = () =>
-    cluster.fork().on('message', (m: { port?: number; mail?: string }) => {
+  // the first web server process tells the demo's story, if it has not been told
+  let first = true;
+  const start = () => {
+    const env = first ? { PLUMBLINE_STORY: '1' } : {};
+    first = false;
+    return cluster.fork(env).on('message', (m: { port?: number; mail?: string }) => {
       if (m.port !== undefined && ++listening === config.WEB_PROCESSES) announce(config, m.port, seed, m.mail ?? '');
     });
+  };
   for (let i = 0; i < config.WEB_PROCESSES; i++) start();
   cluster.on('exit', (worker, code, signal) => {
     if (stopping) return;

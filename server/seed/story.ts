@@ -1,0 +1,86 @@
+import type { MemberRole } from '@shared/permissions';
+import type { Access } from '../auth/authorize';
+import type { AppContext } from '../context';
+import { findAnalysisAccess } from '../db/analyses.repository';
+import { findUserByEmail } from '../db/users.repository';
+import { listVersionRows } from '../db/versions.repository';
+import { requestUnblinding } from '../services/blinding.service';
+import { reviewEntry } from '../services/entries.service';
+import { startFit } from '../services/fits.service';
+import { answerQuestion, raiseQuestion, stepQuestion } from '../services/questions.service';
+import { startReviewSet } from '../services/review-sets.service';
+import { freezeVersion } from '../services/versions.service';
+
+/**
+ * The demo's story on its first start, told through the same services as a person's requests, so
+ * that its fits are computed by the engine on the fit threads, and its e-mails go out as they
+ * would (docs: README, "A short tour"). Every step is deterministic.
+ *
+ * - vireon-search (blinded): a frozen version, a fit of the control regions to their data and a
+ *   pre-fit Asimov fit (full impacts, scan, limit), the review set before unblinding, an entry
+ *   submitted for review and one sent back with a comment, and a pending request to unblind.
+ * - cascade-rate (unblinded): a frozen version and an observed fit with full impacts, in which
+ *   halo_norm is over-constrained; an open question on it with one answer, and a resolved one.
+ */
+/** The story is told once: while the demo's search has no frozen version, it has not been. */
+export async function storyPending(ctx: Pick<AppContext, 'db'>) {
+  const admin = await findUserByEmail(ctx.db, 'admin@lantern.example');
+  if (!admin) return false;
+  const found = await findAnalysisAccess(ctx.db, 'vireon-search', admin.id);
+  return !!found && (await listVersionRows(ctx.db, found.analysis.id)).length === 0;
+}
+
+export async function seedStory(ctx: AppContext, baseUrl: string, options: { waitForFits: boolean }) {
+  const as = async (slug: string, email: string): Promise<Access> => {
+    const user = (await findUserByEmail(ctx.db, email))!;
+    const found = (await findAnalysisAccess(ctx.db, slug, user.id))!;
+    return { analysis: found.analysis, role: found.role as MemberRole | null, isAdmin: user.isAdmin, userId: user.id, userName: user.name };
+  };
+  const V = 'vireon-search';
+  const C = 'cascade-rate';
+
+  // the measurement: its observed fit first, since the questions point at it
+  const ottoC = await as(C, 'otto@lantern.example');
+  const cv = await freezeVersion(ctx, ottoC, { note: 'Model for the first review of the rate measurement' });
+  const observed = await startFit(ctx, ottoC, { version: cv.number, label: 'Observed, full impacts', options: { dataset: 'observed', impacts: 'full', scan: true, limit: true } });
+
+  const ottoV = await as(V, 'otto@lantern.example');
+  const vv = await freezeVersion(ctx, ottoV, { note: 'Every systematic uploaded; control regions understood' });
+  await startFit(ctx, ottoV, { version: vv.number, label: 'Control regions, observed', options: { dataset: 'observed', controlOnly: true, impacts: 'full', scan: true, limit: true } });
+  await startFit(ctx, ottoV, { version: vv.number, label: 'Pre-fit Asimov, μ = 1', options: { dataset: 'asimov', asimovMu: 1, impacts: 'full', scan: true, limit: true } });
+  await startReviewSet(ctx, ottoV, { version: vv.number, label: 'Before asking to unblind' });
+
+  // the register's review loop: one entry submitted, one sent back with a comment
+  await reviewEntry(ctx, await as(V, 'juno@lantern.example'), 'calo_nonlin', { action: 'submit' }, baseUrl);
+  await reviewEntry(
+    ctx,
+    await as(V, 'mira@lantern.example'),
+    'flare_iso',
+    { action: 'send_back', comment: 'Please add the tag-and-probe fit in the two lowest transverse-energy bins, and say why the probe selection is tighter than in the signal regions.' },
+    baseUrl,
+  );
+
+  // questions on the measurement's fit
+  const miraC = await as(C, 'mira@lantern.example');
+  const open = await raiseQuestion(
+    ctx,
+    miraC,
+    { entry: 'halo_norm', fitId: observed.id, title: 'Why is halo_norm constrained to about 0.4?', body: 'Its post-fit width is well below its prior. Which region carries the information, and is a 30 % halo uncertainty still what the halo group recommends?' },
+    baseUrl,
+  );
+  await answerQuestion(ctx, ottoC, open.id, { body: 'The control region has ten times the halo events of the signal region: the diagnosis shows it carries almost all the information. We are asking the halo group whether the 30 % prior is still current.' }, baseUrl);
+  const settled = await raiseQuestion(
+    ctx,
+    miraC,
+    { entry: 'energy_scale', fitId: observed.id, title: 'Is the energy-scale shape the same in both regions?', body: 'The variation is a tilt in both regions; please confirm it comes from one calibration.' },
+    baseUrl,
+  );
+  await answerQuestion(ctx, await as(C, 'juno@lantern.example'), settled.id, { body: 'Yes: both come from the same calibration run, propagated to each selection.' }, baseUrl);
+  await stepQuestion(ctx, miraC, settled.id, 'resolve', { note: 'Thank you: one calibration, one parameter.' }, baseUrl);
+
+  // and the search asks to look
+  await requestUnblinding(ctx, ottoV, { note: 'The control regions are understood, the review set is done, and every entry that enters the fit is accepted or under review.' }, baseUrl);
+
+  if (options.waitForFits) await ctx.fits.idle();
+  await ctx.mailer.idle();
+}

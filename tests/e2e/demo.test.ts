@@ -1,0 +1,77 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import request from 'supertest';
+import { startServer, type RunningServer } from './support';
+
+/**
+ * The demo on a fresh start, read through the API as its people would: everything the README's
+ * tour shows is already there, computed by the engine when the server first started.
+ */
+describe('the demo on its first start', () => {
+  let server: RunningServer;
+  const as = async (email: string) => {
+    const agent = request.agent('');
+    const base = server.url;
+    const token = (await agent.get(`${base}/api/auth/csrf`)).body.token as string;
+    const signed = await agent.post(`${base}/api/auth/sign-in`).set('x-csrf-token', token).send({ email, password: 'lantern-demo-2026' });
+    expect(signed.status).toBe(200);
+    return { get: async (path: string) => (await agent.get(`${base}${path}`)).body };
+  };
+  beforeAll(async () => {
+    server = await startServer();
+  });
+  afterAll(async () => server?.stop());
+
+  it('says how long its story took, within 20 s', () => {
+    const m = server.output().match(/The demo's fits, questions and e-mails were made in ([\d.]+) s\./);
+    expect(m).not.toBeNull();
+    expect(Number(m![1])).toBeLessThan(20);
+  });
+
+  it('holds a frozen version per analysis', async () => {
+    const rafe = await as('rafe@lantern.example');
+    for (const slug of ['vireon-search', 'cascade-rate']) expect((await rafe.get(`/api/analyses/${slug}/versions`)).length).toBeGreaterThanOrEqual(1);
+  });
+
+  it('shows the blinded search with a control-only fit, a pre-fit Asimov fit (full impacts, scan, limit) and the review set', async () => {
+    const rafe = await as('rafe@lantern.example');
+    const fits = (await rafe.get('/api/analyses/vireon-search/fits')) as { id: number; label: string; state: string; options: Record<string, unknown> }[];
+    const control = fits.find((f) => f.options.controlOnly && f.options.dataset === 'observed' && f.options.impacts === 'full')!;
+    const asimov = fits.find((f) => f.options.dataset === 'asimov' && f.options.impacts === 'full' && f.options.scan && f.options.limit && f.options.expectedFrom === 'prefit')!;
+    expect(control.state).toBe('succeeded');
+    expect(asimov.state).toBe('succeeded');
+    const head = await rafe.get(`/api/analyses/vireon-search/fits/${asimov.id}`);
+    expect(head.result.summary.limit.observed).toBeGreaterThan(0);
+    expect(head.result.nuisance.filter((n: { postfitImpact: unknown }) => n.postfitImpact).length).toBeGreaterThan(30);
+    const [set] = await rafe.get('/api/analyses/vireon-search/review-sets');
+    expect(set.state).toBe('succeeded');
+    expect(set.members.map((m: { variant: string }) => m.variant)).toEqual(expect.arrayContaining(['control-only', 'expected-1', 'expected-0', 'hidden-mu', 'stat-only']));
+  });
+
+  it('shows the measurement with an observed full-impacts fit in which halo_norm is over-constrained, an answered question on it and a resolved one', async () => {
+    const mira = await as('mira@lantern.example');
+    const [fit] = await mira.get('/api/analyses/cascade-rate/fits');
+    expect(fit).toMatchObject({ state: 'succeeded', options: { dataset: 'observed', impacts: 'full' } });
+    const head = await mira.get(`/api/analyses/cascade-rate/fits/${fit.id}`);
+    expect(head.result.nuisance.find((n: { name: string }) => n.name === 'halo_norm')).toMatchObject({ overConstrained: true });
+    const questions = (await mira.get('/api/analyses/cascade-rate/questions')) as { entry: { key: string }; state: string; answers: number; fit: { id: number } }[];
+    expect(questions.find((q) => q.entry.key === 'halo_norm')).toMatchObject({ state: 'answered', answers: 1, fit: { id: fit.id } });
+    expect(questions.some((q) => q.state === 'resolved')).toBe(true);
+  });
+
+  it('holds an entry awaiting review, one sent back with a comment, and a pending request to unblind', async () => {
+    const mira = await as('mira@lantern.example');
+    const nonlin = await mira.get('/api/analyses/vireon-search/entries/calo_nonlin');
+    expect(nonlin.state).toBe('submitted');
+    const iso = await mira.get('/api/analyses/vireon-search/entries/flare_iso');
+    expect(iso.state).toBe('sent_back');
+    expect(iso.revisions[0].summary).toMatch(/^Sent back\. Comment: Please add/);
+    expect((await mira.get('/api/analyses/vireon-search/blinding')).state).toBe('unblinding_requested');
+  });
+
+  it('has the e-mails these produced in the outbox', async () => {
+    const admin = await as('admin@lantern.example');
+    const subjects = ((await admin.get('/api/outbox')) as { subject: string }[]).map((m) => m.subject);
+    for (const expected of [/calo_nonlin awaits review/, /flare_iso was sent back/, /Question on halo_norm/, /Answer on halo_norm/, /resolved/, /Unblinding requested by/])
+      expect(subjects.some((s) => expected.test(s)), String(expected)).toBe(true);
+  });
+});
