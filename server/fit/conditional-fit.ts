@@ -71,8 +71,8 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
   const delta = value - (warm ? warm.value : ctx.phi[index]);
   const response = new Float64Array(n);
   for (let a = 0; a < n; a++) response[a] = (V[idx[a] * P + index] * delta) / Vii;
-  const phi = linearResponseStart(ctx, conditional, idx, base, response, gamma, scratch);
-  return ladder(ctx, conditional, idx, index, value, phi, gamma, scratch, tolerance, MAX_STEPS);
+  const start = linearResponseStart(ctx, conditional, idx, base, response, gamma, scratch);
+  return ladder(ctx, conditional, idx, index, value, start.phi, gamma, scratch, tolerance, MAX_STEPS, start.F);
 }
 
 /**
@@ -84,7 +84,7 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
  * settle in that basin. Checking F first keeps the start on the side of the base point. γ is
  * profiled at the chosen point (in place).
  */
-function linearResponseStart(ctx: FitContext, conditional: FitProblem, idx: Int32Array, base: Float64Array, response: Float64Array, gamma: Float64Array, scratch: Scratch): Float64Array {
+function linearResponseStart(ctx: FitContext, conditional: FitProblem, idx: Int32Array, base: Float64Array, response: Float64Array, gamma: Float64Array, scratch: Scratch): { phi: Float64Array; F: number } {
   const F0 = profiledNll(ctx.problem, base, Float64Array.from(gamma), scratch);
   const trial = new Float64Array(base.length);
   const trialGamma = new Float64Array(gamma.length);
@@ -96,10 +96,10 @@ function linearResponseStart(ctx: FitContext, conditional: FitProblem, idx: Int3
     const F = profiledNll(ctx.problem, trial, trialGamma, scratch);
     if (Number.isFinite(F) && (F < F0 || !Number.isFinite(F0))) {
       gamma.set(trialGamma);
-      return trial;
+      return { phi: trial, F };
     }
   }
-  return base;
+  return { phi: base, F: NaN };
 }
 
 /**
@@ -121,9 +121,10 @@ function ladder(
   scratch: Scratch,
   tolerance: number,
   maxSteps: number,
+  startF = NaN,
 ): ConditionalResult {
   const m = ctx.problem.model;
-  const w = warmRefit(ctx, conditional, idx, index, phi, gamma, scratch, tolerance, maxSteps);
+  const w = warmRefit(ctx, conditional, idx, index, phi, gamma, scratch, tolerance, maxSteps, startF);
   const work: RefitWork = { steps: w.steps, normalisationSteps: w.normalisationSteps, gradients: w.gradients, products: w.products, newtonIterations: 0 };
   const newton = (rung: Rung, phi0: Float64Array, gamma0: Float64Array): ConditionalResult | null => {
     const start = Float64Array.from(phi0);

@@ -15,7 +15,8 @@
  * gᵀH⁻¹g = gᵀx_k + r_kᵀH⁻¹r_k with r_k = g − H x_k. The returned decrement is
  * ½(gᵀx_k + r_kᵀM r_k): the first term is exact, the second is the remainder measured with M;
  * the loop stops once that remainder is below a thousandth of the first term (or of the
- * tolerance), so an error of M by a factor of a few changes the decrement by less than 1 %.
+ * tolerance), so an error of M by a factor of a few changes the decrement by less than 1 %, or
+ * once even ten times the remainder leaves the decrement below a tenth of the tolerance.
  */
 
 export interface NewtonCheck {
@@ -48,6 +49,8 @@ export function newtonCheck(problem: NewtonCheckProblem, g: Float64Array, tolera
   p.set(z);
   let rz = dot(r, z, n);
   let products = 0;
+  // M must be positive definite: rᵀMr ≤ 0 for a non-zero gradient means it is not, and nothing can be verified.
+  if (!(rz > 0) && dot(g, g, n) > 0) return { decrement: NaN, step: x, products };
   let remainder = rz;
   while (products < MAX_PRODUCTS && remainder > 0) {
     if (!problem.hessianTimes(p, Hp)) return { decrement: NaN, step: x, products };
@@ -62,7 +65,10 @@ export function newtonCheck(problem: NewtonCheckProblem, g: Float64Array, tolera
     problem.applyM(r, z);
     const rzNew = dot(r, z, n);
     remainder = Math.max(0, rzNew);
-    if (remainder <= 1e-3 * Math.max(dot(g, x, n), tolerance)) break;
+    const gx = dot(g, x, n);
+    // Decided: the remainder is small against the decrement, or even ten times it leaves the
+    // decrement below a tenth of the tolerance (M would have to miss H⁻¹ tenfold along r).
+    if (remainder <= 1e-3 * Math.max(gx, tolerance) || gx + 10 * remainder <= 0.2 * tolerance) break;
     const beta = rzNew / rz;
     for (let a = 0; a < n; a++) p[a] = z[a] + beta * p[a];
     rz = rzNew;

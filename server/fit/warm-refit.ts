@@ -60,6 +60,8 @@ export function warmRefit(
   scratch: Scratch,
   tolerance: number,
   maxSteps: number,
+  /** F at (φ, γ) when the scratch's yields are already those of that point (saves one evaluation). */
+  startF = NaN,
 ): WarmOutcome {
   const { problem, V } = ctx;
   const m = problem.model;
@@ -77,7 +79,7 @@ export function warmRefit(
     if (out) for (let a = 0; a < n; a++) out[a] = d.g[idx[a]];
   };
 
-  let F = profiled(phi, gamma);
+  let F = Number.isFinite(startF) ? startF : profiled(phi, gamma);
   if (!Number.isFinite(F)) return outcome(false, F, NaN, 'the start gives zero expected events in a bin with observed events');
   const norm = settleNormalisations(ctx, conditional, idx, phi, gamma, scratch, tolerance, F, profiled, gradient);
   F = norm.F;
@@ -228,9 +230,9 @@ export function warmRefit(
       step[a] = -step[a];
     }
     dec *= 0.5;
+    if (!(dec >= 0)) return outcome(false, F, NaN, 'the quasi-Newton direction is not a descent direction');
     if (dec < tolerance) return finish(CHECK_ROUNDS);
     if (it >= maxSteps) return outcome(false, F, NaN, `no convergence in ${maxSteps} quasi-Newton steps`);
-    if (!(dec >= 0)) return outcome(false, F, NaN, 'the quasi-Newton direction is not a descent direction');
     const alpha = lineSearch(step, dec);
     if (alpha === 0) {
       profiled(phi, gamma);
