@@ -17,7 +17,23 @@ type RegionYields = z.infer<typeof regionYieldsSchema>;
  *    control-only fit contributes nothing.
  */
 
-/** ∂ν_sb/∂φ (sparse: the sample's parameters) and ∂ν_sb/∂γ. */
+/** Dense accumulator for one Jacobian: a value per parameter and the parameters touched. */
+interface Accumulator {
+  dense: Float64Array;
+  seen: Uint8Array;
+}
+
+const accumulators = new WeakMap<CompiledModel, Accumulator>();
+function accumulatorFor(m: CompiledModel): Accumulator {
+  let a = accumulators.get(m);
+  if (!a) {
+    a = { dense: new Float64Array(m.nDense), seen: new Uint8Array(m.nDense) };
+    accumulators.set(m, a);
+  }
+  return a;
+}
+
+/** ∂ν_sb/∂φ (sparse: the sample's parameters, each once) and ∂ν_sb/∂γ. */
 function sampleJacobian(m: CompiledModel, ws: Workspace, gamma: Float64Array, s: number, j: number, idx: number[], val: number[]): number {
   idx.length = 0;
   val.length = 0;
@@ -38,18 +54,33 @@ function sampleJacobian(m: CompiledModel, ws: Workspace, gamma: Float64Array, s:
     idx.push(m.sampleNorm[s]);
     val.push(gam * ws.cK[s] * Q);
   }
-  const start = idx.length;
-  const add = (p: number, x: number) => {
-    for (let k = start; k < idx.length; k++) if (idx[k] === p) return void (val[k] += x);
-    idx.push(p);
-    val.push(x);
-  };
+  // θ derivatives summed per parameter (a θ may have a shape and a scale effect on one template).
+  const { dense, seen } = accumulatorFor(m);
+  const first = idx.length;
   const cE = ws.c[s] * E * gam;
   for (let e = m.shapePtr[s]; e < m.shapePtr[s + 1]; e++) {
     const off = m.shapeOffset[e] + j;
-    add(m.shapeParam[e], cE * (m.shapeHd[off] + ws.shapeCoef[4 * e + 2] * m.shapeHs[off]));
+    const p = m.shapeParam[e];
+    if (!seen[p]) {
+      seen[p] = 1;
+      idx.push(p);
+    }
+    dense[p] += cE * (m.shapeHd[off] + ws.shapeCoef[4 * e + 2] * m.shapeHs[off]);
   }
-  for (let e = m.scalePtr[s]; e < m.scalePtr[s + 1]; e++) add(m.scaleParam[e], cE * A * ws.scaleD1[e]);
+  for (let e = m.scalePtr[s]; e < m.scalePtr[s + 1]; e++) {
+    const p = m.scaleParam[e];
+    if (!seen[p]) {
+      seen[p] = 1;
+      idx.push(p);
+    }
+    dense[p] += cE * A * ws.scaleD1[e];
+  }
+  for (let k = first; k < idx.length; k++) {
+    const p = idx[k];
+    val.push(dense[p]);
+    dense[p] = 0;
+    seen[p] = 0;
+  }
   return carries ? ws.c[s] * Q : 0;
 }
 
