@@ -1,0 +1,199 @@
+import type { ExchangeModel } from '@shared/schemas/exchange';
+import type { FitResult } from '@shared/schemas/fit';
+import { fitModel } from './fit';
+import { noRefits, type RefitCounts } from './jobs';
+import type { FitPool } from './pool';
+import { buildProblem } from './problem';
+import { REFERENCE_PROBLEM, runColdFits, type ColdFit, type ColdFitTask } from './refit-reference';
+import { Q68, Q95 } from './scan';
+import { syntheticModel } from './synthetic';
+import { stressModel, type StressSize } from './synthetic-stress';
+
+/**
+ * The refit-agreement suite (MODEL.md §9, last paragraph): on generated models, every impact
+ * (post-fit θ̂ ± σ̂ and pre-fit θ̂ ± 1, both directions), both crossings of the 68 % and 95 %
+ * intervals of μ and q0 from fitModel are compared with cold fits at the same fixed value
+ * (refit-reference.ts: the lower of two cold fits, from the start values and from the reference's
+ * own best fit), at MODEL.md's tolerances (§8):
+ *  - an impact Δμ = μ(θ fixed) − μ̂ to 2e-3 relative or 1e-5 absolute, the reference's own μ̂
+ *    from a cold fit with nothing held;
+ *  - a crossing x: the cold fit at x gives q_ref; since √q is close to linear in μ, x is off by
+ *    δx ≈ (q_ref − level)·|x − μ̂|/(2·level), held to 2e-3 of |x − μ̂| or 1e-5;
+ *  - q0 through Z = √q0, to 1e-3.
+ * An output the engine left empty is counted as empty when the reference has it (for a
+ * crossing: q at μ's bound exceeds the level).
+ */
+
+export interface AgreementCase {
+  label: string;
+  build: () => ExchangeModel;
+}
+
+const seeds = (from: number, to: number) => Array.from({ length: to - from + 1 }, (_, k) => from + k);
+const stress = (size: StressSize, seed: number): AgreementCase => ({ label: `stress ${size} seed ${seed}`, build: () => stressModel(size, seed) });
+const benchmark = (size: 'small' | 'medium' | 'large', seed: number): AgreementCase => ({ label: `benchmark ${size} seed ${seed}`, build: () => syntheticModel(size, seed) });
+
+/** The seeded slice that runs in `npm test` (a few seconds). */
+export const AGREEMENT_SLICE: AgreementCase[] = [...seeds(1, 4).map((s) => stress('tiny', s)), stress('small', 1), stress('small', 4)];
+
+/** The full set of `npm run check:refits`. */
+export const AGREEMENT_FULL: AgreementCase[] = [
+  ...seeds(1, 8).map((s) => stress('tiny', s)),
+  ...seeds(1, 8).map((s) => stress('small', s)),
+  ...seeds(1, 3).map((s) => stress('medium', s)),
+  stress('large', 1),
+  benchmark('small', 1),
+  benchmark('medium', 1),
+  benchmark('large', 1),
+];
+
+export interface Disagreement {
+  what: string;
+  engine: number | null;
+  reference: number;
+  /** |engine − reference| allowed. */
+  tolerance: number;
+}
+
+export interface AgreementRow {
+  model: string;
+  status: FitResult['status'];
+  /** Outputs compared (impacts, crossings, q0). */
+  compared: number;
+  outOfTolerance: number;
+  empty: number;
+  /** Refits of the engine by rung (its convergence report). */
+  rungs: RefitCounts;
+  /** Reference cold fits that did not converge (their outputs are not compared). */
+  referenceFailed: number;
+  /** Compared outputs where the reference's two cold fits reached different minima (it keeps the lower). */
+  severalMinima: number;
+  details: Disagreement[];
+  seconds: { engine: number; reference: number };
+}
+
+export interface AgreementControl {
+  /** Pool for the engine's refits. */
+  pool?: FitPool;
+  /** Runs reference cold fits elsewhere (worker threads); serial in this thread by default. */
+  reference?: (task: ColdFitTask) => Promise<ColdFit[]>;
+  /** Alters the engine's result before it is compared: for tests that the suite catches a wrong output. */
+  adjust?: (result: FitResult) => void;
+}
+
+let modelCount = 0;
+
+export async function checkRefitAgreement(label: string, model: ExchangeModel, control: AgreementControl = {}): Promise<AgreementRow> {
+  let t = performance.now();
+  const result = await fitModel(model, { impacts: 'full', scan: true, limit: true, expected: false }, { pool: control.pool });
+  const engineSeconds = (performance.now() - t) / 1000;
+  control.adjust?.(result);
+  const row: AgreementRow = {
+    model: label,
+    status: result.status,
+    compared: 0,
+    outOfTolerance: 0,
+    empty: 0,
+    rungs: result.convergence.refits ?? noRefits(),
+    referenceFailed: 0,
+    severalMinima: 0,
+    details: [],
+    seconds: { engine: engineSeconds, reference: 0 },
+  };
+  if (result.status !== 'converged') return row;
+
+  const m = buildProblem(model, REFERENCE_PROBLEM).model;
+  const clip = (i: number, v: number) => Math.min(m.upper[i], Math.max(m.lower[i], v));
+  const checks: { fix: [number, number]; judge: (ref: ColdFit, best: ColdFit) => void }[] = [];
+  const compare = (what: string, engine: number | null, reference: number, tolerance: number) => {
+    row.compared++;
+    if (engine === null) {
+      row.empty++;
+      row.details.push({ what: `${what} (empty)`, engine, reference, tolerance });
+    } else if (!(Math.abs(engine - reference) <= tolerance)) {
+      row.outOfTolerance++;
+      row.details.push({ what, engine, reference, tolerance });
+    }
+  };
+
+  // Impacts: θ fixed at θ̂ ± σ̂ (post-fit) and θ̂ ± 1 (pre-fit), clipped to the bounds.
+  for (const n of result.nuisance) {
+    if (n.fixed || !n.postfitImpact || !n.prefitImpact) continue;
+    const i = m.names.indexOf(n.name);
+    const p = result.parameters[i];
+    const sides = [
+      ['post-fit +', p.value + p.error!, n.postfitImpact.up],
+      ['post-fit −', p.value - p.error!, n.postfitImpact.down],
+      ['pre-fit +', p.value + 1, n.prefitImpact.up],
+      ['pre-fit −', p.value - 1, n.prefitImpact.down],
+    ] as const;
+    for (const [what, v, engine] of sides) {
+      checks.push({
+        fix: [i, clip(i, v)],
+        judge: (ref, best) => {
+          const delta = ref.mu - best.mu;
+          compare(`${n.name} ${what}`, engine, delta, Math.max(1e-5, 2e-3 * Math.abs(delta)));
+        },
+      });
+    }
+  }
+
+  // Crossings of the μ scan; an empty one is checked at μ's bound.
+  const scan = result.scan;
+  if (scan) {
+    const muHat = result.summary!.mu.value;
+    const crossings = [
+      ['68 % low', Q68, scan.crossings68.low, m.lower[0]],
+      ['68 % high', Q68, scan.crossings68.high, m.upper[0]],
+      ['95 % low', Q95, scan.crossings95?.low ?? null, m.lower[0]],
+      ['95 % high', Q95, scan.crossings95?.high ?? null, m.upper[0]],
+    ] as const;
+    for (const [what, level, x, bound] of crossings) {
+      checks.push({
+        fix: [0, x ?? bound],
+        judge: (ref, best) => {
+          const q = 2 * (ref.nll - best.nll);
+          if (x === null) {
+            if (q > level) compare(`μ crossing ${what}`, null, bound, 0);
+            return;
+          }
+          // The crossing's offset from the reference's x where q = level, to first order.
+          const offset = Math.abs(x - best.mu);
+          const dx = ((q - level) * offset) / (2 * level);
+          compare(`μ crossing ${what} (offset)`, x - muHat, x - muHat - dx, Math.max(1e-5, 2e-3 * offset));
+        },
+      });
+    }
+  }
+
+  // q0 through Z.
+  const q0 = result.summary!.discovery;
+  if (q0 && result.summary!.mu.value > 0) {
+    checks.push({ fix: [0, 0], judge: (ref, best) => compare('Z = √q0', Math.sqrt(q0.q0), Math.sqrt(Math.max(0, 2 * (ref.nll - best.nll))), 1e-3) });
+  }
+
+  t = performance.now();
+  const fixes: [number, number][] = [[-1, 0], ...checks.map((c) => c.fix)];
+  const key = `agreement-${process.pid}-${++modelCount}`;
+  const run = control.reference ?? (async (task: ColdFitTask) => runColdFits(task));
+  const batches: Promise<ColdFit[]>[] = [];
+  const size = Math.max(1, Math.ceil(fixes.length / 24));
+  for (let k = 0; k < fixes.length; k += size) batches.push(run({ key, model, fixes: fixes.slice(k, k + size) }));
+  const cold = (await Promise.all(batches)).flat();
+  row.seconds.reference = (performance.now() - t) / 1000;
+  const best = cold[0];
+  if (!best.ok) {
+    row.referenceFailed = cold.length;
+    return row;
+  }
+  checks.forEach((c, k) => {
+    const ref = cold[k + 1];
+    if (!ref.ok) {
+      row.referenceFailed++;
+      return;
+    }
+    if (ref.twoMinima) row.severalMinima++;
+    c.judge(ref, best);
+  });
+  return row;
+}

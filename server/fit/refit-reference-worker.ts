@@ -1,0 +1,6 @@
+import { runColdFits, type ColdFit, type ColdFitTask } from './refit-reference';
+
+/** Worker-thread entry of the refit-agreement suite: a batch of reference cold fits. */
+export default function runColdFitBatch(task: ColdFitTask): ColdFit[] {
+  return runColdFits(task);
+}

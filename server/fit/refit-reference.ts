@@ -1,0 +1,83 @@
+import type { ExchangeModel } from '@shared/schemas/exchange';
+import type { FitProblem } from './compiled-model';
+import { createScratch, minimise, type Scratch } from './minimiser';
+import { buildProblem, startPoint } from './problem';
+
+/**
+ * The reference every refit is checked against (MODEL.md §9, last paragraph): a cold fit, that
+ * is a fresh minimisation by Newton with a fresh Hessian at every step (never the warm steps it
+ * checks), to a decrement of 1e-12 instead of the refits' 1e-9, followed by up to three more
+ * Newton steps from where it stopped. It starts from the model's start values with the
+ * parameter held; and since the profile is the minimum over the other parameters, where the
+ * likelihood has more than one minimum (same-side variations, clipped templates) it also starts
+ * from the reference's own best fit with the parameter moved to its value, and keeps the lower
+ * NLL. With no parameter held it is the reference best fit (μ̂ and the minimum NLL).
+ */
+export interface ColdFit {
+  ok: boolean;
+  nll: number;
+  mu: number;
+  /** Newton decrement of the last step taken. */
+  decrement: number;
+  /** The cold fits from the two starts reached different minima (NLLs more than 1e-6 apart). */
+  twoMinima: boolean;
+  message: string | null;
+}
+
+/** The fit options the refit-agreement suite uses: observed data, all signal and control regions. */
+export const REFERENCE_PROBLEM = { dataset: 'observed', asimovMu: 1, controlOnly: false, excludeRegions: [] as string[] } as const;
+
+interface Start {
+  phi: Float64Array;
+  gamma: Float64Array;
+}
+
+/** Newton from one start with φ_index held at value (index −1: nothing held), polished. */
+function coldFrom(problem: FitProblem, index: number, value: number, start: Start, scratch: Scratch): { ok: boolean; nll: number; phi: Float64Array; gamma: Float64Array; decrement: number; message: string | null } {
+  const held = Uint8Array.from(problem.held);
+  const phi = Float64Array.from(start.phi);
+  if (index >= 0) {
+    held[index] = 1;
+    phi[index] = value;
+  }
+  const p: FitProblem = { ...problem, held };
+  const first = minimise(p, phi, start.gamma, scratch, { tolerance: 1e-12, maxIterations: 200 });
+  if (first.status === 'failed' || first.status === 'cancelled') return { ok: false, nll: NaN, phi, gamma: start.gamma, decrement: first.decrement, message: first.message };
+  const polished = minimise(p, first.phi, first.gamma, scratch, { tolerance: 1e-16, maxIterations: 3 });
+  const last = polished.status !== 'cancelled' && polished.nll <= first.nll ? polished : first;
+  return { ok: true, nll: last.nll, phi: last.phi, gamma: last.gamma, decrement: last.decrement, message: null };
+}
+
+export function coldFit(problem: FitProblem, index: number, value: number, scratch: Scratch = createScratch(problem), best: Start | null = null): ColdFit {
+  const fromStart = coldFrom(problem, index, value, startPoint(problem.model), scratch);
+  const fromBest = best && index >= 0 ? coldFrom(problem, index, value, best, scratch) : null;
+  const runs = [fromStart, fromBest].filter((r) => r?.ok) as NonNullable<typeof fromBest>[];
+  if (runs.length === 0) return { ok: false, nll: NaN, mu: NaN, decrement: NaN, twoMinima: false, message: fromStart.message };
+  const lowest = runs.reduce((a, b) => (b.nll < a.nll ? b : a));
+  const twoMinima = runs.length === 2 && Math.abs(runs[0].nll - runs[1].nll) > 1e-6 * (1 + Math.abs(lowest.nll));
+  return { ok: true, nll: lowest.nll, mu: lowest.phi[0], decrement: lowest.decrement, twoMinima, message: null };
+}
+
+/** A batch of cold fits of one model, as a worker receives it: [parameter index, value] pairs (index −1: nothing held). */
+export interface ColdFitTask {
+  key: string;
+  model: ExchangeModel;
+  fixes: [number, number][];
+}
+
+const prepared = new Map<string, { problem: FitProblem; scratch: Scratch; best: Start | null }>();
+
+/** Runs a batch, building the model's problem and its reference best fit once per key (a worker keeps the last few). */
+export function runColdFits(task: ColdFitTask): ColdFit[] {
+  let entry = prepared.get(task.key);
+  if (!entry) {
+    const problem = buildProblem(task.model, REFERENCE_PROBLEM);
+    const scratch = createScratch(problem);
+    const b = coldFrom(problem, -1, 0, startPoint(problem.model), scratch);
+    entry = { problem, scratch, best: b.ok ? { phi: b.phi, gamma: b.gamma } : null };
+    prepared.set(task.key, entry);
+    while (prepared.size > 3) prepared.delete(prepared.keys().next().value!);
+  }
+  const { problem, scratch, best } = entry;
+  return task.fixes.map(([index, value]) => coldFit(problem, index, value, scratch, best));
+}
