@@ -51,17 +51,18 @@ describe('a convener questions an over-constrained parameter, the owner answers,
     await as(live, 'mira@lantern.example');
     const { page } = live.browser;
     await page.goto(`${live.server.url}/a/${SLUG}/fits/${fitId}/impacts`);
-    await page.getByLabel('Show').selectOption({ label: 'all' });
+    await page.getByRole('radio', { name: 'all' }).check();
     await page.getByRole('button', { name: 'Raise a question on halo_norm' }).click();
     const form = page.getByRole('form', { name: 'Raise a question on halo_norm' });
-    await form.getByLabel('Title').fill('Why is halo_norm constrained to about 0.4?');
+    // the demo holds an answered question on it already; this one asks something else
+    await form.getByLabel('Title').fill('Does the halo control region alone set the width of halo_norm?');
     await form.getByLabel('Question').fill('The beam-halo normalisation ends at 0.41 of its prior width. Which bins constrain it, and is the 30 % variation right?');
     await form.getByRole('button', { name: 'Raise the question' }).click();
     await page.getByRole('link', { name: 'Open the thread' }).waitFor();
     questionId = Number((await page.getByRole('link', { name: 'Open the thread' }).getAttribute('href'))!.split('/').pop());
     expect(questionId).toBeGreaterThan(0);
     // the row is marked now, in words
-    await page.getByRole('table', { name: 'Impact ranking' }).getByRole('img', { name: /unresolved question on this parameter, waiting for an answer/ }).waitFor();
+    await page.getByRole('table', { name: 'Impact ranking' }).getByRole('img', { name: /unresolved question/ }).first().waitFor();
     await screenshot(page, 'review-impacts-question');
   });
 
@@ -109,13 +110,13 @@ describe('a convener questions an over-constrained parameter, the owner answers,
     await screenshot(page, 'review-questions');
     await page.getByLabel('State').selectOption('resolved');
     await page.waitForURL(/state=resolved/);
-    await page.getByRole('table', { name: 'Questions' }).getByRole('link', { name: 'Why is halo_norm constrained to about 0.4?' }).waitFor();
+    await page.getByRole('table', { name: 'Questions' }).getByRole('link', { name: 'Does the halo control region alone set the width of halo_norm?' }).waitFor();
 
     await as(live, 'admin@lantern.example');
     let subjects: { to: string; subject: string }[] = [];
     for (let i = 0; i < 40; i++) {
       const outbox = await api(live.browser, 'GET', '/api/outbox');
-      subjects = (outbox.body as { to: string; subject: string }[]).filter((m) => /halo_norm|halo/i.test(m.subject) || /constrained to about 0.4/.test(m.subject));
+      subjects = (outbox.body as { to: string; subject: string }[]).filter((m) => /alone set the width of halo_norm/.test(m.subject));
       if (subjects.length >= 3) break;
       await new Promise((r) => setTimeout(r, 250));
     }
@@ -133,7 +134,15 @@ describe('a convener questions an over-constrained parameter, the owner answers,
     await page.goto(`${live.server.url}/a/${SLUG}`);
     await page.getByRole('heading', { name: 'This analysis is unblinded' }).waitFor();
     await screenshot(page, 'review-overview');
-    // the blinded demo analysis, as an analyst who may ask to unblind
+    // the blinded demo analysis, where the demo's analyst has asked to unblind: the convener declines for now
+    await as(live, 'mira@lantern.example');
+    await page.goto(`${live.server.url}/a/vireon-search`);
+    await page.getByRole('heading', { name: 'Unblinding has been requested' }).waitFor();
+    await screenshot(page, 'review-overview-requested');
+    await page.getByLabel('Note').fill('Not before the hidden-signal checks are reviewed at the next meeting.');
+    await page.getByRole('button', { name: 'Decline' }).click();
+    await page.getByRole('heading', { name: 'This analysis is blinded' }).waitFor();
+    // as an analyst who may ask to unblind
     await as(live, 'otto@lantern.example');
     await page.goto(`${live.server.url}/a/vireon-search`);
     await page.getByRole('heading', { name: 'This analysis is blinded' }).waitFor();
