@@ -32,7 +32,8 @@ describe('the diagnosis panel', () => {
     expect(within(pull).getByText('+0.200')).toBeTruthy();
     expect(within(pull).getByText('0.440')).toBeTruthy();
     expect(within(pull).getByText('over-constrained (below 0.5)')).toBeTruthy();
-    expect(within(pull).getByRole('img', { name: /impact raised −0.060, lowered \+0.055/ })).toBeTruthy();
+    expect(within(pull).getByRole('img', { name: 'Δμ from +0.055 (θ lowered) to −0.060 (θ raised)' })).toBeTruthy();
+    expect(within(pull).getByRole('img', { name: 'pull +0.20' })).toBeTruthy();
     expect(within(pull).getByText('2')).toBeTruthy();
   });
 

@@ -60,6 +60,9 @@ describe('question markers', () => {
     expect(marker.closest('tr')?.textContent).toContain('jes');
     expect(within(table).getAllByRole('img', { name: /unresolved question/ })).toHaveLength(1);
 
+    // lumi is below the 90 % cut: every parameter is a click away
+    expect(within(table).queryByRole('button', { name: 'Raise a question on lumi' })).toBeNull();
+    await user.click(screen.getByRole('radio', { name: 'all' }));
     await user.click(within(table).getByRole('button', { name: 'Raise a question on lumi' }));
     expect(router.state.location.pathname).toBe('/a/demo/fits/7/impacts');
     const form = screen.getByRole('form', { name: 'Raise a question on lumi' });

@@ -5,7 +5,7 @@ import type { NuisanceReport } from '@shared/schemas/fit';
 import type { FitPart, FitResultHead } from '@shared/schemas/fits';
 import type { Diagnosis, DiagnosisClaim, DiagnosisRegion } from '@shared/schemas/review';
 import { fitRegionChart } from '../../../components/charts/fit-region-chart';
-import { ConstraintMeter, ImpactGlyph, PullGlyph } from '../../../components/charts/parameter-glyphs';
+import { ConstraintMeter, ImpactRange, PullMeter } from '../../../components/charts/parameter-glyphs';
 import { ScanChart } from '../../../components/charts/scan-chart';
 import { StackedChart } from '../../../components/charts/stacked-chart';
 import { ConvergenceBadge } from '../../../components/status/convergence-badge';
@@ -277,21 +277,23 @@ export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, ques
           <dl className="grid grid-cols-[auto_1fr] items-center gap-x-4 gap-y-1.5 text-sm">
             <DefinitionRow label="Pull" title="(θ̂ − 0)/1: the shift of the best fit in units of the prior width">
               <span className="flex items-center gap-2">
-                <PullGlyph n={n} /> {formatSigned(d.pull, 3)}
+                {formatSigned(d.pull, 3)} <PullMeter n={n} />
                 {isStronglyPulled(n) && <Badge tone="plum">strongly pulled</Badge>}
               </span>
             </DefinitionRow>
             <DefinitionRow label="Constraint" title="σ̂/1: post-fit width over the prior width">
               <span className="flex items-center gap-2">
-                <ConstraintMeter n={n} threshold={threshold} /> {formatFixed(d.constraint, 3)}
+                {formatFixed(d.constraint, 3)} <ConstraintMeter n={n} threshold={threshold} />
                 {d.overConstrained && <Badge tone="amber" title={`Post-fit width below ${threshold} of the prior`}>over-constrained (below {threshold})</Badge>}
               </span>
             </DefinitionRow>
             <DefinitionRow label="Post-fit impact" title="Δμ with θ fixed at θ̂ + σ̂ / θ̂ − σ̂, all else refitted, in units of μ">
               {d.postfitImpact ? (
                 <span className="flex items-center gap-2">
-                  <ImpactGlyph up={d.postfitImpact.up} down={d.postfitImpact.down} preUp={d.prefitImpact?.up} preDown={d.prefitImpact?.down} scale={impactScale} />
-                  {formatSigned(d.postfitImpact.up, 4)} / {formatSigned(d.postfitImpact.down, 4)}
+                  <span className="tabular-nums" title="θ raised / θ lowered">
+                    {formatSigned(d.postfitImpact.up, 4)} / {formatSigned(d.postfitImpact.down, 4)}
+                  </span>
+                  <ImpactRange up={d.postfitImpact.up} down={d.postfitImpact.down} preUp={d.prefitImpact?.up ?? null} preDown={d.prefitImpact?.down ?? null} scale={impactScale} width={144} />
                 </span>
               ) : (
                 <span className="text-ink-muted">not computed (run the fit with full impacts)</span>
@@ -307,7 +309,10 @@ export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, ques
               {d.rank ?? '–'}
             </DefinitionRow>
           </dl>
-          <p className="mt-2 text-xs text-ink-muted">Glyphs: the pull with ±σ̂ on the prior band ±1 (±2 lighter); the constraint meter marks the prior (1) and the {threshold} threshold.</p>
+          <p className="mt-2 text-xs text-ink-muted">
+            Meters: |pull| up to 3 prior widths, marked at 1; the constraint up to 1.2, marked at the {threshold} threshold and at the prior width 1. The impact’s bar covers Δμ as θ moves from θ̂ − σ̂
+            (ring) to θ̂ + σ̂ (dot); the ticks are the pre-fit θ̂ ± 1.
+          </p>
         </Section>
 
         <Section evidence="width" title="Width: the data alone against the fit" lit={lit === 'width'}>

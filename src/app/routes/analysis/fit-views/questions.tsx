@@ -3,7 +3,7 @@ import type { FitDetail, FitResultHead } from '@shared/schemas/fits';
 import { Panel } from '../../../../components/ui/page';
 import { fitName } from '../../../../lib/fits';
 import { useCan } from '../../../../features/analyses/use-can';
-import { ImpactTable } from '../../../../features/fits/components/impact-table';
+import { ImpactRanking } from '../../../../features/fits/components/impact-ranking';
 import { PullsView } from '../../../../features/fits/components/pulls-view';
 import { RaiseQuestionForm } from '../../../../features/questions/components/raise-question-form';
 import { useQuestionMarks } from '../../../../features/questions/use-question-marks';
@@ -36,7 +36,7 @@ export function ImpactsWithQuestions({ slug, fit, result }: { slug: string; fit:
           </Panel>
         </div>
       )}
-      <ImpactTable slug={slug} fitId={fit.id} result={result} marks={marks} onRaise={mayRaise ? setRaising : undefined} />
+      <ImpactRanking slug={slug} fitId={fit.id} fitLabel={fitName(fit)} result={result} marks={marks} onRaise={mayRaise ? setRaising : undefined} />
     </div>
   );
 }
