@@ -39,7 +39,9 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   }
   const options = parsed.data;
   const { signal, pool } = control;
-  const progress = (fraction: number, stage: string) => control.onProgress?.(Math.min(1, fraction), stage);
+  // Never backwards: the refits that need only the best fit report while the Asimov fits run.
+  let reported = 0;
+  const progress = (fraction: number, stage: string) => control.onProgress?.((reported = Math.max(reported, Math.min(1, fraction))), stage);
   throwIfAborted(signal);
 
   // §9.3–9.4 change the model; §9.5 may change the data (an Asimov dataset built on a reference fit)
@@ -125,14 +127,12 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     }
     return contexts.push(c.context) - 1;
   };
-  const expectedCtx = muFree && options.expected ? asimovContext(1, 'expected significance') : null;
-  const limitCtx = muFree && options.limit ? asimovContext(0, 'expected limit') : null;
-  progress(0.35, 'asimov');
 
-  // Refits.
+  // Refits. Those that need only the best fit (q0, impacts, scan) start on the pool at once;
+  // the Asimov fits, the refits on them and the tables that need no refit follow in this
+  // thread meanwhile, so that neither waits for the other.
   const zeroAllowed = m.lower[0] <= 0 && m.upper[0] >= 0;
   const q0Job = muFree && zeroAllowed && ctx.phi[0] > 0 ? push({ kind: 'fix', context: 0, index: 0, value: 0 }) : null;
-  const expectedJob = expectedCtx !== null && zeroAllowed && contexts[expectedCtx].phi[0] > 0 ? push({ kind: 'fix', context: expectedCtx, index: 0, value: 0 }) : null;
   // One job per parameter and direction: θ̂ ± σ̂ (post-fit), then θ̂ ± 1 (pre-fit) from there.
   const impactJobs = new Map<number, { up: number; down: number }>();
   if (options.impacts === 'full' && muFree) {
@@ -151,6 +151,19 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     scanPlan = { grid, first: jobs.length };
     sj.forEach(push);
   }
+  const firstWave = jobs.length;
+  const done = [0, 0];
+  const waveProgress = (wave: number, total: number) => (f: number) => {
+    done[wave] = f * total;
+    progress(0.35 + (0.6 * (done[0] + done[1])) / Math.max(1, jobs.length), 'refits');
+  };
+  const firstRun = runJobs([ctx], jobs.slice(), { pool, signal, onProgress: waveProgress(0, firstWave) });
+  firstRun.catch(() => undefined); // awaited below; a cancellation must not surface as unhandled meanwhile
+
+  const expectedCtx = muFree && options.expected ? asimovContext(1, 'expected significance') : null;
+  const limitCtx = muFree && options.limit ? asimovContext(0, 'expected limit') : null;
+  progress(0.35, 'asimov');
+  const expectedJob = expectedCtx !== null && zeroAllowed && contexts[expectedCtx].phi[0] > 0 ? push({ kind: 'fix', context: expectedCtx, index: 0, value: 0 }) : null;
   // §9.7: each group held at its best fit (and every γ, and every θ), μ's q = 1 crossings again
   const breakdownPlan = options.breakdown && muFree ? planBreakdown(ctx, problem, scratch, contexts, push, scanPlan === null, warnings) : null;
   const limitJobs =
@@ -161,7 +174,12 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
         }
       : null;
 
-  const results = await runJobs(contexts, jobs, { pool, signal, onProgress: (f) => progress(0.35 + 0.6 * f, 'refits') });
+  const secondRun = runJobs(contexts, jobs.slice(firstWave), { pool, signal, onProgress: waveProgress(1, jobs.length - firstWave) });
+  secondRun.catch(() => undefined);
+  const information = informationBreakdown(ctx);
+  const yields = { prefit: prefitYields(m), postfit: postfitYields(ctx) };
+  const gammaVariances = Array.from({ length: m.nGamma }, (_, g) => gammaVariance(ctx, g));
+  const results = [...(await firstRun), ...(await secondRun)];
   throwIfAborted(signal);
   const refits = countRefits(results);
   if (refits.failed > 0) warnings.push(`${refits.failed} conditional fit(s) failed on every rung (warm, Newton, cold); the outputs that need them are left empty.`);
@@ -244,7 +262,7 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   const gammaList = Array.from({ length: m.nGamma }, (_, g) => {
     const b = m.gammaBin[g];
     const region = m.regions[m.binRegion[b]];
-    const variance = gammaVariance(ctx, g);
+    const variance = gammaVariances[g];
     return {
       name: `tstat:${region.key}:${b - region.firstBin}`,
       region: region.key,
@@ -317,8 +335,8 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     },
     groupedImpacts,
     scan,
-    information: informationBreakdown(ctx),
-    yields: { prefit: prefitYields(m), postfit: postfitYields(ctx) },
+    information,
+    yields,
     data: dataSection(problem, options),
     variant: variantReport,
   };

@@ -54,7 +54,9 @@ export function createFitPool(options: FitPoolOptions = {}): FitPool {
   const threads = Math.max(1, options.threads ?? os.availableParallelism());
   const workerFile = options.workerFile ?? siblingWorker(import.meta.url, 'fit-worker');
   const filename = workerFile instanceof URL ? workerFile.href : workerFile;
-  const piscina = workerPool(filename, { minThreads: threads, maxThreads: threads, idleTimeout: 60_000, workerData: { niceness: options.niceness ?? 0 } });
+  // Two batches in hand per thread: a worker goes on with the next batch while this thread is
+  // busy (the Asimov fits and the tables of fitModel run here while the refits run there).
+  const piscina = workerPool(filename, { minThreads: threads, maxThreads: threads, concurrentTasksPerWorker: 2, idleTimeout: 60_000, workerData: { niceness: options.niceness ?? 0 } });
   return {
     threads,
     async runBatch(batch, signal) {
