@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { syntheticModel } from '../../server/fit';
-import { screenshot, serverAndBrowser, signIn, type Browser, api } from './support';
+import { readFileSync } from 'node:fs';
+import path from 'node:path';
+import { SCREENSHOTS, screenshot, serverAndBrowser, signIn, type Browser, api } from './support';
 
 /** Calls the API from the signed-in page, with the CSRF token, and returns the JSON answer. */
 async function waitForFit(browser: Browser, slug: string, id: number) {
@@ -49,6 +51,72 @@ describe('an analyst freezes a version, runs a fit and reads every review screen
     expect(body.result.status).toBe('converged');
     await page.goto(`${base}/summary`);
     await page.getByText(body.result.summary.mu.value.toFixed(2)).first().waitFor();
+  });
+
+  it('reads the impact ranking: shares of σ_μ², the cut and its running share, sorting, a diagnosis link, and the figure as PNG and SVG', async () => {
+    const { page } = live.browser;
+    const base = page.url().replace(/\/summary$/, '');
+    const id = Number(base.split('/').pop());
+    const { body } = await api(live.browser, 'GET', `/api/analyses/cascade-rate/fits/${id}`);
+    type N = { name: string; fixed: boolean; postfitImpact: { up: number | null; down: number | null } | null };
+    // the numbers the view must show, from the stored result (likelihood.md §6): ranked by max(|Δμ⁺|, |Δμ⁻|),
+    // each with s = (|Δμ⁺| + |Δμ⁻|)/2 and its share s²/σ_μ²
+    const sigma = body.result.summary.mu.error as number;
+    const ranked = (body.result.nuisance as N[])
+      .filter((n) => !n.fixed && n.postfitImpact)
+      .map((n) => ({ name: n.name, size: Math.max(Math.abs(n.postfitImpact!.up ?? 0), Math.abs(n.postfitImpact!.down ?? 0)), s: (Math.abs(n.postfitImpact!.up ?? 0) + Math.abs(n.postfitImpact!.down ?? 0)) / 2 }))
+      .sort((a, b) => b.size - a.size);
+    let sum = 0;
+    const rows = ranked.map((r) => ({ ...r, share: (r.s * r.s) / (sigma * sigma), cumulative: (sum += (r.s * r.s) / (sigma * sigma)) }));
+    const keptAt = (level: number) => rows.findIndex((r) => r.cumulative >= level * sum * (1 - 1e-9)) + 1;
+    const pct = (v: number) => `${(v * 100).toFixed(1)} %`;
+
+    await page.goto(`${base}/impacts`);
+    const table = page.getByRole('table', { name: 'Impact ranking' });
+    await table.waitFor();
+    const names = () => table.locator('tbody tr').evaluateAll((trs) => trs.map((tr) => tr.querySelector('a')?.textContent));
+    const status = page.getByRole('status', { name: 'What the cut keeps' });
+    // 90 % by default
+    const k90 = keptAt(0.9);
+    expect(k90).toBeLessThan(rows.length);
+    expect(await names()).toEqual(rows.slice(0, k90).map((r) => r.name));
+    expect(await status.textContent()).toContain(`${k90} of ${rows.length} parameters hold ${pct(rows[k90 - 1].cumulative)} of σ_μ²`);
+    const shares = await table.locator('tbody tr td:nth-child(5)').allTextContents();
+    expect(shares).toEqual(rows.slice(0, k90).map((r) => pct(r.share)));
+    await screenshot(page, 'impacts-cut-90');
+
+    // 50 %: fewer rows; all: every free parameter
+    await page.getByRole('radio', { name: '50 %' }).check();
+    await expect.poll(names).toEqual(rows.slice(0, keptAt(0.5)).map((r) => r.name));
+    await page.getByRole('radio', { name: 'all' }).check();
+    await expect.poll(names).toEqual(rows.map((r) => r.name));
+    const cumulative = await table.locator('tbody tr td:nth-child(6)').allTextContents();
+    expect(cumulative.map((c) => c.trim())).toEqual(rows.map((r) => pct(r.cumulative)));
+
+    // sorting by |pull| puts halo_norm (pulled by +0.5) first; the impact column brings the rank back
+    await table.getByRole('button', { name: /^Pull/ }).click();
+    expect((await names())[0]).toBe('halo_norm');
+    await table.getByRole('button', { name: /^Δμ as θ moves/ }).click();
+    await expect.poll(names).toEqual(rows.map((r) => r.name));
+
+    // the figure downloads draw the same design
+    await page.getByRole('radio', { name: '90 %' }).check();
+    const png = page.waitForEvent('download');
+    await page.getByRole('button', { name: /^Download Impact ranking.* as PNG$/ }).click();
+    const file = await png;
+    expect(file.suggestedFilename()).toBe('impact-ranking-observed-full-impacts.png');
+    await file.saveAs(path.join(SCREENSHOTS, 'impacts-export.png'));
+    const svg = page.waitForEvent('download');
+    await page.getByRole('button', { name: /^Download Impact ranking.* as SVG$/ }).click();
+    const text = readFileSync(await (await svg).path(), 'utf8');
+    expect(text).toContain('share of σ_μ²');
+    for (const r of rows.slice(0, k90)) expect(text).toContain(`>${r.name}<`);
+    expect(text).not.toContain(`>${rows[rows.length - 1].name}<`);
+
+    // the name opens the parameter's diagnosis
+    await table.getByRole('link', { name: 'halo_norm' }).click();
+    await page.waitForURL(/\/diagnostics\?parameter=halo_norm$/);
+    await page.goto(`${base}/summary`);
   });
 
   it('runs pseudo-experiments at μ = 0 and sets q0, μ̂ and the pulls against their asymptotic distributions', async () => {
