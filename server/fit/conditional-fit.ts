@@ -71,7 +71,7 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
   const delta = value - (warm ? warm.value : ctx.phi[index]);
   const response = new Float64Array(n);
   for (let a = 0; a < n; a++) response[a] = (V[idx[a] * P + index] * delta) / Vii;
-  const start = linearResponseStart(ctx, conditional, idx, base, response, gamma, scratch);
+  const start = linearResponseStart(ctx, conditional, idx, base, response, gamma, scratch, ctx.nll + ((value - ctx.phi[index]) ** 2) / (2 * Vii));
   return ladder(ctx, conditional, idx, index, value, start.phi, gamma, scratch, tolerance, MAX_STEPS, start.F);
 }
 
@@ -84,19 +84,36 @@ export function conditionalFit(ctx: FitContext, index: number, value: number, sc
  * settle in that basin. Checking F first keeps the start on the side of the base point. γ is
  * profiled at the chosen point (in place).
  */
-function linearResponseStart(ctx: FitContext, conditional: FitProblem, idx: Int32Array, base: Float64Array, response: Float64Array, gamma: Float64Array, scratch: Scratch): { phi: Float64Array; F: number } {
-  const F0 = profiledNll(ctx.problem, base, Float64Array.from(gamma), scratch);
+function linearResponseStart(
+  ctx: FitContext,
+  conditional: FitProblem,
+  idx: Int32Array,
+  base: Float64Array,
+  response: Float64Array,
+  gamma: Float64Array,
+  scratch: Scratch,
+  predicted: number,
+): { phi: Float64Array; F: number } {
   const trial = new Float64Array(base.length);
   const trialGamma = new Float64Array(gamma.length);
+  // F at the base is needed only when the linear response does worse than the quadratic model
+  // of the profile predicts, F̂ + Δ²/(2V_ii), which is no more than F at the base in that model.
+  let F0 = NaN;
   for (let alpha = 1; alpha >= 0.125; alpha /= 2) {
     trial.set(base);
     for (let a = 0; a < idx.length; a++) trial[idx[a]] += alpha * response[a];
     if (outOfBounds(conditional, trial)) continue;
     trialGamma.set(gamma);
     const F = profiledNll(ctx.problem, trial, trialGamma, scratch);
-    if (Number.isFinite(F) && (F < F0 || !Number.isFinite(F0))) {
+    if (alpha === 1 && Number.isFinite(F) && F <= predicted) {
       gamma.set(trialGamma);
       return { phi: trial, F };
+    }
+    if (Number.isNaN(F0)) F0 = profiledNll(ctx.problem, base, Float64Array.from(gamma), scratch);
+    if (Number.isFinite(F) && (F < F0 || !Number.isFinite(F0))) {
+      gamma.set(trialGamma);
+      // The scratch now holds other yields: the warm rung evaluates F here again.
+      return { phi: trial, F: NaN };
     }
   }
   return { phi: base, F: NaN };
