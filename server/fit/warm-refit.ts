@@ -91,13 +91,15 @@ export function warmRefit(
     const Vii = V[fixedIndex * P + fixedIndex];
     for (let a = 0; a < n; a++) vi[a] = V[idx[a] * P + fixedIndex] / Vii;
   }
+  // x is scattered into all P dense parameters (zero where held, V's rows there are zero too),
+  // so that each row of V is read contiguously: no index lookup in the n² loop.
+  const xFull = new Float64Array(P);
   const applyH0 = (x: Float64Array, out: Float64Array) => {
+    for (let a = 0; a < n; a++) xFull[idx[a]] = x[a];
     let vx = 0;
-    if (fixedIndex >= 0) for (let a = 0; a < n; a++) vx += V[fixedIndex * P + idx[a]] * x[a];
+    if (fixedIndex >= 0) vx = rowTimes(V, fixedIndex * P, xFull, P);
     for (let a = 0; a < n; a++) {
-      const row = idx[a] * P;
-      let acc = 0;
-      for (let b = 0; b < n; b++) acc += V[row + idx[b]] * x[b];
+      const acc = rowTimes(V, idx[a] * P, xFull, P);
       out[a] = fixedIndex >= 0 ? acc - vi[a] * vx : acc;
     }
   };
@@ -314,6 +316,19 @@ function settleNormalisations(
     if (decq < 1e-4) break;
   }
   return { F, steps, gradientIsCurrent };
+}
+
+/** Σ_k M[row + k] x[k] over k < len, with two partial sums. */
+function rowTimes(M: Float64Array, row: number, x: Float64Array, len: number): number {
+  let s0 = 0;
+  let s1 = 0;
+  let k = 0;
+  for (; k + 1 < len; k += 2) {
+    s0 += M[row + k] * x[k];
+    s1 += M[row + k + 1] * x[k + 1];
+  }
+  if (k < len) s0 += M[row + k] * x[k];
+  return s0 + s1;
 }
 
 /** F(φ) = min_γ NLL(φ, γ): γ profiled in closed form into `gamma`, the yields left in the scratch. */
