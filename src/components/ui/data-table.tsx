@@ -92,6 +92,9 @@ const FRAMES = {
   plain: 'overflow-auto',
 } as const;
 
+/** The height a wide table's frame keeps within: the window less the top bar and a strip of page. */
+const WINDOW_HEIGHT = 'max-h-[calc(100dvh-7rem)]';
+
 type SortableColumn = {
   getCanSort?: () => boolean;
   getIsSorted?: () => false | 'asc' | 'desc';
@@ -195,7 +198,11 @@ export type TableViewProps<TFeatures extends TableFeatures, TData extends RowDat
   empty?: ReactNode;
   /** The column whose cells name their row: written as row headers (<th scope="row">). */
   rowHeader?: string;
-  /** Keep the first column in view while a wide table scrolls sideways. */
+  /**
+   * Keep the first column in view while a wide table scrolls sideways. Such a frame is also held
+   * within the window's height (unless `frameClass` gives a height), so that its sideways scroll
+   * bar is in view with its headers rather than below the last row.
+   */
   stickyFirstColumn?: boolean;
   /** The frame: 'panel' (default) on its own, 'plain' inside a panel. */
   frame?: keyof typeof FRAMES;
@@ -242,8 +249,9 @@ export function TableView<TFeatures extends TableFeatures, TData extends RowData
   const columnsKey = leaves.map((h) => h.column.id).join(' ');
   const rows = table.getRowModel().rows;
   const RowComponent = memoRows ? MemoRowView : RowView;
+  const heightCap = stickyFirstColumn && !/(^|\s)max-h-/.test(frameClass) ? WINDOW_HEIGHT : '';
   return (
-    <div className={`${FRAMES[frame]} ${frameClass}`}>
+    <div className={`${FRAMES[frame]} ${heightCap} ${frameClass}`}>
       <table className="w-full border-collapse text-sm" aria-label={label}>
         {caption && <caption className="px-3 py-1.5 text-left text-xs text-ink-muted">{caption}</caption>}
         <thead className="sticky top-0 z-[2]">

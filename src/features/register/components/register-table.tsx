@@ -64,13 +64,13 @@ function indexed(e: EntrySummary): string {
 function ListCell({ items, noun }: { items: string[]; noun: [string, string] }) {
   if (!items.length) return <span className="text-ink-muted">none yet</span>;
   return (
-    <span title={`Affects ${items.length} ${items.length === 1 ? noun[0] : noun[1]}: ${items.join(', ')}`} className="block max-w-[12rem] truncate text-xs">
+    <span title={`Affects ${items.length} ${items.length === 1 ? noun[0] : noun[1]}: ${items.join(', ')}`} className="block max-w-[8rem] truncate text-xs">
       {items.join(', ')}
     </span>
   );
 }
 
-/** Short values (key, group, owner, state, the numbers) stay on one line so rows stay one line high; labels and lists may wrap. */
+/** Short values (key, owner, state, the numbers) stay on one line; labels and group names may wrap, and the lists are cut short (all of it on hover). */
 function makeColumns(slug: string) {
   return col.columns([
     col.accessor('key', {
@@ -106,7 +106,8 @@ function makeColumns(slug: string) {
       header: 'Group',
       sortFn: 'text',
       filterFn: 'exact',
-      meta: { nowrap: true },
+      // a long group name wraps, so that the default columns fit beside the navigation at 1440 px
+      meta: { cellClass: 'min-w-[6rem]' },
       cell: (c) => c.getValue() || <span className="text-ink-muted">none</span>,
     }),
     col.accessor((e) => e.owner?.name ?? '', {
