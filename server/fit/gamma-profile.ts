@@ -52,7 +52,7 @@ export function profileGammas(
   ws: Workspace,
   globals?: GlobalObservables,
 ): void {
-  evaluateYields(model, phi, gamma, ws);
+  evaluateYields(model, phi, gamma, ws, false, false);
   const centre = globals?.gamma;
   for (let g = 0; g < model.nGamma; g++) {
     if (gammaHeld[g]) continue;

@@ -16,7 +16,7 @@
  * ½(gᵀx_k + r_kᵀM r_k): the first term is exact, the second is the remainder measured with M;
  * the loop stops once that remainder is below a thousandth of the first term (or of the
  * tolerance), so an error of M by a factor of a few changes the decrement by less than 1 %, or
- * once even ten times the remainder leaves the decrement below a tenth of the tolerance.
+ * once even four times the remainder leaves the decrement below half the tolerance.
  */
 
 export interface NewtonCheck {
@@ -66,9 +66,9 @@ export function newtonCheck(problem: NewtonCheckProblem, g: Float64Array, tolera
     const rzNew = dot(r, z, n);
     remainder = Math.max(0, rzNew);
     const gx = dot(g, x, n);
-    // Decided: the remainder is small against the decrement, or even ten times it leaves the
-    // decrement below a tenth of the tolerance (M would have to miss H⁻¹ tenfold along r).
-    if (remainder <= 1e-3 * Math.max(gx, tolerance) || gx + 10 * remainder <= 0.2 * tolerance) break;
+    // Decided: the remainder is small against the decrement, or even four times it leaves the
+    // decrement below half the tolerance (M would have to miss H⁻¹ fourfold along r).
+    if (remainder <= 1e-3 * Math.max(gx, tolerance) || gx + 4 * remainder <= 0.5 * tolerance) break;
     const beta = rzNew / rz;
     for (let a = 0; a < n; a++) p[a] = z[a] + beta * p[a];
     rz = rzNew;

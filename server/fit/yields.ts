@@ -49,8 +49,11 @@ export function createWorkspace(m: CompiledModel): Workspace {
 
 const u = new Float64Array(3);
 
-/** Fills the workspace at (φ, γ). With `all` false, samples outside the fit are skipped. */
-export function evaluateYields(m: CompiledModel, phi: Float64Array, gamma: Float64Array, ws: Workspace, all = false): void {
+/**
+ * Fills the workspace at (φ, γ). With `all` false, samples outside the fit are skipped. With
+ * `withGammas` false, ν_sb and ν_b are left for applyGammas (γ profiling sets γ first).
+ */
+export function evaluateYields(m: CompiledModel, phi: Float64Array, gamma: Float64Array, ws: Workspace, all = false, withGammas = true): void {
   const { E, c, cMu, cK, A, shapeCoef, scaleD1, scaleD2, u0: uu0, u1: uu1, u2: uu2 } = ws;
   // The even part u(θ) of every nuisance parameter, once.
   for (let p = m.thetaStart; p < m.nDense; p++) {
@@ -107,7 +110,7 @@ export function evaluateYields(m: CompiledModel, phi: Float64Array, gamma: Float
       for (; j < nb; j++) A[sb0 + j] += theta * shapeHd[off + j] + u0 * shapeHs[off + j];
     }
   }
-  applyGammas(m, gamma, ws, all);
+  if (withGammas) applyGammas(m, gamma, ws, all);
 }
 
 /** ν_sb = c E A⁺ γ and ν_b = Σ_s ν_sb from the per-sample factors already in the workspace. */
