@@ -51,12 +51,12 @@ export async function seedStory(ctx: AppContext, baseUrl: string, options: { wai
   await startReviewSet(ctx, ottoV, { version: vv.number, label: 'Before asking to unblind' });
 
   // the register's review loop: one entry submitted, one sent back with a comment
-  await reviewEntry(ctx, await as(V, 'juno@lantern.example'), 'calo_nonlin', { action: 'submit' }, baseUrl);
+  await reviewEntry(ctx, await as(V, 'juno@lantern.example'), 'noise_model', { action: 'submit' }, baseUrl);
   await reviewEntry(
     ctx,
     await as(V, 'mira@lantern.example'),
-    'flare_iso',
-    { action: 'send_back', comment: 'Please add the tag-and-probe fit in the two lowest transverse-energy bins, and say why the probe selection is tighter than in the signal regions.' },
+    'cascade_shape',
+    { action: 'send_back', comment: 'Please show the alternative extrapolation against the sideband data, and say why its slope differs from the nominal by more than the fit uncertainty.' },
     baseUrl,
   );
 

@@ -60,18 +60,18 @@ describe('the demo on its first start', () => {
 
   it('holds an entry awaiting review, one sent back with a comment, and a pending request to unblind', async () => {
     const mira = await as('mira@lantern.example');
-    const nonlin = await mira.get('/api/analyses/vireon-search/entries/calo_nonlin');
+    const nonlin = await mira.get('/api/analyses/vireon-search/entries/noise_model');
     expect(nonlin.state).toBe('submitted');
-    const iso = await mira.get('/api/analyses/vireon-search/entries/flare_iso');
+    const iso = await mira.get('/api/analyses/vireon-search/entries/cascade_shape');
     expect(iso.state).toBe('sent_back');
-    expect(iso.revisions[0].summary).toMatch(/^Sent back\. Comment: Please add/);
+    expect(iso.revisions[0].summary).toMatch(/^Sent back\. Comment: Please show the alternative extrapolation/);
     expect((await mira.get('/api/analyses/vireon-search/blinding')).state).toBe('unblinding_requested');
   });
 
   it('has the e-mails these produced in the outbox', async () => {
     const admin = await as('admin@lantern.example');
     const subjects = ((await admin.get('/api/outbox')) as { subject: string }[]).map((m) => m.subject);
-    for (const expected of [/calo_nonlin awaits review/, /flare_iso was sent back/, /Question on halo_norm/, /Answer on halo_norm/, /resolved/, /Unblinding requested by/])
+    for (const expected of [/noise_model awaits review/, /cascade_shape was sent back/, /Question on halo_norm/, /Answer on halo_norm/, /resolved/, /Unblinding requested by/])
       expect(subjects.some((s) => expected.test(s)), String(expected)).toBe(true);
   });
 });
