@@ -62,6 +62,9 @@ export const analyses = pgTable('analyses', {
   muStart: doublePrecision('mu_start').notNull().default(1),
   muMin: doublePrecision('mu_min').notNull().default(-10),
   muMax: doublePrecision('mu_max').notNull().default(20),
+  /** Pruning rules: an effect below this relative size (percent) in every bin is a candidate; a shape whose χ² against flat has a p-value above pruneShapeP too. */
+  pruneBelowPct: doublePrecision('prune_below_pct').notNull().default(0.1),
+  pruneShapeP: doublePrecision('prune_shape_p').notNull().default(0.05),
   /** Constraint below this is flagged over-constrained (docs/likelihood.md §6). */
   overConstraintThreshold: doublePrecision('over_constraint_threshold').notNull().default(0.5),
   /**
@@ -213,6 +216,8 @@ export const effects = pgTable(
     /** per-bin variance of the up and down shifts of a shape effect, when the upload gave them */
     upShiftVariance: jsonb('up_shift_variance').$type<number[] | null>(),
     downShiftVariance: jsonb('down_shift_variance').$type<number[] | null>(),
+    /** pruned by an analyst: kept in the register, marked, and left out of frozen versions */
+    pruned: boolean('pruned').notNull().default(false),
     /** how a shape effect was smoothed (method and parameters) and its variation as uploaded, or null */
     smoothing: jsonb('smoothing').$type<{ method: string; params: Record<string, number>; original: { up: number[]; down: number[] }; by: string; at: string } | null>(),
     /** largest |variation − nominal| / nominal over the bins, in percent; stored when written (−1: not yet computed) */
@@ -220,6 +225,28 @@ export const effects = pgTable(
     uploadId: integer('upload_id').references(() => uploads.id, { onDelete: 'set null' }),
   },
   (t) => [uniqueIndex('effects_entry_region_process_kind').on(t.entryId, t.regionId, t.processId, t.kind)],
+);
+
+/**
+ * What a change of the model does to the analysis's latest fit (fit/what-if.ts): after an upload
+ * to an entry, or for effects an analyst considers pruning. Computed once, not a stored fit.
+ */
+export const impactChecks = pgTable(
+  'impact_checks',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    entryId: integer('entry_id').references(() => entries.id, { onDelete: 'cascade' }),
+    kind: varchar('kind', { length: 20 }).notNull(),
+    /** the fit it is compared with */
+    fitId: integer('fit_id').references(() => fits.id, { onDelete: 'cascade' }),
+    state: varchar('state', { length: 20 }).notNull().default('running'),
+    result: jsonb('result'),
+    failure: text('failure'),
+    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+  },
+  (t) => [index('impact_checks_entry').on(t.entryId)],
 );
 
 /** Raw uploaded files kept for provenance. */

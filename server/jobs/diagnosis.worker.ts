@@ -1,18 +1,29 @@
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptions } from '@shared/schemas/fit';
 import { diagnoseParameter, type ParameterDiagnosisNumbers } from '../fit/diagnosis';
+import { whatIf, type WhatIfInput, type WhatIfOutcome } from '../fit/what-if';
 import { lowerThreadPriority } from '../fit/thread-priority';
 
-/** The diagnosis of one parameter, in its own thread: a refit and a scan take seconds on a large model. */
+/**
+ * The diagnosis of one parameter, and what a change of the model does to a stored fit, in a thread
+ * of their own: a refit and a scan take seconds on a large model, and neither waits behind a fit.
+ */
 export type DiagnosisTask = { model: ExchangeModel; options: FitOptions; parameter: string; niceness: number };
+export type WhatIfTask = { whatIf: WhatIfInput; niceness: number };
 
 let lowered = false;
 
-export default function diagnose({ model, options, parameter, niceness }: DiagnosisTask): ParameterDiagnosisNumbers {
+export default function diagnose(task: DiagnosisTask | WhatIfTask): ParameterDiagnosisNumbers | WhatIfOutcome {
   if (!lowered) {
-    lowerThreadPriority(niceness);
+    lowerThreadPriority(task.niceness);
     lowered = true;
   }
+  if ('whatIf' in task) {
+    const outcome = whatIf(task.whatIf);
+    const at = nonFiniteAt(outcome);
+    return at ? { ...outcome, failure: `a number came out NaN or infinite (${at}); check the model for extreme yields` } : outcome;
+  }
+  const { model, options, parameter } = task;
   const numbers = diagnoseParameter(model, options, parameter, 21);
   // JSON would turn a NaN into null without a word: a diagnosis with one is reported as failed
   const at = nonFiniteAt(numbers);

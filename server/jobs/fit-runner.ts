@@ -5,7 +5,8 @@ import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptions } from '@shared/schemas/fit';
 import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
 import { siblingWorker, workerPool } from '../fit/pool';
-import type { DiagnosisTask } from './diagnosis.worker';
+import type { DiagnosisTask, WhatIfTask } from './diagnosis.worker';
+import type { WhatIfInput, WhatIfOutcome } from '../fit/what-if';
 import { executeFit, INTERRUPTED } from './execute-fit';
 import { localRunner } from './local-runner';
 import { startJobThread, type JobThread } from './fit-job';
@@ -23,6 +24,8 @@ export type FitRunner = {
   recover: () => Promise<void>;
   /** resolves when the queue is empty and nothing runs */
   idle: () => Promise<void>;
+  /** What a change of the model does to a stored fit, in the same thread as the diagnoses. */
+  whatIf: (input: WhatIfInput) => Promise<WhatIfOutcome>;
   /** One parameter's diagnosis numbers, computed in a thread of their own (fits do not hold them up). */
   diagnose: (model: ExchangeModel, options: FitOptions, parameter: string) => Promise<ParameterDiagnosisNumbers>;
   close: () => Promise<void>;
@@ -48,6 +51,7 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
     cancel: runner.cancel,
     recover: runner.recover,
     idle: runner.idle,
+    whatIf: async (input) => (await diagnosisThread().run({ whatIf: input, niceness: options.niceness ?? 0 } satisfies WhatIfTask)) as WhatIfOutcome,
     diagnose: async (model, fitOptions, parameter) =>
       (await diagnosisThread().run({ model, options: fitOptions, parameter, niceness: options.niceness ?? 0 } satisfies DiagnosisTask)) as ParameterDiagnosisNumbers,
     close: async () => {

@@ -36,6 +36,7 @@ import { readUpload } from '../uploads/upload';
 import { groupIdFor } from './groups.service';
 import { personal, withRoles } from './recipients.service';
 import { readVariationFile, shapePrecision } from './variation-files';
+import { checkUpload, uploadCheckOf } from './impact-checks.service';
 
 
 /** What the caller may do with this entry: the permission table plus ownership and review state. */
@@ -112,6 +113,7 @@ export async function getEntryDetail(ctx: AppContext, access: Access, key: strin
       after: r.after ?? undefined,
     })),
     can: entryPermissions(access, entry),
+    impactCheck: await uploadCheckOf(ctx, access, entry.id),
   };
 }
 
@@ -340,6 +342,8 @@ export async function uploadVariations(
     });
   });
   if (backToReview) await notifySubmitted(ctx, { to: await withRoles(ctx, access.analysis.id, 'convener'), baseUrl, analysis: access.analysis, entry, by: access.userName, reason: 'uploaded new variations for the accepted' });
+  // what the new effects do to the latest fit, shown on the entry once the refit is done
+  await checkUpload(ctx, access, entry);
   return { ...preview, saved: true };
 }
 

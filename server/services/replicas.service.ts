@@ -10,6 +10,7 @@ import { notifySubmitted } from '../mail/notifications';
 import { readUpload } from '../uploads/upload';
 import { envelope, principalComponents, replicaSpread } from '../variations/replicas';
 import { assertMayEdit } from './entries.service';
+import { checkUpload } from './impact-checks.service';
 import { withRoles } from './recipients.service';
 import { readReplicaFile } from './replica-files';
 
@@ -91,5 +92,6 @@ export async function uploadReplicas(ctx: AppContext, access: Access, key: strin
     }
   });
   if (backToReview) await notifySubmitted(ctx, { to: await withRoles(ctx, access.analysis.id, 'convener'), baseUrl, analysis: access.analysis, entry, by: access.userName, reason: 'uploaded a replica set for the accepted' });
+  await checkUpload(ctx, access, entry);
   return { ...preview, saved: true };
 }

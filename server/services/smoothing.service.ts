@@ -9,6 +9,7 @@ import { conflict, notFound, unprocessable } from '../errors';
 import { notifySubmitted } from '../mail/notifications';
 import { smoothVariation, type SmoothingMethod } from '../variations/smoothing';
 import { assertMayEdit } from './entries.service';
+import { checkUpload } from './impact-checks.service';
 import { withRoles } from './recipients.service';
 import { noiseWarnings, shapePrecision } from './variation-files';
 
@@ -78,5 +79,6 @@ export async function smoothEffect(ctx: AppContext, access: Access, key: string,
   });
   if (backToReview)
     await notifySubmitted(ctx, { to: await withRoles(ctx, access.analysis.id, 'convener'), baseUrl, analysis: access.analysis, entry, by: access.userName, reason: 'smoothed a variation of the accepted' });
+  await checkUpload(ctx, access, entry);
   return { ...preview, saved: true };
 }

@@ -60,6 +60,7 @@ export function queuedFitRunner(db: Db, queue: Queue, local: FitRunner, log: (li
       timer ??= setInterval(sweep, SWEEP_MS);
     },
     diagnose: local.diagnose,
+    whatIf: local.whatIf,
     close: async () => {
       if (timer) clearInterval(timer);
       await local.close();

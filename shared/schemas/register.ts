@@ -175,6 +175,26 @@ export const revisionSchema = z.object({
 });
 export type Revision = z.infer<typeof revisionSchema>;
 
+const change = z.object({ before: z.number().nullable(), after: z.number().nullable() });
+/**
+ * What the entry's latest upload does to the analysis's latest converged fit (services/impact-checks):
+ * μ̂ and σ_μ before and after, the entry's post-fit impact and rank, and every parameter whose pull
+ * or constraint moved by more than 0.1. Numbers the reference fit may not show (μ hidden) are null.
+ */
+export const impactCheckSchema = z.object({
+  /** withheld: the fit it was compared with read a region blinded since */
+  state: z.enum(['running', 'done', 'failed', 'withheld']),
+  fit: z.object({ id: z.number(), label: z.string() }).nullable(),
+  createdAt: z.string(),
+  failure: z.string().nullable(),
+  mu: change.extend({ fixed: z.boolean() }).nullable(),
+  muError: change.nullable(),
+  focus: z.array(z.object({ name: z.string(), pull: change, constraint: change, impact: z.object({ up: z.number().nullable(), down: z.number().nullable() }).nullable(), rankBefore: z.number().nullable(), rankAfter: z.number().nullable() })),
+  moved: z.array(z.object({ name: z.string(), pull: change, constraint: change })),
+  seconds: z.number().nullable(),
+});
+export type ImpactCheck = z.infer<typeof impactCheckSchema>;
+
 export const entryDetailSchema = z.object({
   key: z.string(),
   label: z.string(),
@@ -189,6 +209,8 @@ export const entryDetailSchema = z.object({
   updatedAt: z.string(),
   effects: z.array(effectViewSchema),
   revisions: z.array(revisionSchema),
+  /** what its latest upload does to the analysis's latest fit; null when none was checked */
+  impactCheck: impactCheckSchema.nullable().default(null),
   /** what the caller may do with this entry (edit, upload, submit, accept, sendBack, retire, reopen) */
   can: z.object({
     edit: z.boolean(),

@@ -32,6 +32,7 @@ function entry(overrides: Partial<EntryDetail> = {}): EntryDetail {
     effects: [],
     revisions: [],
     can: none,
+    impactCheck: null,
     ...overrides,
   };
 }

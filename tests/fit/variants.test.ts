@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { Matrix, inverse } from 'ml-matrix';
-import { jStat } from 'jstat';
+import jStat from 'jstat';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import { fitModel, syntheticModel } from '../../server/fit';
 import { countingModel, expectClose } from './helpers';
