@@ -23,13 +23,13 @@ describe('a systematics contact uploads variations and a convener accepts them',
     await page.goto(`${live.server.url}/a/vireon-search/entries/calo_nonlin`);
     await page.getByRole('heading', { name: /Calorimeter non-linearity/ }).first().waitFor();
     await page.getByLabel('Variation file (CSV or JSON)').setInputFiles({ name: 'calo_nonlin.csv', mimeType: 'text/csv', buffer: Buffer.from(variationCsv()) });
-    await page.getByRole('button', { name: /^preview/i }).click();
+    await page.getByRole('button', { name: 'Preview', exact: true }).click();
     const preview = page.getByRole('region', { name: 'Preview of the upload' });
     await preview.waitFor();
     await preview.getByText(/same side of the nominal in bin 1/).first().waitFor();
     await screenshot(page, 'entry-upload-preview');
 
-    await page.getByRole('button', { name: /^save/i }).click();
+    await page.getByRole('button', { name: /^save \d+ effect/i }).click();
     await page.getByText('calo_nonlin.csv').first().waitFor();
     await page.getByRole('button', { name: 'Submit for review' }).click();
     await page.getByText('Submitted', { exact: true }).first().waitFor();

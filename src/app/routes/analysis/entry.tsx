@@ -9,6 +9,7 @@ import { EntryMetadata } from '../../../features/entry/components/entry-metadata
 import { ReviewPanel } from '../../../features/entry/components/review-panel';
 import { EffectsList } from '../../../features/entry/components/effects-list';
 import { VariationUpload } from '../../../features/entry/components/variation-upload';
+import { ReplicaUpload } from '../../../features/entry/components/replica-upload';
 import { RevisionHistory } from '../../../features/entry/components/revision-history';
 import type { RegionInfo } from '../../../features/entry/components/effect-card';
 import { useMembers } from '../../../features/members/api/get-members';
@@ -83,6 +84,15 @@ export function EntryRoute() {
             {e.can.upload && (
               <Panel title="Upload variations">
                 <VariationUpload slug={slug} entryKey={e.key} regions={regions} processLabels={processLabels} />
+              </Panel>
+            )}
+            {e.can.upload && (
+              <Panel title="Upload alternative templates">
+                <p className="mb-3 max-w-prose text-xs text-ink-muted">
+                  A set of alternative templates of one region and process (scale choices, generator alternatives, replicas) becomes this systematic: their envelope, their spread, or their
+                  principal components.
+                </p>
+                <ReplicaUpload slug={slug} entryKey={e.key} regions={regions} processLabels={processLabels} />
               </Panel>
             )}
             <Panel

@@ -1,6 +1,7 @@
 import type { ReactNode } from 'react';
 import type { VariationWarningView } from '@shared/schemas/register';
 import { Badge } from '../../../components/ui/badge';
+import { ShiftPrecision } from './shift-precision';
 import { VariationChart, variationRatios, type VariationShape } from './variation-chart';
 
 export type RegionInfo = { label: string; observable: string; unit: string };
@@ -14,13 +15,23 @@ function describeSize(v: VariationShape): string {
   return `up to ${(largest * 100).toFixed(largest >= 0.1 ? 1 : 2)} % in a bin`;
 }
 
+/** The name of each warning, in the words of docs/uploads.md. */
+const WARNING_NAMES: Record<string, string> = {
+  'same-side': 'Same side',
+  'over-100-percent': 'Over 100 %',
+  'zero-effect': 'No effect',
+  'flat-shape': 'Flat shape',
+  'empty-nominal': 'Empty nominal',
+  'within-noise': 'Within noise',
+};
+
 export function Warnings({ warnings }: { warnings: VariationWarningView[] }) {
   if (!warnings.length) return null;
   return (
     <ul className="flex flex-col gap-1" aria-label="Warnings">
       {warnings.map((w, i) => (
         <li key={i} className="rounded border border-amber/40 bg-amber-soft/70 px-2 py-1 text-xs text-amber-ink">
-          <span className="font-semibold">Warning: </span>
+          <span className="font-semibold">{WARNING_NAMES[w.code] ?? 'Warning'}: </span>
           {w.message}
         </li>
       ))}
@@ -38,6 +49,8 @@ export function EffectCard({
   processLabel,
   badges,
   footer,
+  wide = false,
+  name,
 }: {
   region: string;
   process: string;
@@ -47,11 +60,15 @@ export function EffectCard({
   processLabel?: string;
   badges?: ReactNode;
   footer?: ReactNode;
+  /** the card takes the whole row of its grid (an editor is open in it) */
+  wide?: boolean;
+  /** the card's accessible name, when region and process do not tell it from its neighbours */
+  name?: string;
 }) {
   const title = `${regionInfo?.label || region} × ${processLabel || process}`;
   const warnBins = warnings.flatMap((w) => w.bins ?? []);
   return (
-    <article aria-label={`Effect on ${region} × ${process}`} className="flex flex-col gap-2 rounded-lg border border-rule bg-paper-raised px-3 py-2.5">
+    <article aria-label={name ?? `Effect on ${region} × ${process}`} className={`flex min-w-0 flex-col gap-2 rounded-lg border border-rule bg-paper-raised px-3 py-2.5 ${wide ? 'col-span-full' : ''}`}>
       <header className="flex flex-wrap items-center gap-2">
         <h3 className="text-sm font-semibold">
           <span className="font-mono">{region}</span> <span className="text-ink-muted">×</span> <span className="font-mono">{process}</span>
@@ -77,6 +94,7 @@ export function EffectCard({
         )}
       </p>
       <VariationChart v={v} unit={regionInfo?.unit} warnBins={warnBins} label={`Variation of ${title}`} />
+      {v.kind === 'shape' && v.precision && <ShiftPrecision precision={v.precision} label={`Precision of the shifts on ${region} × ${process}`} />}
       <Warnings warnings={warnings} />
       {footer}
     </article>

@@ -1,8 +1,10 @@
+import { useState } from 'react';
 import type { EntryDetail } from '@shared/schemas/register';
 import { ConfirmButton } from '../../../components/ui/confirm-button';
 import { formatDateTime } from '../../../lib/format';
 import { useDeleteEffect } from '../api/delete-effect';
 import { EffectCard, type RegionInfo } from './effect-card';
+import { SmoothEffect, smoothingInWords } from './smooth-effect';
 import { VariationLegend } from './variation-chart';
 
 type Effect = EntryDetail['effects'][number];
@@ -39,12 +41,14 @@ function RemoveEffect({ slug, entryKey, effect }: { slug: string; entryKey: stri
 
 /** The entry's effects, per region × process, each with its preview, warnings and provenance. */
 export function EffectsList({ slug, entry, regions, processLabels }: { slug: string; entry: EntryDetail; regions: Map<string, RegionInfo>; processLabels: Map<string, string> }) {
+  // The effect being smoothed: its card takes a whole row for the before-and-after charts.
+  const [smoothing, setSmoothing] = useState<number | null>(null);
   if (!entry.effects.length)
     return <p className="text-sm text-ink-muted">No variations yet. {entry.can.upload ? 'Upload a file below to add them.' : 'Its owner uploads them.'}</p>;
   const sorted = [...entry.effects].sort((a, b) => a.region.localeCompare(b.region) || a.process.localeCompare(b.process) || a.kind.localeCompare(b.kind));
   return (
     <div className="flex flex-col gap-2">
-      <VariationLegend />
+      <VariationLegend errors />
       <div className="grid gap-3 md:grid-cols-2 xl:grid-cols-3">
         {sorted.map((e) => (
           <EffectCard
@@ -55,9 +59,18 @@ export function EffectsList({ slug, entry, regions, processLabels }: { slug: str
             warnings={e.warnings}
             regionInfo={regions.get(e.region)}
             processLabel={processLabels.get(e.process)}
+            wide={smoothing === e.id}
             footer={
               <>
                 <Provenance upload={e.upload} />
+                {e.kind === 'shape' && entry.can.upload && (
+                  <SmoothEffect slug={slug} entryKey={entry.key} effect={e} unit={regions.get(e.region)?.unit} open={smoothing === e.id} onOpen={(open) => setSmoothing(open ? e.id : null)} />
+                )}
+                {e.kind === 'shape' && !entry.can.upload && e.smoothing && (
+                  <p className="text-xs text-teal-ink">
+                    Smoothed with {smoothingInWords(e.smoothing)} by {e.smoothing.by}, {formatDateTime(e.smoothing.at)}; the variation as uploaded is kept.
+                  </p>
+                )}
                 {entry.can.upload && <RemoveEffect slug={slug} entryKey={entry.key} effect={e} />}
               </>
             }

@@ -138,7 +138,7 @@ export function VariationUpload({ slug, entryKey, regions, processLabels, onSave
               {preview.filename} · <span title={`SHA-256 of the file: ${preview.sha256}`} className="font-mono">SHA-256 {preview.sha256.slice(0, 12)}…</span>
             </p>
           </div>
-          <VariationLegend />
+          <VariationLegend errors />
           <div className="grid gap-3 md:grid-cols-2 xl:grid-cols-3">
             {preview.effects.map((e) => (
               <EffectCard
