@@ -2,6 +2,7 @@ import type { CompiledModel, FitProblem } from './compiled-model';
 import { cholesky, choleskySolve } from './cholesky';
 import { computeDerivatives } from './derivatives';
 import { evenPart } from './interpolation';
+import { evaluateYields } from './yields';
 import { negativeLogLikelihood } from './likelihood';
 import { chooseEliminated, edgeSampleBins, factorDamped, freeSet, newtonLoop, project, roundingOf, templateSize, type MinimiseOptions, type NewtonResult, type Scratch } from './newton';
 
@@ -46,10 +47,16 @@ export function resolveEdge(problem: FitProblem, start: NewtonResult, scratch: S
     const bins = best.edgeBins && best.edgeBins.length > 0 ? best.edgeBins : edgeSampleBins(problem, scratch.ws);
     if (bins.length === 0) break;
     const held = holdEdge(problem, best.phi, best.gamma, bins, scratch, options);
+    // Even unverified, a held point with a lower NLL is a better place to go on from.
+    if (!held.ok && held.nll < best.nll) best = { ...best, phi: held.phi, gamma: held.gamma, nll: held.nll, iterations: best.iterations + held.iterations };
     if (!held.ok) {
       // Not a minimum on the edge: Newton goes on from there, stopping on an edge only where the
       // line search fails; a second stop there is kept only once it can be held.
-      if (round > 0) return { ...best, status: 'failed', message: 'the fit could not settle on a clip edge', edge: report };
+      // Twice not held: the lowest point found stands, as an edge the fit could not verify.
+      if (round > 0) {
+        negativeLogLikelihood(m, problem.data, problem.gammaHeld, best.phi, best.gamma, scratch.ws, problem.globals);
+        return { ...best, status: 'edge', message: `the minimum on the clip edge could not be verified (decrement ${best.decrement.toExponential(2)})`, edge: report ?? { kept: 'held', bins, heldNll: best.nll, releasedNll: null } };
+      }
       const on = newtonLoop(problem, best.phi, best.gamma, scratch, { ...options, watchKinks: false });
       const iterations = best.iterations + on.iterations;
       if (on.status !== 'edge') return { ...on, iterations, edge: report };
@@ -59,8 +66,8 @@ export function resolveEdge(problem: FitProblem, start: NewtonResult, scratch: S
     if (held.nll <= best.nll + roundingOf(problem, scratch.ws, best.nll)) {
       best = { ...best, phi: held.phi, gamma: held.gamma, nll: held.nll, decrement: held.decrement, iterations: best.iterations + held.iterations };
     }
-    report = { kept: 'held', bins, heldNll: best.nll, releasedNll: null };
-    const nudged = releaseStart(problem, best, held, bins, scratch);
+    report = { kept: 'held', bins: held.bins, heldNll: best.nll, releasedNll: null };
+    const nudged = releaseStart(problem, best, held, held.bins, scratch);
     if (!nudged) break;
     const released = newtonLoop(problem, nudged, best.gamma, scratch, options);
     if (released.status === 'cancelled') return { ...released, edge: report };
@@ -74,6 +81,7 @@ export function resolveEdge(problem: FitProblem, start: NewtonResult, scratch: S
   negativeLogLikelihood(m, problem.data, problem.gammaHeld, best.phi, best.gamma, scratch.ws, problem.globals);
   return { ...best, status: 'edge', edge: report };
 }
+
 
 interface Held {
   ok: boolean;
@@ -123,7 +131,46 @@ function emptied(m: CompiledModel, bins: { sample: number; bin: number }[]): Com
   return { ...m, nominal, shapeHd, shapeHs };
 }
 
-function holdEdge(problem: FitProblem, phi0: Float64Array, gamma0: Float64Array, bins: { sample: number; bin: number }[], scratch: Scratch, options: MinimiseOptions): Held {
+/**
+ * Holds `bins` on the edge; where a step of that minimisation keeps failing because further
+ * templates cross the clip along it, those join the held set and it starts again from where it
+ * stood (up to four times).
+ */
+function holdEdge(problem: FitProblem, phi0: Float64Array, gamma0: Float64Array, bins0: { sample: number; bin: number }[], scratch: Scratch, options: MinimiseOptions): Held & { bins: { sample: number; bin: number }[] } {
+  let bins = bins0;
+  let phi = phi0;
+  let gamma = gamma0;
+  let iterations = 0;
+  for (let grow = 0; ; grow++) {
+    const h = holdOnce(problem, phi, gamma, bins, scratch, options);
+    iterations += h.iterations;
+    if (h.ok || h.crossing.length === 0 || grow >= 4) return { ...h, iterations, bins };
+    const m = problem.model;
+    const known = new Set(bins.map(({ sample, bin }) => m.sampleBinStart[sample] + bin));
+    bins = [...bins, ...h.crossing.filter(({ sample, bin }) => !known.has(m.sampleBinStart[sample] + bin))];
+    phi = h.phi;
+    gamma = h.gamma;
+  }
+}
+
+/** Sample-bins with shape effects whose side of the clip differs between two points. */
+function crossingsBetween(problem: FitProblem, a: Float64Array, ga: Float64Array, b: Float64Array, gb: Float64Array, scratch: Scratch): { sample: number; bin: number }[] {
+  const m = problem.model;
+  evaluateYields(m, a, ga, scratch.ws);
+  const sideA = scratch.ws.A.map((x) => (x > 0 ? 1 : 0));
+  evaluateYields(m, b, gb, scratch.ws);
+  const out: { sample: number; bin: number }[] = [];
+  for (let s = 0; s < m.nSamples; s++) {
+    if (!m.sampleInFit[s] || m.shapePtr[s] === m.shapePtr[s + 1]) continue;
+    for (let j = 0; j < m.sampleNBins[s]; j++) {
+      const sb = m.sampleBinStart[s] + j;
+      if ((scratch.ws.A[sb] > 0 ? 1 : 0) !== sideA[sb]) out.push({ sample: s, bin: j });
+    }
+  }
+  return out;
+}
+
+function holdOnce(problem: FitProblem, phi0: Float64Array, gamma0: Float64Array, bins: { sample: number; bin: number }[], scratch: Scratch, options: MinimiseOptions): Held & { crossing: { sample: number; bin: number }[] } {
   const m = problem.model;
   const off: FitProblem = { ...problem, model: emptied(m, bins) };
   const { data, gammaHeld, globals } = off;
@@ -144,10 +191,13 @@ function holdEdge(problem: FitProblem, phi0: Float64Array, gamma0: Float64Array,
   const J2Trial = new Float64Array(k * P);
   let lambda = new Float64Array(k);
   const trueNll = () => negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws, problem.globals);
-  const fail = (iterations: number): Held => ({ ok: false, phi, gamma, nll: trueNll(), decrement: NaN, iterations, lambda });
+  const fail = (iterations: number, crossing: { sample: number; bin: number }[] = []) => ({ ok: false, phi, gamma, nll: trueNll(), decrement: NaN, iterations, lambda, crossing });
 
   let F = negativeLogLikelihood(off.model, data, gammaHeld, phi, gamma, ws, globals);
   if (!Number.isFinite(F)) return fail(0);
+  // The Lagrangian's curvature Σ λ_e ∇²A_e is left out once the multipliers start to change
+  // sign from one step to the next (the steps then swing between two sides of the edge).
+  let useLagrangian = true;
   for (let it = 0; it < 50; it++) {
     edgeConstraints(m, bins, phi, c, J, J2);
     chooseEliminated(off, phi, gamma, scratch);
@@ -157,7 +207,7 @@ function holdEdge(problem: FitProblem, phi0: Float64Array, gamma0: Float64Array,
     const H = new Float64Array(n * n);
     for (let a = 0; a < n; a++) {
       for (let b = 0; b < n; b++) H[a * n + b] = d.H[free[a] * P + free[b]];
-      for (let e = 0; e < k; e++) H[a * n + a] += lambda[e] * J2[e * P + free[a]];
+      if (useLagrangian) for (let e = 0; e < k; e++) H[a * n + a] += lambda[e] * J2[e * P + free[a]];
     }
     const { factor } = factorDamped(H, n);
     if (!factor) return fail(it);
@@ -213,8 +263,9 @@ function holdEdge(problem: FitProblem, phi0: Float64Array, gamma0: Float64Array,
     let lc = 0;
     for (let e = 0; e < k; e++) lc += lambdaNew[e] * c[e];
     const dec = 0.5 * (-gDelta + lc + gammaPart);
+    if (it > 1) for (let e = 0; e < k; e++) if (lambdaNew[e] * lambda[e] < 0) useLagrangian = false;
     lambda = lambdaNew;
-    if (dec < tol && violation < 1e-12) return { ok: true, phi, gamma, nll: trueNll(), decrement: dec, iterations: it, lambda };
+    if (dec < tol && violation < 1e-12) return { ok: true, phi, gamma, nll: trueNll(), decrement: dec, iterations: it, lambda, crossing: [] };
 
     // ℓ1 merit F + ρ Σ|A_e| with ρ above every |λ|; its directional derivative is g·δ − ρ Σ|c|.
     let rho = 1;
@@ -245,7 +296,15 @@ function holdEdge(problem: FitProblem, phi0: Float64Array, gamma0: Float64Array,
     }
     if (!accepted) {
       negativeLogLikelihood(off.model, data, gammaHeld, phi, gamma, ws, globals);
-      return dec < roundingOf(off, ws, F) && violation < 1e-9 ? { ok: true, phi, gamma, nll: trueNll(), decrement: dec, iterations: it, lambda } : fail(it);
+      if (dec < roundingOf(off, ws, F) && violation < 1e-9) return { ok: true, phi, gamma, nll: trueNll(), decrement: dec, iterations: it, lambda, crossing: [] };
+      // Templates that change side along the full step: kinks of F the held set does not cover.
+      const full = Float64Array.from(phi);
+      const fullGamma = Float64Array.from(gamma);
+      for (let i = 0; i < P; i++) full[i] += deltaPhi[i];
+      for (let g = 0; g < G; g++) fullGamma[g] += deltaGamma[g];
+      project(off, full, fullGamma);
+      const held = new Set(bins.map(({ sample, bin }) => m.sampleBinStart[sample] + bin));
+      return fail(it, crossingsBetween(problem, phi, gamma, full, fullGamma, scratch).filter(({ sample, bin }) => !held.has(m.sampleBinStart[sample] + bin)));
     }
   }
   return fail(50);

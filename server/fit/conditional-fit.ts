@@ -1,6 +1,9 @@
 import type { FitProblem } from './compiled-model';
 import type { FitContext } from './covariance';
+import { resolveEdge } from './clip-edge';
+import { negativeLogLikelihood } from './likelihood';
 import { minimise, type Scratch } from './minimiser';
+import { edgeSampleBins } from './newton';
 import { startPoint } from './problem';
 import { mirroredStarts, movedBistable } from './basins';
 import { outOfBounds, profiledNll, warmRefit } from './warm-refit';
@@ -172,6 +175,25 @@ function ladder(
     if (index < 0) return r;
     let best = r;
     if (movedBistable(ctx, r.phi)) best = lower(best, warmFromMinimum());
+    // A q far above the quadratic model's, Δ²/V_ii, is the mark of a minimum in another basin
+    // (a template taken across the clip edge, say): Newton from the minimum is tried as well.
+    const predicted = (value - ctx.phi[index]) ** 2 / ctx.V[index * m.nDense + index];
+    const suspicious = () => 2 * (best.nll - ctx.nll) > 2 * predicted + 1;
+    if (suspicious()) best = lower(best, newton('cold', ctx.phi, ctx.gamma));
+    // Where the context's minimum holds a clip edge, any move takes those templates off it, to
+    // one side or the other, while the conditional minimum may hold the edge again: the edge
+    // is held from the refit's point (clip-edge.ts) and the lower NLL kept.
+    const edge = contextEdge(ctx, scratch);
+    if (edge.length > 0) {
+      const e = resolveEdge(conditional, { status: 'edge', phi: best.phi, gamma: best.gamma, nll: best.nll, iterations: 0, decrement: best.decrement, damped: false, message: null, edgeBins: edge }, scratch, { tolerance });
+      work.newtonIterations += e.iterations;
+      if (e.status === 'edge' || e.status === 'converged') best = lower(best, { ...best, nll: e.nll, phi: e.phi, gamma: e.gamma, decrement: e.decrement });
+    }
+    // Still far above the quadratic model: the fit from the model's start values too.
+    if (suspicious()) {
+      const s = startPoint(m);
+      best = lower(best, newton('cold', s.phi, s.gamma));
+    }
     for (const start of mirroredStarts(ctx, conditional, index, best.phi, best.gamma, best.nll, scratch).slice(0, 2)) {
       const again = warmRefit(ctx, conditional, idx, index, start.phi, start.gamma, scratch, tolerance, maxSteps);
       work.steps += again.steps;
@@ -192,4 +214,17 @@ function ladder(
   const fromStart = newton('cold', s.phi, s.gamma);
   if (fromStart) return fromStart;
   return { ok: false, nll: NaN, phi, gamma, rung: null, decrement: NaN, work, message: `no rung converged (warm: ${w.message ?? 'failed'})` };
+}
+
+/** The templates on the clip edge at a context's minimum (none for most), once per context. */
+const contextEdges = new WeakMap<FitContext, { sample: number; bin: number }[]>();
+function contextEdge(ctx: FitContext, scratch: Scratch): { sample: number; bin: number }[] {
+  let bins = contextEdges.get(ctx);
+  if (!bins) {
+    const p = ctx.problem;
+    negativeLogLikelihood(p.model, p.data, p.gammaHeld, ctx.phi, ctx.gamma, scratch.ws, p.globals);
+    bins = edgeSampleBins(p, scratch.ws);
+    contextEdges.set(ctx, bins);
+  }
+  return bins;
 }

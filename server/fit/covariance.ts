@@ -2,7 +2,9 @@ import type { FitProblem } from './compiled-model';
 import { cholesky, choleskyInverse, choleskySolve } from './cholesky';
 import { computeDerivatives } from './derivatives';
 import { negativeLogLikelihood } from './likelihood';
+import { evenPart } from './interpolation';
 import type { Scratch } from './minimiser';
+import { edgeSampleBins, templateSize } from './newton';
 
 /**
  * Covariance at the minimum, V = H⁻¹ (MODEL.md §5). The Hessian is the γ-reduced one over the
@@ -39,12 +41,69 @@ export type CurvatureOutcome =
   | { ok: true; context: FitContext; conditionNumber: number }
   | { ok: false; message: string; partners: number[] };
 
-/** One Hessian at the minimum over every parameter not held, inverted by Cholesky. */
+/**
+ * One Hessian at the minimum over every parameter not held, inverted by Cholesky. At a minimum
+ * held on a clip edge (clip-edge.ts) the curvature is not defined: there, if the Hessian with
+ * the templates on the edge taken as clipped is not positive definite, it is taken where those
+ * templates are 1e-4 of their size above zero (the side the edge is approached from, where
+ * their information still counts), and the context keeps the minimum itself.
+ */
 export function curvatureAt(problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch): CurvatureOutcome {
+  const first = curvatureAtPoint(problem, phi, gamma, phi, scratch, null);
+  if (first.ok) return first;
+  const edge = besideTheEdge(problem, phi, gamma, scratch);
+  if (!edge) return first;
+  const second = curvatureAtPoint(problem, edge.phi, gamma, phi, scratch, null);
+  if (second.ok) return second;
+  // Still not positive definite: the edge supplies the curvature the likelihood lacks there.
+  // The covariance then holds it, V = (H + ρ JᵀJ)⁻¹ with J the templates' gradients and ρ = 1e8
+  // times the largest diagonal of H, the penalty form of the inverse with A_E = 0 held
+  // (Nocedal & Wright, Numerical Optimization, 2nd ed., §17.1); its error is of order 1/ρ.
+  const third = curvatureAtPoint(problem, edge.phi, gamma, phi, scratch, edge.J);
+  return third.ok ? third : first;
+}
+
+/**
+ * φ with every template on the clip edge moved 1e-4 of its size above zero along Jᵀ/|J|², and
+ * those gradients J (rows of length nDense); null when no template is on the edge.
+ */
+function besideTheEdge(problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch): { phi: Float64Array; J: Float64Array[] } | null {
+  const m = problem.model;
+  negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, scratch.ws, problem.globals);
+  const bins = edgeSampleBins(problem, scratch.ws);
+  if (bins.length === 0) return null;
+  const out = Float64Array.from(phi);
+  const rows: Float64Array[] = [];
+  const u = new Float64Array(3);
+  for (const { sample: s, bin: j } of bins) {
+    const J = new Map<number, number>();
+    for (let e = m.shapePtr[s]; e < m.shapePtr[s + 1]; e++) {
+      evenPart(phi[m.shapeParam[e]], u);
+      const p = m.shapeParam[e];
+      J.set(p, (J.get(p) ?? 0) + m.shapeHd[m.shapeOffset[e] + j] + u[1] * m.shapeHs[m.shapeOffset[e] + j]);
+    }
+    let norm = 0;
+    for (const [p, x] of J) if (!problem.held[p]) norm += x * x;
+    if (!(norm > 0)) continue;
+    const move = 1e-4 * templateSize(m, s, j) - scratch.ws.A[m.sampleBinStart[s] + j];
+    const row = new Float64Array(m.nDense);
+    for (const [p, x] of J) {
+      if (problem.held[p]) continue;
+      out[p] += (move * x) / norm;
+      row[p] = x;
+    }
+    rows.push(row);
+  }
+  return { phi: out, J: rows };
+}
+
+function curvatureAtPoint(problem: FitProblem, phi: Float64Array, gamma: Float64Array, minimum: Float64Array, scratch: Scratch, penalty: Float64Array[] | null): CurvatureOutcome {
   const m = problem.model;
   const P = m.nDense;
   const { ws, d } = scratch;
-  const nll = negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws, problem.globals);
+  // The NLL of the minimum itself, then the yields where the curvature is taken.
+  const nll = negativeLogLikelihood(m, problem.data, problem.gammaHeld, minimum, gamma, ws, problem.globals);
+  if (phi !== minimum) negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws, problem.globals);
   const eliminate = new Uint8Array(m.nGamma);
   for (let g = 0; g < m.nGamma; g++) eliminate[g] = problem.gammaHeld[g] ? 0 : 1;
   computeDerivatives(m, problem.data, phi, gamma, eliminate, ws, d, true, true, problem.globals);
@@ -54,6 +113,12 @@ export function curvatureAt(problem: FitProblem, phi: Float64Array, gamma: Float
   const n = free.length;
   const Hf = new Float64Array(n * n);
   for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) Hf[a * n + b] = d.H[free[a] * P + free[b]];
+  if (penalty) {
+    let largest = 0;
+    for (let a = 0; a < n; a++) largest = Math.max(largest, Math.abs(Hf[a * n + a]));
+    const rho = 1e8 * largest;
+    for (const row of penalty) for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) Hf[a * n + b] += rho * row[free[a]] * row[free[b]];
+  }
   const { L, failedAt } = cholesky(Hf, n, 1e-10);
   if (failedAt >= 0) {
     const partners = degeneratePartners(Hf, L, n, failedAt).map((a) => free[a]);
@@ -91,7 +156,7 @@ export function curvatureAt(problem: FitProblem, phi: Float64Array, gamma: Float
   const context: FitContext = {
     key: `${process.pid}-${++contextCount}-${Math.random().toString(36).slice(2)}`,
     problem,
-    phi: Float64Array.from(phi),
+    phi: Float64Array.from(minimum),
     gamma: Float64Array.from(gamma),
     nll,
     free,
