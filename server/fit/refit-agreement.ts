@@ -4,10 +4,10 @@ import { fitModel } from './fit';
 import { noRefits, type RefitCounts } from './jobs';
 import type { FitPool } from './pool';
 import { buildProblem } from './problem';
-import { REFERENCE_PROBLEM, runColdFits, type ColdFit, type ColdFitTask } from './refit-reference';
+import { compassSearch, REFERENCE_PROBLEM, runColdFits, type ColdFit, type ColdFitTask } from './refit-reference';
 import { Q68, Q95 } from './scan';
 import { syntheticModel } from './synthetic';
-import { stressModel, type StressSize } from './synthetic-stress';
+import { EDGE_SIZES, stressModel, type StressSize } from './synthetic-stress';
 
 /**
  * The refit-agreement suite (MODEL.md §9, last paragraph): on generated models, every impact
@@ -19,7 +19,9 @@ import { stressModel, type StressSize } from './synthetic-stress';
  *    from a cold fit with nothing held;
  *  - a crossing x: the cold fit at x gives q_ref; since √q is close to linear in μ, x is off by
  *    δx ≈ (q_ref − level)·|x − μ̂|/(2·level), held to 2e-3 of |x − μ̂| or 1e-5;
- *  - q0 through Z = √q0, to 1e-3.
+ *  - q0 through Z = √q0, to 1e-3;
+ *  - a minimum with a template on or past the clip edge: no lower NLL than 1e-7 below it found
+ *    by compass search on the NLL itself (refit-reference.ts).
  * An output the engine left empty is counted as empty when the reference has it (for a
  * crossing: q at μ's bound exceeds the level).
  */
@@ -31,10 +33,11 @@ export interface AgreementCase {
 
 const seeds = (from: number, to: number) => Array.from({ length: to - from + 1 }, (_, k) => from + k);
 const stress = (size: StressSize, seed: number): AgreementCase => ({ label: `stress ${size} seed ${seed}`, build: () => stressModel(size, seed) });
+const edge = (size: 'tiny' | 'small', seed: number): AgreementCase => ({ label: `edge ${size} seed ${seed}`, build: () => stressModel(EDGE_SIZES[size], seed) });
 const benchmark = (size: 'small' | 'medium' | 'large', seed: number): AgreementCase => ({ label: `benchmark ${size} seed ${seed}`, build: () => syntheticModel(size, seed) });
 
 /** The seeded slice that runs in `npm test` (a few seconds). */
-export const AGREEMENT_SLICE: AgreementCase[] = [...seeds(1, 4).map((s) => stress('tiny', s)), stress('small', 1), stress('small', 4)];
+export const AGREEMENT_SLICE: AgreementCase[] = [...seeds(1, 4).map((s) => stress('tiny', s)), stress('small', 1), stress('small', 4), edge('tiny', 2), edge('tiny', 6)];
 
 /** The full set of `npm run check:refits`. */
 export const AGREEMENT_FULL: AgreementCase[] = [
@@ -42,6 +45,8 @@ export const AGREEMENT_FULL: AgreementCase[] = [
   ...seeds(1, 8).map((s) => stress('small', s)),
   ...seeds(1, 3).map((s) => stress('medium', s)),
   stress('large', 1),
+  ...seeds(1, 8).map((s) => edge('tiny', s)),
+  ...seeds(1, 8).map((s) => edge('small', s)),
   benchmark('small', 1),
   benchmark('medium', 1),
   benchmark('large', 1),
@@ -102,7 +107,8 @@ export async function checkRefitAgreement(label: string, model: ExchangeModel, c
   };
   if (result.status !== 'converged') return row;
 
-  const m = buildProblem(model, REFERENCE_PROBLEM).model;
+  const problem = buildProblem(model, REFERENCE_PROBLEM);
+  const m = problem.model;
   const clip = (i: number, v: number) => Math.min(m.upper[i], Math.max(m.lower[i], v));
   const checks: { fix: [number, number]; judge: (ref: ColdFit, best: ColdFit) => void }[] = [];
   const compare = (what: string, engine: number | null, reference: number, tolerance: number) => {
@@ -115,6 +121,15 @@ export async function checkRefitAgreement(label: string, model: ExchangeModel, c
       row.details.push({ what, engine, reference, tolerance });
     }
   };
+
+  // A minimum on (or near) a clip edge, against a search no kink stops.
+  if (result.convergence.clipEdge || result.convergence.clippedBins.length > 0) {
+    const phi = Float64Array.from(result.parameters.map((p) => p.value));
+    const gamma = Float64Array.from(result.gammas.list.map((g) => g.value));
+    const search = compassSearch(problem, phi, gamma);
+    const nll = result.convergence.nll!;
+    compare('minimum at the clip edge (NLL)', nll, Math.min(nll, search.nll), 1e-7 * (1 + Math.abs(nll)));
+  }
 
   // Impacts: θ fixed at θ̂ ± σ̂ (post-fit) and θ̂ ± 1 (pre-fit), clipped to the bounds.
   for (const n of result.nuisance) {

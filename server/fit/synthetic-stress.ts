@@ -23,15 +23,27 @@ export interface StressSpec {
   processes: number;
   systematics: number;
   floatingNorms: number;
+  /**
+   * Systematics whose down variation empties the tail of one background in a signal region
+   * (ν− = 0 in its last quarter of bins): at θ = −1 that template reaches the clip edge, and
+   * with few events in the tail the minimum can sit on it.
+   */
+  tailKillers: number;
 }
 
 export type StressSize = 'tiny' | 'small' | 'medium' | 'large';
 
 export const STRESS_SIZES: Record<StressSize, StressSpec> = {
-  tiny: { regions: 2, signalRegions: 1, bins: 4, processes: 3, systematics: 4, floatingNorms: 1 },
-  small: { regions: 3, signalRegions: 1, bins: 10, processes: 4, systematics: 20, floatingNorms: 2 },
-  medium: { regions: 6, signalRegions: 2, bins: 25, processes: 6, systematics: 80, floatingNorms: 2 },
-  large: { regions: 10, signalRegions: 3, bins: 40, processes: 8, systematics: 250, floatingNorms: 3 },
+  tiny: { regions: 2, signalRegions: 1, bins: 4, processes: 3, systematics: 4, floatingNorms: 1, tailKillers: 0 },
+  small: { regions: 3, signalRegions: 1, bins: 10, processes: 4, systematics: 20, floatingNorms: 2, tailKillers: 0 },
+  medium: { regions: 6, signalRegions: 2, bins: 25, processes: 6, systematics: 80, floatingNorms: 2, tailKillers: 0 },
+  large: { regions: 10, signalRegions: 3, bins: 40, processes: 8, systematics: 250, floatingNorms: 3, tailKillers: 0 },
+};
+
+/** The same sizes with one tail killer (see StressSpec.tailKillers): models whose minimum often sits on a clip edge. */
+export const EDGE_SIZES: Record<'tiny' | 'small', StressSpec> = {
+  tiny: { ...STRESS_SIZES.tiny, tailKillers: 1 },
+  small: { ...STRESS_SIZES.small, tailKillers: 1 },
 };
 
 function gaussian(rand: () => number): number {
@@ -156,6 +168,24 @@ export function stressModel(size: StressSize | StressSpec, seed = 1): ExchangeMo
     systematics.push({ key: `np${i}`, group: GROUPS[i % GROUPS.length], effects });
   }
 
+  // Tail killers: in one signal region, the down variation of one background goes to zero over
+  // its last quarter of bins (a ramp from nominal), the up variation raises it by half. With
+  // few events there, θ = −1 (the template at the clip edge) can be where the data want it.
+  const deficit: { region: number; from: number }[] = [];
+  for (let t = 0; t < spec.tailKillers && spec.processes > 1; t++) {
+    const r = t % spec.signalRegions;
+    let p = 1;
+    for (let q = 2; q < spec.processes; q++) if (nominal.get(`${r}:${q}`)![B - 1] > nominal.get(`${r}:${p}`)![B - 1]) p = q;
+    const nom = nominal.get(`${r}:${p}`)!;
+    const from = Math.max(0, B - Math.max(1, Math.ceil(B / 4)) - 1);
+    const ramp = (j: number) => (j <= from ? 0 : Math.min(1, (j - from) / Math.max(1, B - 1 - from)));
+    // A few events in the killed tail, and (below) data with a deficit there.
+    for (let j = from + 1; j < B; j++) nom[j] = Math.max(nom[j], 2 + 3 * rand());
+    deficit.push({ region: r, from });
+    const effect = { region: regions[r].key, process: processes[p].key, kind: 'shape' as const, up: nom.map((v, j) => v * (1 + 0.5 * ramp(j))), down: nom.map((v, j) => v * (1 - ramp(j))) };
+    systematics.push({ key: `tail${t}`, group: 'tails', effects: [effect] });
+  }
+
   // Data: Poisson draws at μ = 1 with the nominal templates scaled by a few per cent per
   // sample (a stand-in for θ away from 0), so the fit has pulls to find.
   for (let r = 0; r < spec.regions; r++) {
@@ -164,13 +194,15 @@ export function stressModel(size: StressSize | StressSpec, seed = 1): ExchangeMo
       const shift = 1 + 0.05 * gaussian(rand);
       nominal.get(`${r}:${p}`)!.forEach((v, j) => (totals[j] += v * shift));
     }
-    regions[r].observed = totals.map((t) => poisson(rand, t));
+    // In a killed tail the data show a deficit: drawn at a fifth of the expectation.
+    const tail = deficit.find((d) => d.region === r);
+    regions[r].observed = totals.map((t, j) => poisson(rand, tail && j > tail.from ? 0.2 * t : t));
   }
 
   return {
     format: EXCHANGE_FORMAT,
     version: EXCHANGE_VERSION,
-    name: `stress ${typeof size === 'string' ? size : 'custom'} (seed ${seed})`,
+    name: `stress ${typeof size === 'string' ? size : spec.tailKillers > 0 ? 'with a tail killer' : 'custom'} (seed ${seed})`,
     signalStrength: { start: 1, min: -10, max: 20 },
     regions,
     processes,

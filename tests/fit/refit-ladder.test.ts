@@ -13,7 +13,7 @@ import { createRandom } from '../../server/fit/synthetic';
 import { stressModel } from '../../server/fit/synthetic-stress';
 import { expectClose } from './helpers';
 
-const observed = { dataset: 'observed', asimovMu: 1, controlOnly: false, excludeRegions: [] } as const;
+const observed = { dataset: 'observed' as const, asimovMu: 1, controlOnly: false, excludeRegions: [] as string[] };
 
 function contextOf(model: ReturnType<typeof syntheticModel>): FitContext {
   const problem = buildProblem(model, observed);
