@@ -181,6 +181,19 @@ describe('accessibility: axe-core on every main screen, and every action by keyb
     await page.getByRole('table', { name: 'Impact ranking' }).waitFor();
     await checkAccessibility(page, 'impact ranking (convener)');
     await expectKeyboardReachesEverything(page, 'impact ranking (convener)');
+    // the cut is one tab stop; the arrow keys move it, and the table follows
+    const rows = () => page.getByRole('table', { name: 'Impact ranking' }).locator('tbody tr').count();
+    const at90 = await rows();
+    await tabTo(page, page.getByRole('radio', { name: '90 %' }));
+    await page.keyboard.press('ArrowRight');
+    await page.keyboard.press('ArrowRight');
+    await expect.poll(() => page.getByRole('radio', { name: 'all' }).isChecked()).toBe(true);
+    await expect.poll(rows).toBeGreaterThanOrEqual(at90);
+    await page.keyboard.press('ArrowLeft');
+    await page.keyboard.press('ArrowLeft');
+    await expect.poll(() => page.getByRole('radio', { name: '90 %' }).isChecked()).toBe(true);
+    await expect.poll(rows).toBe(at90);
+    await page.getByRole('status', { name: 'What the cut keeps' }).getByText(/parameters hold/).waitFor();
     const raise = page.getByRole('button', { name: 'Raise a question on halo_norm' });
     await tabTo(page, raise);
     await page.keyboard.press('Enter');
