@@ -177,8 +177,9 @@ function ladder(
     if (movedBistable(ctx, r.phi)) best = lower(best, warmFromMinimum());
     // A q far above the quadratic model's, Δ²/V_ii, is the mark of a minimum in another basin
     // (a template taken across the clip edge, say): Newton from the minimum is tried as well.
+    // Only within 3σ: further out (q0, limits) the quadratic model is no yardstick.
     const predicted = (value - ctx.phi[index]) ** 2 / ctx.V[index * m.nDense + index];
-    const suspicious = () => 2 * (best.nll - ctx.nll) > 2 * predicted + 1;
+    const suspicious = () => predicted <= 9 && 2 * (best.nll - ctx.nll) > 2 * predicted + 1;
     if (suspicious()) best = lower(best, newton('cold', ctx.phi, ctx.gamma));
     // Where the context's minimum holds a clip edge, any move takes those templates off it, to
     // one side or the other, while the conditional minimum may hold the edge again: the edge
