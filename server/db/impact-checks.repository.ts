@@ -24,3 +24,13 @@ export async function latestImpactCheck(db: Db, entryId: number, kind: string) {
     .limit(1);
   return row;
 }
+
+/** One check of the analysis of this kind, with the label, options and regions of the fit it compares with. */
+export async function findImpactCheck(db: Db, analysisId: number, id: number, kind: string) {
+  const [row] = await db
+    .select({ check: impactChecks, fitLabel: fits.label, fit: { options: fits.options, regionsInFit: fits.regionsInFit } })
+    .from(impactChecks)
+    .leftJoin(fits, eq(fits.id, impactChecks.fitId))
+    .where(and(eq(impactChecks.analysisId, analysisId), eq(impactChecks.id, id), eq(impactChecks.kind, kind)));
+  return row;
+}

@@ -78,10 +78,14 @@ export async function deleteFloatingNormRow(db: DbOrTx, id: number) {
   await db.delete(floatingNorms).where(eq(floatingNorms.id, id));
 }
 
-/** Writes a template in place of the one of the same region and process, if any. */
+/**
+ * Writes a template in place of the one of the same region and process, if any; the flat-shape
+ * test of the effects on it, made against the old template, is made again when next read.
+ */
 export async function saveTemplate(db: DbOrTx, existingId: number | null, values: typeof templates.$inferInsert) {
   if (existingId !== null) await db.update(templates).set({ nominal: values.nominal, variance: values.variance, floatingNormId: values.floatingNormId }).where(eq(templates.id, existingId));
   else await db.insert(templates).values(values);
+  await db.update(effects).set({ flatP: -1 }).where(and(eq(effects.regionId, values.regionId), eq(effects.processId, values.processId)));
 }
 export async function deleteTemplateRow(db: DbOrTx, id: number) {
   await db.delete(templates).where(eq(templates.id, id));

@@ -218,10 +218,18 @@ export const effects = pgTable(
     downShiftVariance: jsonb('down_shift_variance').$type<number[] | null>(),
     /** pruned by an analyst: kept in the register, marked, and left out of frozen versions */
     pruned: boolean('pruned').notNull().default(false),
+    /** a pruned shape whose normalisation stays: frozen versions carry it as a scale effect of Σν±/Σν⁰ */
+    prunedToScale: boolean('pruned_to_scale').notNull().default(false),
     /** how a shape effect was smoothed (method and parameters) and its variation as uploaded, or null */
     smoothing: jsonb('smoothing').$type<{ method: string; params: Record<string, number>; original: { up: number[]; down: number[] }; by: string; at: string } | null>(),
     /** largest |variation − nominal| / nominal over the bins, in percent; stored when written (−1: not yet computed) */
     largestPct: doublePrecision('largest_pct').notNull().default(-1),
+    /**
+     * shape effects: the smaller p-value of the up and down shifts' χ² against a flat shift
+     * (variations/precision.ts), stored when written; null where no test is possible (a scale
+     * effect, no errors), −1 not yet computed
+     */
+    flatP: doublePrecision('flat_p').default(-1),
     uploadId: integer('upload_id').references(() => uploads.id, { onDelete: 'set null' }),
   },
   (t) => [uniqueIndex('effects_entry_region_process_kind').on(t.entryId, t.regionId, t.processId, t.kind)],

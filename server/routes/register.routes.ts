@@ -4,12 +4,14 @@ import { singleFile } from '../uploads/upload';
 import { createEntry, deleteEffect, getEntryDetail, reviewEntry, updateEntry, uploadVariations } from '../services/entries.service';
 import { smoothEffect } from '../services/smoothing.service';
 import { uploadReplicas } from '../services/replicas.service';
+import { changePruningRules, pruneEffects, pruningOverview, pruningPreview, restoreEffects, startPruningPreview } from '../services/pruning.service';
 import { createGroup, deleteGroup, groupsView, moveEntry, renameGroup } from '../services/groups.service';
 import { baseUrl, wantsSave } from './base-url';
 import { idParam, route, type ApiRoute } from './route';
 
 const effectIdParam = idParam('effect id');
 const groupIdParam = idParam('group id');
+const previewIdParam = idParam('preview id');
 
 export const registerRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>): ApiRoute[] => {
   const file = singleFile(ctx.config);
@@ -58,6 +60,25 @@ export const registerRoutes = (ctx: AppContext, auth: ReturnType<typeof authoriz
     route('delete', '/api/analyses/:slug/groups/:groupId', auth.may('groups.edit'), async (req, res) => {
       await deleteGroup(ctx, accessOf(req), groupIdParam.parse(req.params.groupId));
       res.status(204).end();
+    }),
+
+    route('get', '/api/analyses/:slug/pruning', auth.may('analysis.read'), async (req, res) => {
+      res.json(await pruningOverview(ctx, accessOf(req)));
+    }),
+    route('put', '/api/analyses/:slug/pruning/rules', auth.may('model.edit'), async (req, res) => {
+      res.json(await changePruningRules(ctx, accessOf(req), req.body));
+    }),
+    route('post', '/api/analyses/:slug/pruning/previews', auth.may('model.edit'), async (req, res) => {
+      res.status(202).json(await startPruningPreview(ctx, accessOf(req), req.body));
+    }),
+    route('get', '/api/analyses/:slug/pruning/previews/:previewId', auth.may('analysis.read'), async (req, res) => {
+      res.json(await pruningPreview(ctx, accessOf(req), previewIdParam.parse(req.params.previewId)));
+    }),
+    route('post', '/api/analyses/:slug/pruning', auth.may('model.edit'), async (req, res) => {
+      res.json(await pruneEffects(ctx, accessOf(req), req.body));
+    }),
+    route('post', '/api/analyses/:slug/pruning/restore', auth.may('model.edit'), async (req, res) => {
+      res.json(await restoreEffects(ctx, accessOf(req), req.body));
     }),
   ];
 };

@@ -143,6 +143,7 @@ function effectViews(ctx: AppContext, analysisId: number, entryId: number): Prom
         precision,
         smoothing: e.smoothing ? { method: e.smoothing.method, params: e.smoothing.params, by: e.smoothing.by, at: e.smoothing.at } : null,
         id: e.id,
+        pruned: e.pruned ? (e.prunedToScale ? ('normalisation' as const) : ('dropped' as const)) : null,
         region: region.key,
         process: process.key,
         kind: e.kind,

@@ -4,11 +4,13 @@ import type { DbOrTx } from '../db/revisions.repository';
 import { indexModel, loadModelRows } from '../db/model.repository';
 import { effectsOfAnalysis, exportedEntries } from '../db/exchange.repository';
 import { isWithheld } from './blinding.service';
+import { pruneModel, type PrunedEffect } from '../variations/pruning';
 
 /**
  * The whole model of an analysis as an exchange document: the inverse of importModel, so an
  * export of an import gives back the same document. Retired entries are left out (they are not
- * part of the fit). With `withhold`, blinded signal-region data are omitted: every export that
+ * part of the fit), and so are pruned effects, or a pruned shape keeps only its normalisation
+ * (variations/pruning.ts): the document is the model as a fit sees it. With `withhold`, blinded signal-region data are omitted: every export that
  * leaves the server sets it; a frozen model version, which stays on the server, does not.
  */
 export async function buildExchange(db: DbOrTx, analysis: AnalysisRow, opts: { withhold: boolean }): Promise<ExchangeModel> {
@@ -30,7 +32,17 @@ export async function buildExchange(db: DbOrTx, analysis: AnalysisRow, opts: { w
     if (t.floatingNormId)
       normTargets.set(t.floatingNormId, [...(normTargets.get(t.floatingNormId) ?? []), { region: model.regionById.get(t.regionId)!.key, process: model.processById.get(t.processId)!.key }]);
 
-  return {
+  const pruned: PrunedEffect[] = effectRows
+    .filter(({ effects: e }) => e.pruned)
+    .map(({ effects: e, entries: en }) => ({
+      systematic: en.key,
+      region: model.regionById.get(e.regionId)!.key,
+      process: model.processById.get(e.processId)!.key,
+      kind: e.kind,
+      as: e.prunedToScale ? 'normalisation' : 'dropped',
+    }));
+
+  return pruneModel({
     format: EXCHANGE_FORMAT,
     version: EXCHANGE_VERSION,
     name: analysis.name,
@@ -65,5 +77,5 @@ export async function buildExchange(db: DbOrTx, analysis: AnalysisRow, opts: { w
             : { ...where, kind: 'shape' as const, up: e.up as number[], down: e.down as number[] };
         }),
     })),
-  };
+  }, pruned);
 }

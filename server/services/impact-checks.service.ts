@@ -1,9 +1,10 @@
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { ImpactCheck } from '@shared/schemas/register';
+import type { FitOptions } from '@shared/schemas/fit';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { listFitRows, storedHead, versionModel, type StoredHead } from '../db/fits.repository';
-import { finishImpactCheck, insertImpactCheck, latestImpactCheck } from '../db/impact-checks.repository';
+import { finishImpactCheck, insertImpactCheck, latestImpactCheck, type ImpactCheckRow } from '../db/impact-checks.repository';
 import type { WhatIfOutcome } from '../fit/what-if';
 import { buildExchange } from './exchange-export.service';
 import { withheldReadBy } from './fits.service';
@@ -19,18 +20,24 @@ import { withheldReadBy } from './fits.service';
 /** A parameter whose pull or constraint moved by more than this is listed (common practice, no source). */
 export const MOVED = 0.1;
 
-/** The newest converged fit whose numbers may be shown, with its stored result. */
+/**
+ * The newest converged fit of the analysis's own configuration whose numbers may be shown, with
+ * its stored result: not a diagnosis check, and not a variant that holds parameters, drops the
+ * systematics or the template statistics, or splits a parameter (fit/variants.ts).
+ */
 export async function referenceFit(ctx: AppContext, access: Access) {
   for (const row of await listFitRows(ctx.db, access.analysis.id)) {
-    if (row.fit.state !== 'succeeded' || withheldReadBy(access.analysis, row.fit).length) continue;
+    if (row.fit.state !== 'succeeded' || row.fit.checkOfFitId !== null || withheldReadBy(access.analysis, row.fit).length) continue;
+    const options = row.fit.options as Partial<FitOptions>;
+    if (options.hold?.length || options.holdGroups?.length || options.statOnly || options.templateStats === false || options.decorrelate?.length) continue;
     const head = await storedHead(ctx.db, row.fit.id);
-    if (head?.status === 'converged') return { fit: row.fit, head };
+    if (head?.status === 'converged') return { fit: row.fit, version: row.version, head };
   }
   return null;
 }
 
 /** Keeps what the reference's blinding allows: without a free μ or with μ hidden, no μ̂ and no impacts on it. */
-function shown(outcome: WhatIfOutcome, head: StoredHead): WhatIfOutcome {
+export function shown(outcome: WhatIfOutcome, head: StoredHead): WhatIfOutcome {
   if (!head.options.hiddenMu) return outcome;
   return { ...outcome, mu: { before: null, after: null, fixed: outcome.mu.fixed }, muError: { before: null, after: null }, focus: outcome.focus.map((f) => ({ ...f, impact: null, rankBefore: null, rankAfter: null })) };
 }
@@ -51,14 +58,21 @@ export async function checkUpload(ctx: AppContext, access: Access, entry: { id: 
   const reference = await referenceFit(ctx, access);
   if (!reference) return;
   const row = await insertImpactCheck(ctx.db, { analysisId: access.analysis.id, entryId: entry.id, kind: 'upload', fitId: reference.fit.id, createdById: access.userId });
+  inBackground(ctx, row.id, async () => {
+    const model = await withEntryAsNow(ctx, access, reference.fit.modelVersionId, entry.key);
+    const focus = model.systematics.some((s) => s.key === entry.key) ? [entry.key] : [];
+    return shown(await ctx.fits.whatIf({ model, options: reference.head.options, reference: reference.head, focus }), reference.head);
+  });
+}
+
+/** Runs a check's refit after the request has been answered; its outcome (or failure) lands in its row. */
+export function inBackground(ctx: AppContext, id: number, compute: () => Promise<WhatIfOutcome & Record<string, unknown>>) {
   const run = async () => {
     try {
-      const model = await withEntryAsNow(ctx, access, reference.fit.modelVersionId, entry.key);
-      const focus = model.systematics.some((s) => s.key === entry.key) ? [entry.key] : [];
-      const outcome = await ctx.fits.whatIf({ model, options: reference.head.options, reference: reference.head, focus });
-      await finishImpactCheck(ctx.db, row.id, outcome.failure ? { state: 'failed', failure: outcome.failure } : { state: 'done', result: shown(outcome, reference.head) });
+      const outcome = await compute();
+      await finishImpactCheck(ctx.db, id, outcome.failure ? { state: 'failed', failure: outcome.failure, result: outcome } : { state: 'done', result: outcome });
     } catch (e) {
-      await finishImpactCheck(ctx.db, row.id, { state: 'failed', failure: e instanceof Error ? e.message : String(e) }).catch(() => {});
+      await finishImpactCheck(ctx.db, id, { state: 'failed', failure: e instanceof Error ? e.message : String(e) }).catch(() => {});
     }
   };
   const task = run();
@@ -76,19 +90,27 @@ export const impactChecksIdle = async () => {
 export async function uploadCheckOf(ctx: AppContext, access: Access, entryId: number): Promise<ImpactCheck | null> {
   const found = await latestImpactCheck(ctx.db, entryId, 'upload');
   if (!found) return null;
+  const { focus, ...view } = checkView(access, found);
+  return { ...view, focus: focus ?? [] };
+}
+
+/**
+ * A stored check as shown: a region blinded since the check was made withholds everything that
+ * was compared with its data.
+ */
+export function checkView(access: Access, found: { check: ImpactCheckRow; fitLabel: string | null; fit: { options: unknown; regionsInFit: string[] } | null }) {
   const { check, fitLabel, fit } = found;
-  // a region blinded since the check was made withholds what was compared with its data
-  const withheld = fit?.regionsInFit ? withheldReadBy(access.analysis, { options: fit.options, regionsInFit: fit.regionsInFit }) : [];
-  const r = withheld.length ? null : (check.result as WhatIfOutcome | null);
+  const withheld = fit ? withheldReadBy(access.analysis, fit) : [];
+  const r = withheld.length || check.state === 'running' ? null : (check.result as Partial<WhatIfOutcome> | null);
   return {
-    state: withheld.length ? 'withheld' : (check.state as ImpactCheck['state']),
+    state: withheld.length ? ('withheld' as const) : (check.state as ImpactCheck['state']),
     fit: check.fitId ? { id: check.fitId, label: fitLabel || `Fit ${check.fitId}` } : null,
     createdAt: check.createdAt.toISOString(),
     failure: check.failure,
-    mu: r ? r.mu : null,
-    muError: r ? r.muError : null,
-    focus: r ? r.focus : [],
-    moved: r ? r.parameters.filter((p) => moved(p.pull) || moved(p.constraint)) : [],
+    mu: r?.mu ?? null,
+    muError: r?.muError ?? null,
+    focus: r?.focus,
+    moved: (r?.parameters ?? []).filter((p) => moved(p.pull) || moved(p.constraint)),
     seconds: r?.seconds ?? null,
   };
 }

@@ -5,6 +5,7 @@ import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { untilModelChanges, untilRegisterChanges } from '../cache/change-notices';
 import { encodeJson, type Encoded } from '../cache/encoded-json';
+import { pruningCounts } from './pruning.service';
 import { effectSums, effectsWithoutSize, registerRows, setEffectSize, unresolvedQuestionCounts } from '../db/register.repository';
 
 /**
@@ -19,12 +20,15 @@ import { effectSums, effectsWithoutSize, registerRows, setEffectSize, unresolved
 /** The register as response bytes, built once per change; readers arriving while it is built share it. */
 export function listEntriesEncoded(ctx: AppContext, access: Access): Promise<Encoded> {
   const analysisId = access.analysis.id;
-  return untilRegisterChanges(ctx.client, analysisId, 'register response', async () => encodeJson(await readEntries(ctx, analysisId), 'until-changed'));
+  const rules = `${access.analysis.pruneBelowPct}/${access.analysis.pruneShapeP}`;
+  return untilRegisterChanges(ctx.client, analysisId, `register response, pruning ${rules}`, async () => encodeJson(await readEntries(ctx, access), 'until-changed'));
 }
 
-async function readEntries(ctx: AppContext, analysisId: number): Promise<EntrySummary[]> {
+async function readEntries(ctx: AppContext, access: Access): Promise<EntrySummary[]> {
+  const analysisId = access.analysis.id;
   const rows = await registerRows(ctx.db, analysisId);
   const byEntry = await effectSummaries(ctx, analysisId);
+  const pruning = await pruningCounts(ctx, access);
   const unresolved = await unresolvedQuestionCounts(ctx.db, analysisId);
   const openByEntry = new Map(unresolved.map((x) => [x.entryId, x.count]));
   return rows.map(({ entry, group, owner }) => {
@@ -41,6 +45,7 @@ async function readEntries(ctx: AppContext, analysisId: number): Promise<EntrySu
       largestEffectPct: own ? own.largestPct : null,
       warnings: own?.warnings ?? 0,
       openQuestions: openByEntry.get(entry.id) ?? 0,
+      pruning: pruning.get(entry.key) ?? { candidates: 0, pruned: 0 },
       updatedAt: entry.updatedAt.toISOString(),
     };
   });

@@ -64,6 +64,10 @@ export async function smoothEffect(ctx: AppContext, access: Access, key: string,
       down: after.down,
       warnings,
       largestPct: largestEffectPct('shape', after.up, after.down, nominal),
+      // what was computed or decided about the old shape is not about this one
+      flatP: -1,
+      pruned: false,
+      prunedToScale: false,
       smoothing: method ? { method: input.method, params, original, by: access.userName, at: new Date().toISOString() } : null,
     });
     await updateEntryRow(tx, entry.id, { state: backToReview ? 'submitted' : entry.state, version: entry.version + 1, updatedAt: new Date() });
@@ -72,7 +76,7 @@ export async function smoothEffect(ctx: AppContext, access: Access, key: string,
       entryId: entry.id,
       authorId: access.userId,
       action: 'effect.smoothed',
-      summary: `${described}: the shape effect on region "${region.key}", process "${process.key}".${backToReview ? ' The entry was accepted, so it returns to review.' : ''}`,
+      summary: `${described}: the shape effect on region "${region.key}", process "${process.key}".${effect.pruned ? ' It was pruned and is back in the fit.' : ''}${backToReview ? ' The entry was accepted, so it returns to review.' : ''}`,
       before: { up: before.up, down: before.down },
       after: { up: after.up, down: after.down, method: input.method, params },
     });

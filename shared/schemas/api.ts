@@ -167,6 +167,8 @@ export const entrySummarySchema = z.object({
   warnings: z.number(),
   /** questions on this entry not yet resolved (open or answered) */
   openQuestions: z.number(),
+  /** its effects the analysis's pruning rules propose and not pruned, and its effects pruned */
+  pruning: z.object({ candidates: z.number(), pruned: z.number() }).default({ candidates: 0, pruned: 0 }),
   updatedAt: z.string(),
 });
 export type EntrySummary = z.infer<typeof entrySummarySchema>;

@@ -136,6 +136,8 @@ const effectShownSchema = z.object({
 
 export const effectViewSchema = effectShownSchema.extend({
   id: z.number(),
+  /** pruned: left out of frozen versions, or kept as its normalisation only */
+  pruned: z.enum(['dropped', 'normalisation']).nullable().default(null),
   upload: z.object({ id: z.number(), filename: z.string(), sha256: z.string(), createdAt: z.string() }).nullable(),
 });
 export type EffectView = z.infer<typeof effectViewSchema>;
@@ -342,3 +344,81 @@ export const replicaPreviewSchema = z.object({
   kept: z.number().nullable(),
 });
 export type ReplicaPreview = z.infer<typeof replicaPreviewSchema>;
+
+// ---- pruning (server/variations/pruning.ts)
+/** PUT …/pruning/rules: an effect below belowPct percent in every bin, or a shape flat within its noise at p above shapeP. */
+export const pruningRulesSchema = z.strictObject({
+  belowPct: z.number({ error: 'must be a number (percent)' }).min(0, 'must not be negative').max(100, 'must be at most 100 (percent)'),
+  shapeP: z.number({ error: 'must be a number (a p-value)' }).gt(0, 'must be above 0').lt(1, 'must be below 1'),
+});
+export type PruningRules = z.infer<typeof pruningRulesSchema>;
+
+export const pruningReasonSchema = z.discriminatedUnion('rule', [
+  z.object({ rule: z.literal('small'), largestPct: z.number() }),
+  /** estimated: the shifts' errors were estimated from the template variance (conservative), not given with the upload */
+  z.object({ rule: z.literal('flat-shape'), p: z.number(), estimated: z.boolean(), normalisation: z.object({ up: z.number(), down: z.number() }) }),
+]);
+export type PruningReason = z.infer<typeof pruningReasonSchema>;
+
+/** dropped: left out of the fit; normalisation: a shape kept as its overall ratio only */
+export const prunedAsSchema = z.enum(['dropped', 'normalisation']);
+export type PrunedAs = z.infer<typeof prunedAsSchema>;
+
+export const pruningItemSchema = z.object({
+  effectId: z.number(),
+  entry: z.object({ key: z.string(), label: z.string(), state: entryStateSchema }),
+  region: z.string(),
+  process: z.string(),
+  kind: z.enum(EFFECT_KINDS),
+  largestPct: z.number(),
+  flatP: z.number().nullable(),
+  /** why the rules propose it; null for an effect pruned although the rules do not propose it (any more) */
+  reason: pruningReasonSchema.nullable(),
+  pruned: prunedAsSchema.nullable(),
+});
+export type PruningItem = z.infer<typeof pruningItemSchema>;
+
+export const pruningOverviewSchema = z.object({
+  rules: pruningRulesSchema,
+  /** effects the rules propose that are not pruned */
+  candidates: z.array(pruningItemSchema),
+  pruned: z.array(pruningItemSchema),
+  /** effects in the fit, for scale */
+  effects: z.number(),
+  /** the fit a preview compares with, or null when no converged fit may be shown */
+  reference: z.object({ id: z.number(), label: z.string(), version: z.number() }).nullable(),
+});
+export type PruningOverview = z.infer<typeof pruningOverviewSchema>;
+
+/** POST …/pruning/previews and POST …/pruning: the effects, each dropped or kept as its normalisation (default: as its rule says). */
+export const pruningSelectionSchema = z.strictObject({
+  effects: z
+    .array(z.strictObject({ id: z.number().int().positive(), as: prunedAsSchema.optional() }))
+    .min(1, 'choose at least one effect')
+    .max(20_000, 'at most 20000 effects at once'),
+  comment: text(2000).default(''),
+});
+export type PruningSelection = z.input<typeof pruningSelectionSchema>;
+
+/** POST …/pruning/restore: pruned effects back into the fit. */
+export const pruningRestoreSchema = z.strictObject({
+  effects: z.array(z.number().int().positive()).min(1, 'choose at least one effect').max(20_000, 'at most 20000 effects at once'),
+  comment: text(2000).default(''),
+});
+
+/** What pruning a selection does to the latest shown fit's μ̂ and σ_μ and to every pull and constraint. */
+export const pruningPreviewSchema = z.object({
+  id: z.number(),
+  state: z.enum(['running', 'done', 'failed', 'withheld']),
+  fit: z.object({ id: z.number(), label: z.string() }).nullable(),
+  createdAt: z.string(),
+  failure: z.string().nullable(),
+  selection: z.array(z.object({ effectId: z.number(), entry: z.string(), region: z.string(), process: z.string(), kind: z.enum(EFFECT_KINDS), as: prunedAsSchema })),
+  /** selected effects the compared fit's version does not hold (written since it was frozen): pruning them changes nothing there */
+  absent: z.array(z.number()),
+  mu: change.extend({ fixed: z.boolean() }).nullable(),
+  muError: change.nullable(),
+  moved: z.array(z.object({ name: z.string(), pull: change, constraint: change })),
+  seconds: z.number().nullable(),
+});
+export type PruningPreview = z.infer<typeof pruningPreviewSchema>;

@@ -32,6 +32,7 @@ const summary = (key: string): EntrySummary => ({
   largestEffectPct: null,
   warnings: 0,
   openQuestions: 0,
+  pruning: { candidates: 0, pruned: 0 },
   updatedAt: '2026-01-01T00:00:00Z',
 });
 

@@ -17,7 +17,7 @@ afterEach(() => {
 });
 
 function entry(key: string, openQuestions: number): EntrySummary {
-  return { key, label: key, group: 'jets', owner: null, state: 'accepted', processes: [], regions: [], kinds: [], largestEffectPct: null, warnings: 0, openQuestions, updatedAt: '2026-01-01T00:00:00Z' };
+  return { key, label: key, group: 'jets', owner: null, state: 'accepted', processes: [], regions: [], kinds: [], largestEffectPct: null, warnings: 0, openQuestions, pruning: { candidates: 0, pruned: 0 }, updatedAt: '2026-01-01T00:00:00Z' };
 }
 
 describe('question markers', () => {

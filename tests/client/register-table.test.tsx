@@ -21,6 +21,7 @@ function entry(overrides: Partial<EntrySummary>): EntrySummary {
     largestEffectPct: 2.1,
     warnings: 0,
     openQuestions: 0,
+    pruning: { candidates: 0, pruned: 0 },
     updatedAt: '2026-01-01T00:00:00Z',
     ...overrides,
   };

@@ -39,6 +39,7 @@ function shape(overrides: Partial<Effect> = {}): Effect {
     warnings: [],
     precision: { up: side(), down: side({ againstZero: { chi2: 3.1, dof: 4, p: 0.54 }, againstFlat: { chi2: 1.2, dof: 3, p: 0.75, relativeShift: -0.041 } }) },
     smoothing: null,
+    pruned: null,
     upload: { id: 4, filename: 'escale.csv', sha256: 'b'.repeat(64), createdAt: '2026-02-01T10:00:00Z' },
     ...overrides,
   };

@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { hashPassword } from '../../server/auth/passwords';
-import { analyses, effects, entries, fits, groups, invitations, memberships, modelVersions, processes, questions, regions, reviewSets, toyRuns, users } from '../../server/db/schema';
+import { analyses, effects, entries, fits, groups, impactChecks, invitations, memberships, modelVersions, processes, questions, regions, reviewSets, toyRuns, users } from '../../server/db/schema';
 import { Client, createTestApp, dbSnapshot, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
 
 /**
@@ -259,6 +259,31 @@ export const MATRIX: Record<string, Row> = {
       return { path: `${A}/entries/${e.key}/effects/${effect.id}/smooth`, body: { method: 'median-hanning' } };
     },
     expect: editors(200),
+  },
+  'GET /api/analyses/:slug/pruning': { call: () => ({ path: `${A}/pruning` }), expect: members(200) },
+  'PUT /api/analyses/:slug/pruning/rules': { call: () => ({ path: `${A}/pruning/rules`, body: { belowPct: 0.1, shapeP: 0.05 } }), expect: analystOnly(200) },
+  'POST /api/analyses/:slug/pruning/previews': {
+    call: async (t) => {
+      await convergedFit(t);
+      return { path: `${A}/pruning/previews`, body: { effects: [{ id: (await freshEntry(t)).effectId }] } };
+    },
+    expect: analystOnly(202),
+  },
+  'GET /api/analyses/:slug/pruning/previews/:previewId': {
+    call: async (t) => {
+      const [check] = await t.database.db.insert(impactChecks).values({ analysisId: (await ids(t)).analysisId, kind: 'pruning', state: 'running' }).returning();
+      return { path: `${A}/pruning/previews/${check.id}` };
+    },
+    expect: members(200),
+  },
+  'POST /api/analyses/:slug/pruning': { call: async (t) => ({ path: `${A}/pruning`, body: { effects: [{ id: (await freshEntry(t)).effectId }], comment: 'matrix' } }), expect: analystOnly(200) },
+  'POST /api/analyses/:slug/pruning/restore': {
+    call: async (t) => {
+      const { effectId } = await freshEntry(t);
+      await t.database.db.update(effects).set({ pruned: true }).where(eq(effects.id, effectId));
+      return { path: `${A}/pruning/restore`, body: { effects: [effectId] } };
+    },
+    expect: analystOnly(200),
   },
   'PUT /api/analyses/:slug/entries/:key/group': { call: async (t) => ({ path: `${A}/entries/${(await freshEntry(t)).key}/group`, body: { groupId: null } }), expect: analystOnly(200) },
   'GET /api/analyses/:slug/groups': { call: () => ({ path: `${A}/groups` }), expect: members(200) },

@@ -34,7 +34,7 @@ export async function createTestApp(overrides: Partial<Config> = {}): Promise<Te
   const mailer = await createMailer(outboxStore(database.db), config, () => {});
   const fits = createFitRunner(database.db, () => {}, { threads: 2 });
   const toys = createToyRunner(database.db, () => {}, { threads: 2 });
-  const app = createApp(database, config, { mailer, fits, toys, log: () => {} });
+  const app = createApp(database, config, { mailer, fits, toys, log: process.env.TEST_LOG ? console.error : () => {} });
   return {
     ...app,
     database,
