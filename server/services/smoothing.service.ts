@@ -53,7 +53,7 @@ export async function smoothEffect(ctx: AppContext, access: Access, key: string,
   const warnings = shapeWarnings(nominal, after.up, after.down);
   const precision = shapePrecision(nominal, after.up, after.down, { up: effect.upShiftVariance, down: effect.downShiftVariance }, template.variance);
   if (!warnings.some((w) => w.code === 'flat-shape')) warnings.push(...noiseWarnings(precision));
-  const preview: SmoothPreview = { saved: false, method: input.method, nominal, edges: region.edges, before, after, warnings };
+  const preview: SmoothPreview = { saved: false, method: input.method, nominal, edges: region.edges, before, after, warnings, precision };
   if (!input.save) return preview;
 
   const backToReview = entry.state === 'accepted';

@@ -163,6 +163,8 @@ export const smoothPreviewSchema = z.object({
   before: z.object({ up: z.array(z.number()), down: z.array(z.number()) }),
   after: z.object({ up: z.array(z.number()), down: z.array(z.number()) }),
   warnings: z.array(variationWarningSchema),
+  /** the smoothed shifts' precision: their errors and χ² tests, as for an upload */
+  precision: z.object({ up: shiftPrecisionSchema, down: shiftPrecisionSchema }).nullable().default(null),
 });
 export type SmoothPreview = z.infer<typeof smoothPreviewSchema>;
 

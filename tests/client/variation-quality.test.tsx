@@ -98,6 +98,7 @@ describe('smoothing a shape effect', () => {
   const preview = (saved: boolean, method = 'local-regression'): SmoothPreview => ({
     saved,
     method,
+    precision: null,
     nominal: [100, 50, 25, 12],
     edges: [1000, 1100, 1200, 1300, 1400],
     before: { up: [105, 52, 26, 12.6], down: [96, 48, 24, 11.5] },

@@ -31,6 +31,9 @@ describe('smoothing a shape effect', () => {
     res.body.after.up.forEach((v: number, b: number) => expect(v).toBeCloseTo(nominal[b] * 1.1, 9));
     res.body.after.down.forEach((v: number, b: number) => expect(v).toBeCloseTo(nominal[b] * 0.9, 9));
     expect(res.body.before.up[1]).toBeCloseTo(nominal[1] * 1.3, 9);
+    // smoothed to a pure 10 % scale: flat against a flat shift, with the relative shift of the scale
+    expect(res.body.precision.up.againstFlat.chi2).toBeCloseTo(0, 9);
+    expect(res.body.precision.up.againstFlat.relativeShift).toBeCloseTo(0.1, 9);
     expect(await dbSnapshot(t)).toBe(before);
   });
 
