@@ -177,7 +177,9 @@ describe('PostgreSQL server, two web server processes on one port, and two worke
       .filter((d) => /^\d+$/.test(d))
       .filter((d) => {
         try {
-          return readFileSync(`/proc/${d}/stat`, 'utf8').split(') ')[1].split(' ')[1] === String(server.process.pid);
+          // a node process whose parent is the server; tsx's esbuild service is a child too
+          const stat = readFileSync(`/proc/${d}/stat`, 'utf8');
+          return stat.includes('(node)') && stat.split(') ')[1].split(' ')[1] === String(server.process.pid);
         } catch {
           return false;
         }
@@ -187,7 +189,11 @@ describe('PostgreSQL server, two web server processes on one port, and two worke
     analyst = request.agent(server.url);
     expect((await send('post', '/api/auth/sign-in', { email: DEMO.analyst, password: PASSWORD })).status).toBe(200);
     // a session made by one process holds in the other: every request of these may reach either
-    for (let i = 0; i < 10; i++) expect((await request(server.url).get('/api/analyses').set('Cookie', analyst.jar.getCookies({ domain: '127.0.0.1', path: '/', secure: false, script: false }).toValueString())).status).toBe(200);
+    const cookie = analyst.jar.getCookies({ domain: new URL(server.url).hostname, path: '/', secure: false, script: false }).toValueString();
+    for (let i = 0; i < 10; i++) {
+      const res = await request(server.url).get('/api/analyses').set('Cookie', cookie);
+      expect(res.status, `request ${i + 1} with ${cookie}: ${res.text}`).toBe(200);
+    }
     const frozen = await send('post', `${A}/versions`, { note: 'for the workers' });
     expect(frozen.status).toBe(201);
     version = frozen.body.number;
@@ -196,7 +202,7 @@ describe('PostgreSQL server, two web server processes on one port, and two worke
   it('splits a full-impacts fit across both workers, and its result equals the embedded one', async () => {
     const options = { impacts: 'full', scan: true, scanPoints: 9, limit: true } as const;
     const started = await send('post', `${A}/fits`, { version, label: 'on the workers', options });
-    expect(started.status).toBe(202);
+    expect(started.status, JSON.stringify(started.body)).toBe(202);
     fitId = started.body.id;
     const fit = await until(
       'the fit',

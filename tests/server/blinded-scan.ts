@@ -1,6 +1,6 @@
 import { expect } from 'vitest';
 import { and, eq, inArray } from 'drizzle-orm';
-import { analyses, entries, fits, outbox, questions, regions, reviewSets, toyRuns } from '../../server/db/schema';
+import { analyses, entries, fits, impactChecks, outbox, questions, regions, reviewSets, toyRuns } from '../../server/db/schema';
 import { fitPartNames } from '../../shared/schemas/fits';
 import { exportTableSchema } from '../../shared/schemas/fits';
 import type { Client, TestApp } from './helpers';
@@ -36,6 +36,7 @@ async function parameterValues(t: TestApp, slug: string): Promise<{ values: Valu
   const entryKeys = (await db.select({ key: entries.key }).from(entries).where(eq(entries.analysisId, a.id))).map((e) => e.key);
   const questionIds = (await db.select({ id: questions.id }).from(questions).where(eq(questions.analysisId, a.id))).map((q) => String(q.id));
   const setIds = (await db.select({ id: reviewSets.id }).from(reviewSets).where(eq(reviewSets.analysisId, a.id))).map((r) => String(r.id));
+  const previewIds = (await db.select({ id: impactChecks.id }).from(impactChecks).where(and(eq(impactChecks.analysisId, a.id), eq(impactChecks.kind, 'pruning')))).map((r) => String(r.id));
   const toyIds = fitRows.length ? (await db.select({ id: toyRuns.id }).from(toyRuns).where(inArray(toyRuns.fitId, fitRows.map((f) => f.id)))).map((r) => String(r.id)) : [];
   return {
     values: {
@@ -49,6 +50,7 @@ async function parameterValues(t: TestApp, slug: string): Promise<{ values: Valu
       questionId: questionIds,
       toyId: toyIds,
       setId: setIds,
+      previewId: previewIds,
     },
     fitIds: fitRows.map((f) => f.id),
   };
