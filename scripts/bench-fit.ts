@@ -13,13 +13,14 @@
  */
 import { readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
-import { createFitPool, fitModel, syntheticModel, type SyntheticSize } from '../server/fit';
+import { fitModel, syntheticModel, type SyntheticSize } from '../server/fit';
+import { createFitPool } from '../server/runs/threads/pool';
 import { curvatureAt } from '../server/fit/covariance';
 import { createScratch, minimise } from '../server/fit/minimiser';
 import { buildProblem, startPoint } from '../server/fit/problem';
-import { runJobs } from '../server/fit/pool';
-import { scanJobs } from '../server/fit/scan';
-import type { Job } from '../server/fit/jobs';
+import { runRefits } from '../server/fit/refit-batches';
+import { scanTasks } from '../server/fit/scan';
+import type { RefitTask } from '../server/fit/refit-tasks';
 
 const { values } = parseArgs({ options: { sizes: { type: 'string', default: 'tiny,small,medium,large' }, threads: { type: 'string' }, repeat: { type: 'string', default: '1' } } });
 const sizes = values.sizes!.split(',') as SyntheticSize[];
@@ -71,23 +72,23 @@ for (const size of sizes) {
   const ctx = context!;
 
   // Full impacts, post-fit, both directions, on the pool.
-  const jobs: Job[] = [];
+  const tasks: RefitTask[] = [];
   for (let i = m.thetaStart; i < m.nDense; i++) {
     if (problem.held[i]) continue;
     const sigma = Math.sqrt(ctx.V[i * m.nDense + i]);
-    for (const sgn of [1, -1]) jobs.push({ kind: 'fix', context: 0, index: i, value: Math.min(5, Math.max(-5, ctx.phi[i] + sgn * sigma)) });
+    for (const sgn of [1, -1]) tasks.push({ kind: 'fix', context: 0, index: i, value: Math.min(5, Math.max(-5, ctx.phi[i] + sgn * sigma)) });
   }
   const impactTimes: number[] = [];
   const scanTimes: number[] = [];
-  let impacts: Awaited<ReturnType<typeof runJobs>> = [];
+  let impacts: Awaited<ReturnType<typeof runRefits>> = [];
   for (let rep = 0; rep < repeat; rep++) {
     let t = performance.now();
-    impacts = await runJobs([ctx], jobs, { pool });
+    impacts = await runRefits([ctx], tasks, { pool });
     impactTimes.push(elapsed(t));
     // μ scan: 21 points and the four crossings, on the pool.
     t = performance.now();
-    const scan = scanJobs(ctx, 0, 0, 21);
-    await runJobs([ctx], scan.jobs, { pool });
+    const scan = scanTasks(ctx, 0, 0, 21);
+    await runRefits([ctx], scan.tasks, { pool });
     scanTimes.push(elapsed(t));
   }
   const mean = (f: (w: NonNullable<(typeof impacts)[number]['work']>) => number) =>
@@ -126,8 +127,8 @@ for (const size of sizes) {
     'fit s': bestMedian(fitTimes),
     'fit cold s': coldTime.toFixed(3),
     iterations,
-    refits: jobs.length,
-    'impacts s': jobs.length ? bestMedian(impactTimes) : '-',
+    refits: tasks.length,
+    'impacts s': tasks.length ? bestMedian(impactTimes) : '-',
     'impact rungs w/n/c/f': rungText(impactRungs),
     'steps/refit': mean((w) => w.steps + w.normalisationSteps),
     'gradients/refit': mean((w) => w.gradients),

@@ -3,11 +3,12 @@ import { loadavg } from 'node:os';
 import { eq } from 'drizzle-orm';
 import { openServerDatabase } from '../server/db/client';
 import { analyses, fits, modelVersions, toyRuns } from '../server/db/schema';
-import { createFitPool, fitModel, syntheticModel } from '../server/fit';
+import { fitModel, syntheticModel } from '../server/fit';
+import { createFitPool } from '../server/runs/threads/pool';
 import { prepareToys } from '../server/fit/toys';
-import { toyBatches, toyThreads } from '../server/work/toys';
+import { toyBatches, toyThreads } from '../server/runs/toys';
 import { fitOptionsSchema } from '@shared/schemas/fit';
-import { QUEUES, startQueue } from '../server/work/queue';
+import { QUEUES, startQueue } from '../server/runs/queue/queue';
 import { startPostgres } from './postgres-server';
 
 /**

@@ -10,8 +10,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
-import { createFitPool } from '../server/fit';
-import { workerPool } from '../server/fit/pool';
+import { createFitPool, threadEntry, workerPool } from '../server/runs/threads/pool';
 import { AGREEMENT_FULL, checkRefitAgreement, type AgreementRow } from '../server/fit/refit-agreement';
 import type { ColdFit, ColdFitTask } from '../server/fit/refit-reference';
 
@@ -25,7 +24,7 @@ const loadAverage = () => {
 };
 console.log(`load average before: ${loadAverage()}`);
 const pool = createFitPool({ threads: 2 });
-const referenceFile = new URL('../server/fit/refit-reference-worker.ts', import.meta.url).href;
+const referenceFile = threadEntry('refit-reference.worker');
 const reference = workerPool(referenceFile, { minThreads: 2, maxThreads: 2 });
 const cases = AGREEMENT_FULL.filter((c) => !values.only || c.label.includes(values.only));
 const rows: AgreementRow[] = [];

@@ -17,7 +17,8 @@ import { readFileSync, writeFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
 import { exchangeModelSchema } from '@shared/schemas/exchange';
 import type { FitOptionsInput } from '@shared/schemas/fit';
-import { createFitPool, FitInputError, fitModel, hideMu, variantIssues } from '../server/fit';
+import { FitInputError, fitModel, hideMu, variantIssues } from '../server/fit';
+import { createFitPool } from '../server/runs/threads/pool';
 
 function fail(message: string): never {
   process.stderr.write(`${message}\n`);

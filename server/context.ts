@@ -1,8 +1,8 @@
 import type { Config } from './config';
 import type { Db, DbClient } from './db/client';
 import type { Mailer } from './mail/mailer';
-import type { FitRunner } from './jobs/fit-runner';
-import type { ToyRunner } from './jobs/toy-runner';
+import type { FitRunner } from './runs/fit-runner';
+import type { ToyRunner } from './runs/toy-runner';
 
 /** What every route and service may reach: built once in createApp. */
 export type AppContext = {

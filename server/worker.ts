@@ -2,14 +2,12 @@ import { availableParallelism, hostname } from 'node:os';
 import { parseArgs } from 'node:util';
 import { ConfigError, loadConfig } from './config';
 import { DatabaseUnreachableError, openServerDatabase, redacted } from './db/client';
-import { createFitPool } from './fit';
-import type { FitContext } from './fit/covariance';
-import type { WorkerBatch } from './fit/fit-worker';
-import { toShared } from './fit/pool';
-import { coordinateFit } from './work/coordinate';
-import { QUEUES, startQueue, takeJobs, workShards } from './work/queue';
-import { failCoordinatedBy, startHeartbeat } from './work/heartbeat';
-import { coordinateToys, toyBatchWorker, toyThreads } from './work/toys';
+import { toShared, type FitContext, type RefitBatch } from './fit';
+import { createFitPool } from './runs/threads/pool';
+import { coordinateFit } from './runs/queue/coordinate';
+import { QUEUES, startQueue, takeJobs, workShards } from './runs/queue/queue';
+import { failCoordinatedBy, startHeartbeat } from './runs/queue/heartbeat';
+import { coordinateToys, toyBatchWorker, toyThreads } from './runs/toys';
 
 /**
  * A worker process: takes fits, refit shards, toy runs and toy batches from the queue in the
@@ -34,13 +32,13 @@ async function main() {
   // toy batches on T threads, and a thread for the plan of a toy run this worker coordinates
   const toys = toyThreads(threads, config.FIT_NICENESS);
 
-  const refitShards = await workShards<FitContext[], WorkerBatch['jobs'], unknown>(database.db, queue, {
+  const refitShards = await workShards<FitContext[], RefitBatch['tasks'], unknown>(database.db, queue, {
     queue: QUEUES.refits,
     worker: name,
     concurrency: threads,
     // in shared memory, so that each batch sent to a thread copies only the small fields
     prepare: (input) => toShared(input) as FitContext[],
-    compute: (contexts, jobs) => refits.runBatch({ contexts, jobs }),
+    compute: (contexts, tasks) => refits.runBatch({ contexts, tasks }),
     log,
   });
   const toyShards = await workShards(database.db, queue, { queue: QUEUES.toyBatch, worker: name, concurrency: threads, ...toyBatchWorker(toys), log });

@@ -1,7 +1,8 @@
 import { closeSync, existsSync, mkdirSync, openSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { PGlite } from '@electric-sql/pglite';
-import { drizzle, type PgliteDatabase } from 'drizzle-orm/pglite';
+import { drizzle } from 'drizzle-orm/pglite';
+import type { PgDatabase, PgQueryResultHKT } from 'drizzle-orm/pg-core';
 import { migrate } from 'drizzle-orm/pglite/migrator';
 import { drizzle as drizzlePg } from 'drizzle-orm/node-postgres';
 import { migrate as migratePg } from 'drizzle-orm/node-postgres/migrator';
@@ -19,8 +20,8 @@ export type DbClient = {
   exec: (text: string) => Promise<unknown>;
   listen?: PGlite['listen'];
 };
-/** Drizzle over either driver: the query builder is the same; the embedded client is typed. */
-export type Db = Omit<PgliteDatabase<typeof schema>, '$client'> & { $client: DbClient };
+/** Drizzle over either driver: the query builder both share (PgDatabase), with the connection as a DbClient. */
+export type Db = PgDatabase<PgQueryResultHKT, typeof schema> & { $client: DbClient };
 export type Database = {
   db: Db;
   client: DbClient;
@@ -88,11 +89,11 @@ export async function openServerDatabase(url: string, poolSize = 10): Promise<Da
     await pool.end();
     throw new DatabaseUnreachableError(`Plumbline cannot use the database at ${redacted(url)}: ${(e as Error).message}`);
   }
-  const db = drizzlePg(pool, { schema }) as unknown as Db;
   const client: DbClient = {
     query: async <T,>(text: string, params?: unknown[]) => ({ rows: (await pool.query(text, params)).rows as T[] }),
     exec: (text) => pool.query(text),
   };
+  const db: Db = Object.assign(drizzlePg(pool, { schema }), { $client: client });
   return { db, client, kind: 'server', url, close: () => pool.end() };
 }
 
@@ -128,7 +129,7 @@ export async function openDatabase(dataDir?: string, url?: string): Promise<Data
     const db = drizzle(client, { schema });
     await migrate(db, { migrationsFolder: path.join(projectRoot, 'drizzle') });
     return {
-      db: db as Db,
+      db,
       client,
       kind: 'embedded',
       url: null,

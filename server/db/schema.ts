@@ -416,7 +416,7 @@ export const workInputs = pgTable('work_inputs', {
   createdAt: createdAt(),
 });
 
-/** Which worker took which shard: a shard whose takers are all gone is sent again (work/queue.ts). */
+/** Which worker took which shard: a shard whose takers are all gone is sent again (runs/queue/queue.ts). */
 export const workClaims = pgTable(
   'work_claims',
   {

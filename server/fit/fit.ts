@@ -6,14 +6,14 @@ import { curvatureAt, gammaVariance, type FitContext } from './covariance';
 import { FitCancelledError, FitInputError, throwIfAborted } from './errors';
 import { postfitYields, prefitYields } from './expected-yields';
 import { informationBreakdown } from './information';
-import { addRefits, noRefits, type Job, type JobResult, type RefitCounts } from './jobs';
+import { addRefits, noRefits, type RefitTask, type RefitResult, type RefitCounts } from './refit-tasks';
 import { clippedSampleBins, createScratch, EDGE_TOLERANCE, minimise, type MinimiseResult } from './minimiser';
 import { correlationMatrix, errorOf, groupImpact, isAtBound, nuisanceTable, parameterTable, statOnlyError } from './parameters-report';
-import { runJobs, type FitPool } from './pool';
+import { runRefits, type FitPool } from './refit-batches';
 import { asimovData, buildProblem, startPoint } from './problem';
 import { applyHeld, decorrelationReports, frozenShare, needsBestFit, resolveHeld, variantModel, type HeldValue } from './variants';
 import { createWorkspace, evaluateYields } from './yields';
-import { assembleScan, scanJobs } from './scan';
+import { assembleScan, scanTasks } from './scan';
 import { discovery, goodnessOfFit } from './significance';
 
 export interface FitControl {
@@ -102,8 +102,8 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   const muFree = !problem.held[0];
   const P = m.nDense;
   const contexts: FitContext[] = [ctx];
-  const jobs: Job[] = [];
-  const push = (job: Job) => jobs.push(job) - 1;
+  const tasks: RefitTask[] = [];
+  const push = (task: RefitTask) => tasks.push(task) - 1;
 
   // Asimov datasets for the expected significance (μ = 1) and the limit (μ = 0): pre-fit, or
   // built on the reference fit (§9.5), whose minimum is then known to be the reference point
@@ -133,7 +133,7 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   // thread meanwhile, so that neither waits for the other.
   const zeroAllowed = m.lower[0] <= 0 && m.upper[0] >= 0;
   const q0Job = muFree && zeroAllowed && ctx.phi[0] > 0 ? push({ kind: 'fix', context: 0, index: 0, value: 0 }) : null;
-  // One job per parameter and direction: θ̂ ± σ̂ (post-fit), then θ̂ ± 1 (pre-fit) from there.
+  // One task per parameter and direction: θ̂ ± σ̂ (post-fit), then θ̂ ± 1 (pre-fit) from there.
   const impactJobs = new Map<number, { up: number; down: number }>();
   if (options.impacts === 'full' && muFree) {
     for (let i = m.thetaStart; i < P; i++) {
@@ -147,17 +147,17 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   }
   let scanPlan: { grid: number[]; first: number } | null = null;
   if (options.scan && muFree) {
-    const { grid, jobs: sj } = scanJobs(ctx, 0, 0, options.scanPoints);
-    scanPlan = { grid, first: jobs.length };
+    const { grid, tasks: sj } = scanTasks(ctx, 0, 0, options.scanPoints);
+    scanPlan = { grid, first: tasks.length };
     sj.forEach(push);
   }
-  const firstWave = jobs.length;
+  const firstWave = tasks.length;
   const done = [0, 0];
   const waveProgress = (wave: number, total: number) => (f: number) => {
     done[wave] = f * total;
-    progress(0.35 + (0.6 * (done[0] + done[1])) / Math.max(1, jobs.length), 'refits');
+    progress(0.35 + (0.6 * (done[0] + done[1])) / Math.max(1, tasks.length), 'refits');
   };
-  const firstRun = runJobs([ctx], jobs.slice(), { pool, signal, onProgress: waveProgress(0, firstWave) });
+  const firstRun = runRefits([ctx], tasks.slice(), { pool, signal, onProgress: waveProgress(0, firstWave) });
   firstRun.catch(() => undefined); // awaited below; a cancellation must not surface as unhandled meanwhile
 
   const expectedCtx = muFree && options.expected ? asimovContext(1, 'expected significance') : null;
@@ -174,7 +174,7 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
         }
       : null;
 
-  const secondRun = runJobs(contexts, jobs.slice(firstWave), { pool, signal, onProgress: waveProgress(1, jobs.length - firstWave) });
+  const secondRun = runRefits(contexts, tasks.slice(firstWave), { pool, signal, onProgress: waveProgress(1, tasks.length - firstWave) });
   secondRun.catch(() => undefined);
   const information = informationBreakdown(ctx);
   const yields = { prefit: prefitYields(m), postfit: postfitYields(ctx) };
@@ -183,13 +183,13 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   throwIfAborted(signal);
   const refits = countRefits(results);
   if (refits.failed > 0) warnings.push(`${refits.failed} conditional fit(s) failed on every rung (warm, Newton, cold); the outputs that need them are left empty.`);
-  lowerMinimumWarning(jobs, results, contexts, warnings);
+  lowerMinimumWarning(tasks, results, contexts, warnings);
 
   // Per-parameter tables.
   const parameters = parameterTable(ctx);
   const nuisance = nuisanceTable(ctx, options.overConstraintThreshold);
   const muHat = ctx.phi[0];
-  const delta = (r: JobResult, what: string): number | null => {
+  const delta = (r: RefitResult, what: string): number | null => {
     if (!r.ok || r.mu === null) {
       warnings.push(`The refit for ${what} did not converge on any rung; its impact is left empty.`);
       return null;
@@ -373,20 +373,20 @@ function measuredAsimov(m: CompiledModel, reference: { phi: Float64Array; gamma:
   return { data: Float64Array.from(ws.nu), globals: { theta: Float64Array.from(reference.phi), gamma: Float64Array.from(reference.gamma) } };
 }
 
-type BreakdownPlan = { rows: { group: string; context: number; jobs: [number, number] }[]; nominalJobs: [number, number] | null };
+type BreakdownPlan = { rows: { group: string; context: number; tasks: [number, number] }[]; nominalTasks: [number, number] | null };
 
 /**
  * §9.7: a context per group with the group held at the best fit (the minimum is the same point,
  * the curvature is that of the problem with the group held), and μ's q = 1 crossings on each;
  * "template statistics" holds every γ and "all systematics" every θ. The nominal crossings come
- * from the scan, or get jobs of their own without one.
+ * from the scan, or get tasks of their own without one.
  */
 function planBreakdown(
   ctx: FitContext,
   problem: FitProblem,
   scratch: ReturnType<typeof createScratch>,
   contexts: FitContext[],
-  push: (job: Job) => number,
+  push: (task: RefitTask) => number,
   ownNominal: boolean,
   warnings: string[],
 ): BreakdownPlan {
@@ -413,22 +413,22 @@ function planBreakdown(
       continue;
     }
     const index = contexts.push(c.context) - 1;
-    rows.push({ group: plan.group, context: index, jobs: crossings(index) });
+    rows.push({ group: plan.group, context: index, tasks: crossings(index) });
   }
-  return { rows, nominalJobs: ownNominal ? crossings(0) : null };
+  return { rows, nominalTasks: ownNominal ? crossings(0) : null };
 }
 
-function assembleBreakdown(plan: BreakdownPlan, results: JobResult[], ctx: FitContext, scan: FitResult['scan'], grouped: FitResult['groupedImpacts'], syst: number | null): BreakdownRow[] {
+function assembleBreakdown(plan: BreakdownPlan, results: RefitResult[], ctx: FitContext, scan: FitResult['scan'], grouped: FitResult['groupedImpacts'], syst: number | null): BreakdownRow[] {
   const mu = ctx.phi[0];
-  const sides = (jobs: [number, number]) => {
+  const sides = (tasks: [number, number]) => {
     const at = (k: number) => (results[k].ok && results[k].value !== null ? Math.abs(results[k].value! - mu) : null);
-    return { low: at(jobs[0]), high: at(jobs[1]) };
+    return { low: at(tasks[0]), high: at(tasks[1]) };
   };
-  const nominal = plan.nominalJobs
-    ? sides(plan.nominalJobs)
+  const nominal = plan.nominalTasks
+    ? sides(plan.nominalTasks)
     : { low: scan?.crossings68.low != null ? Math.abs(scan.crossings68.low - mu) : null, high: scan?.crossings68.high != null ? Math.abs(scan.crossings68.high - mu) : null };
   return plan.rows.map((row) => {
-    const share = frozenShare(nominal, sides(row.jobs));
+    const share = frozenShare(nominal, sides(row.tasks));
     const schur = row.group === 'all systematics' ? syst : (grouped.find((g) => g.group === row.group)?.impact ?? null);
     return { group: row.group, ...share, schur };
   });
@@ -447,8 +447,8 @@ function edgeSentence(min: MinimiseResult): string {
   return ` The minimum sits on that edge (${tried}): the fit holds the edge, where the decrement is measured along it.`;
 }
 
-/** Conditional fits of every job (the pre-fit refits of impact jobs included), by rung. */
-function countRefits(results: JobResult[]): RefitCounts {
+/** Conditional fits of every task (the pre-fit refits of impact tasks included), by rung. */
+function countRefits(results: RefitResult[]): RefitCounts {
   const total = noRefits();
   for (const r of results) {
     addRefits(total, r.refits);
@@ -462,20 +462,20 @@ function countRefits(results: JobResult[]): RefitCounts {
  * rounding found another, lower minimum: the likelihood has several, and the best fit is not
  * the lowest (MODEL.md gives no rule for this; the result says so rather than hiding it).
  */
-function lowerMinimumWarning(jobs: Job[], results: JobResult[], contexts: FitContext[], warnings: string[]): void {
+function lowerMinimumWarning(tasks: RefitTask[], results: RefitResult[], contexts: FitContext[], warnings: string[]): void {
   let lowest = 0;
   let where = '';
   results.forEach((r, k) => {
-    const job = jobs[k];
-    if (job.kind !== 'fix') return;
-    const ctx = contexts[job.context];
+    const task = tasks[k];
+    if (task.kind !== 'fix') return;
+    const ctx = contexts[task.context];
     const m = ctx.problem.model;
-    for (const [res, value] of [[r, job.value], [r.next, job.next]] as const) {
+    for (const [res, value] of [[r, task.value], [r.next, task.next]] as const) {
       if (!res?.ok || res.nll === null || value === undefined) continue;
       const below = ctx.nll - res.nll;
       if (below > 1e-7 * (1 + Math.abs(ctx.nll)) && below > lowest) {
         lowest = below;
-        where = `${m.names[job.index]} = ${Number(value.toPrecision(4))}`;
+        where = `${m.names[task.index]} = ${Number(value.toPrecision(4))}`;
       }
     }
   });

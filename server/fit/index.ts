@@ -1,10 +1,21 @@
-/** The fit engine's public API (MODEL.md; docs/fit-engine.md). */
+/**
+ * The fit engine's public API (MODEL.md; docs/fit-engine.md). Code outside server/fit imports
+ * the engine only from here (tests/architecture/server-layers.test.ts checks it).
+ */
 export { fitModel, type FitControl } from './fit';
 export { regionEntersFit } from './problem';
 export { scanParameter } from './parameter-scan';
-export { createFitPool, type FitPool, type FitPoolOptions } from './pool';
 export { FitCancelledError, FitInputError } from './errors';
-export { syntheticModel, SYNTHETIC_SIZES, type SyntheticSize, type SyntheticSpec } from './synthetic';
+export { syntheticModel, createRandom, SYNTHETIC_SIZES, type SyntheticSize, type SyntheticSpec } from './synthetic';
 export { normalCdf, normalSurvival, normalQuantile, chiSquareCdf, chiSquareSurvival, chiSquareQuantile } from './distributions';
 export { prepareToys, runToys, summariseToys, createToyFitter, runToyTask, type ToyPlan, type ToyParameter, type ToyOutcome, type ToyTask, type ToyControl, type ToyFitter } from './toys';
 export { variantIssues, partName, hideMu } from './variants';
+export { diagnoseParameter, type ParameterDiagnosisNumbers } from './diagnosis';
+export { whatIf, type WhatIfInput, type WhatIfOutcome } from './what-if';
+// refits on threads: the engine sends plain-data batches, server/runs/threads runs them
+export { runRefits, toShared, toPlain, type FitPool, type RefitBatch, type RunRefitsControl } from './refit-batches';
+export { Refitter, type RefitTask, type RefitResult } from './refit-tasks';
+export { createScratch, type Scratch } from './minimiser';
+export type { FitContext } from './covariance';
+// the refit-agreement suite (npm run check:refits)
+export { runColdFits, type ColdFit, type ColdFitTask } from './refit-reference';

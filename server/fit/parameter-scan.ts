@@ -2,12 +2,12 @@ import type { ExchangeModel } from '@shared/schemas/exchange';
 import { fitOptionsSchema, type FitOptionsInput, type ParameterScan } from '@shared/schemas/fit';
 import { curvatureAt } from './covariance';
 import { FitInputError } from './errors';
-import { JobRunner } from './jobs';
+import { Refitter } from './refit-tasks';
 import { createScratch, minimise } from './minimiser';
 import type { CompiledModel, FitProblem } from './compiled-model';
 import type { FitContext } from './covariance';
 import { buildProblem, startPoint } from './problem';
-import { assembleScan, scanJobs } from './scan';
+import { assembleScan, scanTasks } from './scan';
 
 /** The best fit prepared for work on one parameter, or why there is none. */
 export type BestFit =
@@ -40,9 +40,9 @@ export function bestFitFor(model: ExchangeModel, optionsInput: FitOptionsInput, 
 export function scanFromBestFit(best: Exclude<BestFit, { kind: 'unknown' }>, parameter: string, points: number): ParameterScan {
   const { m, index } = best;
   if (best.kind === 'none') return { parameter, failure: best.failure, bestFit: m.start[index], error: null, points: [], crossings68: { low: null, high: null }, crossings95: null };
-  const { grid, jobs } = scanJobs(best.ctx, 0, index, Math.max(3, points));
-  const runner = new JobRunner([best.ctx]);
-  return assembleScan(best.ctx, index, grid, jobs.map((j) => runner.run(j)), []);
+  const { grid, tasks } = scanTasks(best.ctx, 0, index, Math.max(3, points));
+  const runner = new Refitter([best.ctx]);
+  return assembleScan(best.ctx, index, grid, tasks.map((j) => runner.run(j)), []);
 }
 
 /**

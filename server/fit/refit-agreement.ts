@@ -1,8 +1,8 @@
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitResult } from '@shared/schemas/fit';
 import { fitModel } from './fit';
-import { noRefits, type RefitCounts } from './jobs';
-import type { FitPool } from './pool';
+import { noRefits, type RefitCounts } from './refit-tasks';
+import type { FitPool } from './refit-batches';
 import { buildProblem } from './problem';
 import { compassSearch, REFERENCE_PROBLEM, runColdFits, type ColdFit, type ColdFitTask } from './refit-reference';
 import { Q68, Q95 } from './scan';

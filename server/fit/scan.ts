@@ -1,7 +1,7 @@
 import type { ParameterScan } from '@shared/schemas/fit';
 import type { FitContext } from './covariance';
 import { chiSquareQuantile } from './distributions';
-import type { Job, JobResult } from './jobs';
+import type { RefitTask, RefitResult } from './refit-tasks';
 
 /**
  * Profile-likelihood scan of one parameter: q(x) = 2[NLL(x, others refitted) − NLL_min],
@@ -12,7 +12,7 @@ import type { Job, JobResult } from './jobs';
 export const Q68 = 1;
 export const Q95 = chiSquareQuantile(0.95, 1);
 
-export function scanJobs(ctx: FitContext, context: number, index: number, points: number): { grid: number[]; jobs: Job[] } {
+export function scanTasks(ctx: FitContext, context: number, index: number, points: number): { grid: number[]; tasks: RefitTask[] } {
   const m = ctx.problem.model;
   const P = m.nDense;
   const x0 = ctx.phi[index];
@@ -20,12 +20,12 @@ export function scanJobs(ctx: FitContext, context: number, index: number, points
   const lo = Math.max(m.lower[index], x0 - 3 * sigma);
   const hi = Math.min(m.upper[index], x0 + 3 * sigma);
   const grid = Array.from({ length: points }, (_, k) => lo + ((hi - lo) * k) / (points - 1));
-  const jobs: Job[] = grid.map((value) => ({ kind: 'fix', context, index, value }));
-  for (const level of [Q68, Q95]) for (const direction of [-1, 1] as const) jobs.push({ kind: 'crossing', context, index, level, direction });
-  return { grid, jobs };
+  const tasks: RefitTask[] = grid.map((value) => ({ kind: 'fix', context, index, value }));
+  for (const level of [Q68, Q95]) for (const direction of [-1, 1] as const) tasks.push({ kind: 'crossing', context, index, level, direction });
+  return { grid, tasks };
 }
 
-export function assembleScan(ctx: FitContext, index: number, grid: number[], results: JobResult[], warnings: string[]): ParameterScan {
+export function assembleScan(ctx: FitContext, index: number, grid: number[], results: RefitResult[], warnings: string[]): ParameterScan {
   const m = ctx.problem.model;
   const P = m.nDense;
   const name = m.names[index];

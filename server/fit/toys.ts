@@ -5,7 +5,7 @@ import type { FitProblem, GlobalObservables } from './compiled-model';
 import { conditionalFit, quasiNewtonFit } from './conditional-fit';
 import { curvatureAt, type FitContext } from './covariance';
 import { FitCancelledError, FitInputError } from './errors';
-import { JobRunner } from './jobs';
+import { Refitter } from './refit-tasks';
 import { negativeLogLikelihood } from './likelihood';
 import { createScratch, minimise, type Scratch } from './minimiser';
 import { buildProblem, startPoint } from './problem';
@@ -132,11 +132,11 @@ export function prepareToys(model: ExchangeModel, options: FitProblemInput, hypo
   const q0Defined = muFree && m.lower[0] <= 0 && m.upper[0] >= 0;
   const sigma = (i: number) => Math.sqrt(ctx.V[i * P + i]);
 
-  // q0 of the reference fit, through the same refit job as fitModel.
+  // q0 of the reference fit, through the same refit task as fitModel.
   let q0Observed: number | null = null;
   if (q0Defined) {
     if (ctx.phi[0] > 0) {
-      const r = new JobRunner([ctx]).run({ kind: 'fix', context: 0, index: 0, value: 0 });
+      const r = new Refitter([ctx]).run({ kind: 'fix', context: 0, index: 0, value: 0 });
       if (r.ok && r.nll !== null) q0Observed = Math.max(0, 2 * (r.nll - ctx.nll));
       else warnings.push(`The reference fit with μ held at 0 did not converge (${r.message ?? 'no minimum'}): the observed q0 and the toy p-value are not available.`);
     } else q0Observed = 0;

@@ -2,7 +2,7 @@ import type { ExchangeModel } from '@shared/schemas/exchange';
 import { fitOptionsSchema, type FitOptionsInput, type FitResult } from '@shared/schemas/fit';
 import { curvatureAt } from './covariance';
 import { FitInputError } from './errors';
-import { JobRunner } from './jobs';
+import { Refitter } from './refit-tasks';
 import { createScratch, minimise } from './minimiser';
 import { errorOf, nuisanceTable } from './parameters-report';
 import { buildProblem, startPoint } from './problem';
@@ -81,7 +81,7 @@ export function whatIf(input: WhatIfInput): WhatIfOutcome {
   });
 
   const muFree = !problem.held[0];
-  const runner = new JobRunner([ctx]);
+  const runner = new Refitter([ctx]);
   const focus = input.focus.map((name) => {
     const index = m.names.indexOf(name);
     if (index < m.thetaStart) throw new FitInputError(`"${name}" is not a nuisance parameter of the changed model`, ['focus']);

@@ -1,7 +1,7 @@
 import type { MemberRole } from '@shared/permissions';
 import type { ExchangeModelInput, Effect } from '@shared/schemas/exchange';
 import type { EntryState } from '@shared/schemas/api';
-import { createRandom } from '../fit/synthetic';
+import { createRandom } from '../fit';
 
 /**
  * The invented demo scenario: the LANTERN experiment at the (fictional) Meridian Ring collider

@@ -5,7 +5,7 @@ import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { entryWithOwner } from '../db/entries.repository';
 import { conflict, notFound } from '../errors';
-import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
+import type { ParameterDiagnosisNumbers } from '../fit';
 import { recentResults } from '../cache/results';
 import { isWithheld, withheldResultMessage } from './blinding.service';
 import { checkedFit, findFit, summaryOf, withheldReadBy } from './fits.service';

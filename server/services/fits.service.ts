@@ -11,8 +11,8 @@ import { encodeJson, storedEncoding, type Encoded } from '../cache/encoded-json'
 import { regionEntersFit, variantIssues } from '../fit';
 import { isWithheld, withheldInFit, withheldResultMessage, type BlindingRule } from './blinding.service';
 import { findVersion } from './versions.service';
-import { cancelJob, fitsTable } from '../jobs/job-rows';
-import { untilStopped } from '../jobs/local-runner';
+import { cancelJob, fitsTable } from '../runs/run-rows';
+import { untilStopped } from '../runs/local-runner';
 
 
 /**

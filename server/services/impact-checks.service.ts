@@ -5,7 +5,7 @@ import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { listFitRows, storedHead, versionModel, type StoredHead } from '../db/fits.repository';
 import { finishImpactCheck, insertImpactCheck, latestImpactCheck, type ImpactCheckRow } from '../db/impact-checks.repository';
-import type { WhatIfOutcome } from '../fit/what-if';
+import type { WhatIfOutcome } from '../fit';
 import { buildExchange } from './exchange-export.service';
 import { withheldReadBy } from './fits.service';
 

@@ -6,8 +6,8 @@ import { findToyRow, insertToyRun, listToyRows, type ToyRow } from '../db/toys.r
 import { conflict, notFound } from '../errors';
 import { withheldResultMessage } from './blinding.service';
 import { findFit, withheldReadBy } from './fits.service';
-import { cancelJob, toyRunsTable } from '../jobs/job-rows';
-import { untilStopped } from '../jobs/local-runner';
+import { cancelJob, toyRunsTable } from '../runs/run-rows';
+import { untilStopped } from '../runs/local-runner';
 
 /** A toy run as sent; `withheld` (the fit read blinded data) keeps its summary back. */
 function toyRunOf(row: Omit<ToyRow, 'summary'> & { summary?: unknown }, createdBy: string | null, withheld = false): ToyRun {

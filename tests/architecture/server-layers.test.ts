@@ -12,7 +12,10 @@ import { describe, expect, it } from 'vitest';
  *   server/mail      writes and sends messages: never the database (services choose recipients,
  *                    the mailer is given where to record)
  *   server/cache     caches and what keeps them true
- *   server/fit       the engine: mathematics only, no Express, database or other server code
+ *   server/fit       the engine: mathematics only, no Express, database, threads or other server
+ *                    code; everything else reaches it through server/fit/index.ts only
+ *   server/runs      running work: fit and toy runs on this process's threads (threads/) or on
+ *                    the PostgreSQL queue's worker processes (queue/)
  *   shared           contracts used by both sides: imports neither server/ nor src/
  *
  * Type-only imports are allowed across layers: they vanish when the code runs.
@@ -81,9 +84,14 @@ describe('the server layers', () => {
     const outside = values.filter(
       (i) =>
         under(i.file, 'server/fit') &&
-        (['express', 'drizzle-orm', 'pg', 'pg-boss', '@electric-sql/pglite'].includes(i.spec) || (under(i.to, 'server') && !under(i.to, 'server/fit'))),
+        (['express', 'drizzle-orm', 'pg', 'pg-boss', '@electric-sql/pglite', 'piscina', 'node:worker_threads'].includes(i.spec) || (under(i.to, 'server') && !under(i.to, 'server/fit'))),
     );
     expect(report(outside)).toEqual([]);
+  });
+
+  it('lets the rest of the server reach the engine only through its index', () => {
+    // type-only imports too: the engine's internal types are not a contract
+    expect(report(all.filter((i) => under(i.file, 'server') && !under(i.file, 'server/fit') && under(i.to, 'server/fit') && i.to !== 'server/fit/index' && i.to !== 'server/fit'))).toEqual([]);
   });
 
   it('keeps shared code free of the server and the client', () => {

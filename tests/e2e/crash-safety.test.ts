@@ -3,7 +3,7 @@ import path from 'node:path';
 import { PGlite } from '@electric-sql/pglite';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { syntheticModel } from '../../server/fit';
-import { INTERRUPTED } from '../../server/jobs/fit-runner';
+import { INTERRUPTED } from '../../server/runs/fit-runner';
 import { startServer, type RunningServer } from './support';
 
 const ENV = { UPLOAD_LIMIT_BYTES: '50000000', SIGN_IN_LIMIT: '1000' };

@@ -5,7 +5,8 @@ import { join } from 'node:path';
 import { promisify } from 'node:util';
 import { afterAll, describe, expect, it } from 'vitest';
 import { fitResultSchema } from '@shared/schemas/fit';
-import { createFitPool, fitModel, syntheticModel } from '../../server/fit';
+import { fitModel, syntheticModel } from '../../server/fit';
+import { createFitPool } from '../../server/runs/threads/pool';
 import { countingModel, expectClose } from './helpers';
 
 const run = promisify(execFile);

@@ -10,7 +10,7 @@ import { computeDerivatives, createDerivatives } from '../../server/fit/derivati
 import { profileGammas } from '../../server/fit/gamma-profile';
 import { negativeLogLikelihood } from '../../server/fit/likelihood';
 import { createScratch, minimise } from '../../server/fit/minimiser';
-import { siblingWorker, workerPool } from '../../server/fit/pool';
+import { threadEntry, workerPool } from '../../server/runs/threads/pool';
 import { buildProblem, startPoint } from '../../server/fit/problem';
 import { gaussian, poisson, toyRandom } from '../../server/fit/sampling';
 import { createRandom } from '../../server/fit/synthetic';
@@ -200,7 +200,7 @@ describe('pseudo-experiments', () => {
     expect(all.every((o) => o.ok)).toBe(true);
     expect(new Set(all.map((o) => o.mu)).size).toBe(20);
 
-    const pool = workerPool(siblingWorker(new URL('../../server/fit/pool.ts', import.meta.url).href, 'toy-worker'), { minThreads: 2, maxThreads: 2, workerData: { niceness: 0 } });
+    const pool = workerPool(threadEntry('toy-batch.worker'), { minThreads: 2, maxThreads: 2, workerData: { niceness: 0 } });
     try {
       const task = (indices: number[]): ToyTask => ({ model: small, options, plan, seed: 11, indices, key: 'batching-test' });
       const batches = (await Promise.all([range(10, 20), range(0, 5), range(5, 10)].map((ix) => pool.run(task(ix))))) as ToyOutcome[][];

@@ -11,8 +11,8 @@ import { analyses, users } from '../../server/db/schema';
 import { seedDemo } from '../../server/seed/demo';
 import { createMailer } from '../../server/mail/mailer';
 import { outboxStore } from '../../server/db/outbox.repository';
-import { createToyRunner } from '../../server/jobs/toy-runner';
-import { createFitRunner } from '../../server/jobs/fit-runner';
+import { createToyRunner } from '../../server/runs/toy-runner';
+import { createFitRunner } from '../../server/runs/fit-runner';
 import { Client, createTestApp, DEMO, signedIn, type TestApp } from './helpers';
 
 const sessionCookie = (res: request.Response) => ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith('plumbline.sid='));

@@ -4,7 +4,7 @@ import { exchangeModelSchema } from '@shared/schemas/exchange';
 import { fitOptionsSchema } from '@shared/schemas/fit';
 import { fitParts, fits, modelVersions } from '../../server/db/schema';
 import { fitModel } from '../../server/fit';
-import { INTERRUPTED } from '../../server/jobs/fit-runner';
+import { INTERRUPTED } from '../../server/runs/fit-runner';
 import { demoScenario } from '../../server/seed/scenario';
 import { storedResult } from '../../server/db/fits.repository';
 import { createTestApp, DEMO, signedIn, type Client, type TestApp } from './helpers';

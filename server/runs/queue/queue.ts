@@ -2,10 +2,10 @@ import { randomUUID } from 'node:crypto';
 import v8 from 'node:v8';
 import { and, eq, notInArray, sql } from 'drizzle-orm';
 import PgBoss from 'pg-boss';
-import type { Db } from '../db/client';
-import { workClaims, workInputs, workResults } from '../db/schema';
+import type { Db } from '../../db/client';
+import { workClaims, workInputs, workResults } from '../../db/schema';
 import { seenRecently } from './heartbeat';
-import { FitCancelledError } from '../fit/errors';
+import { FitCancelledError } from '../../fit';
 
 /**
  * Work through queues in the PostgreSQL server (pg-boss), for when one machine is not enough:
@@ -130,7 +130,7 @@ export async function runSharded<P, R>(
   }
 }
 
-/** Shards of a run, not done, taken only by workers no longer seen (work/heartbeat.ts). */
+/** Shards of a run, not done, taken only by workers no longer seen (heartbeat.ts). */
 async function lostShards(db: Db, run: string, done: number[]): Promise<number[]> {
   const rows = await db
     .select({ shard: workClaims.shard, alive: sql<boolean>`bool_or(${seenRecently(workClaims.worker)})` })

@@ -1,9 +1,9 @@
 import { and, eq, inArray, sql } from 'drizzle-orm';
-import type { Db } from '../db/client';
-import { fits } from '../db/schema';
-import { toyRunsTable, type JobTable } from '../jobs/job-rows';
-import type { FitRunner } from '../jobs/fit-runner';
-import type { ToyRunner } from '../jobs/toy-runner';
+import type { Db } from '../../db/client';
+import { fits } from '../../db/schema';
+import { toyRunsTable, type JobTable } from '../run-rows';
+import type { FitRunner } from '../fit-runner';
+import type { ToyRunner } from '../toy-runner';
 import { sweepLostCoordinators } from './heartbeat';
 import { QUEUES, type Queue } from './queue';
 
@@ -42,7 +42,7 @@ function queuedRows(db: Db, queue: Queue, table: JobTable, name: string, data: (
 
 /**
  * Every SWEEP_MS the server fails the runs whose coordinating worker is no longer seen
- * (work/heartbeat.ts); the fit runner's recover() starts that watch and close() ends it.
+ * (heartbeat.ts); the fit runner's recover() starts that watch and close() ends it.
  */
 const SWEEP_MS = 10_000;
 

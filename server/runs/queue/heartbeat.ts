@@ -1,8 +1,8 @@
 import { and, eq, isNotNull, lt, not, sql, type SQLWrapper } from 'drizzle-orm';
-import type { Db } from '../db/client';
-import { siblingWorker, workerPool } from '../fit/pool';
-import { workClaims, workerProcesses, workInputs, workResults } from '../db/schema';
-import { JOB_TABLES } from '../jobs/job-rows';
+import type { Db } from '../../db/client';
+import { siblingWorker, workerPool } from '../threads/pool';
+import { workClaims, workerProcesses, workInputs, workResults } from '../../db/schema';
+import { JOB_TABLES } from '../run-rows';
 
 /** A worker says it is alive this often, and is taken for gone after LOST_AFTER_SECONDS unseen. */
 const BEAT_MS = 5000;

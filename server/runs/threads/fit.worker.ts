@@ -1,9 +1,10 @@
 import type { MessagePort } from 'node:worker_threads';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptions } from '@shared/schemas/fit';
-import { createFitPool, type FitPool } from '../fit';
-import { lowerThreadPriority } from '../fit/thread-priority';
-import { fitOutcome, type JobOutcome } from './fit-outcome';
+import type { FitPool } from '../../fit';
+import { createFitPool } from './pool';
+import { lowerThreadPriority } from './thread-priority';
+import { fitOutcome, type JobOutcome } from '../fit-outcome';
 
 /**
  * A fit job in its own thread, so that the API's event loop never waits for the engine. The

@@ -1,6 +1,6 @@
 import { workerData } from 'piscina';
 import { lowerThreadPriority } from './thread-priority';
-import { createToyFitter, runToyTask, type ToyOutcome, type ToyFitter, type ToyTask } from './toys';
+import { createToyFitter, runToyTask, type ToyOutcome, type ToyFitter, type ToyTask } from '../../fit';
 
 /**
  * Worker-thread entry for pseudo-experiments: fits a batch of toys. A run sends the same model,

@@ -1,7 +1,7 @@
 import type { Db } from '../db/client';
-import { toyRunsTable } from './job-rows';
+import { toyRunsTable } from './run-rows';
 import { localRunner } from './local-runner';
-import { executeToys, threadToyExecutor, toyThreads, TOYS_INTERRUPTED } from '../work/toys';
+import { executeToys, threadToyExecutor, toyThreads, TOYS_INTERRUPTED } from './toys';
 
 /**
  * Runs toy runs (pseudo-experiments) in this process: one run at a time, its batches spread

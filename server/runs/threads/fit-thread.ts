@@ -1,9 +1,9 @@
 import { MessageChannel } from 'node:worker_threads';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptions } from '@shared/schemas/fit';
-import { siblingWorker, workerPool } from '../fit/pool';
-import type { JobOutcome } from './fit-job.worker';
-import type { StorableResult } from './fit-outcome';
+import { threadEntry, workerPool } from './pool';
+import type { JobOutcome } from './fit.worker';
+import type { StorableResult } from '../fit-outcome';
 
 export class JobError extends Error {
   constructor(
@@ -23,7 +23,7 @@ export type JobThread = {
 
 export function startJobThread(threads?: number, niceness = 0): JobThread {
   // one job at a time; cancelling a job ends its thread (and the engine's refit threads with it)
-  const piscina = workerPool(siblingWorker(import.meta.url, 'fit-job.worker'), { minThreads: 0, maxThreads: 1, idleTimeout: 10 * 60_000 });
+  const piscina = workerPool(threadEntry('fit.worker'), { minThreads: 0, maxThreads: 1, idleTimeout: 10 * 60_000 });
 
   return {
     run: async (model, options, onProgress, signal) => {

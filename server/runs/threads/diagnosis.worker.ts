@@ -1,8 +1,7 @@
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptions } from '@shared/schemas/fit';
-import { diagnoseParameter, type ParameterDiagnosisNumbers } from '../fit/diagnosis';
-import { whatIf, type WhatIfInput, type WhatIfOutcome } from '../fit/what-if';
-import { lowerThreadPriority } from '../fit/thread-priority';
+import { diagnoseParameter, whatIf, type ParameterDiagnosisNumbers, type WhatIfInput, type WhatIfOutcome } from '../../fit';
+import { lowerThreadPriority } from './thread-priority';
 
 /**
  * The diagnosis of one parameter, and what a change of the model does to a stored fit, in a thread

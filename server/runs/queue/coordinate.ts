@@ -1,12 +1,12 @@
 import { randomUUID } from 'node:crypto';
 import { eq } from 'drizzle-orm';
-import type { Db } from '../db/client';
-import { fits } from '../db/schema';
-import { FitCancelledError } from '../fit/errors';
-import { executeFit } from '../jobs/execute-fit';
-import { abortWhenCancelled } from '../jobs/local-runner';
-import { JobError } from '../jobs/fit-job';
-import { fitOutcome } from '../jobs/fit-outcome';
+import type { Db } from '../../db/client';
+import { fits } from '../../db/schema';
+import { FitCancelledError } from '../../fit';
+import { executeFit } from '../execute-fit';
+import { abortWhenCancelled } from '../local-runner';
+import { JobError } from '../threads/fit-thread';
+import { fitOutcome } from '../fit-outcome';
 import { ShardFailedError, type Queue } from './queue';
 import { queuedFitPool } from './queued-pool';
 

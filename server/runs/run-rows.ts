@@ -3,13 +3,16 @@ import type { Db } from '../db/client';
 import { fits, toyRuns } from '../db/schema';
 import { conflict } from '../errors';
 
-/** Rows that run as jobs: fits and toy runs share their id, state, progress, stage, failure, times and coordinator. */
-export type JobTable = typeof fits;
-export const JOB_TABLES: readonly JobTable[] = [fits, toyRuns as unknown as JobTable];
-export const toyRunsTable = JOB_TABLES[1];
-export const fitsTable = JOB_TABLES[0];
+/**
+ * Rows that run as jobs (a job is one fit or one toy run, queued, run and finished): fits and toy
+ * runs share their id, state, progress, stage, failure, times and coordinator.
+ */
+export type JobTable = typeof fits | typeof toyRuns;
+export const JOB_TABLES: readonly JobTable[] = [fits, toyRuns];
+export const toyRunsTable: JobTable = toyRuns;
+export const fitsTable: JobTable = fits;
 
-type JobValues = Partial<typeof fits.$inferInsert>;
+type JobValues = Partial<typeof fits.$inferInsert> & Partial<typeof toyRuns.$inferInsert>;
 
 /**
  * One job's row while it runs, wherever it runs: `start` takes it from queued to running (false

@@ -1,6 +1,6 @@
 import { eq } from 'drizzle-orm';
 import type { Db } from '../db/client';
-import { cancelQueuedRow, type JobTable } from './job-rows';
+import { cancelQueuedRow, type JobTable } from './run-rows';
 
 /** What both in-process runners offer the services. */
 export type LocalRunner = {

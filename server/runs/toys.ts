@@ -1,17 +1,15 @@
 import { randomUUID } from 'node:crypto';
-import path from 'node:path';
 import { eq } from 'drizzle-orm';
 import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
 import { fitOptionsSchema, type FitOptions } from '@shared/schemas/fit';
 import { toyHypothesisSchema, toySummarySchema, type ToyHypothesis } from '@shared/schemas/toys';
 import type { Db } from '../db/client';
 import { fits, modelVersions, toyRuns } from '../db/schema';
-import { FitCancelledError, FitInputError } from '../fit/errors';
-import { siblingWorker, workerPool } from '../fit/pool';
-import { summariseToys, type ToyOutcome, type ToyPlan, type ToyTask } from '../fit/toys';
-import { jobRow, toyRunsTable } from '../jobs/job-rows';
-import { abortWhenCancelled } from '../jobs/local-runner';
-import { QUEUES, runSharded, ShardFailedError, type Queue } from './queue';
+import { threadEntry, workerPool } from './threads/pool';
+import { FitCancelledError, FitInputError, summariseToys, type ToyOutcome, type ToyPlan, type ToyTask } from '../fit';
+import { jobRow, toyRunsTable } from './run-rows';
+import { abortWhenCancelled } from './local-runner';
+import { QUEUES, runSharded, ShardFailedError, type Queue } from './queue/queue';
 
 /** Toys per batch: a batch is the unit a thread or a worker takes; the numbers do not depend on it. */
 export const TOYS_PER_BATCH = 25;
@@ -87,14 +85,13 @@ export async function executeToys(
 /** Threads that make plans and run batches: the server's own (embedded database) or a worker's. */
 export function toyThreads(threads: number, niceness: number) {
   // the engine's toy worker lives in ../fit; a module of that folder with this one's extension (.ts or .js) locates it
-  const inFitFolder = new URL(`../fit/${path.basename(new URL(import.meta.url).pathname)}`, import.meta.url).href;
-  const batches = workerPool(siblingWorker(inFitFolder, 'toy-worker'), {
+  const batches = workerPool(threadEntry('toy-batch.worker'), {
     minThreads: 0,
     maxThreads: threads,
     idleTimeout: 60_000,
     workerData: { niceness },
   });
-  const plans = workerPool(siblingWorker(import.meta.url, 'toy-plan.worker'), { minThreads: 0, maxThreads: 1, idleTimeout: 60_000, workerData: { niceness } });
+  const plans = workerPool(threadEntry('toy-plan.worker'), { minThreads: 0, maxThreads: 1, idleTimeout: 60_000, workerData: { niceness } });
   return {
     threads,
     prepare: async (model: ExchangeModel, options: FitOptions, hypothesis: ToyHypothesis, signal?: AbortSignal): Promise<ToyPlan> => {

@@ -5,10 +5,10 @@ import { createScratch, type Scratch } from './minimiser';
 
 /**
  * The independent refits of a fit, as plain data so they can run in this thread or on a
- * worker: each job names the context (a minimum with its covariance) it starts from. A job
+ * worker: each task names the context (a minimum with its covariance) it starts from. A task
  * depends on nothing but its context, so the serial and parallel paths give the same numbers.
  */
-export type Job =
+export type RefitTask =
   /**
    * φ_index fixed at value: returns the NLL and μ of the conditional minimum. With `next`, the
    * same parameter is then fixed at that value too, starting from the first conditional minimum
@@ -22,7 +22,7 @@ export type Job =
   /** Observed CLs limit (observed context, background-only Asimov context). */
   | { kind: 'observed-limit'; context: number; asimov: number; cl: number };
 
-/** Conditional fits of a job by the rung of the ladder that met the stop test, and those where every rung failed. */
+/** Conditional fits of a task by the rung of the ladder that met the stop test, and those where every rung failed. */
 export interface RefitCounts {
   warm: number;
   newton: number;
@@ -42,21 +42,21 @@ export function addRefits(into: RefitCounts, from: RefitCounts): RefitCounts {
   return into;
 }
 
-export interface JobResult {
+export interface RefitResult {
   ok: boolean;
   value: number | null;
   nll: number | null;
   mu: number | null;
   message: string | null;
-  /** The conditional fits this job ran (for a 'fix' job with `next`, the first value only). */
+  /** The conditional fits this task ran (for a 'fix' task with `next`, the first value only). */
   refits: RefitCounts;
   /** Work done by a 'fix' refit (absent when the value is the minimum itself). */
   work?: RefitWork & { rung: ConditionalResult['rung'] };
-  /** The result at the job's `next` value. */
-  next?: JobResult;
+  /** The result at the task's `next` value. */
+  next?: RefitResult;
 }
 
-export class JobRunner {
+export class Refitter {
   private scratch = new Map<number, Scratch>();
   /** `scratchOf` lets a worker keep one scratch per context across batches. */
   constructor(
@@ -74,12 +74,12 @@ export class JobRunner {
   }
 
   /**
-   * Within one job, the last conditional minimum per context warm-starts the next fit of a
-   * root search. It is cleared between jobs, so a job's result does not depend on which jobs
+   * Within one task, the last conditional minimum per context warm-starts the next fit of a
+   * root search. It is cleared between tasks, so a task's result does not depend on which tasks
    * ran before it on the same thread (serial and parallel paths agree exactly).
    */
   private warm = new Map<number, WarmStart>();
-  /** Conditional fits of the job being run. */
+  /** Conditional fits of the task being run. */
   private counts = noRefits();
 
   /** One conditional fit, counted by its rung. */
@@ -100,36 +100,36 @@ export class JobRunner {
     return Math.max(0, 2 * (r.nll - ctx.nll));
   }
 
-  run(job: Job): JobResult {
+  run(task: RefitTask): RefitResult {
     this.warm.clear();
     this.counts = noRefits();
-    const result = this.dispatch(job);
+    const result = this.dispatch(task);
     return { ...result, refits: this.counts };
   }
 
-  private dispatch(job: Job): Omit<JobResult, 'refits'> {
-    switch (job.kind) {
+  private dispatch(task: RefitTask): Omit<RefitResult, 'refits'> {
+    switch (task.kind) {
       case 'fix': {
-        const first = this.fix(job.context, job.index, job.value, null);
-        if (job.next === undefined) return first.result;
+        const first = this.fix(task.context, task.index, task.value, null);
+        if (task.next === undefined) return first.result;
         const counts = this.counts;
         this.counts = noRefits();
-        const next = this.fix(job.context, job.index, job.next, first.warm);
+        const next = this.fix(task.context, task.index, task.next, first.warm);
         const nextResult = { ...next.result, refits: this.counts };
         this.counts = counts;
         return { ...first.result, next: nextResult };
       }
       case 'crossing':
-        return this.crossing(job.context, job.index, job.level, job.direction);
+        return this.crossing(task.context, task.index, task.level, task.direction);
       case 'expected-limit':
-        return this.expectedLimit(job.context, job.n, job.cl);
+        return this.expectedLimit(task.context, task.n, task.cl);
       case 'observed-limit':
-        return this.observedLimit(job.context, job.asimov, job.cl);
+        return this.observedLimit(task.context, task.asimov, task.cl);
     }
   }
 
   /** One conditional fit with φ_index = value, optionally from a nearby conditional minimum. */
-  private fix(c: number, index: number, value: number, warm: WarmStart | null): { result: Omit<JobResult, 'refits'>; warm: WarmStart | null } {
+  private fix(c: number, index: number, value: number, warm: WarmStart | null): { result: Omit<RefitResult, 'refits'>; warm: WarmStart | null } {
     const ctx = this.contexts[c];
     if (value === ctx.phi[index]) return { result: { ok: true, value, nll: ctx.nll, mu: ctx.phi[0], message: null }, warm: null };
     const r = this.refit(c, index, value, warm);
@@ -142,7 +142,7 @@ export class JobRunner {
    * Bracket, then solve √q(x) = √level by the Illinois variant of regula falsi (√q is close to
    * linear in x, so few conditional fits are needed; Dowell & Jarratt, BIT 11 (1971) 168).
    */
-  private crossing(c: number, index: number, level: number, dir: 1 | -1): Omit<JobResult, 'refits'> {
+  private crossing(c: number, index: number, level: number, dir: 1 | -1): Omit<RefitResult, 'refits'> {
     const ctx = this.contexts[c];
     const m = ctx.problem.model;
     const P = m.nDense;
@@ -173,7 +173,7 @@ export class JobRunner {
   }
 
   /** μ = σ_A(μ) K with σ_A(μ)² = μ²/q_μ,A on the background-only Asimov dataset, by fixed-point iteration. */
-  private expectedLimit(c: number, n: number, cl: number): Omit<JobResult, 'refits'> {
+  private expectedLimit(c: number, n: number, cl: number): Omit<RefitResult, 'refits'> {
     const ctx = this.contexts[c];
     const m = ctx.problem.model;
     const K = expectedLimitFactor(n, 1 - cl);
@@ -191,7 +191,7 @@ export class JobRunner {
   }
 
   /** Solves CLs(μ) = 1 − cl for μ above max(μ̂, 0). */
-  private observedLimit(c: number, a: number, cl: number): Omit<JobResult, 'refits'> {
+  private observedLimit(c: number, a: number, cl: number): Omit<RefitResult, 'refits'> {
     const ctx = this.contexts[c];
     const asimov = this.contexts[a];
     const m = ctx.problem.model;
@@ -238,7 +238,7 @@ export class JobRunner {
 /** The stop test of every refit: the main fit's (MODEL.md §5, §9). */
 const TOLERANCE = 1e-9;
 
-function failed(message: string | null): Omit<JobResult, 'refits'> {
+function failed(message: string | null): Omit<RefitResult, 'refits'> {
   return { ok: false, value: null, nll: null, mu: null, message };
 }
 

@@ -1,4 +1,4 @@
-import { runColdFits, type ColdFit, type ColdFitTask } from './refit-reference';
+import { runColdFits, type ColdFit, type ColdFitTask } from '../../fit';
 
 /** Worker-thread entry of the refit-agreement suite: a batch of reference cold fits. */
 export default function runColdFitBatch(task: ColdFitTask): ColdFit[] {

@@ -3,16 +3,15 @@ import { fits } from '../db/schema';
 import type { Piscina } from 'piscina';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptions } from '@shared/schemas/fit';
-import type { ParameterDiagnosisNumbers } from '../fit/diagnosis';
-import { siblingWorker, workerPool } from '../fit/pool';
-import type { DiagnosisTask, WhatIfTask } from './diagnosis.worker';
-import type { WhatIfInput, WhatIfOutcome } from '../fit/what-if';
+import type { ParameterDiagnosisNumbers, WhatIfInput, WhatIfOutcome } from '../fit';
+import { threadEntry, workerPool } from './threads/pool';
+import type { DiagnosisTask, WhatIfTask } from './threads/diagnosis.worker';
 import { executeFit, INTERRUPTED } from './execute-fit';
 import { localRunner } from './local-runner';
-import { startJobThread, type JobThread } from './fit-job';
+import { startJobThread, type JobThread } from './threads/fit-thread';
 
 /**
- * Runs fit jobs off the request thread: one fit at a time, in a job thread (fit-job.ts) whose
+ * Runs fit jobs off the request thread: one fit at a time, in a fit thread (threads/fit-thread.ts) whose
  * engine spreads the refits over its worker pool. Progress is written to the fit's row (at most every 300 ms),
  * so any request, from any client, reads it. A job that was running when the process stopped
  * is marked failed with that reason at the next start; queued jobs are picked up again.
@@ -38,7 +37,7 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
   let thread: JobThread | null = null;
   const jobs = () => (thread ??= startJobThread(options.threads, options.niceness));
   let diagnoses: Piscina | null = null;
-  const diagnosisThread = () => (diagnoses ??= workerPool(siblingWorker(import.meta.url, 'diagnosis.worker'), { minThreads: 0, maxThreads: 1, idleTimeout: 5 * 60_000 }));
+  const diagnosisThread = () => (diagnoses ??= workerPool(threadEntry('diagnosis.worker'), { minThreads: 0, maxThreads: 1, idleTimeout: 5 * 60_000 }));
   const runner = localRunner(
     db,
     fits,

@@ -1,7 +1,5 @@
-import { toPlain, type FitPool } from '../fit/pool';
-import type { WorkerBatch } from '../fit/fit-worker';
-import type { JobResult } from '../fit/jobs';
-import type { Db } from '../db/client';
+import { toPlain, type FitPool, type RefitBatch, type RefitResult } from '../../fit';
+import type { Db } from '../../db/client';
 import { QUEUES, runSharded, type Queue } from './queue';
 
 /** How many shards a fit's refits are cut into on the queue (the engine makes 12 batches per "thread"). */
@@ -13,18 +11,18 @@ const THREADS_EQUIVALENT = 3;
  * come back in order, so the fit's numbers do not depend on who computed what.
  */
 export function queuedFitPool(db: Db, queue: Queue, run: string, onShard?: (worker: string) => void): FitPool {
-  let pending: { batch: WorkerBatch; resolve: (r: JobResult[]) => void; reject: (e: unknown) => void; signal?: AbortSignal }[] = [];
+  let pending: { batch: RefitBatch; resolve: (r: RefitResult[]) => void; reject: (e: unknown) => void; signal?: AbortSignal }[] = [];
   let round = 0;
   const flush = () => {
     const batches = pending;
     pending = [];
     if (batches.length === 0) return;
     const contexts = batches[0].batch.contexts;
-    runSharded<WorkerBatch['jobs'], JobResult[]>(db, queue, {
+    runSharded<RefitBatch['tasks'], RefitResult[]>(db, queue, {
       run: `${run}:${round++}`,
       queue: QUEUES.refits,
       input: toPlain(contexts),
-      payloads: batches.map((b) => b.batch.jobs),
+      payloads: batches.map((b) => b.batch.tasks),
       signal: batches[0].signal,
       onShard: (shard, output, worker) => {
         onShard?.(worker);
@@ -35,7 +33,7 @@ export function queuedFitPool(db: Db, queue: Queue, run: string, onShard?: (work
   return {
     threads: THREADS_EQUIVALENT,
     runBatch: (batch, signal) =>
-      new Promise<JobResult[]>((resolve, reject) => {
+      new Promise<RefitResult[]>((resolve, reject) => {
         // the engine sends all batches of a round in one tick, with the same contexts
         if (pending.length && pending[0].batch.contexts !== batch.contexts) flush();
         if (pending.length === 0) setImmediate(flush);

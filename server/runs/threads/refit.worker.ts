@@ -1,14 +1,8 @@
 import { workerData } from 'piscina';
-import type { FitContext } from './covariance';
+import { createScratch, Refitter, type FitContext, type RefitBatch, type RefitResult, type Scratch } from '../../fit';
 import { lowerThreadPriority } from './thread-priority';
-import { JobRunner, type Job, type JobResult } from './jobs';
-import { createScratch, type Scratch } from './minimiser';
 
 /** Worker-thread entry: runs a batch of refits against the contexts sent with it. */
-export interface WorkerBatch {
-  contexts: FitContext[];
-  jobs: Job[];
-}
 
 /**
  * Contexts this worker has seen, by key, with their scratch (workspace, derivative buffers and
@@ -27,8 +21,8 @@ function cached(ctx: FitContext): FitContext {
   return ctx;
 }
 
-export default function runBatch(batch: WorkerBatch): JobResult[] {
+export default function runBatch(batch: RefitBatch): RefitResult[] {
   const contexts = batch.contexts.map(cached);
-  const runner = new JobRunner(contexts, (ctx) => seen.get(ctx.key)?.scratch ?? createScratch(ctx.problem));
-  return batch.jobs.map((job) => runner.run(job));
+  const runner = new Refitter(contexts, (ctx) => seen.get(ctx.key)?.scratch ?? createScratch(ctx.problem));
+  return batch.tasks.map((task) => runner.run(task));
 }

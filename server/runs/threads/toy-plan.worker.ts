@@ -2,9 +2,8 @@ import { workerData } from 'piscina';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptions } from '@shared/schemas/fit';
 import type { ToyHypothesis } from '@shared/schemas/toys';
-import { FitInputError } from '../fit/errors';
-import { lowerThreadPriority } from '../fit/thread-priority';
-import { prepareToys } from '../fit/toys';
+import { FitInputError, prepareToys } from '../../fit';
+import { lowerThreadPriority } from './thread-priority';
 
 /** Thread entry: a toy run's plan (the reference refit and the generation point), off the request thread. */
 lowerThreadPriority((workerData as { niceness?: number } | undefined)?.niceness ?? 0);

@@ -5,8 +5,8 @@ import type { Db } from '../db/client';
 import { fits, modelVersions } from '../db/schema';
 import { dropFitParts, storeFitParts } from '../db/fits.repository';
 import type { StorableResult } from './fit-outcome';
-import { JobError } from './fit-job';
-import { jobRow } from './job-rows';
+import { JobError } from './threads/fit-thread';
+import { jobRow } from './run-rows';
 
 export const NOT_FINITE =
   'The fit ended with a number that is not finite (NaN or infinite), so none of its numbers are shown. Check the model for extreme yields or variations, and tell an admin.';
