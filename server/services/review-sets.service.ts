@@ -108,6 +108,7 @@ export function compare(summary: ReviewSetSummary, heads: (StoredHead | null)[])
       title: m.title,
       fitId: m.id,
       state: m.state,
+      status: h?.status ?? null,
       note,
       mu: s ? { value: s.mu.value, error: s.mu.error, low: s.mu.interval68?.low ?? null, high: s.mu.interval68?.high ?? null, fixed: s.mu.fixed } : null,
       z: s?.discovery?.z ?? null,

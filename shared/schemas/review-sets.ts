@@ -43,6 +43,8 @@ export const reviewComparisonSchema = z.object({
       title: z.string(),
       fitId: z.number(),
       state: z.string(),
+      /** whether its result converged; null while it has none (queued, running, cancelled, withheld) */
+      status: z.enum(['converged', 'failed']).nullable(),
       /** why a member shows no numbers (hidden μ, withheld while blinded, not finished, failed) */
       note: z.string().nullable(),
       mu: z.object({ value: z.number(), error: z.number().nullable(), low: z.number().nullable(), high: z.number().nullable(), fixed: z.boolean() }).nullable(),

@@ -71,7 +71,8 @@ describe('fit variants and the review programme through the API', () => {
     expect(set.state).toBe('succeeded');
     expect(set.progress).toBe(1);
     const row = (v: string) => set.comparison.rows.find((r: { variant: string }) => r.variant === v);
-    expect(row('hidden-mu')).toMatchObject({ mu: null, note: 'μ hidden: pulls and constraints only' });
+    expect(row('hidden-mu')).toMatchObject({ mu: null, status: 'converged', note: 'μ hidden: pulls and constraints only' });
+    expect(set.comparison.rows.every((r: { status: string | null }) => r.status === 'converged')).toBe(true);
     expect(row('expected-1').mu.value).toBeCloseTo(1, 4);
     expect(row('expected-1').expectedFrom).toBe('control');
     expect(row('expected-0').limit.observed).toBeGreaterThan(0);
