@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { variantOptionsShape, variantReportSchema } from './variants';
+import { REGION_ROLES } from '../vocabulary';
 
 /**
  * Fit options and the fit result: what the engine accepts and returns, what the API serves
@@ -188,7 +189,7 @@ export const yieldSeriesSchema = z.strictObject({ values: z.array(num), errors: 
 
 export const regionYieldsSchema = z.strictObject({
   region: z.string(),
-  role: z.enum(['signal', 'control', 'validation']),
+  role: z.enum(REGION_ROLES),
   inFit: z.boolean(),
   edges: z.array(num),
   processes: z.array(z.strictObject({ process: z.string() }).extend(yieldSeriesSchema.shape)),
