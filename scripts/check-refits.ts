@@ -1,7 +1,7 @@
 /**
  * The refit-agreement suite in full (server/fit/refit-agreement.ts): every impact (pre- and
  * post-fit, both directions), both crossings of both μ intervals and q0 of generated models,
- * each against a cold fit at the same fixed value, at MODEL.md's tolerances. The engine's refits
+ * each against a cold fit at the same fixed value, at the tolerances of docs/likelihood.md §8. The engine's refits
  * run on a 2-thread pool, the reference cold fits on 2 more worker threads. Prints one row per
  * model (outputs compared, out of tolerance, empty, the engine's refits per rung) and the
  * outputs that disagree. Exit code 1 when any output is out of tolerance or empty.

@@ -5,7 +5,7 @@ import { outOfBounds, profiledNll } from './warm-refit';
 
 /**
  * Two minima in one parameter. An effect whose variations lie on the same side of nominal has
- * an even part larger than its odd part, |hs| > |hd| in I(θ) = θ hd + u(θ) hs (MODEL.md §2),
+ * an even part larger than its odd part, |hs| > |hd| in I(θ) = θ hd + u(θ) hs (docs/likelihood.md §2),
  * so the yield is not monotonic in θ, and the likelihood can have a minimum on either side of
  * θ = 0. A refit that follows the minimum from the best fit can then stay in one basin while a
  * fit from the start values (θ = 0) goes to the other, lower one, and the two disagree.

@@ -9,7 +9,7 @@ import type { CompiledModel, CompiledRegion, DenseKind } from './compiled-model'
 export const GAMMA_SIGMA_RANGE = { min: 1e-9, max: 1e4 } as const;
 
 /**
- * Builds the flat model of MODEL.md §1–3 from an exchange file that has passed the schema.
+ * Builds the flat model of docs/likelihood.md §1–3 from an exchange file that has passed the schema.
  * `inFit(region)` says which regions enter the likelihood (signal/control roles, minus any
  * the caller excludes). γ parameters exist where the sum of nominals carrying a variance is
  * positive (Barlow–Beeston lite; Conway 2011, arXiv:1103.0354).

@@ -7,7 +7,7 @@ import { negativeLogLikelihood } from './likelihood';
 import { chooseEliminated, edgeSampleBins, factorDamped, freeSet, newtonLoop, project, roundingOf, templateSize, type MinimiseOptions, type NewtonResult, type Scratch } from './newton';
 
 /**
- * The clip edge (MODEL.md §3): ν_sb = max(0, A_sb) × … is not smooth where a template A_sb
+ * The clip edge (docs/likelihood.md §3): ν_sb = max(0, A_sb) × … is not smooth where a template A_sb
  * crosses zero, so Newton's stop cannot be met on that edge. When the Newton loop stops there,
  *  1. hold: minimise on the edge, with every template found on it held at A_sb = 0 (Newton on
  *     the Lagrangian of F subject to A_E(θ) = 0, with the ℓ1 merit function F + ρ Σ|A_e|;

@@ -1,6 +1,6 @@
 /**
  * The model as the fit sees it: flat typed arrays, built once from the exchange file
- * (MODEL.md §1–3). Every array here is plain data, so a compiled model can be sent to a
+ * (docs/likelihood.md §1–3). Every array here is plain data, so a compiled model can be sent to a
  * worker thread as it is.
  *
  * Parameters are split in two blocks:
@@ -102,7 +102,7 @@ export interface CompiledModel {
 
 /**
  * Global observables: the centres of the Gaussian constraints, (θ_i − a_i)²/2 and
- * (γ − g)²/(2σ²). Left out, the centres are the nominal a = 0 and g = 1 of MODEL.md §4; a
+ * (γ − g)²/(2σ²). Left out, the centres are the nominal a = 0 and g = 1 of docs/likelihood.md §4; a
  * pseudo-experiment draws them around its generation point.
  */
 export interface GlobalObservables {

@@ -11,7 +11,7 @@ import { outOfBounds, profiledNll, warmRefit } from './warm-refit';
 /**
  * A conditional fit: one parameter fixed at a value, all else refitted (impacts, scans, q0,
  * limits, the reference fits of toys). Each fit climbs a ladder until a rung meets the main
- * fit's stop test, the Newton decrement ½gᵀH⁻¹g ≤ tolerance (MODEL.md §9, last paragraph):
+ * fit's stop test, the Newton decrement ½gᵀH⁻¹g ≤ tolerance (docs/likelihood.md §10):
  *  1. warm: quasi-Newton from the linear response φ̂ + V[:,i]Δ/V_ii (or the same step from a
  *     nearby conditional minimum when a root search or the pre-fit impact moves the value a
  *     little), with a stop checked on the true Hessian (warm-refit.ts);

@@ -7,7 +7,7 @@ import type { Scratch } from './minimiser';
 import { edgeSampleBins, templateSize } from './newton';
 
 /**
- * Covariance at the minimum, V = H⁻¹ (MODEL.md §5). The Hessian is the γ-reduced one over the
+ * Covariance at the minimum, V = H⁻¹ (docs/likelihood.md §5). The Hessian is the γ-reduced one over the
  * parameters not held, so V is exactly the (μ, k, θ) block of the full inverse (Schur
  * complement). Everything a refit needs to start from the minimum is kept with it: this is
  * the fit context that impacts, scans and limits share, serially or on worker threads.

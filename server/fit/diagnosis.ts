@@ -37,7 +37,7 @@ function countsAt(m: CompiledModel, phi: Float64Array, gamma: Float64Array, ws: 
 }
 
 /**
- * Everything the diagnosis panel shows of one nuisance parameter (MODEL.md §6), from one fit of
+ * Everything the diagnosis panel shows of one nuisance parameter (docs/likelihood.md §6), from one fit of
  * `model` with `options`: refits to the same minimum as the stored fit (the engine is
  * deterministic), then per bin of every region in the fit the parameter's information, the
  * expected count, its ±1 variation in events, and the profile scan of the parameter.

@@ -26,7 +26,7 @@ const LIMIT_CL = 0.95;
 const BANDS = [-2, -1, 0, 1, 2] as const;
 
 /**
- * Fits a model (MODEL.md §5) and computes everything the review screens show (§6–7).
+ * Fits a model (docs/likelihood.md §5) and computes everything the review screens show (§6–7).
  * Contract breaks throw FitInputError; cancellation rejects with FitCancelledError; a fit
  * that does not converge resolves with status 'failed' and its convergence report.
  */
@@ -434,7 +434,7 @@ function assembleBreakdown(plan: BreakdownPlan, results: RefitResult[], ctx: Fit
   });
 }
 
-/** The clip-edge outcome for the report (MODEL.md §9: the edge held, or released to a lower NLL). */
+/** The clip-edge outcome for the report (docs/likelihood.md §10: the edge held, or released to a lower NLL). */
 function edgeReport(min: MinimiseResult): FitResult['convergence']['clipEdge'] {
   return min.edge ? { kept: min.edge.kept, heldNll: min.edge.heldNll, releasedNll: min.edge.releasedNll } : null;
 }
@@ -460,7 +460,7 @@ function countRefits(results: RefitResult[]): RefitCounts {
 /**
  * A conditional fit can only lie above the minimum. One that lies below it by more than the
  * rounding found another, lower minimum: the likelihood has several, and the best fit is not
- * the lowest (MODEL.md gives no rule for this; the result says so rather than hiding it).
+ * the lowest (docs/likelihood.md gives no rule for this; the result says so rather than hiding it).
  */
 function lowerMinimumWarning(tasks: RefitTask[], results: RefitResult[], contexts: FitContext[], warnings: string[]): void {
   let lowest = 0;

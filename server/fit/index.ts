@@ -1,5 +1,5 @@
 /**
- * The fit engine's public API (MODEL.md; docs/fit-engine.md). Code outside server/fit imports
+ * The fit engine's public API (docs/likelihood.md; docs/fit-engine.md). Code outside server/fit imports
  * the engine only from here (tests/architecture/server-layers.test.ts checks it).
  */
 export { fitModel, type FitControl } from './fit';

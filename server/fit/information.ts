@@ -11,7 +11,7 @@ type Information = z.infer<typeof informationSchema>;
 export const INFORMATION_BIN_SHARE = 1e-4;
 
 /**
- * Information breakdown per nuisance parameter (MODEL.md §6): per bin (∂ν_rb/∂θ_i)²/ν_rb at
+ * Information breakdown per nuisance parameter (docs/likelihood.md §6): per bin (∂ν_rb/∂θ_i)²/ν_rb at
  * the best fit (the Fisher information of a Poisson bin), summed per region, plus 1 from the
  * unit Gaussian constraint. 1/sqrt(total) is the width θ_i would have with no correlations.
  */

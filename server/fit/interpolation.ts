@@ -1,5 +1,5 @@
 /**
- * The one smooth interpolation rule of MODEL.md §2, for offsets a (θ = +1) and b (θ = −1):
+ * The one smooth interpolation rule of docs/likelihood.md §2, for offsets a (θ = +1) and b (θ = −1):
  *
  *   s(x) = x (3x⁴ − 10x² + 15) / 8   for |x| < 1,   s(x) = sign(x) otherwise
  *   I(θ; a, b) = (θ/2) [(a − b) + (a + b) s(θ)] = θ·hd + u(θ)·hs

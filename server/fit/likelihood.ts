@@ -2,7 +2,7 @@ import type { CompiledModel, GlobalObservables } from './compiled-model';
 import { evaluateYields, type Workspace } from './yields';
 
 /**
- * MODEL.md §4, −ln L up to a constant so that a perfect fit scores 0:
+ * docs/likelihood.md §4, −ln L up to a constant so that a perfect fit scores 0:
  *   NLL = Σ_rb [ν − n + n ln(n/ν)] + Σ_i (θ_i − a_i)²/2 + Σ_rb (γ_rb − g_rb)² / (2σ_rb²)
  * with n ln(n/ν) := 0 for n = 0 and the global observables a = 0, g = 1 unless given. A bin with ν ≤ 0 and n > 0 gives +Infinity (never NaN), so
  * a line search can step back from it.

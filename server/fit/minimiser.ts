@@ -3,7 +3,7 @@ import type { FitProblem } from './compiled-model';
 import { newtonLoop, type MinimiseOptions, type NewtonResult, type Scratch } from './newton';
 
 /**
- * The minimiser of every fit (MODEL.md §5): bounded Newton (newton.ts) and, where it stops on
+ * The minimiser of every fit (docs/likelihood.md §5): bounded Newton (newton.ts) and, where it stops on
  * a clip edge, the edge held and released (clip-edge.ts), keeping the lower NLL.
  */
 export { clippedSampleBins, createScratch, EDGE_TOLERANCE, project, type MinimiseOptions, type Scratch } from './newton';

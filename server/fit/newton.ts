@@ -5,7 +5,7 @@ import { negativeLogLikelihood } from './likelihood';
 import { createWorkspace, type Workspace } from './yields';
 
 /**
- * Newton's method with bounds (MODEL.md §5): analytic gradient and γ-reduced Hessian, steps
+ * Newton's method with bounds (docs/likelihood.md §5): analytic gradient and γ-reduced Hessian, steps
  * solved by Cholesky on the (μ, k, θ) system, a backtracking (Armijo) line search along the
  * step projected onto the bounds, Levenberg damping when the Hessian is not positive
  * definite, and the stop on the Newton decrement gᵀH⁻¹g/2 < tolerance (Nocedal & Wright,

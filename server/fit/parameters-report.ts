@@ -29,7 +29,7 @@ export function parameterTable(ctx: FitContext): FitParameter[] {
 }
 
 /**
- * Per nuisance parameter, MODEL.md §6: pull (θ̂ − a)/1 with a the constraint's centre (0 unless
+ * Per nuisance parameter, docs/likelihood.md §6: pull (θ̂ − a)/1 with a the constraint's centre (0 unless
  * the problem carries global observables), constraint σ̂/1 (flagged below the
  * threshold; common practice, no source), normalised pull (θ̂ − a)/sqrt(1 − σ̂²) for σ̂ < 1
  * (Demortier & Lyons, CDF note 5776, 2002) and the quick impact ρ(μ, θ) σ_μ = V_μθ / σ_θ.
@@ -77,7 +77,7 @@ export function correlationMatrix(ctx: FitContext): { names: string[]; values: n
 
 /**
  * Statistical-only σ_μ: fix every θ and γ at the minimum, keep μ and k free, so
- * V_stat = (H_(μ,k),(μ,k))⁻¹ from the unreduced Hessian (MODEL.md §6).
+ * V_stat = (H_(μ,k),(μ,k))⁻¹ from the unreduced Hessian (docs/likelihood.md §6).
  */
 export function statOnlyError(ctx: FitContext): number | null {
   const m = ctx.problem.model;
@@ -95,7 +95,7 @@ export function statOnlyError(ctx: FitContext): number | null {
 
 /**
  * Impact of a group G: sqrt(V_μG V_GG⁻¹ V_Gμ), the σ_μ² that fixing G at its best fit removes
- * (Schur complement, MODEL.md §6).
+ * (Schur complement, docs/likelihood.md §6).
  */
 export function groupImpact(ctx: FitContext, members: number[]): number | null {
   const P = ctx.problem.model.nDense;

@@ -8,7 +8,7 @@ import { createWorkspace, evaluateYields } from './yields';
 /**
  * Turns an exchange file and the fit options into the problem the minimiser solves:
  * which regions enter the likelihood, which data, and which parameters are held
- * (MODEL.md §4: a parameter no bin in the fit depends on is held at its start value;
+ * (docs/likelihood.md §4: a parameter no bin in the fit depends on is held at its start value;
  * in a control-only fit μ is held too).
  */
 export function buildProblem(model: ExchangeModel, options: Pick<FitOptions, 'dataset' | 'asimovMu' | 'controlOnly' | 'excludeRegions'>): FitProblem {
@@ -37,7 +37,7 @@ export function buildProblem(model: ExchangeModel, options: Pick<FitOptions, 'da
   return problem;
 }
 
-/** Whether a region enters the likelihood (MODEL.md §4): signal and control regions, less those left out. */
+/** Whether a region enters the likelihood (docs/likelihood.md §4): signal and control regions, less those left out. */
 export function regionEntersFit(options: Pick<FitOptions, 'controlOnly' | 'excludeRegions'>) {
   const excluded = new Set(options.excludeRegions);
   return (key: string, role: string) => !excluded.has(key) && (role === 'control' || (role === 'signal' && !options.controlOnly));
@@ -79,7 +79,7 @@ export function startPoint(m: CompiledModel): { phi: Float64Array; gamma: Float6
 }
 
 /**
- * Pre-fit Asimov dataset (MODEL.md §7; Cowan et al., Eur. Phys. J. C 71 (2011) 1554, §5):
+ * Pre-fit Asimov dataset (docs/likelihood.md §7; Cowan et al., Eur. Phys. J. C 71 (2011) 1554, §5):
  * n_rb = ν_rb at θ = 0, γ = 1, k at its start value and μ as chosen. Not rounded.
  */
 export function asimovData(m: CompiledModel, mu: number): Float64Array {

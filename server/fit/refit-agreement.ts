@@ -10,11 +10,11 @@ import { syntheticModel } from './synthetic';
 import { EDGE_SIZES, stressModel, type StressSize } from './synthetic-stress';
 
 /**
- * The refit-agreement suite (MODEL.md §9, last paragraph): on generated models, every impact
+ * The refit-agreement suite (docs/likelihood.md §10): on generated models, every impact
  * (post-fit θ̂ ± σ̂ and pre-fit θ̂ ± 1, both directions), both crossings of the 68 % and 95 %
  * intervals of μ and q0 from fitModel are compared with cold fits at the same fixed value
  * (refit-reference.ts: the lower of two cold fits, from the start values and from the reference's
- * own best fit), at MODEL.md's tolerances (§8):
+ * own best fit), at the tolerances of docs/likelihood.md §8:
  *  - an impact Δμ = μ(θ fixed) − μ̂ to 2e-3 relative or 1e-5 absolute, the reference's own μ̂
  *    from a cold fit with nothing held;
  *  - a crossing x: the cold fit at x gives q_ref; since √q is close to linear in μ, x is off by

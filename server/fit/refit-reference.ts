@@ -5,7 +5,7 @@ import { createScratch, minimise, type Scratch } from './minimiser';
 import { buildProblem, startPoint } from './problem';
 
 /**
- * The reference every refit is checked against (MODEL.md §9, last paragraph): a cold fit, that
+ * The reference every refit is checked against (docs/likelihood.md §10): a cold fit, that
  * is a fresh minimisation by Newton with a fresh Hessian at every step (never the warm steps it
  * checks), to a decrement of 1e-12 instead of the refits' 1e-9, followed by up to three more
  * Newton steps from where it stopped. It starts from the model's start values with the

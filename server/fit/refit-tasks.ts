@@ -235,7 +235,7 @@ export class Refitter {
   }
 }
 
-/** The stop test of every refit: the main fit's (MODEL.md §5, §9). */
+/** The stop test of every refit: the main fit's (docs/likelihood.md §5, §10). */
 const TOLERANCE = 1e-9;
 
 function failed(message: string | null): Omit<RefitResult, 'refits'> {

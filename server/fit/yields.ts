@@ -2,7 +2,7 @@ import type { CompiledModel } from './compiled-model';
 import { evenPart } from './interpolation';
 
 /**
- * Expected yields, MODEL.md §3:
+ * Expected yields, docs/likelihood.md §3:
  *   ν_rpb = max(0, ν0 + Σ_shape I(θ; ν+ − ν0, ν− − ν0)) × Π_scale exp(I(θ; ln κ+, ln κ−))
  *           × μ (signal) × k (floating) × γ_rb (template carries a variance there)
  * The evaluation leaves in the workspace every intermediate the derivatives reuse:

@@ -6,7 +6,7 @@ import { REGION_ROLES } from '../vocabulary';
  * Fit options and the fit result: what the engine accepts and returns, what the API serves
  * and what the command line writes. Every number is finite; a value that does not exist (a
  * held parameter's σ, a limit outside the bounds, anything of a failed fit) is null.
- * Definitions of every quantity: MODEL.md §5–7 and docs/fit-engine.md.
+ * Definitions of every quantity: docs/likelihood.md §5–7 and docs/fit-engine.md.
  */
 
 export const fitOptionsSchema = z.strictObject({

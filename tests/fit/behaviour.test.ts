@@ -86,7 +86,7 @@ describe('impacts', () => {
     }
   });
 
-  it('match a conditional fit by full Newton at θ̂ ± σ̂ to 2e-3 relative (MODEL.md §8 tolerances)', async () => {
+  it('match a conditional fit by full Newton at θ̂ ± σ̂ to 2e-3 relative (docs/likelihood.md §8 tolerances)', async () => {
     const m = syntheticModel('small', 3);
     const r = await fitModel(m, { impacts: 'full', expected: false });
     const problem = buildProblem(m, { dataset: 'observed', asimovMu: 1, controlOnly: false, excludeRegions: [] });

@@ -8,7 +8,7 @@ import { buildProblem, startPoint } from '../../server/fit/problem';
 import { createWorkspace, evaluateYields } from '../../server/fit/yields';
 
 /**
- * The diagnosis panel's numbers (MODEL.md §6). The Fisher information of a Poisson bin is
+ * The diagnosis panel's numbers (docs/likelihood.md §6). The Fisher information of a Poisson bin is
  * (∂ν/∂θ)²/ν (common practice, no source; e.g. any statistics text's Poisson Fisher information
  * 1/λ times the chain rule). Here the engine's analytic derivative is checked against central
  * finite differences of the expected counts themselves.

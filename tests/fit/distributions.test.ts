@@ -4,7 +4,7 @@ import { chiSquareCdf, chiSquareQuantile, chiSquareSurvival, logGamma, normalCdf
 import { Q95 } from '../../server/fit/scan';
 import { expectClose } from './helpers';
 
-describe('normal and χ² distributions (MODEL.md §8 check 5: against jstat 1.9.6 from the npm registry and the PDG table)', () => {
+describe('normal and χ² distributions (docs/likelihood.md §8 check 5: against jstat 1.9.6 from the npm registry and the PDG table)', () => {
   it('agrees with jstat on the normal CDF and its inverse', () => {
     for (let z = -8; z <= 8; z += 0.37) expectClose(normalCdf(z), jStat.normal.cdf(z, 0, 1), 1e-6, 1e-15);
     for (const p of [1e-9, 1e-5, 0.001, 0.025, 0.1, 0.3, 0.5, 0.77, 0.975, 0.999]) expectClose(normalQuantile(p), jStat.normal.inv(p, 0, 1), 1e-7, 1e-9);

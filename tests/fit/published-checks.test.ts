@@ -7,7 +7,7 @@ import { countingModel, expectClose } from './helpers';
 
 const fast = { impacts: 'none', expected: false } as const;
 
-describe('MODEL.md §8 checks', () => {
+describe('docs/likelihood.md §8 checks', () => {
   it('check 1: one bin with known background gives μ̂ = (n − b)/s and q0 = 2(n ln(n/b) − (n − b)) (Cowan et al., EPJC 71 (2011) 1554)', async () => {
     for (const [s, b, n] of [
       [10, 50, 65],

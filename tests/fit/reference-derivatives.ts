@@ -8,7 +8,7 @@ import type { Workspace } from '../../server/fit/yields';
  * engine to it.
  */
 /**
- * Analytic gradient and Hessian of the NLL (MODEL.md §5), with the γ block eliminated.
+ * Analytic gradient and Hessian of the NLL (docs/likelihood.md §5), with the γ block eliminated.
  *
  * Poisson part: ∂NLL/∂φ = Σ_b w_b ∂ν_b/∂φ with w_b = 1 − n_b/ν_b, and
  *   H = Σ_b (n_b/ν_b²) ∇ν_b ∇ν_bᵀ + Σ_b w_b ∇²ν_b.

@@ -3,9 +3,9 @@ import { AGREEMENT_SLICE, checkRefitAgreement } from '../../server/fit/refit-agr
 import { stressModel } from '../../server/fit/synthetic-stress';
 
 /**
- * The seeded slice of the refit-agreement suite (MODEL.md §9, last paragraph; the full set is
+ * The seeded slice of the refit-agreement suite (docs/likelihood.md §10; the full set is
  * `npm run check:refits`): every impact, both crossings of both μ intervals and q0 of fitModel
- * against cold fits at the same fixed value, at the tolerances of MODEL.md §8.
+ * against cold fits at the same fixed value, at the tolerances of docs/likelihood.md §8.
  */
 describe('refits against cold fits', () => {
   for (const c of AGREEMENT_SLICE) {

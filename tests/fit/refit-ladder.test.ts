@@ -33,7 +33,7 @@ function trueDecrement(ctx: FitContext, index: number, phi: Float64Array, gamma:
 }
 
 describe('the refit ladder', () => {
-  it('stops a refit only where the Newton decrement of the analytic Hessian is below the main fit’s 1e-9 (MODEL.md §5, §9)', () => {
+  it('stops a refit only where the Newton decrement of the analytic Hessian is below the main fit’s 1e-9 (docs/likelihood.md §5, §10)', () => {
     // On this model the quasi-Newton estimate gᵀMg/2 passed 1e-9 where the true decrement was up to 1.1e-9 and more.
     const ctx = contextOf(stressModel('small', 11));
     const m = ctx.problem.model;
