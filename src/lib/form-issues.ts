@@ -21,3 +21,13 @@ export function fieldError(local: FieldErrors, serverError: unknown, field: stri
   if (local[field]) return local[field];
   return isApiRequestError(serverError) ? serverError.fieldMessage(field) : undefined;
 }
+
+/**
+ * The server's message for a nested field such as `['options', 'hold', 0]`: the first issue at
+ * that path or below it (only at it, with `exact`). Paths compare as text, so 0 and '0' match.
+ */
+export function issueAt(serverError: unknown, path: readonly (string | number)[], exact = false): string | undefined {
+  if (!isApiRequestError(serverError)) return undefined;
+  const want = path.map(String);
+  return serverError.issues.find((i) => (exact ? i.path.length === want.length : i.path.length >= want.length) && want.every((p, k) => String(i.path[k]) === p))?.message;
+}

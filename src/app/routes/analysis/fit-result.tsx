@@ -19,18 +19,22 @@ import { CorrelationView } from '../../../features/fits/components/correlation-v
 import { DistributionsView } from '../../../features/fits/components/distributions-view';
 import { FitHeader, StickyConvergence } from '../../../features/fits/components/fit-header';
 import { GroupsView } from '../../../features/fits/components/groups-view';
-import { SummaryView } from '../../../features/fits/components/summary-view';
+import { HiddenMuSummary, SummaryView } from '../../../features/fits/components/summary-view';
+import { isNominal, VariantPanel } from '../../../features/fits/components/variant-panel';
 import { FIT_TABS, fitTab, type FitTabId } from '../../../features/fits/fit-tabs';
 import { useModel } from '../../../features/model/api/get-model';
 import { ToysView } from '../../../features/toys/components/toys-view';
 import { DiagnosticsTab } from './fit-views/diagnosis';
 import { ImpactsWithQuestions, PullsWithQuestions } from './fit-views/questions';
 
-function Tabs({ base, current }: { base: string; current: FitTabId }) {
+/** The views that need μ̂: a fit with μ hidden has none of them. */
+const NEEDS_MU: ReadonlySet<FitTabId> = new Set(['impacts', 'groups', 'toys']);
+
+function Tabs({ base, current, hiddenMu }: { base: string; current: FitTabId; hiddenMu: boolean }) {
   return (
     <nav aria-label="Fit result views" className="mb-4 border-b border-rule">
       <ul className="-mb-px flex flex-wrap gap-1">
-        {FIT_TABS.map((t) => (
+        {FIT_TABS.filter((t) => !(hiddenMu && NEEDS_MU.has(t.id))).map((t) => (
           <li key={t.id}>
             <NavLink
               to={t.id === 'summary' ? base : `${base}/${t.id}`}
@@ -73,9 +77,20 @@ function DistributionsWithModel({ slug, fit, result }: { slug: string; fit: FitD
 function TabView({ tab, slug, fit, result }: { tab: FitTabId; slug: string; fit: FitDetail; result: FitResultHead }) {
   const can = useCan(slug);
   const nuisance = new Set(result.nuisance.filter((n) => !n.fixed).map((n) => n.name));
+  if (result.options.hiddenMu && NEEDS_MU.has(tab))
+    return (
+      <EmptyState title="Not for a fit with μ hidden">
+        <p>This view is computed from μ̂, which a fit with μ hidden never sends. Read the pulls, correlations and control regions instead.</p>
+      </EmptyState>
+    );
   switch (tab) {
     case 'summary':
-      return <SummaryView result={result} />;
+      return (
+        <div className="flex flex-col gap-4">
+          {!isNominal(result) && <VariantPanel slug={slug} result={result} />}
+          {result.options.hiddenMu ? <HiddenMuSummary result={result} /> : <SummaryView result={result} />}
+        </div>
+      );
     case 'pulls':
       return <PullsWithQuestions slug={slug} fit={fit} result={result} />;
     case 'impacts':
@@ -135,7 +150,8 @@ function FitBody({ slug, fit, tab }: { slug: string; fit: FitDetail; tab: FitTab
       </EmptyState>
     );
   const result = fit.result;
-  if (fit.state === 'failed' || !result || result.status !== 'converged' || !result.summary)
+  // a converged fit with μ hidden has no summary by design; any other fit without one failed
+  if (fit.state === 'failed' || !result || result.status !== 'converged' || (!result.summary && !result.options.hiddenMu))
     return (
       <Panel title="The fit failed: no result">
         {fit.failure && (
@@ -154,7 +170,7 @@ function FitBody({ slug, fit, tab }: { slug: string; fit: FitDetail; tab: FitTab
   return (
     <>
       <StickyConvergence fit={fit} />
-      <Tabs base={base} current={tab} />
+      <Tabs base={base} current={tab} hiddenMu={result.options.hiddenMu} />
       <TabView tab={tab} slug={slug} fit={fit} result={result} />
     </>
   );

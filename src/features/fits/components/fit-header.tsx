@@ -2,7 +2,8 @@ import type { FitDetail } from '@shared/schemas/fits';
 import { formatDateTime } from '../../../lib/format';
 import { EXPORT_TABLES, exportCsvUrl, exportJsonUrl } from '../api/export-links';
 import { FitStateBadge } from '../../../components/status/fit-state';
-import { datasetInWords, fitName, optionsInWords } from '../../../lib/fits';
+import { Badge } from '../../../components/ui/badge';
+import { datasetInWords, fitName, optionsInWords, variantInWords } from '../../../lib/fits';
 import { ConvergenceStrip } from './convergence';
 
 /** Downloads of a stored result: the whole result as JSON and every table as CSV. */
@@ -31,6 +32,7 @@ export function ExportLinks({ slug, fit }: { slug: string; fit: FitDetail }) {
  * the page scrolls, so the numbers below are never read without it.
  */
 export function FitHeader({ slug, fit }: { slug: string; fit: FitDetail }) {
+  const variant = variantInWords(fit.options);
   return (
     <header className="mb-3 flex flex-col gap-2 border-b border-rule pb-3">
       <div className="flex flex-wrap items-end justify-between gap-3">
@@ -38,9 +40,18 @@ export function FitHeader({ slug, fit }: { slug: string; fit: FitDetail }) {
           <h1 className="flex flex-wrap items-center gap-2 text-xl font-semibold tracking-tight text-ink">
             {fitName(fit)}
             <FitStateBadge state={fit.state} />
+            {fit.options.hiddenMu && (
+              <Badge tone="plum" title="μ was fitted but is never sent: no μ̂, interval, significance, limit or impacts on μ">
+                μ hidden
+              </Badge>
+            )}
           </h1>
           <p className="mt-0.5 text-sm text-ink-muted">
             <span title="The frozen model version this fit used">Model version {fit.version}</span> · {datasetInWords(fit.options)} · {optionsInWords(fit.options)}
+          </p>
+          <p className="text-sm text-ink-soft" title="How this fit differs from the nominal fit (the fit variants)">
+            Variant: {variant.length ? variant.join(' · ') : 'the nominal fit'}
+            {fit.options.hiddenMu ? '. μ is hidden: this fit shows pulls, constraints and control-region numbers only.' : ''}
           </p>
           <p className="text-xs text-ink-muted">
             Fit #{fit.id} · started {formatDateTime(fit.createdAt)}

@@ -7,7 +7,7 @@ import { formatDateTime } from '../../../lib/format';
 import { decimalsFor, formatFixed, formatSigma } from '../../../lib/stats-format';
 import { useCancelFit } from '../api/cancel-fit';
 import { FitProgress, FitStateBadge } from '../../../components/status/fit-state';
-import { datasetInWords, fitName, fitPath, isActive, optionsInWords } from '../../../lib/fits';
+import { datasetInWords, fitName, fitPath, isActive, optionsInWords, variantInWords } from '../../../lib/fits';
 
 function Headline({ fit }: { fit: FitSummary }) {
   const h = fit.headline;
@@ -15,6 +15,12 @@ function Headline({ fit }: { fit: FitSummary }) {
     return (
       <span className="text-xs font-medium text-amber-ink" title={fit.withheld}>
         withheld while blinded
+      </span>
+    );
+  if (!h && fit.options.hiddenMu && fit.state === 'succeeded')
+    return (
+      <span className="text-xs font-medium text-plum" title="μ was fitted but is never sent: read the pulls and constraints">
+        μ hidden
       </span>
     );
   if (!h) return <span className="text-ink-muted">–</span>;
@@ -69,6 +75,7 @@ function makeColumns(slug: string, mayRun: boolean, cancel: ReturnType<typeof us
         <>
           <span className="block text-ink">{datasetInWords(c.getValue())}</span>
           <span className="block text-ink-muted">{optionsInWords(c.getValue())}</span>
+          {variantInWords(c.getValue()).length > 0 && <span className="block text-ink-soft">Variant: {variantInWords(c.getValue()).join(' · ')}</span>}
         </>
       ),
     }),

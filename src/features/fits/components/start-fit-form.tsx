@@ -1,11 +1,15 @@
 import { useId, useState, type ReactNode } from 'react';
-import type { FitOptionsInput } from '@shared/schemas/fit';
+import { fitOptionsSchema, type FitOptionsInput } from '@shared/schemas/fit';
 import type { FitSummary, ModelVersion } from '@shared/schemas/fits';
 import { Button } from '../../../components/ui/button';
 import { FormError } from '../../../components/ui/error-notice';
 import { CheckboxField, SelectField, TextField } from '../../../components/ui/field';
-import { fieldError } from '../../../lib/form-issues';
+import { isApiRequestError } from '../../../lib/api-client';
+import { fieldError, issueAt } from '../../../lib/form-issues';
+import { variantInWords } from '../../../lib/fits';
 import { useStartFit } from '../api/start-fit';
+import { emptyVariant, variantOptions, type DraftProblems, type VariantDraft } from '../variant-draft';
+import { VariantFields, type FitChoices } from './variant-fields';
 
 type Dataset = 'observed' | 'asimov' | 'control';
 type Impacts = 'none' | 'quick' | 'full';
@@ -29,24 +33,32 @@ function Radio({ name, value, checked, onChange, disabled, label, hint }: { name
   );
 }
 
+const noChoices: FitChoices = { parameters: [], systematics: [], groups: [], regions: [] };
+
 /**
  * Start a fit on a frozen version. While the analysis is blinded the observed data may be fitted
- * in the control regions only; the choices say so instead of letting the server refuse.
+ * in the control regions only, or in every region with μ hidden; the choices say so, and the
+ * server, which decides, names the field of anything it refuses.
  */
 export function StartFitForm({
   slug,
   versions,
   blinded,
   overConstraintThreshold,
+  choices = noChoices,
   onStarted,
 }: {
   slug: string;
   versions: ModelVersion[];
   blinded: boolean;
   overConstraintThreshold: number;
+  /** names the variant fields suggest */
+  choices?: FitChoices;
   onStarted?: (fit: FitSummary) => void;
 }) {
   const start = useStartFit(slug);
+  const datasetErrorId = useId();
+  const [variantOpen, setVariantOpen] = useState(false);
   const [version, setVersion] = useState<number | null>(versions[0]?.number ?? null);
   const [label, setLabel] = useState('');
   const [dataset, setDataset] = useState<Dataset>(blinded ? 'asimov' : 'observed');
@@ -55,9 +67,14 @@ export function StartFitForm({
   const [scan, setScan] = useState(true);
   const [limit, setLimit] = useState(false);
   const [expected, setExpected] = useState(true);
+  const [variant, setVariant] = useState<VariantDraft>(emptyVariant);
+  const [problems, setProblems] = useState<DraftProblems>({});
   const [localError, setLocalError] = useState<string | null>(null);
   const chosen = version ?? versions[0]?.number ?? null;
-  const effectiveDataset: Dataset = blinded && dataset === 'observed' ? 'asimov' : dataset;
+  // while blinded, observed data in every region only with μ hidden
+  const effectiveDataset: Dataset = blinded && dataset === 'observed' && !variant.hiddenMu ? 'asimov' : dataset;
+  const parsedVariant = fitOptionsSchema.safeParse(variantOptions(variant).options);
+  const variantWords = parsedVariant.success ? variantInWords(parsedVariant.data) : ['being edited'];
 
   if (versions.length === 0) return <p className="text-sm text-ink-muted">Freeze a model version first: a fit always runs on a frozen version, so its result can be reopened exactly.</p>;
 
@@ -74,7 +91,15 @@ export function StartFitForm({
           return;
         }
         if (chosen === null) return;
+        const v = variantOptions(variant);
+        setProblems(v.problems);
+        if (Object.keys(v.problems).length) {
+          setLocalError('Some variant fields need attention; see below.');
+          setVariantOpen(true);
+          return;
+        }
         const options: FitOptionsInput = {
+          ...v.options,
           dataset: effectiveDataset === 'asimov' ? 'asimov' : 'observed',
           asimovMu: effectiveDataset === 'asimov' ? mu : 1,
           controlOnly: effectiveDataset === 'control',
@@ -84,7 +109,14 @@ export function StartFitForm({
           expected,
           overConstraintThreshold,
         };
-        start.mutate({ version: chosen, label: label.trim(), options }, { onSuccess: (fit) => onStarted?.(fit) });
+        start.mutate({ version: chosen, label: label.trim(), options }, {
+            onSuccess: (fit) => onStarted?.(fit),
+            // a refusal of a variant field opens the section that holds it
+            onError: (error) => {
+              if (isApiRequestError(error) && error.issues.some((i) => i.path[0] === 'options' && !['dataset', 'asimovMu', 'controlOnly', 'impacts', 'scan', 'limit', 'expected'].includes(String(i.path[1]))))
+                setVariantOpen(true);
+            },
+          });
       }}
     >
       <FormError error={start.error} />
@@ -105,7 +137,7 @@ export function StartFitForm({
         <TextField label="Label" value={label} maxLength={200} onChange={(e) => setLabel(e.target.value)} placeholder="e.g. Asimov, all systematics" error={fieldError({}, start.error, 'label')} />
       </div>
 
-      <fieldset className="flex flex-col gap-2">
+      <fieldset className="flex flex-col gap-2" aria-describedby={issueAt(start.error, ['options', 'dataset']) ? datasetErrorId : undefined}>
         <legend className="mb-1 text-xs font-semibold text-ink-soft">Dataset</legend>
         {blinded && (
           <p className="rounded-md border border-amber/40 bg-amber-soft/60 px-3 py-2 text-xs text-amber-ink">
@@ -118,9 +150,9 @@ export function StartFitForm({
           value="observed"
           checked={effectiveDataset === 'observed'}
           onChange={() => setDataset('observed')}
-          disabled={blinded}
+          disabled={blinded && !variant.hiddenMu}
           label="Observed data, all regions"
-          hint={blinded ? 'Not while the analysis is blinded.' : undefined}
+          hint={blinded ? (variant.hiddenMu ? 'Allowed while blinded because μ is hidden.' : 'Not while the analysis is blinded, unless μ is hidden (Variant below).') : undefined}
         />
         <div className="flex flex-wrap items-center gap-2">
           <Radio
@@ -154,7 +186,31 @@ export function StartFitForm({
           label="Observed data, control regions only"
           hint="μ is held at its start value; the fit measures the backgrounds and nuisance parameters from the control regions."
         />
+        {issueAt(start.error, ['options', 'dataset']) && (
+          <p id={datasetErrorId} className="text-xs font-medium text-danger">
+            {issueAt(start.error, ['options', 'dataset'])}
+          </p>
+        )}
       </fieldset>
+
+      <details className="group rounded-md border border-rule px-3 py-2" open={variantOpen} onToggle={(e) => setVariantOpen((e.target as HTMLDetailsElement).open)}>
+        <summary className="cursor-pointer text-xs font-semibold text-ink-soft">
+          Variant: <span className="font-normal text-ink">{variantWords.length ? variantWords.join(' · ') : 'the nominal fit'}</span>
+        </summary>
+        <div className="mt-2">
+          <VariantFields
+            draft={variant}
+            onChange={(d) => {
+              setVariant(d);
+              if (d.hiddenMu && !variant.hiddenMu) setDataset('observed');
+            }}
+            choices={choices}
+            blinded={blinded}
+            error={start.error}
+            problems={problems}
+          />
+        </div>
+      </details>
 
       <fieldset className="flex flex-col gap-2">
         <legend className="mb-1 text-xs font-semibold text-ink-soft">Impacts on μ̂</legend>

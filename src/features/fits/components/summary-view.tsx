@@ -69,7 +69,6 @@ export function SummaryView({ result }: { result: FitResultHead }) {
   const s = result.summary!;
   const mu = s.mu;
   const dec = decimalsFor(mu.error);
-  const norms = result.parameters.filter((p) => p.kind === 'normalisation');
   const i95 = mu.interval95;
   const lim = s.limit;
   const asimov = result.data.dataset === 'asimov';
@@ -152,22 +151,49 @@ export function SummaryView({ result }: { result: FitResultHead }) {
         </Panel>
       )}
 
-      <div className="grid gap-4 lg:grid-cols-2">
-        <Panel title="Floating normalisations">
-          {norms.length === 0 ? (
-            <p className="text-sm text-ink-muted">This model has no floating normalisation.</p>
-          ) : (
-            <DataTable columns={normColumns} data={norms} getRowId={(p) => p.name} label="Floating normalisations" frame="plain" />
-          )}
-        </Panel>
-        <Panel title="Convergence report">
-          <ConvergenceReport convergence={result.convergence} status={result.status} />
-          <p className="mt-2 text-xs text-ink-muted">
-            {result.gammas.count} bin-by-bin template-statistics parameters (γ) were fitted
-            {result.gammas.maxAbsPull !== null ? `; the largest |pull| among them is ${formatFixed(result.gammas.maxAbsPull, 2)}` : ''}.
-          </p>
-        </Panel>
-      </div>
+      <NormsAndConvergence result={result} />
+    </div>
+  );
+}
+
+/** The floating normalisations and the convergence report, under every summary. */
+function NormsAndConvergence({ result }: { result: FitResultHead }) {
+  const norms = result.parameters.filter((p) => p.kind === 'normalisation');
+  return (
+    <div className="grid gap-4 lg:grid-cols-2">
+      <Panel title="Floating normalisations">
+        {norms.length === 0 ? (
+          <p className="text-sm text-ink-muted">This model has no floating normalisation.</p>
+        ) : (
+          <DataTable columns={normColumns} data={norms} getRowId={(p) => p.name} label="Floating normalisations" frame="plain" />
+        )}
+      </Panel>
+      <Panel title="Convergence report">
+        <ConvergenceReport convergence={result.convergence} status={result.status} />
+        <p className="mt-2 text-xs text-ink-muted">
+          {result.gammas.count} bin-by-bin template-statistics parameters (γ) were fitted
+          {result.gammas.maxAbsPull !== null ? `; the largest |pull| among them is ${formatFixed(result.gammas.maxAbsPull, 2)}` : ''}.
+        </p>
+      </Panel>
+    </div>
+  );
+}
+
+/**
+ * The summary of a fit with μ hidden (docs/likelihood.md §9.6): nothing computed from μ̂ or from
+ * the signal regions' data is sent, so there is no μ̂ to show, and the page says so.
+ */
+export function HiddenMuSummary({ result }: { result: FitResultHead }) {
+  return (
+    <div className="flex flex-col gap-4">
+      <Panel title="Signal strength: hidden">
+        <p className="text-sm text-ink">
+          μ was fitted to the observed data of every region, and is not shown. Nothing computed from μ̂ or from the signal regions’ data leaves the server: no μ̂, interval,
+          scan, significance, limit, impacts on μ, grouped impacts or goodness of fit.
+        </p>
+        <p className="mt-1 text-sm text-ink-soft">Read the pulls and constraints of the nuisance parameters, their correlations, and the control regions’ distributions.</p>
+      </Panel>
+      <NormsAndConvergence result={result} />
     </div>
   );
 }
