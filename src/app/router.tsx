@@ -13,6 +13,7 @@ import { ModelRoute } from './routes/analysis/model';
 import { GroupsRoute } from './routes/analysis/groups';
 import { FitsRoute } from './routes/analysis/fits';
 import { FitResultRoute } from './routes/analysis/fit-result';
+import { ReviewSetRoute } from './routes/analysis/review-set';
 import { QuestionsRoute } from './routes/analysis/questions';
 import { QuestionRoute } from './routes/analysis/question';
 import { MembersRoute } from './routes/analysis/members';
@@ -46,6 +47,7 @@ export const routes = [
               { path: 'groups', ...screen(<GroupsRoute />) },
               { path: 'fits', ...screen(<FitsRoute />) },
               { path: 'fits/:fitId/:tab?', ...screen(<FitResultRoute />) },
+              { path: 'review-sets/:setId', ...screen(<ReviewSetRoute />) },
               { path: 'questions', ...screen(<QuestionsRoute />) },
               { path: 'questions/:id', ...screen(<QuestionRoute />) },
               { path: 'members', ...screen(<MembersRoute />) },

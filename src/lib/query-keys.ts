@@ -45,6 +45,10 @@ export const queryKeys = {
   toyRuns: (slug: string, fitId: number) => [...fit(slug, fitId), 'toys'] as const,
   toyRun: (slug: string, toyId: number) => [...analysis(slug), 'toys', toyId] as const,
 
+  /** The review sets' list; every set's key starts with it. */
+  reviewSets: (slug: string) => [...analysis(slug), 'review-sets'] as const,
+  reviewSet: (slug: string, id: number) => [...analysis(slug), 'review-sets', id] as const,
+
   questions,
   /** Every filtered list of questions (not the threads). */
   questionLists,

@@ -1,6 +1,7 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
 import type { Diagnosis } from '@shared/schemas/review';
 import { analysisPath, api } from '../../../lib/api-client';
+import { isActive, POLL_MS } from '../../../lib/fits';
 import { queryKeys } from '../../../lib/query-keys';
 
 /**
@@ -11,8 +12,14 @@ export function getDiagnosis(slug: string, fitId: number, parameter: string): Pr
   return api.get<Diagnosis>(analysisPath(slug, 'fits', fitId, 'diagnosis', parameter));
 }
 
+/** Kept five minutes; asked again while a check run from it is queued or running. */
 export const diagnosisQueryOptions = (slug: string, fitId: number, parameter: string) =>
-  queryOptions({ queryKey: queryKeys.diagnosis(slug, fitId, parameter), queryFn: () => getDiagnosis(slug, fitId, parameter), staleTime: 5 * 60_000 });
+  queryOptions({
+    queryKey: queryKeys.diagnosis(slug, fitId, parameter),
+    queryFn: () => getDiagnosis(slug, fitId, parameter),
+    staleTime: 5 * 60_000,
+    refetchInterval: (query) => (query.state.data?.checks?.some((c) => isActive(c.state)) ? 2 * POLL_MS : false),
+  });
 
 export function useDiagnosis(slug: string, fitId: number, parameter: string | null) {
   return useQuery({ ...diagnosisQueryOptions(slug, fitId, parameter ?? ''), enabled: !!parameter });

@@ -16,6 +16,7 @@ import { diagnosisPath, fitName, groupName, isStronglyPulled } from '../../../li
 import { formatEdge } from '../../../lib/format';
 import { correlationColour, theme } from '../../../lib/palette';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
+import { DiagnosisChecks } from './diagnosis-checks';
 import { formatShare, ShareBars, type ShareItem } from './share-bars';
 import { VariationChart, VariationTable } from './variation-chart';
 
@@ -157,6 +158,8 @@ export type DiagnosisPanelProps = {
     list: ReactNode;
     raise?: (form: { entry: string; fit: { id: number; label: string }; defaultTitle: string; close: () => void }) => ReactNode;
   };
+  /** whether the reader may run fits, and so the parameter's checks */
+  mayRun?: boolean;
 };
 
 /**
@@ -164,7 +167,7 @@ export type DiagnosisPanelProps = {
  * information comes from (regions, bins) next to what the data can resolve, its own likelihood
  * scan, its correlations, and a summary in words whose every sentence points at its evidence.
  */
-export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, questions }: DiagnosisPanelProps) {
+export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, questions, mayRun = false }: DiagnosisPanelProps) {
   const [lit, setLit] = useState<Evidence | null>(null);
   const [raising, setRaising] = useState(false);
   const timer = useRef<ReturnType<typeof setTimeout> | null>(null);
@@ -243,6 +246,12 @@ export function DiagnosisPanel({ slug, diagnosis: d, result, yields, model, ques
         )}
         <p>This diagnosis informs the collaboration’s own statistical review; it does not replace it.</p>
       </div>
+
+      {(mayRun || (d.checks ?? []).length > 0) && (
+        <Section title="Checks of this parameter" lit={false}>
+          <DiagnosisChecks slug={slug} fitId={d.fit.id} parameter={name} checks={d.checks ?? []} mayRun={mayRun} />
+        </Section>
+      )}
 
       <div className="grid gap-4 xl:grid-cols-2">
         <Section title="In plain words" lit={false}>

@@ -38,7 +38,8 @@ function ParameterDiagnosis({ slug, fitId, result, name }: { slug: string; fitId
   const diagnosis = useDiagnosis(slug, fitId, name);
   const yields = useFitPart(slug, fitId, 'yields');
   const model = useModel(slug);
-  const mayRaise = useCan(slug)('question.raise');
+  const can = useCan(slug);
+  const mayRaise = can('question.raise');
   if (diagnosis.isPending)
     return (
       <div className="rounded-lg border border-rule bg-paper-raised px-4 py-3">
@@ -50,7 +51,7 @@ function ParameterDiagnosis({ slug, fitId, result, name }: { slug: string; fitId
       </div>
     );
   if (diagnosis.isError) return <ErrorNotice error={diagnosis.error} onRetry={() => void diagnosis.refetch()} />;
-  return <DiagnosisWithQuestions slug={slug} diagnosis={diagnosis.data} result={result} yields={yields.data ?? null} model={model.data} mayRaise={mayRaise} />;
+  return <DiagnosisWithQuestions slug={slug} diagnosis={diagnosis.data} result={result} yields={yields.data ?? null} model={model.data} mayRaise={mayRaise} mayRun={can('fit.run')} />;
 }
 
 /** The diagnosis view: one parameter (chosen here or from any result table) and the convergence report in full. */
