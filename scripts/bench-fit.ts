@@ -15,6 +15,7 @@ import { readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
 import { fitModel, syntheticModel, type SyntheticSize } from '../server/fit';
 import { createFitPool } from '../server/runs/threads/pool';
+import { benchReview } from './bench-review';
 import { curvatureAt } from '../server/fit/covariance';
 import { createScratch, minimise } from '../server/fit/minimiser';
 import { buildProblem, startPoint } from '../server/fit/problem';
@@ -22,7 +23,13 @@ import { runRefits } from '../server/fit/refit-batches';
 import { scanTasks } from '../server/fit/scan';
 import type { RefitTask } from '../server/fit/refit-tasks';
 
-const { values } = parseArgs({ options: { sizes: { type: 'string', default: 'tiny,small,medium,large' }, threads: { type: 'string' }, repeat: { type: 'string', default: '1' } } });
+let values: { sizes?: string; threads?: string; repeat?: string; 'skip-review'?: boolean };
+try {
+  values = parseArgs({ options: { sizes: { type: 'string', default: 'tiny,small,medium,large' }, threads: { type: 'string' }, repeat: { type: 'string', default: '1' }, 'skip-review': { type: 'boolean', default: false } } }).values;
+} catch (e) {
+  console.error(`${(e as Error).message}. Usage: npm run bench:fit -- [--sizes tiny,small,medium,large] [--threads N] [--repeat N] [--skip-review]`);
+  process.exit(2);
+}
 const sizes = values.sizes!.split(',') as SyntheticSize[];
 const repeat = Math.max(1, Number(values.repeat));
 const loadAverage = () => {
@@ -153,3 +160,5 @@ await pool.destroy();
 console.table(rows);
 console.log(`load average after: ${loadAverage()}`);
 console.log(`threads: ${pool.threads}; times are best / median of ${repeat} (one run: that run); peak RSS of this process: ${(peakRss / 2 ** 20).toFixed(0)} MB (worker threads share it)`);
+// the review work on the large model through a running server (scripts/bench-review.ts)
+if (sizes.includes('large') && !values['skip-review']) await benchReview({ threads: pool.threads, repeat });
