@@ -4,9 +4,10 @@ import { cleanup, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import type { ReviewComparison, ReviewSetDetail } from '@shared/schemas/review-sets';
 import { ReviewSetRoute } from '../../src/app/routes/analysis/review-set';
+import { FitsRoute } from '../../src/app/routes/analysis/fits';
 import { DiagnosisWithQuestions } from '../../src/app/routes/analysis/fit-views/diagnosis';
 import { extremes, moves } from '../../src/features/review-sets/components/pulls-grid';
-import { convergedResult, fitSummary } from './fit-fixtures';
+import { convergedResult, fitSummary, overview } from './fit-fixtures';
 import { json, renderWithApp, stubServer } from './helpers';
 import { diagnosis } from './review-fixtures';
 
@@ -180,5 +181,42 @@ describe('checks from the diagnosis', () => {
     expect(items[1].textContent).toContain('Failed');
     expect(items[1].textContent).toContain('The Hessian is singular.');
     expect(screen.queryByRole('button', { name: 'Check this parameter' })).toBeNull();
+  });
+});
+
+describe('review sets on the fits page', () => {
+  const version = { number: 2, note: '', forApproval: false, sha256: 'ab'.repeat(32), createdAt: '2026-03-01T09:00:00Z', createdBy: null, counts: { regions: 2, processes: 2, systematics: 2 } };
+  function serve(role: 'analyst' | 'reader') {
+    const summary = { ...detail(), comparison: undefined, state: 'running' as const, progress: 0.5, members: [{ ...fitSummary({ id: 11, state: 'running' }), variant: 'control-only', title: 'Control regions only' }, { ...fitSummary({ id: 12 }), variant: 'expected-1', title: 'Expected' }] };
+    return stubServer((method, url, body) => {
+      if (url === '/api/analyses/demo') return json(200, overview(role, 'blinded'));
+      if (url === '/api/analyses/demo/fits') return json(200, []);
+      if (url === '/api/analyses/demo/versions') return json(200, [version]);
+      if (url === '/api/analyses/demo/review-sets' && method === 'GET') return json(200, [summary]);
+      if (url === '/api/analyses/demo/review-sets' && method === 'POST') return json(202, { ...detail(), id: 4, ...(body as object) });
+      return undefined;
+    });
+  }
+
+  it('lists the sets with their progress, and starts one on the chosen version for those who run fits', async () => {
+    const calls = serve('analyst');
+    const user = userEvent.setup();
+    const { router } = renderWithApp(<FitsRoute />, '/a/demo/fits', '/a/:slug/fits');
+    const table = await screen.findByRole('table', { name: 'Review sets' });
+    expect(within(table).getByRole('link', { name: 'Before asking to unblind' }).getAttribute('href')).toBe('/a/demo/review-sets/3');
+    expect(within(table).getByRole('progressbar').getAttribute('aria-valuetext')).toBe('50 %, 1 of 2 fits ended');
+    const form = screen.getByRole('form', { name: 'Start a review set' });
+    expect(form.textContent).toContain('every region with μ hidden (the analysis is blinded)');
+    await user.type(within(form).getByLabelText('Label of the set'), 'second look');
+    await user.click(within(form).getByRole('button', { name: 'Start the review set' }));
+    await waitFor(() => expect(router.state.location.pathname).toBe('/a/demo/review-sets/4'));
+    expect(calls.find((c) => c.method === 'POST' && c.url === '/api/analyses/demo/review-sets')!.body).toEqual({ version: 2, label: 'second look' });
+  });
+
+  it('gives a reader the list and no button', async () => {
+    serve('reader');
+    renderWithApp(<FitsRoute />, '/a/demo/fits', '/a/:slug/fits');
+    await screen.findByRole('table', { name: 'Review sets' });
+    expect(screen.queryByRole('form', { name: 'Start a review set' })).toBeNull();
   });
 });

@@ -87,7 +87,7 @@ export function ReviewSetRoute() {
               <>
                 Model version {s.version} · started {formatDateTime(s.createdAt)}
                 {s.createdBy ? ` by ${s.createdBy}` : ''}
-                {s.blinded ? ' · started while blinded: the fits of every region hide μ' : ''}
+                {s.blinded ? ' · blinded: the fits of every region hide μ' : ''}
                 <span className="mt-1 block">These fits inform the collaboration’s own statistical review; they do not replace it.</span>
               </>
             }

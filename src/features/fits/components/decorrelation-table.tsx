@@ -38,11 +38,11 @@ function makeColumns(slug: string) {
       header: 'Parts: best fit ± σ',
       meta: { cellClass: 'text-xs' },
       cell: (c) => (
-        <ul className="flex flex-col">
+        <ul className="grid w-fit grid-cols-[auto_auto] gap-x-4">
           {c.getValue().map((p) => (
-            <li key={p.name} className="flex justify-between gap-3 tabular-nums" title={`${p.name}: the part of the systematic in ${p.where} alone`}>
+            <li key={p.name} className="col-span-2 grid grid-cols-subgrid tabular-nums" title={`${p.name}: the part of the systematic in ${p.where} alone`}>
               <span>{p.where}</span>
-              <span>
+              <span className="text-right">
                 {formatSigned(p.value, 2)}
                 {p.error !== null && ` ± ${formatFixed(p.error, 2)}`}
               </span>

@@ -17,7 +17,8 @@ export function ExportLinks({ slug, fit }: { slug: string; fit: FitDetail }) {
         JSON
       </a>
       {converged &&
-        EXPORT_TABLES.map((t) => (
+        // a fit with μ hidden has no summary or grouped impacts to export
+        EXPORT_TABLES.filter((t) => !(fit.options.hiddenMu && (t.table === 'summary' || t.table === 'groups'))).map((t) => (
           <a key={t.table} className={link} href={exportCsvUrl(slug, fit.id, t.table)} download title={`${t.title} (CSV)`}>
             {t.label} CSV
           </a>

@@ -132,7 +132,8 @@ export function FitsTable({ slug, fits, mayRun }: { slug: string; fits: FitSumma
   return (
     <div className="flex flex-col gap-2">
       <FormError error={cancel.error} />
-      <DataTable columns={columns} data={fits} getRowId={(f) => String(f.id)} label="Fits" />
+      {/* a review set adds a dozen fits at once: the list scrolls within the window, its first column in view */}
+      <DataTable columns={columns} data={fits} getRowId={(f) => String(f.id)} label="Fits" stickyFirstColumn />
     </div>
   );
 }

@@ -73,6 +73,8 @@ export function StartFitForm({
   const chosen = version ?? versions[0]?.number ?? null;
   // while blinded, observed data in every region only with μ hidden
   const effectiveDataset: Dataset = blinded && dataset === 'observed' && !variant.hiddenMu ? 'asimov' : dataset;
+  // μ held (control regions only) or hidden: no scan of μ and no limit
+  const noMu = effectiveDataset === 'control' || variant.hiddenMu;
   const parsedVariant = fitOptionsSchema.safeParse(variantOptions(variant).options);
   const variantWords = parsedVariant.success ? variantInWords(parsedVariant.data) : ['being edited'];
 
@@ -104,8 +106,8 @@ export function StartFitForm({
           asimovMu: effectiveDataset === 'asimov' ? mu : 1,
           controlOnly: effectiveDataset === 'control',
           impacts,
-          scan: effectiveDataset === 'control' ? false : scan,
-          limit: effectiveDataset === 'control' ? false : limit,
+          scan: noMu ? false : scan,
+          limit: noMu ? false : limit,
           expected,
           overConstraintThreshold,
         };
@@ -141,8 +143,8 @@ export function StartFitForm({
         <legend className="mb-1 text-xs font-semibold text-ink-soft">Dataset</legend>
         {blinded && (
           <p className="rounded-md border border-amber/40 bg-amber-soft/60 px-3 py-2 text-xs text-amber-ink">
-            The analysis is blinded: observed data may be fitted in the control regions only, and the signal regions' counts stay on the server. Fit an Asimov dataset to see
-            the expected result everywhere.
+            The analysis is blinded: observed data may be fitted in the control regions only, or in every region with μ hidden (Variant below), and the signal regions' counts
+            stay on the server. Fit an Asimov dataset to see the expected result everywhere.
           </p>
         )}
         <Radio
@@ -230,15 +232,15 @@ export function StartFitForm({
         <legend className="mb-1 text-xs font-semibold text-ink-soft">Also compute</legend>
         <CheckboxField
           label="Profile-likelihood scan of μ"
-          checked={effectiveDataset !== 'control' && scan}
-          disabled={effectiveDataset === 'control'}
+          checked={!noMu && scan}
+          disabled={noMu}
           onChange={(e) => setScan(e.target.checked)}
           hint="q(μ) on a grid, giving asymmetric 68 % and 95 % intervals."
         />
         <CheckboxField
           label="95 % CL upper limit on μ (CLs)"
-          checked={effectiveDataset !== 'control' && limit}
-          disabled={effectiveDataset === 'control'}
+          checked={!noMu && limit}
+          disabled={noMu}
           onChange={(e) => setLimit(e.target.checked)}
           hint="Observed and expected, with the ±1σ and ±2σ bands of the expected limit."
         />

@@ -71,8 +71,8 @@ function makeColumns(slug: string) {
       cell: (c) => {
         const r = c.row.original;
         return (
-          <div className="flex flex-col items-start gap-1">
-            <FitStateBadge state={r.state as FitState} />
+          <div className="flex flex-wrap items-center gap-1">
+            {r.state !== 'succeeded' && <FitStateBadge state={r.state as FitState} />}
             {r.status === 'converged' && (
               <Badge tone="teal" title="The minimiser reached its stopping rule">
                 Converged
