@@ -120,6 +120,8 @@ describe('wide tables: every default column can be reached at 1280 and 1440 px',
     expect(toys.status).toBe(202);
     await waitForJob(browser, `/api/analyses/cascade-rate/toys/${toys.body.id}`);
 
+    const reviewSet = ((await api(browser, 'GET', '/api/analyses/vireon-search/review-sets')).body as { id: number; label: string }[]).find((s) => s.label === 'Before asking to unblind')!;
+
     const fit = `/a/vireon-search/fits/${asimov.id}`;
     // attached is enough: a table inside a closed <details> is opened before the check
     const table = (name: string) => (page: Page) => page.locator(`table[aria-label="${name}"]`).first().waitFor({ state: 'attached', timeout: 60_000 });
@@ -143,6 +145,7 @@ describe('wide tables: every default column can be reached at 1280 and 1440 px',
       { name: 'fit diagnosis', path: `${fit}/diagnostics?parameter=flare_eres`, ready: (p) => p.getByRole('article', { name: 'Diagnosis of flare_eres' }).getByRole('table').first().waitFor({ timeout: 120_000 }) },
       { name: 'fit compare', path: `${fit}/compare?with=${control.id}`, ready: table('Changes per parameter') },
       { name: 'pseudo-experiments', path: `/a/cascade-rate/fits/${cascade.id}/toys?run=${toys.body.id}`, ready: table('q0: toys against the asymptotic formula') },
+      { name: 'review set', path: `/a/vireon-search/review-sets/${reviewSet.id}`, ready: table('Pulls and constraints across the set') },
       { name: 'questions', path: '/a/cascade-rate/questions', ready: table('Questions') },
       { name: 'members', path: '/a/vireon-search/members', ready: table('Members') },
     ]);
