@@ -1,6 +1,7 @@
 import autocannon from 'autocannon';
 import { syntheticModel } from '../server/fit';
 import { startServer } from '../tests/e2e/support';
+import { Session } from './bench-session';
 
 /**
  * npm run bench:api — 50 concurrent readers on loopback against the register and a fit result
@@ -11,25 +12,6 @@ const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 50);
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 20);
 /** BENCH_ONLY=register or fit: load one endpoint alone */
 const ONLY = process.env.BENCH_ONLY ?? 'both';
-
-class Session {
-  cookie = '';
-  constructor(readonly base: string) {}
-  async fetch(path: string, init: RequestInit = {}) {
-    const res = await fetch(this.base + path, { ...init, headers: { ...(init.headers ?? {}), cookie: this.cookie } });
-    const set = res.headers.get('set-cookie');
-    if (set) this.cookie = set.split(';')[0];
-    return res;
-  }
-  async token() {
-    return (await (await this.fetch('/api/auth/csrf')).json()).token as string;
-  }
-  async send(method: string, path: string, body?: unknown) {
-    const res = await this.fetch(path, { method, headers: { 'content-type': 'application/json', 'x-csrf-token': await this.token() }, body: JSON.stringify(body ?? {}) });
-    if (res.status >= 400) throw new Error(`${method} ${path}: ${res.status} ${await res.text()}`);
-    return res.json();
-  }
-}
 
 const percentile = (sorted: number[], p: number) => sorted[Math.min(sorted.length - 1, Math.floor((p / 100) * sorted.length))];
 

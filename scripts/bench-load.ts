@@ -7,6 +7,7 @@ import type { MemberRole } from '@shared/permissions';
 import { syntheticModel } from '../server/fit';
 import { startServer } from '../tests/e2e/support';
 import { startPostgres, type PostgresServer } from './postgres-server';
+import { Session } from './bench-session';
 
 /**
  * npm run bench:load — 200 signed-in people (200 accounts, each with its own session and CSRF
@@ -58,36 +59,6 @@ const SLUG = 'bench-large';
 const A = `/api/analyses/${SLUG}`;
 /** how many questions are open before the load starts; people answer these */
 const QUESTIONS = 10;
-
-class Session {
-  cookie = '';
-  csrf = '';
-  constructor(readonly base: string) {}
-  async fetch(path: string, init: RequestInit = {}) {
-    const go = () => fetch(this.base + path, { ...init, headers: { ...(init.headers ?? {}), cookie: this.cookie } });
-    // a kept-alive connection the server closed as this request left is retried once
-    const res = await go().catch((e: Error) => (init.method ?? 'GET') === 'GET' ? go() : Promise.reject(e));
-    const set = res.headers.get('set-cookie');
-    if (set) this.cookie = set.split(';')[0];
-    const token = res.headers.get('x-csrf-token');
-    if (token) this.csrf = token;
-    return res;
-  }
-  async token() {
-    if (!this.csrf) this.csrf = (await (await this.fetch('/api/auth/csrf')).json()).token as string;
-    return this.csrf;
-  }
-  async send(method: string, path: string, body?: unknown) {
-    const res = await this.fetch(path, { method, headers: { 'content-type': 'application/json', 'x-csrf-token': await this.token() }, body: JSON.stringify(body ?? {}) });
-    if (res.status >= 400) throw new Error(`${method} ${path}: ${res.status} ${await res.text()}`);
-    return res.status === 204 ? null : res.json();
-  }
-  async get(path: string) {
-    const res = await this.fetch(path);
-    if (res.status >= 400) throw new Error(`GET ${path}: ${res.status} ${await res.text()}`);
-    return res.json();
-  }
-}
 
 /** CPU time (user + system) of a process's main thread so far, from /proc (Linux); NaN elsewhere. */
 function mainThreadCpuMs(pid: number | undefined): number {

@@ -2,6 +2,7 @@ import { readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
 import { syntheticModel } from '../server/fit';
 import { startServer } from '../tests/e2e/support';
+import { Session } from './bench-session';
 
 /**
  * The review work on the large benchmark model, through a running server as a person meets it
@@ -13,37 +14,6 @@ import { startServer } from '../tests/e2e/support';
  * Run by `npm run bench:fit` after the engine's figures, or alone: `npm run bench:review`.
  * --repeat N repeats the upload check and the preview (medians printed); --threads sets FIT_THREADS.
  */
-
-class Session {
-  cookie = '';
-  constructor(readonly base: string) {}
-  async fetch(path: string, init: RequestInit = {}) {
-    const res = await fetch(this.base + path, { ...init, headers: { ...(init.headers ?? {}), cookie: this.cookie } });
-    const set = res.headers.get('set-cookie');
-    if (set) this.cookie = set.split(';')[0];
-    return res;
-  }
-  async token() {
-    return (await (await this.fetch('/api/auth/csrf')).json()).token as string;
-  }
-  async get(path: string) {
-    const res = await this.fetch(path);
-    if (res.status >= 400) throw new Error(`GET ${path}: ${res.status} ${await res.text()}`);
-    return res.json();
-  }
-  async send(method: string, path: string, body?: unknown) {
-    const res = await this.fetch(path, { method, headers: { 'content-type': 'application/json', 'x-csrf-token': await this.token() }, body: JSON.stringify(body ?? {}) });
-    if (res.status >= 400) throw new Error(`${method} ${path}: ${res.status} ${await res.text()}`);
-    return res.json();
-  }
-  async upload(path: string, name: string, content: string) {
-    const form = new FormData();
-    form.append('file', new Blob([content]), name);
-    const res = await this.fetch(path, { method: 'POST', headers: { 'x-csrf-token': await this.token() }, body: form });
-    if (res.status >= 400) throw new Error(`POST ${path}: ${res.status} ${await res.text()}`);
-    return res.json();
-  }
-}
 
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 const seconds = (ms: number) => `${(ms / 1000).toFixed(2)} s`;

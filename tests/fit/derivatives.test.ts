@@ -31,7 +31,8 @@ function nllAt(setup: ReturnType<typeof randomSetup>, x: Float64Array): number {
   return negativeLogLikelihood(m, problem.data, problem.gammaHeld, x.subarray(0, m.nDense), x.subarray(m.nDense), ws);
 }
 
-function gradientAt(setup: ReturnType<typeof randomSetup>, x: Float64Array): Float64Array {
+/** The engine's analytic gradient over the full point x = (φ, γ). */
+function gradientAt(setup: { m: CompiledModel; problem: ReturnType<typeof buildProblem> }, x: Float64Array): Float64Array {
   const { m, problem } = setup;
   const ws = createWorkspace(m);
   const d = createDerivatives(m);
@@ -183,21 +184,6 @@ describe('the γ-reduced Hessian with clipped templates and some γ held', () =>
     return { problem, m, phi, gamma, eliminate };
   }
 
-  /** The full gradient (φ, γ) at x, from the engine's analytic gradient (itself held to finite differences of the NLL above). */
-  function fullGradient(setup: ReturnType<typeof stressSetup>, x: Float64Array): Float64Array {
-    const { m, problem } = setup;
-    const ws = createWorkspace(m);
-    const d = createDerivatives(m);
-    const phi = Float64Array.from(x.subarray(0, m.nDense));
-    const gamma = Float64Array.from(x.subarray(m.nDense));
-    negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws);
-    computeDerivatives(m, problem.data, phi, gamma, new Uint8Array(m.nGamma).fill(1), ws, d, false);
-    const out = new Float64Array(x.length);
-    out.set(d.g);
-    out.set(d.gGamma, m.nDense);
-    return out;
-  }
-
   for (const [seed, shapeScale] of [
     [5, 1],
     [8, 1],
@@ -228,11 +214,11 @@ describe('the γ-reduced Hessian with clipped templates and some γ held', () =>
         const xm = Float64Array.from(x);
         xp[i] += h;
         xm[i] -= h;
-        const gp = fullGradient(setup, xp);
-        const gm = fullGradient(setup, xm);
+        const gp = gradientAt(setup, xp);
+        const gm = gradientAt(setup, xm);
         for (let j = 0; j < N; j++) full.set(j, i, (gp[j] - gm[j]) / (2 * h));
       }
-      const g0 = fullGradient(setup, x);
+      const g0 = gradientAt(setup, x); // itself held to finite differences of the NLL above
       const free = [...Array(m.nGamma).keys()].filter((g) => eliminate[g]);
       const scale = (i: number, j: number) => Math.sqrt(Math.abs(full.get(i, i) * full.get(j, j)));
       for (let i = 0; i < P; i++) {
