@@ -44,6 +44,7 @@ export function summaryOf(analysis: BlindingRule, fit: FitRow, version: number, 
     finishedAt: fit.finishedAt?.toISOString() ?? null,
     headline: fit.state === 'succeeded' && !withheld.length ? (fit.headline ?? null) : null,
     withheld: withheld.length ? withheldResultMessage(withheld) : null,
+    checkOf: fit.checkOfFitId !== null && fit.checkOfParameter ? { fitId: fit.checkOfFitId, parameter: fit.checkOfParameter } : null,
   };
 }
 

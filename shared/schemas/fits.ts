@@ -62,6 +62,8 @@ export const fitSummarySchema = z.object({
    * keeps blinded (a fit made through a version that gave such a region another role). Null otherwise.
    */
   withheld: z.string().nullable(),
+  /** A check run from a parameter's diagnosis: the fit and parameter it checks. Null otherwise. */
+  checkOf: z.object({ fitId: z.number(), parameter: z.string() }).nullable(),
 });
 export type FitSummary = z.infer<typeof fitSummarySchema>;
 

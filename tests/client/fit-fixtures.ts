@@ -99,6 +99,7 @@ export function fitSummary(overrides: Partial<FitSummary> = {}): FitSummary {
     finishedAt: '2026-03-01T10:00:30Z',
     headline: { mu: 1.2, muError: 0.3, z: 4, warnings: 1 },
     withheld: null,
+    checkOf: null,
     ...overrides,
   };
 }

@@ -188,6 +188,15 @@ describe('the fit page of a variant', () => {
     expect(screen.queryByTitle(/Best-fit signal strength/)).toBeNull();
   });
 
+  it('links a check back to the diagnosis it was run from', async () => {
+    const options = fitOptionsSchema.parse({ decorrelate: [{ parameter: 'halo_norm', by: 'region' }] });
+    serveFit(fitDetail({ options, checkOf: { fitId: 3, parameter: 'halo_norm' }, result: convergedResult({ options }) }));
+    renderWithApp(<FitResultRoute />, '/a/demo/fits/7', '/a/:slug/fits/:fitId/:tab?');
+    const back = await screen.findByRole('link', { name: 'back to the diagnosis' });
+    expect(back.getAttribute('href')).toBe('/a/demo/fits/3/diagnostics?parameter=halo_norm');
+    expect(back.closest('p')!.textContent).toContain('A check of halo_norm from its diagnosis in fit #3');
+  });
+
   it('shows what a variant held and the agreement of a split systematic on its summary', async () => {
     const options = fitOptionsSchema.parse({ decorrelate: [{ parameter: 'jes', by: 'region' }], hold: [{ parameter: 'lumi', value: 'best' }] });
     const result = convergedResult({

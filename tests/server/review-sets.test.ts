@@ -94,7 +94,11 @@ describe('fit variants and the review programme through the API', () => {
     await t.fits.idle();
     const diagnosis = (await reader.get(`${C}/fits/${fit.body.id}/diagnosis/halo_norm`)).body;
     expect(diagnosis.checks.map((c: { state: string }) => c.state)).toEqual(['succeeded', 'succeeded']);
-    const split = (await reader.get(`${C}/fits/${checks.body[0].id}`)).body.result;
+    const checkFit = (await reader.get(`${C}/fits/${checks.body[0].id}`)).body;
+    // each check names the fit and parameter it checks, so its page links back to the diagnosis
+    expect(checkFit.checkOf).toEqual({ fitId: fit.body.id, parameter: 'halo_norm' });
+    expect((await reader.get(`${C}/fits/${fit.body.id}`)).body.checkOf).toBeNull();
+    const split = checkFit.result;
     expect(split.variant.decorrelation[0].parameter).toBe('halo_norm');
     expect(split.variant.decorrelation[0].parts.length).toBeGreaterThan(1);
   });

@@ -1,9 +1,10 @@
+import { Link } from 'react-router';
 import type { FitDetail } from '@shared/schemas/fits';
 import { formatDateTime } from '../../../lib/format';
 import { EXPORT_TABLES, exportCsvUrl, exportJsonUrl } from '../api/export-links';
 import { FitStateBadge } from '../../../components/status/fit-state';
 import { Badge } from '../../../components/ui/badge';
-import { datasetInWords, fitName, optionsInWords, variantInWords } from '../../../lib/fits';
+import { datasetInWords, diagnosisPath, fitName, optionsInWords, variantInWords } from '../../../lib/fits';
 import { ConvergenceStrip } from './convergence';
 
 /** Downloads of a stored result: the whole result as JSON and every table as CSV. */
@@ -54,6 +55,14 @@ export function FitHeader({ slug, fit }: { slug: string; fit: FitDetail }) {
             Variant: {variant.length ? variant.join(' · ') : 'the nominal fit'}
             {fit.options.hiddenMu ? '. μ is hidden: this fit shows pulls, constraints and control-region numbers only.' : ''}
           </p>
+          {fit.checkOf && (
+            <p className="text-sm text-ink-soft">
+              A check of <span className="font-mono">{fit.checkOf.parameter}</span> from its diagnosis in fit #{fit.checkOf.fitId}:{' '}
+              <Link className="text-teal-700 underline underline-offset-2" to={diagnosisPath(slug, fit.checkOf.fitId, fit.checkOf.parameter)}>
+                back to the diagnosis
+              </Link>
+            </p>
+          )}
           <p className="text-xs text-ink-muted">
             Fit #{fit.id} · started {formatDateTime(fit.createdAt)}
             {fit.createdBy ? ` by ${fit.createdBy}` : ''}
