@@ -5,7 +5,8 @@ import { findAnalysisAccess } from '../db/analyses.repository';
 import { findUserByEmail } from '../db/users.repository';
 import { listVersionRows } from '../db/versions.repository';
 import { requestUnblinding } from '../services/blinding.service';
-import { reviewEntry } from '../services/entries.service';
+import { getEntryDetail, reviewEntry, uploadVariations } from '../services/entries.service';
+import { impactChecksIdle } from '../services/impact-checks.service';
 import { startFit } from '../services/fits.service';
 import { answerQuestion, raiseQuestion, stepQuestion } from '../services/questions.service';
 import { startReviewSet } from '../services/review-sets.service';
@@ -20,7 +21,9 @@ import { freezeVersion } from '../services/versions.service';
  *   pre-fit Asimov fit (full impacts, scan, limit), the review set before unblinding, an entry
  *   submitted for review and one sent back with a comment, and a pending request to unblind.
  * - cascade-rate (unblinded): a frozen version and an observed fit with full impacts, in which
- *   halo_norm is over-constrained; an open question on it with one answer, and a resolved one.
+ *   halo_norm is over-constrained; an open question on it with one answer, and a resolved one;
+ *   once that fit is done, a revised continuum shape saved to its submitted entry, with what that
+ *   upload does to the result (when the fits run in this process).
  */
 /** The story is told once: while the demo's search has no frozen version, it has not been. */
 export async function storyPending(ctx: Pick<AppContext, 'db'>) {
@@ -81,6 +84,32 @@ export async function seedStory(ctx: AppContext, baseUrl: string, options: { wai
   // and the search asks to look
   await requestUnblinding(ctx, ottoV, { note: 'The control regions are understood, the review set is done, and every entry that enters the fit is accepted or under review.' }, baseUrl);
 
-  if (options.waitForFits) await ctx.fits.idle();
+  if (options.waitForFits) {
+    await ctx.fits.idle();
+    // a revised variation while its entry is under review: the entry shows what it does to the observed fit
+    await reviseShape(ctx, ottoC, 'continuum_shape', 'continuum_shape_steeper_tail.csv', 0.04, baseUrl);
+    await impactChecksIdle();
+  }
   await ctx.mailer.idle();
 }
+
+/** Saves the entry's shape effects again, each tilted by a further ±`tilt` across its bins (a steeper tail). */
+async function reviseShape(ctx: AppContext, access: Access, key: string, filename: string, tilt: number, baseUrl: string) {
+  const entry = await getEntryDetail(ctx, access, key);
+  const rows = ['region,process,kind,bin,up,down'];
+  for (const e of entry.effects) {
+    if (e.kind !== 'shape' || !Array.isArray(e.up) || !Array.isArray(e.down)) continue;
+    const up = e.up;
+    const down = e.down;
+    const last = Math.max(1, up.length - 1);
+    up.forEach((u, b) => {
+      const w = b / last - 0.5;
+      rows.push(`${e.region},${e.process},shape,${b + 1},${round(u * (1 + tilt * w))},${round(down[b] * (1 - tilt * w))}`);
+    });
+  }
+  const text = rows.join('\n') + '\n';
+  const file = { buffer: Buffer.from(text), originalname: filename, size: Buffer.byteLength(text), mimetype: 'text/csv' } as Express.Multer.File;
+  await uploadVariations(ctx, access, key, file, {}, true, baseUrl);
+}
+
+const round = (x: number) => Number(x.toPrecision(6));

@@ -58,6 +58,20 @@ describe('the demo on its first start', () => {
     expect(questions.some((q) => q.state === 'resolved')).toBe(true);
   });
 
+  it('shows on an entry under review what its revised variation does to the observed fit', async () => {
+    const mira = await as('mira@lantern.example');
+    const [fit] = await mira.get('/api/analyses/cascade-rate/fits');
+    const entry = await mira.get('/api/analyses/cascade-rate/entries/continuum_shape');
+    expect(entry.state).toBe('submitted');
+    expect(entry.impactCheck).toMatchObject({ state: 'done', fit: { id: fit.id }, failure: null });
+    expect(entry.impactCheck.mu.before).toBeCloseTo(fit.headline.mu, 6);
+    expect(entry.impactCheck.mu.after).not.toBe(entry.impactCheck.mu.before);
+    expect(entry.impactCheck.focus[0]).toMatchObject({ name: 'continuum_shape' });
+    // and the search's register has effects its pruning rules propose
+    const pruning = await mira.get('/api/analyses/vireon-search/pruning');
+    expect(pruning.candidates.length).toBeGreaterThan(0);
+  });
+
   it('holds an entry awaiting review, one sent back with a comment, and a pending request to unblind', async () => {
     const mira = await as('mira@lantern.example');
     const nonlin = await mira.get('/api/analyses/vireon-search/entries/noise_model');
