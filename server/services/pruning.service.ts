@@ -43,6 +43,7 @@ async function assessed(ctx: AppContext, access: Access) {
       flatP,
       reason: pruningReason(rules, { kind: e.kind, up: e.up, down: e.down, nominal: e.nominal ?? [], largestPct: e.largestPct, flatP, estimated: !e.shiftErrorsGiven }),
       pruned: e.pruned ? (e.prunedToScale ? 'normalisation' : 'dropped') : null,
+      normalisation: e.kind === 'shape' && e.nominal ? normalisationOf(e.nominal, e.up as number[], e.down as number[]) : null,
     };
     return { item, entryId: e.entry.id, nominal: e.nominal ?? [], up: e.up, down: e.down };
   });

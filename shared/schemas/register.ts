@@ -376,6 +376,8 @@ export const pruningItemSchema = z.object({
   flatP: z.number().nullable(),
   /** why the rules propose it; null for an effect pruned although the rules do not propose it (any more) */
   reason: pruningReasonSchema.nullable(),
+  /** a shape's overall ratio Σν±/Σν⁰ (what pruning to its normalisation keeps); null for a scale effect or one without a valid ratio */
+  normalisation: z.object({ up: z.number(), down: z.number() }).nullable().default(null),
   pruned: prunedAsSchema.nullable(),
 });
 export type PruningItem = z.infer<typeof pruningItemSchema>;

@@ -201,6 +201,10 @@ describe('pruning in an analysis', () => {
     const nominal = model.templates.find((x) => x.region === flat.region && x.process === flat.process)!.nominal;
     const [row] = await t.database.db.select().from(effects).where(eq(effects.id, flat.effectId));
     const ratio = normalisationOf(nominal, row.up as number[], row.down as number[])!;
+    // the pruned list carries it, so that the screen shows the κ the version keeps
+    const listed = new Map((res.body.pruned as PruningItem[]).map((p) => [p.effectId, p]));
+    expect(listed.get(flat.effectId)!.normalisation).toEqual(ratio);
+    if (small.kind === 'scale') expect(listed.get(small.effectId)!.normalisation).toBeNull();
     const scale = holds(version, flat, 'scale') as { up: number; down: number };
     const ownScale = (await reader.get(`${C}/entries/${flat.entry.key}`)).body.effects.find((e: { region: string; process: string; kind: string }) => e.region === flat.region && e.process === flat.process && e.kind === 'scale');
     expect(scale.up).toBeCloseTo(ratio.up * (ownScale?.up ?? 1), 12);
