@@ -8,6 +8,7 @@ import { InvitationRoute } from './routes/invitation';
 import { AnalysesRoute } from './routes/analyses';
 import { OverviewRoute } from './routes/analysis/overview';
 import { RegisterRoute } from './routes/analysis/register';
+import { PruningRoute } from './routes/analysis/pruning';
 import { EntryRoute } from './routes/analysis/entry';
 import { ModelRoute } from './routes/analysis/model';
 import { GroupsRoute } from './routes/analysis/groups';
@@ -43,6 +44,7 @@ export const routes = [
               { index: true, ...screen(<OverviewRoute />) },
               { path: 'register', ...screen(<RegisterRoute />) },
               { path: 'entries/:key', ...screen(<EntryRoute />) },
+              { path: 'pruning', ...screen(<PruningRoute />) },
               { path: 'model', ...screen(<ModelRoute />) },
               { path: 'groups', ...screen(<GroupsRoute />) },
               { path: 'fits', ...screen(<FitsRoute />) },

@@ -13,6 +13,7 @@ const fits = (slug: string) => [...analysis(slug), 'fits'] as const;
 const fit = (slug: string, id: number) => [...fits(slug), id] as const;
 const questions = (slug: string) => [...analysis(slug), 'questions'] as const;
 const questionLists = (slug: string) => [...questions(slug), 'list'] as const;
+const pruning = (slug: string) => [...analysis(slug), 'pruning'] as const;
 
 export const queryKeys = {
   /** The signed-in user (null when signed out). */
@@ -33,6 +34,10 @@ export const queryKeys = {
   /** The register's list; every entry's key starts with it. */
   entries,
   entry: (slug: string, key: string) => [...entries(slug), key] as const,
+
+  /** The pruning overview (rules, candidates, pruned effects); its previews sit under it. */
+  pruning,
+  pruningPreview: (slug: string, id: number) => [...pruning(slug), 'previews', id] as const,
 
   versions: (slug: string) => [...analysis(slug), 'versions'] as const,
   /** The fits' list; every fit's key starts with it. */

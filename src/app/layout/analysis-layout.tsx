@@ -9,6 +9,7 @@ import { useMe } from '../../features/auth/api/get-me';
 const SECTIONS = [
   { to: '', label: 'Overview', end: true },
   { to: 'register', label: 'Register' },
+  { to: 'pruning', label: 'Pruning' },
   { to: 'model', label: 'Model' },
   { to: 'groups', label: 'Groups' },
   { to: 'fits', label: 'Fits' },

@@ -11,6 +11,7 @@ import { EffectsList } from '../../../features/entry/components/effects-list';
 import { VariationUpload } from '../../../features/entry/components/variation-upload';
 import { ReplicaUpload } from '../../../features/entry/components/replica-upload';
 import { RevisionHistory } from '../../../features/entry/components/revision-history';
+import { ImpactCheckPanel } from '../../../features/entry/components/impact-check-panel';
 import type { RegionInfo } from '../../../features/entry/components/effect-card';
 import { useMembers } from '../../../features/members/api/get-members';
 import { useModel } from '../../../features/model/api/get-model';
@@ -78,6 +79,11 @@ export function EntryRoute() {
             </Panel>
           </div>
           <div className="mt-5 flex flex-col gap-5">
+            {e.impactCheck && (
+              <Panel title="What this upload does to the result">
+                <ImpactCheckPanel slug={slug} check={e.impactCheck} />
+              </Panel>
+            )}
             <Panel title={`Effects (${e.effects.length})`}>
               <EffectsList slug={slug} entry={e} regions={regions} processLabels={processLabels} />
             </Panel>

@@ -1,5 +1,7 @@
 import { useState } from 'react';
 import type { EntryDetail } from '@shared/schemas/register';
+import { Link } from 'react-router';
+import { Badge } from '../../../components/ui/badge';
 import { ConfirmButton } from '../../../components/ui/confirm-button';
 import { formatDateTime } from '../../../lib/format';
 import { useDeleteEffect } from '../api/delete-effect';
@@ -39,6 +41,31 @@ function RemoveEffect({ slug, entryKey, effect }: { slug: string; entryKey: stri
   );
 }
 
+/** A pruned effect: out of the fit, or in it as its overall normalisation only. */
+function PrunedBadge({ as }: { as: NonNullable<Effect['pruned']> }) {
+  return as === 'dropped' ? (
+    <Badge tone="ink" title="Pruned: left out of frozen versions, so out of every fit from the next version on">
+      Pruned
+    </Badge>
+  ) : (
+    <Badge tone="ink" title="Pruned: frozen versions keep only its overall normalisation (Σ varied / Σ nominal) as a scale effect">
+      Pruned to its normalisation
+    </Badge>
+  );
+}
+
+function PrunedNote({ slug, as }: { slug: string; as: NonNullable<Effect['pruned']> }) {
+  return (
+    <p className="text-xs text-ink-soft">
+      {as === 'dropped' ? 'Left out of frozen versions.' : 'Frozen versions keep only its normalisation.'} A new upload or smoothing brings it back into the fit;{' '}
+      <Link to={`/a/${slug}/pruning`} className="font-medium text-teal-ink hover:underline">
+        see pruning
+      </Link>
+      .
+    </p>
+  );
+}
+
 /** The entry's effects, per region × process, each with its preview, warnings and provenance. */
 export function EffectsList({ slug, entry, regions, processLabels }: { slug: string; entry: EntryDetail; regions: Map<string, RegionInfo>; processLabels: Map<string, string> }) {
   // The effect being smoothed: its card takes a whole row for the before-and-after charts.
@@ -60,8 +87,10 @@ export function EffectsList({ slug, entry, regions, processLabels }: { slug: str
             regionInfo={regions.get(e.region)}
             processLabel={processLabels.get(e.process)}
             wide={smoothing === e.id}
+            badges={e.pruned && <PrunedBadge as={e.pruned} />}
             footer={
               <>
+                {e.pruned && <PrunedNote slug={slug} as={e.pruned} />}
                 <Provenance upload={e.upload} />
                 {e.kind === 'shape' && entry.can.upload && (
                   <SmoothEffect slug={slug} entryKey={entry.key} effect={e} unit={regions.get(e.region)?.unit} open={smoothing === e.id} onOpen={(open) => setSmoothing(open ? e.id : null)} />

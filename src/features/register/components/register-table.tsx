@@ -70,6 +70,32 @@ function ListCell({ items, noun }: { items: string[]; noun: [string, string] }) 
   );
 }
 
+/**
+ * An entry's pruning in a few letters beside its key, linking to the pruning screen: effects the
+ * rules propose (dashed: a proposal) and effects pruned (solid: done). Its words are in its label.
+ */
+function PruningMarker({ slug, entryKey, pruning }: { slug: string; entryKey: string; pruning: EntrySummary['pruning'] }) {
+  const { candidates, pruned } = pruning;
+  if (!candidates && !pruned) return null;
+  const words = [
+    candidates ? `${candidates} effect${candidates === 1 ? '' : 's'} the pruning rules propose` : '',
+    pruned ? `${pruned} effect${pruned === 1 ? '' : 's'} pruned` : '',
+  ]
+    .filter(Boolean)
+    .join(', ');
+  return (
+    <Link
+      to={`/a/${slug}/pruning`}
+      aria-label={`${entryKey}: ${words}`}
+      title={`${words[0].toUpperCase()}${words.slice(1)}: open the pruning screen`}
+      className="inline-flex h-4 shrink-0 items-center gap-1 text-2xs leading-none font-semibold hover:underline"
+    >
+      {pruned > 0 && <span className="rounded-sm border border-ink bg-ink px-1 py-px text-paper">{`pruned${pruned > 1 ? ` ${pruned}` : ''}`}</span>}
+      {candidates > 0 && <span className="rounded-sm border border-dashed border-amber-ink/70 px-1 py-px text-amber-ink">{`prune? ${candidates}`}</span>}
+    </Link>
+  );
+}
+
 /** Short values (key, owner, state, the numbers) stay on one line; labels and group names may wrap, and the lists are cut short (all of it on hover). */
 function makeColumns(slug: string) {
   return col.columns([
@@ -96,6 +122,7 @@ function makeColumns(slug: string) {
                 }}
               />
             )}
+            <PruningMarker slug={slug} entryKey={c.getValue()} pruning={c.row.original.pruning} />
           </span>
         );
       },
