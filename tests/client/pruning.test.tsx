@@ -59,7 +59,14 @@ function preview(state: PruningPreview['state'], overrides: Partial<PruningPrevi
     absent: [],
     mu: state === 'done' ? { before: 1.2, after: 1.212, fixed: false } : null,
     muError: state === 'done' ? { before: 0.2, after: 0.19 } : null,
-    moved: state === 'done' ? [{ name: 'sys_2', pull: { before: 0.4, after: 0.1 }, constraint: { before: 0.8, after: 0.95 } }] : [],
+    moved:
+      state === 'done'
+        ? [
+            { name: 'sys_2', pull: { before: 0.4, after: 0.1 }, constraint: { before: 0.8, after: 0.95 } },
+            // every effect of sys_1 left out: no parameter in the refit
+            { name: 'sys_1', pull: { before: 0.02, after: null }, constraint: { before: 0.99, after: null } },
+          ]
+        : [],
     seconds: state === 'done' ? 0.4 : null,
     ...overrides,
   };
@@ -112,6 +119,7 @@ describe('the pruning screen', () => {
     expect(spoken(mu)).toContain('−5.0 %');
     const moved = screen.getByRole('table', { name: 'Pulls and constraints that change' });
     expect(within(moved).getByRole('rowheader', { name: 'sys_2' }).closest('tr')!.textContent!.replace(/→/g, '')).toContain('0.40 to 0.10');
+    expect(within(moved).getByRole('rowheader', { name: 'sys_1' }).closest('tr')!.textContent!.replace(/→/g, '')).toBe('sys_10.02 to removed0.99 to removed');
     expect(polls).toBeGreaterThanOrEqual(2);
     expect((screen.getByRole('button', { name: 'Prune 2 effects' }) as HTMLButtonElement).disabled).toBe(false);
 

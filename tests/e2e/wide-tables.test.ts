@@ -127,6 +127,7 @@ describe('wide tables: every default column can be reached at 1280 and 1440 px',
     const table = (name: string) => (page: Page) => page.locator(`table[aria-label="${name}"]`).first().waitFor({ state: 'attached', timeout: 60_000 });
     await check([
       { name: 'register', path: '/a/vireon-search/register', ready: (p) => p.getByRole('cell', { name: 'flare_escale' }).waitFor() },
+      { name: 'pruning', path: '/a/vireon-search/pruning', ready: table('Candidates: Shapes flat within their noise (p above 0.05)') },
       {
         name: 'entry',
         path: '/a/cascade-rate/entries/halo_norm',

@@ -16,16 +16,24 @@ export function delta(c: Change): number | null {
   return c.before === null || c.after === null ? null : c.after - c.before;
 }
 
-/** "0.281 → 0.416": the arrow is read as "to". */
+/**
+ * "0.281 → 0.416": the arrow is read as "to". A side that does not exist is named: a parameter
+ * the refit no longer has (its effects were all left out) or one the compared fit did not have.
+ */
 export function BeforeAfter({ change, decimals = 2 }: { change: Change; decimals?: number }) {
+  const missing = (which: 'before' | 'after') => (
+    <span className="font-normal text-ink-muted italic" title={which === 'after' ? 'Not a parameter of the refit: every effect of it was left out' : 'Not a parameter of the compared fit'}>
+      {which === 'after' ? 'removed' : 'new'}
+    </span>
+  );
   return (
     <span className="whitespace-nowrap tabular-nums">
-      {formatFixed(change.before, decimals)}
+      {change.before === null && change.after !== null ? missing('before') : formatFixed(change.before, decimals)}
       <span aria-hidden className="px-1 text-ink-muted">
         →
       </span>
       <span className="sr-only"> to </span>
-      <span className="font-semibold">{formatFixed(change.after, decimals)}</span>
+      <span className="font-semibold">{change.after === null && change.before !== null ? missing('after') : formatFixed(change.after, decimals)}</span>
     </span>
   );
 }

@@ -37,9 +37,9 @@ function columnsFor(slug: string, mayEdit: boolean) {
       meta: { nowrap: true },
       cell: (c) => {
         const i = c.row.original;
-        if (i.pruned === 'dropped') return <span className="text-xs">left out of the fit</span>;
+        if (i.pruned === 'dropped') return <span>left out of the fit</span>;
         return (
-          <span className="text-xs">
+          <span>
             normalisation only,{' '}
             {i.normalisation ? <Kappa normalisation={i.normalisation} /> : <span className="text-ink-muted">κ unavailable</span>}
           </span>
