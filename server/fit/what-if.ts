@@ -4,7 +4,7 @@ import { curvatureAt } from './covariance';
 import { FitInputError } from './errors';
 import { Refitter } from './refit-tasks';
 import { createScratch, minimise } from './minimiser';
-import { errorOf, nuisanceTable } from './parameters-report';
+import { errorOf, nuisanceTable, parameterTable } from './parameters-report';
 import { buildProblem, startPoint } from './problem';
 import { applyHeld, resolveHeld, variantModel } from './variants';
 
@@ -31,6 +31,8 @@ export type WhatIfOutcome = {
   muError: { before: number | null; after: number | null };
   parameters: { name: string; pull: { before: number | null; after: number | null }; constraint: { before: number | null; after: number | null } }[];
   focus: { name: string; pull: Change; constraint: Change; impact: { up: number | null; down: number | null } | null; rankBefore: number | null; rankAfter: number | null }[];
+  /** what the refit's convergence report would say beside its numbers: clip edges, parameters at a bound, refits that did not converge */
+  warnings: string[];
   seconds: number;
 };
 
@@ -63,6 +65,7 @@ export function whatIf(input: WhatIfInput): WhatIfOutcome {
     muError: { before: before.muError, after: null },
     parameters: [],
     focus: [],
+    warnings: [],
     seconds: (performance.now() - started) / 1000,
   });
   const min = minimise(problem, start.phi, start.gamma, scratch, {});
@@ -70,7 +73,12 @@ export function whatIf(input: WhatIfInput): WhatIfOutcome {
   const curvature = curvatureAt(problem, min.phi, min.gamma, scratch);
   if (!curvature.ok) return empty(`the changed model's covariance is not available: ${curvature.message}`);
   const ctx = curvature.context;
+  const warnings: string[] = [];
+  if (min.edge) warnings.push(min.edge.kept === 'released' ? 'The refit met a clip edge; the minimum off the edge is kept.' : 'The refit\u2019s minimum sits on a clip edge (a template\u2019s yield at zero in some bin): it is held there.');
+  if (min.message) warnings.push(`Newton: ${min.message}.`);
   const rows = nuisanceTable(ctx, options.overConstraintThreshold);
+  const atBound = parameterTable(ctx).filter((p) => p.atBound).map((p) => p.name);
+  if (atBound.length) warnings.push(`At a bound of its range in the refit: ${atBound.slice(0, 10).join(', ')}${atBound.length > 10 ? ', …' : ''}.`);
   const after = new Map(rows.map((r) => [r.name, r]));
   const stored = new Map(input.reference.nuisance.map((n) => [n.name, n]));
   const names = [...new Set([...stored.keys(), ...after.keys()])];
@@ -92,6 +100,7 @@ export function whatIf(input: WhatIfInput): WhatIfOutcome {
     const clip = (v: number) => Math.min(m.upper[index], Math.max(m.lower[index], v));
     const shift = (v: number) => {
       const r = runner.run({ kind: 'fix', context: 0, index, value: clip(v) });
+      if (!r.ok || r.mu === null) warnings.push(`The impact of ${name} at θ = ${clip(v).toFixed(3)} is left empty: its conditional fit did not converge${r.message ? ` (${r.message})` : ''}.`);
       return r.ok && r.mu !== null ? r.mu - ctx.phi[0] : null;
     };
     const impact = { up: shift(ctx.phi[index] + sigma), down: shift(ctx.phi[index] - sigma) };
@@ -107,6 +116,7 @@ export function whatIf(input: WhatIfInput): WhatIfOutcome {
     muError: { before: before.muError, after: errorOf(ctx, 0) },
     parameters,
     focus,
+    warnings,
     seconds: (performance.now() - started) / 1000,
   };
 }

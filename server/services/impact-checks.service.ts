@@ -111,6 +111,8 @@ export function checkView(access: Access, found: { check: ImpactCheckRow; fitLab
     muError: r?.muError ?? null,
     focus: r?.focus,
     moved: (r?.parameters ?? []).filter((p) => moved(p.pull) || moved(p.constraint)),
+    // checks stored before warnings were kept have none
+    warnings: r?.warnings ?? [],
     seconds: r?.seconds ?? null,
   };
 }

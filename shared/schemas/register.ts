@@ -195,6 +195,8 @@ export const impactCheckSchema = z.object({
   muError: change.nullable(),
   focus: z.array(z.object({ name: z.string(), pull: change, constraint: change, impact: z.object({ up: z.number().nullable(), down: z.number().nullable() }).nullable(), rankBefore: z.number().nullable(), rankAfter: z.number().nullable() })),
   moved: z.array(z.object({ name: z.string(), pull: change, constraint: change })),
+  /** the refit's warnings (clip edge, a parameter at a bound, an impact left empty), shown beside its numbers */
+  warnings: z.array(z.string()),
   seconds: z.number().nullable(),
 });
 export type ImpactCheck = z.infer<typeof impactCheckSchema>;
@@ -423,6 +425,8 @@ export const pruningPreviewSchema = z.object({
   mu: change.extend({ fixed: z.boolean() }).nullable(),
   muError: change.nullable(),
   moved: z.array(z.object({ name: z.string(), pull: change, constraint: change })),
+  /** the refit's warnings, shown beside its numbers */
+  warnings: z.array(z.string()),
   seconds: z.number().nullable(),
 });
 export type PruningPreview = z.infer<typeof pruningPreviewSchema>;

@@ -67,6 +67,7 @@ function preview(state: PruningPreview['state'], overrides: Partial<PruningPrevi
             { name: 'sys_1', pull: { before: 0.02, after: null }, constraint: { before: 0.99, after: null } },
           ]
         : [],
+    warnings: [],
     seconds: state === 'done' ? 0.4 : null,
     ...overrides,
   };

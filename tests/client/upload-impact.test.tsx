@@ -40,6 +40,7 @@ function check(overrides: Partial<ImpactCheck> = {}): ImpactCheck {
       { name: 'continuum_shape', pull: { before: -0.281, after: -0.416 }, constraint: { before: 0.947, after: 0.854 } },
       { name: 'halo_norm', pull: { before: 0.6, after: 1.3 }, constraint: { before: 0.4, after: 0.42 } },
     ],
+    warnings: [],
     seconds: 0.8,
     ...overrides,
   };
@@ -64,6 +65,16 @@ describe('what an upload does to the result, on the entry page', () => {
     const moved = screen.getByRole('table', { name: 'Parameters that moved with this upload' });
     // the largest move first
     expect(within(moved).getAllByRole('rowheader').map((r) => r.textContent)).toEqual(['halo_norm', 'continuum_shape']);
+  });
+
+  it('puts the refit’s warnings beside its state, and says when there are none', () => {
+    stubServer(() => undefined);
+    const { unmount } = renderPanel(check());
+    expect(screen.getByText('no warnings')).toBeTruthy();
+    unmount();
+    renderPanel(check({ warnings: ['At a bound of its range in the refit: halo_norm.'] }));
+    expect(screen.getByText('1 warning')).toBeTruthy();
+    expect(within(screen.getByRole('list', { name: 'Warnings of the refit' })).getByText('At a bound of its range in the refit: halo_norm.')).toBeTruthy();
   });
 
   it('says so when the compared fit holds μ, and gives no impact', () => {

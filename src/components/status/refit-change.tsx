@@ -156,3 +156,20 @@ export function SignalStrengthChange({ mu, muError }: { mu: (Change & { fixed: b
     </dl>
   );
 }
+
+/** A refit's warnings beside its state: "no warnings", or each warning in a list the reader opens. */
+export function RefitWarnings({ warnings }: { warnings: string[] }) {
+  if (!warnings.length) return <span title="The refit's report has no warning">no warnings</span>;
+  return (
+    <details className="text-amber-ink">
+      <summary className="cursor-pointer font-medium">
+        {warnings.length} warning{warnings.length > 1 ? 's' : ''}
+      </summary>
+      <ul className="mt-1 list-disc pl-5" aria-label="Warnings of the refit">
+        {warnings.map((w) => (
+          <li key={w}>{w}</li>
+        ))}
+      </ul>
+    </details>
+  );
+}

@@ -1,7 +1,7 @@
 import { Link } from 'react-router';
 import type { ImpactCheck } from '@shared/schemas/register';
 import { Badge } from '../../../components/ui/badge';
-import { BeforeAfter, MovedParameters, SignalStrengthChange } from '../../../components/status/refit-change';
+import { BeforeAfter, MovedParameters, RefitWarnings, SignalStrengthChange } from '../../../components/status/refit-change';
 import { fitName, fitPath } from '../../../lib/fits';
 import { formatDateTime } from '../../../lib/format';
 import { formatSigned } from '../../../lib/stats-format';
@@ -144,6 +144,7 @@ export function ImpactCheckPanel({ slug, check }: { slug: string; check: ImpactC
     <div className="flex flex-col gap-3">
       <p className="flex flex-wrap items-center gap-x-3 gap-y-1 text-xs text-ink-muted">
         <CheckState check={check} />
+        {check.state === 'done' && <RefitWarnings warnings={check.warnings} />}
         {check.fit ? (
           <span>
             Compared with{' '}

@@ -1,7 +1,7 @@
 import { Link } from 'react-router';
 import type { PruningPreview } from '@shared/schemas/register';
 import { Badge } from '../../../components/ui/badge';
-import { MovedParameters, SignalStrengthChange } from '../../../components/status/refit-change';
+import { MovedParameters, RefitWarnings, SignalStrengthChange } from '../../../components/status/refit-change';
 import { fitName, fitPath } from '../../../lib/fits';
 import { plural } from '../../../lib/format';
 
@@ -42,6 +42,7 @@ export function PreviewResult({ slug, preview, stale }: { slug: string; preview:
     <section aria-label="What pruning changes" className="flex flex-col gap-3">
       <div className="flex flex-wrap items-center gap-2 text-xs text-ink-muted">
         <State preview={preview} />
+        {preview.state === 'done' && <RefitWarnings warnings={preview.warnings} />}
         <span>
           {plural(preview.selection.length, 'effect')} ({dropped} left out, {preview.selection.length - dropped} kept as normalisation), compared with{' '}
           {preview.fit ? (
