@@ -15,6 +15,7 @@ import { Session } from './bench-session';
  * --repeat N repeats the upload check and the preview (medians printed); --threads sets FIT_THREADS.
  */
 
+const signed = (x: number | null | undefined) => (x == null ? '–' : `${x >= 0 ? '+' : ''}${x.toFixed(4)}`);
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 const seconds = (ms: number) => `${(ms / 1000).toFixed(2)} s`;
 const verdict = (what: string, ms: number, targetS: number | null) =>
@@ -75,7 +76,7 @@ export async function benchReview(options: { threads: number; repeat: number }) 
       const f = entry.impactCheck.focus[0];
       if (i === 0)
         console.log(
-          `  ${systematic.key}: μ̂ ${entry.impactCheck.mu.before.toFixed(4)} → ${entry.impactCheck.mu.after.toFixed(4)}, σ_μ ${entry.impactCheck.muError.before.toFixed(4)} → ${entry.impactCheck.muError.after.toFixed(4)}, impact +${f.impact.up?.toFixed(4)} / ${f.impact.down?.toFixed(4)}, rank ${f.rankBefore} → ${f.rankAfter}, ${entry.impactCheck.moved.length} parameters moved; the refit itself ${entry.impactCheck.seconds.toFixed(2)} s`,
+          `  ${systematic.key}: μ̂ ${entry.impactCheck.mu.before.toFixed(4)} → ${entry.impactCheck.mu.after.toFixed(4)}, σ_μ ${entry.impactCheck.muError.before.toFixed(4)} → ${entry.impactCheck.muError.after.toFixed(4)}, impact ${signed(f.impact.up)} / ${signed(f.impact.down)}, rank ${f.rankBefore} → ${f.rankAfter}, ${entry.impactCheck.moved.length} parameters moved; the refit itself ${entry.impactCheck.seconds.toFixed(2)} s`,
         );
     }
     verdict(`what an upload does (save to numbers, median of ${options.repeat})`, median(uploadTimes), 5);
