@@ -105,7 +105,8 @@ describe('accessibility: axe-core on every main screen, and every action by keyb
     await page.keyboard.press('Space');
     await expect.poll(() => table.getByRole('columnheader', { name: /owner/i }).count()).toBe(0);
     // open an entry with Enter
-    const link = table.getByRole('link', { name: 'calo_nonlin' });
+    const link = table.getByRole('link', { name: 'calo_nonlin', exact: true });
+    // exact: the row's pruning mark is a link whose name holds the key too
     await tabTo(page, link, 60);
     await page.keyboard.press('Enter');
     await page.waitForURL(/\/entries\/calo_nonlin$/);
@@ -250,5 +251,23 @@ describe('accessibility: axe-core on every main screen, and every action by keyb
     await tabTo(page, matrix, 40);
     await page.keyboard.press('ArrowRight');
     await page.getByText(/ × .*: ρ = /).first().waitFor();
+  });
+
+  it('the review set and the pruning screen pass axe for a convener and an analyst, and Tab reaches every control', async () => {
+    const { page } = live.browser;
+    await as(live, 'mira@lantern.example');
+    const [set] = (await api(live.browser, 'GET', '/api/analyses/vireon-search/review-sets')).body as { id: number }[];
+    await page.goto(`${live.server.url}/a/vireon-search/review-sets/${set.id}`);
+    await page.getByText('Which parameters move between the fits').waitFor({ timeout: 60_000 });
+    await page.waitForTimeout(300);
+    await checkAccessibility(page, 'review set');
+    await expectKeyboardReachesEverything(page, 'review set');
+    await as(live, 'otto@lantern.example');
+    await page.goto(`${live.server.url}/a/vireon-search/pruning`);
+    await page.getByLabel('Summary').waitFor({ timeout: 60_000 });
+    await page.waitForTimeout(300);
+    await checkAccessibility(page, 'pruning');
+    await screenshot(page, 'a11y-pruning');
+    await expectKeyboardReachesEverything(page, 'pruning');
   });
 });

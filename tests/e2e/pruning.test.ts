@@ -43,7 +43,7 @@ describe('an analyst prunes effects after seeing what pruning changes, and a con
     const register = page.getByRole('table', { name: 'Register entries' });
     const key = small[0].entry.key;
     const count = before.candidates.filter((c) => c.entry.key === key).length;
-    const marker = register.getByRole('link', { name: `${key}: ${count} effect${count === 1 ? '' : 's'} the pruning rules propose` });
+    const marker = register.getByRole('link', { name: `prune? ${count}: ${key}, ${count} effect${count === 1 ? '' : 's'} the pruning rules propose` });
     await marker.waitFor();
     await marker.click();
     await page.waitForURL(/\/pruning$/);

@@ -83,10 +83,12 @@ function PruningMarker({ slug, entryKey, pruning }: { slug: string; entryKey: st
   ]
     .filter(Boolean)
     .join(', ');
+  // the accessible name starts with the visible letters, so that speech input can say them
+  const shown = [pruned > 0 ? `pruned${pruned > 1 ? ` ${pruned}` : ''}` : '', candidates > 0 ? `prune? ${candidates}` : ''].filter(Boolean).join(' ');
   return (
     <Link
       to={`/a/${slug}/pruning`}
-      aria-label={`${entryKey}: ${words}`}
+      aria-label={`${shown}: ${entryKey}, ${words}`}
       title={`${words[0].toUpperCase()}${words.slice(1)}: open the pruning screen`}
       className="inline-flex h-4 shrink-0 items-center gap-1 text-2xs leading-none font-semibold hover:underline"
     >
