@@ -11,8 +11,8 @@ import { buildProblem, startPoint } from './problem';
  * Newton steps from where it stopped. It starts from the model's start values with the
  * parameter held; and since the profile is the minimum over the other parameters, where the
  * likelihood has more than one minimum (same-side variations, clipped templates) it also starts
- * from the reference's own best fit with the parameter moved to its value, and keeps the lower
- * NLL. With no parameter held it is the reference best fit (μ̂ and the minimum NLL).
+ * from the reference's own best fit with the parameter moved to its value (by continuation where
+ * that start is infeasible, coldAlong), and keeps the lower NLL. With no parameter held it is the reference best fit (μ̂ and the minimum NLL).
  */
 export interface ColdFit {
   ok: boolean;
@@ -49,14 +49,64 @@ function coldFrom(problem: FitProblem, index: number, value: number, start: Star
   return { ok: true, nll: last.nll, phi: last.phi, gamma: last.gamma, decrement: last.decrement, message: null };
 }
 
+/**
+ * From the best fit to φ_index = value by continuation: where the direct start fails (moving one
+ * parameter alone can empty a bin that has events, where the NLL is infinite), the path is
+ * halved, the midpoint fitted from the best fit and the rest of the way from there, down to
+ * 1/64 of the move (Nocedal & Wright, §11.3, on homotopy methods).
+ */
+function coldAlong(problem: FitProblem, index: number, from: number, value: number, start: Start, scratch: Scratch, depth = 0): ReturnType<typeof coldFrom> {
+  const direct = coldFrom(problem, index, value, start, scratch);
+  if (direct.ok || depth >= 6) return direct;
+  const mid = (from + value) / 2;
+  const half = coldAlong(problem, index, from, mid, start, scratch, depth + 1);
+  if (!half.ok) return direct;
+  return coldAlong(problem, index, mid, value, { phi: half.phi, gamma: half.gamma }, scratch, depth + 1);
+}
+
 export function coldFit(problem: FitProblem, index: number, value: number, scratch: Scratch = createScratch(problem), best: Start | null = null): ColdFit {
   const fromStart = coldFrom(problem, index, value, startPoint(problem.model), scratch);
-  const fromBest = best && index >= 0 ? coldFrom(problem, index, value, best, scratch) : null;
+  const fromBest = best && index >= 0 ? coldAlong(problem, index, best.phi[index], value, best, scratch) : null;
   const runs = [fromStart, fromBest].filter((r) => r?.ok) as NonNullable<typeof fromBest>[];
+  // Where the two starts disagree, or a minimum found has a template clipped that the best fit
+  // does not clip (another valley may begin at the kink), the whole path from the best fit is
+  // followed in steps of at most 0.1 in the held parameter, each a fresh Newton fit from the
+  // previous minimum.
+  if (best && index >= 0) {
+    const disagree = runs.length < 2 || Math.abs(runs[0].nll - runs[1].nll) > 1e-6 * (1 + Math.abs(runs[0].nll));
+    if (disagree || runs.some((r) => newClips(problem, best, r, scratch))) {
+      const from = best.phi[index];
+      const steps = Math.max(2, Math.ceil(Math.abs(value - from) / 0.1));
+      let at: Start = best;
+      let path: ReturnType<typeof coldFrom> | null = null;
+      for (let k = 1; k <= steps; k++) {
+        path = coldAlong(problem, index, from + ((k - 1) / steps) * (value - from), from + (k / steps) * (value - from), at, scratch);
+        if (!path.ok) break;
+        at = { phi: path.phi, gamma: path.gamma };
+      }
+      if (path?.ok) runs.push(path);
+    }
+  }
   if (runs.length === 0) return { ok: false, nll: NaN, mu: NaN, decrement: NaN, twoMinima: false, message: fromStart.message };
   const lowest = runs.reduce((a, b) => (b.nll < a.nll ? b : a));
-  const twoMinima = runs.length === 2 && Math.abs(runs[0].nll - runs[1].nll) > 1e-6 * (1 + Math.abs(lowest.nll));
+  const twoMinima = runs.length >= 2 && runs.some((r) => Math.abs(r.nll - lowest.nll) > 1e-6 * (1 + Math.abs(lowest.nll)));
   return { ok: true, nll: lowest.nll, mu: lowest.phi[0], decrement: lowest.decrement, twoMinima, message: null };
+}
+
+/** Sample-bins whose template (nominal > 0) is clipped, A ≤ 0, at a point. */
+function clippedAt(problem: FitProblem, at: Start, scratch: Scratch): Set<number> {
+  const m = problem.model;
+  negativeLogLikelihood(m, problem.data, problem.gammaHeld, at.phi, at.gamma, scratch.ws, problem.globals);
+  const out = new Set<number>();
+  for (let sb = 0; sb < m.nominal.length; sb++) if (m.nominal[sb] > 0 && scratch.ws.A[sb] <= 1e-9 * m.nominal[sb]) out.add(sb);
+  return out;
+}
+
+/** Whether the minimum `r` clips a template that the best fit does not. */
+function newClips(problem: FitProblem, best: Start, r: Start, scratch: Scratch): boolean {
+  const before = clippedAt(problem, best, scratch);
+  for (const sb of clippedAt(problem, r, scratch)) if (!before.has(sb)) return true;
+  return false;
 }
 
 /** A batch of cold fits of one model, as a worker receives it: [parameter index, value] pairs (index −1: nothing held). */

@@ -1,6 +1,11 @@
 import { describe, expect, it } from 'vitest';
 import { AGREEMENT_SLICE, checkRefitAgreement } from '../../server/fit/refit-agreement';
-import { stressModel } from '../../server/fit/synthetic-stress';
+import { EDGE_SIZES, stressModel } from '../../server/fit/synthetic-stress';
+import { conditionalFit } from '../../server/fit/conditional-fit';
+import { curvatureAt } from '../../server/fit/covariance';
+import { createScratch, minimise } from '../../server/fit/minimiser';
+import { buildProblem, startPoint } from '../../server/fit/problem';
+import { coldFit, REFERENCE_PROBLEM } from '../../server/fit/refit-reference';
 
 /**
  * The seeded slice of the refit-agreement suite (docs/likelihood.md §10; the full set is
@@ -48,4 +53,27 @@ describe('refits against cold fits', () => {
     expect(row.outOfTolerance).toBe(1);
     expect(row.details[0].what).toMatch(/68 % high/);
   }, 60_000);
+});
+
+describe('the reference cold fit', () => {
+  it('follows the path from its best fit where moving the parameter alone empties a bin with events, and is not left in a higher valley', () => {
+    // A tail killer model: with np3 at θ̂ − σ̂ the best fit with np3 moved gives a bin with events
+    // no expected events (infinite NLL), and Newton from the start values stops in a valley with
+    // a tail template clipped, 5.8 above the engine's conditional minimum.
+    const model = stressModel(EDGE_SIZES.tiny, 8);
+    const problem = buildProblem(model, REFERENCE_PROBLEM);
+    const m = problem.model;
+    const scratch = createScratch(problem);
+    const s = startPoint(m);
+    const min = minimise(problem, s.phi, s.gamma, scratch);
+    const c = curvatureAt(problem, min.phi, min.gamma, scratch);
+    if (!c.ok) throw new Error(c.message);
+    const i = m.names.indexOf('np3');
+    const value = min.phi[i] - Math.sqrt(c.context.V[i * m.nDense + i]);
+    const engine = conditionalFit(c.context, i, value, createScratch(problem));
+    const reference = coldFit(problem, i, value, createScratch(problem), { phi: min.phi, gamma: min.gamma });
+    expect(engine.ok && reference.ok).toBe(true);
+    expect(Math.abs(reference.nll - engine.nll)).toBeLessThan(1e-7);
+    expect(Math.abs(reference.mu - engine.phi[0])).toBeLessThan(1e-4);
+  });
 });
