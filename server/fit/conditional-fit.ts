@@ -3,7 +3,8 @@ import type { FitContext } from './covariance';
 import { resolveEdge } from './clip-edge';
 import { negativeLogLikelihood } from './likelihood';
 import { minimise, type Scratch } from './minimiser';
-import { edgeSampleBins } from './newton';
+import { EDGE_TOLERANCE, edgeSampleBins, templateSize } from './newton';
+import { evaluateYields } from './yields';
 import { startPoint } from './problem';
 import { mirroredStarts, movedBistable } from './basins';
 import { outOfBounds, profiledNll, warmRefit } from './warm-refit';
@@ -174,7 +175,23 @@ function ladder(
   const checked = (r: ConditionalResult): ConditionalResult => {
     if (index < 0) return r;
     let best = r;
-    if (movedBistable(ctx, r.phi)) best = lower(best, warmFromMinimum());
+    // Newton from the model's start values with φ_i held: the start of the cold fit the result is
+    // checked against, and the one symmetric start between the basins of a same-side parameter.
+    let triedStart = false;
+    const fromStartValues = () => {
+      triedStart = true;
+      const s = startPoint(m);
+      return newton('cold', s.phi, s.gamma);
+    };
+    // A same-side parameter moved far, or a template that the refit took across the clip edge
+    // (clipped at the refit's minimum, not at the context's): the path from φ̂ may have followed
+    // one basin while another, lower one exists. Both other starts are tried.
+    const moved = movedBistable(ctx, r.phi);
+    const crossed = !moved && newlyClipped(ctx, r.phi, r.gamma, scratch);
+    if (moved || crossed) {
+      best = lower(best, warmFromMinimum());
+      best = lower(best, fromStartValues());
+    }
     // A q far above the quadratic model's, Δ²/V_ii, is the mark of a minimum in another basin
     // (a template taken across the clip edge, say): Newton from the minimum is tried as well.
     // Only within 3σ: further out (q0, limits) the quadratic model is no yardstick.
@@ -191,10 +208,7 @@ function ladder(
       if (e.status === 'edge' || e.status === 'converged') best = lower(best, { ...best, nll: e.nll, phi: e.phi, gamma: e.gamma, decrement: e.decrement });
     }
     // Still far above the quadratic model: the fit from the model's start values too.
-    if (suspicious()) {
-      const s = startPoint(m);
-      best = lower(best, newton('cold', s.phi, s.gamma));
-    }
+    if (!triedStart && suspicious()) best = lower(best, fromStartValues());
     for (const start of mirroredStarts(ctx, conditional, index, best.phi, best.gamma, best.nll, scratch).slice(0, 2)) {
       const again = warmRefit(ctx, conditional, idx, index, start.phi, start.gamma, scratch, tolerance, maxSteps);
       work.steps += again.steps;
@@ -215,6 +229,45 @@ function ladder(
   const fromStart = newton('cold', s.phi, s.gamma);
   if (fromStart) return fromStart;
   return { ok: false, nll: NaN, phi, gamma, rung: null, decrement: NaN, work, message: `no rung converged (warm: ${w.message ?? 'failed'})` };
+}
+
+/** Whether each sample-bin that shape effects can move sits on or past the clip edge at a point (A ≤ EDGE_TOLERANCE × its size). */
+function clipSides(problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch): Uint8Array | null {
+  const m = problem.model;
+  evaluateYields(m, phi, gamma, scratch.ws);
+  let out: Uint8Array | null = null;
+  for (let s = 0; s < m.nSamples; s++) {
+    if (!m.sampleInFit[s] || m.shapePtr[s] === m.shapePtr[s + 1]) continue;
+    const sb0 = m.sampleBinStart[s];
+    for (let j = 0; j < m.sampleNBins[s]; j++) {
+      const size = templateSize(m, s, j);
+      if (size > 0 && scratch.ws.A[sb0 + j] <= EDGE_TOLERANCE * size) (out ??= new Uint8Array(m.nominal.length))[sb0 + j] = 1;
+    }
+  }
+  return out;
+}
+
+/** The clipped sample-bins at a context's minimum (null for none), once per context. */
+const contextClips = new WeakMap<FitContext, { sides: Uint8Array | null }>();
+
+/**
+ * A template clipped at (φ, γ) that is not clipped at the context's minimum: the refit crossed
+ * the clip edge, where the NLL has a kink and the basin of another minimum may begin (the
+ * template's yield held at zero over a stretch of θ makes a valley of its own). A model
+ * without shape effects, or whose templates stay clear of the edge, never triggers it.
+ */
+function newlyClipped(ctx: FitContext, phi: Float64Array, gamma: Float64Array, scratch: Scratch): boolean {
+  const m = ctx.problem.model;
+  if (m.shapePtr[m.nSamples] === 0) return false;
+  let known = contextClips.get(ctx);
+  if (!known) {
+    known = { sides: clipSides(ctx.problem, ctx.phi, ctx.gamma, scratch) };
+    contextClips.set(ctx, known);
+  }
+  const here = clipSides(ctx.problem, phi, gamma, scratch);
+  if (!here) return false;
+  for (let k = 0; k < here.length; k++) if (here[k] && !known.sides?.[k]) return true;
+  return false;
 }
 
 /** The templates on the clip edge at a context's minimum (none for most), once per context. */
