@@ -25,7 +25,7 @@ describe('an analyst freezes a version, runs a fit and reads every review screen
     await page.getByLabel('Note').fill('Review fit');
     await page.getByRole('button', { name: 'Freeze model version' }).click();
     await page.getByRole('list', { name: 'Model versions' }).getByText('Review fit').waitFor();
-    await page.getByLabel('Label').fill('observed, full impacts');
+    await page.getByLabel('Label', { exact: true }).fill('observed, full impacts');
     await page.getByLabel('Full', { exact: true }).check();
     await page.getByLabel('Profile-likelihood scan of μ').check();
     await page.getByLabel('95 % CL upper limit on μ (CLs)').check();
