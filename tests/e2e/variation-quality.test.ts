@@ -106,11 +106,11 @@ describe('a systematics contact checks the precision of a variation, smooths it,
     await page.getByRole('button', { name: /^Save \d+ effects$/ }).click();
     const status = page.getByRole('status').filter({ hasText: 'Saved the principal components' });
     await status.waitFor();
-    await status.getByRole('link', { name: `${KEY}_pc2` }).click();
+    await status.getByRole('link', { name: `${KEY}_pc2`, exact: true }).click();
     await page.waitForURL(new RegExp(`/entries/${KEY}_pc2$`));
     await page.getByRole('article', { name: 'Effect on CR-shower × continuum' }).waitFor();
     await page.goto(`${live.server.url}/a/${SLUG}/register`);
-    await page.getByRole('table', { name: 'Register entries' }).getByRole('link', { name: `${KEY}_pc2` }).waitFor();
+    await page.getByRole('table', { name: 'Register entries' }).getByRole('link', { name: `${KEY}_pc2`, exact: true }).waitFor();
     await screenshot(page, 'register-with-component');
   });
 });
