@@ -169,6 +169,32 @@ function ladder(
     work.products += again.products;
     return again.ok ? { ok: true, nll: again.nll, phi: start, gamma: g, rung: 'cold', decrement: again.decrement, work, message: null } : newton('cold', ctx.phi, ctx.gamma);
   };
+  // Continuation from the context's minimum (Nocedal & Wright, §11.3): φ_i moved to the value in
+  // steps of at most 0.1, each a Newton fit from the previous minimum, so that the minimum is
+  // followed into the valley it reaches where a template's yield is clipped, or into the other
+  // basin of a same-side parameter, which neither the minimum nor the start values may lie in
+  // (the refit-agreement suite's edge models). Nuisance parameters only, and moves of at most 3:
+  // an impact's refit, not a far μ of a limit or q0.
+  const walkFromMinimum = (): ConditionalResult | null => {
+    if (index < m.thetaStart) return null;
+    const from = ctx.phi[index];
+    if (Math.abs(value - from) > 3) return null;
+    const steps = Math.max(2, Math.ceil(Math.abs(value - from) / 0.1));
+    let at: { phi: Float64Array; gamma: Float64Array } = { phi: Float64Array.from(ctx.phi), gamma: Float64Array.from(ctx.gamma) };
+    let last: ConditionalResult | null = null;
+    for (let k = 1; k <= steps; k++) {
+      const start = Float64Array.from(at.phi);
+      start[index] = k === steps ? value : from + (k / steps) * (value - from);
+      // the steps on the way need only follow the valley; the last meets the stop test
+      const r = minimise(conditional, start, at.gamma, scratch, { tolerance: k === steps ? tolerance : Math.max(tolerance, 1e-6) });
+      work.newtonIterations += r.iterations;
+      work.gradients += r.iterations + 1;
+      if (r.status !== 'converged' && r.status !== 'edge') return null;
+      at = { phi: r.phi, gamma: r.gamma };
+      if (k === steps) last = { ok: true, nll: r.nll, phi: r.phi, gamma: r.gamma, rung: 'cold', decrement: r.decrement, work, message: r.message };
+    }
+    return last;
+  };
   // Where the model has same-side effects, the minimum found may sit in one of two basins of
   // such a parameter; the other is looked for (basins.ts) and the lower NLL kept.
   const lower = (a: ConditionalResult, b: ConditionalResult | null) => (b && b.nll < a.nll - 1e-12 * (1 + Math.abs(a.nll)) ? b : a);
@@ -191,6 +217,7 @@ function ladder(
     if (moved || crossed) {
       best = lower(best, warmFromMinimum());
       best = lower(best, fromStartValues());
+      best = lower(best, walkFromMinimum());
     }
     // A q far above the quadratic model's, Δ²/V_ii, is the mark of a minimum in another basin
     // (a template taken across the clip edge, say): Newton from the minimum is tried as well.

@@ -37,7 +37,7 @@ const edge = (size: 'tiny' | 'small', seed: number): AgreementCase => ({ label: 
 const benchmark = (size: 'small' | 'medium' | 'large', seed: number): AgreementCase => ({ label: `benchmark ${size} seed ${seed}`, build: () => syntheticModel(size, seed) });
 
 /** The seeded slice that runs in `npm test` (a few seconds). */
-export const AGREEMENT_SLICE: AgreementCase[] = [...seeds(1, 4).map((s) => stress('tiny', s)), stress('small', 1), stress('small', 4), edge('tiny', 2), edge('tiny', 6)];
+export const AGREEMENT_SLICE: AgreementCase[] = [...seeds(1, 4).map((s) => stress('tiny', s)), stress('small', 1), stress('small', 4), edge('tiny', 2), edge('tiny', 5), edge('tiny', 6), edge('small', 4)];
 
 /** The full set of `npm run check:refits`. */
 export const AGREEMENT_FULL: AgreementCase[] = [
