@@ -1,4 +1,5 @@
 import type { ReactNode } from 'react';
+import { Badge } from '../ui/badge';
 import type { RowData } from '@tanstack/react-table';
 import { DataTable, dataColumns, type DataColumn } from '../ui/data-table';
 import { decimalsFor, formatFixed, formatSigned } from '../../lib/stats-format';
@@ -172,4 +173,38 @@ export function RefitWarnings({ warnings }: { warnings: string[] }) {
       </ul>
     </details>
   );
+}
+
+/**
+ * The state of a check's refit in words, beside its numbers (only a converged refit has any).
+ * `change` says what was refitted, e.g. "with this upload" or "without the selection".
+ */
+export function RefitStateBadge({ state, change }: { state: 'running' | 'done' | 'failed' | 'withheld'; change: string }) {
+  switch (state) {
+    case 'running':
+      return (
+        <Badge tone="amber" title={`The server is refitting the compared fit's configuration ${change}`}>
+          <span aria-hidden className="size-2.5 animate-spin rounded-full border-2 border-current border-r-transparent" />
+          Refitting
+        </Badge>
+      );
+    case 'done':
+      return (
+        <Badge tone="teal" title={`The refit ${change} reached the minimiser's stopping rule and its covariance is positive definite`}>
+          Refit converged
+        </Badge>
+      );
+    case 'failed':
+      return (
+        <Badge tone="danger" title="The refit did not give a result: no number is shown">
+          Refit failed
+        </Badge>
+      );
+    case 'withheld':
+      return (
+        <Badge tone="plum" title="Blinding: the compared fit read a region that is blinded now">
+          Withheld
+        </Badge>
+      );
+  }
 }

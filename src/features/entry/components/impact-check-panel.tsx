@@ -1,43 +1,11 @@
 import { Link } from 'react-router';
 import type { ImpactCheck } from '@shared/schemas/register';
-import { Badge } from '../../../components/ui/badge';
-import { BeforeAfter, MovedParameters, RefitWarnings, SignalStrengthChange } from '../../../components/status/refit-change';
+import { BeforeAfter, MovedParameters, RefitStateBadge, RefitWarnings, SignalStrengthChange } from '../../../components/status/refit-change';
 import { fitName, fitPath } from '../../../lib/fits';
 import { formatDateTime } from '../../../lib/format';
 import { formatSigned } from '../../../lib/stats-format';
 
 type Focus = ImpactCheck['focus'][number];
-
-/** The state of the check in words, beside its numbers: only a converged refit has any. */
-function CheckState({ check }: { check: ImpactCheck }) {
-  switch (check.state) {
-    case 'running':
-      return (
-        <Badge tone="amber" title="The server is refitting the compared fit's configuration with this upload">
-          <span aria-hidden className="size-2.5 animate-spin rounded-full border-2 border-current border-r-transparent" />
-          Refitting
-        </Badge>
-      );
-    case 'done':
-      return (
-        <Badge tone="teal" title="The refit reached the minimiser's stopping rule and its covariance is positive definite">
-          Refit converged
-        </Badge>
-      );
-    case 'failed':
-      return (
-        <Badge tone="danger" title="The refit did not give a result: no number is shown">
-          Refit failed
-        </Badge>
-      );
-    case 'withheld':
-      return (
-        <Badge tone="plum" title="Blinding: the compared fit read a region that is blinded now">
-          Withheld
-        </Badge>
-      );
-  }
-}
 
 function Impact({ impact }: { impact: Focus['impact'] }) {
   if (!impact) return <span title="No impact on μ: the compared fit holds μ or hides it">–</span>;
@@ -143,7 +111,7 @@ export function ImpactCheckPanel({ slug, check }: { slug: string; check: ImpactC
   return (
     <div className="flex flex-col gap-3">
       <p className="flex flex-wrap items-center gap-x-3 gap-y-1 text-xs text-ink-muted">
-        <CheckState check={check} />
+        <RefitStateBadge state={check.state} change="with this upload" />
         {check.state === 'done' && <RefitWarnings warnings={check.warnings} />}
         {check.fit ? (
           <span>

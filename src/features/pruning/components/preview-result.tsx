@@ -1,39 +1,8 @@
 import { Link } from 'react-router';
 import type { PruningPreview } from '@shared/schemas/register';
-import { Badge } from '../../../components/ui/badge';
-import { MovedParameters, RefitWarnings, SignalStrengthChange } from '../../../components/status/refit-change';
+import { MovedParameters, RefitStateBadge, RefitWarnings, SignalStrengthChange } from '../../../components/status/refit-change';
 import { fitName, fitPath } from '../../../lib/fits';
 import { plural } from '../../../lib/format';
-
-function State({ preview }: { preview: PruningPreview }) {
-  switch (preview.state) {
-    case 'running':
-      return (
-        <Badge tone="amber" title="The server is refitting the compared fit's configuration without the selection">
-          <span aria-hidden className="size-2.5 animate-spin rounded-full border-2 border-current border-r-transparent" />
-          Refitting
-        </Badge>
-      );
-    case 'done':
-      return (
-        <Badge tone="teal" title="The refit without the selection reached the minimiser's stopping rule and its covariance is positive definite">
-          Refit converged
-        </Badge>
-      );
-    case 'failed':
-      return (
-        <Badge tone="danger" title="The refit did not give a result: no number is shown">
-          Refit failed
-        </Badge>
-      );
-    case 'withheld':
-      return (
-        <Badge tone="plum" title="Blinding: the compared fit read a region that is blinded now">
-          Withheld
-        </Badge>
-      );
-  }
-}
 
 /** What pruning the selection does to the compared fit: μ̂ and σ_μ, and every pull and constraint that moves. */
 export function PreviewResult({ slug, preview, stale }: { slug: string; preview: PruningPreview; stale: boolean }) {
@@ -41,7 +10,7 @@ export function PreviewResult({ slug, preview, stale }: { slug: string; preview:
   return (
     <section aria-label="What pruning changes" className="flex flex-col gap-3">
       <div className="flex flex-wrap items-center gap-2 text-xs text-ink-muted">
-        <State preview={preview} />
+        <RefitStateBadge state={preview.state} change="without the selection" />
         {preview.state === 'done' && <RefitWarnings warnings={preview.warnings} />}
         <span>
           {plural(preview.selection.length, 'effect')} ({dropped} left out, {preview.selection.length - dropped} kept as normalisation), compared with{' '}
