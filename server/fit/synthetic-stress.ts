@@ -1,6 +1,6 @@
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import { EXCHANGE_FORMAT, EXCHANGE_VERSION } from '@shared/schemas/exchange';
-import { createRandom } from './synthetic';
+import { createRandom, gaussian, poisson } from './synthetic';
 
 /**
  * Deterministic models that are hard on refits, for the refit-agreement suite: where the
@@ -45,27 +45,6 @@ export const EDGE_SIZES: Record<'tiny' | 'small', StressSpec> = {
   tiny: { ...STRESS_SIZES.tiny, tailKillers: 1 },
   small: { ...STRESS_SIZES.small, tailKillers: 1 },
 };
-
-function gaussian(rand: () => number): number {
-  const u = Math.max(rand(), 1e-300);
-  return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * rand());
-}
-
-/** Poisson draw: multiplication method below 30, rounded normal above (enough for test data). */
-function poisson(rand: () => number, mean: number): number {
-  if (mean <= 0) return 0;
-  if (mean < 30) {
-    const limit = Math.exp(-mean);
-    let k = 0;
-    let p = rand();
-    while (p > limit) {
-      k++;
-      p *= rand();
-    }
-    return k;
-  }
-  return Math.max(0, Math.round(mean + Math.sqrt(mean) * gaussian(rand)));
-}
 
 const GROUPS = ['detector', 'modelling', 'theory', 'background'];
 

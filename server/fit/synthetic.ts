@@ -40,13 +40,13 @@ export function createRandom(seed: number): () => number {
   };
 }
 
-function gaussian(rand: () => number): number {
+export function gaussian(rand: () => number): number {
   const u = Math.max(rand(), 1e-300);
   return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * rand());
 }
 
-/** Poisson draw: multiplication method below 30, rounded normal above (ample for a benchmark). */
-function poisson(rand: () => number, mean: number): number {
+/** Poisson draw: multiplication method below 30, rounded normal above (ample for a benchmark and test data). */
+export function poisson(rand: () => number, mean: number): number {
   if (mean <= 0) return 0;
   if (mean < 30) {
     const limit = Math.exp(-mean);
