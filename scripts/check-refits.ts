@@ -60,6 +60,7 @@ console.table(
     'refits cold': r.rungs.cold,
     'refits failed': r.rungs.failed,
     'reference: two minima': r.severalMinima,
+    "reference took engine's minimum": r.engineLower,
     'reference failed': r.referenceFailed,
   })),
 );

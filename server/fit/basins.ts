@@ -35,6 +35,11 @@ export function sameSideParameters(m: CompiledModel): Uint8Array {
   return out;
 }
 
+/** Whether any parameter has a same-side effect. */
+export function hasSameSide(m: CompiledModel): boolean {
+  return sameSideParameters(m).some((f) => f === 1);
+}
+
 /** How far (in units of the prior width) a same-side parameter may move before the other basin is checked. */
 const BISTABLE_MOVE = 0.25;
 /** Same-side parameters closer to 0 than this are their own mirror. */

@@ -6,7 +6,7 @@ import { minimise, type Scratch } from './minimiser';
 import { EDGE_TOLERANCE, edgeSampleBins, templateSize } from './newton';
 import { evaluateYields } from './yields';
 import { startPoint } from './problem';
-import { mirroredStarts, movedBistable } from './basins';
+import { hasSameSide, mirroredStarts, movedBistable } from './basins';
 import { outOfBounds, profiledNll, warmRefit } from './warm-refit';
 
 /**
@@ -218,6 +218,13 @@ function ladder(
       best = lower(best, warmFromMinimum());
       best = lower(best, fromStartValues());
       best = lower(best, walkFromMinimum());
+    } else if (hasSameSide(m)) {
+      // A model with same-side effects can have a lower conditional minimum in a basin that
+      // neither the path from φ̂ nor the linear response enters, though no parameter moved far:
+      // the two cold starts of the reference, Newton from φ̂ with φ_i moved and from the start
+      // values, are tried as well.
+      best = lower(best, newton('cold', ctx.phi, ctx.gamma));
+      best = lower(best, fromStartValues());
     }
     // A q far above the quadratic model's, Δ²/V_ii, is the mark of a minimum in another basin
     // (a template taken across the clip edge, say): Newton from the minimum is tried as well.
@@ -236,6 +243,14 @@ function ladder(
     }
     // Still far above the quadratic model: the fit from the model's start values too.
     if (!triedStart && suspicious()) best = lower(best, fromStartValues());
+    // A refit that ends with a template at the clip edge may have stopped at the kink short of
+    // the minimum (the edge's stop test is looser than the decrement's): Newton again from where
+    // it stands, while that lowers the NLL (the refit-agreement suite's edge models).
+    for (let round = 0; round < 3 && clipSides(conditional, best.phi, best.gamma, scratch); round++) {
+      const again = newton(best.rung ?? 'newton', best.phi, best.gamma);
+      if (!again || !(again.nll < best.nll - 1e-12 * (1 + Math.abs(best.nll)))) break;
+      best = again;
+    }
     for (const start of mirroredStarts(ctx, conditional, index, best.phi, best.gamma, best.nll, scratch).slice(0, 2)) {
       const again = warmRefit(ctx, conditional, idx, index, start.phi, start.gamma, scratch, tolerance, maxSteps);
       work.steps += again.steps;

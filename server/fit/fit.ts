@@ -20,6 +20,12 @@ export interface FitControl {
   onProgress?: (fraction: number, stage: string) => void;
   signal?: AbortSignal;
   pool?: FitPool;
+  /**
+   * For checks of the refits (the refit-agreement suite): fix and crossing tasks keep the
+   * conditional minimum they found, and `inspect` receives every task with its result.
+   */
+  keepPoints?: boolean;
+  inspect?: (tasks: RefitTask[], results: RefitResult[]) => void;
 }
 
 const LIMIT_CL = 0.95;
@@ -103,7 +109,7 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   const P = m.nDense;
   const contexts: FitContext[] = [ctx];
   const tasks: RefitTask[] = [];
-  const push = (task: RefitTask) => tasks.push(task) - 1;
+  const push = (task: RefitTask) => tasks.push(control.keepPoints && (task.kind === 'fix' || task.kind === 'crossing') ? { ...task, keepPoint: true } : task) - 1;
 
   // Asimov datasets for the expected significance (μ = 1) and the limit (μ = 0): pre-fit, or
   // built on the reference fit (§9.5), whose minimum is then known to be the reference point
@@ -181,6 +187,7 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
   const gammaVariances = Array.from({ length: m.nGamma }, (_, g) => gammaVariance(ctx, g));
   const results = [...(await firstRun), ...(await secondRun)];
   throwIfAborted(signal);
+  control.inspect?.(tasks, results);
   const refits = countRefits(results);
   if (refits.failed > 0) warnings.push(`${refits.failed} conditional fit(s) failed on every rung (warm, Newton, cold); the outputs that need them are left empty.`);
   lowerMinimumWarning(tasks, results, contexts, warnings);

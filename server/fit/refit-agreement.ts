@@ -1,6 +1,7 @@
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitResult } from '@shared/schemas/fit';
 import { fitModel } from './fit';
+import type { ConditionalPoint, RefitResult, RefitTask } from './refit-tasks';
 import { noRefits, type RefitCounts } from './refit-tasks';
 import type { FitPool } from './refit-batches';
 import { buildProblem } from './problem';
@@ -37,7 +38,7 @@ const edge = (size: 'tiny' | 'small', seed: number): AgreementCase => ({ label: 
 const benchmark = (size: 'small' | 'medium' | 'large', seed: number): AgreementCase => ({ label: `benchmark ${size} seed ${seed}`, build: () => syntheticModel(size, seed) });
 
 /** The seeded slice that runs in `npm test` (a few seconds). */
-export const AGREEMENT_SLICE: AgreementCase[] = [...seeds(1, 4).map((s) => stress('tiny', s)), stress('small', 1), stress('small', 4), edge('tiny', 2), edge('tiny', 5), edge('tiny', 6), edge('small', 4)];
+export const AGREEMENT_SLICE: AgreementCase[] = [...seeds(1, 4).map((s) => stress('tiny', s)), stress('small', 1), stress('small', 4), edge('tiny', 2), edge('tiny', 5), edge('tiny', 6), edge('small', 4), edge('small', 2)];
 
 /** The full set of `npm run check:refits`. */
 export const AGREEMENT_FULL: AgreementCase[] = [
@@ -73,6 +74,8 @@ export interface AgreementRow {
   referenceFailed: number;
   /** Compared outputs where the reference's two cold fits reached different minima (it keeps the lower). */
   severalMinima: number;
+  /** Compared outputs where Newton from the engine's conditional minimum went lower than every start of the reference's own. */
+  engineLower: number;
   details: Disagreement[];
   seconds: { engine: number; reference: number };
 }
@@ -90,7 +93,20 @@ let modelCount = 0;
 
 export async function checkRefitAgreement(label: string, model: ExchangeModel, control: AgreementControl = {}): Promise<AgreementRow> {
   let t = performance.now();
-  const result = await fitModel(model, { impacts: 'full', scan: true, limit: true, expected: false }, { pool: control.pool });
+  // The engine's conditional minima, by what they are for: the reference re-minimises from each
+  // as one more start (refit-reference.ts).
+  const points = new Map<string, ConditionalPoint>();
+  const inspect = (tasks: RefitTask[], results: RefitResult[]) =>
+    tasks.forEach((task, k) => {
+      const r = results[k];
+      if (task.context !== 0) return;
+      if (task.kind === 'fix') {
+        if (r.point) points.set(`fix ${task.index} ${task.value}`, r.point);
+        if (task.next !== undefined && r.next?.point) points.set(`fix ${task.index} ${task.next}`, r.next.point);
+      }
+      if (task.kind === 'crossing' && task.index === 0 && r.point) points.set(`crossing ${task.level} ${task.direction}`, r.point);
+    });
+  const result = await fitModel(model, { impacts: 'full', scan: true, limit: true, expected: false }, { pool: control.pool, keepPoints: true, inspect });
   const engineSeconds = (performance.now() - t) / 1000;
   control.adjust?.(result);
   const row: AgreementRow = {
@@ -102,6 +118,7 @@ export async function checkRefitAgreement(label: string, model: ExchangeModel, c
     rungs: result.convergence.refits ?? noRefits(),
     referenceFailed: 0,
     severalMinima: 0,
+    engineLower: 0,
     details: [],
     seconds: { engine: engineSeconds, reference: 0 },
   };
@@ -110,7 +127,7 @@ export async function checkRefitAgreement(label: string, model: ExchangeModel, c
   const problem = buildProblem(model, REFERENCE_PROBLEM);
   const m = problem.model;
   const clip = (i: number, v: number) => Math.min(m.upper[i], Math.max(m.lower[i], v));
-  const checks: { fix: [number, number]; judge: (ref: ColdFit, best: ColdFit) => void }[] = [];
+  const checks: { fix: [number, number]; start?: ConditionalPoint; judge: (ref: ColdFit, best: ColdFit) => void }[] = [];
   const compare = (what: string, engine: number | null, reference: number, tolerance: number) => {
     row.compared++;
     if (engine === null) {
@@ -145,6 +162,7 @@ export async function checkRefitAgreement(label: string, model: ExchangeModel, c
     for (const [what, v, engine] of sides) {
       checks.push({
         fix: [i, clip(i, v)],
+        start: points.get(`fix ${i} ${clip(i, v)}`),
         judge: (ref, best) => {
           const delta = ref.mu - best.mu;
           compare(`${n.name} ${what}`, engine, delta, Math.max(1e-5, 2e-3 * Math.abs(delta)));
@@ -158,14 +176,15 @@ export async function checkRefitAgreement(label: string, model: ExchangeModel, c
   if (scan) {
     const muHat = result.summary!.mu.value;
     const crossings = [
-      ['68 % low', Q68, scan.crossings68.low, m.lower[0]],
-      ['68 % high', Q68, scan.crossings68.high, m.upper[0]],
-      ['95 % low', Q95, scan.crossings95?.low ?? null, m.lower[0]],
-      ['95 % high', Q95, scan.crossings95?.high ?? null, m.upper[0]],
+      ['68 % low', Q68, scan.crossings68.low, m.lower[0], -1],
+      ['68 % high', Q68, scan.crossings68.high, m.upper[0], 1],
+      ['95 % low', Q95, scan.crossings95?.low ?? null, m.lower[0], -1],
+      ['95 % high', Q95, scan.crossings95?.high ?? null, m.upper[0], 1],
     ] as const;
-    for (const [what, level, x, bound] of crossings) {
+    for (const [what, level, x, bound, direction] of crossings) {
       checks.push({
         fix: [0, x ?? bound],
+        start: x === null ? undefined : points.get(`crossing ${level} ${direction}`),
         judge: (ref, best) => {
           const q = 2 * (ref.nll - best.nll);
           if (x === null) {
@@ -184,11 +203,11 @@ export async function checkRefitAgreement(label: string, model: ExchangeModel, c
   // q0 through Z.
   const q0 = result.summary!.discovery;
   if (q0 && result.summary!.mu.value > 0) {
-    checks.push({ fix: [0, 0], judge: (ref, best) => compare('Z = √q0', Math.sqrt(q0.q0), Math.sqrt(Math.max(0, 2 * (ref.nll - best.nll))), 1e-3) });
+    checks.push({ fix: [0, 0], start: points.get('fix 0 0'), judge: (ref, best) => compare('Z = √q0', Math.sqrt(q0.q0), Math.sqrt(Math.max(0, 2 * (ref.nll - best.nll))), 1e-3) });
   }
 
   t = performance.now();
-  const fixes: [number, number][] = [[-1, 0], ...checks.map((c) => c.fix)];
+  const fixes: ColdFitTask['fixes'] = [[-1, 0], ...checks.map((c): ColdFitTask['fixes'][number] => (c.start ? [...c.fix, c.start.phi, c.start.gamma] : c.fix))];
   const key = `agreement-${process.pid}-${++modelCount}`;
   const run = control.reference ?? (async (task: ColdFitTask) => runColdFits(task));
   const batches: Promise<ColdFit[]>[] = [];
@@ -208,6 +227,7 @@ export async function checkRefitAgreement(label: string, model: ExchangeModel, c
       return;
     }
     if (ref.twoMinima) row.severalMinima++;
+    if (ref.engineLower) row.engineLower++;
     c.judge(ref, best);
   });
   return row;

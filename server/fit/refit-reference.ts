@@ -22,6 +22,11 @@ export interface ColdFit {
   decrement: number;
   /** The cold fits from the two starts reached different minima (NLLs more than 1e-6 apart). */
   twoMinima: boolean;
+  /**
+   * Newton from the engine's own conditional minimum (when given) reached a lower NLL than every
+   * start of the reference's own, by more than 1e-9 relative: the reference had missed that minimum.
+   */
+  engineLower: boolean;
   message: string | null;
 }
 
@@ -64,7 +69,7 @@ function coldAlong(problem: FitProblem, index: number, from: number, value: numb
   return coldAlong(problem, index, mid, value, { phi: half.phi, gamma: half.gamma }, scratch, depth + 1);
 }
 
-export function coldFit(problem: FitProblem, index: number, value: number, scratch: Scratch = createScratch(problem), best: Start | null = null): ColdFit {
+export function coldFit(problem: FitProblem, index: number, value: number, scratch: Scratch = createScratch(problem), best: Start | null = null, engine: Start | null = null): ColdFit {
   const fromStart = coldFrom(problem, index, value, startPoint(problem.model), scratch);
   const fromBest = best && index >= 0 ? coldAlong(problem, index, best.phi[index], value, best, scratch) : null;
   const runs = [fromStart, fromBest].filter((r) => r?.ok) as NonNullable<typeof fromBest>[];
@@ -87,10 +92,17 @@ export function coldFit(problem: FitProblem, index: number, value: number, scrat
       if (path?.ok) runs.push(path);
     }
   }
-  if (runs.length === 0) return { ok: false, nll: NaN, mu: NaN, decrement: NaN, twoMinima: false, message: fromStart.message };
-  const lowest = runs.reduce((a, b) => (b.nll < a.nll ? b : a));
-  const twoMinima = runs.length >= 2 && runs.some((r) => Math.abs(r.nll - lowest.nll) > 1e-6 * (1 + Math.abs(lowest.nll)));
-  return { ok: true, nll: lowest.nll, mu: lowest.phi[0], decrement: lowest.decrement, twoMinima, message: null };
+  // The engine's own conditional minimum as one more start: the profile is the lowest minimum
+  // anyone finds, and a minimum the engine reached by following its refits from one value to the
+  // next may lie in a basin none of the starts above enters. The reference minimises from there
+  // itself, with its own NLL and Newton steps, so the point counts only as the minimum it leads to.
+  const viaEngine = engine ? coldFrom(problem, index, value, engine, scratch) : null;
+  if (runs.length === 0 && !viaEngine?.ok) return { ok: false, nll: NaN, mu: NaN, decrement: NaN, twoMinima: false, engineLower: false, message: fromStart.message };
+  const own = runs.length > 0 ? runs.reduce((a, b) => (b.nll < a.nll ? b : a)) : null;
+  const engineLower = !!viaEngine?.ok && (!own || viaEngine.nll < own.nll - 1e-9 * (1 + Math.abs(own.nll)));
+  const lowest = engineLower ? viaEngine! : own!;
+  const twoMinima = runs.length >= 2 && runs.some((r) => Math.abs(r.nll - own!.nll) > 1e-6 * (1 + Math.abs(own!.nll)));
+  return { ok: true, nll: lowest.nll, mu: lowest.phi[0], decrement: lowest.decrement, twoMinima, engineLower, message: null };
 }
 
 /** Sample-bins whose template (nominal > 0) is clipped, A ≤ 0, at a point. */
@@ -109,11 +121,14 @@ function newClips(problem: FitProblem, best: Start, r: Start, scratch: Scratch):
   return false;
 }
 
-/** A batch of cold fits of one model, as a worker receives it: [parameter index, value] pairs (index −1: nothing held). */
+/**
+ * A batch of cold fits of one model, as a worker receives it: [parameter index, value] pairs
+ * (index −1: nothing held), each optionally with the engine's conditional minimum [φ, γ] as one more start.
+ */
 export interface ColdFitTask {
   key: string;
   model: ExchangeModel;
-  fixes: [number, number][];
+  fixes: ([number, number] | [number, number, number[], number[]])[];
 }
 
 const prepared = new Map<string, { problem: FitProblem; scratch: Scratch; best: Start | null }>();
@@ -130,7 +145,7 @@ export function runColdFits(task: ColdFitTask): ColdFit[] {
     while (prepared.size > 3) prepared.delete(prepared.keys().next().value!);
   }
   const { problem, scratch, best } = entry;
-  return task.fixes.map(([index, value]) => coldFit(problem, index, value, scratch, best));
+  return task.fixes.map(([index, value, phi, gamma]) => coldFit(problem, index, value, scratch, best, phi && gamma ? { phi: Float64Array.from(phi), gamma: Float64Array.from(gamma) } : null));
 }
 
 /**

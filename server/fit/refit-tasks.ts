@@ -14,9 +14,9 @@ export type RefitTask =
    * same parameter is then fixed at that value too, starting from the first conditional minimum
    * (post- and pre-fit impacts of one direction: θ̂ + σ̂ and θ̂ + 1 are close).
    */
-  | { kind: 'fix'; context: number; index: number; value: number; next?: number }
+  | { kind: 'fix'; context: number; index: number; value: number; next?: number; keepPoint?: boolean }
   /** Where 2ΔNLL = level on one side of the minimum (null past the bound). */
-  | { kind: 'crossing'; context: number; index: number; level: number; direction: 1 | -1 }
+  | { kind: 'crossing'; context: number; index: number; level: number; direction: 1 | -1; keepPoint?: boolean }
   /** Expected CLs limit at N σ of the background-only distribution (Asimov context). */
   | { kind: 'expected-limit'; context: number; n: number; cl: number }
   /** Observed CLs limit (observed context, background-only Asimov context). */
@@ -54,7 +54,21 @@ export interface RefitResult {
   work?: RefitWork & { rung: ConditionalResult['rung'] };
   /** The result at the task's `next` value. */
   next?: RefitResult;
+  /**
+   * With `keepPoint`: the conditional minimum the result comes from (for a crossing, the last
+   * one the root search found, at a value within its tolerance of the root). For checks that
+   * re-minimise from it (the refit-agreement suite); not kept otherwise.
+   */
+  point?: ConditionalPoint;
 }
+
+export interface ConditionalPoint {
+  value: number;
+  phi: number[];
+  gamma: number[];
+}
+
+const pointOf = (w: WarmStart | null | undefined): ConditionalPoint | undefined => (w ? { value: w.value, phi: Array.from(w.phi), gamma: Array.from(w.gamma) } : undefined);
 
 export class Refitter {
   private scratch = new Map<number, Scratch>();
@@ -111,16 +125,19 @@ export class Refitter {
     switch (task.kind) {
       case 'fix': {
         const first = this.fix(task.context, task.index, task.value, null);
-        if (task.next === undefined) return first.result;
+        const firstResult = task.keepPoint ? { ...first.result, point: pointOf(first.warm) } : first.result;
+        if (task.next === undefined) return firstResult;
         const counts = this.counts;
         this.counts = noRefits();
         const next = this.fix(task.context, task.index, task.next, first.warm);
-        const nextResult = { ...next.result, refits: this.counts };
+        const nextResult = { ...next.result, refits: this.counts, ...(task.keepPoint ? { point: pointOf(next.warm) } : {}) };
         this.counts = counts;
-        return { ...first.result, next: nextResult };
+        return { ...firstResult, next: nextResult };
       }
-      case 'crossing':
-        return this.crossing(task.context, task.index, task.level, task.direction);
+      case 'crossing': {
+        const result = this.crossing(task.context, task.index, task.level, task.direction);
+        return task.keepPoint ? { ...result, point: pointOf(this.warm.get(task.context)) } : result;
+      }
       case 'expected-limit':
         return this.expectedLimit(task.context, task.n, task.cl);
       case 'observed-limit':
