@@ -1,11 +1,12 @@
-import type { ExchangeModel } from '@shared/schemas/exchange';
+import type { ExchangeHypothesis, ExchangeModel } from '@shared/schemas/exchange';
 import { EXCHANGE_FORMAT, EXCHANGE_VERSION } from '@shared/schemas/exchange';
 
 /**
  * Deterministic synthetic models for benchmarks and tests: falling background spectra, a
  * signal peak, control regions enriched in the backgrounds that float, 1–10 % scale effects,
  * few-% shape effects and template variances; data drawn from the model at μ = 1 with a
- * seeded generator.
+ * seeded generator. Optionally, signal hypotheses: the same peak at N masses across the
+ * observable's range (docs/fit-engine.md, "Scan over signal hypotheses").
  */
 
 export type SyntheticSize = 'tiny' | 'small' | 'medium' | 'large';
@@ -63,8 +64,24 @@ export function poisson(rand: () => number, mean: number): number {
 
 const GROUPS = ['jets', 'leptons', 'theory', 'flavour', 'luminosity'];
 
-export function syntheticModel(size: SyntheticSize | SyntheticSpec, seed = 1): ExchangeModel {
+export interface SyntheticOptions {
+  /**
+   * Signal hypotheses: the signal peak at this many masses spread over the observable's range,
+   * each with its own templates and, where the model's signal has a shape effect, that effect
+   * for its own peak. The model's own signal is one of them (the middle one), so its templates,
+   * effects and data are those of the model without hypotheses, except that no signal template
+   * carries a variance (see `signalHypotheses` below). 0: none.
+   */
+  hypotheses?: number;
+}
+
+/** The peak's width and height, in units of the observable's range (x in [0, 1]) and events. */
+const PEAK_WIDTH = 0.1;
+const peakAt = (x: number, centre: number, B: number) => Math.exp(-0.5 * ((x - centre) / PEAK_WIDTH) ** 2) * (B === 1 ? 10 : 40);
+
+export function syntheticModel(size: SyntheticSize | SyntheticSpec, seed = 1, options: SyntheticOptions = {}): ExchangeModel {
   const spec = typeof size === 'string' ? SYNTHETIC_SIZES[size] : size;
+  const nHypotheses = options.hypotheses ?? 0;
   const rand = createRandom(seed);
   const B = spec.bins;
   const regions = Array.from({ length: spec.regions }, (_, r) => ({
@@ -90,7 +107,7 @@ export function syntheticModel(size: SyntheticSize | SyntheticSpec, seed = 1): E
         const x = B === 1 ? 0.5 : j / (B - 1);
         let v: number;
         if (p === 0) {
-          const peak = Math.exp(-0.5 * ((x - 0.5) / 0.1) ** 2) * (B === 1 ? 10 : 40);
+          const peak = peakAt(x, 0.5, B);
           v = isSignal ? peak : 0.02 * peak;
         } else {
           const amplitude = (B === 1 ? 50 : 400) / p;
@@ -108,7 +125,7 @@ export function syntheticModel(size: SyntheticSize | SyntheticSpec, seed = 1): E
         region: regions[r].key,
         process: processes[p].key,
         nominal: values,
-        ...(withVariance ? { variance: values.map((v) => v * weight) } : {}),
+        ...(withVariance && !(nHypotheses > 0 && p === 0) ? { variance: values.map((v) => v * weight) } : {}),
       });
     }
   }
@@ -123,6 +140,8 @@ export function syntheticModel(size: SyntheticSize | SyntheticSpec, seed = 1): E
 
   // Systematics: each touches 1–3 processes in every region; 70 % scale, 20 % shape, 10 % both.
   const systematics = [];
+  /** The signal's shape effects, by systematic: their slope, for the hypotheses' own peaks. */
+  const signalShapes: { systematic: string; slope: number }[] = [];
   for (let i = 0; i < spec.systematics; i++) {
     const nTouched = 1 + Math.floor(rand() * Math.min(3, spec.processes));
     const touched = new Set<number>();
@@ -144,6 +163,7 @@ export function syntheticModel(size: SyntheticSize | SyntheticSpec, seed = 1): E
           effects.push({ region: region.key, process: processes[p].key, kind: 'shape' as const, up, down });
         }
       }
+      if (p === 0 && kind >= 0.7) signalShapes.push({ systematic: `syst${i}`, slope });
     }
     systematics.push({ key: `syst${i}`, group: GROUPS[i % GROUPS.length], effects });
   }
@@ -165,5 +185,60 @@ export function syntheticModel(size: SyntheticSize | SyntheticSpec, seed = 1): E
     floatingNorms,
     templates,
     systematics,
+    ...(nHypotheses > 0 ? { signalHypotheses: signalHypotheses(nHypotheses, regions, spec.signalRegions, B, signalShapes) } : {}),
   };
+}
+
+/**
+ * N hypotheses of the peak's position: centres x_i = 0.5 + (i − i₀)·δ, i₀ = ⌊(N − 1)/2⌋, with the
+ * step δ = 0.45/max(i₀, N − 1 − i₀), so that they lie in [0.05, 0.95] of the range (and span it
+ * for odd N) and hypothesis i₀ is the model's own peak (x = 0.5). The value is the mass at the
+ * centre, in the observable's unit; every signal template of the model is replaced (the control
+ * regions' 2 % contamination too), and each shape effect of the signal gets the same tilt of
+ * the hypothesis's peak. No draw of the generator is used, so the rest of the model is the same.
+ *
+ * No signal template carries a variance (the model's own included): a template variance enters
+ * the relative width σ_rb of the bin's γ, so signal templates with variances would give every
+ * hypothesis a different likelihood even at μ = 0, and background-only pseudo-experiments could
+ * not share one fit at μ = 0 across the scan (hypotheses.ts checks this and falls back to one such
+ * fit per group of hypotheses that agree).
+ */
+function signalHypotheses(
+  n: number,
+  regions: { key: string; edges: number[] }[],
+  signalRegions: number,
+  B: number,
+  shapes: { systematic: string; slope: number }[],
+): NonNullable<ExchangeModel['signalHypotheses']> {
+  const i0 = Math.floor((n - 1) / 2);
+  const step = n === 1 ? 0 : 0.45 / Math.max(i0, n - 1 - i0);
+  const lo = regions[0].edges[0];
+  const hi = regions[0].edges[B];
+  const points: ExchangeHypothesis[] = [];
+  for (let i = 0; i < n; i++) {
+    const centre = 0.5 + (i - i0) * step;
+    // bin j's x is j/(B − 1), at its centre: the mass at x is the first bin's centre plus x times the span of the centres
+    // (one bin: the peak does not move, and the values only tell the hypotheses apart)
+    const half = (regions[0].edges[1] - lo) / 2;
+    const mass = Number((B === 1 ? lo + centre * (hi - lo) : lo + half + centre * (hi - lo - 2 * half)).toPrecision(6));
+    const templates = regions.map((region, r) => {
+      const nominal = Array.from({ length: B }, (_, j) => {
+        const peak = peakAt(B === 1 ? 0.5 : j / (B - 1), centre, B);
+        return r < signalRegions ? peak : 0.02 * peak;
+      });
+      return { region: region.key, process: 'signal', nominal };
+    });
+    const effects = shapes.flatMap(({ systematic, slope }) =>
+      templates.map((t) => ({
+        systematic,
+        region: t.region,
+        process: 'signal',
+        kind: 'shape' as const,
+        up: t.nominal.map((v, j) => v * (1 + slope * (B === 1 ? 1 : (2 * j) / (B - 1) - 1))),
+        down: t.nominal.map((v, j) => v * (1 - slope * 0.9 * (B === 1 ? 1 : (2 * j) / (B - 1) - 1))),
+      })),
+    );
+    points.push({ key: `m${i}`, label: `m = ${mass} GeV`, value: mass, templates, effects });
+  }
+  return { parameter: { name: 'mass', unit: 'GeV' }, points };
 }
