@@ -161,6 +161,10 @@ export function newtonLoop(problem: FitProblem, phi0: Float64Array, gamma0: Floa
       // Restore the yields at the current point for the caller.
       nll = negativeLogLikelihood(m, data, gammaHeld, phi, gamma, ws, globals);
       if (edgeSampleBins(problem, ws).length > 0) return edge(it, dec);
+      // A template within 1e-2 of its size from the clip edge: a step across it meets the kink
+      // before the line search can see a decrease; that template is the edge to hold.
+      const near = edgeSampleBins(problem, ws, NEAR_EDGE);
+      if (near.length > 0) return { ...edge(it, dec), edgeBins: near };
       // A decrease below the rounding of the NLL cannot be seen: the stop is then as good as
       // the arithmetic allows, and is reported so. Anywhere above that, the line search failed.
       if (dec < roundingOf(problem, ws, nll)) return result('converged', it, dec, `the decrement stopped at ${dec.toExponential(2)}, limited by the rounding of the NLL`);
@@ -339,7 +343,10 @@ export const EDGE_TOLERANCE = 1e-4;
  * size there, ν0 + Σ (|hd| + |hs|) over its shape effects (a template that no effect moves has
  * no edge).
  */
-export function edgeSampleBins(problem: FitProblem, ws: Workspace): { sample: number; bin: number }[] {
+/** How near the clip edge a template may be for a failed line search to be taken as stopped on it. */
+const NEAR_EDGE = 1e-2;
+
+export function edgeSampleBins(problem: FitProblem, ws: Workspace, tolerance = EDGE_TOLERANCE): { sample: number; bin: number }[] {
   const m = problem.model;
   const out: { sample: number; bin: number }[] = [];
   for (let s = 0; s < m.nSamples; s++) {
@@ -348,7 +355,7 @@ export function edgeSampleBins(problem: FitProblem, ws: Workspace): { sample: nu
     for (let j = 0; j < m.sampleNBins[s]; j++) {
       const A = ws.A[sb0 + j];
       const size = templateSize(m, s, j);
-      if (size > 0 && Math.abs(A) <= EDGE_TOLERANCE * size) out.push({ sample: s, bin: j });
+      if (size > 0 && Math.abs(A) <= tolerance * size) out.push({ sample: s, bin: j });
     }
   }
   return out;
