@@ -75,6 +75,8 @@ export const analyses = pgTable('analyses', {
   blindedRegions: text('blinded_regions').array().notNull().default(sql`'{}'::text[]`),
   /** Conveners who must approve an unblinding request (1 or 2), each other than the requester. */
   unblindingApprovals: integer('unblinding_approvals').notNull().default(1),
+  /** The parameter the signal hypotheses differ in (e.g. { name: 'mass', unit: 'GeV' }); null: none declared. */
+  hypothesisParameter: jsonb('hypothesis_parameter').$type<{ name: string; unit: string } | null>(),
   createdAt: createdAt(),
 });
 
@@ -164,6 +166,27 @@ export const templates = pgTable(
     floatingNormId: integer('floating_norm_id').references(() => floatingNorms.id, { onDelete: 'set null' }),
   },
   (t) => [uniqueIndex('templates_region_process').on(t.regionId, t.processId)],
+);
+
+/**
+ * The analysis's signal hypotheses (shared/schemas/exchange.ts, exchangeHypothesisSchema): each
+ * replaces signal templates of the model, with its own effects on them, for a scan over hypotheses.
+ */
+export const signalHypotheses = pgTable(
+  'signal_hypotheses',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    key: varchar('key', { length: 64 }).notNull(),
+    label: varchar('label', { length: 200 }).notNull().default(''),
+    value: doublePrecision('value').notNull(),
+    /** Exchange templates ({ region, process, nominal, variance? }) by region and process keys. */
+    templates: jsonb('templates').$type<{ region: string; process: string; nominal: number[]; variance?: number[] }[]>().notNull(),
+    /** Exchange effects with their systematic's key. */
+    effects: jsonb('effects').$type<Record<string, unknown>[]>().notNull().default(sql`'[]'::jsonb`),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex('signal_hypotheses_analysis_key').on(t.analysisId, t.key)],
 );
 
 export const groups = pgTable(
@@ -403,6 +426,35 @@ export const toyRuns = pgTable(
     finishedAt: timestamp('finished_at', { withTimezone: true }),
   },
   (t) => [index('toy_runs_fit').on(t.fitId)],
+);
+
+/**
+ * A scan over the signal hypotheses of a model version (shared/schemas/hypothesis-scan.ts): one
+ * fit per hypothesis, with local and global significance and limits against the hypothesis value.
+ */
+export const hypothesisScans = pgTable(
+  'hypothesis_scans',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    modelVersionId: integer('model_version_id').notNull().references(() => modelVersions.id),
+    label: varchar('label', { length: 200 }).notNull().default(''),
+    options: jsonb('options').notNull(),
+    /** Regions whose observed data enter it (none when the analysis is blinded: expected results only). */
+    regionsInFit: text('regions_in_fit').array().notNull().default(sql`'{}'::text[]`),
+    state: fitState('state').notNull().default('queued'),
+    progress: doublePrecision('progress').notNull().default(0),
+    stage: varchar('stage', { length: 100 }).notNull().default(''),
+    failure: text('failure'),
+    result: jsonb('result'),
+    workers: jsonb('workers').$type<Record<string, number> | null>(),
+    coordinatedBy: varchar('coordinated_by', { length: 200 }),
+    createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
+    createdAt: createdAt(),
+    startedAt: timestamp('started_at', { withTimezone: true }),
+    finishedAt: timestamp('finished_at', { withTimezone: true }),
+  },
+  (t) => [index('hypothesis_scans_analysis').on(t.analysisId)],
 );
 
 /**

@@ -3,14 +3,17 @@ import type { AnalysisRow } from '../db/analyses.repository';
 import type { DbOrTx } from '../db/revisions.repository';
 import { indexModel, loadModelRows } from '../db/model.repository';
 import { effectsOfAnalysis, exportedEntries } from '../db/exchange.repository';
+import { exchangeHypothesis, hypothesesOf } from '../db/signal-hypotheses.repository';
 import { isWithheld } from './blinding.service';
 import { pruneModel, type PrunedEffect } from '../variations/pruning';
 
 /**
  * The whole model of an analysis as an exchange document: the inverse of importModel, so an
  * export of an import gives back the same document. Retired entries are left out (they are not
- * part of the fit), and so are pruned effects, or a pruned shape keeps only its normalisation
- * (variations/pruning.ts): the document is the model as a fit sees it. With `withhold`, blinded signal-region data are omitted: every export that
+ * part of the fit), with the signal hypotheses' effects of them, and so are pruned effects, or a
+ * pruned shape keeps only its normalisation, on the model's templates and the hypotheses' alike
+ * (variations/pruning.ts): the document is the model as a fit sees it. The signal hypotheses
+ * come in the order of their value. With `withhold`, blinded signal-region data are omitted: every export that
  * leaves the server sets it; a frozen model version, which stays on the server, does not.
  */
 export async function buildExchange(db: DbOrTx, analysis: AnalysisRow, opts: { withhold: boolean }): Promise<ExchangeModel> {
@@ -20,6 +23,8 @@ export async function buildExchange(db: DbOrTx, analysis: AnalysisRow, opts: { w
 
   const entryRows = await exportedEntries(db, analysis.id);
   const effectRows = entryRows.length ? await effectsOfAnalysis(db, analysis.id) : [];
+  const hypothesisRows = await hypothesesOf(db, analysis.id);
+  const exported = new Set(entryRows.map(({ entry }) => entry.key));
   const effectsByEntry = new Map<number, typeof effectRows>();
   for (const row of effectRows) {
     const list = effectsByEntry.get(row.effects.entryId);
@@ -77,5 +82,13 @@ export async function buildExchange(db: DbOrTx, analysis: AnalysisRow, opts: { w
             : { ...where, kind: 'shape' as const, up: e.up as number[], down: e.down as number[] };
         }),
     })),
+    ...(hypothesisRows.length
+      ? {
+          signalHypotheses: {
+            parameter: analysis.hypothesisParameter ?? { name: 'hypothesis', unit: '' },
+            points: hypothesisRows.map(exchangeHypothesis).map((h) => ({ ...h, effects: h.effects.filter((e) => exported.has(e.systematic)) })),
+          },
+        }
+      : {}),
   }, pruned);
 }

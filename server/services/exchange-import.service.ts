@@ -4,6 +4,7 @@ import { largestEffectPct, scaleWarnings, shapeWarnings } from '@shared/validati
 import { addRevision, type DbOrTx, type Tx } from '../db/revisions.repository';
 import { insertEffects, insertFloatingNorms, insertGroups, insertProcesses, insertRegions, insertTemplates, regionCount } from '../db/exchange.repository';
 import { insertEntry } from '../db/entries.repository';
+import { insertHypotheses, setHypothesisParameterRow } from '../db/signal-hypotheses.repository';
 import { conflict, unprocessable, zodIssues } from '../errors';
 
 export type EntryMeta = { ownerId?: number | null; state?: EntryState; justification?: string; references?: string[] };
@@ -19,7 +20,8 @@ function parseExchange(document: unknown): ExchangeModel {
 /**
  * Writes a whole model into an analysis that has none yet, in one transaction: regions, processes,
  * floating normalisations, templates, groups, register entries with their effects and warnings,
- * a revision per entry and, for an uploaded `file`, the model's own revision naming it. Nothing is
+ * the signal hypotheses with their parameter (version 2), a revision per entry and, for an
+ * uploaded `file`, the model's own revision naming it. Nothing is
  * written if any step fails, so a crash never leaves a model without the revision that says where
  * it came from.
  */
@@ -38,7 +40,7 @@ export async function importModel(
         analysisId,
         authorId: options.authorId,
         action: 'model.imported',
-        summary: `Imported the model file "${options.file.filename}" (SHA-256 ${options.file.sha256.slice(0, 12)}…): ${counts.regions} regions, ${counts.processes} processes, ${counts.entries} register entries.`,
+        summary: `Imported the model file "${options.file.filename}" (SHA-256 ${options.file.sha256.slice(0, 12)}…): ${counts.regions} regions, ${counts.processes} processes, ${counts.entries} register entries${counts.hypotheses ? `, ${counts.hypotheses} signal hypotheses` : ''}.`,
       });
     return counts;
   });
@@ -127,5 +129,13 @@ async function writeModel(tx: Tx, analysisId: number, model: ExchangeModel, opti
       after: { key: s.key, label: s.label, group: s.group, state: meta.state ?? 'draft', effects: s.effects.length },
     });
   }
-  return { regions: regionRows.length, processes: processRows.length, entries: model.systematics.length };
+  const hypotheses = model.signalHypotheses;
+  if (hypotheses) {
+    await setHypothesisParameterRow(tx, analysisId, hypotheses.parameter);
+    await insertHypotheses(
+      tx,
+      hypotheses.points.map((h) => ({ analysisId, key: h.key, label: h.label ?? '', value: h.value, templates: h.templates, effects: h.effects })),
+    );
+  }
+  return { regions: regionRows.length, processes: processRows.length, entries: model.systematics.length, hypotheses: hypotheses?.points.length ?? 0 };
 }

@@ -1,4 +1,4 @@
-import { ratioNumber, type Effect, type ExchangeModel, type ScaleEffect } from '@shared/schemas/exchange';
+import { ratioNumber, type Effect, type ExchangeHypothesis, type ExchangeModel, type HypothesisEffect, type ScaleEffect } from '@shared/schemas/exchange';
 import { shiftPrecision } from './precision';
 
 /**
@@ -73,12 +73,16 @@ export type PrunedEffect = { systematic: string; region: string; process: string
  * The model with these effects pruned: left out, or (a shape keeping its normalisation) turned
  * into a scale effect of κ± = Σν±/Σν⁰, multiplied into the systematic's own scale effect on the
  * same template if it has one (both act on the same θ in log space, so their logarithms add).
- * A systematic left without effects is left out. Effects not in the model change nothing.
+ * The signal hypotheses' effects of the same systematic, template and kind are pruned alike
+ * (pruneHypothesis). A systematic left without effects is left out, unless a hypothesis still
+ * has one of it. Effects not in the model change nothing.
  */
 export function pruneModel(model: ExchangeModel, pruned: readonly PrunedEffect[]): ExchangeModel {
   if (!pruned.length) return model;
   const bySystematic = new Map<string, PrunedEffect[]>();
   for (const p of pruned) bySystematic.set(p.systematic, [...(bySystematic.get(p.systematic) ?? []), p]);
+  const signalHypotheses = model.signalHypotheses && { ...model.signalHypotheses, points: model.signalHypotheses.points.map((h) => pruneHypothesis(model, h, bySystematic)) };
+  const named = new Set(signalHypotheses?.points.flatMap((h) => h.effects.map((e) => e.systematic)));
   const nominalOf = new Map(model.templates.map((t) => [`${t.region}/${t.process}`, t.nominal]));
   const systematics = model.systematics.flatMap((s) => {
     const mine = bySystematic.get(s.key);
@@ -97,7 +101,39 @@ export function pruneModel(model: ExchangeModel, pruned: readonly PrunedEffect[]
         kept[own] = { ...k, up: k.up * ratio.up, down: k.down * ratio.down };
       }
     }
-    return kept.length ? [{ ...s, effects: kept }] : [];
+    return kept.length || named.has(s.key) ? [{ ...s, effects: kept }] : [];
   });
-  return { ...model, systematics };
+  return { ...model, systematics, ...(signalHypotheses ? { signalHypotheses } : {}) };
+}
+
+/**
+ * A signal hypothesis's effects pruned as the model's are: an effect of a pruned systematic on the
+ * same template and of the same kind is left out, or a shape keeps its own normalisation, over the
+ * hypothesis's template. That normalisation becomes the hypothesis's scale effect of the
+ * systematic there, multiplied into the one the hypothesis gives or else into the model's own
+ * (unless that one is pruned): a hypothesis's scale effect replaces the model's on its template.
+ */
+function pruneHypothesis(model: ExchangeModel, h: ExchangeHypothesis, bySystematic: Map<string, PrunedEffect[]>): ExchangeHypothesis {
+  const find = (systematic: string, e: { region: string; process: string; kind: string }) =>
+    bySystematic.get(systematic)?.find((p) => p.region === e.region && p.process === e.process && p.kind === e.kind);
+  if (!h.effects.some((e) => find(e.systematic, e))) return h;
+  const nominalOf = new Map(h.templates.map((t) => [`${t.region}/${t.process}`, t.nominal]));
+  const kept: HypothesisEffect[] = h.effects.filter((e) => !find(e.systematic, e));
+  for (const e of h.effects) {
+    const p = find(e.systematic, e);
+    if (!p || p.as !== 'normalisation' || e.kind !== 'shape') continue;
+    const ratio = normalisationOf(nominalOf.get(`${e.region}/${e.process}`) ?? [], e.up, e.down);
+    if (!ratio) continue;
+    const own = kept.findIndex((k) => k.kind === 'scale' && k.systematic === e.systematic && k.region === e.region && k.process === e.process);
+    if (own >= 0) {
+      const k = kept[own] as HypothesisEffect & ScaleEffect;
+      kept[own] = { ...k, up: k.up * ratio.up, down: k.down * ratio.down };
+      continue;
+    }
+    const base = model.systematics
+      .find((s) => s.key === e.systematic)
+      ?.effects.find((m): m is ScaleEffect => m.kind === 'scale' && m.region === e.region && m.process === e.process && !find(e.systematic, m));
+    kept.push({ systematic: e.systematic, region: e.region, process: e.process, kind: 'scale', up: (base?.up ?? 1) * ratio.up, down: (base?.down ?? 1) * ratio.down });
+  }
+  return { ...h, effects: kept };
 }

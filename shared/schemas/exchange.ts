@@ -9,7 +9,9 @@ import { PROCESS_KINDS, REGION_ROLES } from '../vocabulary';
  */
 
 export const EXCHANGE_FORMAT = 'plumbline.model';
-export const EXCHANGE_VERSION = 1;
+/** The version written. Version 1 (no signal hypotheses) is still read: a model with one hypothesis, its own templates. */
+export const EXCHANGE_VERSION = 2;
+export const READABLE_EXCHANGE_VERSIONS = [1, 2] as const;
 
 /** Keys name things inside one model: short, stable, URL-safe. */
 export const keySchema = z
@@ -121,9 +123,36 @@ export const exchangeSystematicSchema = z.strictObject({
 });
 export type ExchangeSystematic = z.infer<typeof exchangeSystematicSchema>;
 
+/** An effect of one systematic on a template of a signal hypothesis. */
+export const hypothesisEffectSchema = z.discriminatedUnion('kind', [scaleEffectSchema.extend({ systematic: keySchema }), shapeEffectSchema.extend({ systematic: keySchema })]);
+export type HypothesisEffect = z.infer<typeof hypothesisEffectSchema>;
+
+/**
+ * One signal hypothesis (e.g. a resonance of mass 350 GeV): the templates of signal processes it
+ * replaces, and the effects of systematics on those templates. A scan over hypotheses fits the
+ * model once per hypothesis, with these templates in place of the model's own for the same
+ * (region, process); every other template, and every effect on it, stays as it is.
+ */
+export const exchangeHypothesisSchema = z.strictObject({
+  key: keySchema,
+  label: z.string().max(200).optional(),
+  /** The value of the hypothesis parameter (e.g. the mass). */
+  value: finite,
+  templates: z.array(exchangeTemplateSchema).min(1, 'must give at least one signal template'),
+  effects: z.array(hypothesisEffectSchema).default([]),
+});
+export type ExchangeHypothesis = z.infer<typeof exchangeHypothesisSchema>;
+
+export const exchangeHypothesesSchema = z.strictObject({
+  /** The parameter the hypotheses differ in (e.g. mass, GeV). */
+  parameter: z.strictObject({ name: z.string().min(1).max(100), unit: z.string().max(30) }),
+  points: z.array(exchangeHypothesisSchema).min(1, 'needs at least one hypothesis').max(500, 'at most 500 hypotheses'),
+});
+export type ExchangeHypotheses = z.infer<typeof exchangeHypothesesSchema>;
+
 const exchangeModelShape = z.strictObject({
   format: z.literal(EXCHANGE_FORMAT),
-  version: z.literal(EXCHANGE_VERSION),
+  version: z.union([z.literal(1), z.literal(2)], { error: 'must be 1 or 2 (the exchange file versions this product reads)' }),
   name: z.string().min(1).max(200),
   signalStrength: boundedParameterSchema.default({ start: 1, min: -10, max: 20 }),
   regions: z.array(exchangeRegionSchema).min(1, 'needs at least one region'),
@@ -131,6 +160,8 @@ const exchangeModelShape = z.strictObject({
   floatingNorms: z.array(exchangeFloatingNormSchema).default([]),
   templates: z.array(exchangeTemplateSchema),
   systematics: z.array(exchangeSystematicSchema).default([]),
+  /** Version 2: the signal hypotheses a scan fits in turn (absent: the model's own templates are its one hypothesis). */
+  signalHypotheses: exchangeHypothesesSchema.optional(),
 });
 
 type ModelShape = z.infer<typeof exchangeModelShape>;
@@ -218,7 +249,70 @@ export function modelConsistencyIssues(m: ModelShape): Issue[] {
       }
     });
   });
+  if (m.signalHypotheses) {
+    if (m.version === 1) issues.push({ message: 'signal hypotheses need exchange file version 2', path: ['signalHypotheses'] });
+    hypothesisIssues(m, bins, hasTemplate, issues);
+  }
   return issues;
+}
+
+/**
+ * A hypothesis's templates replace signal templates the model has, bin for bin; its effects name
+ * systematics of the model and act on its own templates; a shape effect of the model on a
+ * replaced template must be given for the hypothesis too (its yields belong to the template
+ * replaced). Values are distinct, so that a scan has one point per value.
+ */
+function hypothesisIssues(m: ModelShape, bins: Map<string, number>, hasTemplate: (region: string, process: string) => boolean, issues: Issue[]) {
+  const h = m.signalHypotheses!;
+  const base = ['signalHypotheses', 'points'];
+  duplicates(h.points.map((p) => p.key), base, issues);
+  const values = new Set<number>();
+  const kinds = new Map(m.processes.map((p) => [p.key, p.kind]));
+  const systematics = new Set(m.systematics.map((s) => s.key));
+  // shape effects of the model, by (region, process): systematic keys
+  const shapes = new Map<string, string[]>();
+  for (const s of m.systematics) for (const e of s.effects) if (e.kind === 'shape') shapes.set(`${e.region}\u0000${e.process}`, [...(shapes.get(`${e.region}\u0000${e.process}`) ?? []), s.key]);
+  h.points.forEach((p, i) => {
+    const path = [...base, i];
+    if (values.has(p.value)) issues.push({ message: `a second hypothesis with ${h.parameter.name} = ${p.value}`, path: [...path, 'value'] });
+    values.add(p.value);
+    const pairs = new Set<string>();
+    p.templates.forEach((t, j) => {
+      const tp = [...path, 'templates', j];
+      const pair = `${t.region}\u0000${t.process}`;
+      if (!bins.has(t.region)) issues.push({ message: `unknown region "${t.region}"`, path: [...tp, 'region'] });
+      else if (!kinds.has(t.process)) issues.push({ message: `unknown process "${t.process}"`, path: [...tp, 'process'] });
+      else if (kinds.get(t.process) !== 'signal') issues.push({ message: `process "${t.process}" is not a signal process: a hypothesis replaces signal templates only`, path: [...tp, 'process'] });
+      else if (!hasTemplate(t.region, t.process)) issues.push({ message: `the model has no template for region "${t.region}" and process "${t.process}" to replace`, path: tp });
+      if (pairs.has(pair)) issues.push({ message: `a second template for region "${t.region}" and process "${t.process}"`, path: tp });
+      pairs.add(pair);
+      const n = bins.get(t.region);
+      if (n !== undefined && t.nominal.length !== n) issues.push({ message: `has ${t.nominal.length} values but region "${t.region}" has ${n} bins`, path: [...tp, 'nominal'] });
+      if (n !== undefined && t.variance && t.variance.length !== n) issues.push({ message: `has ${t.variance.length} values but region "${t.region}" has ${n} bins`, path: [...tp, 'variance'] });
+    });
+    const given = new Set<string>();
+    p.effects.forEach((e, j) => {
+      const ep = [...path, 'effects', j];
+      const pair = `${e.region}\u0000${e.process}`;
+      if (!systematics.has(e.systematic)) issues.push({ message: `unknown systematic "${e.systematic}"`, path: [...ep, 'systematic'] });
+      if (!pairs.has(pair)) issues.push({ message: `this hypothesis gives no template for region "${e.region}" and process "${e.process}"`, path: ep });
+      const key = `${e.systematic}\u0000${pair}\u0000${e.kind}`;
+      if (given.has(key)) issues.push({ message: `a second ${e.kind} effect of "${e.systematic}" on region "${e.region}", process "${e.process}"`, path: ep });
+      given.add(key);
+      if (e.kind === 'shape') {
+        const n = bins.get(e.region);
+        if (n !== undefined && e.up.length !== n) issues.push({ message: `has ${e.up.length} values but region "${e.region}" has ${n} bins`, path: [...ep, 'up'] });
+        if (n !== undefined && e.down.length !== n) issues.push({ message: `has ${e.down.length} values but region "${e.region}" has ${n} bins`, path: [...ep, 'down'] });
+      }
+    });
+    for (const pair of pairs) {
+      for (const systematic of shapes.get(pair) ?? []) {
+        if (given.has(`${systematic}\u0000${pair}\u0000shape`)) continue;
+        const [region, process] = pair.split('\u0000');
+        issues.push({ message: `replaces the template of region "${region}", process "${process}", which systematic "${systematic}" varies by shape: give that shape effect for this hypothesis too`, path: [...path, 'effects'] });
+      }
+    }
+  });
 }
 
 export const exchangeModelSchema = exchangeModelShape.check((ctx) => {
