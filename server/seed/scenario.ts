@@ -1,7 +1,7 @@
 import type { MemberRole } from '@shared/permissions';
-import type { ExchangeModelInput, Effect } from '@shared/schemas/exchange';
+import type { ExchangeModelInput, Effect, HypothesisEffect } from '@shared/schemas/exchange';
 import type { EntryState } from '@shared/schemas/api';
-import { createRandom } from '../fit';
+import { createRandom, normalCdf } from '../fit';
 
 /**
  * The invented demo scenario: the LANTERN experiment at the (fictional) Meridian Ring collider
@@ -59,11 +59,25 @@ const centres = (edges: number[]) => range(edges.length - 1).map((i) => (edges[i
 
 type RegionSpec = { key: string; label: string; role: 'signal' | 'control' | 'validation'; lo: number; hi: number; bins: number; scale: Record<string, number> };
 
+/** The vireon's mass in the model's own signal templates, in GeV. */
+const VIREON_MASS = 1310;
+/** The masses of the signal hypotheses, in GeV: 30 points in steps of 20, the model's own among them. */
+const HYPOTHESIS_MASSES = range(30).map((i) => 1010 + 20 * i);
+/** The flare-pair mass resolution at a vireon mass (18 GeV at the model's own), growing with the mass. */
+const resolution = (mass: number) => 18 * (mass / VIREON_MASS) ** 1.5;
+/** The selection efficiency of a signal region, relative to the one at the model's own mass: rising, then flat. */
+const efficiency = (region: string, mass: number) => {
+  const eff = (m: number) => (region === 'SR-core' ? 1 - 0.55 * Math.exp(-(m - 900) / 220) : 1 - 0.3 * Math.exp(-(m - 900) / 300));
+  return eff(mass) / eff(VIREON_MASS);
+};
+/** The narrow vireon peak at a mass, at an observable value. */
+const peak = (mass: number, x: number) => Math.exp(-0.5 * ((x - mass) / resolution(mass)) ** 2);
+
 /** Background shapes: falling spectra with different slopes; the signal is a narrow peak. */
 function spectrum(process: string, x: number) {
   switch (process) {
     case 'vireon':
-      return Math.exp(-0.5 * ((x - 1310) / 18) ** 2);
+      return peak(VIREON_MASS, x);
     case 'continuum':
       return Math.exp(-(x - 1000) / 170);
     case 'showerpair':
@@ -98,6 +112,14 @@ function vireonAnalysis(): DemoAnalysis {
     { key: 'VR-mid', label: 'Validation region between sideband and signal region', role: 'validation', lo: 900, hi: 1100, bins: 8, scale: { vireon: 1, continuum: 5200, showerpair: 900, cascade: 500, halo: 40, pileupfake: 190 } },
   ];
 
+  /** A template of `total` events over the region with this shape, and its variance from weighted simulated events. */
+  const template = (r: RegionSpec, total: number, shape: number[]) => {
+    const sum = shape.reduce((s, v) => s + v, 0);
+    const nom = shape.map((v) => round((total * v) / sum, 4));
+    // simulated events carry weights: relative variance ~ 1/N_eff with N_eff a few hundred per bin
+    const variance = nom.map((v) => round((v * v) / Math.max(20, 400 * (v / (total / r.bins) + 0.05)), 6));
+    return { nominal: nom, variance };
+  };
   const templates: ExchangeModelInput['templates'] = [];
   const nominal = new Map<string, number[]>();
   for (const r of regions) {
@@ -105,11 +127,7 @@ function vireonAnalysis(): DemoAnalysis {
     for (const p of processes) {
       const total = r.scale[p.key];
       if (!total) continue;
-      const shape = centres(edges).map((x) => spectrum(p.key, r.role === 'control' && r.key === 'CR-low' ? x + 400 : x));
-      const sum = shape.reduce((s, v) => s + v, 0);
-      const nom = shape.map((v) => round((total * v) / sum, 4));
-      // simulated events carry weights: relative variance ~ 1/N_eff with N_eff a few hundred per bin
-      const variance = nom.map((v) => round((v * v) / Math.max(20, 400 * (v / (total / r.bins) + 0.05)), 6));
+      const { nominal: nom, variance } = template(r, total, centres(edges).map((x) => spectrum(p.key, r.role === 'control' && r.key === 'CR-low' ? x + 400 : x)));
       nominal.set(`${r.key}/${p.key}`, nom);
       templates.push({ region: r.key, process: p.key, nominal: nom, variance: p.key === 'halo' ? undefined : variance });
     }
@@ -122,21 +140,28 @@ function vireonAnalysis(): DemoAnalysis {
 
   const scale = (procs: string[], up: number, down: number, regs?: string[]): Effect[] =>
     pairs(procs, regs).map(({ region, process }) => ({ region, process, kind: 'scale', up, down }));
-  /** A shape effect: a linear tilt across the observable (plus an optional jitter), as up/down templates. */
-  const tilt = (procs: string[], amplitude: number, opts: { regs?: string[]; offset?: number; oneSided?: boolean; jitter?: number; curve?: number } = {}): Effect[] =>
-    pairs(procs, opts.regs).map(({ region, process }) => {
-      const nom = nominal.get(`${region}/${process}`)!;
-      const n = nom.length;
-      const rel = range(n).map((b) => {
-        const t = n > 1 ? (2 * b) / (n - 1) - 1 : 0;
-        return (opts.offset ?? 0) + amplitude * t + (opts.curve ?? 0) * (t * t - 0.33) + (opts.jitter ?? 0) * rnd.normal();
-      });
-      const up = nom.map((v, b) => round(Math.max(0, v * (1 + rel[b])), 4));
-      // down is a slightly smaller mirror of up: variations are rarely exactly symmetric
-      const asym = 0.85 + 0.3 * rnd.next();
-      const down = opts.oneSided ? nom.map((v, b) => round(Math.max(0, 2 * v - up[b]), 4)) : nom.map((v, b) => round(Math.max(0, v * (1 - rel[b] * asym)), 4));
-      return { region, process, kind: 'shape', up, down };
+  type TiltOptions = { regs?: string[]; offset?: number; oneSided?: boolean; jitter?: number; curve?: number };
+  /** The up/down templates of a linear tilt across the observable (plus an optional jitter) of one nominal template. */
+  const tilted = (nom: number[], amplitude: number, opts: TiltOptions, random: typeof rnd) => {
+    const n = nom.length;
+    const rel = range(n).map((b) => {
+      const t = n > 1 ? (2 * b) / (n - 1) - 1 : 0;
+      return (opts.offset ?? 0) + amplitude * t + (opts.curve ?? 0) * (t * t - 0.33) + (opts.jitter ?? 0) * random.normal();
     });
+    const up = nom.map((v, b) => round(Math.max(0, v * (1 + rel[b])), 4));
+    // down is a slightly smaller mirror of up: variations are rarely exactly symmetric
+    const asym = 0.85 + 0.3 * random.next();
+    const down = opts.oneSided ? nom.map((v, b) => round(Math.max(0, 2 * v - up[b]), 4)) : nom.map((v, b) => round(Math.max(0, v * (1 - rel[b] * asym)), 4));
+    return { up, down };
+  };
+  /** How each tilt was made, so that the signal hypotheses make their own the same way. */
+  const tilts = new WeakMap<Effect[], { amplitude: number; opts: TiltOptions }>();
+  /** A shape effect: a linear tilt across the observable (plus an optional jitter), as up/down templates. */
+  const tilt = (procs: string[], amplitude: number, opts: TiltOptions = {}): Effect[] => {
+    const effects = pairs(procs, opts.regs).map(({ region, process }): Effect => ({ region, process, kind: 'shape', ...tilted(nominal.get(`${region}/${process}`)!, amplitude, opts, rnd) }));
+    tilts.set(effects, { amplitude, opts });
+    return effects;
+  };
 
   type Sys = { key: string; label: string; group: string; owner: string; state: EntryState; effects: Effect[]; description: string };
   const juno = 'juno@lantern.example';
@@ -214,9 +239,33 @@ function vireonAnalysis(): DemoAnalysis {
     observed.set(r.key, expected.map((v) => rnd.poisson(v)));
   }
 
+  // Signal hypotheses: the vireon at each mass of the scan, with its own templates in the signal
+  // regions (the peak's width from the mass resolution, its yield from the selection efficiency
+  // and the part of the peak inside the region) and the signal's shape effects made again for
+  // that peak. The model's own signal is the hypothesis at its mass: same templates, same effects.
+  const signalRegions = regions.filter((r) => r.role === 'signal');
+  const signalShapes = sys.flatMap((s) => s.effects.filter((e) => e.process === 'vireon' && e.kind === 'shape' && signalRegions.some((r) => r.key === e.region)).map((e) => ({ systematic: s.key, effect: e, recipe: tilts.get(s.effects)! })));
+  const hrnd = prng(20261203);
+  const points = HYPOTHESIS_MASSES.map((mass) => {
+    const own = mass === VIREON_MASS;
+    const hypothesisTemplates = signalRegions.map((r) => {
+      if (own) return { ...templates.find((t) => t.region === r.key && t.process === 'vireon')! };
+      const edges = edgesOf(r.lo, r.hi, r.bins);
+      const inside = (m: number) => normalCdf((r.hi - m) / resolution(m)) - normalCdf((r.lo - m) / resolution(m));
+      const total = r.scale.vireon * efficiency(r.key, mass) * (inside(mass) / inside(VIREON_MASS));
+      return { region: r.key, process: 'vireon', ...template(r, total, centres(edges).map((x) => peak(mass, x))) };
+    });
+    const effects: HypothesisEffect[] = signalShapes.map(({ systematic, effect, recipe }) => {
+      if (own) return { systematic, ...effect };
+      const nom = hypothesisTemplates.find((t) => t.region === effect.region)!.nominal;
+      return { systematic, region: effect.region, process: 'vireon', kind: 'shape', ...tilted(nom, recipe.amplitude, recipe.opts, hrnd) };
+    });
+    return { key: `m${mass}`, label: `m = ${mass} GeV`, value: mass, templates: hypothesisTemplates, effects };
+  });
+
   const model: ExchangeModelInput = {
     format: 'plumbline.model',
-    version: 1,
+    version: 2,
     name: 'Vireon search in flare pairs',
     signalStrength: { start: 1, min: -10, max: 20 },
     regions: regions.map((r) => ({
@@ -234,6 +283,7 @@ function vireonAnalysis(): DemoAnalysis {
     ],
     templates,
     systematics,
+    signalHypotheses: { parameter: { name: 'mass', unit: 'GeV' }, points },
   };
 
   const entries: Record<string, DemoEntryMeta> = Object.fromEntries(

@@ -35,3 +35,47 @@ describe('the invented demo scenario', () => {
     }
   });
 });
+
+describe('the signal hypotheses of the blinded search', () => {
+  const search = () => exchangeModelSchema.parse(demoScenario().analyses.find((a) => a.slug === 'vireon-search')!.model);
+  const peakBin = (nominal: number[]) => nominal.indexOf(Math.max(...nominal));
+
+  it('are thirty masses in GeV, each replacing the vireon template of both signal regions and giving the shape effects the model gives the vireon there', () => {
+    const model = search();
+    const { parameter, points } = model.signalHypotheses!;
+    expect(parameter).toEqual({ name: 'mass', unit: 'GeV' });
+    expect(points.length).toBe(30);
+    expect(points.map((p) => p.value)).toEqual([...points.map((p) => p.value)].sort((a, b) => a - b));
+    const shapes = model.systematics.flatMap((s) => s.effects.filter((e) => e.process === 'vireon' && e.kind === 'shape' && e.region.startsWith('SR')).map((e) => `${s.key}/${e.region}`));
+    expect(shapes.length).toBeGreaterThanOrEqual(6);
+    for (const p of points) {
+      expect(p.templates.map((t) => `${t.region}/${t.process}`)).toEqual(['SR-core/vireon', 'SR-wide/vireon']);
+      expect(p.effects.map((e) => `${e.systematic}/${e.region}`).sort()).toEqual([...shapes].sort());
+      for (const t of p.templates) expect(t.variance).toHaveLength(t.nominal.length);
+    }
+  });
+
+  it('keep the model\u2019s own signal as the hypothesis at 1310 GeV, with its templates and effects', () => {
+    const model = search();
+    const own = model.signalHypotheses!.points.find((p) => p.value === 1310)!;
+    for (const t of own.templates) expect(t).toEqual(model.templates.find((m) => m.region === t.region && m.process === t.process));
+    for (const e of own.effects) {
+      const { systematic, ...effect } = e;
+      expect(model.systematics.find((s) => s.key === systematic)!.effects).toContainEqual(effect);
+    }
+  });
+
+  it('move the peak with the mass, widen it and change its yield smoothly', () => {
+    const points = search().signalHypotheses!.points;
+    const core = points.map((p) => p.templates.find((t) => t.region === 'SR-core')!.nominal);
+    const bins = core.map(peakBin);
+    bins.slice(1).forEach((b, i) => expect(b).toBeGreaterThanOrEqual(bins[i]));
+    expect(bins[0]).toBe(0);
+    expect(bins.at(-1)).toBe(23);
+    // the share of the peak bin falls as the resolution grows (away from the region's edges)
+    const share = (n: number[]) => Math.max(...n) / n.reduce((a, b) => a + b, 0);
+    expect(share(core[5])).toBeGreaterThan(share(core[25]));
+    const totals = core.map((n) => n.reduce((a, b) => a + b, 0));
+    totals.slice(1).forEach((t, i) => expect(Math.abs(t / totals[i] - 1)).toBeLessThan(0.35));
+  });
+});
