@@ -6,12 +6,16 @@ export { fitModel, type FitControl } from './fit';
 export { regionEntersFit } from './problem';
 export { scanParameter } from './parameter-scan';
 export { FitCancelledError, FitInputError } from './errors';
-export { syntheticModel, createRandom, SYNTHETIC_SIZES, type SyntheticSize, type SyntheticSpec } from './synthetic';
+export { syntheticModel, createRandom, SYNTHETIC_SIZES, type SyntheticOptions, type SyntheticSize, type SyntheticSpec } from './synthetic';
 export { normalCdf, normalSurvival, normalQuantile, chiSquareCdf, chiSquareSurvival, chiSquareQuantile } from './distributions';
 export { prepareToys, runToys, summariseToys, createToyFitter, runToyTask, type ToyPlan, type ToyParameter, type ToyOutcome, type ToyTask, type ToyControl, type ToyFitter } from './toys';
 export { variantIssues, partName, hideMu } from './variants';
 export { diagnoseParameter, type ParameterDiagnosisNumbers } from './diagnosis';
 export { whatIf, type WhatIfInput, type WhatIfOutcome } from './what-if';
+// scans over signal hypotheses, and their background-only toys (a worker runs runScanToyTask)
+export { scanHypotheses, type HypothesisScanControl } from './hypotheses';
+export { hypothesisModel } from './hypothesis-model';
+export { createScanToyFitter, runScanToyTask, type ScanToyFitter, type ScanToyOutcome, type ScanToySetup, type ScanToyTask } from './hypothesis-toys';
 // refits on threads: the engine sends plain-data batches, server/runs/threads runs them
 export { runRefits, toShared, toPlain, type FitPool, type RefitBatch, type RunRefitsControl } from './refit-batches';
 export { Refitter, type RefitTask, type RefitResult } from './refit-tasks';
