@@ -7,33 +7,47 @@
  *                 [--hold KEY=VALUE|best]… [--hold-group GROUP]… [--stat-only] [--no-template-stats]
  *                 [--decorrelate KEY:region|KEY:process]… [--expected-from prefit|control|background]
  *                 [--hidden-mu] [--breakdown]
+ *   a scan over the model's signal hypotheses (docs/fit-engine.md, "Scan over signal hypotheses"):
+ *   npm run fit -- MODEL.json --scan-hypotheses [--expected] [--no-limit] [--reference-level C]
+ *                 [--toys-upcrossings N] [--toys-trials N] [--seed N] [--threads N] [--out RESULT.json]
  *
  * A fit with --hidden-mu writes the result without anything computed from μ̂ or from the signal
- * regions' data, as the server stores it.
- * Exit codes: 0 fitted, 1 bad input (the messages name the failing fields), 3 the fit failed
- * (its report is still written).
+ * regions' data, as the server stores it. A scan prints a table of its hypotheses and the global
+ * significance, and writes its result when --out is given.
+ * Exit codes: 0 fitted, 1 bad input (the messages name the failing fields), 2 an unknown flag or a
+ * bad flag value (one line naming it), 3 the fit failed, or a hypothesis of the scan did (its
+ * report is still written).
  */
 import { readFileSync, writeFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
-import { exchangeModelSchema } from '@shared/schemas/exchange';
+import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptionsInput } from '@shared/schemas/fit';
-import { FitInputError, fitModel, hideMu, variantIssues } from '../server/fit';
-import { createFitPool } from '../server/runs/threads/pool';
+import type { HypothesisScanOptionsInput, HypothesisScanResult } from '@shared/schemas/hypothesis-scan';
+import { FitInputError, fitModel, hideMu, scanHypotheses, variantIssues, type ScanToyOutcome, type ScanToyTask } from '../server/fit';
+import { createFitPool, threadEntry, workerPool } from '../server/runs/threads/pool';
 
 function fail(message: string): never {
   process.stderr.write(`${message}\n`);
   process.exit(1);
 }
 
+/** A flag the command line does not know, or a flag's value it cannot use: one line, exit code 2. */
+function usage(message: string): never {
+  process.stderr.write(`${message}\n`);
+  process.exit(2);
+}
+
 const USAGE =
-  'usage: npm run fit -- MODEL.json [--asimov MU] [--control-only] [--impacts none|quick|full] [--scan] [--limit] [--exclude REGION]… [--hold KEY=VALUE|best]… [--hold-group GROUP]… [--stat-only] [--no-template-stats] [--decorrelate KEY:region|KEY:process]… [--expected-from prefit|control|background] [--hidden-mu] [--breakdown] [--threads N] --out RESULT.json';
+  'usage: npm run fit -- MODEL.json [--asimov MU] [--control-only] [--impacts none|quick|full] [--scan] [--limit] [--exclude REGION]… [--hold KEY=VALUE|best]… [--hold-group GROUP]… [--stat-only] [--no-template-stats] [--decorrelate KEY:region|KEY:process]… [--expected-from prefit|control|background] [--hidden-mu] [--breakdown] [--threads N] --out RESULT.json\n' +
+  '   or: npm run fit -- MODEL.json --scan-hypotheses [--expected] [--no-limit] [--reference-level C] [--toys-upcrossings N] [--toys-trials N] [--seed N] [--threads N] [--out RESULT.json]';
 
 let args: ReturnType<typeof read>;
 try {
   args = read();
 } catch (e) {
-  // an unknown or malformed flag: one plain line, not a stack trace
-  fail(`${(e as Error).message}\n${USAGE}`);
+  // an unknown or malformed flag: one plain line naming it (the first sentence of the parser's message), not a stack trace
+  const first = (e as Error).message.split('\n')[0];
+  usage(first.slice(0, first.indexOf('. ') + 1 || undefined));
 }
 const { values, positionals } = args;
 
@@ -57,24 +71,71 @@ function read() {
       'expected-from': { type: 'string', default: 'prefit' },
       'hidden-mu': { type: 'boolean', default: false },
       breakdown: { type: 'boolean', default: false },
+      'scan-hypotheses': { type: 'boolean', default: false },
+      expected: { type: 'boolean', default: false },
+      'no-limit': { type: 'boolean', default: false },
+      'reference-level': { type: 'string' },
+      'toys-upcrossings': { type: 'string' },
+      'toys-trials': { type: 'string' },
+      seed: { type: 'string' },
     },
   });
 }
-if (positionals.length !== 1 || !values.out) fail(USAGE);
-if (!['prefit', 'control', 'background'].includes(values['expected-from']!)) fail(`--expected-from must be prefit, control or background (got "${values['expected-from']}")`);
+const scanning = values['scan-hypotheses']!;
+if (positionals.length !== 1 || (!values.out && !scanning)) usage(USAGE);
+if (values.threads !== undefined && !/^[1-9][0-9]*$/.test(values.threads)) usage(`--threads needs a whole number of at least 1 (got "${values.threads}")`);
+if (!['prefit', 'control', 'background'].includes(values['expected-from']!)) usage(`--expected-from must be prefit, control or background (got "${values['expected-from']}")`);
 const hold = values.hold!.map((h) => {
   const m = /^([^=]+)=(.+)$/.exec(h);
-  if (!m) fail(`--hold needs KEY=VALUE or KEY=best (got "${h}")`);
+  if (!m) usage(`--hold needs KEY=VALUE or KEY=best (got "${h}")`);
   const value = m[2] === 'best' ? 'best' : Number(m[2]);
-  if (value !== 'best' && !Number.isFinite(value)) fail(`--hold ${m[1]} needs a number or "best" (got "${m[2]}")`);
+  if (value !== 'best' && !Number.isFinite(value)) usage(`--hold ${m[1]} needs a number or "best" (got "${m[2]}")`);
   return { parameter: m[1], value: value as number | 'best' };
 });
 const decorrelate = values.decorrelate!.map((d) => {
   const m = /^(.+):(region|process)$/.exec(d);
-  if (!m) fail(`--decorrelate needs KEY:region or KEY:process (got "${d}")`);
+  if (!m) usage(`--decorrelate needs KEY:region or KEY:process (got "${d}")`);
   return { parameter: m[1], by: m[2] as 'region' | 'process' };
 });
-if (!['none', 'quick', 'full'].includes(values.impacts!)) fail(`--impacts must be none, quick or full (got "${values.impacts}")`);
+if (!['none', 'quick', 'full'].includes(values.impacts!)) usage(`--impacts must be none, quick or full (got "${values.impacts}")`);
+
+// A scan's flags, and the fit's flags that do not apply to a scan (a scan fits each hypothesis on its own terms).
+const scanFlags = { expected: values.expected, 'no-limit': values['no-limit'], 'reference-level': values['reference-level'], 'toys-upcrossings': values['toys-upcrossings'], 'toys-trials': values['toys-trials'], seed: values.seed };
+const fitFlags = {
+  asimov: values.asimov,
+  'control-only': values['control-only'],
+  impacts: values.impacts === 'quick' ? undefined : values.impacts,
+  scan: values.scan,
+  limit: values.limit,
+  exclude: values.exclude!.length ? values.exclude : undefined,
+  hold: values.hold!.length ? values.hold : undefined,
+  'hold-group': values['hold-group']!.length ? values['hold-group'] : undefined,
+  'stat-only': values['stat-only'],
+  'no-template-stats': values['no-template-stats'],
+  decorrelate: values.decorrelate!.length ? values.decorrelate : undefined,
+  'expected-from': values['expected-from'] === 'prefit' ? undefined : values['expected-from'],
+  'hidden-mu': values['hidden-mu'],
+  breakdown: values.breakdown,
+};
+const given = (flags: Record<string, unknown>) => Object.entries(flags).filter(([, v]) => v !== undefined && v !== false).map(([k]) => `--${k}`);
+if (scanning && given(fitFlags).length) usage(`${given(fitFlags)[0]} does not apply to --scan-hypotheses`);
+if (!scanning && given(scanFlags).length) usage(`${given(scanFlags)[0]} needs --scan-hypotheses`);
+/** A whole number of a flag within [0, max]. */
+const whole = (flag: string, text: string | undefined, fallback: number, max: number) => {
+  if (text === undefined) return fallback;
+  if (!/^[0-9]+$/.test(text) || Number(text) > max) usage(`--${flag} needs a whole number from 0 to ${max} (got "${text}")`);
+  return Number(text);
+};
+const referenceLevel = values['reference-level'] === undefined ? 0.5 : Number(values['reference-level']);
+if (!(referenceLevel >= 0.01 && referenceLevel <= 4)) usage(`--reference-level needs a number from 0.01 to 4 (got "${values['reference-level']}")`);
+const scanOptions: HypothesisScanOptionsInput = {
+  dataset: values.expected ? 'expected' : 'observed',
+  limit: !values['no-limit'],
+  referenceLevel,
+  upcrossingToys: whole('toys-upcrossings', values['toys-upcrossings'], 0, 2000),
+  trialsToys: whole('toys-trials', values['toys-trials'], 0, 20000),
+  seed: whole('seed', values.seed, 1, 2 ** 31 - 1),
+};
 
 let raw: unknown;
 try {
@@ -105,7 +166,11 @@ const options: FitOptionsInput = {
   hiddenMu: values['hidden-mu'],
   breakdown: values.breakdown,
 };
-if (!Number.isFinite(options.asimovMu)) fail(`--asimov needs a number (got "${values.asimov}")`);
+if (!Number.isFinite(options.asimovMu)) usage(`--asimov needs a number (got "${values.asimov}")`);
+if (scanning) {
+  await scan(parsed.data);
+  process.exit(process.exitCode ?? 0);
+}
 
 const issues = variantIssues(parsed.data, { hold, holdGroups: values['hold-group']!, statOnly: values['stat-only']!, decorrelate, controlOnly: values['control-only']! });
 if (issues.length) fail(issues.map((i) => `  options.${i.path.join('.')}: ${i.message}`).join('\n'));
@@ -115,7 +180,7 @@ const pool = needsPool ? createFitPool(values.threads ? { threads: Number(values
 try {
   const computed = await fitModel(parsed.data, options, { pool });
   const result = options.hiddenMu ? hideMu(computed) : computed;
-  writeFileSync(values.out, `${JSON.stringify(result, null, 1)}\n`);
+  writeFileSync(values.out!, `${JSON.stringify(result, null, 1)}\n`);
   const mu = result.summary?.mu;
   process.stdout.write(
     result.status === 'converged' && options.hiddenMu
@@ -130,4 +195,76 @@ try {
   throw error;
 } finally {
   await pool?.destroy();
+}
+
+/** The scan over the model's signal hypotheses: a table per hypothesis and the global significance. */
+async function scan(model: ExchangeModel): Promise<void> {
+  const threads = values.threads ? Number(values.threads) : undefined;
+  const pool = createFitPool(threads ? { threads } : {});
+  const withToys = scanOptions.dataset === 'observed' && (scanOptions.upcrossingToys! > 0 || scanOptions.trialsToys! > 0);
+  const toyThreads = withToys ? workerPool(threadEntry('hypothesis-toys.worker'), { minThreads: pool.threads, maxThreads: pool.threads, workerData: { niceness: 0 } }) : null;
+  const runToys = toyThreads ? (task: ScanToyTask, signal?: AbortSignal) => toyThreads.run(task, { signal }) as Promise<ScanToyOutcome[]> : undefined;
+  try {
+    const result = await scanHypotheses(model, scanOptions, { pool, runToys, toyBatchesInFlight: 2 * pool.threads });
+    if (values.out) writeFileSync(values.out, `${JSON.stringify(result, null, 1)}\n`);
+    process.stdout.write(scanReport(result));
+    process.exitCode = result.points.some((p) => p.status === 'failed') ? 3 : 0;
+  } catch (error) {
+    if (error instanceof FitInputError) fail(`${error.message}${error.path.length ? ` (at ${error.path.join('.')})` : ''}`);
+    throw error;
+  } finally {
+    await pool.destroy();
+    await toyThreads?.destroy();
+  }
+}
+
+/** Three significant digits, or an exponent below 1e-3. */
+function num(x: number | null | undefined, digits = 3): string {
+  if (x === null || x === undefined) return '–';
+  if (x !== 0 && Math.abs(x) < 1e-3) return x.toExponential(digits - 1);
+  return Number(x.toPrecision(digits)).toString();
+}
+
+function scanReport(r: HypothesisScanResult): string {
+  const unit = r.parameter.unit ? ` [${r.parameter.unit}]` : '';
+  const header = [`${r.parameter.name}${unit}`, 'status', 'μ̂', 'σ_μ', 'local Z', 'p0', 'exp. Z', 'obs. limit', 'exp. limit', '±1σ', '±2σ'];
+  const rows = r.points.map((p) => {
+    const e = p.limit?.expected;
+    return [
+      num(p.value, 6),
+      p.status,
+      num(p.mu?.value),
+      num(p.mu?.error),
+      num(p.local?.z),
+      num(p.local?.p0),
+      num(p.expected?.z),
+      num(p.limit?.observed),
+      num(e?.median),
+      e ? `${num(e.minus1)}–${num(e.plus1)}` : '–',
+      e ? `${num(e.minus2)}–${num(e.plus2)}` : '–',
+    ];
+  });
+  const widths = header.map((h, c) => Math.max(h.length, ...rows.map((row) => row[c].length)));
+  const line = (cells: string[]) => `  ${cells.map((cell, c) => (c < 2 ? cell.padEnd(widths[c]) : cell.padStart(widths[c]))).join('  ')}`.trimEnd();
+  const out = [
+    `scan over ${r.parameter.name}${r.parameter.unit ? ` (${r.parameter.unit})` : ''}, ${r.dataset} data: ${r.points.length} hypotheses, ${r.points.filter((p) => p.status === 'failed').length} failed (${r.seconds.toFixed(1)} s)`,
+    line(header),
+    ...rows.map(line),
+  ];
+  for (const p of r.points) if (p.status === 'failed') out.push(`  ${p.label}: the fit failed: ${p.message}`);
+  const g = r.global;
+  if (g) {
+    const at = r.points.find((p) => p.key === g.at.key)!;
+    out.push(
+      `largest local excess: ${r.parameter.name} = ${num(g.at.value, 6)}${r.parameter.unit ? ` ${r.parameter.unit}` : ''} (${at.key}): q0 = ${num(g.at.q0, 4)}, local Z = ${num(g.at.z)}, p0 = ${num(g.at.p0)}`,
+      `upcrossings of q0 through c0 = ${g.referenceLevel}: ${g.upcrossings.observed} along the observed scan` +
+        (g.upcrossings.toys ? `; mean ${num(g.upcrossings.toys.mean)} ± ${num(g.upcrossings.toys.error, 2)} on ${g.upcrossings.toys.count} background-only toys` : ''),
+      `global, from the upcrossings (⟨N(c0)⟩ from the ${g.upcrossingEstimate.source === 'toys' ? 'toys' : 'observed scan'}): p = ${num(g.upcrossingEstimate.p)} ± ${num(g.upcrossingEstimate.pError, 2)}, Z = ${num(g.upcrossingEstimate.z)}, trials factor ${num(g.upcrossingEstimate.trialsFactor)}`,
+    );
+    const t = g.fromToys;
+    if (t) out.push(`global, from toys (${t.exceeding} of ${t.count} reach q0 = ${num(g.at.q0, 4)}): p = ${num(t.p)} ± ${num(t.pError, 2)}, Z = ${num(t.z)}, trials factor ${num(t.trialsFactor)}`);
+  } else if (r.dataset === 'observed') out.push('no global significance (see the warnings)');
+  const warnings = [...r.warnings, ...r.points.flatMap((p) => p.warnings.map((w) => `${p.label}: ${w}`))];
+  if (warnings.length) out.push('warnings:', ...warnings.map((w) => `  - ${w}`));
+  return `${out.join('\n')}\n`;
 }
