@@ -7,13 +7,15 @@
  * load average is printed before and after each size, since the machine may be shared. Refits are
  * counted per rung of the ladder (warm / Newton / cold / failed).
  * Targets on a 2-core machine, medians: large fit ≤ 0.2 s, large full post-fit impacts ≤ 2 s,
- * large every output ≤ 5 s; peak RSS < 500 MB.
+ * large every output ≤ 5 s; peak RSS < 500 MB. With the medium size, one more row: a scan over 30
+ * signal hypotheses of the medium model (synthetic.ts, `hypotheses: 30`) with limits, on the pool
+ * (target ≤ 20 s on 2 threads), with its points and failures.
  *
  *   npm run bench:fit [-- --sizes tiny,small --threads 2 --repeat 3]
  */
 import { readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
-import { fitModel, syntheticModel, type SyntheticSize } from '../server/fit';
+import { fitModel, scanHypotheses, syntheticModel, type SyntheticSize } from '../server/fit';
 import { createFitPool } from '../server/runs/threads/pool';
 import { benchReview } from './bench-review';
 import { curvatureAt } from '../server/fit/covariance';
@@ -155,9 +157,34 @@ for (const size of sizes) {
     verdict('large every output', median(everyTimes), 5);
   }
 }
+// A scan over signal hypotheses: each hypothesis's fit with q0, the expected significance and the CLs
+// limit with its bands, two hypotheses in flight, their refits on the pool.
+let scanRow: Record<string, string | number> | null = null;
+if (sizes.includes('medium')) {
+  const model = syntheticModel('medium', 1, { hypotheses: 30 });
+  const times: number[] = [];
+  let scan: Awaited<ReturnType<typeof scanHypotheses>> | null = null;
+  const loadBefore = loadAverage();
+  for (let rep = 0; rep < repeat; rep++) {
+    const t = performance.now();
+    scan = await scanHypotheses(model, { limit: true }, { pool });
+    times.push(elapsed(t));
+  }
+  const median = [...times].sort((a, b) => a - b)[Math.floor((times.length - 1) / 2)];
+  scanRow = {
+    row: '30-hypothesis scan of the medium model with limits',
+    's': bestMedian(times),
+    points: scan!.points.length,
+    failed: scan!.points.filter((p) => p.status === 'failed').length,
+    target: `≤ 20 s: ${median <= 20 ? 'met' : `missed by ${(median - 20).toFixed(2)} s`}`,
+  };
+  console.log(`scan over signal hypotheses: load average ${loadBefore} → ${loadAverage()}`);
+  console.log(scanRow);
+}
 clearInterval(sampler);
 await pool.destroy();
 console.table(rows);
+if (scanRow) console.table([scanRow]);
 console.log(`load average after: ${loadAverage()}`);
 console.log(`threads: ${pool.threads}; times are best / median of ${repeat} (one run: that run); peak RSS of this process: ${(peakRss / 2 ** 20).toFixed(0)} MB (worker threads share it)`);
 // the review work on the large model through a running server (scripts/bench-review.ts)
