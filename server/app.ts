@@ -7,6 +7,7 @@ import type { Database } from './db/client';
 import type { Mailer } from './mail/mailer';
 import type { ToyRunner } from './runs/toy-runner';
 import type { FitRunner } from './runs/fit-runner';
+import type { HypothesisScanRunner } from './runs/hypothesis-scan-runner';
 import { authorizer } from './auth/authorize';
 import { csrf } from './auth/csrf';
 import { createPassport } from './auth/passport';
@@ -21,6 +22,7 @@ import { registerRoutes } from './routes/register.routes';
 import { modelRoutes } from './routes/model.routes';
 import { invitationsRoutes } from './routes/invitations.routes';
 import { toysRoutes } from './routes/toys.routes';
+import { hypothesisScansRoutes } from './routes/hypothesis-scans.routes';
 import { fitsRoutes } from './routes/fits.routes';
 import { reviewRoutes } from './routes/review.routes';
 
@@ -44,9 +46,9 @@ const plainAddress: express.RequestHandler = (req, _res, next) => {
 export type App = { app: Express; routes: ApiRoute[]; ctx: AppContext };
 
 /** Builds the Express app without listening: tests drive it with supertest, server/index.ts listens. */
-export function createApp(database: Database, config: Config, deps: { mailer: Mailer; fits: FitRunner; toys: ToyRunner; log?: (line: string) => void }): App {
+export function createApp(database: Database, config: Config, deps: { mailer: Mailer; fits: FitRunner; toys: ToyRunner; scans: HypothesisScanRunner; log?: (line: string) => void }): App {
   const log = deps.log ?? console.log;
-  const ctx: AppContext = { db: database.db, client: database.client, config, mailer: deps.mailer, fits: deps.fits, toys: deps.toys, log };
+  const ctx: AppContext = { db: database.db, client: database.client, config, mailer: deps.mailer, fits: deps.fits, toys: deps.toys, scans: deps.scans, log };
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
@@ -71,6 +73,7 @@ export function createApp(database: Database, config: Config, deps: { mailer: Ma
     ...invitationsRoutes(ctx, auth),
     ...fitsRoutes(ctx, auth),
     ...toysRoutes(ctx, auth),
+    ...hypothesisScansRoutes(ctx, auth),
     ...reviewRoutes(ctx, auth),
     ...outboxRoutes(ctx, auth),
   ];

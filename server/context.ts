@@ -3,6 +3,7 @@ import type { Db, DbClient } from './db/client';
 import type { Mailer } from './mail/mailer';
 import type { FitRunner } from './runs/fit-runner';
 import type { ToyRunner } from './runs/toy-runner';
+import type { HypothesisScanRunner } from './runs/hypothesis-scan-runner';
 
 /** What every route and service may reach: built once in createApp. */
 export type AppContext = {
@@ -12,5 +13,6 @@ export type AppContext = {
   mailer: Mailer;
   fits: FitRunner;
   toys: ToyRunner;
+  scans: HypothesisScanRunner;
   log: (line: string) => void;
 };

@@ -11,6 +11,7 @@ import { createMailer } from './mail/mailer';
 import { outboxStore } from './db/outbox.repository';
 import { createFitRunner } from './runs/fit-runner';
 import { createToyRunner } from './runs/toy-runner';
+import { createHypothesisScanRunner } from './runs/hypothesis-scan-runner';
 import { startQueue } from './runs/queue/queue';
 import { queuedFitRunner, queuedToyRunner } from './runs/queue/queued-runners';
 import { seedDemo } from './seed/demo';
@@ -74,9 +75,12 @@ async function serve(config: Config, prepared: Awaited<ReturnType<typeof prepare
   const queue = config.DATABASE_URL ? await startQueue(config.DATABASE_URL, console.error) : null;
   const fits = queue ? queuedFitRunner(database.db, queue, local) : local;
   const toys = queue ? queuedToyRunner(database.db, queue) : createToyRunner(database.db, console.error, { threads, niceness: config.FIT_NICENESS });
+  // scans over signal hypotheses run on this process's threads on both paths
+  const scans = createHypothesisScanRunner(database.db, console.error, { threads, niceness: config.FIT_NICENESS });
   await fits.recover();
   await toys.recover();
-  const { app, ctx } = createApp(database, config, { mailer, fits, toys });
+  await scans.recover();
+  const { app, ctx } = createApp(database, config, { mailer, fits, toys, scans });
   // the demo's story on its first start: fits computed, questions asked, mail sent (seed/story.ts)
   if ((prepared || process.env.PLUMBLINE_STORY === '1') && (await storyPending(ctx))) {
     const started = Date.now();
@@ -96,6 +100,7 @@ async function serve(config: Config, prepared: Awaited<ReturnType<typeof prepare
     stopping = true;
     server.close();
     await closeClient();
+    await scans.close();
     await toys.close();
     await fits.close();
     await queue?.stop({ graceful: false, wait: true, timeout: 5000 }).catch(() => {});

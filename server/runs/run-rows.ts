@@ -1,18 +1,19 @@
 import { and, eq } from 'drizzle-orm';
 import type { Db } from '../db/client';
-import { fits, toyRuns } from '../db/schema';
+import { fits, hypothesisScans, toyRuns } from '../db/schema';
 import { conflict } from '../errors';
 
 /**
- * Rows that run as jobs (a job is one fit or one toy run, queued, run and finished): fits and toy
- * runs share their id, state, progress, stage, failure, times and coordinator.
+ * Rows that run as jobs (a job is one fit, one toy run or one scan over hypotheses, queued, run and
+ * finished): they share their id, state, progress, stage, failure, times and coordinator.
  */
-export type JobTable = typeof fits | typeof toyRuns;
-export const JOB_TABLES: readonly JobTable[] = [fits, toyRuns];
+export type JobTable = typeof fits | typeof toyRuns | typeof hypothesisScans;
+export const JOB_TABLES: readonly JobTable[] = [fits, toyRuns, hypothesisScans];
 export const toyRunsTable: JobTable = toyRuns;
 export const fitsTable: JobTable = fits;
+export const hypothesisScansTable: JobTable = hypothesisScans;
 
-type JobValues = Partial<typeof fits.$inferInsert> & Partial<typeof toyRuns.$inferInsert>;
+type JobValues = Partial<typeof fits.$inferInsert> & Partial<typeof toyRuns.$inferInsert> & Partial<typeof hypothesisScans.$inferInsert>;
 
 /**
  * One job's row while it runs, wherever it runs: `start` takes it from queued to running (false

@@ -15,6 +15,8 @@ import { GroupsRoute } from './routes/analysis/groups';
 import { FitsRoute } from './routes/analysis/fits';
 import { FitResultRoute } from './routes/analysis/fit-result';
 import { ReviewSetRoute } from './routes/analysis/review-set';
+import { HypothesesRoute } from './routes/analysis/hypotheses';
+import { HypothesisScanRoute } from './routes/analysis/hypothesis-scan';
 import { QuestionsRoute } from './routes/analysis/questions';
 import { QuestionRoute } from './routes/analysis/question';
 import { MembersRoute } from './routes/analysis/members';
@@ -50,6 +52,8 @@ export const routes = [
               { path: 'fits', ...screen(<FitsRoute />) },
               { path: 'fits/:fitId/:tab?', ...screen(<FitResultRoute />) },
               { path: 'review-sets/:setId', ...screen(<ReviewSetRoute />) },
+              { path: 'hypotheses', ...screen(<HypothesesRoute />) },
+              { path: 'hypotheses/:scanId', ...screen(<HypothesisScanRoute />) },
               { path: 'questions', ...screen(<QuestionsRoute />) },
               { path: 'questions/:id', ...screen(<QuestionRoute />) },
               { path: 'members', ...screen(<MembersRoute />) },

@@ -14,6 +14,7 @@ const fit = (slug: string, id: number) => [...fits(slug), id] as const;
 const questions = (slug: string) => [...analysis(slug), 'questions'] as const;
 const questionLists = (slug: string) => [...questions(slug), 'list'] as const;
 const pruning = (slug: string) => [...analysis(slug), 'pruning'] as const;
+const hypothesisScans = (slug: string) => [...analysis(slug), 'hypothesis-scans'] as const;
 
 export const queryKeys = {
   /** The signed-in user (null when signed out). */
@@ -38,6 +39,10 @@ export const queryKeys = {
   /** The pruning overview (rules, candidates, pruned effects); its previews sit under it. */
   pruning,
   pruningPreview: (slug: string, id: number) => [...pruning(slug), 'previews', id] as const,
+
+  /** The scans over signal hypotheses; every scan's key starts with it. */
+  hypothesisScans,
+  hypothesisScan: (slug: string, id: number) => [...hypothesisScans(slug), id] as const,
 
   versions: (slug: string) => [...analysis(slug), 'versions'] as const,
   /** The fits' list; every fit's key starts with it. */

@@ -12,6 +12,7 @@ import { seedDemo } from '../../server/seed/demo';
 import { createMailer } from '../../server/mail/mailer';
 import { outboxStore } from '../../server/db/outbox.repository';
 import { createToyRunner } from '../../server/runs/toy-runner';
+import { createHypothesisScanRunner } from '../../server/runs/hypothesis-scan-runner';
 import { createFitRunner } from '../../server/runs/fit-runner';
 import { Client, createTestApp, DEMO, signedIn, type TestApp } from './helpers';
 
@@ -196,7 +197,7 @@ describe('a data folder', () => {
       await seedDemo(database.db);
       let mailer = await createMailer(outboxStore(database.db), config, () => {});
       let fits = createFitRunner(database.db, () => {}, { threads: 1 });
-      const client = await signedIn(createApp(database, config, { mailer, fits, toys: createToyRunner(database.db, () => {}), log: () => {} }).app, DEMO.reader);
+      const client = await signedIn(createApp(database, config, { mailer, fits, toys: createToyRunner(database.db, () => {}), scans: createHypothesisScanRunner(database.db, () => {}), log: () => {} }).app, DEMO.reader);
       const cookie = (await client.get('/api/auth/me')).request.cookies;
       await fits.close();
       await mailer.close();
@@ -205,7 +206,7 @@ describe('a data folder', () => {
       database = await openDatabase(dir);
       mailer = await createMailer(outboxStore(database.db), config, () => {});
       fits = createFitRunner(database.db, () => {}, { threads: 1 });
-      const res = await request(createApp(database, config, { mailer, fits, toys: createToyRunner(database.db, () => {}), log: () => {} }).app).get('/api/auth/me').set('Cookie', cookie);
+      const res = await request(createApp(database, config, { mailer, fits, toys: createToyRunner(database.db, () => {}), scans: createHypothesisScanRunner(database.db, () => {}), log: () => {} }).app).get('/api/auth/me').set('Cookie', cookie);
       expect(res.status).toBe(200);
       expect(res.body.user.email).toBe(DEMO.reader);
       await fits.close();
@@ -234,7 +235,7 @@ describe('an error inside the server', () => {
     const logged: string[] = [];
     const t = await createTestApp();
     try {
-      const app = createApp(t.database, t.ctx.config, { mailer: t.mailer, fits: t.fits, toys: t.toys, log: (line) => logged.push(line) }).app;
+      const app = createApp(t.database, t.ctx.config, { mailer: t.mailer, fits: t.fits, toys: t.toys, scans: t.scans, log: (line) => logged.push(line) }).app;
       const analyst = await signedIn(app, DEMO.analyst);
       // a table gone from under the server: the query fails inside the driver
       await t.database.client.exec('alter table entries rename to entries_gone');

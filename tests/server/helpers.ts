@@ -8,6 +8,7 @@ import { createMailer, type Mailer } from '../../server/mail/mailer';
 import { outboxStore } from '../../server/db/outbox.repository';
 import { createFitRunner, type FitRunner } from '../../server/runs/fit-runner';
 import { createToyRunner, type ToyRunner } from '../../server/runs/toy-runner';
+import { createHypothesisScanRunner, type HypothesisScanRunner } from '../../server/runs/hypothesis-scan-runner';
 import { users } from '../../server/db/schema';
 import { seedDemo } from '../../server/seed/demo';
 import { DEMO_PASSWORD } from '../../server/seed/scenario';
@@ -23,7 +24,7 @@ export const DEMO = {
 } as const;
 export const PASSWORD = DEMO_PASSWORD;
 
-export type TestApp = App & { database: Database; mailer: Mailer; fits: FitRunner; toys: ToyRunner; close: () => Promise<void> };
+export type TestApp = App & { database: Database; mailer: Mailer; fits: FitRunner; toys: ToyRunner; scans: HypothesisScanRunner; close: () => Promise<void> };
 
 /** A real app on an in-memory PGlite with migrations applied and the demo seeded (plus one account that belongs to no analysis). */
 export async function createTestApp(overrides: Partial<Config> = {}): Promise<TestApp> {
@@ -34,14 +35,17 @@ export async function createTestApp(overrides: Partial<Config> = {}): Promise<Te
   const mailer = await createMailer(outboxStore(database.db), config, () => {});
   const fits = createFitRunner(database.db, () => {}, { threads: 2 });
   const toys = createToyRunner(database.db, () => {}, { threads: 2 });
-  const app = createApp(database, config, { mailer, fits, toys, log: process.env.TEST_LOG ? console.error : () => {} });
+  const scans = createHypothesisScanRunner(database.db, () => {}, { threads: 2 });
+  const app = createApp(database, config, { mailer, fits, toys, scans, log: process.env.TEST_LOG ? console.error : () => {} });
   return {
     ...app,
     database,
     mailer,
     fits,
     toys,
+    scans,
     close: async () => {
+      await scans.close();
       await toys.close();
       await fits.close();
       await mailer.close();

@@ -13,6 +13,7 @@ const SECTIONS = [
   { to: 'model', label: 'Model' },
   { to: 'groups', label: 'Groups' },
   { to: 'fits', label: 'Fits' },
+  { to: 'hypotheses', label: 'Hypotheses' },
   { to: 'questions', label: 'Questions' },
   { to: 'members', label: 'Members' },
 ] as const;
