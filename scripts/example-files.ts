@@ -31,4 +31,11 @@ writeFileSync(
 const edges = search.model.regions.find((x) => x.key === 'CR-shower')!.edges;
 writeFileSync('docs/examples/templates.csv', ['region,process,bin,nominal,variance', ...nominal.map((n, b) => `CR-shower,continuum,${b + 1},${n},${r(n * 0.01)}`)].join('\n') + '\n');
 writeFileSync('docs/examples/observed.csv', ['region,bin,observed', ...edges.slice(1).map((_, b) => `CR-shower,${b + 1},${Math.round(nominal[b] * 1.02)}`)].join('\n') + '\n');
-console.log('wrote docs/examples/{variations.csv,variations.json,templates.csv,observed.csv}');
+// a signal hypothesis of the search as the Model screen takes it: its templates CSV and its effects (JSON)
+const hypothesis = search.model.signalHypotheses!.points.find((p) => p.key === 'm1250')!;
+writeFileSync(
+  'docs/examples/hypothesis-m1250.csv',
+  ['region,process,bin,nominal,variance', ...hypothesis.templates.flatMap((t) => t.nominal.map((n, b) => `${t.region},${t.process},${b + 1},${n},${t.variance![b]}`))].join('\n') + '\n',
+);
+writeFileSync('docs/examples/hypothesis-m1250-effects.json', JSON.stringify(hypothesis.effects, null, 2) + '\n');
+console.log('wrote docs/examples/{variations.csv,variations.json,templates.csv,observed.csv,hypothesis-m1250.csv,hypothesis-m1250-effects.json}');

@@ -18,6 +18,7 @@ import {
   updateRegion,
   uploadModelCsv,
 } from '../services/model-edit.service';
+import { deleteHypothesis, getHypotheses, getHypothesis, saveHypothesis, setHypothesisParameter } from '../services/signal-hypotheses.service';
 import { wantsSave } from './base-url';
 import { route, type ApiRoute } from './route';
 
@@ -66,6 +67,25 @@ export const modelRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>
     route('post', '/api/analyses/:slug/model/csv', edit, file, async (req, res) => {
       const save = wantsSave(req);
       res.status(save ? 201 : 200).json(await uploadModelCsv(ctx, accessOf(req), req.query.kind, req.file, save));
+    }),
+
+    // signal hypotheses: the parameter they differ in, and each one uploaded whole (CSV + effects)
+    route('get', '/api/analyses/:slug/signal-hypotheses', auth.may('analysis.read'), async (req, res) => {
+      res.json(await getHypotheses(ctx, accessOf(req)));
+    }),
+    route('get', '/api/analyses/:slug/signal-hypotheses/:hypothesis', auth.may('analysis.read'), async (req, res) => {
+      res.json(await getHypothesis(ctx, accessOf(req), p(req, 'hypothesis')));
+    }),
+    route('put', '/api/analyses/:slug/hypothesis-parameter', edit, async (req, res) => {
+      res.json(await setHypothesisParameter(ctx, accessOf(req), req.body));
+    }),
+    route('post', '/api/analyses/:slug/signal-hypotheses', edit, file, async (req, res) => {
+      const save = wantsSave(req);
+      res.status(save ? 201 : 200).json(await saveHypothesis(ctx, accessOf(req), req.body, req.file, save));
+    }),
+    route('delete', '/api/analyses/:slug/signal-hypotheses/:hypothesis', edit, async (req, res) => {
+      await deleteHypothesis(ctx, accessOf(req), p(req, 'hypothesis'));
+      res.status(204).end();
     }),
 
     route('get', '/api/analyses/:slug/exchange', auth.may('analysis.read'), async (req, res) => {

@@ -1,5 +1,4 @@
 import type { Region, Process } from '@shared/schemas/api';
-import { LIMITS } from '@shared/schemas/exchange';
 import { processView, regionView } from './model.service';
 import {
   floatingNormInputSchema,
@@ -14,7 +13,7 @@ import {
 } from '@shared/schemas/register';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
-import { indexModel, loadModelRows, type ModelIndex } from '../db/model.repository';
+import { indexModel, loadModelRows } from '../db/model.repository';
 import { addRevision, type DbOrTx } from '../db/revisions.repository';
 import {
   countEffects,
@@ -35,14 +34,16 @@ import {
   updateRegionRow,
 } from '../db/model-edits.repository';
 import { conflict, notFound, unprocessable } from '../errors';
-import { binCell, numberCell, readCsv } from '../uploads/csv';
 import { readUpload } from '../uploads/upload';
+import { readObservedCsv, readTemplatesCsv } from './template-files';
 import { assertRoleMayChange, isWithheld } from './blinding.service';
+import { assertNoHypothesesOn } from './signal-hypotheses.service';
 
 /**
  * The analysts' model editor. Every change is refused whole when it would leave the model
- * inconsistent (templates or variations of the wrong length, effects on a removed template),
- * and every accepted change is recorded as a revision of the model.
+ * inconsistent (templates or variations of the wrong length, effects on a removed template, a
+ * signal hypothesis replacing a template that is gone or no longer a signal's), and every
+ * accepted change is recorded as a revision of the model.
  */
 
 const modelRevision = (db: DbOrTx, access: Access, action: string, summary: string, before?: unknown, after?: unknown) =>
@@ -91,6 +92,7 @@ export async function updateRegion(ctx: AppContext, access: Access, key: string,
     if (bad) throw bad;
     const bins = input.edges.length - 1;
     if (bins !== region.edges.length - 1) {
+      await assertNoHypothesesOn(ctx.db, access, { region: key }, `templates of region "${key}" with its ${region.edges.length - 1} bins`, 'Change the edges without changing the bin count, or remove those hypotheses first.');
       const n = await countTemplatesOfRegion(ctx.db, region.id);
       if (n > 0 || region.observed)
         throw conflict(`Region "${key}" has ${n} template${n === 1 ? '' : 's'}${region.observed ? ' and observed data' : ''} with ${region.edges.length - 1} bins. Change the edges without changing the bin count, or remove them first.`);
@@ -106,6 +108,7 @@ export async function updateRegion(ctx: AppContext, access: Access, key: string,
 export async function deleteRegion(ctx: AppContext, access: Access, key: string) {
   const region = await findRegion(ctx.db, access, key);
   await refuseIfVaried(ctx.db, { regionId: region.id }, `templates of region "${key}"`);
+  await assertNoHypothesesOn(ctx.db, access, { region: key }, `templates of region "${key}"`, 'Remove those hypotheses, or replace them without this region, first.');
   await ctx.db.transaction(async (tx) => {
     await deleteRegionRow(tx, region.id);
     await modelRevision(tx, access, 'region.deleted', `Removed region "${key}" and its templates.`, { key, role: region.role, edges: region.edges });
@@ -138,6 +141,8 @@ export async function createProcess(ctx: AppContext, access: Access, body: unkno
 export async function updateProcess(ctx: AppContext, access: Access, key: string, body: unknown): Promise<Process> {
   const input = processPatchSchema.parse(body);
   const process = await findProcess(ctx.db, access, key);
+  if (input.kind && input.kind !== process.kind)
+    await assertNoHypothesesOn(ctx.db, access, { process: key }, `templates of the signal process "${key}"`, 'A hypothesis replaces signal templates only: keep the process a signal, or remove those hypotheses first.');
   return ctx.db.transaction(async (tx) => {
     const p = await updateProcessRow(tx, process.id, input);
     await modelRevision(tx, access, 'process.edited', `Changed ${Object.keys(input).join(', ')} of process "${key}".`, process, p);
@@ -148,6 +153,7 @@ export async function updateProcess(ctx: AppContext, access: Access, key: string
 export async function deleteProcess(ctx: AppContext, access: Access, key: string) {
   const process = await findProcess(ctx.db, access, key);
   await refuseIfVaried(ctx.db, { processId: process.id }, `templates of process "${key}"`);
+  await assertNoHypothesesOn(ctx.db, access, { process: key }, `templates of process "${key}"`, 'Remove those hypotheses, or replace them without this process, first.');
   await ctx.db.transaction(async (tx) => {
     await deleteProcessRow(tx, process.id);
     await modelRevision(tx, access, 'process.deleted', `Removed process "${key}" and its templates.`, { key, kind: process.kind });
@@ -204,67 +210,11 @@ export async function deleteTemplate(ctx: AppContext, access: Access, regionKey:
   const t = await templateOf(ctx.db, region.id, process.id);
   if (!t) throw notFound(`The template of process "${processKey}" in region "${regionKey}"`);
   await refuseIfVaried(ctx.db, { regionId: region.id, processId: process.id }, 'this template');
+  await assertNoHypothesesOn(ctx.db, access, { region: regionKey, process: processKey }, `the template of process "${processKey}" in region "${regionKey}"`, 'Remove those hypotheses, or replace them without this template, first.');
   await ctx.db.transaction(async (tx) => {
     await deleteTemplateRow(tx, t.id);
     await modelRevision(tx, access, 'template.deleted', `Removed the template of process "${processKey}" in region "${regionKey}".`, { nominal: t.nominal });
   });
-}
-
-type TemplateChange = { region: string; process: string; nominal: number[]; variance: number[] | null };
-
-function readTemplatesCsv(text: string, filename: string, model: ModelIndex): TemplateChange[] {
-  const { rows, problems } = readCsv(text, filename, { required: ['region', 'process', 'bin', 'nominal'], optional: ['variance'] });
-  const groups = new Map<string, { region: string; process: string; nominal: number[]; variance: number[]; filled: Map<number, number>; withVariance: number; rows: number }>();
-  for (const row of rows) {
-    const region = row.get('region');
-    const process = row.get('process');
-    if (!model.regions.has(region)) problems.at(row.line, 'region', `no region "${region}" in this analysis`);
-    if (!model.processes.has(process)) problems.at(row.line, 'process', `no process "${process}" in this analysis`);
-    if (!model.regions.has(region) || !model.processes.has(process)) continue;
-    const bins = model.bins(region);
-    const id = `${region}/${process}`;
-    if (!groups.has(id)) groups.set(id, { region, process, nominal: Array(bins).fill(0), variance: Array(bins).fill(0), filled: new Map(), withVariance: 0, rows: 0 });
-    const g = groups.get(id)!;
-    g.rows++;
-    const bin = binCell(problems, row, { region, bins, of: `region "${region}", process "${process}"`, seen: g.filled });
-    if (bin === null) continue;
-    const nominal = numberCell(problems, row, 'nominal', { min: 0, max: LIMITS.yield });
-    if (row.get('nominal') === '') problems.at(row.line, 'nominal', 'is empty');
-    const variance = numberCell(problems, row, 'variance', { min: 0, max: LIMITS.variance });
-    if (row.get('variance') !== '') g.withVariance++;
-    if (nominal !== null) g.nominal[bin - 1] = nominal;
-    if (variance !== null) g.variance[bin - 1] = variance;
-  }
-  for (const g of groups.values()) {
-    const bins = model.bins(g.region);
-    if (g.filled.size && g.filled.size !== bins) problems.at(null, null, `region "${g.region}" has ${bins} bins but the file gives ${g.filled.size} for process "${g.process}"`);
-    if (g.withVariance && g.withVariance !== g.rows) problems.at(null, 'variance', `is given in ${g.withVariance} of ${g.rows} rows of region "${g.region}", process "${g.process}": give it in every row or none`);
-  }
-  problems.throwIfAny();
-  return [...groups.values()].map((g) => ({ region: g.region, process: g.process, nominal: g.nominal, variance: g.withVariance ? g.variance : null }));
-}
-
-function readObservedCsv(text: string, filename: string, model: ModelIndex) {
-  const { rows, problems } = readCsv(text, filename, { required: ['region', 'bin', 'observed'] });
-  const groups = new Map<string, { counts: number[]; filled: Map<number, number> }>();
-  for (const row of rows) {
-    const region = row.get('region');
-    if (!model.regions.has(region)) {
-      problems.at(row.line, 'region', `no region "${region}" in this analysis`);
-      continue;
-    }
-    const bins = model.bins(region);
-    if (!groups.has(region)) groups.set(region, { counts: Array(bins).fill(0), filled: new Map() });
-    const g = groups.get(region)!;
-    const bin = binCell(problems, row, { region, bins, of: `region "${region}"`, seen: g.filled });
-    if (bin === null) continue;
-    const n = numberCell(problems, row, 'observed', { min: 0, max: LIMITS.yield });
-    if (row.get('observed') === '') problems.at(row.line, 'observed', 'is empty');
-    if (n !== null) g.counts[bin - 1] = n;
-  }
-  for (const [region, g] of groups) if (g.filled.size !== model.bins(region)) problems.at(null, null, `region "${region}" has ${model.bins(region)} bins but the file gives ${g.filled.size}`);
-  problems.throwIfAny();
-  return [...groups.entries()].map(([region, g]) => ({ region, counts: g.counts }));
 }
 
 /** A CSV of templates or observed counts: previewed (save = false) or saved in one transaction. */

@@ -8,6 +8,7 @@ import { addRevision } from '../db/revisions.repository';
 import { findVersionRow, insertNextVersion, listVersionRows, type VersionRow } from '../db/versions.repository';
 import { forbidden, notFound, unprocessable } from '../errors';
 import { buildExchange } from './exchange-export.service';
+import { hypothesisIssues } from './signal-hypotheses.service';
 
 const view = (v: VersionRow, createdBy: string | null): ModelVersion => {
   const model = v.model as ExchangeModel;
@@ -35,7 +36,9 @@ export async function findVersion(ctx: AppContext, analysisId: number, number: n
 
 /**
  * Freezes the current model into the next numbered, immutable version: the whole exchange
- * document (with all data, since it never leaves the server as such) and its SHA-256.
+ * document (with all data, since it never leaves the server as such) and its SHA-256. A signal
+ * hypothesis that no longer fits the model (a shape effect added since on a template it
+ * replaces) is refused by name: every fit reads the version by the exchange file's rules.
  */
 export async function freezeVersion(ctx: AppContext, access: Access, body: unknown): Promise<ModelVersion> {
   const input = freezeVersionSchema.parse(body);
@@ -43,6 +46,15 @@ export async function freezeVersion(ctx: AppContext, access: Access, body: unkno
   return ctx.db.transaction(async (tx) => {
     const model = await buildExchange(tx, access.analysis, { withhold: false });
     if (!model.regions.length || !model.processes.length) throw unprocessable('The model has no regions or no processes yet: there is nothing to freeze.');
+    const issues = hypothesisIssues(model);
+    if (issues.length)
+      throw unprocessable(
+        `The signal hypotheses no longer fit the model, so it cannot be frozen. Replace them with what is missing, or remove them (model screen, Signal hypotheses): ${issues
+          .slice(0, 3)
+          .map((i) => (i.hypothesis ? `"${i.hypothesis}" ${i.message}` : i.message))
+          .join('; ')}${issues.length > 3 ? ` (and ${issues.length - 3} more)` : ''}.`,
+        issues.map((i) => ({ path: ['signalHypotheses', ...(i.hypothesis ? [i.hypothesis] : [])], message: i.message })),
+      );
     const json = JSON.stringify(model);
     const v = await insertNextVersion(tx, {
       analysisId: access.analysis.id,

@@ -75,6 +75,7 @@ const BODIES: Body[] = [
   { method: 'patch', path: () => `${A}/processes/halo`, caller: 'analyst', body: () => ({ label: 'Beam halo', kind: 'background' }) },
   { method: 'post', path: () => `${A}/floating-norms`, caller: 'analyst', body: () => ({ key: 'k_new', start: 1, min: 0, max: 5 }) },
   { method: 'put', path: () => `${A}/templates/VR-mid/halo`, caller: 'analyst', body: () => ({ nominal: [1, 2, 3, 4, 5, 6, 7, 8], variance: [0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8] }) },
+  { method: 'put', path: () => `${A}/hypothesis-parameter`, caller: 'analyst', body: () => ({ name: 'mass', unit: 'GeV' }) },
   { method: 'post', path: () => `${A}/entries`, caller: 'analyst', body: () => ({ key: 'new_entry', label: 'New entry', description: 'What it covers.' }) },
   { method: 'patch', path: () => `${A}/entries/flare_id`, caller: 'analyst', body: () => ({ label: 'Changed', version: 1 }) },
   { method: 'post', path: () => `${A}/entries/flare_id/review`, caller: 'analyst', body: () => ({ action: 'submit', note: 'Ready.' }) },
@@ -97,6 +98,10 @@ const VARIATIONS_CSV = readFileSync('docs/examples/variations.csv', 'utf8');
 const VARIATIONS_JSON = JSON.parse(readFileSync('docs/examples/variations.json', 'utf8')) as Json;
 const TEMPLATES_CSV = readFileSync('docs/examples/templates.csv', 'utf8');
 const OBSERVED_CSV = readFileSync('docs/examples/observed.csv', 'utf8');
+const HYPOTHESIS_CSV = readFileSync('docs/examples/hypothesis-m1250.csv', 'utf8');
+const HYPOTHESIS_EFFECTS = JSON.parse(readFileSync('docs/examples/hypothesis-m1250-effects.json', 'utf8')) as Json;
+/** the demo's hypothesis m1250 uploaded in place of itself, but for the part the fuzz breaks */
+const HYPOTHESIS_FIELDS = { key: 'm1250', label: 'm = 1250 GeV', value: '1250', effects: JSON.stringify(HYPOTHESIS_EFFECTS) };
 
 /** Junk for a place in an address: no such thing exists, or it is no number, or it cannot be decoded. */
 const junkSegment = fc.constantFrom('0', '-1', '1.5', 'NaN', '1e999', '99999999999999999999', '%ZZ', '%00', 'x'.repeat(3000), '..%2F..%2Fetc', '%E9t%E9', '%F0%9F%92%A5', "1'%20or%20'1'='1", '__proto__', 'constructor', '%20');
@@ -152,6 +157,22 @@ export const TARGETS: Target[] = [
   {
     name: 'observed CSV',
     inputs: () => malformedCsv(OBSERVED_CSV, ['bin', 'observed']).map(upload(`${A}/model/csv?kind=observed&save=1`, 'analyst', 'observed.csv')),
+  },
+  {
+    name: 'signal hypothesis CSV',
+    inputs: () => malformedCsv(HYPOTHESIS_CSV, ['bin', 'nominal', 'variance'], ['variance']).map(upload(`${A}/signal-hypotheses?save=1`, 'analyst', 'm1250.csv', HYPOTHESIS_FIELDS)),
+  },
+  {
+    name: 'signal hypothesis effects',
+    inputs: () =>
+      malformedJson(HYPOTHESIS_EFFECTS).map(({ how, bytes }): Sent => ({
+        method: 'post',
+        path: `${A}/signal-hypotheses?save=1`,
+        caller: 'analyst',
+        bytes: Buffer.from(HYPOTHESIS_CSV),
+        file: { name: 'm1250.csv', field: { ...HYPOTHESIS_FIELDS, effects: bytes.toString('latin1') } },
+        how: `effects: ${how}`,
+      })),
   },
   {
     name: 'exchange file',

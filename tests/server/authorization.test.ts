@@ -2,7 +2,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { hashPassword } from '../../server/auth/passwords';
-import { analyses, effects, entries, fits, groups, impactChecks, invitations, memberships, modelVersions, processes, questions, regions, reviewSets, toyRuns, users } from '../../server/db/schema';
+import { readFileSync } from 'node:fs';
+import { analyses, effects, entries, fits, groups, impactChecks, invitations, memberships, modelVersions, processes, questions, regions, reviewSets, signalHypotheses, toyRuns, users } from '../../server/db/schema';
 import { Client, createTestApp, dbSnapshot, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
 
 /**
@@ -21,7 +22,7 @@ const EMAIL: Record<Exclude<Who, 'signedOut'>, string> = {
   outsider: DEMO.outsider,
 };
 
-type Call = { path: string; body?: unknown; file?: { name: string; content: string } };
+type Call = { path: string; body?: unknown; file?: { name: string; content: string }; fields?: Record<string, string> };
 type Row = {
   /** builds the concrete request; may create what the call needs first */
   call: (t: TestApp, who: Who, n: number) => Promise<Call> | Call;
@@ -154,6 +155,17 @@ async function queuedToys(t: TestApp) {
   return r.id;
 }
 const VARIATION_CSV = 'region,process,kind,bin,up,down\nCR-shower,showerpair,scale,,1.05,0.95\n';
+/** a signal hypothesis of the demo, previewed in place of itself */
+const HYPOTHESIS_CSV = readFileSync('docs/examples/hypothesis-m1250.csv', 'utf8');
+const HYPOTHESIS_EFFECTS = readFileSync('docs/examples/hypothesis-m1250-effects.json', 'utf8');
+/** a copy of the demo's hypothesis m1250 under a new key and value, for a removal */
+async function freshHypothesis(t: TestApp) {
+  created += 1;
+  const { analysisId } = await ids(t);
+  const [{ id: _id, createdAt: _at, ...m1250 }] = await t.database.db.select().from(signalHypotheses).where(and(eq(signalHypotheses.analysisId, analysisId), eq(signalHypotheses.key, 'm1250')));
+  const [h] = await t.database.db.insert(signalHypotheses).values({ ...m1250, key: `h${created}`, value: 5000 + created }).returning();
+  return h.key;
+}
 const A = `/api/analyses/${SLUG}`;
 
 export const MATRIX: Record<string, Row> = {
@@ -219,6 +231,14 @@ export const MATRIX: Record<string, Row> = {
     expect: analystOnly(204),
   },
   'POST /api/analyses/:slug/model/csv': { call: () => ({ path: `${A}/model/csv?kind=observed`, file: { name: 'data.csv', content: 'region,bin,observed\nVR-mid,1,3\nVR-mid,2,3\nVR-mid,3,3\nVR-mid,4,3\nVR-mid,5,3\nVR-mid,6,3\nVR-mid,7,3\nVR-mid,8,3\n' } }), expect: analystOnly(200) },
+  'GET /api/analyses/:slug/signal-hypotheses': { call: () => ({ path: `${A}/signal-hypotheses` }), expect: members(200) },
+  'GET /api/analyses/:slug/signal-hypotheses/:hypothesis': { call: () => ({ path: `${A}/signal-hypotheses/m1250` }), expect: members(200) },
+  'PUT /api/analyses/:slug/hypothesis-parameter': { call: () => ({ path: `${A}/hypothesis-parameter`, body: { name: 'mass', unit: 'GeV' } }), expect: analystOnly(200) },
+  'POST /api/analyses/:slug/signal-hypotheses': {
+    call: () => ({ path: `${A}/signal-hypotheses`, file: { name: 'm1250.csv', content: HYPOTHESIS_CSV }, fields: { key: 'm1250', label: 'm = 1250 GeV', value: '1250', effects: HYPOTHESIS_EFFECTS } }),
+    expect: analystOnly(200),
+  },
+  'DELETE /api/analyses/:slug/signal-hypotheses/:hypothesis': { call: async (t) => ({ path: `${A}/signal-hypotheses/${await freshHypothesis(t)}` }), expect: analystOnly(204) },
   'GET /api/analyses/:slug/exchange': { call: () => ({ path: `${A}/exchange` }), expect: members(200) },
   'POST /api/analyses/:slug/exchange': {
     call: async (t, who) => ({
@@ -401,13 +421,13 @@ describe('authorisation of every API route', () => {
     const [method, template] = name.split(' ');
     it.each(WHO)(`${name} answers %s with the status the permission table gives`, async (who) => {
       const client = await clientFor(who);
-      const { path, body, file } = await row.call(t, who, WHO.indexOf(who));
+      const { path, body, file, fields } = await row.call(t, who, WHO.indexOf(who));
       expect(path.startsWith(template.split('/:')[0])).toBe(true);
       const res =
         method === 'GET'
           ? await client.get(path)
           : file
-            ? await client.upload(path, file)
+            ? await client.upload(path, file, fields)
             : await client.send(method.toLowerCase() as 'post', path, body);
       expect({ who, status: res.status }).toEqual({ who, status: row.expect[who] });
       const text = res.text ?? JSON.stringify(res.body ?? null);
@@ -445,13 +465,14 @@ describe('every state-changing route demands the CSRF token of its own session',
     it(`${name} without a token, or with another session's, is refused and writes nothing`, async () => {
       const who = WHO.find((w) => row.expect[w] < 300)!;
       const client = who === 'signedOut' ? new Client(t.app) : await signedIn(t.app, EMAIL[who]);
-      const { path, body, file } = await row.call(t, who, 100 + WHO.indexOf(who));
+      const { path, body, file, fields } = await row.call(t, who, 100 + WHO.indexOf(who));
       const method = name.split(' ')[0].toLowerCase() as 'post' | 'put' | 'patch' | 'delete';
       const before = await dbSnapshot(t);
       const other = await new Client(t.app).csrf();
       for (const token of [null, other]) {
         let req = client.agent[method](path);
         if (token) req = req.set('x-csrf-token', token);
+        for (const [k, v] of Object.entries(fields ?? {})) req = req.field(k, v);
         const res = file ? await req.attach('file', Buffer.from(file.content), file.name) : await req.send((body ?? {}) as object);
         expect({ who, token: token ? 'another session' : 'none', status: res.status, code: res.body?.error?.code }).toEqual({ who, token: token ? 'another session' : 'none', status: 403, code: 'csrf' });
       }
