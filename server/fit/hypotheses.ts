@@ -170,6 +170,7 @@ async function backgroundOnlyToys(
   warnings: string[],
   onProgress: (fraction: number) => void,
 ): Promise<ToyScans | null> {
+  onProgress(0);
   const prepared = prepareScanToys(model, scanned.map((p) => p.key));
   warnings.push(...prepared.warnings);
   if (!prepared.setup) return null;

@@ -1,9 +1,11 @@
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitProblem, GlobalObservables } from './compiled-model';
+import { quasiNewtonFit } from './conditional-fit';
+import { curvatureAt, type FitContext } from './covariance';
 import { FitCancelledError } from './errors';
 import { declaredHypotheses, plainModel } from './hypothesis-model';
 import { negativeLogLikelihood } from './likelihood';
-import { createScratch, minimise, type MinimiseResult, type Scratch } from './minimiser';
+import { createScratch, minimise, type Scratch } from './minimiser';
 import { buildProblem, startPoint } from './problem';
 import { gaussian, poisson, toyRandom } from './sampling';
 import { createWorkspace, evaluateYields } from './yields';
@@ -26,7 +28,12 @@ import { createWorkspace, evaluateYields } from './yields';
  * whole scan when the signal templates carry no variances (or the same relative ones).
  *
  * Each toy fit is a minimisation only (no covariance, no refits): μ = 0 from the generation
- * point, then μ free for each hypothesis of the group from that minimum.
+ * point, then μ free for each hypothesis of the group from that minimum. As for a fit's toys
+ * (toys.ts), the minimisation takes quasi-Newton steps whose first inverse Hessian is the
+ * curvature of the expected likelihood at the generation point, computed once per hypothesis and
+ * setup, with Newton taking over where they stall (conditional-fit.ts), and the same stop on the
+ * Newton decrement as every fit; Newton throughout where that curvature is not positive definite.
+ * On the medium synthetic model with 30 hypotheses this halved the time of a toy.
  */
 
 export interface ScanToySetup {
@@ -134,6 +141,9 @@ export function prepareScanToys(model: ExchangeModel, keys: string[]): { setup: 
   return { setup, warnings };
 }
 
+/** Quasi-Newton steps before Newton takes over, as for a fit's toys (toys.ts: a toy's minimum lies further from its start than a refit's). */
+const TOY_STEPS = 80;
+
 export interface ScanToyFitter {
   run(seed: number, indices: readonly number[], signal?: AbortSignal): ScanToyOutcome[];
 }
@@ -156,15 +166,22 @@ export function createScanToyFitter(setup: ScanToySetup): ScanToyFitter {
   evaluateYields(m, genPhi, gammaOf(first, setup.generation.gammaByBin), ws);
   const expected = Float64Array.from(ws.nu);
 
+  /** The curvature of the expected likelihood at the generation point (data = ν there, constraints centred there), or null. */
+  const reference = (problem: FitProblem, gamma: Float64Array): FitContext | null => {
+    const asimov: FitProblem = { ...problem, data: expected, globals: { theta: Float64Array.from(genPhi), gamma: Float64Array.from(gamma) } };
+    const curvature = curvatureAt(asimov, genPhi, gamma, createScratch(asimov));
+    return curvature.ok ? curvature.context : null;
+  };
   const groups = setup.groups.map((members) => {
     const base = problems[members[0]];
+    const gammaStart = gammaOf(base, setup.generation.gammaByBin);
     const globals: GlobalObservables = { theta, gamma: new Float64Array(base.model.nGamma) };
     const zero: FitProblem = { ...atZero(base), data, globals };
     const hypotheses = members.map((k) => {
       const problem: FitProblem = { ...problems[k], data, globals };
-      return { k, problem, scratch: createScratch(problem) };
+      return { k, problem, scratch: createScratch(problem), context: reference(problems[k], gammaStart) };
     });
-    return { zero, scratch: createScratch(zero), globals, gammaStart: gammaOf(base, setup.generation.gammaByBin), hypotheses };
+    return { zero, scratch: createScratch(zero), context: reference(atZero(base), gammaStart), globals, gammaStart, hypotheses };
   });
 
   function draw(seed: number, index: number): void {
@@ -181,21 +198,24 @@ export function createScanToyFitter(setup: ScanToySetup): ScanToyFitter {
     }
   }
 
-  const fitted = (r: MinimiseResult): boolean => {
+  type Fitted = { ok: boolean; phi: Float64Array; gamma: Float64Array; nll: number; message: string | null };
+  /** A toy's fit of `problem` from (φ, γ): quasi-Newton from the reference curvature, or Newton without one. */
+  const fit = (problem: FitProblem, context: FitContext | null, phi: Float64Array, gamma: Float64Array, scratch: Scratch, signal: AbortSignal | undefined): Fitted => {
+    if (context) return quasiNewtonFit({ ...context, problem }, phi, gamma, scratch, 1e-9, TOY_STEPS);
+    const r = minimise(problem, phi, gamma, scratch, { signal });
     if (r.status === 'cancelled') throw new FitCancelledError();
-    return r.status !== 'failed';
+    return { ...r, ok: r.status !== 'failed' };
   };
-  const minimiseIn = (problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch, signal: AbortSignal | undefined) => minimise(problem, phi, gamma, scratch, { signal });
 
   function one(seed: number, index: number, signal: AbortSignal | undefined): ScanToyOutcome {
     draw(seed, index);
     const q0 = new Array<number>(setup.keys.length);
     for (const group of groups) {
-      const r0 = minimiseIn(group.zero, genPhi, group.gammaStart, group.scratch, signal);
-      if (!fitted(r0)) return { index, ok: false, q0: null, message: `the fit with μ held at 0 failed: ${r0.message ?? 'no minimum'}` };
+      const r0 = fit(group.zero, group.context, genPhi, group.gammaStart, group.scratch, signal);
+      if (!r0.ok) return { index, ok: false, q0: null, message: `the fit with μ held at 0 failed: ${r0.message ?? 'no minimum'}` };
       for (const h of group.hypotheses) {
-        const r = minimiseIn(h.problem, r0.phi, r0.gamma, h.scratch, signal);
-        if (!fitted(r)) return { index, ok: false, q0: null, message: `the fit of hypothesis "${setup.keys[h.k]}" failed: ${r.message ?? 'no minimum'}` };
+        const r = fit(h.problem, h.context, r0.phi, r0.gamma, h.scratch, signal);
+        if (!r.ok) return { index, ok: false, q0: null, message: `the fit of hypothesis "${setup.keys[h.k]}" failed: ${r.message ?? 'no minimum'}` };
         // q0 = 0 where μ̂ ≤ 0, as for the data (docs/likelihood.md §7)
         q0[h.k] = r.phi[0] > 0 ? Math.max(0, 2 * (r0.nll - r.nll)) : 0;
       }
