@@ -385,6 +385,91 @@ function cascadeAnalysis(): DemoAnalysis {
   };
 }
 
+/**
+ * The search's first round, on the 2025 pilot run: unblinded, so its scan over the masses is
+ * observed, with a global significance. The data hold a modest bump near 1390 GeV (the vireon
+ * drawn in at μ = 1.5 there), locally about 2–3σ: the look-elsewhere correction is what the
+ * story is about.
+ */
+function pilotAnalysis(): DemoAnalysis {
+  const rnd = prng(20250611);
+  const sr = edgesOf(1000, 1600, 30);
+  const cr = edgesOf(1000, 1600, 15);
+  const at = (edges: number[], f: (x: number) => number, total: number) => {
+    const raw = centres(edges).map(f);
+    const sum = raw.reduce((a, b) => a + b, 0);
+    return raw.map((v) => round((total * v) / sum, 4));
+  };
+  const continuum = (x: number) => Math.exp(-(x - 1000) / 170);
+  const bSR = at(sr, continuum, 2400);
+  const bCR = at(cr, continuum, 9000);
+  // the signal at a mass: a peak of the analysis’s resolution, 20 events at 1310 GeV, fewer at low masses
+  const signalAt = (mass: number) => centres(sr).map((x) => round((20 * efficiency('SR-core', mass) * peak(mass, x) * 20) / (resolution(mass) * Math.sqrt(2 * Math.PI)), 4));
+  const tilt = (nom: number[], a: number) => ({ up: nom.map((v, i) => round(v * (1 + a * (i / (nom.length - 1) - 0.5)), 4)), down: nom.map((v, i) => round(v * (1 - a * (i / (nom.length - 1) - 0.5)), 4)) });
+  const widen = (mass: number) => {
+    const wide = centres(sr).map((x) => Math.exp(-0.5 * ((x - mass) / (1.1 * resolution(mass))) ** 2) / 1.1);
+    const narrow = centres(sr).map((x) => Math.exp(-0.5 * ((x - mass) / (0.9 * resolution(mass))) ** 2) / 0.9);
+    const nom = signalAt(mass);
+    const base = centres(sr).map((x) => peak(mass, x));
+    return { up: nom.map((v, i) => round(base[i] > 1e-12 ? (v * wide[i]) / base[i] : 0, 4)), down: nom.map((v, i) => round(base[i] > 1e-12 ? (v * narrow[i]) / base[i] : 0, 4)) };
+  };
+  const masses = range(25).map((i) => 1070 + 20 * i);
+  const own = 1310;
+  const injected = signalAt(1390);
+  const observedSR = bSR.map((b, i) => rnd.poisson(b * 1.02 + 1.5 * injected[i]));
+  const observedCR = bCR.map((b) => rnd.poisson(b * 1.02));
+  const model: ExchangeModelInput = {
+    format: 'plumbline.model',
+    version: 2,
+    name: 'Vireon search, 2025 pilot run',
+    regions: [
+      { key: 'SR', label: 'Flare pairs, tight selection', role: 'signal', observable: { name: 'm(flare pair)', unit: 'GeV' }, edges: sr, observed: observedSR },
+      { key: 'CR', label: 'Flare pairs, inverted isolation', role: 'control', observable: { name: 'm(flare pair)', unit: 'GeV' }, edges: cr, observed: observedCR },
+    ],
+    processes: [
+      { key: 'vireon', label: 'Vireon (signal)', kind: 'signal', colour: '#c0392b' },
+      { key: 'continuum', label: 'Prompt flare continuum', kind: 'background', colour: '#2e6f95' },
+    ],
+    floatingNorms: [{ key: 'k_continuum', label: 'Continuum normalisation', targets: [{ region: 'SR', process: 'continuum' }, { region: 'CR', process: 'continuum' }] }],
+    templates: [
+      { region: 'SR', process: 'vireon', nominal: signalAt(own) },
+      { region: 'SR', process: 'continuum', nominal: bSR, variance: bSR.map((v) => round(v * 0.01, 5)) },
+      { region: 'CR', process: 'continuum', nominal: bCR },
+    ],
+    systematics: [
+      { key: 'lumi', label: 'Integrated luminosity', group: 'luminosity', effects: [{ region: 'SR', process: 'vireon', kind: 'scale', up: 1.025, down: 0.975 }] },
+      { key: 'flare_id', label: 'Flare identification', group: 'identification', effects: [{ region: 'SR', process: 'vireon', kind: 'scale', up: 1.05, down: 0.95 }] },
+      { key: 'mass_resolution', label: 'Flare-pair mass resolution', group: 'calorimetry', effects: [{ region: 'SR', process: 'vireon', kind: 'shape', ...widen(own) }] },
+      { key: 'continuum_slope', label: 'Continuum slope', group: 'background modelling', effects: [{ region: 'SR', process: 'continuum', kind: 'shape', ...tilt(bSR, 0.08) }, { region: 'CR', process: 'continuum', kind: 'shape', ...tilt(bCR, 0.08) }] },
+    ],
+    signalHypotheses: {
+      parameter: { name: 'mass', unit: 'GeV' },
+      points: masses.map((mass) => ({
+        key: `m${mass}`,
+        label: `${mass} GeV`,
+        value: mass,
+        templates: [{ region: 'SR', process: 'vireon', nominal: signalAt(mass) }],
+        effects: [{ systematic: 'mass_resolution', region: 'SR', process: 'vireon', kind: 'shape' as const, ...widen(mass) }],
+      })),
+    },
+  };
+  const meta = (owner: string): DemoEntryMeta => ({ owner, state: 'accepted', justification: 'As for the 2025 pilot-run note.', references: [] });
+  return {
+    slug: 'vireon-pilot',
+    name: 'Vireon search, 2025 pilot run',
+    description: 'The first look for the vireon, on the 2025 pilot run: unblinded, with its scan over 25 masses and the global significance of its largest excess.',
+    blinded: false,
+    members: [
+      { email: 'mira@lantern.example', role: 'convener' },
+      { email: 'otto@lantern.example', role: 'analyst' },
+      { email: 'juno@lantern.example', role: 'contact' },
+      { email: 'rafe@lantern.example', role: 'reader' },
+    ],
+    model,
+    entries: { lumi: meta('otto@lantern.example'), flare_id: meta('juno@lantern.example'), mass_resolution: meta('juno@lantern.example'), continuum_slope: meta('otto@lantern.example') },
+  };
+}
+
 export function demoScenario(): { accounts: DemoAccount[]; password: string; analyses: DemoAnalysis[] } {
-  return { accounts: DEMO_ACCOUNTS, password: DEMO_PASSWORD, analyses: [vireonAnalysis(), cascadeAnalysis()] };
+  return { accounts: DEMO_ACCOUNTS, password: DEMO_PASSWORD, analyses: [vireonAnalysis(), cascadeAnalysis(), pilotAnalysis()] };
 }

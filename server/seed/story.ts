@@ -11,6 +11,7 @@ import { startFit } from '../services/fits.service';
 import { answerQuestion, raiseQuestion, stepQuestion } from '../services/questions.service';
 import { startReviewSet } from '../services/review-sets.service';
 import { freezeVersion } from '../services/versions.service';
+import { startHypothesisScan } from '../services/hypothesis-scans.service';
 
 /**
  * The demo's story on its first start, told through the same services as a person's requests, so
@@ -20,6 +21,9 @@ import { freezeVersion } from '../services/versions.service';
  * - vireon-search (blinded): a frozen version, a fit of the control regions to their data and a
  *   pre-fit Asimov fit (full impacts, scan, limit), the review set before unblinding, an entry
  *   submitted for review and one sent back with a comment, and a pending request to unblind.
+ *   Its expected scan over the 30 mass hypotheses.
+ * - vireon-pilot (unblinded): a frozen version and the observed scan over its 25 masses, with
+ *   the global significance of its bump near 1390 GeV from upcrossings and from toys.
  * - cascade-rate (unblinded): a frozen version and an observed fit with full impacts, in which
  *   halo_norm is over-constrained; an open question on it with one answer, and a resolved one;
  *   once that fit is done, a revised continuum shape saved to its submitted entry, with what that
@@ -52,6 +56,13 @@ export async function seedStory(ctx: AppContext, baseUrl: string, options: { wai
   await startFit(ctx, ottoV, { version: vv.number, label: 'Control regions, observed', options: { dataset: 'observed', controlOnly: true, impacts: 'full', scan: true, limit: true } });
   await startFit(ctx, ottoV, { version: vv.number, label: 'Pre-fit Asimov, μ = 1', options: { dataset: 'asimov', asimovMu: 1, impacts: 'full', scan: true, limit: true } });
   await startReviewSet(ctx, ottoV, { version: vv.number, label: 'Before asking to unblind' });
+  // its reach over the 30 masses, expected only while blinded
+  await startHypothesisScan(ctx, ottoV, { version: vv.number, label: 'Expected reach over the masses', options: { dataset: 'expected', seed: 11 } });
+
+  // the pilot run's search, unblinded: its observed scan and how much of its bump survives the look elsewhere
+  const ottoP = await as('vireon-pilot', 'otto@lantern.example');
+  const pv = await freezeVersion(ctx, ottoP, { note: 'Pilot-run model as in its note' });
+  await startHypothesisScan(ctx, ottoP, { version: pv.number, label: 'Observed, with the global significance', options: { dataset: 'observed', upcrossingToys: 100, trialsToys: 300, seed: 7 } });
 
   // the register's review loop: one entry submitted, one sent back with a comment
   await reviewEntry(ctx, await as(V, 'juno@lantern.example'), 'noise_model', { action: 'submit' }, baseUrl);
@@ -86,6 +97,7 @@ export async function seedStory(ctx: AppContext, baseUrl: string, options: { wai
 
   if (options.waitForFits) {
     await ctx.fits.idle();
+    await ctx.scans.idle();
     // a revised variation while its entry is under review: the entry shows what it does to the observed fit
     await reviseShape(ctx, ottoC, 'continuum_shape', 'continuum_shape_steeper_tail.csv', 0.04, baseUrl);
     await impactChecksIdle();

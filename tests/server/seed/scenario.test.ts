@@ -7,9 +7,9 @@ describe('the invented demo scenario', () => {
     expect(JSON.stringify(demoScenario())).toBe(JSON.stringify(demoScenario()));
   });
 
-  it('has one blinded and one unblinded analysis whose models pass the exchange-file schema', () => {
+  it('has one blinded and two unblinded analyses whose models pass the exchange-file schema', () => {
     const { analyses } = demoScenario();
-    expect(analyses.map((a) => a.blinded).sort()).toEqual([false, true]);
+    expect(analyses.map((a) => a.blinded).sort()).toEqual([false, false, true]);
     for (const a of analyses) {
       const parsed = exchangeModelSchema.safeParse(a.model);
       expect(parsed.error?.issues ?? []).toEqual([]);
