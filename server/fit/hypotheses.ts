@@ -46,6 +46,7 @@ export async function scanHypotheses(model: ExchangeModel, optionsInput: Hypothe
   const options = parsed.data;
   const hypotheses = declaredHypotheses(model);
   checkHypotheses(model);
+  checkData(model, options.dataset);
   const { signal } = control;
   throwIfAborted(signal);
   const observed = options.dataset === 'observed';
@@ -62,15 +63,10 @@ export async function scanHypotheses(model: ExchangeModel, optionsInput: Hypothe
 
   const points: HypothesisPointResult[] = new Array(ordered.length);
   let done = 0;
-  let next = 0;
-  const worker = async () => {
-    while (next < ordered.length) {
-      const k = next++;
-      points[k] = await fitPoint(model, ordered[k], options, control);
-      progress((fitShare * ++done) / ordered.length, 'hypotheses');
-    }
-  };
-  await Promise.all(Array.from({ length: Math.max(1, Math.min(control.hypothesesInFlight ?? 2, ordered.length)) }, worker));
+  await inFlight(ordered.length, control.hypothesesInFlight ?? 2, async (k) => {
+    points[k] = await fitPoint(model, ordered[k], options, control);
+    progress((fitShare * ++done) / ordered.length, 'hypotheses');
+  });
   throwIfAborted(signal);
 
   const failed = points.filter((p) => p.status === 'failed');
@@ -102,6 +98,47 @@ export async function scanHypotheses(model: ExchangeModel, optionsInput: Hypothe
     warnings,
     seconds: (performance.now() - started) / 1000,
   };
+}
+
+/**
+ * Runs job(0), …, job(count − 1) with at most `width` at once, in order of start. After a job
+ * throws, no further job starts; those running are awaited, then the first error is thrown.
+ */
+async function inFlight(count: number, width: number, job: (k: number) => Promise<void>): Promise<void> {
+  let next = 0;
+  let failure = null as { error: unknown } | null;
+  const lane = async () => {
+    while (next < count && failure === null) {
+      const k = next++;
+      try {
+        await job(k);
+      } catch (error) {
+        failure ??= { error };
+      }
+    }
+  };
+  await Promise.all(Array.from({ length: Math.max(1, Math.min(width, count)) }, lane));
+  if (failure !== null) throw failure.error;
+}
+
+/**
+ * The data a scan fits, checked before any fit so that the message says what the scan needs: an
+ * observed scan the counts of every signal and control region; an expected one the control
+ * regions' counts (the signal regions' are not looked at).
+ */
+function checkData(model: ExchangeModel, dataset: HypothesisScanOptions['dataset']): void {
+  const control = model.regions.map((r, i) => ({ r, i })).filter(({ r }) => r.role === 'control');
+  if (dataset === 'expected') {
+    if (control.length === 0) throw new FitInputError('an expected scan builds its Asimov datasets on the fit of the control regions (μ held at 0), and the model has no control region', ['regions']);
+    const blank = control.find(({ r }) => !r.observed);
+    if (blank) throw new FitInputError(`region "${blank.r.key}" has no observed counts: an expected scan fits the control regions' data`, ['regions', blank.i, 'observed']);
+    return;
+  }
+  model.regions.forEach((r, i) => {
+    if ((r.role === 'signal' || r.role === 'control') && !r.observed) {
+      throw new FitInputError(`region "${r.key}" has no observed counts: an observed scan fits every signal and control region's data (scan a blinded analysis with dataset "expected")`, ['regions', i, 'observed']);
+    }
+  });
 }
 
 /**
@@ -183,15 +220,10 @@ async function backgroundOnlyToys(
     const runToys = control.runToys;
     const batches: number[][] = [];
     for (let i = 0; i < count; i += TOYS_PER_BATCH) batches.push(indices.slice(i, i + TOYS_PER_BATCH));
-    let next = 0;
-    const worker = async () => {
-      while (next < batches.length) {
-        const batch = batches[next++];
-        outcomes.push(...(await runToys({ setup, seed: options.seed, indices: batch }, control.signal)));
-        onProgress(outcomes.length / count);
-      }
-    };
-    await Promise.all(Array.from({ length: Math.min(control.toyBatchesInFlight ?? 4, batches.length) }, worker));
+    await inFlight(batches.length, control.toyBatchesInFlight ?? 4, async (k) => {
+      outcomes.push(...(await runToys({ setup, seed: options.seed, indices: batches[k] }, control.signal)));
+      onProgress(outcomes.length / count);
+    });
   }
   throwIfAborted(control.signal);
   outcomes.sort((a, b) => a.index - b.index);

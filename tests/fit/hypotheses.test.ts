@@ -286,13 +286,17 @@ describe('the model of a hypothesis', () => {
 });
 
 describe('scanHypotheses', () => {
-  it('refuses a model of version 1, or of version 2 without hypotheses, and invalid options', async () => {
+  it('refuses a model of version 1 or without hypotheses, invalid options, data the scan needs and does not have, and a cancelled scan, naming what to fix', async () => {
     await expect(scanHypotheses(countingModel({ s: 10, b: 50, n: 55 }))).rejects.toThrow(/^the model declares no signal hypotheses: .*this file is version 1$/);
     const v2 = exchangeModelSchema.parse({ ...countingModel({ s: 10, b: 50, n: 55 }), version: 2 });
     await expect(scanHypotheses(v2)).rejects.toThrow(FitInputError);
     await expect(scanHypotheses(v2)).rejects.toThrow(/^the model declares no signal hypotheses: a scan needs exchange file version 2 with signalHypotheses/);
     const model = exchangeModelSchema.parse(handModel());
     await expect(scanHypotheses(model, { referenceLevel: 9 })).rejects.toThrow(/^invalid scan option referenceLevel/);
+    const blinded = { ...model, regions: model.regions.map((r) => (r.role === 'signal' ? { ...r, observed: undefined } : r)) };
+    await expect(scanHypotheses(blinded)).rejects.toThrow('region "SR" has no observed counts: an observed scan fits every signal and control region\'s data (scan a blinded analysis with dataset "expected")');
+    const noControl = { ...model, regions: model.regions.map((r) => ({ ...r, role: 'signal' as const })) };
+    await expect(scanHypotheses(noControl, { dataset: 'expected' })).rejects.toThrow(/^an expected scan builds its Asimov datasets on the fit of the control regions/);
     const aborted = new AbortController();
     aborted.abort();
     await expect(scanHypotheses(model, {}, { signal: aborted.signal })).rejects.toThrow(FitCancelledError);
