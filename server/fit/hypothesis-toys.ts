@@ -148,7 +148,7 @@ export interface ScanToyFitter {
   run(seed: number, indices: readonly number[], signal?: AbortSignal): ScanToyOutcome[];
 }
 
-/** Draws and fits the toys of a setup; the problems, their workspaces and the expected counts are made once. */
+/** Draws and fits the toys of a setup; the problems, their scratch buffers, the curvatures and the expected counts are made once. */
 export function createScanToyFitter(setup: ScanToySetup): ScanToyFitter {
   const problems = hypothesisProblems(setup.model, setup.keys);
   const first = problems[setup.groups[0][0]];

@@ -64,8 +64,10 @@ describe('the global significance', () => {
     const q = [0, 0.2, 0.7, 1.5, 0.3, 0.1, 2.0, 16, 4, 0.4, 0.6];
     expect(upcrossings(q, 0.5)).toBe(3);
     expect(upcrossings(q, 16)).toBe(1);
-    // by hand:
-    //   p_local = Φ(−√16) = Φ(−4) = 3.16712e-5 (standard normal table; the digits from Python's statistics.NormalDist)
+    // by hand (the formula as recalled from the paper, for s = 1: P(max q > u) ≤ P(χ²₁ > u) + ⟨N(c₀)⟩ e^(−(u − c₀)/2),
+    // with the one-sided q0's tail Φ(−√u) as its first term; written from memory, the paper's equation numbers not checked):
+    //   p_local = Φ(−√16) = Φ(−4) = 3.16712e-5 (standard normal table; the further digits here and below computed
+    //   separately in double precision, not with this code)
     //   e^(−(u − c₀)/2) = e^(−(16 − 0.5)/2) = e^(−7.75) = 4.30743e-4
     //   p_global ≈ p_local + N e^(−(u − c₀)/2) = 3.16712e-5 + 3 × 4.30743e-4 = 1.32390e-3
     //   its error from N's Poisson error √3: √3 × 4.30743e-4 = 7.46068e-4

@@ -5,7 +5,7 @@ import { createScanToyFitter, runScanToyTask, type ScanToyFitter, type ScanToyOu
 /**
  * Worker-thread entry for the background-only pseudo-experiments of a scan over signal
  * hypotheses: fits a batch of toys under every hypothesis. A scan sends its setup with every
- * batch; each worker builds the hypotheses' problems and workspaces once per setup (by its key)
+ * batch; each worker builds the hypotheses' problems and scratch buffers once per setup (by its key)
  * and keeps them for the next batches.
  */
 lowerThreadPriority((workerData as { niceness?: number } | undefined)?.niceness ?? 0);
