@@ -1,15 +1,13 @@
-import { and, desc, eq, getTableColumns } from 'drizzle-orm';
+import { and, desc, eq } from 'drizzle-orm';
 import type { Db } from './client';
 import { hypothesisScans, modelVersions, users } from './schema';
 
 export type HypothesisScanRow = typeof hypothesisScans.$inferSelect;
 
-const { result: _result, ...listColumns } = getTableColumns(hypothesisScans);
-
-/** The scans of one analysis, newest first, with their author and version number, without their results. */
+/** The scans of one analysis, newest first, with their author and version number (a result is a few kilobytes). */
 export const listHypothesisScanRows = (db: Db, analysisId: number) =>
   db
-    .select({ scan: listColumns, by: users.name, version: modelVersions.number })
+    .select({ scan: hypothesisScans, by: users.name, version: modelVersions.number })
     .from(hypothesisScans)
     .innerJoin(modelVersions, eq(modelVersions.id, hypothesisScans.modelVersionId))
     .leftJoin(users, eq(users.id, hypothesisScans.createdById))

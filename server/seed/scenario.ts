@@ -34,7 +34,7 @@ export const DEMO_PASSWORD = 'lantern-demo-2026';
 export type DemoAccount = { email: string; name: string; isAdmin: boolean; note: string };
 const DEMO_ACCOUNTS: DemoAccount[] = [
   { email: 'admin@lantern.example', name: 'Hollis Vantreight', isAdmin: true, note: 'admin: accounts, analyses, outbox' },
-  { email: 'mira@lantern.example', name: 'Mira Quellbright', isAdmin: false, note: 'convener of both analyses' },
+  { email: 'mira@lantern.example', name: 'Mira Quellbright', isAdmin: false, note: 'convener of every analysis' },
   { email: 'otto@lantern.example', name: 'Otto Brannholm', isAdmin: false, note: 'analyst' },
   { email: 'juno@lantern.example', name: 'Juno Feldspire', isAdmin: false, note: 'systematics contact (calorimetry, identification)' },
   { email: 'pim@lantern.example', name: 'Pim Castellane', isAdmin: false, note: 'systematics contact (theory, background modelling)' },

@@ -30,13 +30,13 @@ export function BottomAxis({ scale, y, ticks = 6, title, format }: { scale: Scal
 }
 
 /** A vertical axis along x = `x`, labels to its left, title written upwards. */
-export function LeftAxis({ scale, x, ticks = 5, title, format }: { scale: Scale; x: number; ticks?: number; title?: string; format?: (v: number) => string }) {
+export function LeftAxis({ scale, x, ticks = 5, values, title, format }: { scale: Scale; x: number; ticks?: number; values?: number[]; title?: string; format?: (v: number) => string }) {
   const [y0, y1] = scale.range();
   const fmt = format ?? scale.tickFormat(ticks);
   return (
     <g aria-hidden>
       <line x1={x} x2={x} y1={y0} y2={y1} stroke={theme.ink} strokeWidth={1} />
-      {scale.ticks(ticks).map((t) => (
+      {(values ?? scale.ticks(ticks)).map((t) => (
         <g key={t} transform={`translate(${x},${scale(t)})`}>
           <line x2={-4} stroke={theme.ink} />
           <text x={-6} dy="0.32em" textAnchor="end" style={tickText}>

@@ -32,6 +32,9 @@ export function LocalP0Chart({ result }: { result: HypothesisScanResult }) {
     .domain([pts[0].value, pts[pts.length - 1].value === pts[0].value ? pts[0].value + 1 : pts[pts.length - 1].value])
     .range([M.left, W - M.right]);
   const y = scaleLog().domain([1, Math.max(pMin, 1e-12)]).range([M.top, H - M.bottom]).clamp(true);
+  // one tick per power of ten (every other one past eight decades)
+  const nDecades = Math.ceil(-Math.log10(y.domain()[1]));
+  const decades = Array.from({ length: nDecades + 1 }, (_, k) => 10 ** -k).filter((_, k) => nDecades <= 8 || k % 2 === 0);
   const segments = (get: (p: (typeof pts)[number]) => number | null | undefined) => {
     // a failed point breaks the line rather than being bridged
     const runs: { value: number; p: number }[][] = [[]];
@@ -85,7 +88,7 @@ export function LocalP0Chart({ result }: { result: HypothesisScanResult }) {
               ×<title>{`${p.label || p.key}: the fit did not converge (${p.message ?? 'no reason given'}); no number is shown`}</title>
             </text>
           ))}
-        <LeftAxis scale={y} x={M.left} ticks={6} title="local p0" format={(v) => (v >= 0.01 ? String(v) : `1e${Math.round(Math.log10(v))}`)} />
+        <LeftAxis scale={y} x={M.left} values={decades} title="local p0" format={(v) => (v >= 0.01 ? String(v) : `1e${Math.round(Math.log10(v))}`)} />
         <BottomAxis scale={x} y={H - M.bottom} title={name} />
       </svg>
       <p className="text-xs text-ink-muted">
