@@ -3,7 +3,7 @@ import { createHash } from 'node:crypto';
 import { and, eq } from 'drizzle-orm';
 import { hashPassword } from '../../server/auth/passwords';
 import { readFileSync } from 'node:fs';
-import { analyses, effects, entries, fits, groups, impactChecks, invitations, memberships, modelVersions, processes, questions, regions, reviewSets, signalHypotheses, toyRuns, users } from '../../server/db/schema';
+import { analyses, effects, entries, fits, groups, hypothesisScans, impactChecks, invitations, memberships, modelVersions, processes, questions, regions, reviewSets, signalHypotheses, toyRuns, users } from '../../server/db/schema';
 import { Client, createTestApp, dbSnapshot, DEMO, PASSWORD, signedIn, type TestApp } from './helpers';
 
 /**
@@ -153,6 +153,14 @@ async function queuedToys(t: TestApp) {
   const { analysisId } = await ids(t);
   const [r] = await t.database.db.insert(toyRuns).values({ analysisId, fitId, count: 10, hypothesis: { kind: 'best-fit' }, seed: 1 }).returning();
   return r.id;
+}
+/** a scan over hypotheses of the fit fixture's version waiting in the database (not in this process's queue) */
+async function queuedScan(t: TestApp) {
+  const { version } = await convergedFit(t);
+  const { analysisId } = await ids(t);
+  const [v] = await t.database.db.select().from(modelVersions).where(and(eq(modelVersions.analysisId, analysisId), eq(modelVersions.number, version)));
+  const [s] = await t.database.db.insert(hypothesisScans).values({ analysisId, modelVersionId: v.id, options: { dataset: 'expected' } }).returning();
+  return s.id;
 }
 const VARIATION_CSV = 'region,process,kind,bin,up,down\nCR-shower,showerpair,scale,,1.05,0.95\n';
 /** a signal hypothesis of the demo, previewed in place of itself */
@@ -336,6 +344,13 @@ export const MATRIX: Record<string, Row> = {
   },
   'GET /api/analyses/:slug/toys/:toyId': { call: async (t) => ({ path: `${A}/toys/${await queuedToys(t)}` }), expect: members(200) },
   'POST /api/analyses/:slug/toys/:toyId/cancel': { call: async (t) => ({ path: `${A}/toys/${await queuedToys(t)}/cancel` }), expect: analystOnly(200) },
+  'GET /api/analyses/:slug/hypothesis-scans': { call: () => ({ path: `${A}/hypothesis-scans` }), expect: members(200) },
+  'POST /api/analyses/:slug/hypothesis-scans': {
+    call: async (t) => ({ path: `${A}/hypothesis-scans`, body: { version: (await convergedFit(t)).version, options: { dataset: 'expected', limit: false } } }),
+    expect: analystOnly(202),
+  },
+  'GET /api/analyses/:slug/hypothesis-scans/:scanId': { call: async (t) => ({ path: `${A}/hypothesis-scans/${await queuedScan(t)}` }), expect: members(200) },
+  'POST /api/analyses/:slug/hypothesis-scans/:scanId/cancel': { call: async (t) => ({ path: `${A}/hypothesis-scans/${await queuedScan(t)}/cancel` }), expect: analystOnly(200) },
   'GET /api/analyses/:slug/review-sets': { call: () => ({ path: `${A}/review-sets` }), expect: members(200) },
   'POST /api/analyses/:slug/review-sets': { call: async (t) => ({ path: `${A}/review-sets`, body: { version: (await convergedFit(t)).version } }), expect: analystOnly(202) },
   'GET /api/analyses/:slug/review-sets/:setId': { call: async (t) => ({ path: `${A}/review-sets/${await queuedReviewSet(t)}` }), expect: members(200) },

@@ -1,6 +1,6 @@
 import { expect } from 'vitest';
 import { and, eq, inArray } from 'drizzle-orm';
-import { analyses, entries, fits, impactChecks, outbox, questions, regions, reviewSets, signalHypotheses, toyRuns } from '../../server/db/schema';
+import { analyses, entries, fits, hypothesisScans, impactChecks, outbox, questions, regions, reviewSets, signalHypotheses, toyRuns } from '../../server/db/schema';
 import { fitPartNames } from '../../shared/schemas/fits';
 import { exportTableSchema } from '../../shared/schemas/fits';
 import type { Client, TestApp } from './helpers';
@@ -10,7 +10,7 @@ import type { Client, TestApp } from './helpers';
  * other number in the product looks like (six digits starting 9182), and no response, to
  * anyone, may contain one of them. `scanForBlindedCounts` walks every GET route the app serves,
  * with every value its parameters can take in the analysis now (every entry, fit, part, export
- * table, question, toy run and signal hypothesis), as every caller given, and reads every e-mail in the outbox.
+ * table, question, toy run, signal hypothesis and scan over hypotheses), as every caller given, and reads every e-mail in the outbox.
  */
 export const MARK = /(?<![\d.])9182\d\d(?!\d)/;
 
@@ -38,6 +38,7 @@ async function parameterValues(t: TestApp, slug: string): Promise<{ values: Valu
   const setIds = (await db.select({ id: reviewSets.id }).from(reviewSets).where(eq(reviewSets.analysisId, a.id))).map((r) => String(r.id));
   const previewIds = (await db.select({ id: impactChecks.id }).from(impactChecks).where(and(eq(impactChecks.analysisId, a.id), eq(impactChecks.kind, 'pruning')))).map((r) => String(r.id));
   const hypothesisKeys = (await db.select({ key: signalHypotheses.key }).from(signalHypotheses).where(eq(signalHypotheses.analysisId, a.id))).map((h) => h.key);
+  const scanIds = (await db.select({ id: hypothesisScans.id }).from(hypothesisScans).where(eq(hypothesisScans.analysisId, a.id))).map((r) => String(r.id));
   const toyIds = fitRows.length ? (await db.select({ id: toyRuns.id }).from(toyRuns).where(inArray(toyRuns.fitId, fitRows.map((f) => f.id)))).map((r) => String(r.id)) : [];
   return {
     values: {
@@ -53,6 +54,7 @@ async function parameterValues(t: TestApp, slug: string): Promise<{ values: Valu
       setId: setIds,
       previewId: previewIds,
       hypothesis: hypothesisKeys,
+      scanId: scanIds,
     },
     fitIds: fitRows.map((f) => f.id),
   };

@@ -4,6 +4,7 @@ import { hypothesisScanSchema, type HypothesisScan } from '@shared/schemas/hypot
 import { scanHypotheses } from '../../server/fit';
 import { modelForScan } from '../../server/runs/hypothesis-scan-runner';
 import { createTestApp, DEMO, signedIn, type Client, type TestApp } from './helpers';
+import { markSignalCounts, scanForBlindedCounts } from './blinded-scan';
 
 const C = '/api/analyses/cascade-rate';
 const V = '/api/analyses/vireon-search';
@@ -80,6 +81,16 @@ describe('scans over signal hypotheses', () => {
     const direct = await scanHypotheses(modelForScan(model, regions), { dataset: 'expected', seed: scan.options.seed });
     expect(result.points.map((p) => p.expected?.z ?? null)).toEqual(direct.points.map((p) => p.expected?.z ?? null));
   }, 240_000);
+
+  it('sends no signal-region count of the blinded search in any response once an expected scan of a version holding them has run', async () => {
+    await markSignalCounts(t, 'vireon-search');
+    const marked = (await analyst.send('post', `${V}/versions`, { note: 'marked counts' })).body.number;
+    const started = await analyst.send('post', `${V}/hypothesis-scans`, { version: marked, options: { dataset: 'expected', limit: false } });
+    expect(started.status, JSON.stringify(started.body)).toBe(202);
+    await t.scans.idle();
+    expect((await reader.get(`${V}/hypothesis-scans/${started.body.id}`)).body.state).toBe('succeeded');
+    expect(await scanForBlindedCounts(t, 'vireon-search', { analyst, reader }, 'an expected scan')).toBeGreaterThan(100);
+  }, 300_000);
 
   it('gives the engine no observed count outside the regions a scan may read', () => {
     const model = exchangeModelSchema.parse({
