@@ -82,6 +82,8 @@ const TINT = {
 } as const;
 
 const STICKY = 'sticky left-0 bg-paper-raised bg-[image:linear-gradient(var(--row-tint),var(--row-tint))]';
+// Header cells are opaque (the sunk paper's tint mixed into the raised paper, not laid over it):
+// the header stays at the top of a frame that scrolls, and the rows pass beneath it unseen.
 const TH = 'border-b border-rule-strong px-3 py-1.5 text-left text-xs font-semibold text-ink-soft';
 const TD = 'border-b border-rule px-3 py-1.5 align-top';
 
@@ -110,7 +112,7 @@ function HeaderCell<TFeatures extends TableFeatures, TData extends RowData>({ he
   const column = header.column as unknown as SortableColumn;
   const sortable = column.getCanSort?.() ?? false;
   const sorted = sortable ? (column.getIsSorted?.() ?? false) : false;
-  const className = `${TH} ${sticky ? `${STICKY} z-[3] [--row-tint:color-mix(in_oklab,var(--color-paper-sunk)_70%,transparent)]` : 'bg-paper-sunk/70'} ${meta.numeric ? 'text-right' : ''} ${sortable || meta.nowrap ? 'whitespace-nowrap' : ''} ${meta.headerClass ?? ''}`;
+  const className = `${TH} ${sticky ? `${STICKY} z-[3] [--row-tint:color-mix(in_oklab,var(--color-paper-sunk)_70%,transparent)]` : 'bg-[color-mix(in_oklab,var(--color-paper-sunk)_70%,var(--color-paper-raised))]'} ${meta.numeric ? 'text-right' : ''} ${sortable || meta.nowrap ? 'whitespace-nowrap' : ''} ${meta.headerClass ?? ''}`;
   const content = header.isPlaceholder ? null : <FlexRender header={header} />;
   if (!sortable)
     return (

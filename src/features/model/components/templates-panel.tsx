@@ -47,16 +47,19 @@ function templateColumns(model: Model, canEdit: boolean, editor: EditorControl) 
                 {floating}
               </>
             );
+          // the floating mark stays outside the button: its name says the events, as its text does
           return (
-            <button
-              type="button"
-              aria-label={total !== null ? `Edit template ${r.key} × ${p.key}, ${formatCount(total)} events` : `Add template ${r.key} × ${p.key}`}
-              onClick={() => editor.open({ kind: 'template', region: r.key, process: p.key })}
-              className={`rounded px-1 hover:bg-paper-sunk hover:underline ${t ? 'text-ink' : 'text-ink-muted'}`}
-            >
-              {text}
+            <>
+              <button
+                type="button"
+                aria-label={total !== null ? `Edit template ${r.key} × ${p.key}, ${formatCount(total)} events` : `Add template ${r.key} × ${p.key}`}
+                onClick={() => editor.open({ kind: 'template', region: r.key, process: p.key })}
+                className={`rounded px-1 hover:bg-paper-sunk hover:underline ${t ? 'text-ink' : 'text-ink-muted'}`}
+              >
+                {text}
+              </button>
               {floating}
-            </button>
+            </>
           );
         },
       }),
