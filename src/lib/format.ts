@@ -18,6 +18,11 @@ export function formatCount(n: number): string {
   return Number.isInteger(n) ? n.toLocaleString('en-GB') : n.toLocaleString('en-GB', { maximumFractionDigits: 1 });
 }
 
+/** An expected yield in events, to one decimal place always, so that a column of them lines up. */
+export function formatYield(n: number): string {
+  return n.toLocaleString('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 });
+}
+
 /** A percentage with a precision that suits its size. */
 export function formatPercent(p: number): string {
   const a = Math.abs(p);

@@ -14,6 +14,7 @@ const fit = (slug: string, id: number) => [...fits(slug), id] as const;
 const questions = (slug: string) => [...analysis(slug), 'questions'] as const;
 const questionLists = (slug: string) => [...questions(slug), 'list'] as const;
 const pruning = (slug: string) => [...analysis(slug), 'pruning'] as const;
+const model = (slug: string) => [...analysis(slug), 'model'] as const;
 const hypothesisScans = (slug: string) => [...analysis(slug), 'hypothesis-scans'] as const;
 
 export const queryKeys = {
@@ -29,7 +30,9 @@ export const queryKeys = {
   overview: (slug: string) => [...analysis(slug), 'overview'] as const,
   members: (slug: string) => [...analysis(slug), 'members'] as const,
   blinding: (slug: string) => [...analysis(slug), 'blinding'] as const,
-  model: (slug: string) => [...analysis(slug), 'model'] as const,
+  /** The model; its signal hypotheses sit under it (a model change may change what they lack). */
+  model,
+  signalHypotheses: (slug: string) => [...model(slug), 'signal-hypotheses'] as const,
   groups: (slug: string) => [...analysis(slug), 'groups'] as const,
 
   /** The register's list; every entry's key starts with it. */

@@ -137,7 +137,14 @@ describe('wide tables: every default column can be reached at 1280 and 1440 px',
           await p.getByRole('list', { name: 'Revisions' }).getByRole('table').first().waitFor();
         },
       },
-      { name: 'model', path: '/a/vireon-search/model', ready: table('Nominal templates') },
+      {
+        name: 'model',
+        path: '/a/vireon-search/model',
+        ready: async (p) => {
+          await table('Nominal templates')(p);
+          await table('Signal hypotheses')(p);
+        },
+      },
       { name: 'fits', path: '/a/vireon-search/fits', ready: table('Fits') },
       { name: 'fit summary', path: fit, ready: table('Floating normalisations') },
       { name: 'fit pulls', path: `${fit}/pulls`, ready: table('Pulls and constraints') },

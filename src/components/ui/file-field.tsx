@@ -1,8 +1,9 @@
 import { useId, type ReactNode } from 'react';
 
-/** A labelled file chooser that shows the chosen file's name and size. */
-export function FileField({ label, accept, file, onFile, hint, inputKey }: { label: string; accept: string; file: File | null; onFile: (f: File | null) => void; hint?: ReactNode; inputKey?: number }) {
+/** A labelled file chooser that shows the chosen file's name and size, and the refusal of what it holds. */
+export function FileField({ label, accept, file, onFile, hint, inputKey, error }: { label: string; accept: string; file: File | null; onFile: (f: File | null) => void; hint?: ReactNode; inputKey?: number; error?: string }) {
   const id = useId();
+  const describedBy = [hint ? `${id}-hint` : null, error ? `${id}-error` : null].filter(Boolean).join(' ') || undefined;
   return (
     <div className="flex flex-col gap-1">
       <label htmlFor={id} className="text-xs font-semibold text-ink-soft">
@@ -13,7 +14,8 @@ export function FileField({ label, accept, file, onFile, hint, inputKey }: { lab
         id={id}
         type="file"
         accept={accept}
-        aria-describedby={hint ? `${id}-hint` : undefined}
+        aria-describedby={describedBy}
+        aria-invalid={error ? true : undefined}
         onChange={(e) => onFile(e.target.files?.[0] ?? null)}
         className="block w-full max-w-md rounded-md border border-rule-strong bg-paper-raised text-sm file:mr-3 file:border-0 file:border-r file:border-rule-strong file:bg-paper-sunk file:px-3 file:py-1.5 file:text-sm file:font-medium file:text-ink"
       />
@@ -26,6 +28,11 @@ export function FileField({ label, accept, file, onFile, hint, inputKey }: { lab
         <div id={`${id}-hint`} className="text-xs text-ink-muted">
           {hint}
         </div>
+      )}
+      {error && (
+        <p id={`${id}-error`} className="text-xs font-medium text-danger">
+          {error}
+        </p>
       )}
     </div>
   );

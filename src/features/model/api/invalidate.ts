@@ -7,3 +7,8 @@ export function invalidateModel(queryClient: QueryClient, slug: string) {
   void queryClient.invalidateQueries({ queryKey: queryKeys.overview(slug) });
   void queryClient.invalidateQueries({ queryKey: queryKeys.entries(slug) });
 }
+
+/** A change of the signal hypotheses moves their list only (the model's own templates stay). */
+export function invalidateHypotheses(queryClient: QueryClient, slug: string) {
+  void queryClient.invalidateQueries({ queryKey: queryKeys.signalHypotheses(slug) });
+}

@@ -2,7 +2,11 @@ import { useState } from 'react';
 import { Button, buttonClass } from '../../../components/ui/button';
 import { UploadError } from '../../../components/ui/error-notice';
 import { FileField } from '../../../components/ui/file-field';
-import { exchangeDownloadUrl, useImportExchange } from '../api/import-exchange';
+import { exchangeDownloadUrl, useImportExchange, type ImportResult } from '../api/import-exchange';
+
+/** What an import created, in words. */
+const importCounts = (r: ImportResult) =>
+  `${r.regions} regions, ${r.processes} processes${r.hypotheses ? `, ${r.entries} register entries and ${r.hypotheses} signal hypotheses` : ` and ${r.entries} register entries`}`;
 
 /** Download the whole model as one exchange file (JSON). */
 export function ExportModelLink({ slug }: { slug: string }) {
@@ -20,7 +24,7 @@ export function ImportModel({ slug, onImported }: { slug: string; onImported?: (
   return (
     <div className="flex flex-col gap-3">
       <p className="text-sm text-ink-soft">
-        Start from an exchange file: regions with their binning and data, processes, templates, floating normalisations and the systematics with their effects and groups. See{' '}
+        Start from an exchange file: regions with their binning and data, processes, templates, floating normalisations, the systematics with their effects and groups, and the signal hypotheses. See{' '}
         <span className="font-medium">docs/exchange-file.md</span> for its format.
       </p>
       <div className="flex flex-wrap items-end gap-3">
@@ -29,7 +33,7 @@ export function ImportModel({ slug, onImported }: { slug: string; onImported?: (
           variant="primary"
           disabled={!file}
           busy={imp.isPending}
-          onClick={() => file && imp.mutate(file, { onSuccess: (r) => onImported?.(`Imported ${file.name}: ${r.regions} regions, ${r.processes} processes and ${r.entries} register entries.`) })}
+          onClick={() => file && imp.mutate(file, { onSuccess: (r) => onImported?.(`Imported ${file.name}: ${importCounts(r)}.`) })}
         >
           Import model file
         </Button>
@@ -37,7 +41,7 @@ export function ImportModel({ slug, onImported }: { slug: string; onImported?: (
       <UploadError error={imp.error} />
       {imp.data && (
         <p role="status" className="rounded-md border border-teal/30 bg-teal-soft/60 px-3 py-2 text-sm text-teal-ink">
-          Imported {imp.data.regions} regions, {imp.data.processes} processes and {imp.data.entries} register entries.
+          Imported {importCounts(imp.data)}.
         </p>
       )}
     </div>

@@ -8,7 +8,9 @@ export type Editor =
   | { kind: 'process-new' }
   | { kind: 'process'; key: string }
   | { kind: 'norm-new' }
-  | { kind: 'template'; region: string; process: string };
+  | { kind: 'template'; region: string; process: string }
+  | { kind: 'hypothesis-parameter' }
+  | { kind: 'hypothesis-new' };
 
 /** The open editor, shared by the model screen's panels: opening one closes any other. */
 export type EditorControl = { current: Editor | null; is: (e: Editor) => boolean; open: (e: Editor) => void; close: () => void };

@@ -9,6 +9,7 @@ import { useEditor } from './model-editor';
 import { PrefitPanel } from './prefit-panel';
 import { ProcessesPanel } from './processes-panel';
 import { RegionsPanel } from './regions-panel';
+import { SignalHypothesesPanel } from './signal-hypotheses-panel';
 import { TemplatesPanel } from './templates-panel';
 
 /** The model screen: its panels share one open editor, so opening one closes any other. */
@@ -44,6 +45,7 @@ export function ModelView({ slug, model, canEdit }: { slug: string; model: Model
       <ProcessesPanel slug={slug} model={model} canEdit={canEdit} editor={editor} />
       {(model.floatingNorms.length > 0 || canEdit) && <FloatingNormsPanel slug={slug} model={model} canEdit={canEdit} editor={editor} />}
       {model.regions.length > 0 && model.processes.length > 0 && <TemplatesPanel slug={slug} model={model} canEdit={canEdit} editor={editor} />}
+      {model.templates.some((t) => model.processes.find((p) => p.key === t.process)?.kind === 'signal') && <SignalHypothesesPanel slug={slug} canEdit={canEdit} editor={editor} />}
 
       {canEdit && model.regions.length > 0 && (
         <Panel title="Upload templates or observed data (CSV)">
