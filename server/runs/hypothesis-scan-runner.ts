@@ -3,7 +3,7 @@ import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchang
 import { storedScanOptions } from '@shared/schemas/hypothesis-scan';
 import type { Db } from '../db/client';
 import { hypothesisScanInput } from '../db/hypothesis-scans.repository';
-import { localRunner } from './local-runner';
+import { localRunner, type JobRunner } from './local-runner';
 import { hypothesisScansTable, jobRow } from './run-rows';
 import { threadEntry, workerPool } from './threads/pool';
 import type { ScanOutcome, ScanTask } from './threads/hypothesis-scan.worker';
@@ -16,13 +16,7 @@ export const SCAN_INTERRUPTED = 'Interrupted: the server stopped while this scan
  * row, a scan that was going when the process stopped is marked failed at the next start, queued
  * ones are picked up again. With a PostgreSQL server too, scans run on the web server's threads.
  */
-export type HypothesisScanRunner = {
-  enqueue: (id: number) => void | Promise<void>;
-  cancel: (id: number, by: string) => Promise<boolean>;
-  recover: () => Promise<void>;
-  idle: () => Promise<void>;
-  close: () => Promise<void>;
-};
+export type HypothesisScanRunner = JobRunner;
 
 export function createHypothesisScanRunner(db: Db, log: (line: string) => void, options: { threads?: number; niceness?: number } = {}): HypothesisScanRunner {
   let piscina: ReturnType<typeof workerPool> | null = null;

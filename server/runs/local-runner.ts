@@ -14,6 +14,17 @@ export type LocalRunner = {
   stop: () => Promise<void>;
 };
 
+/** What the services see of a runner of one kind of job (toy runs, scans over hypotheses). */
+export type JobRunner = {
+  enqueue: (id: number) => void | Promise<void>;
+  /** true when the job was queued or running and is now being cancelled */
+  cancel: (id: number, by: string) => Promise<boolean>;
+  recover: () => Promise<void>;
+  /** resolves when the queue is empty and nothing runs */
+  idle: () => Promise<void>;
+  close: () => Promise<void>;
+};
+
 /**
  * Runs jobs of one table in this process, one at a time, in the order asked. A job that was
  * running when the process stopped is marked failed with `interrupted` at the next start; queued

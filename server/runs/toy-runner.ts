@@ -1,6 +1,6 @@
 import type { Db } from '../db/client';
 import { toyRunsTable } from './run-rows';
-import { localRunner } from './local-runner';
+import { localRunner, type JobRunner } from './local-runner';
 import { executeToys, threadToyExecutor, toyThreads, TOYS_INTERRUPTED } from './toys';
 
 /**
@@ -8,14 +8,7 @@ import { executeToys, threadToyExecutor, toyThreads, TOYS_INTERRUPTED } from './
  * over the toy threads. Like the fit runner: progress in the row, a run that was going when the
  * process stopped is marked failed at the next start, queued runs are picked up again.
  */
-export type ToyRunner = {
-  enqueue: (id: number) => void | Promise<void>;
-  /** true when the run was queued or running and is now being cancelled */
-  cancel: (id: number, by: string) => Promise<boolean>;
-  recover: () => Promise<void>;
-  idle: () => Promise<void>;
-  close: () => Promise<void>;
-};
+export type ToyRunner = JobRunner;
 
 export function createToyRunner(db: Db, log: (line: string) => void, options: { threads?: number; niceness?: number } = {}): ToyRunner {
   let threads: ReturnType<typeof toyThreads> | null = null;

@@ -1,4 +1,6 @@
+import type { ReactNode } from 'react';
 import type { FitState, FitSummary } from '@shared/schemas/fits';
+import { formatDateTime } from '../../lib/format';
 import { Badge, type Tone } from '../ui/badge';
 
 /** The state of a fit or a toy run in words, with its badge tone and what it means. */
@@ -41,5 +43,27 @@ export function FitProgress({ fit, className = '' }: { fit: Pick<FitSummary, 'id
         {pct} %{fit.stage ? ` · ${fit.stage}` : fit.state === 'queued' ? ' · waiting for a worker' : ''}
       </span>
     </div>
+  );
+}
+
+/** A job's state in a table cell: its badge, its progress while it runs, and why it failed. */
+export function JobStateCell({ job, progress }: { job: Pick<FitSummary, 'id' | 'label' | 'progress' | 'stage' | 'state' | 'failure'>; progress?: ReactNode }) {
+  return (
+    <div className="flex flex-col items-start gap-1">
+      <FitStateBadge state={job.state} />
+      {job.state === 'queued' || job.state === 'running' ? (progress ?? <FitProgress fit={job} />) : null}
+      {job.state === 'failed' && job.failure && <span className="max-w-xs text-xs text-danger">{job.failure}</span>}
+    </div>
+  );
+}
+
+/** When a job or set was started and by whom, in a table cell (with how long it took, where known). */
+export function StartedCell({ at, by, took }: { at: string; by: string | null; took?: string | null }) {
+  return (
+    <>
+      {formatDateTime(at)}
+      {by && <span className="block text-ink-muted">{by}</span>}
+      {took && <span className="block text-ink-muted">took {took}</span>}
+    </>
   );
 }

@@ -3,10 +3,9 @@ import type { FitSummary } from '@shared/schemas/fits';
 import { Button } from '../../../components/ui/button';
 import { FormError } from '../../../components/ui/error-notice';
 import { DataTable, dataColumns } from '../../../components/ui/data-table';
-import { formatDateTime } from '../../../lib/format';
 import { decimalsFor, formatFixed, formatSigma } from '../../../lib/stats-format';
 import { useCancelFit } from '../api/cancel-fit';
-import { FitProgress, FitStateBadge } from '../../../components/status/fit-state';
+import { JobStateCell, StartedCell } from '../../../components/status/fit-state';
 import { datasetInWords, fitName, fitPath, isActive, optionsInWords, variantInWords } from '../../../lib/fits';
 
 function Headline({ fit }: { fit: FitSummary }) {
@@ -82,26 +81,14 @@ function makeColumns(slug: string, mayRun: boolean, cancel: ReturnType<typeof us
     col.accessor('state', {
       header: 'State',
       cell: (c) => {
-        const f = c.row.original;
-        return (
-          <div className="flex flex-col gap-1">
-            <FitStateBadge state={f.state} />
-            {isActive(f.state) && <FitProgress fit={f} />}
-            {f.state === 'failed' && f.failure && <span className="max-w-xs text-xs text-danger">{f.failure}</span>}
-          </div>
-        );
+        return <JobStateCell job={c.row.original} />;
       },
     }),
     col.display({ id: 'result', header: 'Result', meta: { numeric: true }, cell: (c) => <Headline fit={c.row.original} /> }),
     col.accessor('createdAt', {
       header: 'Started',
       meta: { nowrap: true, cellClass: 'text-xs text-ink-soft' },
-      cell: (c) => (
-        <>
-          {formatDateTime(c.getValue())}
-          {c.row.original.createdBy && <span className="block text-ink-muted">{c.row.original.createdBy}</span>}
-        </>
-      ),
+      cell: (c) => <StartedCell at={c.getValue()} by={c.row.original.createdBy} />,
     }),
     ...(mayRun
       ? [

@@ -3,8 +3,7 @@ import type { HypothesisScan } from '@shared/schemas/hypothesis-scan';
 import { Button } from '../../../components/ui/button';
 import { FormError } from '../../../components/ui/error-notice';
 import { DataTable, dataColumns } from '../../../components/ui/data-table';
-import { FitStateBadge } from '../../../components/status/fit-state';
-import { formatDateTime } from '../../../lib/format';
+import { JobStateCell, StartedCell } from '../../../components/status/fit-state';
 import { isActive } from '../../../lib/fits';
 import { formatFixed } from '../../../lib/stats-format';
 import { useCancelHypothesisScan } from '../api/cancel-hypothesis-scan';
@@ -40,27 +39,13 @@ function makeColumns(slug: string, mayRun: boolean, cancel: ReturnType<typeof us
     }),
     col.accessor('state', {
       header: 'State',
-      cell: (c) => {
-        const s = c.row.original;
-        return (
-          <div className="flex flex-col items-start gap-1">
-            <FitStateBadge state={s.state} />
-            {isActive(s.state) && <span className="text-2xs text-ink-muted tabular-nums">{Math.round(s.progress * 100)} % · {s.stage}</span>}
-            {s.state === 'failed' && s.failure && <span className="max-w-xs text-xs text-danger">{s.failure}</span>}
-          </div>
-        );
-      },
+      cell: (c) => <JobStateCell job={c.row.original} />,
     }),
     col.display({ id: 'headline', header: 'What it says', cell: (c) => <span className="text-sm">{headline(c.row.original)}</span> }),
     col.accessor('createdAt', {
       header: 'Started',
       meta: { nowrap: true, cellClass: 'text-xs text-ink-soft' },
-      cell: (c) => (
-        <>
-          {formatDateTime(c.getValue())}
-          {c.row.original.createdBy && <span className="block text-ink-muted">{c.row.original.createdBy}</span>}
-        </>
-      ),
+      cell: (c) => <StartedCell at={c.getValue()} by={c.row.original.createdBy} />,
     }),
     ...(mayRun
       ? [

@@ -2,7 +2,7 @@ import { Link } from 'react-router';
 import type { ReviewSetSummary } from '@shared/schemas/review-sets';
 import { Badge } from '../../../components/ui/badge';
 import { DataTable, dataColumns } from '../../../components/ui/data-table';
-import { formatDateTime } from '../../../lib/format';
+import { StartedCell } from '../../../components/status/fit-state';
 import { reviewSetPath } from '../../../lib/fits';
 
 /** A set's state with its progress while it runs: the set as a whole, never a member alone. */
@@ -63,12 +63,7 @@ function makeColumns(slug: string) {
     col.accessor('createdAt', {
       header: 'Started',
       meta: { nowrap: true, cellClass: 'text-xs text-ink-soft' },
-      cell: (c) => (
-        <>
-          {formatDateTime(c.getValue())}
-          {c.row.original.createdBy && <span className="block text-ink-muted">{c.row.original.createdBy}</span>}
-        </>
-      ),
+      cell: (c) => <StartedCell at={c.getValue()} by={c.row.original.createdBy} />,
     }),
   ]);
 }

@@ -3,8 +3,8 @@ import type { ToyRun } from '@shared/schemas/toys';
 import { Button } from '../../../components/ui/button';
 import { FormError } from '../../../components/ui/error-notice';
 import { DataTable, dataColumns } from '../../../components/ui/data-table';
-import { formatCount, formatDateTime } from '../../../lib/format';
-import { FitStateBadge } from '../../../components/status/fit-state';
+import { formatCount } from '../../../lib/format';
+import { JobStateCell, StartedCell } from '../../../components/status/fit-state';
 import { isActive } from '../../../lib/fits';
 import { useCancelToys } from '../api/cancel-toys';
 import { hypothesisInWords, toyRunName } from '../toy-stats';
@@ -58,16 +58,7 @@ function makeColumns(selectedId: number | null, mayRun: boolean, cancel: ReturnT
     }),
     col.accessor('state', {
       header: 'State',
-      cell: (c) => {
-        const r = c.row.original;
-        return (
-          <div className="flex flex-col items-start gap-1">
-            <FitStateBadge state={r.state} />
-            {isActive(r.state) && <ToyProgress run={r} />}
-            {r.state === 'failed' && r.failure && <span className="max-w-xs text-xs text-danger">{r.failure}</span>}
-          </div>
-        );
-      },
+      cell: (c) => <JobStateCell job={c.row.original} progress={<ToyProgress run={c.row.original} />} />,
     }),
     col.accessor('count', {
       id: 'toys',
@@ -79,17 +70,7 @@ function makeColumns(selectedId: number | null, mayRun: boolean, cancel: ReturnT
     col.accessor('createdAt', {
       header: 'Started',
       meta: { nowrap: true, cellClass: 'text-xs text-ink-soft' },
-      cell: (c) => {
-        const r = c.row.original;
-        const took = duration(r);
-        return (
-          <>
-            {formatDateTime(r.createdAt)}
-            {r.createdBy && <span className="block text-ink-muted">{r.createdBy}</span>}
-            {took && <span className="block text-ink-muted">took {took}</span>}
-          </>
-        );
-      },
+      cell: (c) => <StartedCell at={c.getValue()} by={c.row.original.createdBy} took={duration(c.row.original)} />,
     }),
     ...(mayRun
       ? [
