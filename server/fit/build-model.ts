@@ -38,6 +38,23 @@ export function buildModel(model: ExchangeModel, inFit: (regionKey: string, role
     upper.push(f.max);
     for (const t of f.targets) normOf.set(`${t.region}\u0000${t.process}`, idx);
   }
+  // Parameters of interest besides μ: compiled like floating normalisations, and μ no longer
+  // multiplies their templates.
+  const poiOf = new Set<string>();
+  for (const q of model.parametersOfInterest ?? []) {
+    const idx = names.length;
+    names.push(q.key);
+    labels.push(q.label ?? q.key);
+    kinds.push('poi');
+    groups.push(null);
+    start.push(q.start);
+    lower.push(q.min);
+    upper.push(q.max);
+    for (const t of q.targets) {
+      normOf.set(`${t.region}\u0000${t.process}`, idx);
+      poiOf.add(`${t.region}\u0000${t.process}`);
+    }
+  }
   const thetaStart = names.length;
   for (const s of model.systematics) {
     names.push(s.key);
@@ -102,7 +119,7 @@ export function buildModel(model: ExchangeModel, inFit: (regionKey: string, role
     sampleFirstBin[s] = regions[r].firstBin;
     sampleNBins[s] = regions[r].nBins;
     sampleBinStart[s] = nSampleBins;
-    sampleSignal[s] = processes[p].signal ? 1 : 0;
+    sampleSignal[s] = processes[p].signal && !poiOf.has(`${t.region}\u0000${t.process}`) ? 1 : 0;
     sampleNorm[s] = normOf.get(`${t.region}\u0000${t.process}`) ?? -1;
     sampleStat[s] = t.variance?.some((v) => v > 0) ? 1 : 0;
     sampleInFit[s] = regions[r].inFit ? 1 : 0;
@@ -219,7 +236,7 @@ export function buildModel(model: ExchangeModel, inFit: (regionKey: string, role
     processes,
     regions,
     nDense,
-    nNorms: model.floatingNorms.length,
+    nNorms: thetaStart - 1,
     nSyst: model.systematics.length,
     thetaStart,
     names,

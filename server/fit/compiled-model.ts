@@ -4,7 +4,8 @@
  * worker thread as it is.
  *
  * Parameters are split in two blocks:
- *  - dense: μ (index 0), the floating normalisations k, then the nuisance parameters θ;
+ *  - dense: μ (index 0), the floating normalisations k, the parameters of interest besides μ (kind
+ *    'poi', compiled as factors like k), then the nuisance parameters θ;
  *  - γ: one template-statistics parameter per bin, kept apart because each touches one bin.
  * A sample is one (region, process) template; its bins are stored contiguously
  * ("sample-bins"), starting at sampleBinStart[s] and covering every bin of its region.
@@ -36,6 +37,7 @@ export interface CompiledModel {
 
   // Dense parameters.
   nDense: number;
+  /** Floating normalisations and parameters of interest besides μ: the factors between μ and θ. */
   nNorms: number;
   nSyst: number;
   /** First θ index (= 1 + nNorms). */
@@ -69,7 +71,7 @@ export interface CompiledModel {
   sampleNBins: Int32Array;
   sampleBinStart: Int32Array;
   sampleSignal: Uint8Array;
-  /** Dense index of the floating normalisation, or −1. */
+  /** Dense index of the floating normalisation or parameter of interest that multiplies it, or −1. */
   sampleNorm: Int32Array;
   /** 1 when the template carries a variance in any bin. */
   sampleStat: Uint8Array;

@@ -157,6 +157,9 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     scanPlan = { grid, first: tasks.length };
     sj.forEach(push);
   }
+  // A model with parameters of interest besides μ: the q = 1 crossings of each free one, μ's too.
+  const poiIndices = m.kinds.flatMap((kind, i) => (kind === 'poi' ? [i] : []));
+  const poiJobs = poiIndices.length > 1 ? planPoi(ctx, poiIndices, push) : null;
   const firstWave = tasks.length;
   const done = [0, 0];
   const waveProgress = (wave: number, total: number) => (f: number) => {
@@ -347,6 +350,7 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     data: dataSection(problem, options),
     variant: variantReport,
   };
+  if (poiJobs) result.poi = poiSection(ctx, poiJobs, results, warnings);
   progress(1, 'done');
   return result;
 }
@@ -442,6 +446,41 @@ function assembleBreakdown(plan: BreakdownPlan, results: RefitResult[], ctx: Fit
 }
 
 /** The clip-edge outcome for the report (docs/likelihood.md §10: the edge held, or released to a lower NLL). */
+type PoiJobs = Map<number, [number, number] | null>;
+
+function planPoi(ctx: FitContext, indices: number[], push: (task: RefitTask) => number): PoiJobs {
+  const free = (i: number) => !ctx.problem.held[i] && ctx.V[i * ctx.problem.model.nDense + i] > 0;
+  return new Map(indices.map((index) => [index, free(index) ? [push({ kind: 'crossing', context: 0, index, level: 1, direction: -1 }), push({ kind: 'crossing', context: 0, index, level: 1, direction: 1 })] : null]));
+}
+
+/** Value, σ and q = 1 interval of every parameter of interest, and their correlations (among the free ones). */
+function poiSection(ctx: FitContext, jobs: PoiJobs, results: RefitResult[], warnings: string[]): NonNullable<FitResult['poi']> {
+  const m = ctx.problem.model;
+  const P = m.nDense;
+  const crossing = (k: number, name: string) => {
+    const r = results[k];
+    if (!r.ok) warnings.push(`A q = 1 crossing of ${name} could not be located: ${r.message ?? 'a conditional fit failed'}.`);
+    return r.ok ? r.value : null;
+  };
+  const list = [...jobs].map(([i, tasks]) => ({
+    name: m.names[i],
+    label: m.labels[i],
+    value: ctx.phi[i],
+    fixed: ctx.problem.held[i] === 1,
+    error: errorOf(ctx, i),
+    interval68: tasks ? { low: crossing(tasks[0], m.names[i]), high: crossing(tasks[1], m.names[i]) } : null,
+  }));
+  const free = [...jobs.keys()].filter((i) => !ctx.problem.held[i]);
+  const values: number[] = [];
+  for (const i of free) {
+    for (const j of free) {
+      const den = Math.sqrt(ctx.V[i * P + i] * ctx.V[j * P + j]);
+      values.push(i === j ? 1 : den > 0 ? Math.max(-1, Math.min(1, ctx.V[i * P + j] / den)) : 0);
+    }
+  }
+  return { list, correlation: { names: free.map((i) => m.names[i]), values } };
+}
+
 function edgeReport(min: MinimiseResult): FitResult['convergence']['clipEdge'] {
   return min.edge ? { kept: min.edge.kept, heldNll: min.edge.heldNll, releasedNll: min.edge.releasedNll } : null;
 }

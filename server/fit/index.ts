@@ -5,6 +5,7 @@
 export { fitModel, type FitControl } from './fit';
 export { regionEntersFit } from './problem';
 export { scanParameter } from './parameter-scan';
+export { profileContour, contourLines, CONTOUR_LEVELS, type ContourControl } from './contour';
 export { FitCancelledError, FitInputError } from './errors';
 export { syntheticModel, createRandom, SYNTHETIC_SIZES, type SyntheticOptions, type SyntheticSize, type SyntheticSpec } from './synthetic';
 export { normalCdf, normalSurvival, normalQuantile, chiSquareCdf, chiSquareSurvival, chiSquareQuantile } from './distributions';

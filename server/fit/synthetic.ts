@@ -73,6 +73,12 @@ export interface SyntheticOptions {
    * carries a variance (see `signalHypotheses` below). 0: none.
    */
   hypotheses?: number;
+  /**
+   * A second parameter of interest, `mu2`, on the signal templates of the signal regions after the
+   * first (μ keeps the first signal region and the control regions' contamination). Templates,
+   * effects and data are those of the model without it.
+   */
+  secondPoi?: boolean;
 }
 
 /** The peak's width and height, in units of the observable's range (x in [0, 1]) and events. */
@@ -185,6 +191,7 @@ export function syntheticModel(size: SyntheticSize | SyntheticSpec, seed = 1, op
     floatingNorms,
     templates,
     systematics,
+    ...(options.secondPoi ? { parametersOfInterest: [{ key: 'mu2', label: 'second signal strength', start: 1, min: -10, max: 20, targets: regions.slice(1, Math.max(2, spec.signalRegions)).map((r) => ({ region: r.key, process: 'signal' })) }] } : {}),
     ...(nHypotheses > 0 ? { signalHypotheses: signalHypotheses(nHypotheses, regions, spec.signalRegions, B, signalShapes) } : {}),
   };
 }

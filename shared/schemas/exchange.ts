@@ -82,6 +82,21 @@ export const exchangeFloatingNormSchema = z.strictObject({
 });
 export type ExchangeFloatingNorm = z.infer<typeof exchangeFloatingNormSchema>;
 
+/**
+ * Version 2: a parameter of interest besides μ (a signal strength per production mode, say): a free,
+ * unconstrained factor on its templates, which μ then no longer multiplies.
+ */
+export const exchangePoiSchema = z.strictObject({
+  key: keySchema,
+  label: z.string().max(200).optional(),
+  start: parameterNumber.default(1),
+  min: parameterNumber.default(-10),
+  max: parameterNumber.default(20),
+  /** The (region, process) templates this parameter multiplies. */
+  targets: z.array(z.strictObject({ region: keySchema, process: keySchema })).min(1, 'must multiply at least one template'),
+});
+export type ExchangePoi = z.infer<typeof exchangePoiSchema>;
+
 export const exchangeTemplateSchema = z.strictObject({
   region: keySchema,
   process: keySchema,
@@ -158,6 +173,8 @@ const exchangeModelShape = z.strictObject({
   regions: z.array(exchangeRegionSchema).min(1, 'needs at least one region'),
   processes: z.array(exchangeProcessSchema).min(1, 'needs at least one process'),
   floatingNorms: z.array(exchangeFloatingNormSchema).default([]),
+  /** Version 2: parameters of interest besides μ (absent: μ is the only one). */
+  parametersOfInterest: z.array(exchangePoiSchema).optional(),
   templates: z.array(exchangeTemplateSchema),
   systematics: z.array(exchangeSystematicSchema).default([]),
   /** Version 2: the signal hypotheses a scan fits in turn (absent: the model's own templates are its one hypothesis). */
@@ -249,11 +266,46 @@ export function modelConsistencyIssues(m: ModelShape): Issue[] {
       }
     });
   });
+  if (m.parametersOfInterest) poiIssues(m, normTargets, pairIssue, hasTemplate, issues);
   if (m.signalHypotheses) {
     if (m.version === 1) issues.push({ message: 'signal hypotheses need exchange file version 2', path: ['signalHypotheses'] });
     hypothesisIssues(m, bins, hasTemplate, issues);
   }
   return issues;
+}
+
+/**
+ * Parameters of interest besides μ: keys distinct from μ, the floating normalisations and the
+ * systematics; each target a template the model has, multiplied by at most one parameter of
+ * interest and by no floating normalisation.
+ */
+function poiIssues(
+  m: ModelShape,
+  normTargets: Set<string>,
+  pairIssue: (region: string, process: string, path: (string | number)[]) => void,
+  hasTemplate: (region: string, process: string) => boolean,
+  issues: Issue[],
+) {
+  const pois = m.parametersOfInterest!;
+  if (m.version === 1) issues.push({ message: 'parameters of interest besides μ need exchange file version 2', path: ['parametersOfInterest'] });
+  duplicates(pois.map((p) => p.key), ['parametersOfInterest'], issues);
+  const taken = new Set(['mu', ...m.floatingNorms.map((f) => f.key), ...m.systematics.map((s) => s.key)]);
+  const targets = new Set<string>();
+  pois.forEach((p, i) => {
+    if (taken.has(p.key)) issues.push({ message: `key "${p.key}" is already μ, a floating normalisation or a systematic`, path: ['parametersOfInterest', i, 'key'] });
+    if (!(p.min < p.max)) issues.push({ message: 'min must be below max', path: ['parametersOfInterest', i, 'min'] });
+    else if (p.start < p.min || p.start > p.max) issues.push({ message: 'start must lie within [min, max]', path: ['parametersOfInterest', i, 'start'] });
+    p.targets.forEach((t, j) => {
+      const path = ['parametersOfInterest', i, 'targets', j];
+      const before = issues.length;
+      pairIssue(t.region, t.process, path);
+      const pair = `${t.region}\u0000${t.process}`;
+      if (issues.length === before && !hasTemplate(t.region, t.process)) issues.push({ message: `region "${t.region}" has no template for process "${t.process}" to multiply`, path });
+      if (normTargets.has(pair)) issues.push({ message: `region "${t.region}", process "${t.process}" already has a floating normalisation`, path });
+      if (targets.has(pair)) issues.push({ message: `region "${t.region}", process "${t.process}" already has a parameter of interest`, path });
+      targets.add(pair);
+    });
+  });
 }
 
 /**

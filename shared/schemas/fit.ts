@@ -128,6 +128,25 @@ export const correlationSchema = z.strictObject({
 
 export const intervalSchema = z.strictObject({ low: nullableNum, high: nullableNum });
 
+/** A parameter of interest (μ first, then those the model declares besides it). */
+export const poiReportSchema = z.strictObject({
+  name: z.string(),
+  label: z.string(),
+  value: num,
+  fixed: z.boolean(),
+  /** sqrt(V_ii) from the covariance at the minimum; null when held. */
+  error: nullableNum,
+  /** Where q = 1 on each side (absolute values; null past a bound); null when held. */
+  interval68: intervalSchema.nullable(),
+});
+
+/** The parameters of interest of a model that declares any besides μ. */
+export const poiSectionSchema = z.strictObject({
+  list: z.array(poiReportSchema),
+  /** Among the free parameters of interest, in list order. */
+  correlation: correlationSchema,
+});
+
 export const summarySchema = z.strictObject({
   mu: z.strictObject({
     value: num,
@@ -218,7 +237,29 @@ export const fitResultSchema = z.strictObject({
   information: z.array(informationSchema),
   yields: z.strictObject({ prefit: z.array(regionYieldsSchema), postfit: z.array(regionYieldsSchema).nullable() }),
   data: z.strictObject({ dataset: z.enum(['observed', 'asimov']), asimovMu: nullableNum, regions: z.array(dataRegionSchema) }),
+  /** Every parameter of interest, when the model declares any besides μ (absent otherwise). */
+  poi: poiSectionSchema.optional(),
   /** What variant this fit is (absent in results stored before variants existed: the nominal fit). */
   variant: variantReportSchema.optional(),
 });
 export type FitResult = z.infer<typeof fitResultSchema>;
+
+/** A line of a contour: its points (a, b) in order. */
+export const contourLineSchema = z.array(z.tuple([num, num]));
+
+export const profileContourSchema = z.strictObject({
+  parameters: z.tuple([z.string(), z.string()]),
+  /** Why no contour could be made (the fit failed); null otherwise. */
+  failure: z.string().nullable(),
+  bestFit: z.tuple([num, num]),
+  errors: z.tuple([nullableNum, nullableNum]),
+  /** Grid values of the first (a) and second (b) parameter. */
+  a: z.array(num),
+  b: z.array(num),
+  /** q(a_i, b_j) at q[j][i]; null where the conditional fit failed. */
+  q: z.array(z.array(nullableNum)),
+  /** q = 2.30 (68.27 %) and q = 5.99 (95 %) for two degrees of freedom. */
+  levels: z.array(z.strictObject({ cl: num, q: num, lines: z.array(contourLineSchema) })),
+  points: z.strictObject({ converged: z.number().int(), failed: z.number().int() }),
+});
+export type ProfileContour = z.infer<typeof profileContourSchema>;

@@ -10,7 +10,7 @@ describe('the published JSON Schema of the exchange file', () => {
 
   it('names every top-level part of a model', () => {
     const schema = exchangeJsonSchema() as { properties: Record<string, unknown>; required: string[] };
-    expect(Object.keys(schema.properties)).toEqual(['format', 'version', 'name', 'signalStrength', 'regions', 'processes', 'floatingNorms', 'templates', 'systematics', 'signalHypotheses']);
+    expect(Object.keys(schema.properties)).toEqual(['format', 'version', 'name', 'signalStrength', 'regions', 'processes', 'floatingNorms', 'parametersOfInterest', 'templates', 'systematics', 'signalHypotheses']);
     expect(schema.required).toEqual(expect.arrayContaining(['format', 'version', 'name', 'regions', 'processes', 'templates']));
   });
 });
