@@ -10,10 +10,14 @@
  *   a scan over the model's signal hypotheses (docs/fit-engine.md, "Scan over signal hypotheses"):
  *   npm run fit -- MODEL.json --scan-hypotheses [--expected] [--no-limit] [--reference-level C]
  *                 [--toys-upcrossings N] [--toys-trials N] [--seed N] [--threads N] [--out RESULT.json]
+ *   the 2D profile-likelihood contour of two parameters (docs/fit-engine.md, "Several parameters of
+ *   interest and 2D contours"):
+ *   npm run fit -- MODEL.json --contour A,B [--asimov MU] [--control-only] [--exclude REGION]… [--out CONTOUR.json]
  *
  * A fit with --hidden-mu writes the result without anything computed from μ̂ or from the signal
  * regions' data, as the server stores it. A scan prints a table of its hypotheses and the global
- * significance, and writes its result when --out is given.
+ * significance, and writes its result when --out is given. A contour prints its lines' points, and
+ * writes the contour when --out is given.
  * Exit codes: 0 fitted, 1 bad input (the messages name the failing fields), 2 an unknown flag or a
  * bad flag value (one line naming it), 3 the fit failed, or a hypothesis of the scan did (its
  * report is still written).
@@ -23,7 +27,7 @@ import { parseArgs } from 'node:util';
 import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptionsInput } from '@shared/schemas/fit';
 import type { HypothesisScanOptionsInput, HypothesisScanResult } from '@shared/schemas/hypothesis-scan';
-import { FitInputError, fitModel, hideMu, scanHypotheses, variantIssues, type ScanToyOutcome, type ScanToyTask } from '../server/fit';
+import { FitInputError, fitModel, hideMu, profileContour, scanHypotheses, variantIssues, type ScanToyOutcome, type ScanToyTask } from '../server/fit';
 import { createFitPool, threadEntry, workerPool } from '../server/runs/threads/pool';
 
 function fail(message: string): never {
@@ -39,7 +43,8 @@ function usage(message: string): never {
 
 const USAGE =
   'usage: npm run fit -- MODEL.json [--asimov MU] [--control-only] [--impacts none|quick|full] [--scan] [--limit] [--exclude REGION]… [--hold KEY=VALUE|best]… [--hold-group GROUP]… [--stat-only] [--no-template-stats] [--decorrelate KEY:region|KEY:process]… [--expected-from prefit|control|background] [--hidden-mu] [--breakdown] [--threads N] --out RESULT.json\n' +
-  '   or: npm run fit -- MODEL.json --scan-hypotheses [--expected] [--no-limit] [--reference-level C] [--toys-upcrossings N] [--toys-trials N] [--seed N] [--threads N] [--out RESULT.json]';
+  '   or: npm run fit -- MODEL.json --scan-hypotheses [--expected] [--no-limit] [--reference-level C] [--toys-upcrossings N] [--toys-trials N] [--seed N] [--threads N] [--out RESULT.json]\n' +
+  '   or: npm run fit -- MODEL.json --contour A,B [--asimov MU] [--control-only] [--exclude REGION]… [--out CONTOUR.json]';
 
 let args: ReturnType<typeof read>;
 try {
@@ -78,11 +83,15 @@ function read() {
       'toys-upcrossings': { type: 'string' },
       'toys-trials': { type: 'string' },
       seed: { type: 'string' },
+      contour: { type: 'string' },
     },
   });
 }
 const scanning = values['scan-hypotheses']!;
-if (positionals.length !== 1 || (!values.out && !scanning)) usage(USAGE);
+const contouring = values.contour !== undefined;
+if (positionals.length !== 1 || (!values.out && !scanning && !contouring)) usage(USAGE);
+const contourPair = contouring ? /^([^,]+),([^,]+)$/.exec(values.contour!) : null;
+if (contouring && !contourPair) usage(`--contour needs two parameter names, A,B (got "${values.contour}")`);
 if (values.threads !== undefined && !/^[1-9][0-9]*$/.test(values.threads)) usage(`--threads needs a whole number of at least 1 (got "${values.threads}")`);
 if (!['prefit', 'control', 'background'].includes(values['expected-from']!)) usage(`--expected-from must be prefit, control or background (got "${values['expected-from']}")`);
 const hold = values.hold!.map((h) => {
@@ -120,6 +129,9 @@ const fitFlags = {
 const given = (flags: Record<string, unknown>) => Object.entries(flags).filter(([, v]) => v !== undefined && v !== false).map(([k]) => `--${k}`);
 if (scanning && given(fitFlags).length) usage(`${given(fitFlags)[0]} does not apply to --scan-hypotheses`);
 if (!scanning && given(scanFlags).length) usage(`${given(scanFlags)[0]} needs --scan-hypotheses`);
+// a contour reads the data flags only
+const notForContour = given({ ...fitFlags, asimov: undefined, 'control-only': undefined, exclude: undefined, 'scan-hypotheses': values['scan-hypotheses'], threads: values.threads });
+if (contouring && notForContour.length) usage(`${notForContour[0]} does not apply to --contour`);
 /** A whole number of a flag within [0, max]. */
 const whole = (flag: string, text: string | undefined, fallback: number, max: number) => {
   if (text === undefined) return fallback;
@@ -171,6 +183,10 @@ if (scanning) {
   await scan(parsed.data);
   process.exit(process.exitCode ?? 0);
 }
+if (contourPair) {
+  contour(parsed.data, contourPair[1], contourPair[2]);
+  process.exit(process.exitCode ?? 0);
+}
 
 const issues = variantIssues(parsed.data, { hold, holdGroups: values['hold-group']!, statOnly: values['stat-only']!, decorrelate, controlOnly: values['control-only']! });
 if (issues.length) fail(issues.map((i) => `  options.${i.path.join('.')}: ${i.message}`).join('\n'));
@@ -216,6 +232,40 @@ async function scan(model: ExchangeModel): Promise<void> {
     await pool.destroy();
     await toyThreads?.destroy();
   }
+}
+
+/** The 2D contour of two parameters: its lines' points, printed, and written with --out. */
+function contour(model: ExchangeModel, a: string, b: string): void {
+  const known = new Set(['mu', ...model.floatingNorms.map((f) => f.key), ...(model.parametersOfInterest ?? []).map((p) => p.key), ...model.systematics.map((s) => s.key)]);
+  const unknown = [a, b].filter((name) => !known.has(name));
+  if (unknown.length) usage(`--contour: unknown parameter${unknown.length > 1 ? 's' : ''} ${unknown.map((name) => `"${name}"`).join(' and ')}`);
+  if (a === b) usage(`--contour needs two different parameters (got "${a}" twice)`);
+  const started = performance.now();
+  let result: ReturnType<typeof profileContour>;
+  try {
+    result = profileContour(model, { dataset: options.dataset, asimovMu: options.asimovMu, controlOnly: options.controlOnly, excludeRegions: options.excludeRegions }, a, b);
+  } catch (error) {
+    if (error instanceof FitInputError) fail(`${error.message}${error.path.length ? ` (at ${error.path.join('.')})` : ''}`);
+    throw error;
+  }
+  if (values.out) writeFileSync(values.out, `${JSON.stringify(result, null, 1)}\n`);
+  const seconds = ((performance.now() - started) / 1000).toFixed(1);
+  if (result.failure !== null) {
+    process.stdout.write(`no contour of ${a} and ${b}: ${result.failure}${values.out ? ` → ${values.out}` : ''}\n`);
+    process.exitCode = 3;
+    return;
+  }
+  const total = result.points.converged + result.points.failed;
+  const out = [`contour of ${a} and ${b}: best fit ${a} = ${num(result.bestFit[0], 5)}, ${b} = ${num(result.bestFit[1], 5)}; ${result.points.converged} of ${total} grid points converged, ${result.points.failed} failed (${seconds} s)${values.out ? ` → ${values.out}` : ''}`];
+  for (const level of result.levels) {
+    level.lines.forEach((line, k) => {
+      out.push(`q = ${num(level.q)} (${num(100 * level.cl, 4)} %), line ${k + 1} of ${level.lines.length}: ${line.length} points (${a} ${b})`);
+      for (const [x, y] of line) out.push(`  ${num(x, 6)} ${num(y, 6)}`);
+    });
+    if (!level.lines.length) out.push(`q = ${num(level.q)} (${num(100 * level.cl, 4)} %): no line within the grid`);
+  }
+  process.stdout.write(`${out.join('\n')}\n`);
+  process.exitCode = 0;
 }
 
 /** Three significant digits, or an exponent below 1e-3. */

@@ -75,7 +75,8 @@ export interface SyntheticOptions {
   hypotheses?: number;
   /**
    * A second parameter of interest, `mu2`, on the signal templates of the signal regions after the
-   * first (μ keeps the first signal region and the control regions' contamination). Templates,
+   * first (μ keeps the first signal region and the control regions' contamination; with one signal
+   * region, `mu2` takes it and μ keeps the contamination alone). Templates,
    * effects and data are those of the model without it.
    */
   secondPoi?: boolean;
@@ -191,7 +192,7 @@ export function syntheticModel(size: SyntheticSize | SyntheticSpec, seed = 1, op
     floatingNorms,
     templates,
     systematics,
-    ...(options.secondPoi ? { parametersOfInterest: [{ key: 'mu2', label: 'second signal strength', start: 1, min: -10, max: 20, targets: regions.slice(1, Math.max(2, spec.signalRegions)).map((r) => ({ region: r.key, process: 'signal' })) }] } : {}),
+    ...(options.secondPoi ? { parametersOfInterest: [{ key: 'mu2', label: 'second signal strength', start: 1, min: -10, max: 20, targets: (spec.signalRegions > 1 ? regions.slice(1, spec.signalRegions) : regions.slice(0, 1)).map((r) => ({ region: r.key, process: 'signal' })) }] } : {}),
     ...(nHypotheses > 0 ? { signalHypotheses: signalHypotheses(nHypotheses, regions, spec.signalRegions, B, signalShapes) } : {}),
   };
 }
