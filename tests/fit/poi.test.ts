@@ -1,3 +1,8 @@
+import { execFile } from 'node:child_process';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { promisify } from 'node:util';
 import { EigenvalueDecomposition, inverse, Matrix } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
 import { exchangeModelSchema, type ExchangeModel, type ExchangeModelInput } from '@shared/schemas/exchange';
@@ -191,5 +196,27 @@ describe('a model without parameters of interest besides μ', () => {
     expect(r.summary!.mu.interval68).toEqual({ low: -0.3665210145211289, high: 0.3852876140930549 });
     expect(r.parameters[3].value).toBe(1.5880995472695812e-15);
     expect(r.correlation!.values[1]).toBe(0.047546580537922364);
+  });
+});
+
+describe('fit-cli --contour', () => {
+  const run = promisify(execFile);
+  const dir = mkdtempSync(join(tmpdir(), 'plumbline-contour-'));
+  const modelPath = join(dir, 'model.json');
+  writeFileSync(modelPath, JSON.stringify(combined()));
+
+  it('prints the lines of the contour and writes it with --out', async () => {
+    const outPath = join(dir, 'contour.json');
+    const { stdout } = await run('npx', ['tsx', 'scripts/fit-cli.ts', modelPath, '--contour', 'mu,mu2', '--out', outPath], { cwd: process.cwd() });
+    expect(stdout).toMatch(/^contour of mu and mu2: .* 441 of 441 grid points converged, 0 failed/);
+    expect(stdout).toMatch(/q = 2\.3 \(68\.27 %\), line 1 of 1/);
+    const written = profileContourSchema.parse(JSON.parse(readFileSync(outPath, 'utf8')));
+    expect(written.parameters).toEqual(['mu', 'mu2']);
+  });
+
+  it('names unknown parameters in one line and exits with status 2', async () => {
+    const error = await run('npx', ['tsx', 'scripts/fit-cli.ts', modelPath, '--contour', 'mu,nope'], { cwd: process.cwd() }).catch((e) => e);
+    expect(error.code).toBe(2);
+    expect(error.stderr).toBe('--contour: unknown parameter "nope"\n');
   });
 });
