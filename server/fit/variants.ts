@@ -153,15 +153,18 @@ export function frozenShare(nominal: { low: number | null; high: number | null }
  * §9.6: what a fit with μ hidden may keep. Nothing computed from μ̂ or from signal-region data
  * stays: μ̂, σ_μ and the summary, the μ row of the correlations, every impact on μ and the
  * ranking, the grouped impacts, the scan, the γ, information and post-fit yields of signal
- * regions, the data of signal regions, the NLL. Pulls, constraints, the γ of control regions,
+ * regions, the data of signal regions, the NLL, and every parameter of interest besides μ with
+ * them (their rows, the poi section). Pulls, constraints, the γ of control regions,
  * the correlations among k and θ and the control regions' post-fit yields stay.
  */
 export function hideMu(result: FitResult): FitResult {
   const signal = new Set(result.yields.prefit.filter((r) => r.role === 'signal').map((r) => r.region));
   const mu = result.parameters.find((p) => p.kind === 'poi')?.name;
-  const correlation = result.correlation && mu ? withoutRow(result.correlation, mu) : result.correlation;
+  const pois = new Set(result.parameters.filter((p) => p.kind === 'poi').map((p) => p.name));
+  const correlation = result.correlation && mu ? [...pois].reduce(withoutRow, result.correlation) : result.correlation;
+  const { poi: _poi, ...kept } = result;
   return {
-    ...result,
+    ...kept,
     convergence: { ...result.convergence, nll: null },
     parameters: result.parameters.filter((p) => p.kind !== 'poi'),
     nuisance: result.nuisance.map((n) => ({ ...n, quickImpact: null, postfitImpact: null, prefitImpact: null, rank: null })),
@@ -171,7 +174,7 @@ export function hideMu(result: FitResult): FitResult {
     groupedImpacts: [],
     scan: null,
     // the μ row of the information is gone with μ
-    information: result.information.filter((i) => i.parameter !== mu).map((i) => {
+    information: result.information.filter((i) => !pois.has(i.parameter)).map((i) => {
       const regions = i.regions.filter((r) => !signal.has(r.region));
       const total = i.constraint + regions.reduce((s, r) => s + r.information, 0);
       return { ...i, regions, total, width: 1 / Math.sqrt(total) };
@@ -198,6 +201,7 @@ export function variantIssues(model: ExchangeModel, options: Pick<FitOptions, 'h
   const issues: { path: (string | number)[]; message: string }[] = [];
   const ranges = new Map<string, [number, number]>([['mu', [model.signalStrength.min, model.signalStrength.max]]]);
   for (const f of model.floatingNorms) ranges.set(f.key, [f.min, f.max]);
+  for (const q of model.parametersOfInterest ?? []) ranges.set(q.key, [q.min, q.max]);
   for (const s of model.systematics) ranges.set(s.key, [-5, 5]);
   const systematics = new Set(model.systematics.map((s) => s.key));
   const groups = new Set(model.systematics.map((s) => s.group).filter((g): g is string => !!g));

@@ -7,7 +7,7 @@ import { EigenvalueDecomposition, inverse, Matrix } from 'ml-matrix';
 import { describe, expect, it } from 'vitest';
 import { exchangeModelSchema, type ExchangeModel, type ExchangeModelInput } from '@shared/schemas/exchange';
 import { fitResultSchema, profileContourSchema } from '@shared/schemas/fit';
-import { FitInputError, contourLines, fitModel, profileContour, syntheticModel } from '../../server/fit';
+import { FitInputError, contourLines, fitModel, hideMu, profileContour, syntheticModel, variantIssues } from '../../server/fit';
 import { expectClose } from './helpers';
 
 const axis = { name: 'x', unit: '' };
@@ -77,6 +77,21 @@ describe('parameters of interest besides μ', () => {
     expect(r.parameters.find((p) => p.name === 'mu2')!.kind).toBe('poi');
     expect(r.summary!.mu.value).toBe(r.poi!.list[0].value);
     expect(r.summary!.mu.error).toBe(r.poi!.list[0].error);
+  });
+
+  // docs/likelihood.md §9.6: a fit with μ hidden keeps nothing computed from a signal strength.
+  it('are hidden with μ, and may be held like any parameter', async () => {
+    const r = await fitModel(combined(), { impacts: 'none', expected: false });
+    const hidden = hideMu(r);
+    expect('poi' in hidden).toBe(false);
+    expect(hidden.parameters.some((p) => p.kind === 'poi')).toBe(false);
+    expect(hidden.correlation!.names).toEqual(['k1', 'k2', 'syst1', 'syst2']);
+    expect(hidden.information.map((i) => i.parameter)).not.toContain('mu2');
+    const options = { hold: [{ parameter: 'mu2', value: 1 }], holdGroups: [], statOnly: false, decorrelate: [], controlOnly: false };
+    expect(variantIssues(combined(), options)).toEqual([]);
+    const held = await fitModel(combined(), { impacts: 'none', expected: false, hold: [{ parameter: 'mu2', value: 1 }] });
+    expect(held.poi!.list[1]).toMatchObject({ name: 'mu2', value: 1, fixed: true, error: null, interval68: null });
+    expect(held.poi!.correlation.names).toEqual(['mu']);
   });
 });
 
