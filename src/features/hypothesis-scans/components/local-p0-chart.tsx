@@ -27,14 +27,15 @@ export function LocalP0Chart({ result }: { result: HypothesisScanResult }) {
   if (pts.length === 0) return null;
   const observed = result.dataset === 'observed';
   const ps = pts.flatMap((p) => [p.local?.p0, p.expected?.p0]).filter((p): p is number => p !== undefined && p !== null && p > 0);
-  const pMin = Math.min(1e-3, ...ps.map((p) => p / 3));
+  // down to a power of ten below every p0 shown (at least 1e-3), so the ticks end on the axis's end
+  const pMin = 10 ** Math.floor(Math.log10(Math.max(1e-12, Math.min(1e-3, ...ps.map((p) => p / 3)))));
   const x = scaleLinear()
     .domain([pts[0].value, pts[pts.length - 1].value === pts[0].value ? pts[0].value + 1 : pts[pts.length - 1].value])
     .range([M.left, W - M.right]);
-  const y = scaleLog().domain([1, Math.max(pMin, 1e-12)]).range([M.top, H - M.bottom]).clamp(true);
+  const y = scaleLog().domain([1, pMin]).range([M.top, H - M.bottom]).clamp(true);
   // one tick per power of ten (every other one past eight decades)
   const nDecades = Math.ceil(-Math.log10(y.domain()[1]));
-  const decades = Array.from({ length: nDecades + 1 }, (_, k) => 10 ** -k).filter((_, k) => nDecades <= 8 || k % 2 === 0);
+  const decades = Array.from({ length: nDecades + 1 }, (_, k) => 10 ** -k).filter((v, k) => v >= y.domain()[1] * (1 - 1e-9) && (nDecades <= 8 || k % 2 === 0));
   const segments = (get: (p: (typeof pts)[number]) => number | null | undefined) => {
     // a failed point breaks the line rather than being bridged
     const runs: { value: number; p: number }[][] = [[]];
