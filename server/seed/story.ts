@@ -96,8 +96,8 @@ export async function seedStory(ctx: AppContext, baseUrl: string, options: { wai
   await requestUnblinding(ctx, ottoV, { note: 'The control regions are understood, the review set is done, and every entry that enters the fit is accepted or under review.' }, baseUrl);
 
   if (options.waitForFits) {
+    // the scans finish on their own thread meanwhile: their screen shows their progress until then
     await ctx.fits.idle();
-    await ctx.scans.idle();
     // a revised variation while its entry is under review: the entry shows what it does to the observed fit
     await reviseShape(ctx, ottoC, 'continuum_shape', 'continuum_shape_steeper_tail.csv', 0.04, baseUrl);
     await impactChecksIdle();

@@ -21,8 +21,8 @@ describe('analyses and their members', () => {
     const res = await admin.get('/api/analyses');
     expect(res.body.map((a: { slug: string; role: null }) => [a.slug, a.role])).toEqual([
       ['cascade-rate', null],
-      ['vireon-pilot', null],
       ['vireon-search', null],
+      ['vireon-pilot', null],
     ]);
   });
 
