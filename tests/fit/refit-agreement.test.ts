@@ -56,19 +56,24 @@ describe('refits against cold fits', () => {
   }, 60_000);
 });
 
+/** A model's problem with the suite's options, its best fit from the start values and the context there. */
+function bestFitOf(model: ReturnType<typeof stressModel>) {
+  const problem = buildProblem(model, REFERENCE_PROBLEM);
+  const scratch = createScratch(problem);
+  const s = startPoint(problem.model);
+  const min = minimise(problem, s.phi, s.gamma, scratch);
+  const c = curvatureAt(problem, min.phi, min.gamma, scratch);
+  if (!c.ok) throw new Error(c.message);
+  return { problem, m: problem.model, min, c };
+}
+
 describe('the reference cold fit', () => {
   it('follows the path from its best fit where moving the parameter alone empties a bin with events, and is not left in a higher valley', () => {
     // A tail killer model: with np3 at θ̂ − σ̂ the best fit with np3 moved gives a bin with events
     // no expected events (infinite NLL), and Newton from the start values stops in a valley with
     // a tail template clipped, 5.8 above the engine's conditional minimum.
     const model = stressModel(EDGE_SIZES.tiny, 8);
-    const problem = buildProblem(model, REFERENCE_PROBLEM);
-    const m = problem.model;
-    const scratch = createScratch(problem);
-    const s = startPoint(m);
-    const min = minimise(problem, s.phi, s.gamma, scratch);
-    const c = curvatureAt(problem, min.phi, min.gamma, scratch);
-    if (!c.ok) throw new Error(c.message);
+    const { problem, m, min, c } = bestFitOf(model);
     const i = m.names.indexOf('np3');
     const value = min.phi[i] - Math.sqrt(c.context.V[i * m.nDense + i]);
     const engine = conditionalFit(c.context, i, value, createScratch(problem));
@@ -83,13 +88,7 @@ describe('the reference cold fit', () => {
     // refit, continued from the post-fit one, ends in a basin that neither the reference's start
     // values, its best fit nor the path from it in steps of 0.1 enters.
     const model = stressModel(EDGE_SIZES.small, 2);
-    const problem = buildProblem(model, REFERENCE_PROBLEM);
-    const m = problem.model;
-    const scratch = createScratch(problem);
-    const s = startPoint(m);
-    const min = minimise(problem, s.phi, s.gamma, scratch);
-    const c = curvatureAt(problem, min.phi, min.gamma, scratch);
-    if (!c.ok) throw new Error(c.message);
+    const { problem, m, min, c } = bestFitOf(model);
     const i = m.names.indexOf('np3');
     const th = min.phi[i];
     const value = th - 1;
