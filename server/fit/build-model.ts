@@ -27,34 +27,25 @@ export function buildModel(model: ExchangeModel, inFit: (regionKey: string, role
   const lower = [model.signalStrength.min];
   const upper = [model.signalStrength.max];
   const normOf = new Map<string, number>();
-  for (const f of model.floatingNorms) {
+  // Parameters of interest besides μ are compiled like floating normalisations, and μ no longer
+  // multiplies their templates.
+  const poiOf = new Set<string>();
+  const addFactor = (f: { key: string; label?: string; start: number; min: number; max: number; targets: { region: string; process: string }[] }, kind: 'normalisation' | 'poi') => {
     const idx = names.length;
     names.push(f.key);
     labels.push(f.label ?? f.key);
-    kinds.push('normalisation');
+    kinds.push(kind);
     groups.push(null);
     start.push(f.start);
     lower.push(f.min);
     upper.push(f.max);
-    for (const t of f.targets) normOf.set(`${t.region}\u0000${t.process}`, idx);
-  }
-  // Parameters of interest besides μ: compiled like floating normalisations, and μ no longer
-  // multiplies their templates.
-  const poiOf = new Set<string>();
-  for (const q of model.parametersOfInterest ?? []) {
-    const idx = names.length;
-    names.push(q.key);
-    labels.push(q.label ?? q.key);
-    kinds.push('poi');
-    groups.push(null);
-    start.push(q.start);
-    lower.push(q.min);
-    upper.push(q.max);
-    for (const t of q.targets) {
+    for (const t of f.targets) {
       normOf.set(`${t.region}\u0000${t.process}`, idx);
-      poiOf.add(`${t.region}\u0000${t.process}`);
+      if (kind === 'poi') poiOf.add(`${t.region}\u0000${t.process}`);
     }
-  }
+  };
+  for (const f of model.floatingNorms) addFactor(f, 'normalisation');
+  for (const q of model.parametersOfInterest ?? []) addFactor(q, 'poi');
   const thetaStart = names.length;
   for (const s of model.systematics) {
     names.push(s.key);
