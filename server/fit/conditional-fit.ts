@@ -204,6 +204,12 @@ function ladder(
     // Newton from the model's start values with φ_i held: the start of the cold fit the result is
     // checked against, and the one symmetric start between the basins of a same-side parameter.
     let triedStart = false;
+    // Newton from the context's minimum with φ_i held: tried once at most (the same start gives the same minimum).
+    let triedMinimum = false;
+    const fromMinimum = () => {
+      triedMinimum = true;
+      return newton('cold', ctx.phi, ctx.gamma);
+    };
     const fromStartValues = () => {
       triedStart = true;
       const s = startPoint(m);
@@ -223,7 +229,7 @@ function ladder(
       // neither the path from φ̂ nor the linear response enters, though no parameter moved far:
       // the two cold starts of the reference, Newton from φ̂ with φ_i moved and from the start
       // values, are tried as well.
-      best = lower(best, newton('cold', ctx.phi, ctx.gamma));
+      best = lower(best, fromMinimum());
       best = lower(best, fromStartValues());
     }
     // A q far above the quadratic model's, Δ²/V_ii, is the mark of a minimum in another basin
@@ -231,7 +237,7 @@ function ladder(
     // Only within 3σ: further out (q0, limits) the quadratic model is no yardstick.
     const predicted = (value - ctx.phi[index]) ** 2 / ctx.V[index * m.nDense + index];
     const suspicious = () => predicted <= 9 && 2 * (best.nll - ctx.nll) > 2 * predicted + 1;
-    if (suspicious()) best = lower(best, newton('cold', ctx.phi, ctx.gamma));
+    if (!triedMinimum && suspicious()) best = lower(best, fromMinimum());
     // Where the context's minimum holds a clip edge, any move takes those templates off it, to
     // one side or the other, while the conditional minimum may hold the edge again: the edge
     // is held from the refit's point (clip-edge.ts) and the lower NLL kept.
