@@ -28,6 +28,8 @@ export const fitOptionsSchema = z.strictObject({
   expected: z.boolean().default(true),
   /** Constraint (σ̂/1) below which a nuisance parameter is flagged as over-constrained. */
   overConstraintThreshold: z.number().gt(0).lt(1).default(0.5),
+  /** Two parameters of interest (keys; μ is "mu") whose 2D profile-likelihood contour the fit draws at 68.27 % and 95 %. */
+  contour: z.tuple([z.string().min(1), z.string().min(1)]).nullable().default(null),
   /** The variant of the fit: held parameters, statistics only, decorrelation, expected basis, hidden μ, breakdown (variants.ts). */
   ...variantOptionsShape,
 });
@@ -128,6 +130,33 @@ export const correlationSchema = z.strictObject({
 
 export const intervalSchema = z.strictObject({ low: nullableNum, high: nullableNum });
 
+export const scanPointSchema = z.strictObject({ value: num, q: num });
+
+export const parameterScanSchema = z.strictObject({
+  parameter: z.string(),
+  /** Why no scan could be made (the fit failed); null otherwise. */
+  failure: z.string().nullable(),
+  bestFit: num,
+  error: nullableNum,
+  points: z.array(scanPointSchema),
+  /** Where q = 1 and q = 3.84 (absolute values of the parameter; null outside its bounds). */
+  crossings68: intervalSchema,
+  crossings95: intervalSchema.nullable(),
+});
+export type ParameterScan = z.infer<typeof parameterScanSchema>;
+
+/** One nuisance parameter's impact on a parameter of interest besides μ (as the nuisance table's are on μ). */
+export const poiImpactSchema = z.strictObject({
+  name: z.string(),
+  /** ρ(poi, θ) σ_poi from V. */
+  quickImpact: nullableNum,
+  postfitImpact: impactPairSchema.nullable(),
+  prefitImpact: impactPairSchema.nullable(),
+  /** 1 = largest impact on this parameter; null when held. */
+  rank: z.number().int().nullable(),
+});
+export type PoiImpact = z.infer<typeof poiImpactSchema>;
+
 /** A parameter of interest (μ first, then those the model declares besides it). */
 export const poiReportSchema = z.strictObject({
   name: z.string(),
@@ -138,6 +167,16 @@ export const poiReportSchema = z.strictObject({
   error: nullableNum,
   /** Where q = 1 on each side (absolute values; null past a bound); null when held. */
   interval68: intervalSchema.nullable(),
+  /** Where q = 3.84 on each side (absolute values; null past a bound); null when held. Absent in older results. */
+  interval95: intervalSchema.nullable().optional(),
+  /** Its profile-likelihood scan, when the fit asked for scans (μ's is the result's own scan). */
+  scan: parameterScanSchema.nullable().optional(),
+  /**
+   * The impact of every nuisance parameter on this parameter of interest, in the nuisance table's
+   * order, from the same refits as μ's (each refit's minimum carries every parameter of interest).
+   * Null for μ, whose impacts are the nuisance table's; absent in older results.
+   */
+  impacts: z.array(poiImpactSchema).nullable().optional(),
 });
 
 /** The parameters of interest of a model that declares any besides μ. */
@@ -173,20 +212,6 @@ export const summarySchema = z.strictObject({
 
 export const groupImpactSchema = z.strictObject({ group: z.string(), impact: num, parameters: z.array(z.string()) });
 
-export const scanPointSchema = z.strictObject({ value: num, q: num });
-
-export const parameterScanSchema = z.strictObject({
-  parameter: z.string(),
-  /** Why no scan could be made (the fit failed); null otherwise. */
-  failure: z.string().nullable(),
-  bestFit: num,
-  error: nullableNum,
-  points: z.array(scanPointSchema),
-  /** Where q = 1 and q = 3.84 (absolute values of the parameter; null outside its bounds). */
-  crossings68: intervalSchema,
-  crossings95: intervalSchema.nullable(),
-});
-export type ParameterScan = z.infer<typeof parameterScanSchema>;
 
 export const informationSchema = z.strictObject({
   parameter: z.string(),
@@ -217,6 +242,26 @@ export const regionYieldsSchema = z.strictObject({
 
 export const dataRegionSchema = z.strictObject({ region: z.string(), inFit: z.boolean(), values: z.array(num).nullable() });
 
+/** A line of a contour: its points (a, b) in order. */
+export const contourLineSchema = z.array(z.tuple([num, num]));
+
+export const profileContourSchema = z.strictObject({
+  parameters: z.tuple([z.string(), z.string()]),
+  /** Why no contour could be made (the fit failed); null otherwise. */
+  failure: z.string().nullable(),
+  bestFit: z.tuple([num, num]),
+  errors: z.tuple([nullableNum, nullableNum]),
+  /** Grid values of the first (a) and second (b) parameter. */
+  a: z.array(num),
+  b: z.array(num),
+  /** q(a_i, b_j) at q[j][i]; null where the conditional fit failed. */
+  q: z.array(z.array(nullableNum)),
+  /** q = 2.30 (68.27 %) and q = 5.99 (95 %) for two degrees of freedom. */
+  levels: z.array(z.strictObject({ cl: num, q: num, lines: z.array(contourLineSchema) })),
+  points: z.strictObject({ converged: z.number().int(), failed: z.number().int() }),
+});
+export type ProfileContour = z.infer<typeof profileContourSchema>;
+
 export const fitResultSchema = z.strictObject({
   status: z.enum(['converged', 'failed']),
   model: z.strictObject({ name: z.string(), regionsInFit: z.array(z.string()) }),
@@ -239,27 +284,10 @@ export const fitResultSchema = z.strictObject({
   data: z.strictObject({ dataset: z.enum(['observed', 'asimov']), asimovMu: nullableNum, regions: z.array(dataRegionSchema) }),
   /** Every parameter of interest, when the model declares any besides μ (absent otherwise). */
   poi: poiSectionSchema.optional(),
+  /** The 2D profile-likelihood contour of the pair the options name (absent or null otherwise). */
+  contour: profileContourSchema.nullable().optional(),
   /** What variant this fit is (absent in results stored before variants existed: the nominal fit). */
   variant: variantReportSchema.optional(),
 });
 export type FitResult = z.infer<typeof fitResultSchema>;
 
-/** A line of a contour: its points (a, b) in order. */
-export const contourLineSchema = z.array(z.tuple([num, num]));
-
-export const profileContourSchema = z.strictObject({
-  parameters: z.tuple([z.string(), z.string()]),
-  /** Why no contour could be made (the fit failed); null otherwise. */
-  failure: z.string().nullable(),
-  bestFit: z.tuple([num, num]),
-  errors: z.tuple([nullableNum, nullableNum]),
-  /** Grid values of the first (a) and second (b) parameter. */
-  a: z.array(num),
-  b: z.array(num),
-  /** q(a_i, b_j) at q[j][i]; null where the conditional fit failed. */
-  q: z.array(z.array(nullableNum)),
-  /** q = 2.30 (68.27 %) and q = 5.99 (95 %) for two degrees of freedom. */
-  levels: z.array(z.strictObject({ cl: num, q: num, lines: z.array(contourLineSchema) })),
-  points: z.strictObject({ converged: z.number().int(), failed: z.number().int() }),
-});
-export type ProfileContour = z.infer<typeof profileContourSchema>;
