@@ -1,6 +1,7 @@
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { FitOptionsInput, ProfileContour } from '@shared/schemas/fit';
 import type { FitProblem } from './compiled-model';
+import type { FitContext } from './covariance';
 import { chiSquareQuantile } from './distributions';
 import { FitInputError, throwIfAborted } from './errors';
 import { createScratch, minimise } from './minimiser';
@@ -29,20 +30,35 @@ export function profileContour(model: ExchangeModel, optionsInput: FitOptionsInp
   if (ib < 0) throw new FitInputError(`unknown parameter "${b}"`, ['b']);
   if (ib === best.index) throw new FitInputError(`the two parameters of a contour must differ ("${a}" twice)`, ['b']);
   const n = Math.max(3, control.points ?? 21);
-  const empty = (failure: string): ProfileContour => ({
-    parameters: [a, b],
-    failure,
-    bestFit: [best.m.start[best.index], best.m.start[ib]],
-    errors: [null, null],
-    a: [],
-    b: [],
-    q: [],
-    levels: CONTOUR_LEVELS.map((l) => ({ ...l, lines: [] })),
-    points: { converged: 0, failed: 0 },
-  });
+  const empty = (failure: string) => noContour([a, b], [best.m.start[best.index], best.m.start[ib]], failure);
   if (best.kind === 'none') return empty(best.failure);
-  const { ctx, m, index: ia } = best;
-  if (ctx.problem.held[ib]) return empty(`${b} is held in this fit`);
+  if (best.ctx.problem.held[ib]) return empty(`${b} is held in this fit`);
+  return contourAround(best.ctx, best.index, ib, n, control.signal);
+}
+
+/**
+ * The contour of the parameters named `pair` around a fit's own minimum (the fit's held
+ * parameters stay held). A pair the model does not have, or a held one, gives a contour with a
+ * failure and no grid.
+ */
+export function contourOf(ctx: FitContext, pair: [string, string], control: ContourControl = {}): ProfileContour {
+  const m = ctx.problem.model;
+  const [ia, ib] = pair.map((name) => m.names.indexOf(name));
+  const failure = (why: string) => noContour(pair, [ia >= 0 ? ctx.phi[ia] : 0, ib >= 0 ? ctx.phi[ib] : 0], why);
+  if (ia < 0 || ib < 0) return failure(`the model has no parameter "${ia < 0 ? pair[0] : pair[1]}"`);
+  if (ia === ib) return failure('the two parameters of a contour must differ');
+  for (const i of [ia, ib]) if (ctx.problem.held[i]) return failure(`${m.names[i]} is held in this fit`);
+  return contourAround(ctx, ia, ib, Math.max(3, control.points ?? 21), control.signal);
+}
+
+/** A contour that could not be made: why, and no grid. */
+function noContour(pair: [string, string], bestFit: [number, number], failure: string): ProfileContour {
+  return { parameters: pair, failure, bestFit, errors: [null, null], a: [], b: [], q: [], levels: CONTOUR_LEVELS.map((l) => ({ ...l, lines: [] })), points: { converged: 0, failed: 0 } };
+}
+
+function contourAround(ctx: FitContext, ia: number, ib: number, n: number, signal: AbortSignal | undefined): ProfileContour {
+  const m = ctx.problem.model;
+  const [a, b] = [m.names[ia], m.names[ib]];
   const P = m.nDense;
   const axis = (i: number) => {
     const x0 = ctx.phi[i];
@@ -60,7 +76,7 @@ export function profileContour(model: ExchangeModel, optionsInput: FitOptionsInp
   const minima: ({ phi: Float64Array; gamma: Float64Array } | null)[][] = [];
   let failed = 0;
   for (let j = 0; j < n; j++) {
-    throwIfAborted(control.signal);
+    throwIfAborted(signal);
     const row: (number | null)[] = [];
     const rowMinima: ({ phi: Float64Array; gamma: Float64Array } | null)[] = [];
     for (let i = 0; i < n; i++) {
@@ -75,7 +91,7 @@ export function profileContour(model: ExchangeModel, optionsInput: FitOptionsInp
         again[ib] = bx.grid[j];
         r = minimise(problem, again, Float64Array.from(ctx.gamma), scratch);
       }
-      if (r.status === 'cancelled') throwIfAborted(control.signal);
+      if (r.status === 'cancelled') throwIfAborted(signal);
       const ok = r.status !== 'failed' && r.status !== 'cancelled' && Number.isFinite(r.nll);
       if (!ok) failed++;
       row.push(ok ? Math.max(0, 2 * (r.nll - ctx.nll)) : null);

@@ -1,5 +1,5 @@
 import type { ExchangeModel } from '@shared/schemas/exchange';
-import { fitOptionsSchema, type FitOptionsInput, type FitResult, type NuisanceReport } from '@shared/schemas/fit';
+import { fitOptionsSchema, type FitOptions, type FitOptionsInput, type FitResult, type NuisanceReport, type ParameterScan, type PoiImpact } from '@shared/schemas/fit';
 import type { CompiledModel, FitProblem } from './compiled-model';
 import type { BreakdownRow, VariantReport } from '@shared/schemas/variants';
 import { curvatureAt, gammaVariance, type FitContext } from './covariance';
@@ -13,7 +13,8 @@ import { runRefits, type FitPool } from './refit-batches';
 import { asimovData, buildProblem, startPoint } from './problem';
 import { applyHeld, decorrelationReports, frozenShare, needsBestFit, resolveHeld, variantModel, type HeldValue } from './variants';
 import { createWorkspace, evaluateYields } from './yields';
-import { assembleScan, scanTasks } from './scan';
+import { assembleScan, Q68, Q95, scanTasks } from './scan';
+import { contourOf } from './contour';
 import { discovery, goodnessOfFit } from './significance';
 
 export interface FitControl {
@@ -157,9 +158,10 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     scanPlan = { grid, first: tasks.length };
     sj.forEach(push);
   }
-  // A model with parameters of interest besides μ: the q = 1 crossings of each free one, μ's too.
+  // A model with parameters of interest besides μ: each free one's scan (or, without scans, its
+  // crossings); μ's come from its own scan when there is one.
   const poiIndices = m.kinds.flatMap((kind, i) => (kind === 'poi' ? [i] : []));
-  const poiJobs = poiIndices.length > 1 ? planPoi(ctx, poiIndices, push) : null;
+  const poiJobs = poiIndices.length > 1 ? planPoi(ctx, poiIndices, push, options, scanPlan) : null;
   const firstWave = tasks.length;
   const done = [0, 0];
   const waveProgress = (wave: number, total: number) => (f: number) => {
@@ -212,7 +214,7 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     row.postfitImpact = { up: delta(up, `${m.names[i]} at +1σ̂`), down: delta(down, `${m.names[i]} at −1σ̂`) };
     row.prefitImpact = { up: delta(up.next!, `${m.names[i]} at +1`), down: delta(down.next!, `${m.names[i]} at −1`) };
   }
-  rank(nuisance);
+  rank(nuisance, nuisance.map((r) => r.fixed));
 
   // Grouped impacts and the statistical / systematic split.
   const groupedImpacts: FitResult['groupedImpacts'] = [];
@@ -350,7 +352,13 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     data: dataSection(problem, options),
     variant: variantReport,
   };
-  if (poiJobs) result.poi = poiSection(ctx, poiJobs, results, warnings);
+  if (poiJobs) result.poi = poiSection(ctx, poiJobs, results, warnings, impactJobs, nuisance);
+  if (options.contour) {
+    progress(0.97, 'contour');
+    result.contour = contourOf(ctx, options.contour, { signal });
+    if (result.contour.failure) warnings.push(`No contour of ${options.contour.join(' and ')}: ${result.contour.failure}.`);
+    else if (result.contour.points.failed > 0) warnings.push(`${result.contour.points.failed} point(s) of the contour of ${options.contour.join(' and ')} did not converge and are left out.`);
+  }
   progress(1, 'done');
   return result;
 }
@@ -446,31 +454,73 @@ function assembleBreakdown(plan: BreakdownPlan, results: RefitResult[], ctx: Fit
 }
 
 /** The clip-edge outcome for the report (docs/likelihood.md §10: the edge held, or released to a lower NLL). */
-type PoiJobs = Map<number, [number, number] | null>;
+/**
+ * Per parameter of interest: where its scan's refits or its crossings (q = 1, then q = 3.84, low
+ * then high) start in the task list; null when it is held. μ's scan is the result's own.
+ */
+type PoiJobs = Map<number, { grid: number[]; first: number } | null>;
 
-function planPoi(ctx: FitContext, indices: number[], push: (task: RefitTask) => number): PoiJobs {
+function planPoi(ctx: FitContext, indices: number[], push: (task: RefitTask) => number, options: FitOptions, muScan: { grid: number[]; first: number } | null): PoiJobs {
   const free = (i: number) => !ctx.problem.held[i] && ctx.V[i * ctx.problem.model.nDense + i] > 0;
-  return new Map(indices.map((index) => [index, free(index) ? [push({ kind: 'crossing', context: 0, index, level: 1, direction: -1 }), push({ kind: 'crossing', context: 0, index, level: 1, direction: 1 })] : null]));
+  const jobs: PoiJobs = new Map();
+  for (const index of indices) {
+    if (!free(index)) jobs.set(index, null);
+    else if (index === 0 && muScan) jobs.set(index, muScan);
+    else if (options.scan) {
+      const { grid, tasks } = scanTasks(ctx, 0, index, options.scanPoints);
+      const first = tasks.map(push)[0];
+      jobs.set(index, { grid, first });
+    } else {
+      const first = push({ kind: 'crossing', context: 0, index, level: Q68, direction: -1 });
+      push({ kind: 'crossing', context: 0, index, level: Q68, direction: 1 });
+      push({ kind: 'crossing', context: 0, index, level: Q95, direction: -1 });
+      push({ kind: 'crossing', context: 0, index, level: Q95, direction: 1 });
+      jobs.set(index, { grid: [], first });
+    }
+  }
+  return jobs;
 }
 
-/** Value, σ and q = 1 interval of every parameter of interest, and their correlations (among the free ones). */
-function poiSection(ctx: FitContext, jobs: PoiJobs, results: RefitResult[], warnings: string[]): NonNullable<FitResult['poi']> {
+/**
+ * Value, σ, q = 1 and q = 3.84 intervals (and scan) of every parameter of interest, their
+ * correlations (among the free ones), and the impact of every nuisance parameter on each one
+ * besides μ, read from the same refits as μ's: each refit's minimum carries every parameter of
+ * interest, so Δ = value at the refit − best fit, and ranks as the nuisance table ranks μ's.
+ */
+function poiSection(
+  ctx: FitContext,
+  jobs: PoiJobs,
+  results: RefitResult[],
+  warnings: string[],
+  impactJobs: Map<number, { up: number; down: number }>,
+  nuisance: NuisanceReport[],
+): NonNullable<FitResult['poi']> {
   const m = ctx.problem.model;
   const P = m.nDense;
-  const crossing = (k: number, name: string) => {
-    const r = results[k];
-    if (!r.ok) warnings.push(`A q = 1 crossing of ${name} could not be located: ${r.message ?? 'a conditional fit failed'}.`);
-    return r.ok ? r.value : null;
-  };
-  const list = [...jobs].map(([i, tasks]) => ({
-    name: m.names[i],
-    label: m.labels[i],
-    value: ctx.phi[i],
-    fixed: ctx.problem.held[i] === 1,
-    error: errorOf(ctx, i),
-    interval68: tasks ? { low: crossing(tasks[0], m.names[i]), high: crossing(tasks[1], m.names[i]) } : null,
-  }));
-  const free = [...jobs.keys()].filter((i) => !ctx.problem.held[i]);
+  const indices = [...jobs.keys()];
+  const list = indices.map((i, position) => {
+    const plan = jobs.get(i)!;
+    const name = m.names[i];
+    let scan: ParameterScan | null = null;
+    let interval68: { low: number | null; high: number | null } | null = null;
+    let interval95: { low: number | null; high: number | null } | null = null;
+    if (plan && plan.grid.length > 0) {
+      scan = assembleScan(ctx, i, plan.grid, results.slice(plan.first, plan.first + plan.grid.length + 4), i === 0 ? [] : warnings);
+      interval68 = scan.crossings68;
+      interval95 = scan.crossings95;
+    } else if (plan) {
+      const crossing = (k: number) => {
+        const r = results[plan.first + k];
+        if (!r.ok) warnings.push(`A crossing of ${name} could not be located: ${r.message ?? 'a conditional fit failed'}.`);
+        return r.ok ? r.value : null;
+      };
+      interval68 = { low: crossing(0), high: crossing(1) };
+      interval95 = { low: crossing(2), high: crossing(3) };
+    }
+    const impacts = i === 0 || !plan ? null : poiImpacts(ctx, i, position, impactJobs, results, nuisance, name, warnings);
+    return { name, label: m.labels[i], value: ctx.phi[i], fixed: ctx.problem.held[i] === 1, error: errorOf(ctx, i), interval68, interval95, scan: i === 0 ? null : scan, impacts };
+  });
+  const free = indices.filter((i) => !ctx.problem.held[i]);
   const values: number[] = [];
   for (const i of free) {
     for (const j of free) {
@@ -479,6 +529,45 @@ function poiSection(ctx: FitContext, jobs: PoiJobs, results: RefitResult[], warn
     }
   }
   return { list, correlation: { names: free.map((i) => m.names[i]), values } };
+}
+
+/** The nuisance table's impacts, on the parameter of interest at `index` (`position` in the refits' `pois`). */
+function poiImpacts(
+  ctx: FitContext,
+  index: number,
+  position: number,
+  impactJobs: Map<number, { up: number; down: number }>,
+  results: RefitResult[],
+  nuisance: NuisanceReport[],
+  name: string,
+  warnings: string[],
+): PoiImpact[] {
+  const m = ctx.problem.model;
+  const P = m.nDense;
+  const hat = ctx.phi[index];
+  const delta = (r: RefitResult | undefined, what: string): number | null => {
+    if (!r?.ok) return null; // the warning for μ's impacts already names this refit
+    if (!r.pois) {
+      warnings.push(`The refit for ${what} did not report ${name}; its impact on ${name} is left empty.`);
+      return null;
+    }
+    return r.pois[position] - hat;
+  };
+  const rows: PoiImpact[] = nuisance.map((row, k) => {
+    const i = m.thetaStart + k;
+    const sigma = row.constraint;
+    const plan = impactJobs.get(i);
+    const [up, down] = plan ? [results[plan.up], results[plan.down]] : [undefined, undefined];
+    return {
+      name: row.name,
+      quickImpact: !row.fixed && sigma !== null && sigma > 0 ? ctx.V[index * P + i] / sigma : null,
+      postfitImpact: plan ? { up: delta(up, `${row.name} at +1σ̂`), down: delta(down, `${row.name} at −1σ̂`) } : null,
+      prefitImpact: plan ? { up: delta(up?.next, `${row.name} at +1`), down: delta(down?.next, `${row.name} at −1`) } : null,
+      rank: null,
+    };
+  });
+  rank(rows, nuisance.map((r) => r.fixed));
+  return rows;
 }
 
 function edgeReport(min: MinimiseResult): FitResult['convergence']['clipEdge'] {
@@ -528,11 +617,12 @@ function lowerMinimumWarning(tasks: RefitTask[], results: RefitResult[], context
   if (lowest > 0) warnings.push(`A refit with ${where} reached an NLL ${lowest.toExponential(2)} below the best fit: the likelihood has more than one minimum, and the best fit is not the lowest.`);
 }
 
-/** Orders by the largest post-fit |Δμ| (falling back to the quick impact without refits). */
-function rank(rows: NuisanceReport[]): void {
-  const key = (r: NuisanceReport) =>
+/** Orders by the largest post-fit |Δ| (falling back to the quick impact without refits); held rows get no rank. */
+function rank(rows: Pick<NuisanceReport, 'postfitImpact' | 'quickImpact' | 'rank'>[], held: boolean[]): void {
+  type Row = (typeof rows)[number];
+  const key = (r: Row) =>
     r.postfitImpact ? Math.max(Math.abs(r.postfitImpact.up ?? 0), Math.abs(r.postfitImpact.down ?? 0)) : r.quickImpact === null ? null : Math.abs(r.quickImpact);
-  const ranked = rows.filter((r) => !r.fixed && key(r) !== null).sort((a, b) => key(b)! - key(a)!);
+  const ranked = rows.filter((r, k) => !held[k] && key(r) !== null).sort((a, b) => key(b)! - key(a)!);
   ranked.forEach((r, k) => (r.rank = k + 1));
 }
 

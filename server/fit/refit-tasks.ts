@@ -55,6 +55,12 @@ export interface RefitResult {
   /** The result at the task's `next` value. */
   next?: RefitResult;
   /**
+   * For a 'fix' task on a model with parameters of interest besides μ: the value of every one
+   * (μ first, in the model's order) at the conditional minimum, so that the same refits give the
+   * impacts on each (docs/likelihood.md, "Several parameters of interest").
+   */
+  pois?: number[];
+  /**
    * With `keepPoint`: the conditional minimum the result comes from (for a crossing, the last
    * one the root search found, at a value within its tolerance of the root). For checks that
    * re-minimise from it (the refit-agreement suite); not kept otherwise.
@@ -95,6 +101,19 @@ export class Refitter {
   private warm = new Map<number, WarmStart>();
   /** Conditional fits of the task being run. */
   private counts = noRefits();
+  /** Per context, the indices of the parameters of interest when there are several (else null). */
+  private poiIndices = new Map<number, number[] | null>();
+
+  private poisAt(c: number, phi: ArrayLike<number>): number[] | undefined {
+    let indices = this.poiIndices.get(c);
+    if (indices === undefined) {
+      const kinds = this.contexts[c].problem.model.kinds;
+      const found = kinds.flatMap((kind, i) => (kind === 'poi' ? [i] : []));
+      indices = found.length > 1 ? found : null;
+      this.poiIndices.set(c, indices);
+    }
+    return indices ? indices.map((i) => phi[i]) : undefined;
+  }
 
   /** One conditional fit, counted by its rung. */
   private refit(c: number, index: number, value: number, warm: WarmStart | null): ConditionalResult {
@@ -148,11 +167,15 @@ export class Refitter {
   /** One conditional fit with φ_index = value, optionally from a nearby conditional minimum. */
   private fix(c: number, index: number, value: number, warm: WarmStart | null): { result: Omit<RefitResult, 'refits'>; warm: WarmStart | null } {
     const ctx = this.contexts[c];
-    if (value === ctx.phi[index]) return { result: { ok: true, value, nll: ctx.nll, mu: ctx.phi[0], message: null }, warm: null };
+    const pois = (phi: ArrayLike<number>) => {
+      const values = this.poisAt(c, phi);
+      return values ? { pois: values } : {};
+    };
+    if (value === ctx.phi[index]) return { result: { ok: true, value, nll: ctx.nll, mu: ctx.phi[0], message: null, ...pois(ctx.phi) }, warm: null };
     const r = this.refit(c, index, value, warm);
     const work = { ...r.work, rung: r.rung };
     if (!r.ok) return { result: { ...failed(r.message), work }, warm: null };
-    return { result: { ok: true, value, nll: r.nll, mu: r.phi[0], message: r.message, work }, warm: { value, phi: r.phi, gamma: r.gamma } };
+    return { result: { ok: true, value, nll: r.nll, mu: r.phi[0], message: r.message, work, ...pois(r.phi) }, warm: { value, phi: r.phi, gamma: r.gamma } };
   }
 
   /**

@@ -154,7 +154,7 @@ export function frozenShare(nominal: { low: number | null; high: number | null }
  * stays: μ̂, σ_μ and the summary, the μ row of the correlations, every impact on μ and the
  * ranking, the grouped impacts, the scan, the γ, information and post-fit yields of signal
  * regions, the data of signal regions, the NLL, and every parameter of interest besides μ with
- * them (their rows, the poi section). Pulls, constraints, the γ of control regions,
+ * them (their rows, the poi section, their contour). Pulls, constraints, the γ of control regions,
  * the correlations among k and θ and the control regions' post-fit yields stay.
  */
 export function hideMu(result: FitResult): FitResult {
@@ -162,7 +162,7 @@ export function hideMu(result: FitResult): FitResult {
   const mu = result.parameters.find((p) => p.kind === 'poi')?.name;
   const pois = new Set(result.parameters.filter((p) => p.kind === 'poi').map((p) => p.name));
   const correlation = result.correlation && mu ? [...pois].reduce(withoutRow, result.correlation) : result.correlation;
-  const { poi: _poi, ...kept } = result;
+  const { poi: _poi, contour: _contour, ...kept } = result;
   return {
     ...kept,
     convergence: { ...result.convergence, nll: null },

@@ -95,6 +95,72 @@ describe('parameters of interest besides μ', () => {
   });
 });
 
+describe('every output per parameter of interest', () => {
+  // Internal consistency again: on disjoint channels the joint fit's scan, 95 % interval and
+  // impacts on mu2 are those on μ of channel 2 fitted alone, and channel 1's systematic moves mu2 not at all.
+  it('gives mu2 the scan, 95 % interval and impacts of its channel fitted alone', async () => {
+    const joint = fitResultSchema.parse(await fitModel(combined(), { impacts: 'full', scan: true, expected: false }));
+    const alone = await fitModel(model([two]), { impacts: 'full', scan: true, expected: false });
+    const mu2 = joint.poi!.list[1];
+    const mu = alone.summary!.mu;
+    expect(mu2.scan!.parameter).toBe('mu2');
+    expect(mu2.scan!.points).toHaveLength(21);
+    expectClose(mu2.interval95!.low, mu.value + mu.interval95!.low!, 0, 1e-5 * mu.error!);
+    expectClose(mu2.interval95!.high, mu.value + mu.interval95!.high!, 0, 1e-5 * mu.error!);
+    expectClose(mu2.scan!.crossings68.high, mu.value + mu.interval68!.high!, 0, 1e-5 * mu.error!);
+    const onMu2 = new Map(mu2.impacts!.map((r) => [r.name, r]));
+    const syst2 = alone.nuisance.find((n) => n.name === 'syst2')!;
+    for (const side of ['up', 'down'] as const) {
+      expectClose(onMu2.get('syst2')!.postfitImpact![side], syst2.postfitImpact![side]!, 1e-4, 1e-7);
+      expectClose(onMu2.get('syst2')!.prefitImpact![side], syst2.prefitImpact![side]!, 1e-4, 1e-7);
+      expect(Math.abs(onMu2.get('syst1')!.postfitImpact![side]!)).toBeLessThan(1e-6);
+    }
+    expectClose(onMu2.get('syst2')!.quickImpact, syst2.quickImpact!, 1e-6);
+    expect(onMu2.get('syst2')!.rank).toBe(1);
+    // μ's own impacts stay in the nuisance table
+    expect(joint.poi!.list[0].impacts).toBeNull();
+    expect(joint.nuisance.find((n) => n.name === 'syst1')!.rank).toBe(1);
+  });
+
+  // Against a cold fit: an impact on mu2 is mu2 of the fit with that θ held at θ̂ ± σ̂ (or ± 1).
+  it('on a model where the strengths share parameters, matches a cold fit with the systematic held', async () => {
+    const m = syntheticModel({ regions: 3, signalRegions: 2, bins: 5, processes: 3, systematics: 4, floatingNorms: 1, varianceFraction: 0.5 }, 2, { secondPoi: true });
+    const r = await fitModel(m, { impacts: 'full', expected: false });
+    const mu2 = r.poi!.list.find((p) => p.name === 'mu2')!;
+    const moved = mu2.impacts!.filter((i) => i.postfitImpact && Math.abs(i.postfitImpact.up ?? 0) > 1e-4);
+    expect(moved.length).toBeGreaterThan(0);
+    for (const impact of moved.slice(0, 2)) {
+      const row = r.nuisance.find((n) => n.name === impact.name)!;
+      const theta = r.parameters.find((p) => p.name === impact.name)!.value;
+      const cold = await fitModel(m, { impacts: 'none', expected: false, hold: [{ parameter: impact.name, value: theta + row.constraint! }] });
+      const coldMu2 = cold.poi!.list.find((p) => p.name === 'mu2')!.value;
+      expectClose(impact.postfitImpact!.up, coldMu2 - mu2.value, 2e-3, 1e-5);
+    }
+    // without scans, the intervals come from crossings
+    expect(mu2.scan).toBeNull();
+    expect(mu2.interval68!.low).toBeLessThan(mu2.value);
+    expect(mu2.interval95!.low).toBeLessThan(mu2.interval68!.low!);
+    expect(mu2.interval95!.high).toBeGreaterThan(mu2.interval68!.high!);
+  });
+
+  it('draws the contour the options name around the fit’s own minimum, and hides it with μ', async () => {
+    const m = syntheticModel({ regions: 3, signalRegions: 2, bins: 5, processes: 3, systematics: 4, floatingNorms: 1, varianceFraction: 0.5 }, 2, { secondPoi: true });
+    const r = fitResultSchema.parse(await fitModel(m, { impacts: 'none', expected: false, contour: ['mu', 'mu2'] }));
+    const alone = profileContour(m, {}, 'mu', 'mu2');
+    expect(r.contour!.failure).toBeNull();
+    expect(r.contour!.parameters).toEqual(['mu', 'mu2']);
+    expectClose(r.contour!.bestFit[0], alone.bestFit[0], 0, 1e-6);
+    expectClose(r.contour!.bestFit[1], alone.bestFit[1], 0, 1e-6);
+    r.contour!.q.forEach((row, j) => row.forEach((q, i) => expectClose(q, alone.q[j][i]!, 1e-4, 1e-6)));
+    expect(r.contour!.levels.map((l) => l.lines.length)).toEqual([1, 1]);
+    expect('contour' in hideMu(r)).toBe(false);
+    // a pair the fit holds gives a contour with its reason, and a warning beside it
+    const held = await fitModel(m, { impacts: 'none', expected: false, contour: ['mu', 'mu2'], hold: [{ parameter: 'mu2', value: 1 }] });
+    expect(held.contour!.failure).toBe('mu2 is held in this fit');
+    expect(held.convergence.warnings.some((w) => w.includes('No contour of mu and mu2'))).toBe(true);
+  });
+});
+
 describe('the 2D profile-likelihood contour', () => {
   // Linear Gaussian limit: with counts of ~10⁶ per bin the Poisson NLL is quadratic in (μ, μ2) to
   // ~10⁻³, so q = (p − p̂)ᵀ V⁻¹ (p − p̂) with V⁻¹ the Fisher information Σ_b s_a s_b / ν_b at the
