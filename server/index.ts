@@ -13,7 +13,7 @@ import { createFitRunner } from './runs/fit-runner';
 import { createToyRunner } from './runs/toy-runner';
 import { createHypothesisScanRunner } from './runs/hypothesis-scan-runner';
 import { startQueue } from './runs/queue/queue';
-import { queuedFitRunner, queuedToyRunner } from './runs/queue/queued-runners';
+import { queuedFitRunner, queuedScanRunner, queuedToyRunner } from './runs/queue/queued-runners';
 import { seedDemo } from './seed/demo';
 import { seedStory, storyPending } from './seed/story';
 import { backfillEffectSizes } from './services/register.service';
@@ -71,12 +71,11 @@ async function serve(config: Config, prepared: Awaited<ReturnType<typeof prepare
   const mailer = await createMailer(outboxStore(database.db), config);
   const threads = config.FIT_THREADS ?? Math.max(1, availableParallelism() - 1);
   const local = createFitRunner(database.db, console.error, { threads, niceness: config.FIT_NICENESS });
-  // with a PostgreSQL server, fits and toys wait on its queue for worker processes
+  // with a PostgreSQL server, fits, toys and scans wait on its queue for worker processes
   const queue = config.DATABASE_URL ? await startQueue(config.DATABASE_URL, console.error) : null;
   const fits = queue ? queuedFitRunner(database.db, queue, local) : local;
   const toys = queue ? queuedToyRunner(database.db, queue) : createToyRunner(database.db, console.error, { threads, niceness: config.FIT_NICENESS });
-  // scans over signal hypotheses run on this process's threads on both paths
-  const scans = createHypothesisScanRunner(database.db, console.error, { threads, niceness: config.FIT_NICENESS });
+  const scans = queue ? queuedScanRunner(database.db, queue) : createHypothesisScanRunner(database.db, console.error, { threads, niceness: config.FIT_NICENESS });
   await fits.recover();
   await toys.recover();
   await scans.recover();

@@ -4,13 +4,15 @@ import { ConfigError, loadConfig } from './config';
 import { DatabaseUnreachableError, openServerDatabase, redacted } from './db/client';
 import { toShared, type FitContext, type RefitBatch } from './fit';
 import { createFitPool } from './runs/threads/pool';
-import { coordinateFit } from './runs/queue/coordinate';
+import { coordinateFit, coordinateScan } from './runs/queue/coordinate';
+import { scanToyThreads } from './runs/scan-outcome';
 import { QUEUES, startQueue, takeJobs, workShards } from './runs/queue/queue';
 import { failCoordinatedBy, startHeartbeat } from './runs/queue/heartbeat';
 import { coordinateToys, toyBatchWorker, toyThreads } from './runs/toys';
 
 /**
- * A worker process: takes fits, refit shards, toy runs and toy batches from the queue in the
+ * A worker process: takes fits, refit shards, toy runs, toy batches and scans over signal
+ * hypotheses from the queue in the
  * PostgreSQL server at DATABASE_URL, runs the engine, stores the results. Start as many as the
  * machines have cores for, on any machine that reaches the database (docs/scaling.md).
  *
@@ -31,6 +33,8 @@ async function main() {
   const refits = createFitPool({ threads, niceness: config.FIT_NICENESS });
   // toy batches on T threads, and a thread for the plan of a toy run this worker coordinates
   const toys = toyThreads(threads, config.FIT_NICENESS);
+  // the toys of a scan's global significance, on T threads of their own while this worker coordinates one
+  let scanToys: ReturnType<typeof scanToyThreads> | null = null;
 
   const refitShards = await workShards<FitContext[], RefitBatch['tasks'], unknown>(database.db, queue, {
     queue: QUEUES.refits,
@@ -52,6 +56,11 @@ async function main() {
     await coordinateToys(database.db, queue, toys, job.data.toyRunId, log, name);
     log(`toy run ${job.data.toyRunId}: done`);
   }, log);
+  const scanJobs = takeJobs<{ scanId: number }>(queue, QUEUES.scan, 1, async (job) => {
+    log(`scan ${job.data.scanId}: started${job.retryCount ? ' (retry)' : ''}`);
+    await coordinateScan(database.db, queue, job.data.scanId, { threads, pool: () => (scanToys ??= scanToyThreads(threads, config.FIT_NICENESS)) }, log, name);
+    log(`scan ${job.data.scanId}: done`);
+  }, log);
   console.log(`Plumbline worker ${name} is taking work from ${redacted(config.DATABASE_URL)} with ${threads} engine thread(s).`);
 
   let stopping = false;
@@ -62,12 +71,14 @@ async function main() {
     // up again); shards in hand are finished first, they are short
     void fitJobs.stop();
     void toyJobs.stop();
+    void scanJobs.stop();
     await failCoordinatedBy(database.db, name).catch((e) => log(`could not mark its runs: ${(e as Error).message}`));
     await heartbeat.stop();
     await Promise.race([Promise.all([refitShards.stop(), toyShards.stop()]), new Promise((r) => setTimeout(r, 10_000))]);
     await queue.stop({ graceful: false, wait: true, timeout: 5000 }).catch(() => {});
     await refits.destroy();
     await toys.close();
+    await scanToys?.destroy();
     await database.close();
     process.exit(0);
   };

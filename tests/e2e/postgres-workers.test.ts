@@ -6,6 +6,9 @@ import pg from 'pg';
 import { exchangeModelSchema } from '@shared/schemas/exchange';
 import { fitOptionsSchema, type FitResult } from '@shared/schemas/fit';
 import type { ToyRun } from '@shared/schemas/toys';
+import { hypothesisScanOptionsSchema, type HypothesisScan, type HypothesisScanResult } from '@shared/schemas/hypothesis-scan';
+import { scanOutcome, scanToyThreads } from '../../server/runs/scan-outcome';
+import { modelForScan } from '../../server/runs/hypothesis-scan-runner';
 import { startPostgres, type PostgresServer } from '../../scripts/postgres-server';
 import { fitModel, type FitPool } from '../../server/fit';
 import { createFitPool } from '../../server/runs/threads/pool';
@@ -22,7 +25,8 @@ import { startServer, type RunningServer } from './support';
 /**
  * The app on a PostgreSQL server from Debian's packages (.ci/run installs it when missing), with
  * two worker processes: a full-impacts fit is split across both and equals the embedded result;
- * toys through the queue equal toys run in one thread; a shard is retried once, then fails its run.
+ * toys through the queue equal toys run in one thread; a scan over signal hypotheses split across
+ * both equals the scan in one process; a shard is retried once, then fails its run.
  */
 let postgres: PostgresServer;
 let server: RunningServer;
@@ -263,6 +267,48 @@ describe('PostgreSQL server, two web server processes on one port, and two worke
       const outcomes = runToys(model, options, plan, 2026, toyBatches(120).flat());
       expect(JSON.parse(JSON.stringify(run.summary))).toEqual(JSON.parse(JSON.stringify(summariseToys(plan, outcomes, 120))));
     } finally {
+      await db.end();
+    }
+  }, 300_000);
+
+  it('splits a scan over signal hypotheses across both workers, with the numbers of the scan in one process', async () => {
+    const P = '/api/analyses/vireon-pilot';
+    const frozen = await send('post', `${P}/versions`, { note: 'for the workers' });
+    expect(frozen.status).toBe(201);
+    const options = { dataset: 'observed', limit: true, referenceLevel: 0.5, upcrossingToys: 12, trialsToys: 12, seed: 4 } as const;
+    const started = await send('post', `${P}/hypothesis-scans`, { version: frozen.body.number, label: 'on the workers', options });
+    expect(started.status, JSON.stringify(started.body)).toBe(202);
+    const scan = await until(
+      'the scan',
+      async () => (await analyst.get(`${P}/hypothesis-scans/${started.body.id}`)).body as HypothesisScan,
+      (b) => b.state !== 'queued' && b.state !== 'running',
+    );
+    expect(scan.state, scan.failure ?? '').toBe('succeeded');
+
+    const db = new pg.Client({ connectionString: postgres.url });
+    await db.connect();
+    let pool: FitPool | null = null;
+    let toys = null as ReturnType<typeof scanToyThreads> | null;
+    try {
+      const { rows } = await db.query('select s.workers, s.coordinated_by, s.regions_in_fit, v.model from hypothesis_scans s join model_versions v on v.id = s.model_version_id where s.id = $1', [started.body.id]);
+      // the hypotheses' refits went to both workers, and one of them coordinated the scan
+      expect(Object.keys(rows[0].workers as Record<string, number>).sort()).toEqual(['worker-one', 'worker-two']);
+      expect(['worker-one', 'worker-two']).toContain(rows[0].coordinated_by);
+      // in one process: the same model, options and seed, refits and toys on this process's threads
+      pool = createFitPool({ threads: 2 });
+      const here = await scanOutcome(modelForScan(exchangeModelSchema.parse(rows[0].model), rows[0].regions_in_fit), hypothesisScanOptionsSchema.parse(options), {
+        pool,
+        toys: () => (toys ??= scanToyThreads(2, 0)),
+        toyThreads: 2,
+        onProgress: () => {},
+      });
+      if (!here.ok) throw new Error(here.message);
+      const comparable = (r: HypothesisScanResult) => ({ ...JSON.parse(JSON.stringify(r)), seconds: 0 });
+      expect(comparable(scan.result!)).toEqual(comparable(here.result));
+      expect(scan.result!.global!.upcrossings.toys!.count).toBe(12);
+    } finally {
+      await pool?.destroy();
+      await toys?.destroy();
       await db.end();
     }
   }, 300_000);

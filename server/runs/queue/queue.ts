@@ -9,7 +9,7 @@ import { FitCancelledError } from '../../fit';
 
 /**
  * Work through queues in the PostgreSQL server (pg-boss), for when one machine is not enough:
- * the server puts fits and toy runs on a queue; worker processes (`npm run worker`, on any
+ * the server puts fits, toy runs and scans over signal hypotheses on a queue; worker processes (`npm run worker`, on any
  * machine that reaches the database) take them, split them into shards on a second queue, and
  * every worker takes shards. A shard is retried once on failure (retryLimit 1); its output lands
  * in work_results with the worker that made it.
@@ -23,11 +23,13 @@ export const QUEUES = {
   toys: 'plumbline-toys',
   /** a batch of toys */
   toyBatch: 'plumbline-toy-batch',
+  /** { scanId }: a scan over signal hypotheses, coordinated by one worker (its refits are shards on `refits`) */
+  scan: 'plumbline-scan',
 } as const;
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 
 /** A coordinating job runs as long as its fit; a shard is short. A worker that stops mid-job has its job expire and retried. */
-const EXPIRY_SECONDS: Record<QueueName, number> = { [QUEUES.fit]: 4 * 3600, [QUEUES.toys]: 4 * 3600, [QUEUES.refits]: 30 * 60, [QUEUES.toyBatch]: 30 * 60 };
+const EXPIRY_SECONDS: Record<QueueName, number> = { [QUEUES.fit]: 4 * 3600, [QUEUES.toys]: 4 * 3600, [QUEUES.scan]: 4 * 3600, [QUEUES.refits]: 30 * 60, [QUEUES.toyBatch]: 30 * 60 };
 
 export type Queue = PgBoss;
 

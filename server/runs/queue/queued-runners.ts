@@ -1,14 +1,15 @@
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '../../db/client';
 import { fits } from '../../db/schema';
-import { toyRunsTable, type JobTable } from '../run-rows';
+import { hypothesisScansTable, toyRunsTable, type JobTable } from '../run-rows';
 import type { FitRunner } from '../fit-runner';
 import type { ToyRunner } from '../toy-runner';
+import type { HypothesisScanRunner } from '../hypothesis-scan-runner';
 import { sweepLostCoordinators } from './heartbeat';
 import { QUEUES, type Queue } from './queue';
 
 /**
- * The server's side of queued work (PostgreSQL server): a fit or toy run is put on the queue
+ * The server's side of queued work (PostgreSQL server): a fit, toy run or scan is put on the queue
  * and waits for a worker process; a cancellation is written to its row, which the coordinating
  * worker reads within a second. Nothing runs here but the per-parameter diagnosis, which
  * answers a request and keeps its own thread.
@@ -70,4 +71,8 @@ export function queuedFitRunner(db: Db, queue: Queue, local: FitRunner, log: (li
 
 export function queuedToyRunner(db: Db, queue: Queue): ToyRunner {
   return { ...queuedRows(db, queue, toyRunsTable, QUEUES.toys, (toyRunId) => ({ toyRunId })), close: async () => {} };
+}
+
+export function queuedScanRunner(db: Db, queue: Queue): HypothesisScanRunner {
+  return { ...queuedRows(db, queue, hypothesisScansTable, QUEUES.scan, (scanId) => ({ scanId })), close: async () => {} };
 }
