@@ -371,6 +371,16 @@ export const fits = pgTable(
     workers: jsonb('workers').$type<Record<string, number> | null>(),
     /** the worker process coordinating it (queued work only): if it stops being seen, the fit is failed */
     coordinatedBy: varchar('coordinated_by', { length: 200 }),
+    /**
+     * What computed it: the package version and the SHA-256 of the engine's sources (server/fit/
+     * and shared/) in the process that ran it, and the SHA-256 of its exact input (the version's
+     * model and the options); null for fits stored before these were kept.
+     */
+    engineVersion: varchar('engine_version', { length: 100 }),
+    engineHash: varchar('engine_hash', { length: 64 }),
+    inputSha256: varchar('input_sha256', { length: 64 }),
+    /** The fit this one reruns (same version and options), to list every number that differs. */
+    reproducesFitId: integer('reproduces_fit_id').references((): AnyPgColumn => fits.id, { onDelete: 'set null' }),
     createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
     createdAt: createdAt(),
     startedAt: timestamp('started_at', { withTimezone: true }),
