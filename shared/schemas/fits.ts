@@ -64,8 +64,29 @@ export const fitSummarySchema = z.object({
   withheld: z.string().nullable(),
   /** A check run from a parameter's diagnosis: the fit and parameter it checks. Null otherwise. */
   checkOf: z.object({ fitId: z.number(), parameter: z.string() }).nullable(),
+  /**
+   * What computed it (set when it starts; null before, and for fits stored before this was kept):
+   * the package version, the SHA-256 of the engine's sources, the SHA-256 of its exact input.
+   */
+  provenance: z.object({ engineVersion: z.string(), engineHash: z.string(), inputSha256: z.string() }).nullable(),
+  /** The fit this one reruns with the same version and options (Reproduce), else null. */
+  reproduces: z.number().nullable(),
 });
 export type FitSummary = z.infer<typeof fitSummarySchema>;
+
+/** A rerun against the fit it reproduces: every number that differs (none is expected). */
+export const reproductionSchema = z.object({
+  fitId: z.number(),
+  of: z.number(),
+  sameEngine: z.boolean(),
+  sameInput: z.boolean(),
+  /** Numbers compared, across the whole result (its large parts too). */
+  compared: z.number(),
+  /** Places that differ: numbers, texts, or structure; at most 200 listed, `count` counts all. */
+  count: z.number(),
+  differences: z.array(z.object({ path: z.string(), original: z.unknown(), rerun: z.unknown() })),
+});
+export type Reproduction = z.infer<typeof reproductionSchema>;
 
 /**
  * The stored result without its large parts, which only their own views read: the correlation
