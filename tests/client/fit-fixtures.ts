@@ -97,6 +97,8 @@ export function fitSummary(overrides: Partial<FitSummary> = {}): FitSummary {
     createdBy: 'Otto Brannholm',
     startedAt: '2026-03-01T10:00:01Z',
     finishedAt: '2026-03-01T10:00:30Z',
+    provenance: { engineVersion: '0.1.0', engineHash: 'a'.repeat(64), inputSha256: 'b'.repeat(64) },
+    reproduces: null,
     headline: { mu: 1.2, muError: 0.3, z: 4, warnings: 1 },
     withheld: null,
     checkOf: null,
