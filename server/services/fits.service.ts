@@ -45,6 +45,8 @@ export function summaryOf(analysis: BlindingRule, fit: FitRow, version: number, 
     headline: fit.state === 'succeeded' && !withheld.length ? (fit.headline ?? null) : null,
     withheld: withheld.length ? withheldResultMessage(withheld) : null,
     checkOf: fit.checkOfFitId !== null && fit.checkOfParameter ? { fitId: fit.checkOfFitId, parameter: fit.checkOfParameter } : null,
+    provenance: fit.engineVersion && fit.engineHash && fit.inputSha256 ? { engineVersion: fit.engineVersion, engineHash: fit.engineHash, inputSha256: fit.inputSha256 } : null,
+    reproduces: fit.reproducesFitId,
   };
 }
 
