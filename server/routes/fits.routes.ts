@@ -6,6 +6,7 @@ import { freezeVersion, listVersions } from '../services/versions.service';
 import { fitPartNames, type FitPartName } from '@shared/schemas/fits';
 import { sendEncoded } from './encoded';
 import { getReviewSet, listReviewSets, startReviewSet } from '../services/review-sets.service';
+import { getReproduction, reproduceFit } from '../services/reproduce.service';
 import { idParam, route, type ApiRoute } from './route';
 
 const fitIdParam = idParam('fit id');
@@ -37,6 +38,12 @@ export const fitsRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>)
   }),
   route('post', '/api/analyses/:slug/fits/:fitId/cancel', auth.may('fit.run'), async (req, res) => {
     res.json(await cancelFit(ctx, accessOf(req), fitIdParam.parse(req.params.fitId)));
+  }),
+  route('post', '/api/analyses/:slug/fits/:fitId/reproduce', auth.may('fit.run'), async (req, res) => {
+    res.status(202).json(await reproduceFit(ctx, accessOf(req), fitIdParam.parse(req.params.fitId)));
+  }),
+  route('get', '/api/analyses/:slug/fits/:fitId/reproduction', auth.may('analysis.read'), async (req, res) => {
+    res.json(await getReproduction(ctx, accessOf(req), fitIdParam.parse(req.params.fitId)));
   }),
   route('get', '/api/analyses/:slug/fits/:fitId/compare/:otherId', auth.may('analysis.read'), async (req, res) => {
     res.json(await compareFits(ctx, accessOf(req), fitIdParam.parse(req.params.fitId), otherIdParam.parse(req.params.otherId)));

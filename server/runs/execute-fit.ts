@@ -7,6 +7,7 @@ import { dropFitParts, storeFitParts } from '../db/fits.repository';
 import type { StorableResult } from './fit-outcome';
 import { JobError } from './threads/fit-thread';
 import { jobRow } from './run-rows';
+import { engineIdentity, inputSha256 } from './engine-identity';
 
 export const NOT_FINITE =
   'The fit ended with a number that is not finite (NaN or infinite), so none of its numbers are shown. Check the model for extreme yields or variations, and tell an admin.';
@@ -37,7 +38,11 @@ export async function executeFit(
   const finish = row.finish;
   try {
     const model = exchangeModelSchema.parse(version.model);
-    const { result, parts } = await compute(model, fitOptionsSchema.parse(fit.options), row.progress, signal);
+    const options = fitOptionsSchema.parse(fit.options);
+    // what computes it, and from exactly what: so that it can be reproduced and checked
+    const engine = engineIdentity();
+    await db.update(fits).set({ engineVersion: engine.version, engineHash: engine.hash, inputSha256: inputSha256(model, options) }).where(eq(fits.id, id));
+    const { result, parts } = await compute(model, options, row.progress, signal);
     // the large parts first, so that a fit readers see as ended has them; gone again if the row
     // was cancelled meanwhile by another process
     await storeFitParts(db, id, parts);

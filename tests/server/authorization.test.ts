@@ -130,6 +130,21 @@ const convergedFit = (t: TestApp) => {
   if (!converged.has(t)) converged.set(t, makeConvergedFit(t));
   return converged.get(t)!;
 };
+/** a rerun of the fit fixture (Reproduce), ended: one per app */
+const reproduced = new WeakMap<TestApp, Promise<number>>();
+const reproducedFit = (t: TestApp) => {
+  if (!reproduced.has(t))
+    reproduced.set(
+      t,
+      (async () => {
+        const analyst = await signedIn(t.app, DEMO.analyst);
+        const started = await analyst.send('post', `/api/analyses/${SLUG}/fits/${(await convergedFit(t)).fitId}/reproduce`, {});
+        await t.fits.idle();
+        return started.body.id as number;
+      })(),
+    );
+  return reproduced.get(t)!;
+};
 /** a fit waiting in the database (not in this process's queue) */
 async function queuedFit(t: TestApp) {
   const { version } = await convergedFit(t);
@@ -337,6 +352,8 @@ export const MATRIX: Record<string, Row> = {
     },
     expect: members(200),
   },
+  'POST /api/analyses/:slug/fits/:fitId/reproduce': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/reproduce` }), expect: analystOnly(202) },
+  'GET /api/analyses/:slug/fits/:fitId/reproduction': { call: async (t) => ({ path: `${A}/fits/${await reproducedFit(t)}/reproduction` }), expect: members(200) },
   'GET /api/analyses/:slug/fits/:fitId/toys': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/toys` }), expect: members(200) },
   'POST /api/analyses/:slug/fits/:fitId/toys': {
     call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/toys`, body: { count: 10, hypothesis: { kind: 'best-fit' }, seed: 3 } }),
