@@ -53,6 +53,8 @@ export const queryKeys = {
   fit,
   fitPart: (slug: string, id: number, part: string) => [...fit(slug, id), 'parts', part] as const,
   comparison: (slug: string, id: number, otherId: number) => [...fit(slug, id), 'compare', otherId] as const,
+  /** A rerun's comparison with the fit it reproduces. */
+  reproduction: (slug: string, id: number) => [...fit(slug, id), 'reproduction'] as const,
   diagnosis: (slug: string, fitId: number, parameter: string) => [...fit(slug, fitId), 'diagnosis', parameter] as const,
   /** A fit's toy runs sit under the fit; one run is reached by its own id, as the API does. */
   toyRuns: (slug: string, fitId: number) => [...fit(slug, fitId), 'toys'] as const,

@@ -18,6 +18,7 @@ import { ConvergenceReport } from '../../../features/fits/components/convergence
 import { CorrelationView } from '../../../features/fits/components/correlation-view';
 import { DistributionsView } from '../../../features/fits/components/distributions-view';
 import { FitHeader, StickyConvergence } from '../../../features/fits/components/fit-header';
+import { ProvenanceLine, ReproductionPanel } from '../../../features/fits/components/provenance';
 import { GroupsView } from '../../../features/fits/components/groups-view';
 import { HiddenMuSummary, SummaryView } from '../../../features/fits/components/summary-view';
 import { isNominal, VariantPanel } from '../../../features/fits/components/variant-panel';
@@ -181,6 +182,7 @@ export function FitResultRoute() {
   const current = fitTab(tab);
   const id = /^\d+$/.test(fitId) ? Number(fitId) : NaN;
   const fit = useFit(slug, id);
+  const mayRun = useCan(slug)('fit.run');
   const queryClient = useQueryClient();
   const wasActive = useRef(false);
   const state = fit.data?.state;
@@ -213,7 +215,8 @@ export function FitResultRoute() {
               ← Fits
             </Link>
           </p>
-          <FitHeader slug={slug} fit={f} />
+          <FitHeader slug={slug} fit={f} provenance={<ProvenanceLine slug={slug} fit={f} mayRun={mayRun} />} />
+          <ReproductionPanel slug={slug} fit={f} />
           <FitBody slug={slug} fit={f} tab={current.id} />
         </>
       )}

@@ -1,3 +1,4 @@
+import type { ReactNode } from 'react';
 import { Link } from 'react-router';
 import type { FitDetail } from '@shared/schemas/fits';
 import { formatDateTime } from '../../../lib/format';
@@ -30,10 +31,10 @@ export function ExportLinks({ slug, fit }: { slug: string; fit: FitDetail }) {
 
 /**
  * What every view of a result starts with: which fit this is, on which version and data, and
- * whether the minimiser converged, with its warnings. The convergence line stays in view while
+ * whether the minimiser converged, with its warnings; `provenance` says what computed it. The convergence line stays in view while
  * the page scrolls, so the numbers below are never read without it.
  */
-export function FitHeader({ slug, fit }: { slug: string; fit: FitDetail }) {
+export function FitHeader({ slug, fit, provenance }: { slug: string; fit: FitDetail; provenance?: ReactNode }) {
   const variant = variantInWords(fit.options);
   return (
     <header className="mb-3 flex flex-col gap-2 border-b border-rule pb-3">
@@ -68,6 +69,7 @@ export function FitHeader({ slug, fit }: { slug: string; fit: FitDetail }) {
             {fit.createdBy ? ` by ${fit.createdBy}` : ''}
             {fit.finishedAt ? ` · finished ${formatDateTime(fit.finishedAt)}` : ''}
           </p>
+          {provenance}
         </div>
         {fit.result && <ExportLinks slug={slug} fit={fit} />}
       </div>
