@@ -322,6 +322,10 @@ export const modelVersions = pgTable(
     model: jsonb('model').notNull(),
     sha256: varchar('sha256', { length: 64 }).notNull(),
     forApproval: boolean('for_approval').notNull().default(false),
+    /** Every register entry as it stood when frozen: key, review state and revision number (null before this was kept). */
+    register: jsonb('register').$type<{ key: string; label: string; state: string; revision: number }[] | null>(),
+    /** A version frozen for approval with open items: the convener's written reason, and the items as they stood. */
+    approvalOverride: jsonb('approval_override').$type<{ reason: string; by: string; openItems: string[] } | null>(),
     createdById: integer('created_by_id').references(() => users.id, { onDelete: 'set null' }),
     createdAt: createdAt(),
   },
@@ -551,6 +555,8 @@ export const blindingEvents = pgTable('blinding_events', {
   userId: integer('user_id').references(() => users.id, { onDelete: 'set null' }),
   action: varchar('action', { length: 20 }).notNull(),
   note: text('note').notNull().default(''),
+  /** A request or decision on unblinding: the server's checklist as it stood then. */
+  checklist: jsonb('checklist'),
   createdAt: createdAt(),
 });
 

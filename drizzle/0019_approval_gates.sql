@@ -1,0 +1,3 @@
+ALTER TABLE "blinding_events" ADD COLUMN "checklist" jsonb;--> statement-breakpoint
+ALTER TABLE "model_versions" ADD COLUMN "register" jsonb;--> statement-breakpoint
+ALTER TABLE "model_versions" ADD COLUMN "approval_override" jsonb;
