@@ -13,12 +13,21 @@ export const modelVersionSchema = z.object({
   createdAt: z.string(),
   createdBy: z.string().nullable(),
   counts: z.object({ regions: z.number(), processes: z.number(), systematics: z.number() }),
+  /** The register as frozen: entries per review state (null for versions frozen before it was kept). */
+  register: z.record(z.string(), z.number()).nullable(),
+  /** Frozen for approval with open items: the convener's reason and the items as they stood. */
+  override: z.object({ reason: z.string(), by: z.string(), openItems: z.array(z.string()) }).nullable(),
 });
 export type ModelVersion = z.infer<typeof modelVersionSchema>;
 
 export const freezeVersionSchema = z.strictObject({
   note: z.string().max(2000).default(''),
   forApproval: z.boolean().default(false),
+  /**
+   * For approval while entries are not accepted or questions are open: the convener's written
+   * reason to freeze it nonetheless (shown on the version and in the approval pack).
+   */
+  overrideReason: z.string().trim().max(4000).optional(),
 });
 export type FreezeVersion = z.input<typeof freezeVersionSchema>;
 

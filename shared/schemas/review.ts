@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { approvalChecklistSchema } from './approval';
 import { BLINDING_STATES, QUESTION_STATES, REGION_ROLES } from '../vocabulary';
 import { impactPairSchema, parameterScanSchema } from './fit';
 import { fitSummarySchema } from './fits';
@@ -181,6 +182,8 @@ export const blindingEventSchema = z.object({
   note: z.string(),
   by: z.string().nullable(),
   at: z.string(),
+  /** On a request or a decision: the server's checklist as it stood then (null on other events and older ones). */
+  checklist: approvalChecklistSchema.nullable(),
 });
 export type BlindingEvent = z.infer<typeof blindingEventSchema>;
 
