@@ -1,6 +1,6 @@
 import { and, asc, count, eq, ne } from 'drizzle-orm';
 import type { DbOrTx } from './revisions.repository';
-import { effects, entries, floatingNorms, groups, processes, regions, templates } from './schema';
+import { effects, entries, floatingNorms, groups, parametersOfInterest, processes, regions, templates } from './schema';
 
 /**
  * The bulk reads and writes of the exchange file: a whole model written into an empty analysis
@@ -13,6 +13,9 @@ export async function regionCount(db: DbOrTx, analysisId: number) {
 export const insertRegions = (db: DbOrTx, rows: (typeof regions.$inferInsert)[]) => db.insert(regions).values(rows).returning();
 export const insertProcesses = (db: DbOrTx, rows: (typeof processes.$inferInsert)[]) => db.insert(processes).values(rows).returning();
 export const insertFloatingNorms = async (db: DbOrTx, rows: (typeof floatingNorms.$inferInsert)[]) => (rows.length ? db.insert(floatingNorms).values(rows).returning() : []);
+export const insertParametersOfInterest = async (db: DbOrTx, rows: (typeof parametersOfInterest.$inferInsert)[]) => {
+  if (rows.length) await db.insert(parametersOfInterest).values(rows);
+};
 export const insertTemplates = async (db: DbOrTx, rows: (typeof templates.$inferInsert)[]) => {
   if (rows.length) await db.insert(templates).values(rows);
 };

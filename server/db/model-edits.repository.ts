@@ -1,6 +1,6 @@
-import { and, count, eq, max } from 'drizzle-orm';
+import { and, asc, count, eq, max, sql } from 'drizzle-orm';
 import type { DbOrTx } from './revisions.repository';
-import { effects, floatingNorms, processes, regions, templates } from './schema';
+import { effects, floatingNorms, parametersOfInterest, processes, regions, templates } from './schema';
 
 /**
  * The writes of the model editor and the look-ups they need: one region, process, floating
@@ -32,6 +32,16 @@ export async function countEffects(db: DbOrTx, on: { regionId?: number; processI
   const where = and(on.regionId !== undefined ? eq(effects.regionId, on.regionId) : undefined, on.processId !== undefined ? eq(effects.processId, on.processId) : undefined);
   const [{ n }] = await db.select({ n: count() }).from(effects).where(where);
   return n;
+}
+/** Keys of the parameters of interest that multiply a template of this region, of this process, or this one template. */
+export async function parametersOfInterestUsing(db: DbOrTx, analysisId: number, on: { region?: string; process?: string }) {
+  const target = { ...(on.region !== undefined ? { region: on.region } : {}), ...(on.process !== undefined ? { process: on.process } : {}) };
+  const rows = await db
+    .select({ key: parametersOfInterest.key })
+    .from(parametersOfInterest)
+    .where(and(eq(parametersOfInterest.analysisId, analysisId), sql`${parametersOfInterest.targets} @> ${JSON.stringify([target])}::jsonb`))
+    .orderBy(asc(parametersOfInterest.position), asc(parametersOfInterest.id));
+  return rows.map((r) => r.key);
 }
 export async function countTemplatesOfRegion(db: DbOrTx, regionId: number) {
   const [{ n }] = await db.select({ n: count() }).from(templates).where(eq(templates.regionId, regionId));

@@ -2,24 +2,25 @@ import { asc, eq } from 'drizzle-orm';
 import { untilModelChanges } from '../cache/change-notices';
 import type { Db, DbClient } from './client';
 import type { DbOrTx } from './revisions.repository';
-import { floatingNorms, processes, regions, templates } from './schema';
+import { floatingNorms, parametersOfInterest, processes, regions, templates } from './schema';
 
-/** The binned model of one analysis, as rows (observed counts included: callers apply blinding). */
+/** The binned model of one analysis, as rows (observed counts included: callers apply blinding), with its parameters of interest besides μ. */
 export async function loadModelRows(db: DbOrTx, analysisId: number) {
-  const [regionRows, processRows, normRows, templateRows] = await Promise.all([
+  const [regionRows, processRows, normRows, poiRows, templateRows] = await Promise.all([
     db.select().from(regions).where(eq(regions.analysisId, analysisId)).orderBy(asc(regions.position), asc(regions.id)),
     db.select().from(processes).where(eq(processes.analysisId, analysisId)).orderBy(asc(processes.position), asc(processes.id)),
     db.select().from(floatingNorms).where(eq(floatingNorms.analysisId, analysisId)).orderBy(asc(floatingNorms.id)),
+    db.select().from(parametersOfInterest).where(eq(parametersOfInterest.analysisId, analysisId)).orderBy(asc(parametersOfInterest.position), asc(parametersOfInterest.id)),
     db.select().from(templates).where(eq(templates.analysisId, analysisId)).orderBy(asc(templates.id)),
   ]);
-  return { regions: regionRows, processes: processRows, floatingNorms: normRows, templates: templateRows };
+  return { regions: regionRows, processes: processRows, floatingNorms: normRows, parametersOfInterest: poiRows, templates: templateRows };
 }
 export type ModelRows = Awaited<ReturnType<typeof loadModelRows>>;
 
 /**
  * Copies that depend on an analysis's model (its regions, processes, floating normalisations,
- * templates and effects) live until the database announces a change to them: triggers in
- * drizzle/0005 notify "model_changed" at commit.
+ * parameters of interest, templates and effects) live until the database announces a change to them: triggers in
+ * drizzle/0005 (and 0020, parameters of interest) notify "model_changed" at commit.
  */
 
 /** The model rows as last read, for views (never inside a transaction that writes): shared, not to be changed. */

@@ -189,6 +189,28 @@ export const signalHypotheses = pgTable(
   (t) => [uniqueIndex('signal_hypotheses_analysis_key').on(t.analysisId, t.key)],
 );
 
+/**
+ * The analysis's parameters of interest besides μ (shared/schemas/exchange.ts, exchangePoiSchema):
+ * each a free factor on its own templates, which μ then no longer multiplies. Written by the import
+ * of a model file, read back by its export (and so by every frozen version).
+ */
+export const parametersOfInterest = pgTable(
+  'parameters_of_interest',
+  {
+    id: serial('id').primaryKey(),
+    analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
+    key: varchar('key', { length: 64 }).notNull(),
+    label: varchar('label', { length: 200 }).notNull().default(''),
+    start: doublePrecision('start').notNull().default(1),
+    min: doublePrecision('min').notNull().default(-10),
+    max: doublePrecision('max').notNull().default(20),
+    /** The templates it multiplies, by region and process keys. */
+    targets: jsonb('targets').$type<{ region: string; process: string }[]>().notNull(),
+    position: integer('position').notNull().default(0),
+  },
+  (t) => [uniqueIndex('parameters_of_interest_analysis_key').on(t.analysisId, t.key)],
+);
+
 export const groups = pgTable(
   'groups',
   {

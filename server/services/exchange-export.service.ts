@@ -12,7 +12,9 @@ import { pruneModel, type PrunedEffect } from '../variations/pruning';
  * export of an import gives back the same document. Retired entries are left out (they are not
  * part of the fit), with the signal hypotheses' effects of them, and so are pruned effects, or a
  * pruned shape keeps only its normalisation, on the model's templates and the hypotheses' alike
- * (variations/pruning.ts): the document is the model as a fit sees it. The signal hypotheses
+ * (variations/pruning.ts): the document is the model as a fit sees it. Parameters of interest
+ * besides μ are written only when the model declares some (a model without them exports as
+ * before), in the order they were declared. The signal hypotheses
  * come in the order of their value. With `withhold`, blinded signal-region data are omitted: every export that
  * leaves the server sets it; a frozen model version, which stays on the server, does not.
  */
@@ -64,6 +66,9 @@ export async function buildExchange(db: DbOrTx, analysis: AnalysisRow, opts: { w
     floatingNorms: rows.floatingNorms
       .filter((f) => normTargets.has(f.id))
       .map((f) => ({ key: f.key, ...label(f.label), start: f.start, min: f.min, max: f.max, targets: normTargets.get(f.id)! })),
+    ...(rows.parametersOfInterest.length
+      ? { parametersOfInterest: rows.parametersOfInterest.map((q) => ({ key: q.key, ...label(q.label), start: q.start, min: q.min, max: q.max, targets: q.targets })) }
+      : {}),
     templates: rows.templates.map((t) => ({
       region: model.regionById.get(t.regionId)!.key,
       process: model.processById.get(t.processId)!.key,

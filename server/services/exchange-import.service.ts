@@ -2,7 +2,7 @@ import { exchangeModelSchema, type ExchangeModel, type ExchangeModelInput } from
 import type { EntryState } from '@shared/schemas/api';
 import { largestEffectPct, scaleWarnings, shapeWarnings } from '@shared/validation/variation-warnings';
 import { addRevision, type DbOrTx, type Tx } from '../db/revisions.repository';
-import { insertEffects, insertFloatingNorms, insertGroups, insertProcesses, insertRegions, insertTemplates, regionCount } from '../db/exchange.repository';
+import { insertEffects, insertFloatingNorms, insertGroups, insertParametersOfInterest, insertProcesses, insertRegions, insertTemplates, regionCount } from '../db/exchange.repository';
 import { insertEntry } from '../db/entries.repository';
 import { insertHypotheses, setHypothesisParameterRow } from '../db/signal-hypotheses.repository';
 import { conflict, unprocessable, zodIssues } from '../errors';
@@ -19,7 +19,7 @@ function parseExchange(document: unknown): ExchangeModel {
 
 /**
  * Writes a whole model into an analysis that has none yet, in one transaction: regions, processes,
- * floating normalisations, templates, groups, register entries with their effects and warnings,
+ * floating normalisations, parameters of interest besides μ (version 2), templates, groups, register entries with their effects and warnings,
  * the signal hypotheses with their parameter (version 2), a revision per entry and, for an
  * uploaded `file`, the model's own revision naming it. Nothing is
  * written if any step fails, so a crash never leaves a model without the revision that says where
@@ -40,7 +40,7 @@ export async function importModel(
         analysisId,
         authorId: options.authorId,
         action: 'model.imported',
-        summary: `Imported the model file "${options.file.filename}" (SHA-256 ${options.file.sha256.slice(0, 12)}…): ${counts.regions} regions, ${counts.processes} processes, ${counts.entries} register entries${counts.hypotheses ? `, ${counts.hypotheses} signal hypotheses` : ''}.`,
+        summary: `Imported the model file "${options.file.filename}" (SHA-256 ${options.file.sha256.slice(0, 12)}…): ${counts.regions} regions, ${counts.processes} processes, ${counts.entries} register entries${counts.parametersOfInterest ? `, ${counts.parametersOfInterest} parameter${counts.parametersOfInterest === 1 ? '' : 's'} of interest besides μ` : ''}${counts.hypotheses ? `, ${counts.hypotheses} signal hypotheses` : ''}.`,
       });
     return counts;
   });
@@ -68,6 +68,19 @@ async function writeModel(tx: Tx, analysisId: number, model: ExchangeModel, opti
   const normRows = await insertFloatingNorms(
     tx,
     model.floatingNorms.map((f) => ({ analysisId, key: f.key, label: f.label ?? '', start: f.start, min: f.min, max: f.max })),
+  );
+  await insertParametersOfInterest(
+    tx,
+    (model.parametersOfInterest ?? []).map((q, i) => ({
+      analysisId,
+      key: q.key,
+      label: q.label ?? '',
+      start: q.start,
+      min: q.min,
+      max: q.max,
+      targets: q.targets.map((t) => ({ region: t.region, process: t.process })),
+      position: i,
+    })),
   );
   const regionId = new Map(regionRows.map((r) => [r.key, r.id]));
   const processId = new Map(processRows.map((p) => [p.key, p.id]));
@@ -137,5 +150,11 @@ async function writeModel(tx: Tx, analysisId: number, model: ExchangeModel, opti
       hypotheses.points.map((h) => ({ analysisId, key: h.key, label: h.label ?? '', value: h.value, templates: h.templates, effects: h.effects })),
     );
   }
-  return { regions: regionRows.length, processes: processRows.length, entries: model.systematics.length, hypotheses: hypotheses?.points.length ?? 0 };
+  return {
+    regions: regionRows.length,
+    processes: processRows.length,
+    entries: model.systematics.length,
+    parametersOfInterest: model.parametersOfInterest?.length ?? 0,
+    hypotheses: hypotheses?.points.length ?? 0,
+  };
 }

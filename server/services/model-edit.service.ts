@@ -26,6 +26,7 @@ import {
   insertFloatingNorm,
   insertProcess,
   insertRegion,
+  parametersOfInterestUsing,
   processByKey,
   regionByKey,
   saveTemplate,
@@ -65,6 +66,16 @@ async function findProcess(db: DbOrTx, access: Access, key: string) {
   if (!p) throw notFound(`Process "${key}"`);
   return p;
 }
+/**
+ * A template that a parameter of interest multiplies stays while the model declares it (they are
+ * declared by the model file: docs/exchange-file.md), and floats with no normalisation.
+ */
+async function refuseIfMultiplied(db: DbOrTx, access: Access, on: { region?: string; process?: string }, what: string, todo: string) {
+  const keys = await parametersOfInterestUsing(db, access.analysis.id, on);
+  if (keys.length)
+    throw conflict(`The parameter${keys.length === 1 ? '' : 's'} of interest ${keys.map((k) => `"${k}"`).join(', ')} multipl${keys.length === 1 ? 'ies' : 'y'} ${what}. ${todo}`);
+}
+
 /** A region, process or template that register effects vary stays until those effects are removed. */
 async function refuseIfVaried(db: DbOrTx, varying: { regionId?: number; processId?: number }, what: string) {
   const n = await countEffects(db, varying);
@@ -109,6 +120,7 @@ export async function deleteRegion(ctx: AppContext, access: Access, key: string)
   const region = await findRegion(ctx.db, access, key);
   await refuseIfVaried(ctx.db, { regionId: region.id }, `templates of region "${key}"`);
   await assertNoHypothesesOn(ctx.db, access, { region: key }, `templates of region "${key}"`, 'Remove those hypotheses, or replace them without this region, first.');
+  await refuseIfMultiplied(ctx.db, access, { region: key }, `templates of region "${key}"`, 'Parameters of interest are set by importing a model file: import one without this region into a new analysis.');
   await ctx.db.transaction(async (tx) => {
     await deleteRegionRow(tx, region.id);
     await modelRevision(tx, access, 'region.deleted', `Removed region "${key}" and its templates.`, { key, role: region.role, edges: region.edges });
@@ -154,6 +166,7 @@ export async function deleteProcess(ctx: AppContext, access: Access, key: string
   const process = await findProcess(ctx.db, access, key);
   await refuseIfVaried(ctx.db, { processId: process.id }, `templates of process "${key}"`);
   await assertNoHypothesesOn(ctx.db, access, { process: key }, `templates of process "${key}"`, 'Remove those hypotheses, or replace them without this process, first.');
+  await refuseIfMultiplied(ctx.db, access, { process: key }, `templates of process "${key}"`, 'Parameters of interest are set by importing a model file: import one without this process into a new analysis.');
   await ctx.db.transaction(async (tx) => {
     await deleteProcessRow(tx, process.id);
     await modelRevision(tx, access, 'process.deleted', `Removed process "${key}" and its templates.`, { key, kind: process.kind });
@@ -194,6 +207,11 @@ export async function putTemplate(ctx: AppContext, access: Access, regionKey: st
   if (input.floatingNorm) {
     const f = await floatingNormByKey(ctx.db, access.analysis.id, input.floatingNorm);
     if (!f) throw unprocessable(`There is no floating normalisation "${input.floatingNorm}"`, [{ path: ['floatingNorm'], message: 'unknown key' }]);
+    const pois = await parametersOfInterestUsing(ctx.db, access.analysis.id, { region: regionKey, process: processKey });
+    if (pois.length)
+      throw unprocessable(`The parameter of interest "${pois[0]}" multiplies this template, so it takes no floating normalisation`, [
+        { path: ['floatingNorm'], message: `leave it empty: "${pois[0]}" already multiplies the template of process "${processKey}" in region "${regionKey}"` },
+      ]);
     floatingNormId = f.id;
   }
   return ctx.db.transaction(async (tx) => {
@@ -211,6 +229,7 @@ export async function deleteTemplate(ctx: AppContext, access: Access, regionKey:
   if (!t) throw notFound(`The template of process "${processKey}" in region "${regionKey}"`);
   await refuseIfVaried(ctx.db, { regionId: region.id, processId: process.id }, 'this template');
   await assertNoHypothesesOn(ctx.db, access, { region: regionKey, process: processKey }, `the template of process "${processKey}" in region "${regionKey}"`, 'Remove those hypotheses, or replace them without this template, first.');
+  await refuseIfMultiplied(ctx.db, access, { region: regionKey, process: processKey }, `the template of process "${processKey}" in region "${regionKey}"`, 'Parameters of interest are set by importing a model file: import one without this template into a new analysis.');
   await ctx.db.transaction(async (tx) => {
     await deleteTemplateRow(tx, t.id);
     await modelRevision(tx, access, 'template.deleted', `Removed the template of process "${processKey}" in region "${regionKey}".`, { nominal: t.nominal });

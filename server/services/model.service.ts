@@ -28,6 +28,7 @@ export async function getModel(ctx: AppContext, access: Access): Promise<Model> 
     regions: rows.regions.map((r) => regionView(access, r)),
     processes: rows.processes.map(processView),
     floatingNorms: rows.floatingNorms.map((f) => ({ key: f.key, label: f.label, start: f.start, min: f.min, max: f.max })),
+    parametersOfInterest: rows.parametersOfInterest.map((q) => ({ key: q.key, label: q.label, start: q.start, min: q.min, max: q.max, targets: q.targets })),
     templates: rows.templates.map((t) => ({
       region: regionKey.get(t.regionId)!,
       process: processKey.get(t.processId)!,

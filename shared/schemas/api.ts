@@ -148,6 +148,10 @@ export const modelSchema = z.object({
   regions: z.array(regionSchema),
   processes: z.array(processSchema),
   floatingNorms: z.array(z.object({ key: z.string(), label: z.string(), start: z.number(), min: z.number(), max: z.number() })),
+  /** Signal strengths besides μ, each multiplying its own templates (μ multiplies the other signal templates). */
+  parametersOfInterest: z.array(
+    z.object({ key: z.string(), label: z.string(), start: z.number(), min: z.number(), max: z.number(), targets: z.array(z.object({ region: z.string(), process: z.string() })) }),
+  ),
   templates: z.array(templateSchema),
 });
 export type Model = z.infer<typeof modelSchema>;

@@ -15,6 +15,7 @@ const model = (withheld: boolean): Model => ({
     { key: 'bkg', label: 'Background', kind: 'background', colour: null },
   ],
   floatingNorms: [],
+  parametersOfInterest: [],
   templates: [
     { region: 'SR', process: 'sig', nominal: [1, 3, 1], variance: null, floatingNorm: null },
     { region: 'SR', process: 'bkg', nominal: [10, 6, 3], variance: [1, 1, 1], floatingNorm: null },

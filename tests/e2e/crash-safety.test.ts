@@ -199,7 +199,7 @@ describe('crash safety: the server killed with SIGKILL during uploads and a fit 
         const model = await admin.get(`/api/analyses/${slug(n)}/model`);
         const register = await admin.get(`/api/analyses/${slug(n)}/entries`);
         if (model.regions.length === 0) {
-          expect(model).toEqual({ regions: [], processes: [], floatingNorms: [], templates: [] });
+          expect(model).toEqual({ regions: [], processes: [], floatingNorms: [], parametersOfInterest: [], templates: [] });
           expect(register).toEqual([]);
           return false;
         }

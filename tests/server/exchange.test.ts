@@ -24,7 +24,7 @@ describe('the exchange file through the API', () => {
     const original = demoScenario().analyses.find((a) => a.slug === 'vireon-search')!.model;
     const imported = await analyst.upload('/api/analyses/round-trip/exchange', { name: 'vireon.json', content: JSON.stringify({ ...original, name: 'round-trip' }) });
     expect(imported.status).toBe(201);
-    expect(imported.body).toEqual({ regions: 5, processes: 6, entries: 40, hypotheses: 30 });
+    expect(imported.body).toEqual({ regions: 5, processes: 6, entries: 40, parametersOfInterest: 0, hypotheses: 30 });
     const exported = await analyst.get('/api/analyses/round-trip/exchange');
     expect(exported.headers['content-disposition']).toMatch(/round-trip\.model\.json/);
     expect(exported.body).toEqual(exchangeModelSchema.parse({ ...original, name: 'round-trip' }));

@@ -112,6 +112,8 @@ export async function dbSnapshot(t: TestApp): Promise<string> {
       'users', (select count(*) from users),
       'analyses', (select json_agg(json_build_object('id', a.id, 'blinding', a.blinding, 'hypothesis_parameter', a.hypothesis_parameter) order by a.id) from analyses a),
       'signal_hypotheses', (select json_agg(h order by h.id) from signal_hypotheses h),
+      'floating_norms', (select json_agg(f order by f.id) from floating_norms f),
+      'parameters_of_interest', (select json_agg(q order by q.id) from parameters_of_interest q),
       'questions', (select json_agg(json_build_object('id', q.id, 'state', q.state) order by q.id) from questions q),
       'answers', (select count(*) from answers),
       'blinding_events', (select count(*) from blinding_events)

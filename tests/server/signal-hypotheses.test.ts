@@ -37,7 +37,7 @@ describe('signal hypotheses in the exchange file', () => {
     const { signalHypotheses: _none, ...v1 } = { ...example(), version: 1 as const, name: slug };
     const res = await importInto(slug, v1);
     expect(res.status).toBe(201);
-    expect(res.body).toEqual({ regions: 2, processes: 2, entries: 3, hypotheses: 0 });
+    expect(res.body).toEqual({ regions: 2, processes: 2, entries: 3, parametersOfInterest: 0, hypotheses: 0 });
     const exported = (await analyst.get(`/api/analyses/${slug}/exchange`)).body;
     expect(exported.version).toBe(2);
     expect('signalHypotheses' in exported).toBe(false);
@@ -52,7 +52,7 @@ describe('signal hypotheses in the exchange file', () => {
     document.signalHypotheses!.points.reverse();
     const res = await importInto(slug, document);
     expect(res.status).toBe(201);
-    expect(res.body).toEqual({ regions: 2, processes: 2, entries: 3, hypotheses: 2 });
+    expect(res.body).toEqual({ regions: 2, processes: 2, entries: 3, parametersOfInterest: 0, hypotheses: 2 });
     document.signalHypotheses!.points.reverse();
     expect((await analyst.get(`/api/analyses/${slug}/exchange`)).body).toEqual(exchangeModelSchema.parse(document));
     const listed = (await analyst.get(`/api/analyses/${slug}/signal-hypotheses`)).body;

@@ -4,7 +4,7 @@ import { invalidateModel } from './invalidate';
 import { queryKeys } from '../../../lib/query-keys';
 
 /** What an import created, counted. */
-export type ImportResult = { regions: number; processes: number; entries: number; hypotheses: number };
+export type ImportResult = { regions: number; processes: number; entries: number; parametersOfInterest: number; hypotheses: number };
 
 /** Only accepted into an analysis that has no model yet. */
 export function importExchange(slug: string, file: File): Promise<ImportResult> {

@@ -5,8 +5,12 @@ import { FileField } from '../../../components/ui/file-field';
 import { exchangeDownloadUrl, useImportExchange, type ImportResult } from '../api/import-exchange';
 
 /** What an import created, in words. */
-const importCounts = (r: ImportResult) =>
-  `${r.regions} regions, ${r.processes} processes${r.hypotheses ? `, ${r.entries} register entries and ${r.hypotheses} signal hypotheses` : ` and ${r.entries} register entries`}`;
+const importCounts = (r: ImportResult) => {
+  const parts = [`${r.regions} regions`, `${r.processes} processes`, `${r.entries} register entries`];
+  if (r.parametersOfInterest) parts.push(`${r.parametersOfInterest} parameter${r.parametersOfInterest === 1 ? '' : 's'} of interest besides μ`);
+  if (r.hypotheses) parts.push(`${r.hypotheses} signal hypotheses`);
+  return `${parts.slice(0, -1).join(', ')} and ${parts.at(-1)}`;
+};
 
 /** Download the whole model as one exchange file (JSON). */
 export function ExportModelLink({ slug }: { slug: string }) {
@@ -24,7 +28,7 @@ export function ImportModel({ slug, onImported }: { slug: string; onImported?: (
   return (
     <div className="flex flex-col gap-3">
       <p className="text-sm text-ink-soft">
-        Start from an exchange file: regions with their binning and data, processes, templates, floating normalisations, the systematics with their effects and groups, and the signal hypotheses. See{' '}
+        Start from an exchange file: regions with their binning and data, processes, templates, floating normalisations, parameters of interest, the systematics with their effects and groups, and the signal hypotheses. See{' '}
         <span className="font-medium">docs/exchange-file.md</span> for its format.
       </p>
       <div className="flex flex-wrap items-end gap-3">
