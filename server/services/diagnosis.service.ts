@@ -137,7 +137,8 @@ export async function runDiagnosisChecks(ctx: AppContext, access: Access, fitId:
   const report = head.nuisance.find((n) => n.name === parameter);
   if (!report) throw notFound(`Nuisance parameter "${parameter}" in fit ${fitId}`);
   const version = await findVersionById(ctx.db, row.fit.modelVersionId);
-  const base = fitOptionsSchema.parse(row.fit.options);
+  // a check concerns one nuisance parameter: it draws no contour (and may hold a parameter of interest)
+  const base: FitOptions = { ...fitOptionsSchema.parse(row.fit.options), contour: null };
   const planned: { variant: string; label: string; options: FitOptions }[] = [];
   if (checks.includes('decorrelate')) planned.push({ variant: `decorrelate:${parameter}`, label: `${parameter} split by region`, options: { ...base, decorrelate: [{ parameter, by: 'region' }] } });
   if (checks.includes('partner')) {

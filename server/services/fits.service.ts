@@ -127,7 +127,7 @@ export async function startFit(ctx: AppContext, access: Access, body: unknown): 
 /**
  * A fit's row before it is stored, or a refusal that names the field: an option that names a
  * parameter, group or systematic the version does not have, every parameter held, a region to
- * leave out that does not exist, and while the analysis is blinded an observed fit of a blinded
+ * leave out that does not exist, a contour of anything but two free parameters of interest, and while the analysis is blinded an observed fit of a blinded
  * region (a hidden-μ fit excepted: nothing computed from μ̂ or from those data is kept) or
  * expected numbers built on the background fitted in the signal regions.
  */
@@ -138,6 +138,7 @@ export function checkedFit(access: Access, version: { id: number; number: number
   if (unknown.length) issues.push({ path: ['options', 'excludeRegions'], message: `model version ${version.number} has no region ${unknown.map((k) => `"${k}"`).join(', ')} to leave out` });
   if (options.hiddenMu && options.dataset !== 'observed') issues.push({ path: ['options', 'hiddenMu'], message: 'μ is hidden in a fit to observed data only' });
   if (options.hiddenMu && options.controlOnly) issues.push({ path: ['options', 'hiddenMu'], message: 'a fit of the control regions alone holds μ: there is nothing to hide' });
+  issues.push(...contourIssues(model, version.number, options));
   const blinded = access.analysis.blinding !== 'unblinded';
   if (blinded && options.expectedFrom === 'background')
     issues.push({ path: ['options', 'expectedFrom'], message: 'the background fitted in the signal regions may serve as the basis of expected numbers only once the analysis is unblinded; use "control" meanwhile' });
@@ -151,6 +152,33 @@ export function checkedFit(access: Access, version: { id: number; number: number
   const enters = regionEntersFit(options);
   const regionsInFit = model.regions.filter((r) => enters(r.key, r.role)).map((r) => r.key);
   return { analysisId: access.analysis.id, modelVersionId: version.id, options, regionsInFit, createdById: access.userId };
+}
+
+/**
+ * options.contour names two different parameters of interest of the version's model ("mu" or a
+ * declared key), both free in this fit: not on a fit of the control regions alone (μ is held), nor
+ * with μ hidden (every parameter of interest is then hidden), nor with one of them held.
+ */
+function contourIssues(model: ExchangeModel, version: number, options: FitOptions): { path: (string | number)[]; message: string }[] {
+  if (!options.contour) return [];
+  const declared = ['mu', ...(model.parametersOfInterest ?? []).map((q) => q.key)];
+  const named = declared.map((k) => `"${k}"`).join(', ');
+  const issues: { path: (string | number)[]; message: string }[] = [];
+  if (declared.length < 2)
+    return [{ path: ['options', 'contour'], message: `options.contour needs two parameters of interest, and model version ${version} has only μ ("mu"): set options.contour to null, or declare more in the model file (parametersOfInterest)` }];
+  options.contour.forEach((key, i) => {
+    if (!declared.includes(key)) issues.push({ path: ['options', 'contour', i], message: `options.contour names "${key}", which is not a parameter of interest of model version ${version}: name two of ${named}` });
+  });
+  if (!issues.length && options.contour[0] === options.contour[1])
+    issues.push({ path: ['options', 'contour', 1], message: `options.contour names "${options.contour[0]}" twice: name two different parameters of interest of ${named}` });
+  if (options.controlOnly)
+    issues.push({ path: ['options', 'contour'], message: 'options.contour asks for a contour, but a fit of the control regions alone holds μ and fits no parameter of interest: set options.contour to null, or fit all regions' });
+  if (options.hiddenMu)
+    issues.push({ path: ['options', 'contour'], message: 'options.contour asks for a contour, but this fit hides μ and with it every parameter of interest: set options.contour to null' });
+  const held = options.contour.filter((key, i) => options.contour!.indexOf(key) === i && options.hold.some((h) => h.parameter === key));
+  if (held.length)
+    issues.push({ path: ['options', 'contour'], message: `options.contour names ${held.map((k) => `"${k}"`).join(' and ')}, held in this fit (options.hold): a contour needs both parameters free; hold neither, or set options.contour to null` });
+  return issues;
 }
 
 export async function cancelFit(ctx: AppContext, access: Access, id: number): Promise<FitSummary> {

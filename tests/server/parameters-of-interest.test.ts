@@ -46,6 +46,7 @@ describe('parameters of interest besides μ, from the model file to the fits', (
   let t: TestApp;
   let admin: Client;
   let analyst: Client;
+  let contourFit = 0;
   async function emptyAnalysis(slug: string) {
     expect((await admin.send('post', '/api/analyses', { slug, name: slug, blinded: false })).status).toBe(201);
     expect((await admin.send('post', `/api/analyses/${slug}/members`, { email: DEMO.analyst, role: 'analyst' })).status).toBe(201);
@@ -82,6 +83,7 @@ describe('parameters of interest besides μ, from the model file to the fits', (
 
     const started = await analyst.send('post', '/api/analyses/two-modes/fits', { version: frozen.body.number, label: 'both', options: { dataset: 'observed', impacts: 'none', expected: false, contour: ['mu', 'mu_two'] } });
     expect(started.status).toBe(202);
+    contourFit = started.body.id;
     await t.fits.idle();
     const fit = (await analyst.get(`/api/analyses/two-modes/fits/${started.body.id}`)).body;
     expect(fit.state).toBe('succeeded');
@@ -159,5 +161,56 @@ describe('parameters of interest besides μ, from the model file to the fits', (
     expect(await dbSnapshot(t)).toBe(before);
     // a template no parameter of interest claims floats as before
     expect((await analyst.send('put', `${base}/templates/A/bkg`, { nominal: [70, 55, 38], floatingNorm: 'k_bkg' })).status).toBe(200);
+  });
+
+  describe('a fit’s contour', () => {
+    const start = (slug: string, options: Record<string, unknown>) => analyst.send('post', `/api/analyses/${slug}/fits`, { version: 1, label: 'contour', options: { dataset: 'observed', impacts: 'none', ...options } });
+    const fitCount = async (slug: string) => (await analyst.get(`/api/analyses/${slug}/fits`)).body.length as number;
+
+    it('refuses a pair that names something other than a parameter of interest of the version, naming options.contour and the keys to choose from, and stores no fit', async () => {
+      const before = await fitCount('two-modes');
+      const unknown = await start('two-modes', { contour: ['mu', 'lumi'] });
+      expect(unknown.status).toBe(400);
+      expect(unknown.body.error.message).toMatch(/options\.contour names "lumi", which is not a parameter of interest of model version 1: name two of "mu", "mu_two"/);
+      expect(unknown.body.error.issues).toEqual([{ path: ['options', 'contour', 1], message: expect.stringContaining('"lumi"') }]);
+      const twice = await start('two-modes', { contour: ['mu_two', 'mu_two'] });
+      expect(twice.status).toBe(400);
+      expect(twice.body.error.issues).toEqual([{ path: ['options', 'contour', 1], message: expect.stringMatching(/options\.contour names "mu_two" twice/) }]);
+      expect(await fitCount('two-modes')).toBe(before);
+    });
+
+    it('refuses a contour of a model whose only parameter of interest is μ', async () => {
+      expect((await analyst.send('post', '/api/analyses/cascade-rate/versions', {})).status).toBe(201);
+      const before = await fitCount('cascade-rate');
+      const res = await start('cascade-rate', { contour: ['mu', 'k_continuum'] });
+      expect(res.status).toBe(400);
+      expect(res.body.error.issues).toEqual([{ path: ['options', 'contour'], message: expect.stringMatching(/options\.contour needs two parameters of interest, and model version 1 has only μ/) }]);
+      expect(await fitCount('cascade-rate')).toBe(before);
+    });
+
+    it('refuses a contour on a fit of the control regions alone, on a fit that hides μ, and of a held parameter, saying what to change', async () => {
+      const before = await fitCount('two-modes');
+      const control = await start('two-modes', { controlOnly: true, contour: ['mu', 'mu_two'] });
+      expect(control.status).toBe(400);
+      expect(control.body.error.issues).toContainEqual({ path: ['options', 'contour'], message: expect.stringMatching(/options\.contour .*control regions alone holds μ.*set options\.contour to null/) });
+      const hidden = await start('two-modes', { hiddenMu: true, contour: ['mu', 'mu_two'] });
+      expect(hidden.status).toBe(400);
+      expect(hidden.body.error.issues).toEqual([{ path: ['options', 'contour'], message: expect.stringMatching(/options\.contour .*hides μ.*set options\.contour to null/) }]);
+      const held = await start('two-modes', { hold: [{ parameter: 'mu_two', value: 1 }], contour: ['mu', 'mu_two'] });
+      expect(held.status).toBe(400);
+      expect(held.body.error.issues).toEqual([{ path: ['options', 'contour'], message: expect.stringMatching(/options\.contour names "mu_two", held in this fit/) }]);
+      expect(await fitCount('two-modes')).toBe(before);
+      // the same fits without a contour start
+      expect((await start('two-modes', { hiddenMu: true })).status).toBe(202);
+      await t.fits.idle();
+    });
+
+    it('leaves the contour out of the checks a diagnosis runs, which may hold a parameter of interest', async () => {
+      const checks = await analyst.send('post', `/api/analyses/two-modes/fits/${contourFit}/diagnosis/lumi/checks`, { checks: ['decorrelate', 'partner'] });
+      expect(checks.status).toBe(202);
+      expect(checks.body.length).toBe(2);
+      for (const c of checks.body) expect(c.options.contour).toBeNull();
+      await t.fits.idle();
+    });
   });
 });
