@@ -6,7 +6,7 @@ import { analyses, blindingEvents, invitations, memberships, users } from './sch
 /** The blinding log of an analysis, newest first, with the names of who acted. */
 export const blindingEventsOf = (db: DbOrTx, analysisId: number) =>
   db
-    .select({ id: blindingEvents.id, action: blindingEvents.action, note: blindingEvents.note, by: users.name, at: blindingEvents.createdAt })
+    .select({ id: blindingEvents.id, action: blindingEvents.action, note: blindingEvents.note, checklist: blindingEvents.checklist, by: users.name, at: blindingEvents.createdAt })
     .from(blindingEvents)
     .leftJoin(users, eq(users.id, blindingEvents.userId))
     .where(eq(blindingEvents.analysisId, analysisId))

@@ -2,6 +2,7 @@ import type { AppContext } from '../context';
 import { accessOf, type authorizer } from '../auth/authorize';
 import { blindingLog, changeBlindingSettings, decideUnblinding, requestUnblinding } from '../services/blinding.service';
 import { diagnoseInFit, runDiagnosisChecks } from '../services/diagnosis.service';
+import { getUnblindingChecklist, getVersionChecklist } from '../services/approval.service';
 import { answerQuestion, getQuestion, listQuestions, raiseQuestion, stepQuestion } from '../services/questions.service';
 import { baseUrl } from './base-url';
 import { idParam, route, type ApiRoute } from './route';
@@ -9,7 +10,7 @@ import { idParam, route, type ApiRoute } from './route';
 const fitIdParam = idParam('fit id');
 const questionIdParam = idParam('question id');
 
-/** The convener's review loop: a parameter's diagnosis, questions on parameters, and blinding. */
+/** The convener's review loop: a parameter's diagnosis, questions on parameters, blinding, and the approval checklists. */
 export const reviewRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>): ApiRoute[] => [
   route('get', '/api/analyses/:slug/fits/:fitId/diagnosis/:parameter', auth.may('analysis.read'), async (req, res) => {
     res.json(await diagnoseInFit(ctx, accessOf(req), fitIdParam.parse(req.params.fitId), String(req.params.parameter)));
@@ -39,6 +40,12 @@ export const reviewRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer
 
   route('get', '/api/analyses/:slug/blinding', auth.may('analysis.read'), async (req, res) => {
     res.json(await blindingLog(ctx, accessOf(req)));
+  }),
+  route('get', '/api/analyses/:slug/blinding/checklist', auth.may('analysis.read'), async (req, res) => {
+    res.json(await getUnblindingChecklist(ctx, accessOf(req)));
+  }),
+  route('get', '/api/analyses/:slug/versions/approval-checklist', auth.may('analysis.read'), async (req, res) => {
+    res.json(await getVersionChecklist(ctx, accessOf(req)));
   }),
   route('post', '/api/analyses/:slug/blinding/request', auth.may('blinding.request'), async (req, res) => {
     res.json(await requestUnblinding(ctx, accessOf(req), req.body, baseUrl(ctx, req)));

@@ -1,4 +1,6 @@
 import { blindingSettingsSchema, unblindingDecisionSchema, unblindingRequestSchema, type BlindingLog } from '@shared/schemas/review';
+import type { ApprovalChecklist } from '@shared/schemas/approval';
+import { openItems, unblindingChecklist } from './approval.service';
 import type { MemberRole } from '@shared/permissions';
 import type { FitOptions } from '@shared/schemas/fit';
 import type { Access } from '../auth/authorize';
@@ -81,7 +83,7 @@ export async function blindingLog(ctx: AppContext, access: Access): Promise<Blin
     state: state.blinding,
     approvalsRequired: state.unblindingApprovals,
     approvalsGiven: pending?.approvedBy.length ?? 0,
-    events: events.map((e) => ({ id: e.id, action: e.action as BlindingLog['events'][number]['action'], note: e.note, by: e.by, at: e.at.toISOString() })),
+    events: events.map((e) => ({ id: e.id, action: e.action as BlindingLog['events'][number]['action'], note: e.note, by: e.by, at: e.at.toISOString(), checklist: (e.checklist as ApprovalChecklist | null) ?? null })),
   };
 }
 
@@ -95,7 +97,9 @@ const stateWords = async (ctx: AppContext, access: Access) => STATE_WORDS[(await
 
 export async function requestUnblinding(ctx: AppContext, access: Access, body: unknown, baseUrl: string): Promise<BlindingLog> {
   const { note } = unblindingRequestSchema.parse(body);
-  if (!(await moveBlindingState(ctx.db, access.analysis.id, 'blinded', 'unblinding_requested', { userId: access.userId, action: 'requested', note })))
+  // the checklist as it stands goes with the request, so the conveners read what the analysts saw
+  const checklist = await unblindingChecklist(ctx.db, access.analysis.id);
+  if (!(await moveBlindingState(ctx.db, access.analysis.id, 'blinded', 'unblinding_requested', { userId: access.userId, action: 'requested', note, checklist })))
     throw conflict(`Unblinding can be requested only while the analysis is blinded with no request pending; it is ${await stateWords(ctx, access)}.`);
   await notifyUnblindingRequested(ctx, { to: await withRoles(ctx, access.analysis.id, 'convener'), baseUrl, analysis: access.analysis, by: access.userName, note });
   return blindingLog(ctx, access);
@@ -135,13 +139,19 @@ export async function decideUnblinding(ctx: AppContext, access: Access, body: un
   const request = state.blinding === 'unblinding_requested' ? await pendingRequest(ctx.db, access.analysis.id) : undefined;
   if (!request) throw conflict(`There is no unblinding request to decide: the analysis is ${STATE_WORDS[state.blinding]}.`);
   if (approve) await assertMayApprove(ctx, access, request);
+  // the decision records the checklist as it stood; approving with open items needs a note
+  const checklist = await unblindingChecklist(ctx.db, access.analysis.id);
+  if (approve && !checklist.ready && !note)
+    throw badRequest(`The checklist has open items (${openItems(checklist).slice(0, 3).join('; ')}${openItems(checklist).length > 3 ? '; …' : ''}): to approve nonetheless, say why in a note.`, [
+      { path: ['note'], message: 'Approving with open items needs a note.' },
+    ]);
   const final = !approve || request.approvedBy.length + 1 >= state.unblindingApprovals;
   if (!final) {
-    await addBlindingEvent(ctx.db, { analysisId: access.analysis.id, userId: access.userId, action: 'first_approval', note });
+    await addBlindingEvent(ctx.db, { analysisId: access.analysis.id, userId: access.userId, action: 'first_approval', note, checklist });
     await notifyUnblindingApprovedOnce(ctx, { to: await withRoles(ctx, access.analysis.id, 'analyst', 'convener'), baseUrl, analysis: access.analysis, by: access.userName, note });
     return blindingLog(ctx, access);
   }
-  const moved = await moveBlindingState(ctx.db, access.analysis.id, 'unblinding_requested', approve ? 'unblinded' : 'blinded', { userId: access.userId, action: approve ? 'approved' : 'declined', note });
+  const moved = await moveBlindingState(ctx.db, access.analysis.id, 'unblinding_requested', approve ? 'unblinded' : 'blinded', { userId: access.userId, action: approve ? 'approved' : 'declined', note, checklist });
   if (!moved) throw conflict(`There is no unblinding request to decide: the analysis is ${await stateWords(ctx, access)}.`);
   await notifyUnblindingDecided(ctx, { to: await withRoles(ctx, access.analysis.id, 'analyst', 'convener'), baseUrl, analysis: access.analysis, by: access.userName, approved: approve, note });
   return blindingLog(ctx, access);

@@ -6,7 +6,9 @@ import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { addRevision } from '../db/revisions.repository';
 import { findVersionRow, insertNextVersion, listVersionRows, type VersionRow } from '../db/versions.repository';
-import { forbidden, notFound, unprocessable } from '../errors';
+import { badRequest, forbidden, notFound, unprocessable } from '../errors';
+import { activeEntries } from '../db/approval.repository';
+import { openItems, versionChecklist } from './approval.service';
 import { buildExchange } from './exchange-export.service';
 import { hypothesisIssues } from './signal-hypotheses.service';
 
@@ -20,6 +22,8 @@ const view = (v: VersionRow, createdBy: string | null): ModelVersion => {
     createdAt: v.createdAt.toISOString(),
     createdBy,
     counts: { regions: model.regions.length, processes: model.processes.length, systematics: model.systematics.length },
+    register: v.register ? v.register.reduce<Record<string, number>>((n, e) => ({ ...n, [e.state]: (n[e.state] ?? 0) + 1 }), {}) : null,
+    override: v.approvalOverride ?? null,
   };
 };
 
@@ -43,7 +47,23 @@ export async function findVersion(ctx: AppContext, analysisId: number, number: n
 export async function freezeVersion(ctx: AppContext, access: Access, body: unknown): Promise<ModelVersion> {
   const input = freezeVersionSchema.parse(body);
   if (input.forApproval && !can(access.role, access.isAdmin, 'version.approve')) throw forbidden('Only a convener freezes a version for approval.');
+  if (input.overrideReason && !input.forApproval) throw badRequest('A reason to override open items is given only when freezing a version for approval.', [{ path: ['overrideReason'], message: 'Only with forApproval.' }]);
   return ctx.db.transaction(async (tx) => {
+    // for approval: every active entry accepted and no question open, or a convener's written reason
+    let approvalOverride: { reason: string; by: string; openItems: string[] } | null = null;
+    if (input.forApproval) {
+      const gates = await versionChecklist(tx, access.analysis.id);
+      if (!gates.ready) {
+        const open = openItems(gates);
+        if (!input.overrideReason)
+          throw badRequest(
+            `A version for approval needs every active entry accepted and no open question (${open.slice(0, 3).join('; ')}${open.length > 3 ? `; and ${open.length - 3} more` : ''}). Settle them first, or give your reason to freeze it nonetheless.`,
+            [{ path: ['overrideReason'], message: 'Open items remain: give a written reason to freeze for approval nonetheless.' }],
+          );
+        approvalOverride = { reason: input.overrideReason, by: access.userName, openItems: open };
+      }
+    }
+    const register = await activeEntries(tx, access.analysis.id);
     const model = await buildExchange(tx, access.analysis, { withhold: false });
     if (!model.regions.length || !model.processes.length) throw unprocessable('The model has no regions or no processes yet: there is nothing to freeze.');
     const issues = hypothesisIssues(model);
@@ -62,13 +82,15 @@ export async function freezeVersion(ctx: AppContext, access: Access, body: unkno
       forApproval: input.forApproval,
       model,
       sha256: createHash('sha256').update(json).digest('hex'),
+      register,
+      approvalOverride,
       createdById: access.userId,
     });
     await addRevision(tx, {
       analysisId: access.analysis.id,
       authorId: access.userId,
       action: 'version.frozen',
-      summary: `Froze model version ${v.number}${input.forApproval ? ' for approval' : ''}: ${model.regions.length} regions, ${model.systematics.length} systematics.${input.note ? ` Note: ${input.note}` : ''}`,
+      summary: `Froze model version ${v.number}${input.forApproval ? ' for approval' : ''}: ${model.regions.length} regions, ${model.systematics.length} systematics.${input.note ? ` Note: ${input.note}` : ''}${approvalOverride ? ` With ${approvalOverride.openItems.length} open item(s), for this reason: ${approvalOverride.reason}` : ''}`,
       after: { number: v.number, sha256: v.sha256 },
     });
     return view(v, access.userName);

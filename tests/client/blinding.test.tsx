@@ -4,6 +4,7 @@ import { cleanup, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import type { MemberRole } from '@shared/permissions';
 import type { BlindingLog } from '@shared/schemas/review';
+import type { ApprovalChecklist } from '@shared/schemas/approval';
 import { OverviewRoute } from '../../src/app/routes/analysis/overview';
 import { overview } from './fit-fixtures';
 import { json, renderWithApp, stubServer } from './helpers';
@@ -16,14 +17,25 @@ afterEach(() => {
 
 const requested: BlindingLog = blindingLog({
   state: 'unblinding_requested',
-  events: [{ id: 1, action: 'requested', note: 'The control-region fits are reviewed.', by: 'Otto Brannholm', at: '2026-03-05T09:00:00Z' }],
+  events: [{ id: 1, action: 'requested', note: 'The control-region fits are reviewed.', by: 'Otto Brannholm', at: '2026-03-05T09:00:00Z', checklist: null }],
 });
+
+const CHECKLIST: ApprovalChecklist = {
+  version: 1,
+  ready: false,
+  computedAt: '2026-03-05T09:00:00Z',
+  items: [
+    { key: 'entries-accepted', label: 'Every active register entry is accepted', ok: false, detail: '1 of 12 active entries are not accepted.', open: ['jes: submitted for review'] },
+    { key: 'control-fit', label: 'A converged fit of the control regions to their data, on the newest version', ok: true, detail: 'Fit #3 of version 1.', open: [] },
+  ],
+};
 
 function serve(role: MemberRole, log: BlindingLog, post?: (url: string, body: unknown) => Response | undefined) {
   return stubServer((method, url, body) => {
     if (url === '/api/auth/me') return json(200, { user: { id: 1, email: 'a@x', name: 'A', isAdmin: false }, memberships: [] });
     if (url === '/api/analyses/demo') return json(200, overview(role, log.state));
     if (url === '/api/analyses/demo/blinding' && method === 'GET') return json(200, log);
+    if (url === '/api/analyses/demo/blinding/checklist') return json(200, CHECKLIST);
     if (method === 'POST') return post?.(url, body);
     return undefined;
   });

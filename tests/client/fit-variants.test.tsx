@@ -24,6 +24,8 @@ const version: ModelVersion = {
   createdAt: '2026-03-01T09:00:00Z',
   createdBy: 'Otto Brannholm',
   counts: { regions: 2, processes: 2, systematics: 2 },
+  register: null,
+  override: null,
 };
 
 const model = {

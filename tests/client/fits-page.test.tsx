@@ -20,6 +20,8 @@ const version: ModelVersion = {
   createdAt: '2026-03-01T09:00:00Z',
   createdBy: 'Otto Brannholm',
   counts: { regions: 4, processes: 6, systematics: 40 },
+  register: null,
+  override: null,
 };
 
 function serve(role: 'analyst' | 'convener' | 'reader', blinding: 'blinded' | 'unblinded', fits = [fitSummary()]) {

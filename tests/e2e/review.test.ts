@@ -162,12 +162,18 @@ describe('a convener questions an over-constrained parameter, the owner answers,
     await page.getByRole('heading', { name: 'Unblinding has been requested' }).waitFor();
     await as(live, 'mira@lantern.example');
     await page.goto(`${live.server.url}/a/vireon-search`);
+    // the server's checklist is shown, and approving with its open items needs a note
+    await page.getByRole('region', { name: 'Before unblinding' }).waitFor();
+    await page.getByRole('button', { name: 'Approve unblinding' }).click();
+    await page.getByText('Approving with open items needs a note.').waitFor();
+    await page.getByLabel('Note').fill('Agreed at the approval meeting: the open items are followed up before the note goes out.');
     await page.getByRole('button', { name: 'Approve unblinding' }).click();
     await page.getByText('1 of 2 approvals given.', { exact: false }).waitFor();
     await page.getByRole('list', { name: 'Blinding log' }).getByText('approved unblinding (first of two approvals)').waitFor();
     await page.getByRole('heading', { name: 'Unblinding has been requested' }).waitFor();
     await screenshot(page, 'review-overview-two-approvals');
     // approving twice is refused with the reason
+    await page.getByLabel('Note').fill('Once more.');
     await page.getByRole('button', { name: 'Approve unblinding' }).click();
     await page.getByText('You have approved this request already: a second convener must approve it.').waitFor();
   });

@@ -385,6 +385,8 @@ export const MATRIX: Record<string, Row> = {
   'POST /api/analyses/:slug/questions/:questionId/answers': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}/answers`, body: { body: 'Because of the control region.' } }), expect: answerers(201) },
   'POST /api/analyses/:slug/questions/:questionId/resolve': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}/resolve`, body: {} }), expect: conveners(200) },
   'POST /api/analyses/:slug/questions/:questionId/reopen': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t, 'resolved')}/reopen`, body: { note: 'Again.' } }), expect: conveners(200) },
+  'GET /api/analyses/:slug/blinding/checklist': { call: () => ({ path: `${A}/blinding/checklist` }), expect: members(200) },
+  'GET /api/analyses/:slug/versions/approval-checklist': { call: () => ({ path: `${A}/versions/approval-checklist` }), expect: members(200) },
   'GET /api/analyses/:slug/blinding': { call: () => ({ path: `${A}/blinding` }), expect: members(200) },
   'POST /api/analyses/:slug/blinding/request': {
     call: async (t) => {

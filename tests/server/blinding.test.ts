@@ -256,7 +256,7 @@ describe('unblinding needs two people, enforced by the server', () => {
     expect((await who.convener.send('post', `${A}/blinding/decision`, { approve: true, note: '' })).status).toBe(409);
     expect(await scanForBlindedCounts(t, SLUG, { ...who, secondClient }, 'one of two approvals')).toBeGreaterThan(300);
 
-    const final = await secondClient.send('post', `${A}/blinding/decision`, { approve: true, note: '' });
+    const final = await secondClient.send('post', `${A}/blinding/decision`, { approve: true, note: 'Agreed, with the open items of the checklist followed up.' });
     expect(final.status).toBe(200);
     expect(final.body.state).toBe('unblinded');
     // the scan can see a count once the analysis is unblinded: it is not blind itself

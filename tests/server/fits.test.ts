@@ -37,8 +37,17 @@ describe('model versions and fit runs', () => {
     expect(first.body).toMatchObject({ number: 1, note: 'first look', forApproval: false, createdBy: 'Otto Brannholm', counts: { regions: 2, processes: 3, systematics: 6 } });
     expect(first.body.sha256).toMatch(/^[0-9a-f]{64}$/);
     expect((await analyst.send('post', `${C}/versions`, { forApproval: true })).status).toBe(403);
-    const approval = await convener.send('post', `${C}/versions`, { note: 'for approval', forApproval: true });
-    expect(approval.body).toMatchObject({ number: 2, forApproval: true });
+    // entries under review and open questions: for approval only with a written reason, nothing saved without one
+    const refused = await convener.send('post', `${C}/versions`, { note: 'for approval', forApproval: true });
+    expect(refused.status).toBe(400);
+    expect(refused.body.error.issues).toEqual([{ path: ['overrideReason'], message: 'Open items remain: give a written reason to freeze for approval nonetheless.' }]);
+    expect(refused.body.error.message).toMatch(/continuum_shape: submitted for review/);
+    expect((await reader.get(`${C}/versions`)).body).toHaveLength(1);
+    const approval = await convener.send('post', `${C}/versions`, { note: 'for approval', forApproval: true, overrideReason: 'The theory entry is settled at the approval meeting.' });
+    expect(approval.body).toMatchObject({ number: 2, forApproval: true, override: { reason: 'The theory entry is settled at the approval meeting.', by: 'Mira Quellbright' } });
+    expect(approval.body.override.openItems).toContain('Every active register entry is accepted: continuum_shape: submitted for review');
+    expect(approval.body.register).toEqual({ accepted: 4, submitted: 1, draft: 1 });
+    expect(first.body.override).toBeNull();
     expect((await reader.send('post', `${C}/versions`, {})).status).toBe(403);
     expect((await reader.get(`${C}/versions`)).body.map((v: { number: number }) => v.number)).toEqual([2, 1]);
   });

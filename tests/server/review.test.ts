@@ -140,8 +140,15 @@ describe('the review loop', () => {
 
       await analyst.send('post', `${V}/blinding/request`, { note: 'The approval meeting agreed.' });
       await mail();
-      const approved = await convener.send('post', `${V}/blinding/decision`, { approve: true });
+      // the checklist has open items here (no frozen version): approving needs a note, and nothing changes without one
+      const before2 = await dbSnapshot(t);
+      const noNote = await convener.send('post', `${V}/blinding/decision`, { approve: true });
+      expect(noNote.status).toBe(400);
+      expect(noNote.body.error.issues).toEqual([{ path: ['note'], message: 'Approving with open items needs a note.' }]);
+      expect(await dbSnapshot(t)).toEqual(before2);
+      const approved = await convener.send('post', `${V}/blinding/decision`, { approve: true, note: 'The approval meeting agreed on the open items.' });
       expect(approved.body.state).toBe('unblinded');
+      expect(approved.body.events[0].checklist).toMatchObject({ ready: false, version: null });
       expect(approved.body.events.map((e: { action: string; by: string }) => [e.action, e.by])).toEqual([
         ['approved', 'Mira Quellbright'],
         ['requested', 'Otto Brannholm'],

@@ -1,4 +1,5 @@
 import { queryOptions, useQuery } from '@tanstack/react-query';
+import type { ApprovalChecklist } from '@shared/schemas/approval';
 import type { BlindingLog } from '@shared/schemas/review';
 import { analysisPath, api } from '../../../lib/api-client';
 import { queryKeys } from '../../../lib/query-keys';
@@ -12,4 +13,9 @@ export const blindingQueryOptions = (slug: string) => queryOptions({ queryKey: q
 
 export function useBlinding(slug: string) {
   return useQuery(blindingQueryOptions(slug));
+}
+
+/** What the server checks before unblinding, as it stands now (recomputed on every read). */
+export function useUnblindingChecklist(slug: string, enabled: boolean) {
+  return useQuery({ queryKey: [...queryKeys.blinding(slug), 'checklist'], queryFn: () => api.get<ApprovalChecklist>(analysisPath(slug, 'blinding', 'checklist')), enabled });
 }

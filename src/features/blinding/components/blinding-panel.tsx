@@ -9,7 +9,8 @@ import { isApiRequestError } from '../../../lib/api-client';
 import { formatDateTime } from '../../../lib/format';
 import { BlindingBadge } from '../../../components/status/blinding-badge';
 import { useDecideUnblinding } from '../api/decide-unblinding';
-import { useBlinding } from '../api/get-blinding';
+import { useBlinding, useUnblindingChecklist } from '../api/get-blinding';
+import { ChecklistView } from '../../../components/status/approval-checklist';
 import { useChangeBlindingSettings } from '../api/change-blinding-settings';
 import { useRequestUnblinding } from '../api/request-unblinding';
 
@@ -119,7 +120,7 @@ function DecisionForm({ slug }: { slug: string }) {
         value={note}
         onChange={(e) => setNote(e.target.value)}
         error={missing ? 'Say why you decline, so the analysts know what to do next.' : err?.fieldMessage('note')}
-        hint="Optional when you approve; needed when you decline."
+        hint="Needed when you decline, and when you approve while the checklist has open items."
       />
       <div className="flex flex-wrap gap-2">
         <Button variant="primary" busy={decide.isPending && decide.variables?.approve === true} disabled={decide.isPending} onClick={() => send(true)}>
@@ -131,6 +132,14 @@ function DecisionForm({ slug }: { slug: string }) {
       </div>
     </form>
   );
+}
+
+/** The server's checklist before unblinding, as it stands now: the request and the decision record it as it stood. */
+function CurrentChecklist({ slug }: { slug: string }) {
+  const checklist = useUnblindingChecklist(slug, true);
+  if (checklist.isPending) return <Loading label="Checking what unblinding needs…" />;
+  if (checklist.isError) return <FormError error={checklist.error} />;
+  return <ChecklistView checklist={checklist.data} label="Before unblinding" />;
 }
 
 const MEMBERSHIP: BlindingAction[] = ['member_added', 'member_joined', 'role_changed', 'member_removed'];
@@ -159,6 +168,16 @@ function Log({ log }: { log: BlindingLog }) {
               </span>
             </p>
             {e.note && !membership && <p className="text-sm whitespace-pre-wrap text-ink-soft">{e.note}</p>}
+            {e.checklist && (
+              <details className="mt-1 text-xs">
+                <summary className="cursor-pointer text-ink-muted">
+                  The checklist as it stood: {e.checklist.items.filter((i) => i.ok).length} of {e.checklist.items.length} held
+                </summary>
+                <div className="mt-1">
+                  <ChecklistView checklist={e.checklist} label="Checklist then" />
+                </div>
+              </details>
+            )}
           </li>
         );
       })}
@@ -185,6 +204,7 @@ export function BlindingPanel({ slug, state: fallback, mayRequest, mayDecide }: 
             <BlindingBadge blinding={state} />
           </div>
           <p className="text-sm text-ink-soft">{words.text}</p>
+          {state !== 'unblinded' && <CurrentChecklist slug={slug} />}
           {state === 'blinded' && mayRequest && <RequestForm slug={slug} />}
           {state === 'unblinding_requested' && mayDecide && <DecisionForm slug={slug} />}
           {state === 'unblinding_requested' && !mayDecide && <p className="text-xs text-ink-muted">A convener decides on the request.</p>}
