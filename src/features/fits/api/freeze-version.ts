@@ -1,4 +1,5 @@
-import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
+import type { ApprovalChecklist } from '@shared/schemas/approval';
 import type { FreezeVersion, ModelVersion } from '@shared/schemas/fits';
 import { analysisPath, api } from '../../../lib/api-client';
 import { queryKeys } from '../../../lib/query-keys';
@@ -17,4 +18,9 @@ export function useFreezeVersion(slug: string) {
       void queryClient.invalidateQueries({ queryKey: queryKeys.overview(slug) });
     },
   });
+}
+
+/** The gates of a version frozen for approval, as they stand now (entries accepted, no open question). */
+export function useVersionChecklist(slug: string, enabled: boolean) {
+  return useQuery({ queryKey: [...queryKeys.versions(slug), 'approval-checklist'], queryFn: () => api.get<ApprovalChecklist>(analysisPath(slug, 'versions', 'approval-checklist')), enabled });
 }

@@ -6,24 +6,29 @@ import { FormError } from '../../../components/ui/error-notice';
 import { CheckboxField, TextAreaField } from '../../../components/ui/field';
 import { fieldError } from '../../../lib/form-issues';
 import { formatDateTime } from '../../../lib/format';
-import { useFreezeVersion } from '../api/freeze-version';
+import { useFreezeVersion, useVersionChecklist } from '../api/freeze-version';
+import { ChecklistView } from '../../../components/status/approval-checklist';
 
 /** Freeze the working model into the next numbered version; a convener may mark it as put forward for approval. */
 export function FreezeVersionForm({ slug, mayMarkForApproval, onFrozen }: { slug: string; mayMarkForApproval: boolean; onFrozen?: (v: ModelVersion) => void }) {
   const [note, setNote] = useState('');
   const [forApproval, setForApproval] = useState(false);
+  const [reason, setReason] = useState('');
   const freeze = useFreezeVersion(slug);
+  const gates = useVersionChecklist(slug, mayMarkForApproval && forApproval);
+  const open = gates.data && !gates.data.ready;
   return (
     <form
       className="flex flex-col gap-3"
       onSubmit={(e) => {
         e.preventDefault();
         freeze.mutate(
-          { note: note.trim(), forApproval: mayMarkForApproval && forApproval },
+          { note: note.trim(), forApproval: mayMarkForApproval && forApproval, ...(mayMarkForApproval && forApproval && open && reason.trim() ? { overrideReason: reason.trim() } : {}) },
           {
             onSuccess: (v) => {
               setNote('');
               setForApproval(false);
+              setReason('');
               onFrozen?.(v);
             },
           },
@@ -46,7 +51,19 @@ export function FreezeVersionForm({ slug, mayMarkForApproval, onFrozen }: { slug
           label="Put this version forward for approval"
           checked={forApproval}
           onChange={(e) => setForApproval(e.target.checked)}
-          hint="Marks the version as the one the team asks the collaboration to review."
+          hint="Marks the version as the one the team asks the collaboration to review: every active entry accepted and no question open, or your written reason."
+        />
+      )}
+      {mayMarkForApproval && forApproval && gates.data && <ChecklistView checklist={gates.data} label="For approval" />}
+      {mayMarkForApproval && forApproval && open && (
+        <TextAreaField
+          label="Why freeze it for approval with these items open"
+          rows={2}
+          maxLength={4000}
+          value={reason}
+          onChange={(e) => setReason(e.target.value)}
+          error={fieldError({}, freeze.error, 'overrideReason')}
+          hint="Shown on the version and in the approval pack, with the open items as they stand."
         />
       )}
       <div>
@@ -82,12 +99,28 @@ export function VersionsList({ versions }: { versions: ModelVersion[] }) {
             </span>
           </div>
           {v.note && <p className="text-sm text-ink-soft">{v.note}</p>}
+          {v.override && (
+            <p className="text-sm text-amber-ink" title={`Open when frozen:\n${v.override.openItems.join('\n')}`}>
+              Frozen for approval by {v.override.by} with {v.override.openItems.length} open item{v.override.openItems.length === 1 ? '' : 's'}: {v.override.reason}
+            </p>
+          )}
           <p className="text-xs text-ink-muted">
             <span title="Regions in this version">{v.counts.regions} regions</span> · <span title="Processes in this version">{v.counts.processes} processes</span> ·{' '}
             <span title="Systematic uncertainties (nuisance parameters) in this version">{v.counts.systematics} systematics</span> ·{' '}
             <span className="font-mono" title={`SHA-256 of the frozen model document: ${v.sha256}`}>
               {v.sha256.slice(0, 10)}
             </span>
+            {v.register && (
+              <>
+                {' '}
+                ·{' '}
+                <span title="The register as frozen: entries per review state">
+                  {Object.entries(v.register)
+                    .map(([state, n]) => `${n} ${state.replace('_', ' ')}`)
+                    .join(', ')}
+                </span>
+              </>
+            )}
           </p>
         </li>
       ))}
