@@ -112,6 +112,39 @@ describe('the fits page', () => {
     expect(screen.queryByLabelText('Put this version forward for approval')).toBeNull();
   });
 
+  it('shows a convener the gates of a version for approval, and sends the reason to freeze it with items open', async () => {
+    const overridden: ModelVersion = { ...version, number: 3, forApproval: true, register: { accepted: 38, submitted: 2 }, override: { reason: 'Settled at the meeting.', by: 'Mira Quellbright', openItems: ['a', 'b'] } };
+    const calls = stubServer((method, url) => {
+      if (url === '/api/analyses/demo') return json(200, overview('convener', 'blinded'));
+      if (url === '/api/analyses/demo/fits' && method === 'GET') return json(200, []);
+      if (url === '/api/analyses/demo/versions' && method === 'GET') return json(200, [version]);
+      if (url === '/api/analyses/demo/versions' && method === 'POST') return json(201, overridden);
+      if (url === '/api/analyses/demo/versions/approval-checklist')
+        return json(200, {
+          version: 2,
+          ready: false,
+          computedAt: '2026-03-01T09:00:00Z',
+          items: [
+            { key: 'entries-accepted', label: 'Every active register entry is accepted', ok: false, detail: '2 of 40 are not accepted.', open: ['jes: submitted for review', 'pdf: draft'] },
+            { key: 'no-open-questions', label: 'No question is open', ok: true, detail: 'Every question is resolved.', open: [] },
+          ],
+        });
+      return undefined;
+    });
+    const user = userEvent.setup();
+    render();
+    await screen.findByRole('list', { name: 'Model versions' });
+    expect(screen.queryByLabelText('Why freeze it for approval with these items open')).toBeNull();
+    await user.click(screen.getByLabelText('Put this version forward for approval'));
+    const gates = await screen.findByRole('region', { name: 'For approval' });
+    expect(gates.textContent).toContain('1 of 2 hold');
+    expect(gates.textContent).toContain('jes: submitted for review');
+    await user.type(screen.getByLabelText('Why freeze it for approval with these items open'), 'Settled at the meeting.');
+    await user.click(screen.getByRole('button', { name: 'Freeze model version' }));
+    expect(await screen.findByText('Version 3 frozen.')).toBeTruthy();
+    expect(calls.find((c) => c.method === 'POST' && c.url === '/api/analyses/demo/versions')!.body).toEqual({ note: '', forApproval: true, overrideReason: 'Settled at the meeting.' });
+  });
+
   it('shows live progress and a cancel button for a running fit', async () => {
     serve('analyst', 'blinded', [fitSummary({ state: 'running', progress: 0.25, stage: 'scan of μ', headline: null })]);
     render();
