@@ -246,6 +246,9 @@ export const entries = pgTable(
 
 export type EffectWarning = { code: string; message: string; bins?: number[] };
 
+/** One piece of evidence an answer attaches (shared/schemas/review.ts, evidenceSchema). */
+export type AnswerEvidence = { kind: 'fit' | 'variant'; fitId: number } | { kind: 'diagnosis'; fitId: number; parameter: string } | { kind: 'version'; version: number };
+
 export const effects = pgTable(
   'effects',
   {
@@ -544,7 +547,14 @@ export const questions = pgTable(
   {
     id: serial('id').primaryKey(),
     analysisId: integer('analysis_id').notNull().references(() => analyses.id, { onDelete: 'cascade' }),
-    entryId: integer('entry_id').notNull().references(() => entries.id, { onDelete: 'cascade' }),
+    /** What it is about: a parameter (entryId), a region or one of its bins (regionKey, bin), a fit (fitId) or a model version (versionId). */
+    subject: varchar('subject', { length: 16 }).notNull().default('parameter'),
+    entryId: integer('entry_id').references(() => entries.id, { onDelete: 'cascade' }),
+    regionKey: varchar('region_key', { length: 64 }),
+    /** 1-based bin of regionKey, for a question on one bin */
+    bin: integer('bin'),
+    versionId: integer('version_id').references(() => modelVersions.id, { onDelete: 'set null' }),
+    /** the fit the question is about or was raised on */
     fitId: integer('fit_id').references(() => fits.id, { onDelete: 'set null' }),
     authorId: integer('author_id').references(() => users.id, { onDelete: 'set null' }),
     title: varchar('title', { length: 200 }).notNull(),
@@ -564,6 +574,8 @@ export const answers = pgTable(
     questionId: integer('question_id').notNull().references(() => questions.id, { onDelete: 'cascade' }),
     authorId: integer('author_id').references(() => users.id, { onDelete: 'set null' }),
     body: text('body').notNull(),
+    /** What the answer points to as its evidence: fits, variants, diagnoses, model versions. */
+    evidence: jsonb('evidence').$type<AnswerEvidence[]>().notNull().default([]),
     createdAt: createdAt(),
   },
   // the questions list counts each question's answers, and a thread reads its own
