@@ -470,6 +470,108 @@ function pilotAnalysis(): DemoAnalysis {
   };
 }
 
+/** The strengths the two modes' data are drawn with (direct: μ; associated: mu_assoc). */
+export const CASCADE_MODES_TRUTH = { mu: 1.1, mu_assoc: 0.8 } as const;
+
+/**
+ * Cascade production in two modes, measured together: the direct mode (multiplied by μ) and the
+ * mode associated with an extra flare (its own parameter of interest, mu_assoc). Each of the two
+ * selections is enriched in one mode but holds some of the other, so the two strengths come out
+ * moderately anti-correlated; a cascade-depleted selection fixes the continuum's normalisation.
+ * The data are drawn at μ = 1.1 and mu_assoc = 0.8.
+ */
+function cascadeModesAnalysis(): DemoAnalysis {
+  const rnd = prng(20261204);
+  const edges = edgesOf(0, 200, 10);
+  const xs = centres(edges);
+  const shape = (f: (x: number) => number, total: number) => {
+    const raw = xs.map(f);
+    const s = raw.reduce((a, b) => a + b, 0);
+    return raw.map((v) => round((total * v) / s, 4));
+  };
+  // the direct mode is softer than the associated one, whose extra flare hardens the spectrum
+  const direct = (x: number) => Math.exp(-x / 55);
+  const assoc = (x: number) => (x / 40) * Math.exp(-x / 45);
+  const continuum = (x: number) => Math.exp(-x / 35);
+  const halo = (x: number) => 0.5 + Math.exp(-x / 120);
+  type Spec = { key: string; label: string; role: 'signal' | 'control'; yields: Record<string, number> };
+  const regions: Spec[] = [
+    { key: 'SR-direct', label: 'Cascade without an extra flare', role: 'signal', yields: { cascade_direct: 520, cascade_assoc: 150, continuum: 1300, halo: 260 } },
+    { key: 'SR-assoc', label: 'Cascade with an extra flare', role: 'signal', yields: { cascade_direct: 170, cascade_assoc: 260, continuum: 420, halo: 90 } },
+    { key: 'CR', label: 'Cascade-depleted selection', role: 'control', yields: { continuum: 7000, halo: 550 } },
+  ];
+  const shapes: Record<string, (x: number) => number> = { cascade_direct: direct, cascade_assoc: assoc, continuum, halo };
+  const nominal = new Map<string, number[]>();
+  for (const r of regions) for (const [p, total] of Object.entries(r.yields)) nominal.set(`${r.key}/${p}`, shape(shapes[p], total));
+  const nom = (region: string, process: string) => nominal.get(`${region}/${process}`)!;
+  const where = (processes: string[], regionKeys = regions.map((r) => r.key)) => regionKeys.flatMap((region) => processes.filter((p) => nominal.has(`${region}/${p}`)).map((process) => ({ region, process })));
+  const scale = (processes: string[], up: number, down: number, regionKeys?: string[]): Effect[] => where(processes, regionKeys).map((w) => ({ ...w, kind: 'scale', up, down }));
+  const tilt = (processes: string[], a: number, regionKeys?: string[]): Effect[] =>
+    where(processes, regionKeys).map((w) => {
+      const n = nom(w.region, w.process);
+      return { ...w, kind: 'shape', up: n.map((v, i) => round(v * (1 + a * (i / 9 - 0.5)), 4)), down: n.map((v, i) => round(v * (1 - a * (i / 9 - 0.5)), 4)) };
+    });
+  const signals = ['cascade_direct', 'cascade_assoc'];
+  const systematics: ExchangeModelInput['systematics'] = [
+    { key: 'lumi', label: 'Integrated luminosity', group: 'luminosity', effects: scale([...signals, 'halo'], 1.021, 0.979) },
+    { key: 'cascade_eff', label: 'Cascade reconstruction efficiency', group: 'identification', effects: scale(signals, 1.04, 0.96) },
+    { key: 'extra_flare_id', label: 'Extra-flare identification', group: 'identification', effects: scale(['cascade_assoc'], 1.06, 0.95) },
+    { key: 'energy_scale', label: 'Cascade energy scale', group: 'calorimetry', effects: tilt([...signals, 'continuum'], 0.05) },
+    { key: 'direct_theory', label: 'Direct-mode acceptance (theory)', group: 'theory', effects: scale(['cascade_direct'], 1.03, 0.97) },
+    { key: 'assoc_theory', label: 'Associated-mode spectrum (theory)', group: 'theory', effects: tilt(['cascade_assoc'], 0.08, ['SR-direct', 'SR-assoc']) },
+    { key: 'halo_norm', label: 'Beam-halo normalisation', group: 'background modelling', effects: scale(['halo'], 1.3, 0.75) },
+    { key: 'continuum_shape', label: 'Continuum spectrum model', group: 'background modelling', effects: tilt(['continuum'], 0.06, ['SR-direct', 'SR-assoc']) },
+  ];
+  // the data: the two modes at their strengths, the continuum 3 % above its prediction, each bin Poisson
+  const strength: Record<string, number> = { cascade_direct: CASCADE_MODES_TRUTH.mu, cascade_assoc: CASCADE_MODES_TRUTH.mu_assoc, continuum: 1.03, halo: 1 };
+  const observed = (r: Spec) => xs.map((_, b) => rnd.poisson(Object.keys(r.yields).reduce((sum, p) => sum + nom(r.key, p)[b] * strength[p], 0)));
+  const model: ExchangeModelInput = {
+    format: 'plumbline.model',
+    version: 2,
+    name: 'Cascade production in two modes',
+    regions: regions.map((r) => ({ key: r.key, label: r.label, role: r.role, observable: { name: 'cascade transverse energy', unit: 'GeV' }, edges, observed: observed(r) })),
+    processes: [
+      { key: 'cascade_direct', label: 'Cascade, direct production', kind: 'signal', colour: '#d9a441' },
+      { key: 'cascade_assoc', label: 'Cascade with an extra flare', kind: 'signal', colour: '#c0392b' },
+      { key: 'continuum', label: 'Prompt flare continuum', kind: 'background', colour: '#2e6f95' },
+      { key: 'halo', label: 'Beam halo', kind: 'background', colour: '#8e6c8a' },
+    ],
+    floatingNorms: [{ key: 'k_continuum', label: 'Continuum normalisation', targets: where(['continuum']) }],
+    parametersOfInterest: [{ key: 'mu_assoc', label: 'Associated-production strength', start: 1, min: -5, max: 10, targets: where(['cascade_assoc']) }],
+    templates: [...nominal].map(([pair, n]) => {
+      const [region, process] = pair.split('/');
+      return { region, process, nominal: n, ...(process === 'halo' ? {} : { variance: n.map((v) => round(v * (process === 'continuum' ? 0.01 : 0.02), 5)) }) };
+    }),
+    systematics,
+  };
+  const meta = (owner: string, state: EntryState): DemoEntryMeta => ({ owner, state, justification: 'Taken from the cascade working group recommendations for the two-mode measurement.', references: [] });
+  const otto = 'otto@lantern.example';
+  const juno = 'juno@lantern.example';
+  return {
+    slug: 'cascade-modes',
+    name: 'Cascade production in two modes',
+    description: 'Measurement of the direct and the associated cascade production strengths together, with their correlation and contour. Unblinded.',
+    blinded: false,
+    members: [
+      { email: 'mira@lantern.example', role: 'convener' },
+      { email: otto, role: 'analyst' },
+      { email: juno, role: 'contact' },
+      { email: 'rafe@lantern.example', role: 'reader' },
+    ],
+    model,
+    entries: {
+      lumi: meta(otto, 'accepted'),
+      cascade_eff: meta(juno, 'accepted'),
+      extra_flare_id: meta(juno, 'accepted'),
+      energy_scale: meta(juno, 'accepted'),
+      direct_theory: meta(otto, 'accepted'),
+      assoc_theory: meta(otto, 'submitted'),
+      halo_norm: meta(otto, 'accepted'),
+      continuum_shape: meta(otto, 'accepted'),
+    },
+  };
+}
+
 export function demoScenario(): { accounts: DemoAccount[]; password: string; analyses: DemoAnalysis[] } {
-  return { accounts: DEMO_ACCOUNTS, password: DEMO_PASSWORD, analyses: [vireonAnalysis(), cascadeAnalysis(), pilotAnalysis()] };
+  return { accounts: DEMO_ACCOUNTS, password: DEMO_PASSWORD, analyses: [vireonAnalysis(), cascadeAnalysis(), pilotAnalysis(), cascadeModesAnalysis()] };
 }

@@ -24,6 +24,9 @@ import { startHypothesisScan } from '../services/hypothesis-scans.service';
  *   Its expected scan over the 30 mass hypotheses.
  * - vireon-pilot (unblinded): a frozen version and the observed scan over its 25 masses, with
  *   the global significance of its bump near 1390 GeV from upcrossings and from toys.
+ * - cascade-modes (unblinded): a frozen version and an observed fit of its two parameters of
+ *   interest (μ for the direct mode, mu_assoc for the associated one) with full impacts, their scans
+ *   and their 2D contour.
  * - cascade-rate (unblinded): a frozen version and an observed fit with full impacts, in which
  *   halo_norm is over-constrained; an open question on it with one answer, and a resolved one;
  *   once that fit is done, a revised continuum shape saved to its submitted entry, with what that
@@ -63,6 +66,15 @@ export async function seedStory(ctx: AppContext, baseUrl: string, options: { wai
   const ottoP = await as('vireon-pilot', 'otto@lantern.example');
   const pv = await freezeVersion(ctx, ottoP, { note: 'Pilot-run model as in its note' });
   await startHypothesisScan(ctx, ottoP, { version: pv.number, label: 'Observed, with the global significance', options: { dataset: 'observed', upcrossingToys: 100, trialsToys: 300, seed: 7 } });
+
+  // the two-mode measurement: both strengths at once, their correlation and their contour
+  const ottoM = await as('cascade-modes', 'otto@lantern.example');
+  const mv = await freezeVersion(ctx, ottoM, { note: 'Both production modes, each with its own strength' });
+  await startFit(ctx, ottoM, {
+    version: mv.number,
+    label: 'Observed, both strengths with their contour',
+    options: { dataset: 'observed', impacts: 'full', scan: true, limit: false, contour: ['mu', 'mu_assoc'] },
+  });
 
   // the register's review loop: one entry submitted, one sent back with a comment
   await reviewEntry(ctx, await as(V, 'juno@lantern.example'), 'noise_model', { action: 'submit' }, baseUrl);

@@ -29,7 +29,7 @@ describe('the demo on its first start', () => {
 
   it('holds a frozen version per analysis', async () => {
     const rafe = await as('rafe@lantern.example');
-    for (const slug of ['vireon-search', 'cascade-rate']) expect((await rafe.get(`/api/analyses/${slug}/versions`)).length).toBeGreaterThanOrEqual(1);
+    for (const slug of ['vireon-search', 'cascade-rate', 'cascade-modes']) expect((await rafe.get(`/api/analyses/${slug}/versions`)).length).toBeGreaterThanOrEqual(1);
   });
 
   it('shows the blinded search with a control-only fit, a pre-fit Asimov fit (full impacts, scan, limit) and the review set', async () => {
@@ -56,6 +56,27 @@ describe('the demo on its first start', () => {
     const questions = (await mira.get('/api/analyses/cascade-rate/questions')) as { entry: { key: string }; state: string; answers: number; fit: { id: number } }[];
     expect(questions.find((q) => q.entry.key === 'halo_norm')).toMatchObject({ state: 'answered', answers: 1, fit: { id: fit.id } });
     expect(questions.some((q) => q.state === 'resolved')).toBe(true);
+  });
+
+  it('shows the two-mode measurement with both strengths, their scans, their moderate anti-correlation and their contour', async () => {
+    const rafe = await as('rafe@lantern.example');
+    const model = await rafe.get('/api/analyses/cascade-modes/model');
+    expect(model.parametersOfInterest.map((q: { key: string }) => q.key)).toEqual(['mu_assoc']);
+    const [fit] = await rafe.get('/api/analyses/cascade-modes/fits');
+    expect(fit).toMatchObject({ state: 'succeeded', label: 'Observed, both strengths with their contour', options: { dataset: 'observed', impacts: 'full', scan: true, limit: false, contour: ['mu', 'mu_assoc'] } });
+    const { result } = await rafe.get(`/api/analyses/cascade-modes/fits/${fit.id}`);
+    type Poi = { name: string; value: number; error: number; scan: { points: unknown[] } | null };
+    const list = result.poi.list as Poi[];
+    expect(list.map((p) => p.name)).toEqual(['mu', 'mu_assoc']);
+    // drawn at 1.1 and 0.8: each within three of its errors
+    expect(Math.abs(list[0].value - 1.1)).toBeLessThan(3 * list[0].error);
+    expect(Math.abs(list[1].value - 0.8)).toBeLessThan(3 * list[1].error);
+    expect(list[1].scan!.points.length).toBeGreaterThan(10);
+    const rho = result.poi.correlation.values[1];
+    expect(rho).toBeLessThan(-0.15);
+    expect(rho).toBeGreaterThan(-0.7);
+    expect(result.contour).toMatchObject({ parameters: ['mu', 'mu_assoc'], failure: null });
+    expect(result.contour.levels.map((l: { lines: unknown[] }) => l.lines.length > 0)).toEqual([true, true]);
   });
 
   it('shows on an entry under review what its revised variation does to the observed fit', async () => {

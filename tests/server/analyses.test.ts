@@ -20,6 +20,7 @@ describe('analyses and their members', () => {
     const admin = await signedIn(t.app, DEMO.admin);
     const res = await admin.get('/api/analyses');
     expect(res.body.map((a: { slug: string; role: null }) => [a.slug, a.role])).toEqual([
+      ['cascade-modes', null],
       ['cascade-rate', null],
       ['vireon-search', null],
       ['vireon-pilot', null],

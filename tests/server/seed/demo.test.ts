@@ -22,7 +22,7 @@ describe('writing the demo on first start', () => {
 
       await client.exec('drop trigger refuse_cascade on analyses; drop function refuse_cascade();');
       expect((await seedDemo(db)).seeded).toBe(true);
-      expect((await db.select({ slug: analyses.slug }).from(analyses)).map((a) => a.slug).sort()).toEqual(['cascade-rate', 'vireon-pilot', 'vireon-search']);
+      expect((await db.select({ slug: analyses.slug }).from(analyses)).map((a) => a.slug).sort()).toEqual(['cascade-modes', 'cascade-rate', 'vireon-pilot', 'vireon-search']);
       expect((await counts()).entries).toBeGreaterThan(40);
     } finally {
       await close();

@@ -1,15 +1,15 @@
 import { describe, expect, it } from 'vitest';
 import { exchangeModelSchema } from '@shared/schemas/exchange';
-import { demoScenario } from '../../../server/seed/scenario';
+import { CASCADE_MODES_TRUTH, demoScenario } from '../../../server/seed/scenario';
 
 describe('the invented demo scenario', () => {
   it('is generated deterministically: two runs give the same document', () => {
     expect(JSON.stringify(demoScenario())).toBe(JSON.stringify(demoScenario()));
   });
 
-  it('has one blinded and two unblinded analyses whose models pass the exchange-file schema', () => {
+  it('has one blinded and three unblinded analyses whose models pass the exchange-file schema', () => {
     const { analyses } = demoScenario();
-    expect(analyses.map((a) => a.blinded).sort()).toEqual([false, false, true]);
+    expect(analyses.map((a) => a.blinded).sort()).toEqual([false, false, false, true]);
     for (const a of analyses) {
       const parsed = exchangeModelSchema.safeParse(a.model);
       expect(parsed.error?.issues ?? []).toEqual([]);
@@ -77,5 +77,37 @@ describe('the signal hypotheses of the blinded search', () => {
     expect(share(core[5])).toBeGreaterThan(share(core[25]));
     const totals = core.map((n) => n.reduce((a, b) => a + b, 0));
     totals.slice(1).forEach((t, i) => expect(Math.abs(t / totals[i] - 1)).toBeLessThan(0.35));
+  });
+});
+
+describe('the measurement of cascade production in two modes', () => {
+  const modes = () => exchangeModelSchema.parse(demoScenario().analyses.find((a) => a.slug === 'cascade-modes')!.model);
+  const total = (values: number[]) => values.reduce((a, b) => a + b, 0);
+
+  it('declares a second parameter of interest on the associated mode, μ keeping the direct mode', () => {
+    const model = modes();
+    expect(model.version).toBe(2);
+    expect(model.parametersOfInterest!.map((q) => [q.key, q.targets.map((t) => `${t.region}/${t.process}`)])).toEqual([['mu_assoc', ['SR-direct/cascade_assoc', 'SR-assoc/cascade_assoc']]]);
+    expect(model.processes.filter((p) => p.kind === 'signal').map((p) => p.key)).toEqual(['cascade_direct', 'cascade_assoc']);
+    expect(model.floatingNorms.map((f) => f.key)).toEqual(['k_continuum']);
+  });
+
+  it('mixes the two modes differently in its two signal regions, each enriched in one of them', () => {
+    const model = modes();
+    const yieldOf = (region: string, process: string) => total(model.templates.find((t) => t.region === region && t.process === process)!.nominal);
+    const share = (region: string) => yieldOf(region, 'cascade_assoc') / (yieldOf(region, 'cascade_assoc') + yieldOf(region, 'cascade_direct'));
+    expect(share('SR-direct')).toBeLessThan(0.3);
+    expect(share('SR-assoc')).toBeGreaterThan(0.55);
+    expect(model.regions.map((r) => r.role)).toEqual(['signal', 'signal', 'control']);
+  });
+
+  it('has five to eight systematics, some acting on one mode only, and data drawn at strengths 1.1 and 0.8', () => {
+    const model = modes();
+    expect(model.systematics.length).toBeGreaterThanOrEqual(5);
+    expect(model.systematics.length).toBeLessThanOrEqual(8);
+    const modesOf = (s: (typeof model.systematics)[number]) => new Set(s.effects.map((e) => e.process).filter((p) => p.startsWith('cascade_')));
+    expect(model.systematics.filter((s) => modesOf(s).size === 1).length).toBeGreaterThanOrEqual(2);
+    expect(CASCADE_MODES_TRUTH).toEqual({ mu: 1.1, mu_assoc: 0.8 });
+    for (const r of model.regions) expect(r.observed).toHaveLength(r.edges.length - 1);
   });
 });
