@@ -5,6 +5,7 @@ import { Panel } from '../../../components/ui/page';
 import { ImportModel } from './exchange-actions';
 import { FloatingNormsPanel } from './floating-norms-panel';
 import { ModelCsvUpload } from './model-csv-upload';
+import { ParametersOfInterestPanel } from './parameters-of-interest-panel';
 import { useEditor } from './model-editor';
 import { PrefitPanel } from './prefit-panel';
 import { ProcessesPanel } from './processes-panel';
@@ -44,6 +45,7 @@ export function ModelView({ slug, model, canEdit }: { slug: string; model: Model
       <RegionsPanel slug={slug} model={model} canEdit={canEdit} editor={editor} />
       <ProcessesPanel slug={slug} model={model} canEdit={canEdit} editor={editor} />
       {(model.floatingNorms.length > 0 || canEdit) && <FloatingNormsPanel slug={slug} model={model} canEdit={canEdit} editor={editor} />}
+      {model.parametersOfInterest.length > 0 && <ParametersOfInterestPanel model={model} />}
       {model.regions.length > 0 && model.processes.length > 0 && <TemplatesPanel slug={slug} model={model} canEdit={canEdit} editor={editor} />}
       {model.templates.some((t) => model.processes.find((p) => p.key === t.process)?.kind === 'signal') && <SignalHypothesesPanel slug={slug} canEdit={canEdit} editor={editor} />}
 
