@@ -77,6 +77,8 @@ export type ImpactRangeProps = {
   /** a quick estimate from the covariance rather than refits: drawn hollow */
   estimated?: boolean;
   width?: number;
+  /** the parameter of interest the impact is on, as a symbol (μ unless told) */
+  symbol?: string;
 };
 
 /** The glyph's geometry, shared by the table cell and the exported figure. */
@@ -128,9 +130,11 @@ export function ImpactRangeMarks({ p, x0, width, cy, barH = 6 }: { p: ImpactRang
 
 /** The words of a parameter's impact, for a title or a screen reader. */
 export function impactRangeText(p: ImpactRangeProps): string {
+  const m = p.symbol ?? 'μ';
+  const sigma = m === 'μ' ? 'σ_μ' : `σ(${m})`;
   const lines = p.estimated
-    ? [`Quick estimate ρ(μ, θ)·σ_μ from the covariance (no refits): θ raised by σ̂ moves μ by about ${formatSigned(p.up, 4)}, θ lowered by ${formatSigned(p.down, 4)}.`]
-    : [`Δμ with θ raised to θ̂ + σ̂ (filled dot): ${formatSigned(p.up, 4)}`, `Δμ with θ lowered to θ̂ − σ̂ (ring): ${formatSigned(p.down, 4)}`];
+    ? [`Quick estimate ρ(${m}, θ)·${sigma} from the covariance (no refits): θ raised by σ̂ moves ${m} by about ${formatSigned(p.up, 4)}, θ lowered by ${formatSigned(p.down, 4)}.`]
+    : [`Δ${m} with θ raised to θ̂ + σ̂ (filled dot): ${formatSigned(p.up, 4)}`, `Δ${m} with θ lowered to θ̂ − σ̂ (ring): ${formatSigned(p.down, 4)}`];
   if (p.preUp !== undefined || p.preDown !== undefined) lines.push(`Pre-fit, θ at θ̂ ± 1 (the ticks): ${formatSigned(p.preUp ?? null, 4)} / ${formatSigned(p.preDown ?? null, 4)}`);
   if (!p.estimated && (p.up === null || p.down === null)) lines.push('One refit gave no impact (see the convergence warnings).');
   return lines.join('\n');
@@ -141,7 +145,7 @@ export function ImpactRange(p: ImpactRangeProps) {
   const w = p.width ?? 168;
   const h = 16;
   return (
-    <svg width={w} height={h} viewBox={`0 0 ${w} ${h}`} className="block shrink-0" role="img" aria-label={`Δμ from ${formatSigned(p.down, 3)} (θ lowered) to ${formatSigned(p.up, 3)} (θ raised)${p.estimated ? ', estimated' : ''}`}>
+    <svg width={w} height={h} viewBox={`0 0 ${w} ${h}`} className="block shrink-0" role="img" aria-label={`Δ${p.symbol ?? 'μ'} from ${formatSigned(p.down, 3)} (θ lowered) to ${formatSigned(p.up, 3)} (θ raised)${p.estimated ? ', estimated' : ''}`}>
       <title>{impactRangeText(p)}</title>
       <ImpactRangeMarks p={p} x0={0} width={w} cy={h / 2} />
     </svg>

@@ -7,6 +7,7 @@ import { isStronglyPulled } from '../../../lib/fits';
 import { theme } from '../../../lib/palette';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
 import type { Cut, CutLevel, ImpactMode } from '../result-helpers';
+import { MU_WORDS, type PoiWords } from '../poi';
 import type { ImpactRow } from './impact-ranking';
 
 const W = 820;
@@ -41,6 +42,7 @@ export function ImpactFigure({
   below,
   belowShare,
   threshold,
+  words: w = MU_WORDS,
 }: {
   title: string;
   rows: ImpactRow[];
@@ -53,6 +55,8 @@ export function ImpactFigure({
   below: number;
   belowShare: number;
   threshold: number;
+  /** the parameter of interest the impacts are on (μ unless told) */
+  words?: PoiWords;
 }) {
   const ref = useRef<SVGSVGElement>(null);
   const plotH = rows.length * ROW;
@@ -65,8 +69,8 @@ export function ImpactFigure({
     sigmaMu === null
       ? `${rows.length} parameters`
       : level === 1
-        ? `all ${listed} parameters: ${pct(cut.total)} of σ_μ² together`
-        : `${cut.kept} of ${listed} parameters: ${pct(cut.keptShare)} of σ_μ², ${pct(cut.keptShare / cut.total, 0)} of the ${pct(cut.total)} they hold together (cut at ${Math.round(level * 100)} %)`;
+        ? `all ${listed} parameters: ${pct(cut.total)} of ${w.sigma}² together`
+        : `${cut.kept} of ${listed} parameters: ${pct(cut.keptShare)} of ${w.sigma}², ${pct(cut.keptShare / cut.total, 0)} of the ${pct(cut.total)} they hold together (cut at ${Math.round(level * 100)} %)`;
   const plotBottom = TOP + plotH + footer;
   return (
     <ChartFigure title={title} svg={ref}>
@@ -78,12 +82,12 @@ export function ImpactFigure({
         aria-label={`${title}: ${kept}. ${rows.map((r) => `${r.name} ${pct(r.share)}`).join('; ')}. The numbers are in the table above.`}
       >
         <text x={4} y={13} style={{ fontSize: 11, fill: theme.ink }}>
-          {sigmaMu !== null && <tspan fontWeight={600}>σ_μ = ±{formatFixed(sigmaMu, 4)}</tspan>}
+          {sigmaMu !== null && <tspan fontWeight={600}>{w.sigma} = ±{formatFixed(sigmaMu, 4)}</tspan>}
           <tspan dx={sigmaMu !== null ? 8 : 0}>Kept: {kept}</tspan>
         </text>
         {mode === 'quick' && (
           <text x={4} y={26} style={{ fontSize: 10, fill: theme.amber }}>
-            Quick impacts: estimates ρ(μ, θ)·σ_μ from the covariance, no refits
+            Quick impacts: estimates ρ({w.sym}, θ)·{w.sigma} from the covariance, no refits
           </text>
         )}
         <g>
@@ -91,10 +95,10 @@ export function ImpactFigure({
             parameter
           </text>
           <text x={RANGE.x + RANGE.w / 2} y={TOP - 6} textAnchor="middle" style={head}>
-            {mode === 'postfit' ? 'Δμ as θ moves by ±σ̂' : 'Δμ, quick estimate'}
+            {mode === 'postfit' ? `${w.delta} as θ moves by ±σ̂` : `${w.delta}, quick estimate`}
           </text>
           <text x={SHARE.x} y={TOP - 6} style={head}>
-            share of σ_μ²
+            share of {w.sigma}²
           </text>
           <text x={CUM_RIGHT} y={TOP - 6} textAnchor="end" style={head}>
             cumulative
@@ -110,8 +114,8 @@ export function ImpactFigure({
           const cy = TOP + i * ROW + ROW / 2;
           const p =
             mode === 'postfit'
-              ? { up: r.postfitImpact?.up ?? null, down: r.postfitImpact?.down ?? null, preUp: r.prefitImpact?.up ?? null, preDown: r.prefitImpact?.down ?? null, scale }
-              : { up: r.quickImpact, down: r.quickImpact === null ? null : -r.quickImpact, scale, estimated: true };
+              ? { up: r.postfitImpact?.up ?? null, down: r.postfitImpact?.down ?? null, preUp: r.prefitImpact?.up ?? null, preDown: r.prefitImpact?.down ?? null, scale, symbol: w.sym }
+              : { up: r.quickImpact, down: r.quickImpact === null ? null : -r.quickImpact, scale, estimated: true, symbol: w.sym };
           return (
             <g key={r.name}>
               {i % 2 === 1 && <rect x={0} y={cy - ROW / 2} width={W} height={ROW} fill={theme.paper} fillOpacity={0.6} />}
@@ -146,7 +150,7 @@ export function ImpactFigure({
               cut
             </text>
             <text x={RANGE.x} y={TOP + plotH + 13} style={small}>
-              {`${below} more parameter${below === 1 ? '' : 's'} below the cut${belowShare > 0 ? `: ${pct(belowShare)} of σ_μ² together` : ''}`}
+              {`${below} more parameter${below === 1 ? '' : 's'} below the cut${belowShare > 0 ? `: ${pct(belowShare)} of ${w.sigma}² together` : ''}`}
             </text>
           </g>
         )}
@@ -164,11 +168,11 @@ export function ImpactFigure({
           ) : (
             <g transform={`translate(${RANGE.x},${plotBottom + 34})`}>
               <circle cx={3} cy={-3} r={2.6} fill={theme.ink} />
-              <text x={9}>θ raised; the bar runs from −|ρ(μ, θ)·σ_μ| to +|ρ(μ, θ)·σ_μ|</text>
+              <text x={9}>θ raised; the bar runs from −|ρ({w.sym}, θ)·{w.sigma}| to +|ρ({w.sym}, θ)·{w.sigma}|</text>
             </g>
           )}
           <text x={RANGE.x} y={plotBottom + 48}>
-            {`share = s²/σ_μ², s = ${mode === 'postfit' ? '(|Δμ⁺| + |Δμ⁻|)/2' : '|ρ(μ, θ)·σ_μ|'}; shares overlap where parameters are correlated`}
+            {`share = s²/${w.sigma}², s = ${mode === 'postfit' ? `(|${w.delta}⁺| + |${w.delta}⁻|)/2` : `|ρ(${w.sym}, θ)·${w.sigma}|`}; shares overlap where parameters are correlated`}
           </text>
           <text x={RANGE.x} y={plotBottom + 62}>
             {`pull (θ̂ − 0)/1; constraint σ̂/1 (below ${threshold}: over-constrained)`}

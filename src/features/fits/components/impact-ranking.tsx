@@ -6,11 +6,13 @@ import { ConstraintMeter, ImpactRange, PullMeter } from '../../../components/cha
 import { QuestionMarker, type QuestionMark } from '../../../components/status/question-marker';
 import { DataTable, dataColumns } from '../../../components/ui/data-table';
 import { Panel } from '../../../components/ui/page';
+import { SelectField } from '../../../components/ui/field';
 import { SegmentedField } from '../../../components/ui/segmented-field';
 import { diagnosisPath, groupName, isStronglyPulled, STRONG_PULL } from '../../../lib/fits';
 import { theme } from '../../../lib/palette';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
 import { CUT_LEVELS, cutByShare, impactMode, impactSize, labelsOf, rankByImpact, sharesOf, warningsNaming, type Cut, type CutLevel, type ImpactMode } from '../result-helpers';
+import { impactsFor, poiSymbol, type PoiWords } from '../poi';
 import { GroupFilter, groupsOf } from './group-filter';
 import { ImpactFigure } from './impact-figure';
 
@@ -37,11 +39,11 @@ type Review = { marks?: Map<string, QuestionMark>; onRaise?: (name: string) => v
 
 export const pct = (v: number | null | undefined, digits = 1) => (v === null || v === undefined || !Number.isFinite(v) ? '–' : `${(v * 100).toFixed(digits)} %`);
 
-const SHARE_WORDS = {
-  postfit: 'the symmetric post-fit impact s = (|Δμ⁺| + |Δμ⁻|)/2, where Δμ± = μ̂(θ held at θ̂ ± σ̂, the rest refitted) − μ̂',
-  quick: 'the quick impact s = |ρ(μ, θ)·σ_μ| (an estimate from the covariance, no refits), so the share is ρ(μ, θ)²',
+const shareWords = (w: PoiWords) => ({
+  postfit: `the symmetric post-fit impact s = (|${w.delta}⁺| + |${w.delta}⁻|)/2, where ${w.delta}± = ${w.hat}(θ held at θ̂ ± σ̂, the rest refitted) − ${w.hat}`,
+  quick: `the quick impact s = |ρ(${w.sym}, θ)·${w.sigma}| (an estimate from the covariance, no refits), so the share is ρ(${w.sym}, θ)²`,
   none: '',
-} as const;
+});
 
 /** The impact's scale: the largest |Δμ| among the rows, post- and pre-fit. */
 export function impactScale(rows: NuisanceReport[], mode: ImpactMode): number {
@@ -72,14 +74,14 @@ const col = dataColumns<ImpactRow>();
 /** Narrower padding than the shared look: this table is wide, and should fit beside the navigation. */
 const TIGHT = 'px-2!';
 
-function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: number, threshold: number, cutAt: number | null, review: Review) {
-  const columns = columnsFor(slug, fitId, mode, scale, threshold, cutAt, review);
+function makeColumns(slug: string, fitId: number, mode: ImpactMode, scale: number, threshold: number, cutAt: number | null, review: Review, w: PoiWords) {
+  const columns = columnsFor(slug, fitId, mode, scale, threshold, cutAt, review, w);
   for (const c of columns) c.meta = { ...c.meta, headerClass: `${c.meta?.headerClass ?? ''} ${TIGHT}` };
   return columns;
 }
 
-function columnsFor(slug: string, fitId: number, mode: ImpactMode, scale: number, threshold: number, cutAt: number | null, review: Review) {
-  const shareDefinition = `Share of σ_μ²: s²/σ_μ², with s ${SHARE_WORDS[mode]}. Shares overlap where parameters are correlated, so they need not add up to σ_syst².`;
+function columnsFor(slug: string, fitId: number, mode: ImpactMode, scale: number, threshold: number, cutAt: number | null, review: Review, w: PoiWords) {
+  const shareDefinition = `Share of ${w.sigma}²: s²/${w.sigma}², with s ${shareWords(w)[mode]}. Shares overlap where parameters are correlated, so they need not add up to σ_syst².`;
   return col.columns([
     col.accessor('name', {
       header: 'Parameter',
@@ -90,7 +92,7 @@ function columnsFor(slug: string, fitId: number, mode: ImpactMode, scale: number
         const mark = review.marks?.get(r.name);
         return (
           <span className="flex items-center gap-2">
-            <span className="w-5 shrink-0 text-right text-xs text-ink-muted tabular-nums" title={mode === 'none' ? 'Row number' : `Rank ${r.position} by ${mode === 'postfit' ? 'post-fit impact max(|Δμ⁺|, |Δμ⁻|)' : 'quick impact |ρ(μ, θ)·σ_μ|'}, 1 = largest`}>
+            <span className="w-5 shrink-0 text-right text-xs text-ink-muted tabular-nums" title={mode === 'none' ? 'Row number' : `Rank ${r.position} by ${mode === 'postfit' ? `post-fit impact max(|${w.delta}⁺|, |${w.delta}⁻|)` : `quick impact |ρ(${w.sym}, θ)·${w.sigma}|`}, 1 = largest`}>
               {r.position}
             </span>
             <span className="flex min-w-0 flex-col leading-tight">
@@ -133,7 +135,7 @@ function columnsFor(slug: string, fitId: number, mode: ImpactMode, scale: number
             id: 'range',
             header: () => (
               <span className="flex flex-col leading-tight">
-                <span>{mode === 'postfit' ? 'Δμ as θ moves by ±σ̂' : 'Δμ, quick estimate'}</span>
+                <span>{mode === 'postfit' ? `${w.delta} as θ moves by ±σ̂` : `${w.delta}, quick estimate`}</span>
                 <span className="flex w-[152px] justify-between text-2xs font-normal text-ink-muted tabular-nums" aria-hidden>
                   <span>−{formatFixed(scale, 3)}</span>
                   <span>0</span>
@@ -146,15 +148,15 @@ function columnsFor(slug: string, fitId: number, mode: ImpactMode, scale: number
             meta: {
               headerTitle:
                 mode === 'postfit'
-                  ? 'The range of μ̂ − μ̂₀ as θ is held from θ̂ − σ̂ (ring) to θ̂ + σ̂ (filled dot), the rest refitted; ticks: the same with θ̂ ± 1 (pre-fit). Sorts by max(|Δμ⁺|, |Δμ⁻|), the rank.'
-                  : 'The estimate ρ(μ, θ)·σ_μ from the covariance, no refits. Sorts by its size, the rank.',
+                  ? `The range of ${w.hat} − ${w.hat}₀ as θ is held from θ̂ − σ̂ (ring) to θ̂ + σ̂ (filled dot), the rest refitted; ticks: the same with θ̂ ± 1 (pre-fit). Sorts by max(|${w.delta}⁺|, |${w.delta}⁻|), the rank.`
+                  : `The estimate ρ(${w.sym}, θ)·${w.sigma} from the covariance, no refits. Sorts by its size, the rank.`,
             },
             cell: (c) => {
               const r = c.row.original;
               return mode === 'postfit' ? (
-                <ImpactRange up={r.postfitImpact?.up ?? null} down={r.postfitImpact?.down ?? null} preUp={r.prefitImpact?.up ?? null} preDown={r.prefitImpact?.down ?? null} scale={scale} width={152} />
+                <ImpactRange up={r.postfitImpact?.up ?? null} down={r.postfitImpact?.down ?? null} preUp={r.prefitImpact?.up ?? null} preDown={r.prefitImpact?.down ?? null} scale={scale} width={152} symbol={w.sym} />
               ) : (
-                <ImpactRange up={r.quickImpact} down={r.quickImpact === null ? null : -r.quickImpact} scale={scale} width={152} estimated />
+                <ImpactRange up={r.quickImpact} down={r.quickImpact === null ? null : -r.quickImpact} scale={scale} width={152} estimated symbol={w.sym} />
               );
             },
           }),
@@ -166,9 +168,9 @@ function columnsFor(slug: string, fitId: number, mode: ImpactMode, scale: number
             meta: {
               numeric: true,
               nowrap: true,
-              headerTitle: mode === 'postfit' ? 'The symmetric impact s = (|Δμ⁺| + |Δμ⁻|)/2 of the post-fit refits, in units of μ' : 'The quick impact |ρ(μ, θ)·σ_μ|, in units of μ',
+              headerTitle: mode === 'postfit' ? `The symmetric impact s = (|${w.delta}⁺| + |${w.delta}⁻|)/2 of the post-fit refits, in units of ${w.sym}` : `The quick impact |ρ(${w.sym}, θ)·${w.sigma}|, in units of ${w.sym}`,
               cellTitle: (r) =>
-                r.partial ? 'Only one side of the post-fit impact exists (the other refit gave none): s is that side' : mode === 'postfit' ? 's = (|Δμ⁺| + |Δμ⁻|)/2, in units of μ' : '|ρ(μ, θ)·σ_μ|, in units of μ',
+                r.partial ? 'Only one side of the post-fit impact exists (the other refit gave none): s is that side' : mode === 'postfit' ? `s = (|${w.delta}⁺| + |${w.delta}⁻|)/2, in units of ${w.sym}` : `|ρ(${w.sym}, θ)·${w.sigma}|, in units of ${w.sym}`,
             },
             cell: (c) => (
               <span className="text-xs">
@@ -179,7 +181,7 @@ function columnsFor(slug: string, fitId: number, mode: ImpactMode, scale: number
           }),
           col.accessor((r) => r.share ?? undefined, {
             id: 'share',
-            header: 'Share of σ_μ²',
+            header: `Share of ${w.sigma}²`,
             sortFn: 'basic',
             sortUndefined: 'last',
             meta: { numeric: true, nowrap: true, headerTitle: shareDefinition, cellTitle: shareDefinition },
@@ -192,8 +194,8 @@ function columnsFor(slug: string, fitId: number, mode: ImpactMode, scale: number
             sortUndefined: 'last',
             meta: {
               nowrap: true,
-              headerTitle: 'The shares of σ_μ² of this parameter and of every one ranked above it in the list. Meter: 0 to 100 % of σ_μ², the teal mark is the cut.',
-              cellTitle: (r) => `Parameters ranked 1 to ${r.position} in this list hold ${pct(r.cumulative)} of σ_μ² together`,
+              headerTitle: `The shares of ${w.sigma}² of this parameter and of every one ranked above it in the list. Meter: 0 to 100 % of ${w.sigma}², the teal mark is the cut.`,
+              cellTitle: (r) => `Parameters ranked 1 to ${r.position} in this list hold ${pct(r.cumulative)} of ${w.sigma}² together`,
             },
             cell: (c) =>
               c.row.original.cumulative === null ? (
@@ -301,13 +303,13 @@ function movedOrConstrained(rows: ImpactRow[], threshold: number) {
 const levelWords = (level: CutLevel) => (level === 1 ? 'all' : `${Math.round(level * 100)} %`);
 
 /** What the cut keeps, in one sentence. */
-function CutSummary({ cut, listed, level, group }: { cut: Cut; listed: number; level: CutLevel; group: string | null }) {
+function CutSummary({ cut, listed, level, group, w }: { cut: Cut; listed: number; level: CutLevel; group: string | null; w: PoiWords }) {
   const whose = group === null ? 'the listed parameters' : `the parameters of ${group}`;
   if (cut.total <= 0) return <>{listed} parameter{listed === 1 ? '' : 's'} listed.</>;
   if (level === 1)
     return (
       <>
-        All <strong>{listed}</strong> parameter{listed === 1 ? '' : 's'} listed: together <strong>{pct(cut.total)}</strong> of σ_μ².
+        All <strong>{listed}</strong> parameter{listed === 1 ? '' : 's'} listed: together <strong>{pct(cut.total)}</strong> of {w.sigma}².
       </>
     );
   return (
@@ -315,7 +317,7 @@ function CutSummary({ cut, listed, level, group }: { cut: Cut; listed: number; l
       <strong>
         {cut.kept} of {listed}
       </strong>{' '}
-      parameters hold <strong>{pct(cut.keptShare)}</strong> of σ_μ²: {pct(cut.keptShare / cut.total, 0)} of the {pct(cut.total)} that {whose} hold together (the cut at {levelWords(level)} falls at {pct(cut.threshold)}).
+      parameters hold <strong>{pct(cut.keptShare)}</strong> of {w.sigma}²: {pct(cut.keptShare / cut.total, 0)} of the {pct(cut.total)} that {whose} hold together (the cut at {levelWords(level)} falls at {pct(cut.threshold)}).
     </>
   );
 }
@@ -328,8 +330,30 @@ function CutSummary({ cut, listed, level, group }: { cut: Cut; listed: number; l
  * with the pre-fit range as ticks, its share and the running share, and its pull and constraint
  * as numbers with a meter each. A click on a row opens its diagnosis.
  */
-export function ImpactRanking({ slug, fitId, fitLabel, result, marks, onRaise }: { slug: string; fitId: number; fitLabel?: string; result: FitResultHead } & Review) {
+export function ImpactRanking({
+  slug,
+  fitId,
+  fitLabel,
+  result: full,
+  poi = 'mu',
+  onPoiChange,
+  marks,
+  onRaise,
+}: {
+  slug: string;
+  fitId: number;
+  fitLabel?: string;
+  result: FitResultHead;
+  /** the parameter of interest the impacts are on (its key; μ is "mu") */
+  poi?: string;
+  /** offered when the result has several parameters of interest */
+  onPoiChange?: (poi: string) => void;
+} & Review) {
   const navigate = useNavigate();
+  const on = useMemo(() => impactsFor(full, poi), [full, poi]);
+  const result = on.result;
+  const w = on.words;
+  const pois = full.poi?.list ?? [];
   const mode = impactMode(result);
   const threshold = result.options.overConstraintThreshold;
   const mu = result.summary?.mu;
@@ -363,7 +387,7 @@ export function ImpactRanking({ slug, fitId, fitLabel, result, marks, onRaise }:
 
   const scale = useMemo(() => impactScale(ranked, mode), [ranked, mode]);
   const cutAt = mode !== 'none' && sigmaMu !== null && level < 1 ? cut.threshold : null;
-  const columns = useMemo(() => makeColumns(slug, fitId, mode, scale, threshold, cutAt, { marks, onRaise }), [slug, fitId, mode, scale, threshold, cutAt, marks, onRaise]);
+  const columns = useMemo(() => makeColumns(slug, fitId, mode, scale, threshold, cutAt, { marks, onRaise }, w), [slug, fitId, mode, scale, threshold, cutAt, marks, onRaise, w]);
   const held = result.nuisance.filter((n) => n.fixed);
   const below = listed.slice(cut.kept);
   const belowShare = below.reduce((s, r) => s + (r.share ?? 0), 0);
@@ -372,31 +396,47 @@ export function ImpactRanking({ slug, fitId, fitLabel, result, marks, onRaise }:
 
   return (
     <div className="flex flex-col gap-3">
+      {pois.length > 1 && onPoiChange && (
+        <div className="flex flex-wrap items-end gap-x-4 gap-y-1">
+          <SelectField label="Impacts on" value={on.poi} onChange={(e) => onPoiChange(e.target.value)} className="w-72">
+            {pois.map((p) => (
+              <option key={p.name} value={p.name}>
+                {p.label} ({poiSymbol(p.name)})
+              </option>
+            ))}
+          </SelectField>
+          <p className="pb-1.5 text-xs text-ink-muted">
+            {on.poi === 'mu'
+              ? `Each parameter of interest has its own ranking: the same refits, read for ${pois.length > 2 ? 'each one' : 'the other one'} instead of μ.`
+              : `${w.hat} = ${formatFixed(on.result.summary?.mu.value, 3)}: every Δ below is the change in ${w.sym}, and the shares are of ${w.sigma}². The grouped impacts and the statistical part are μ’s alone.`}
+          </p>
+        </div>
+      )}
       {mode === 'quick' && (
         <p role="note" className="rounded-md border border-amber/40 bg-amber-soft/60 px-3 py-2 text-sm text-amber-ink">
-          <strong>Quick impacts:</strong> this fit ran no refits. The ranking, the ranges and the shares use the estimate ρ(μ, θ)·σ_μ from the covariance, so each share is
-          ρ(μ, θ)²; there is no pre-fit range. Run the fit with full impacts for the real Δμ.
+          <strong>Quick impacts:</strong> this fit ran no refits. The ranking, the ranges and the shares use the estimate ρ({w.sym}, θ)·{w.sigma} from the covariance, so each share is
+          ρ({w.sym}, θ)²; there is no pre-fit range. Run the fit with full impacts for the real {w.delta}.
         </p>
       )}
       {mode === 'none' && <p className="text-sm text-ink-muted">This fit was run without impacts: the table lists pulls and constraints only, by name.</p>}
-      {mode !== 'none' && sigmaMu === null && <p className="text-sm text-ink-muted">μ has no uncertainty in this fit (it was held), so no share of σ_μ² can be given; the parameters are ranked by their impact alone.</p>}
+      {mode !== 'none' && sigmaMu === null && <p className="text-sm text-ink-muted">{w.sym} has no uncertainty in this fit (it was held), so no share of {w.sigma}² can be given; the parameters are ranked by their impact alone.</p>}
 
       {withShares && (
         <p className="text-sm text-ink-soft">
-          <span title="σ_μ = √V_μμ, in units of μ">
-            σ_μ = <strong className="tabular-nums">±{formatFixed(sigmaMu, 4)}</strong>
+          <span title={`${w.sigma} = √${w.variance}, in units of ${w.sym}`}>
+            {w.sigma} = <strong className="tabular-nums">±{formatFixed(sigmaMu, 4)}</strong>
           </span>
           {statShare !== null && (
             <>
               {' · '}
-              <span title="σ_stat²/σ_μ²: every θ and γ held, μ and the normalisations free">
-                the data’s statistics alone: <strong className="tabular-nums">{pct(statShare)}</strong> of σ_μ²
+              <span title={`σ_stat²/${w.sigma}²: every θ and γ held, ${w.sym} and the normalisations free`}>
+                the data’s statistics alone: <strong className="tabular-nums">{pct(statShare)}</strong> of {w.sigma}²
               </span>
             </>
           )}
           {' · '}
-          <span title="Σ s²/σ_μ² over the free nuisance parameters; correlated parameters overlap, so this need not equal σ_syst²/σ_μ²">
-            the {ranked.length} free nuisance parameters: <strong className="tabular-nums">{pct(sharesOf(ranked, mode, sigmaMu).reduce((s, r) => s + (r.share ?? 0), 0))}</strong> of σ_μ² by their
+          <span title={`Σ s²/${w.sigma}² over the free nuisance parameters; correlated parameters overlap, so this need not equal σ_syst²/${w.sigma}²`}>
+            the {ranked.length} free nuisance parameters: <strong className="tabular-nums">{pct(sharesOf(ranked, mode, sigmaMu).reduce((s, r) => s + (r.share ?? 0), 0))}</strong> of {w.sigma}² by their
             shares
           </span>
         </p>
@@ -415,7 +455,7 @@ export function ImpactRanking({ slug, fitId, fitLabel, result, marks, onRaise }:
       </div>
 
       <div role="status" aria-label="What the cut keeps" className="flex flex-col gap-0.5 text-sm">
-        <p>{withShares ? <CutSummary cut={cut} listed={listed.length} level={level} group={group} /> : <>{listed.length} free nuisance parameters listed.</>}</p>
+        <p>{withShares ? <CutSummary cut={cut} listed={listed.length} level={level} group={group} w={w} /> : <>{listed.length} free nuisance parameters listed.</>}</p>
         {rows.length > 0 && <p className="text-ink-soft">{movedOrConstrained(rows, threshold)}</p>}
       </div>
 
@@ -436,7 +476,7 @@ export function ImpactRanking({ slug, fitId, fitLabel, result, marks, onRaise }:
         {below.length > 0 && (
           <span>
             Below the cut: {below.length} parameter{below.length === 1 ? '' : 's'}
-            {belowShare > 0 ? `, together ${pct(belowShare)} of σ_μ²` : ''}.{' '}
+            {belowShare > 0 ? `, together ${pct(belowShare)} of ${w.sigma}²` : ''}.{' '}
             <button type="button" onClick={() => setLevel(1)} className="rounded px-1 font-medium text-teal-ink hover:bg-teal-soft hover:underline">
               Show all {listed.length}
             </button>
@@ -456,18 +496,18 @@ export function ImpactRanking({ slug, fitId, fitLabel, result, marks, onRaise }:
           <ul className="mt-1.5 flex list-disc flex-col gap-1 pl-4">
             {mode === 'postfit' ? (
               <li>
-                <strong>Δμ as θ moves by ±σ̂</strong>: the bar covers what μ̂ does while θ is held between θ̂ − σ̂ (ring) and θ̂ + σ̂ (filled dot), everything else refitted. The two upright
-                ticks are the same with θ̂ ± 1, the pre-fit range: ticks well outside the bar mean the data narrowed what this parameter can do to μ. Common scale ±{formatFixed(scale, 3)} in μ.
+                <strong>{w.delta} as θ moves by ±σ̂</strong>: the bar covers what {w.hat} does while θ is held between θ̂ − σ̂ (ring) and θ̂ + σ̂ (filled dot), everything else refitted. The two upright
+                ticks are the same with θ̂ ± 1, the pre-fit range: ticks well outside the bar mean the data narrowed what this parameter can do to {w.sym}. Common scale ±{formatFixed(scale, 3)} in {w.sym}.
               </li>
             ) : (
               <li>
-                <strong>Δμ, quick estimate</strong>: the hollow bar runs from −|ρσ_μ| to +|ρσ_μ|, the filled dot where θ raised lands. Common scale ±{formatFixed(scale, 3)} in μ.
+                <strong>{w.delta}, quick estimate</strong>: the hollow bar runs from −|ρ{w.sigma}| to +|ρ{w.sigma}|, the filled dot where θ raised lands. Common scale ±{formatFixed(scale, 3)} in {w.sym}.
               </li>
             )}
             {sigmaMu !== null && (
               <li>
-                <strong>Share of σ_μ²</strong>: s²/σ_μ², with s {SHARE_WORDS[mode]}. <strong>Cumulative</strong>: the shares from rank 1 down to the row. The cut keeps the leading rows until
-                their running share reaches the chosen part of what the listed parameters hold together; σ_μ² also holds the data’s statistics, and correlated parameters overlap.
+                <strong>Share of {w.sigma}²</strong>: s²/{w.sigma}², with s {shareWords(w)[mode]}. <strong>Cumulative</strong>: the shares from rank 1 down to the row. The cut keeps the leading rows until
+                their running share reaches the chosen part of what the listed parameters hold together; {w.sigma}² also holds the data’s statistics, and correlated parameters overlap.
               </li>
             )}
             <li>
@@ -481,7 +521,7 @@ export function ImpactRanking({ slug, fitId, fitLabel, result, marks, onRaise }:
       {mode !== 'none' && rows.length > 0 && (
         <Panel>
           <ImpactFigure
-            title={`Impact ranking${fitLabel ? `, ${fitLabel}` : ''}`}
+            title={`Impact ranking${on.poi === 'mu' ? '' : ` on ${on.label} (${w.sym})`}${fitLabel ? `, ${fitLabel}` : ''}`}
             rows={rows}
             mode={mode}
             scale={scale}
@@ -492,6 +532,7 @@ export function ImpactRanking({ slug, fitId, fitLabel, result, marks, onRaise }:
             below={below.length}
             belowShare={belowShare}
             threshold={threshold}
+            words={w}
           />
         </Panel>
       )}

@@ -1,9 +1,11 @@
 import { useEffect, useRef, useState } from 'react';
+import { useSearchParams } from 'react-router';
 import type { FitDetail, FitResultHead } from '@shared/schemas/fits';
 import { Panel } from '../../../../components/ui/page';
 import { fitName } from '../../../../lib/fits';
 import { useCan } from '../../../../features/analyses/use-can';
 import { ImpactRanking } from '../../../../features/fits/components/impact-ranking';
+import { chosenPoi } from '../../../../features/fits/poi';
 import { PullsView } from '../../../../features/fits/components/pulls-view';
 import { RaiseQuestionForm } from '../../../../features/questions/components/raise-question-form';
 import { useQuestionMarks } from '../../../../features/questions/use-question-marks';
@@ -13,6 +15,19 @@ export function ImpactsWithQuestions({ slug, fit, result }: { slug: string; fit:
   const marks = useQuestionMarks(slug);
   const mayRaise = useCan(slug)('question.raise');
   const [raising, setRaising] = useState<string | null>(null);
+  // the parameter of interest the ranking is on lives in the address (?poi=key), so a link opens the same view
+  const [params, setParams] = useSearchParams();
+  const poi = chosenPoi(result, params.get('poi'));
+  const choosePoi = (name: string) =>
+    setParams(
+      (p) => {
+        const next = new URLSearchParams(p);
+        if (name === 'mu') next.delete('poi');
+        else next.set('poi', name);
+        return next;
+      },
+      { replace: true },
+    );
   const panel = useRef<HTMLDivElement>(null);
   // The form opens above the table: the focus moves into it, and back to the row's button when it
   // closes (found again by name: raising a question redraws the table's rows).
@@ -36,7 +51,7 @@ export function ImpactsWithQuestions({ slug, fit, result }: { slug: string; fit:
           </Panel>
         </div>
       )}
-      <ImpactRanking slug={slug} fitId={fit.id} fitLabel={fitName(fit)} result={result} marks={marks} onRaise={mayRaise ? setRaising : undefined} />
+      <ImpactRanking slug={slug} fitId={fit.id} fitLabel={fitName(fit)} result={result} poi={poi} onPoiChange={choosePoi} marks={marks} onRaise={mayRaise ? setRaising : undefined} />
     </div>
   );
 }
