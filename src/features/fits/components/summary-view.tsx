@@ -5,6 +5,7 @@ import { DataTable, dataColumns } from '../../../components/ui/data-table';
 import { Panel } from '../../../components/ui/page';
 import { decimalsFor, formatFixed, formatProbability, formatSigma, formatSigned } from '../../../lib/stats-format';
 import { ConvergenceReport } from './convergence';
+import { PoiPanel } from './poi-panel';
 
 type Parameter = FitResultHead['parameters'][number];
 
@@ -145,7 +146,9 @@ export function SummaryView({ result }: { result: FitResultHead }) {
         </Panel>
       </div>
 
-      {result.scan && result.scan.points.length > 1 && (
+      {result.poi && result.poi.list.length > 0 && <PoiPanel result={result} />}
+
+      {!result.poi?.list.length && result.scan && result.scan.points.length > 1 && (
         <Panel>
           <ScanChart scan={result.scan} parameterLabel={result.scan.parameter === 'mu' ? 'μ' : result.scan.parameter} />
         </Panel>
