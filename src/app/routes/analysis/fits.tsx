@@ -27,6 +27,7 @@ function useFitChoices(slug: string): FitChoices {
     systematics,
     groups: groups?.groups.filter((g) => g.entries.length > 0).map((g) => g.name) ?? [],
     regions: model?.regions.map((r) => ({ key: r.key, label: r.label, role: r.role })) ?? [],
+    pois: model?.parametersOfInterest?.map((p) => ({ key: p.key, label: p.label })) ?? [],
   };
 }
 

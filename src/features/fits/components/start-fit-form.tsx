@@ -36,6 +36,53 @@ function Radio({ name, value, checked, onChange, disabled, label, hint }: { name
 const noChoices: FitChoices = { parameters: [], systematics: [], groups: [], regions: [] };
 
 /**
+ * The pair of parameters of interest whose 2D contour the fit draws: two selects over μ and the
+ * declared ones, each with "none". Disabled, with the reason, where the server would refuse it.
+ */
+function ContourFields({
+  pois,
+  a,
+  b,
+  onChange,
+  refused,
+  error,
+}: {
+  pois: { key: string; label: string }[];
+  a: string;
+  b: string;
+  onChange: (a: string, b: string) => void;
+  refused: string | null;
+  error: string | undefined;
+}) {
+  const hintId = useId();
+  const all = [{ key: 'mu', label: 'signal strength' }, ...pois];
+  const options = (other: string) =>
+    all.map((p) => (
+      <option key={p.key} value={p.key} disabled={p.key === other}>
+        {p.label} ({p.key === 'mu' ? 'μ' : p.key})
+      </option>
+    ));
+  return (
+    <fieldset className="flex flex-col gap-2" disabled={!!refused} aria-describedby={hintId}>
+      <legend className="mb-1 text-xs font-semibold text-ink-soft">Contour of two parameters of interest</legend>
+      <div className="grid grid-cols-2 gap-2">
+        <SelectField label="First (across)" value={refused ? '' : a} onChange={(e) => onChange(e.target.value, b === e.target.value ? '' : b)} error={error}>
+          <option value="">none</option>
+          {options(b)}
+        </SelectField>
+        <SelectField label="Second (up)" value={refused ? '' : b} onChange={(e) => onChange(a, e.target.value)}>
+          <option value="">none</option>
+          {options(a)}
+        </SelectField>
+      </div>
+      <p id={hintId} className="text-xs text-ink-muted">
+        {refused ?? 'Optional. Which pairs of the two values the data allow together, at 68.27 % and 95 %: a grid of fits with both held, the rest refitted. Takes longer.'}
+      </p>
+    </fieldset>
+  );
+}
+
+/**
  * Start a fit on a frozen version. While the analysis is blinded the observed data may be fitted
  * in the control regions only, or in every region with μ hidden; the choices say so, and the
  * server, which decides, names the field of anything it refuses.
@@ -67,6 +114,8 @@ export function StartFitForm({
   const [scan, setScan] = useState(true);
   const [limit, setLimit] = useState(false);
   const [expected, setExpected] = useState(true);
+  const [contourA, setContourA] = useState('');
+  const [contourB, setContourB] = useState('');
   const [variant, setVariant] = useState<VariantDraft>(emptyVariant);
   const [problems, setProblems] = useState<DraftProblems>({});
   const [localError, setLocalError] = useState<string | null>(null);
@@ -77,6 +126,10 @@ export function StartFitForm({
   const noMu = effectiveDataset === 'control' || variant.hiddenMu;
   const parsedVariant = fitOptionsSchema.safeParse(variantOptions(variant).options);
   const variantWords = parsedVariant.success ? variantInWords(parsedVariant.data) : ['being edited'];
+  const pois = choices.pois ?? [];
+  // the server refuses a contour when μ is held (control regions only) or hidden
+  const contourRefused = effectiveDataset === 'control' ? 'Not for a fit of the control regions alone: μ is held there.' : variant.hiddenMu ? 'Not with μ hidden: a contour is computed from μ̂.' : null;
+  const contour: [string, string] | null = !contourRefused && contourA && contourB && contourA !== contourB ? [contourA, contourB] : null;
 
   if (versions.length === 0) return <p className="text-sm text-ink-muted">Freeze a model version first: a fit always runs on a frozen version, so its result can be reopened exactly.</p>;
 
@@ -110,12 +163,17 @@ export function StartFitForm({
           limit: noMu ? false : limit,
           expected,
           overConstraintThreshold,
+          ...(contour ? { contour } : {}),
         };
+        if (pois.length && !contourRefused && (contourA || contourB) && !contour) {
+          setLocalError('Choose two different parameters of interest for the contour, or “none”.');
+          return;
+        }
         start.mutate({ version: chosen, label: label.trim(), options }, {
             onSuccess: (fit) => onStarted?.(fit),
             // a refusal of a variant field opens the section that holds it
             onError: (error) => {
-              if (isApiRequestError(error) && error.issues.some((i) => i.path[0] === 'options' && !['dataset', 'asimovMu', 'controlOnly', 'impacts', 'scan', 'limit', 'expected'].includes(String(i.path[1]))))
+              if (isApiRequestError(error) && error.issues.some((i) => i.path[0] === 'options' && !['dataset', 'asimovMu', 'controlOnly', 'impacts', 'scan', 'limit', 'expected', 'contour'].includes(String(i.path[1]))))
                 setVariantOpen(true);
             },
           });
@@ -246,6 +304,20 @@ export function StartFitForm({
         />
         <CheckboxField label="Expected significance" checked={expected} onChange={(e) => setExpected(e.target.checked)} hint="Z on the pre-fit Asimov dataset at μ = 1." />
       </fieldset>
+
+      {pois.length > 0 && (
+        <ContourFields
+          pois={pois}
+          a={contourA}
+          b={contourB}
+          onChange={(a, b) => {
+            setContourA(a);
+            setContourB(b);
+          }}
+          refused={contourRefused}
+          error={issueAt(start.error, ['options', 'contour'])}
+        />
+      )}
 
       <p className="text-xs text-ink-muted">
         Nuisance parameters whose post-fit width falls below {overConstraintThreshold} of their prior will be flagged as over-constrained (the analysis's setting).

@@ -12,6 +12,8 @@ export type FitChoices = {
   systematics: string[];
   groups: string[];
   regions: { key: string; label: string; role: string }[];
+  /** the parameters of interest the model declares besides μ (none: μ is the only one) */
+  pois?: { key: string; label: string }[];
 };
 
 const input =
