@@ -126,3 +126,63 @@ export function overview(role: MemberRole, blinding: AnalysisOverview['analysis'
     openQuestions: 0,
   };
 }
+
+/**
+ * The small result with a second parameter of interest, mu_assoc (label "Associated strength"):
+ * μ̂ = 1.2 ± 0.3 and mu_assoc = 0.8 ± 0.5 with ρ = −0.42, each with its own impacts (lumi moves
+ * mu_assoc most, where theory_scale moves μ most), a scan of mu_assoc, and their contour.
+ */
+export function twoPoiResult(overrides: Partial<FitResult> = {}): FitResult {
+  const base = convergedResult();
+  const ellipse = (q: number, n = 24) => Array.from({ length: n + 1 }, (_, i) => [1.2 + 0.3 * Math.sqrt(q) * Math.cos((2 * Math.PI * i) / n), 0.8 + 0.5 * Math.sqrt(q) * Math.sin((2 * Math.PI * i) / n)] as [number, number]);
+  const grid = (lo: number, hi: number, n: number) => Array.from({ length: n }, (_, i) => lo + ((hi - lo) * i) / (n - 1));
+  return {
+    ...base,
+    options: { ...base.options, contour: ['mu', 'mu_assoc'] },
+    poi: {
+      list: [
+        { name: 'mu', label: 'signal strength', value: 1.2, fixed: false, error: 0.3, interval68: { low: 0.92, high: 1.53 }, interval95: { low: 0.65, high: 1.88 }, scan: null, impacts: null },
+        {
+          name: 'mu_assoc',
+          label: 'Associated strength',
+          value: 0.8,
+          fixed: false,
+          error: 0.5,
+          interval68: { low: 0.31, high: 1.32 },
+          interval95: { low: -0.2, high: null },
+          scan: {
+            parameter: 'mu_assoc',
+            failure: null,
+            bestFit: 0.8,
+            error: 0.5,
+            points: [-0.2, 0.3, 0.8, 1.3, 1.8].map((value) => ({ value, q: ((value - 0.8) / 0.5) ** 2 })),
+            crossings68: { low: 0.31, high: 1.32 },
+            crossings95: { low: -0.2, high: null },
+          },
+          impacts: [
+            { name: 'jes', quickImpact: 0.01, postfitImpact: { up: 0.02, down: -0.02 }, prefitImpact: { up: 0.03, down: -0.03 }, rank: 3 },
+            { name: 'lumi', quickImpact: 0.2, postfitImpact: { up: 0.25, down: -0.24 }, prefitImpact: { up: 0.27, down: -0.26 }, rank: 1 },
+            { name: 'theory_scale', quickImpact: 0.05, postfitImpact: { up: 0.06, down: -0.05 }, prefitImpact: { up: 0.07, down: -0.06 }, rank: 2 },
+            { name: 'jes_flavour', quickImpact: null, postfitImpact: null, prefitImpact: null, rank: null },
+          ],
+        },
+      ],
+      correlation: { names: ['mu', 'mu_assoc'], values: [1, -0.42, -0.42, 1] },
+    },
+    contour: {
+      parameters: ['mu', 'mu_assoc'],
+      failure: null,
+      bestFit: [1.2, 0.8],
+      errors: [0.3, 0.5],
+      a: grid(0.2, 2.2, 11),
+      b: grid(-1, 2.6, 11),
+      q: grid(0.2, 2.2, 11).map(() => grid(-1, 2.6, 11).map(() => 1)),
+      levels: [
+        { cl: 0.6827, q: 2.3, lines: [ellipse(2.3)] },
+        { cl: 0.95, q: 5.99, lines: [ellipse(5.99)] },
+      ],
+      points: { converged: 119, failed: 2 },
+    },
+    ...overrides,
+  };
+}
