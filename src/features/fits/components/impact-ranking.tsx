@@ -398,7 +398,7 @@ export function ImpactRanking({
     <div className="flex flex-col gap-3">
       {pois.length > 1 && onPoiChange && (
         <div className="flex flex-wrap items-end gap-x-4 gap-y-1">
-          <SelectField label="Impacts on" value={on.poi} onChange={(e) => onPoiChange(e.target.value)} className="w-72">
+          <SelectField label="Impacts on" value={on.poi} onChange={(e) => onPoiChange(e.target.value)} className="w-full max-w-sm">
             {pois.map((p) => (
               <option key={p.name} value={p.name}>
                 {p.label} ({poiSymbol(p.name)})

@@ -157,6 +157,7 @@ export function PoiPanel({ result }: { result: FitResultHead }) {
     return scan ? [{ p, scan }] : [];
   });
   const contour = result.contour;
+  const showContour = !!contour && contour.parameters.every((n) => byName.has(n));
   const axis = (name: string) => ({ name, label: byName.get(name)?.label ?? name, symbol: poiSymbol(name) });
   return (
     <Panel title="Parameters of interest">
@@ -165,14 +166,14 @@ export function PoiPanel({ result }: { result: FitResultHead }) {
           This model fits {section.list.length} signal strengths at once, each multiplying its own signal templates. Each row is one of them, with every other parameter fitted
           alongside; the intervals are from each one’s own profile likelihood.
         </p>
-        <div className="grid gap-4 xl:grid-cols-[minmax(0,1fr)_auto]">
-          <DataTable columns={columns} data={section.list} getRowId={(p) => p.name} rowHeader="name" label="Parameters of interest" frame="plain" />
+        <DataTable columns={columns} data={section.list} getRowId={(p) => p.name} rowHeader="name" label="Parameters of interest" frame="plain" />
+        <div className={`grid gap-x-6 gap-y-4 ${showContour ? 'xl:grid-cols-[minmax(0,46rem)_minmax(14rem,1fr)]' : ''}`}>
+          {showContour && <ContourChart contour={contour} axes={[axis(contour.parameters[0]), axis(contour.parameters[1])]} />}
           <div className="flex flex-col gap-1">
-            <h3 className="text-xs font-semibold text-ink-soft">How they move together</h3>
+            <h3 className="text-sm font-semibold text-ink">How they move together</h3>
             <PoiCorrelation section={section} />
           </div>
         </div>
-        {contour && contour.parameters.every((n) => byName.has(n)) && <ContourChart contour={contour} axes={[axis(contour.parameters[0]), axis(contour.parameters[1])]} />}
         {scans.length > 0 && (
           <div className="grid gap-4 xl:grid-cols-2">
             {scans.map(({ p, scan }) => (
