@@ -3,7 +3,7 @@ import { afterEach, describe, expect, it, vi } from 'vitest';
 import { cleanup, render, screen, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { createMemoryRouter, RouterProvider, useSearchParams } from 'react-router';
-import type { FitResult } from '@shared/schemas/fit';
+import { fitOptionsSchema, type FitResult } from '@shared/schemas/fit';
 import type { ModelVersion } from '@shared/schemas/fits';
 import { ContourChart, clWords, contourLevelStyle } from '../../src/components/charts/contour-chart';
 import { ImpactRanking } from '../../src/features/fits/components/impact-ranking';
@@ -12,6 +12,7 @@ import { StartFitForm } from '../../src/features/fits/components/start-fit-form'
 import { SummaryView } from '../../src/features/fits/components/summary-view';
 import { chosenPoi, impactsFor, MU_WORDS, poiCorrelation, poiSymbol, poiWords } from '../../src/features/fits/poi';
 import { ImpactsWithQuestions } from '../../src/app/routes/analysis/fit-views/questions';
+import { FitResultRoute } from '../../src/app/routes/analysis/fit-result';
 import { convergedResult, fitDetail, overview, twoPoiResult } from './fit-fixtures';
 import { json, renderWithApp, stubServer } from './helpers';
 
@@ -265,5 +266,41 @@ describe('the contour choice when starting a fit', () => {
     const group = screen.getByRole('group', { name: 'Contour of two parameters of interest' }) as HTMLFieldSetElement;
     expect(group.disabled).toBe(true);
     expect(group.textContent).toContain('Not for a fit of the control regions alone');
+  });
+});
+
+describe('the fit screen with several parameters of interest', () => {
+  function serve(result: FitResult, extra: Partial<ReturnType<typeof fitDetail>> = {}) {
+    const { correlation: _c, information: _i, yields: _y, gammas, ...head } = result;
+    stubServer((_m, url) => {
+      if (url === '/api/analyses/demo') return json(200, overview('analyst', 'unblinded'));
+      if (url === '/api/analyses/demo/fits/7') return json(200, { ...fitDetail(), ...extra, result: { ...head, gammas: { count: gammas.count, maxAbsPull: gammas.maxAbsPull } } });
+      return undefined;
+    });
+  }
+
+  it('shows the panel on the summary of a converged fit', async () => {
+    serve(twoPoiResult());
+    renderWithApp(<FitResultRoute />, '/a/demo/fits/7', '/a/:slug/fits/:fitId/:tab?');
+    expect(await screen.findByRole('table', { name: 'Parameters of interest' })).toBeTruthy();
+    expect(screen.getByRole('img', { name: /^Contour of signal strength and Associated strength/ })).toBeTruthy();
+  });
+
+  it('shows nothing of them for a fit with μ hidden', async () => {
+    const options = fitOptionsSchema.parse({ dataset: 'observed', hiddenMu: true, impacts: 'none' });
+    serve(twoPoiResult({ options, summary: null, groupedImpacts: [], scan: null }), { options, headline: null });
+    renderWithApp(<FitResultRoute />, '/a/demo/fits/7', '/a/:slug/fits/:fitId/:tab?');
+    expect(await screen.findByText('Signal strength: hidden')).toBeTruthy();
+    expect(screen.queryByRole('heading', { name: 'Parameters of interest' })).toBeNull();
+    expect(screen.queryByText(/Associated strength|μ_assoc/)).toBeNull();
+  });
+
+  it('shows no number of a fit that failed', async () => {
+    const r = twoPoiResult();
+    serve({ ...r, status: 'failed', convergence: { ...r.convergence, failure: 'the minimiser stopped' } }, { state: 'failed', failure: 'the minimiser stopped', headline: null });
+    renderWithApp(<FitResultRoute />, '/a/demo/fits/7', '/a/:slug/fits/:fitId/:tab?');
+    expect(await screen.findByText('The fit failed: no result')).toBeTruthy();
+    expect(screen.queryByRole('heading', { name: 'Parameters of interest' })).toBeNull();
+    expect(screen.queryByText(/Associated strength/)).toBeNull();
   });
 });
