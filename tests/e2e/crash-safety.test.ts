@@ -174,7 +174,7 @@ describe('crash safety: the server killed with SIGKILL during uploads and a fit 
     expect((await waitForFit(otto, finished)).state).toBe('succeeded');
     savedReads.push([otto, finished], [otto, `${finished}/parts/correlation`]);
     // an entry's read shows the latest fit that concerns it: the demo's own fits must have ended first
-    for (const slug of ['vireon-search', 'cascade-rate']) await waitForAnalysisFits(otto, slug);
+    for (const slug of ['vireon-search', 'cascade-rate', 'cascade-modes']) await waitForAnalysisFits(otto, slug);
     for (const [session, read] of savedReads) before.set(read, await session.get(read));
   });
 
