@@ -33,10 +33,11 @@ export const ACTIONS = [
 ] as const;
 export type Action = (typeof ACTIONS)[number];
 
-const everyone: Action[] = ['analysis.read', 'question.answer'];
+/** Every member reads, and asks and answers questions: review committees read, and ask. */
+const everyone: Action[] = ['analysis.read', 'question.raise', 'question.answer'];
 
 export const ROLE_ACTIONS: Record<MemberRole, readonly Action[]> = {
-  convener: [...everyone, 'members.manage', 'entry.review', 'version.freeze', 'version.approve', 'question.raise', 'question.resolve', 'blinding.decide'],
+  convener: [...everyone, 'members.manage', 'entry.review', 'version.freeze', 'version.approve', 'question.resolve', 'blinding.decide'],
   analyst: [
     ...everyone,
     'model.edit',
@@ -50,7 +51,7 @@ export const ROLE_ACTIONS: Record<MemberRole, readonly Action[]> = {
     'blinding.request',
   ],
   contact: [...everyone, 'entry.editOwn', 'variation.upload'],
-  reader: ['analysis.read'],
+  reader: [...everyone],
 };
 
 /** Admins manage accounts, analyses and memberships, and can read every analysis. */

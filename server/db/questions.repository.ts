@@ -2,7 +2,7 @@ import { aliasedTable, and, eq, sql, type SQL } from 'drizzle-orm';
 import type { QuestionState } from '@shared/schemas/review';
 import type { Db } from './client';
 import type { DbOrTx } from './revisions.repository';
-import { answers, entries, fits, groups, questions, users } from './schema';
+import { answers, entries, fits, groups, modelVersions, questions, regions, users } from './schema';
 
 const author = aliasedTable(users, 'author');
 const owner = aliasedTable(users, 'owner');
@@ -29,41 +29,58 @@ export async function questionRows(db: Db, analysisId: number, f: QuestionFilter
       author: { id: author.id, name: author.name },
       resolver: { id: resolver.id, name: resolver.name },
       fit: { id: fits.id, label: fits.label },
+      version: modelVersions.number,
       answers: answerCount,
       lastAnswer,
     })
     .from(questions)
-    .innerJoin(entries, eq(entries.id, questions.entryId))
+    .leftJoin(entries, eq(entries.id, questions.entryId))
     .leftJoin(groups, eq(groups.id, entries.groupId))
     .leftJoin(owner, eq(owner.id, entries.ownerId))
     .leftJoin(author, eq(author.id, questions.authorId))
     .leftJoin(resolver, eq(resolver.id, questions.resolvedById))
     .leftJoin(fits, eq(fits.id, questions.fitId))
+    .leftJoin(modelVersions, eq(modelVersions.id, questions.versionId))
     .where(and(...where));
 }
 
 /** A question's thread, oldest first. */
 export const answersOf = (db: Db, questionId: number) =>
   db
-    .select({ id: answers.id, body: answers.body, createdAt: answers.createdAt, author: { id: users.id, name: users.name } })
+    .select({ id: answers.id, body: answers.body, evidence: answers.evidence, createdAt: answers.createdAt, author: { id: users.id, name: users.name } })
     .from(answers)
     .leftJoin(users, eq(users.id, answers.authorId))
     .where(eq(answers.questionId, questionId))
     .orderBy(answers.createdAt, answers.id);
 
-/** A question with the key, label and owner of its entry. */
+/** A question with the key, label and owner of its entry (null unless it is about a parameter). */
 export async function questionWithEntry(db: Db, analysisId: number, id: number) {
   const [row] = await db
     .select({ q: questions, entry: { key: entries.key, label: entries.label, ownerId: entries.ownerId } })
     .from(questions)
-    .innerJoin(entries, eq(entries.id, questions.entryId))
+    .leftJoin(entries, eq(entries.id, questions.entryId))
     .where(and(eq(questions.id, id), eq(questions.analysisId, analysisId)));
   return row;
 }
 
 export async function fitOfAnalysis(db: Db, analysisId: number, id: number) {
-  const [fit] = await db.select({ id: fits.id, label: fits.label }).from(fits).where(and(eq(fits.analysisId, analysisId), eq(fits.id, id)));
+  const [fit] = await db
+    .select({ id: fits.id, label: fits.label, state: fits.state, options: fits.options, versionNumber: modelVersions.number })
+    .from(fits)
+    .innerJoin(modelVersions, eq(modelVersions.id, fits.modelVersionId))
+    .where(and(eq(fits.analysisId, analysisId), eq(fits.id, id)));
   return fit;
+}
+
+/** A region of the analysis's working model, with its bin count. */
+export async function regionOfAnalysis(db: Db, analysisId: number, key: string) {
+  const [r] = await db.select({ key: regions.key, edges: regions.edges }).from(regions).where(and(eq(regions.analysisId, analysisId), eq(regions.key, key)));
+  return r;
+}
+
+export async function versionOfAnalysis(db: Db, analysisId: number, number: number) {
+  const [v] = await db.select({ id: modelVersions.id, number: modelVersions.number, note: modelVersions.note }).from(modelVersions).where(and(eq(modelVersions.analysisId, analysisId), eq(modelVersions.number, number)));
+  return v;
 }
 
 export async function insertQuestion(db: DbOrTx, values: typeof questions.$inferInsert) {

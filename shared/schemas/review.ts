@@ -105,13 +105,39 @@ export type QuestionState = z.infer<typeof questionStateSchema>;
 
 const person = z.object({ id: z.number(), name: z.string() }).nullable();
 
-export const answerSchema = z.object({ id: z.number(), author: person, body: z.string(), createdAt: z.string() });
+/** What an answer may attach as evidence: a fit, a variant (a fit whose options vary the nominal one), a parameter's diagnosis in a fit, a model version. */
+export const evidenceSchema = z.discriminatedUnion('kind', [
+  z.strictObject({ kind: z.literal('fit'), fitId: z.number().int().positive() }),
+  z.strictObject({ kind: z.literal('variant'), fitId: z.number().int().positive() }),
+  z.strictObject({ kind: z.literal('diagnosis'), fitId: z.number().int().positive(), parameter: z.string().min(1).max(128) }),
+  z.strictObject({ kind: z.literal('version'), version: z.number().int().positive() }),
+]);
+export type Evidence = z.infer<typeof evidenceSchema>;
+
+/** A piece of evidence as a thread shows it: what it is, in words, and its state where it has one. */
+export const evidenceCardSchema = z.object({
+  evidence: evidenceSchema,
+  label: z.string(),
+  /** A fit's state (a card of a fit, variant or diagnosis); null for a version. */
+  state: z.string().nullable(),
+  /** What the card says under its label: the fit's dataset and options, or the version's note. */
+  detail: z.string(),
+});
+export type EvidenceCard = z.infer<typeof evidenceCardSchema>;
+
+export const answerSchema = z.object({ id: z.number(), author: person, body: z.string(), createdAt: z.string(), evidence: z.array(evidenceCardSchema) });
 export type Answer = z.infer<typeof answerSchema>;
+
+export const QUESTION_SUBJECTS = ['parameter', 'region', 'bin', 'fit', 'version'] as const;
+export type QuestionSubject = (typeof QUESTION_SUBJECTS)[number];
 
 export const questionSummarySchema = z.object({
   id: z.number(),
-  entry: z.object({ key: z.string(), label: z.string(), group: z.string().nullable(), owner: person }),
-  /** the fit the question was raised on, if any */
+  /** What it is about, and that in words (e.g. "region SR-core, bin 3"). */
+  about: z.object({ kind: z.enum(QUESTION_SUBJECTS), label: z.string(), region: z.string().nullable(), bin: z.number().nullable(), version: z.number().nullable() }),
+  /** The register entry of a question on a parameter; null for other subjects. */
+  entry: z.object({ key: z.string(), label: z.string(), group: z.string().nullable(), owner: person }).nullable(),
+  /** the fit the question is about or was raised on, if any */
   fit: z.object({ id: z.number(), label: z.string() }).nullable(),
   title: z.string(),
   state: questionStateSchema,
@@ -139,9 +165,17 @@ export const questionFilterSchema = z.strictObject({
 });
 export type QuestionFilter = z.infer<typeof questionFilterSchema>;
 
+/**
+ * What a question is about, one of: `entry` (a parameter: the register entry's key), `region` (with
+ * `bin` for one of its bins, 1-based), `version` (a model version's number), or `fitId` alone (the
+ * fit itself). A fitId beside a parameter or region says in which fit it was seen.
+ */
 export const raiseQuestionSchema = z.strictObject({
   /** the register entry (= nuisance parameter name) */
-  entry: z.string().min(1, 'Name the parameter the question is about.').max(100),
+  entry: z.string().min(1, 'Name the parameter the question is about.').max(100).nullable().default(null),
+  region: z.string().min(1).max(64).nullable().default(null),
+  bin: z.number().int().min(1, 'Bins are counted from 1.').nullable().default(null),
+  version: z.number().int().positive().nullable().default(null),
   fitId: z.number().int().positive().nullable().default(null),
   title: z.string().trim().min(3, 'Give the question a title of at least 3 characters.').max(200, 'Keep the title under 200 characters.'),
   body: z.string().trim().min(1, 'Write the question.').max(20_000, 'Keep the question under 20 000 characters.'),
@@ -150,8 +184,9 @@ export type RaiseQuestion = z.input<typeof raiseQuestionSchema>;
 
 export const answerQuestionSchema = z.strictObject({
   body: z.string().trim().min(1, 'Write an answer.').max(20_000, 'Keep the answer under 20 000 characters.'),
+  evidence: z.array(evidenceSchema).max(10, 'Attach at most 10 pieces of evidence.').default([]),
 });
-export type AnswerQuestion = z.infer<typeof answerQuestionSchema>;
+export type AnswerQuestion = z.input<typeof answerQuestionSchema>;
 
 /** POST …/questions/:id/resolve and …/reopen: an optional note, added to the thread */
 export const questionStepSchema = z.strictObject({ note: z.string().trim().max(20_000).default('') });

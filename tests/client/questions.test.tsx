@@ -86,15 +86,15 @@ function serveThread(role: MemberRole, detail: QuestionDetail, reply?: (method: 
 
 describe('a question’s thread', () => {
   it('shows the question and its answers with who and when', async () => {
-    serveThread('reader', questionDetail({ state: 'answered', answers: 1, thread: [{ id: 1, author: { id: 4, name: 'Pim Sorel' }, body: 'The halo control region has 10⁴ events.', createdAt: '2026-03-03T10:00:00Z' }] }));
+    serveThread('reader', questionDetail({ state: 'answered', answers: 1, thread: [{ id: 1, author: { id: 4, name: 'Pim Sorel' }, body: 'The halo control region has 10⁴ events.', createdAt: '2026-03-03T10:00:00Z', evidence: [] }] }));
     renderWithApp(<QuestionRoute />, '/a/demo/questions/11', '/a/:slug/questions/:id');
     expect(await screen.findByRole('heading', { name: 'Why is jes constrained to 0.44?' })).toBeTruthy();
     expect(screen.getByText(/Is the 30 % halo variation right\?/)).toBeTruthy();
     const thread = screen.getByRole('region', { name: 'Thread' });
     expect(within(thread).getByText('The halo control region has 10⁴ events.')).toBeTruthy();
     expect(within(thread).getByText('Pim Sorel')).toBeTruthy();
-    // a reader reads only
-    expect(screen.queryByRole('form', { name: 'Answer' })).toBeNull();
+    // a reader answers too (review committees ask and discuss), but does not resolve
+    expect(screen.getByRole('form', { name: 'Answer' })).toBeTruthy();
     expect(screen.queryByRole('button', { name: /Resolve|Reopen/ })).toBeNull();
   });
 
@@ -114,7 +114,7 @@ describe('a question’s thread', () => {
     const user = userEvent.setup();
     const calls = serveThread('contact', questionDetail(), (method, url, body) =>
       method === 'POST' && url === '/api/analyses/demo/questions/11/answers'
-        ? json(201, questionDetail({ state: 'answered', answers: 1, thread: [{ id: 3, author: { id: 4, name: 'Pim Sorel' }, body: (body as { body: string }).body, createdAt: '2026-03-03T10:00:00Z' }] }))
+        ? json(201, questionDetail({ state: 'answered', answers: 1, thread: [{ id: 3, author: { id: 4, name: 'Pim Sorel' }, body: (body as { body: string }).body, createdAt: '2026-03-03T10:00:00Z', evidence: [] }] }))
         : undefined,
     );
     renderWithApp(<QuestionRoute />, '/a/demo/questions/11', '/a/:slug/questions/:id');
@@ -122,7 +122,7 @@ describe('a question’s thread', () => {
     await user.type(within(form).getByLabelText('Your answer'), 'Checked: 30 % is the measured spread.');
     await user.click(within(form).getByRole('button', { name: 'Post the answer' }));
     expect(await screen.findByText('Checked: 30 % is the measured spread.')).toBeTruthy();
-    expect(calls.find((c) => c.method === 'POST')?.body).toEqual({ body: 'Checked: 30 % is the measured spread.' });
+    expect(calls.find((c) => c.method === 'POST')?.body).toEqual({ body: 'Checked: 30 % is the measured spread.', evidence: [] });
     expect(screen.getByText('Answered')).toBeTruthy();
   });
 

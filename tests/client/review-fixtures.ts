@@ -66,6 +66,7 @@ export function diagnosis(overrides: Partial<Diagnosis> = {}): Diagnosis {
 export function questionSummary(overrides: Partial<QuestionSummary> = {}): QuestionSummary {
   return {
     id: 11,
+    about: { kind: 'parameter', label: 'parameter jes', region: null, bin: null, version: null },
     entry: { key: 'jes', label: 'Jet energy scale', group: 'jets', owner: { id: 4, name: 'Pim Sorel' } },
     fit: { id: 7, label: 'Observed, full impacts' },
     title: 'Why is jes constrained to 0.44?',

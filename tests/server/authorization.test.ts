@@ -104,7 +104,6 @@ async function freshProcess(t: TestApp) {
 }
 const conveners = (ok: number) => ({ ...all(403), signedOut: 401, convener: ok });
 /** everyone who works on the analysis: readers only read */
-const answerers = (ok: number) => ({ ...all(403), signedOut: 401, convener: ok, analyst: ok, contact: ok });
 async function freshQuestion(t: TestApp, state: 'open' | 'resolved' = 'open') {
   const { analysisId } = await ids(t);
   const [e] = await t.database.db.select().from(entries).where(and(eq(entries.analysisId, analysisId), eq(entries.key, 'flare_escale')));
@@ -380,9 +379,9 @@ export const MATRIX: Record<string, Row> = {
   // the review loop: diagnosis, questions, blinding
   'GET /api/analyses/:slug/fits/:fitId/diagnosis/:parameter': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/diagnosis/flare_escale` }), expect: members(200) },
   'GET /api/analyses/:slug/questions': { call: () => ({ path: `${A}/questions?state=open` }), expect: members(200) },
-  'POST /api/analyses/:slug/questions': { call: () => ({ path: `${A}/questions`, body: { entry: 'flare_escale', title: 'Matrix question', body: 'Why so narrow?' } }), expect: conveners(201) },
+  'POST /api/analyses/:slug/questions': { call: () => ({ path: `${A}/questions`, body: { entry: 'flare_escale', title: 'Matrix question', body: 'Why so narrow?' } }), expect: members(201) },
   'GET /api/analyses/:slug/questions/:questionId': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}` }), expect: members(200) },
-  'POST /api/analyses/:slug/questions/:questionId/answers': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}/answers`, body: { body: 'Because of the control region.' } }), expect: answerers(201) },
+  'POST /api/analyses/:slug/questions/:questionId/answers': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}/answers`, body: { body: 'Because of the control region.' } }), expect: members(201) },
   'POST /api/analyses/:slug/questions/:questionId/resolve': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}/resolve`, body: {} }), expect: conveners(200) },
   'POST /api/analyses/:slug/questions/:questionId/reopen': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t, 'resolved')}/reopen`, body: { note: 'Again.' } }), expect: conveners(200) },
   'GET /api/analyses/:slug/blinding/checklist': { call: () => ({ path: `${A}/blinding/checklist` }), expect: members(200) },

@@ -55,8 +55,16 @@ describe('the review loop', () => {
       expect(unknown.status).toBe(404);
       expect(unknown.body.error.message).toMatch(/no_such_entry/);
       const foreignFit = await convener.send('post', `${V}/questions`, { entry: 'flare_escale', fitId: 999, title: 'Title', body: 'x' });
-      expect(foreignFit.status).toBe(404);
-      expect((await analyst.send('post', `${V}/questions`, { entry: 'flare_escale', title: 'Title', body: 'x' })).status).toBe(403);
+      expect(foreignFit.status).toBe(400);
+      expect(foreignFit.body.error.issues).toEqual([{ path: ['fitId'], message: 'unknown fit' }]);
+      // a region, a bin, a version that do not exist; two subjects; none
+      const refusal = async (body: object) => (await analyst.send('post', `${V}/questions`, { title: 'Title', body: 'x', ...body })).body.error;
+      expect(await refusal({ region: 'SR-nowhere' })).toMatchObject({ message: 'Unknown region: this analysis has no region "SR-nowhere".', issues: [{ path: ['region'] }] });
+      expect((await refusal({ region: 'SR-core', bin: 999 })).issues).toEqual([{ path: ['bin'], message: expect.stringMatching(/^from 1 to \d+$/) }]);
+      expect((await refusal({ bin: 2 })).issues).toEqual([{ path: ['region'], message: 'name the region of the bin' }]);
+      expect((await refusal({ version: 99 })).issues).toEqual([{ path: ['version'], message: 'unknown version' }]);
+      expect((await refusal({ entry: 'lumi', region: 'SR-core' })).issues).toEqual([{ path: ['region'], message: 'give either entry or region' }]);
+      expect((await refusal({})).issues).toEqual([{ path: ['entry'], message: 'name what the question is about' }]);
       expect(await dbSnapshot(t)).toEqual(before);
       expect(await mail()).toEqual([]);
     });
@@ -68,7 +76,6 @@ describe('the review loop', () => {
       const sent = await mail();
       expect(sent.map((m) => m.to)).toEqual([DEMO.convener]);
       expect(sent[0].subject).toMatch(/Answer on flare_escale/);
-      expect((await reader.send('post', `${V}/questions/${id}/answers`, { body: 'me too' })).status).toBe(403);
     });
 
     it('filters by state, owner, group, fit and entry', async () => {

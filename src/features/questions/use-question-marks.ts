@@ -7,10 +7,12 @@ import { useQuestions } from './api/get-questions';
 export function questionMarks(list: QuestionSummary[]): Map<string, QuestionMark> {
   const marks = new Map<string, QuestionMark>();
   for (const q of list) {
-    if (q.state === 'resolved') continue;
-    const m = marks.get(q.entry.key);
-    if (!m) marks.set(q.entry.key, { state: q.state, count: 1 });
-    else marks.set(q.entry.key, { state: m.state === 'open' || q.state === 'open' ? 'open' : 'answered', count: m.count + 1 });
+    // a question on a region, a fit or a version marks no parameter
+    if (q.state === 'resolved' || !q.entry) continue;
+    const key = q.entry.key;
+    const m = marks.get(key);
+    if (!m) marks.set(key, { state: q.state, count: 1 });
+    else marks.set(key, { state: m.state === 'open' || q.state === 'open' ? 'open' : 'answered', count: m.count + 1 });
   }
   return marks;
 }

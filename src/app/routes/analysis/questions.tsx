@@ -10,6 +10,12 @@ import { useQuestions } from '../../../features/questions/api/get-questions';
 import { filterFromParams, QuestionFilters } from '../../../features/questions/components/question-filters';
 import { QuestionsTable } from '../../../features/questions/components/questions-table';
 import { useEntries, useEntryGroups } from '../../../features/register/api/get-entries';
+import { useModel } from '../../../features/model/api/get-model';
+import { useVersions } from '../../../features/fits/api/get-versions';
+import { useCan } from '../../../features/analyses/use-can';
+import { AskQuestionForm, type SubjectChoices } from '../../../features/questions/components/ask-question-form';
+import { Panel } from '../../../components/ui/page';
+import { fitName } from '../../../lib/fits';
 
 export function QuestionsRoute() {
   const { slug = '' } = useParams();
@@ -19,6 +25,18 @@ export function QuestionsRoute() {
   const members = useMembers(slug);
   const entries = useEntries(slug);
   const fits = useFits(slug);
+  const model = useModel(slug);
+  const versions = useVersions(slug);
+  const mayAsk = useCan(slug)('question.raise');
+  const subjects = useMemo((): SubjectChoices | null => {
+    if (!model.data || !fits.data || !versions.data) return null;
+    return {
+      parameters: (entries.data ?? []).map((e) => e.key),
+      regions: model.data.regions.map((r) => ({ key: r.key, bins: r.edges.length - 1 })),
+      fits: fits.data.filter((f) => f.state === 'succeeded').map((f) => ({ id: f.id, label: fitName(f) })),
+      versions: versions.data.map((v) => v.number),
+    };
+  }, [model.data, fits.data, versions.data, entries.data]);
 
   const owners = useMemo(() => {
     const seen = new Map<number, string>();
@@ -43,7 +61,20 @@ export function QuestionsRoute() {
 
   return (
     <>
-      <PageHeader title="Questions" description="Reviewers' questions on parameters and fit results, with their answers and resolution. Newest activity first." />
+      <PageHeader
+        title="Questions"
+        description="Every reviewer's questions, on a parameter, a region or one of its bins, a fit or a model version, with their answers, evidence and resolution. Newest activity first."
+      />
+      {mayAsk && subjects && (
+        <details className="mb-4">
+          <summary className="cursor-pointer text-sm font-semibold text-teal-ink">Ask a question</summary>
+          <div className="mt-2 max-w-3xl">
+            <Panel>
+              <AskQuestionForm slug={slug} choices={subjects} />
+            </Panel>
+          </div>
+        </details>
+      )}
       <div className="mb-4">
         <QuestionFilters filter={filter} owners={owners} groups={groups} fits={fitChoices} onChange={change} />
       </div>
@@ -54,7 +85,7 @@ export function QuestionsRoute() {
               <p>
                 {filtered
                   ? 'Clear a filter to see more.'
-                  : 'A convener raises a question on a parameter from its diagnosis, from the impact ranking or from its register entry; the owner and the analysts are e-mailed.'}
+                  : 'Any member asks a question here, on a parameter from its diagnosis, the impact ranking or its register entry, or on a region, a bin, a fit or a model version; the people who answer are e-mailed.'}
               </p>
             </EmptyState>
           ) : (

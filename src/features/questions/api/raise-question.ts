@@ -3,7 +3,7 @@ import type { QuestionDetail, RaiseQuestion } from '@shared/schemas/review';
 import { analysisPath, api } from '../../../lib/api-client';
 import { questionChanged } from './invalidate';
 
-/** A convener raises a question on a parameter; the server e-mails the entry's owner and the analysts. */
+/** Any member asks a question on a parameter, a region or bin, a fit or a version; the server e-mails those who answer. */
 export function raiseQuestion(slug: string, body: RaiseQuestion): Promise<QuestionDetail> {
   return api.post<QuestionDetail>(analysisPath(slug, 'questions'), body);
 }

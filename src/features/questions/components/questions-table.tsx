@@ -2,9 +2,10 @@ import { useMemo } from 'react';
 import { Link } from 'react-router';
 import type { QuestionSummary } from '@shared/schemas/review';
 import { DataTable, dataColumns } from '../../../components/ui/data-table';
-import { diagnosisPath, fitName } from '../../../lib/fits';
+import { diagnosisPath, fitName, fitPath } from '../../../lib/fits';
 import { formatDateTime } from '../../../lib/format';
 import { QuestionStateBadge } from './question-state-badge';
+import { subjectPath } from './evidence';
 
 const col = dataColumns<QuestionSummary>();
 
@@ -26,26 +27,30 @@ function makeColumns(slug: string) {
         );
       },
     }),
-    col.accessor((q) => q.entry.key, {
+    col.accessor((q) => q.entry?.key ?? q.about.label, {
       id: 'parameter',
-      header: 'Parameter',
+      header: 'About',
       cell: (c) => {
         const q = c.row.original;
-        return (
+        return q.entry ? (
           <>
             <Link to={`/a/${slug}/entries/${encodeURIComponent(q.entry.key)}`} className="font-mono text-xs text-teal-ink hover:underline" title={q.entry.label}>
               {q.entry.key}
             </Link>
             <p className="text-2xs text-ink-muted">{q.entry.group ?? 'no group'}</p>
           </>
+        ) : (
+          <Link to={subjectPath(slug, q)} className="text-xs text-teal-ink hover:underline">
+            {q.about.label}
+          </Link>
         );
       },
     }),
-    col.accessor((q) => q.entry.owner?.name ?? '', {
+    col.accessor((q) => q.entry?.owner?.name ?? '', {
       id: 'owner',
       header: 'Owner',
       meta: { cellClass: 'text-xs' },
-      cell: (c) => c.getValue() || <span className="text-ink-muted">unassigned</span>,
+      cell: (c) => c.getValue() || <span className="text-ink-muted">{c.row.original.entry ? 'unassigned' : '–'}</span>,
     }),
     col.accessor('fit', {
       header: 'Fit',
@@ -53,7 +58,7 @@ function makeColumns(slug: string) {
       cell: (c) => {
         const q = c.row.original;
         return q.fit ? (
-          <Link to={diagnosisPath(slug, q.fit.id, q.entry.key)} className="text-teal-ink hover:underline" title="This parameter's diagnosis in the fit the question was raised on">
+          <Link to={q.entry ? diagnosisPath(slug, q.fit.id, q.entry.key) : fitPath(slug, q.fit.id)} className="text-teal-ink hover:underline" title={q.entry ? "This parameter's diagnosis in the fit the question was raised on" : 'The fit the question is about or was raised on'}>
             {fitName(q.fit)}
           </Link>
         ) : (

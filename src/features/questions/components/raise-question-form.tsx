@@ -9,7 +9,7 @@ import { fitName } from '../../../lib/fits';
 import { useRaiseQuestion } from '../api/raise-question';
 
 /**
- * A convener's question on one parameter, optionally tied to the fit it was seen in. The server
+ * A member's question on one parameter, optionally tied to the fit it was seen in. The server
  * e-mails the entry's owner and the analysts.
  */
 export function RaiseQuestionForm({
