@@ -14,7 +14,7 @@ export const ACTION_LABELS: Record<Action, string> = {
   'version.freeze': 'Freeze a model version',
   'version.approve': 'Freeze a version for approval',
   'fit.run': 'Run fits',
-  'question.raise': 'Raise questions on fit results',
+  'question.raise': 'Ask questions on parameters, regions, bins, fits and versions',
   'question.answer': 'Answer questions',
   'question.resolve': 'Resolve questions',
   'blinding.request': 'Request unblinding',
