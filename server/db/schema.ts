@@ -77,6 +77,8 @@ export const analyses = pgTable('analyses', {
   unblindingApprovals: integer('unblinding_approvals').notNull().default(1),
   /** The parameter the signal hypotheses differ in (e.g. { name: 'mass', unit: 'GeV' }); null: none declared. */
   hypothesisParameter: jsonb('hypothesis_parameter').$type<{ name: string; unit: string } | null>(),
+  /** The labels every chart carries, on screen and in the approval pack: experiment, status (e.g. "Internal"), integrated luminosity, centre-of-mass energy. */
+  plotLabels: jsonb('plot_labels').$type<{ experiment: string; status: string; luminosity: string; energy: string }>().notNull().default({ experiment: '', status: 'Internal', luminosity: '', energy: '' }),
   createdAt: createdAt(),
 });
 
@@ -279,6 +281,10 @@ export const effects = pgTable(
      */
     flatP: doublePrecision('flat_p').default(-1),
     uploadId: integer('upload_id').references(() => uploads.id, { onDelete: 'set null' }),
+    /** shape effects: the nominal template per bin when the variation was written (null before this was kept) */
+    nominalAtUpload: jsonb('nominal_at_upload').$type<number[] | null>(),
+    /** set when the nominal it was uploaded against changed since: its varied yields may no longer mean what they meant */
+    staleSince: timestamp('stale_since', { withTimezone: true }),
   },
   (t) => [uniqueIndex('effects_entry_region_process_kind').on(t.entryId, t.regionId, t.processId, t.kind)],
 );
