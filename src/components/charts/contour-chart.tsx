@@ -1,6 +1,6 @@
 import { useRef } from 'react';
 import { scaleLinear } from 'd3-scale';
-import { line } from 'd3-shape';
+import { curveCatmullRom, curveCatmullRomClosed, line } from 'd3-shape';
 import type { ProfileContour } from '@shared/schemas/fit';
 import { BottomAxis, LeftAxis } from './axes';
 import { ChartFigure } from './chart-figure';
@@ -56,9 +56,15 @@ export function ContourChart({ contour, axes }: { contour: ProfileContour; axes:
   const y = scaleLinear()
     .domain(extent(contour.b, contour.bestFit[1]))
     .range([H - M.bottom, M.top]);
-  const path = line<[number, number]>()
-    .x((p) => x(p[0]))
-    .y((p) => y(p[1]));
+  // a smooth curve through every point the contour found: closed where the line comes back to its start
+  const path = (ln: [number, number][]) => {
+    const [first, last] = [ln[0], ln[ln.length - 1]];
+    const closed = ln.length > 3 && Math.hypot(x(first[0]) - x(last[0]), y(first[1]) - y(last[1])) < 0.5;
+    return line<[number, number]>()
+      .x((p) => x(p[0]))
+      .y((p) => y(p[1]))
+      .curve(closed ? curveCatmullRomClosed.alpha(0.5) : curveCatmullRom.alpha(0.5))(closed ? ln.slice(0, -1) : ln);
+  };
   const [sa, sb] = contour.errors;
   const [ba, bb] = contour.bestFit;
   const levels = [...contour.levels].sort((p, q) => q.cl - p.cl);
@@ -138,7 +144,7 @@ export function ContourChart({ contour, axes }: { contour: ProfileContour; axes:
               );
             })}
           {(() => {
-            const yy = next(30);
+            const yy = next(17);
             return (
               <g>
                 <line x1={LEGEND_X + 5} x2={LEGEND_X + 21} y1={yy} y2={yy} stroke={theme.ink} strokeWidth={1} />
@@ -153,8 +159,8 @@ export function ContourChart({ contour, axes }: { contour: ProfileContour; axes:
           {[
             [ax, ba, sa],
             [bx, bb, sb],
-          ].map(([a, best, sigma]) => {
-            const yy = next(15);
+          ].map(([a, best, sigma], i) => {
+            const yy = next(i === 1 ? 26 : 14);
             const axis = a as Axis;
             return (
               <text key={axis.name} x={LEGEND_X + 32} y={yy} dy="0.32em" style={{ fontSize: 9.5, fill: theme.inkMuted }}>

@@ -166,7 +166,7 @@ export function PoiPanel({ result }: { result: FitResultHead }) {
           This model fits {section.list.length} signal strengths at once, each multiplying its own signal templates. Each row is one of them, with every other parameter fitted
           alongside; the intervals are from each one’s own profile likelihood.
         </p>
-        <DataTable columns={columns} data={section.list} getRowId={(p) => p.name} rowHeader="name" label="Parameters of interest" frame="plain" />
+        <DataTable columns={columns} data={section.list} getRowId={(p) => p.name} rowHeader="name" label="Parameters of interest" frame="plain" frameClass="max-w-5xl" />
         <div className={`grid gap-x-6 gap-y-4 ${showContour ? 'xl:grid-cols-[minmax(0,46rem)_minmax(14rem,1fr)]' : ''}`}>
           {showContour && <ContourChart contour={contour} axes={[axis(contour.parameters[0]), axis(contour.parameters[1])]} />}
           <div className="flex flex-col gap-1">
