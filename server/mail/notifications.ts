@@ -46,6 +46,23 @@ export async function notifySubmitted(ctx: AppContext, p: { baseUrl: string; ana
   });
 }
 
+/** A nominal the entry's variations were made against changed: its owner hears of it. */
+export async function notifyNominalChanged(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; entry: Entry; by: string; templates: string[]; sentBack: boolean } & To) {
+  if (!p.to.length) return;
+  await ctx.mailer.send({
+    to: p.to,
+    analysisId: p.analysis.id,
+    subject: `[${p.analysis.slug}] ${p.entry.key}: the nominal changed since its variation was uploaded`,
+    text: [
+      `${p.by} replaced the nominal template of ${p.templates.join(', ')}. The variations of "${p.entry.label}" (${p.entry.key}) were made against the old nominal: they are marked "nominal changed since upload", with the old and new nominal per bin.`,
+      ...(p.sentBack ? ['The entry was accepted, so it went back to review.'] : []),
+      'Upload the variation again against the new nominal, or say at the next frozen version whether to keep it as a relative shift or as absolute yields.',
+      '',
+      entryLink(p.baseUrl, p.analysis, p.entry),
+    ].join('\n'),
+  });
+}
+
 export async function notifyAccepted(ctx: AppContext, p: { baseUrl: string; analysis: AnalysisRow; entry: Entry; by: string; comment: string } & To) {
   if (!p.to.length) return;
   await ctx.mailer.send({

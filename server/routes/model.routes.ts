@@ -1,4 +1,5 @@
 import type { AppContext } from '../context';
+import { baseUrl } from './base-url';
 import { accessOf, type authorizer } from '../auth/authorize';
 import { singleFile, readUpload } from '../uploads/upload';
 import { buildExchange } from '../services/exchange-export.service';
@@ -58,7 +59,7 @@ export const modelRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>
       res.status(204).end();
     }),
     route('put', '/api/analyses/:slug/templates/:region/:process', edit, async (req, res) => {
-      res.json(await putTemplate(ctx, accessOf(req), p(req, 'region'), p(req, 'process'), req.body));
+      res.json(await putTemplate(ctx, accessOf(req), p(req, 'region'), p(req, 'process'), req.body, baseUrl(ctx, req)));
     }),
     route('delete', '/api/analyses/:slug/templates/:region/:process', edit, async (req, res) => {
       await deleteTemplate(ctx, accessOf(req), p(req, 'region'), p(req, 'process'));
@@ -66,7 +67,7 @@ export const modelRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer>
     }),
     route('post', '/api/analyses/:slug/model/csv', edit, file, async (req, res) => {
       const save = wantsSave(req);
-      res.status(save ? 201 : 200).json(await uploadModelCsv(ctx, accessOf(req), req.query.kind, req.file, save));
+      res.status(save ? 201 : 200).json(await uploadModelCsv(ctx, accessOf(req), req.query.kind, req.file, save, baseUrl(ctx, req)));
     }),
 
     // signal hypotheses: the parameter they differ in, and each one uploaded whole (CSV + effects)

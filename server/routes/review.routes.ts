@@ -3,6 +3,7 @@ import { accessOf, type authorizer } from '../auth/authorize';
 import { blindingLog, changeBlindingSettings, decideUnblinding, requestUnblinding } from '../services/blinding.service';
 import { diagnoseInFit, runDiagnosisChecks } from '../services/diagnosis.service';
 import { getUnblindingChecklist, getVersionChecklist } from '../services/approval.service';
+import { listStaleEffects } from '../services/stale-effects.service';
 import { answerQuestion, getQuestion, listQuestions, raiseQuestion, stepQuestion } from '../services/questions.service';
 import { baseUrl } from './base-url';
 import { idParam, route, type ApiRoute } from './route';
@@ -46,6 +47,9 @@ export const reviewRoutes = (ctx: AppContext, auth: ReturnType<typeof authorizer
   }),
   route('get', '/api/analyses/:slug/versions/approval-checklist', auth.may('analysis.read'), async (req, res) => {
     res.json(await getVersionChecklist(ctx, accessOf(req)));
+  }),
+  route('get', '/api/analyses/:slug/versions/stale-effects', auth.may('analysis.read'), async (req, res) => {
+    res.json(await listStaleEffects(ctx, accessOf(req)));
   }),
   route('post', '/api/analyses/:slug/blinding/request', auth.may('blinding.request'), async (req, res) => {
     res.json(await requestUnblinding(ctx, accessOf(req), req.body, baseUrl(ctx, req)));

@@ -153,6 +153,7 @@ function effectViews(ctx: AppContext, analysisId: number, entryId: number): Prom
         edges: region.edges,
         warnings: e.warnings,
         upload: upload?.id ? { ...upload, createdAt: upload.createdAt.toISOString() } : null,
+        stale: e.staleSince && e.nominalAtUpload ? { since: e.staleSince.toISOString(), nominalAtUpload: e.nominalAtUpload } : null,
       };
     });
   });
@@ -328,6 +329,8 @@ export async function uploadVariations(
         warnings: e.warnings,
         largestPct: largestEffectPct(e.kind, e.up, e.down, e.nominal),
         uploadId,
+        // a shape is made against this nominal: if it changes, the effect goes stale
+        nominalAtUpload: e.kind === 'shape' ? e.nominal : null,
       });
     await updateEntryRow(tx, entry.id, { state: backToReview ? 'submitted' : entry.state, version: entry.version + 1, updatedAt: new Date() });
     const counts = (['shape', 'scale'] as const).map((k) => [k, ready.filter((e) => e.kind === k).length] as const).filter(([, n]) => n);

@@ -131,6 +131,7 @@ async function writeModel(tx: Tx, analysisId: number, model: ExchangeModel, opti
         down: e.down,
         warnings: e.kind === 'scale' ? scaleWarnings(e.up, e.down) : shapeWarnings(nominalOf.get(`${e.region}/${e.process}`)!, e.up, e.down),
         largestPct: largestEffectPct(e.kind, e.up, e.down, nominalOf.get(`${e.region}/${e.process}`)),
+        nominalAtUpload: e.kind === 'shape' ? nominalOf.get(`${e.region}/${e.process}`)! : null,
       })),
     );
     await addRevision(tx, {

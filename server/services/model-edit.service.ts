@@ -39,6 +39,7 @@ import { readUpload } from '../uploads/upload';
 import { readObservedCsv, readTemplatesCsv } from './template-files';
 import { assertRoleMayChange, isWithheld } from './blinding.service';
 import { assertNoHypothesesOn } from './signal-hypotheses.service';
+import { markStaleEffects, notifyStale, type StaleNotice } from './stale-effects.service';
 
 /**
  * The analysts' model editor. Every change is refused whole when it would leave the model
@@ -194,7 +195,7 @@ export async function deleteFloatingNorm(ctx: AppContext, access: Access, key: s
   });
 }
 
-export async function putTemplate(ctx: AppContext, access: Access, regionKey: string, processKey: string, body: unknown) {
+export async function putTemplate(ctx: AppContext, access: Access, regionKey: string, processKey: string, body: unknown, baseUrl = '') {
   const input = templateInputSchema.parse(body);
   const region = await findRegion(ctx.db, access, regionKey);
   const process = await findProcess(ctx.db, access, processKey);
@@ -214,12 +215,16 @@ export async function putTemplate(ctx: AppContext, access: Access, regionKey: st
       ]);
     floatingNormId = f.id;
   }
-  return ctx.db.transaction(async (tx) => {
+  const { saved, notices } = await ctx.db.transaction(async (tx) => {
     const old = await templateOf(tx, region.id, process.id);
     await saveTemplate(tx, old?.id ?? null, { analysisId: access.analysis.id, regionId: region.id, processId: process.id, nominal: input.nominal, variance: input.variance, floatingNormId });
     await modelRevision(tx, access, 'template.saved', `${old ? 'Replaced' : 'Added'} the template of process "${processKey}" in region "${regionKey}".`, old ? { nominal: old.nominal } : undefined, { nominal: input.nominal });
-    return { region: regionKey, process: processKey, nominal: input.nominal, variance: input.variance, floatingNorm: input.floatingNorm };
+    // the variations made against the old nominal go stale
+    const notices = await markStaleEffects(tx, access, { regionId: region.id, processId: process.id, region: regionKey, process: processKey, before: old?.nominal ?? null, after: input.nominal });
+    return { saved: { region: regionKey, process: processKey, nominal: input.nominal, variance: input.variance, floatingNorm: input.floatingNorm }, notices };
   });
+  await notifyStale(ctx, access, notices, baseUrl);
+  return saved;
 }
 
 export async function deleteTemplate(ctx: AppContext, access: Access, regionKey: string, processKey: string) {
@@ -237,12 +242,13 @@ export async function deleteTemplate(ctx: AppContext, access: Access, regionKey:
 }
 
 /** A CSV of templates or observed counts: previewed (save = false) or saved in one transaction. */
-export async function uploadModelCsv(ctx: AppContext, access: Access, kindRaw: unknown, file: Express.Multer.File | undefined, save: boolean): Promise<ModelUploadResult> {
+export async function uploadModelCsv(ctx: AppContext, access: Access, kindRaw: unknown, file: Express.Multer.File | undefined, save: boolean, baseUrl = ''): Promise<ModelUploadResult> {
   const kind = modelCsvKindSchema.parse(kindRaw);
   const upload = readUpload(file);
   const model = indexModel(await loadModelRows(ctx.db, access.analysis.id));
   if (kind === 'templates') {
     const changes = readTemplatesCsv(upload.text, upload.filename, model);
+    const notices: StaleNotice[] = [];
     if (save)
       await ctx.db.transaction(async (tx) => {
         for (const c of changes) {
@@ -250,12 +256,14 @@ export async function uploadModelCsv(ctx: AppContext, access: Access, kindRaw: u
           const processId = model.processes.get(c.process)!.id;
           const old = model.template(c.region, c.process);
           await saveTemplate(tx, old?.id ?? null, { analysisId: access.analysis.id, regionId, processId, nominal: c.nominal, variance: c.variance, floatingNormId: old?.floatingNormId ?? null });
+          notices.push(...(await markStaleEffects(tx, access, { regionId, processId, region: c.region, process: c.process, before: old?.nominal ?? null, after: c.nominal })));
         }
         await modelRevision(tx, access, 'templates.uploaded', `Uploaded "${upload.filename}" (SHA-256 ${upload.sha256.slice(0, 12)}…): ${changes.length} template${changes.length === 1 ? '' : 's'}.`, undefined, {
           sha256: upload.sha256,
           templates: changes.map((c) => `${c.region}/${c.process}`),
         });
       });
+    await notifyStale(ctx, access, notices, baseUrl);
     return { saved: save, kind, changes: changes.map((c) => ({ region: c.region, process: c.process, bins: c.nominal.length, total: c.nominal.reduce((a, b) => a + b, 0) })) };
   }
   const changes = readObservedCsv(upload.text, upload.filename, model);

@@ -78,7 +78,7 @@ export async function uploadReplicas(ctx: AppContext, access: Access, key: strin
       const target = j === 0 ? entry : effect.created
         ? await insertEntry(tx, { analysisId: access.analysis.id, key: effect.entry, label: `${entry.label}, component ${j + 1}`, groupId: entry.groupId, ownerId: entry.ownerId, description: `Principal component ${j + 1} of the replica set of "${key}".` })
         : await findEntry(tx, access.analysis.id, effect.entry);
-      await replaceEffect(tx, { entryId: target.id, ...ids, kind: 'shape', up: effect.up, down: effect.down, warnings: effect.warnings, largestPct: largestEffectPct('shape', effect.up, effect.down, nominal), uploadId });
+      await replaceEffect(tx, { entryId: target.id, ...ids, kind: 'shape', up: effect.up, down: effect.down, warnings: effect.warnings, largestPct: largestEffectPct('shape', effect.up, effect.down, nominal), uploadId, nominalAtUpload: nominal });
       if (j === 0) await updateEntryRow(tx, entry.id, { state: backToReview ? 'submitted' : entry.state, version: entry.version + 1, updatedAt: new Date() });
       const share = effect.fraction !== null ? ` Component ${j + 1}: ${(100 * effect.fraction).toFixed(1)} % of the variance.` : '';
       await addRevision(tx, {

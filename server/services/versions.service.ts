@@ -9,6 +9,7 @@ import { findVersionRow, insertNextVersion, listVersionRows, type VersionRow } f
 import { badRequest, forbidden, notFound, unprocessable } from '../errors';
 import { activeEntries } from '../db/approval.repository';
 import { openItems, versionChecklist } from './approval.service';
+import { resolveStaleEffects } from './stale-effects.service';
 import { buildExchange } from './exchange-export.service';
 import { hypothesisIssues } from './signal-hypotheses.service';
 
@@ -63,6 +64,8 @@ export async function freezeVersion(ctx: AppContext, access: Access, body: unkno
         approvalOverride = { reason: input.overrideReason, by: access.userName, openItems: open };
       }
     }
+    // variations made against a nominal that changed since: kept as a relative shift or as absolute yields, as chosen
+    const staleLines = await resolveStaleEffects(tx, access, input.staleChoices);
     const register = await activeEntries(tx, access.analysis.id);
     const model = await buildExchange(tx, access.analysis, { withhold: false });
     if (!model.regions.length || !model.processes.length) throw unprocessable('The model has no regions or no processes yet: there is nothing to freeze.');
@@ -90,8 +93,8 @@ export async function freezeVersion(ctx: AppContext, access: Access, body: unkno
       analysisId: access.analysis.id,
       authorId: access.userId,
       action: 'version.frozen',
-      summary: `Froze model version ${v.number}${input.forApproval ? ' for approval' : ''}: ${model.regions.length} regions, ${model.systematics.length} systematics.${input.note ? ` Note: ${input.note}` : ''}${approvalOverride ? ` With ${approvalOverride.openItems.length} open item(s), for this reason: ${approvalOverride.reason}` : ''}`,
-      after: { number: v.number, sha256: v.sha256 },
+      summary: `Froze model version ${v.number}${input.forApproval ? ' for approval' : ''}: ${model.regions.length} regions, ${model.systematics.length} systematics.${input.note ? ` Note: ${input.note}` : ''}${approvalOverride ? ` With ${approvalOverride.openItems.length} open item(s), for this reason: ${approvalOverride.reason}` : ''}${staleLines.length ? ` Stale effects: ${staleLines.join('; ')}.` : ''}`,
+      after: { number: v.number, sha256: v.sha256, ...(staleLines.length ? { staleChoices: input.staleChoices, stale: staleLines } : {}) },
     });
     return view(v, access.userName);
   });

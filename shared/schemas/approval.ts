@@ -24,3 +24,15 @@ export const approvalChecklistSchema = z.object({
   computedAt: z.string(),
 });
 export type ApprovalChecklist = z.infer<typeof approvalChecklistSchema>;
+
+/** A shape effect whose nominal changed since it was uploaded, as the freeze form lists it. */
+export const staleEffectSchema = z.object({
+  effectId: z.number(),
+  entry: z.string(),
+  region: z.string(),
+  process: z.string(),
+  since: z.string(),
+  /** 1-based bins where the nominal now differs from the one the variation was made against. */
+  bins: z.array(z.number()),
+});
+export type StaleEffect = z.infer<typeof staleEffectSchema>;

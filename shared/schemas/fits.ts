@@ -28,6 +28,12 @@ export const freezeVersionSchema = z.strictObject({
    * reason to freeze it nonetheless (shown on the version and in the approval pack).
    */
   overrideReason: z.string().trim().max(4000).optional(),
+  /**
+   * For each shape effect whose nominal changed since it was uploaded (stale), how the version
+   * keeps it: `relative` rescales the stored variation bin by bin by new/old nominal, `absolute`
+   * keeps its yields. Every stale effect needs one; the choice is recorded in the revision.
+   */
+  staleChoices: z.array(z.strictObject({ effectId: z.number().int().positive(), keep: z.enum(['relative', 'absolute']) })).max(10_000).default([]),
 });
 export type FreezeVersion = z.input<typeof freezeVersionSchema>;
 

@@ -139,6 +139,8 @@ export const effectViewSchema = effectShownSchema.extend({
   /** pruned: left out of frozen versions, or kept as its normalisation only */
   pruned: z.enum(['dropped', 'normalisation']).nullable().default(null),
   upload: z.object({ id: z.number(), filename: z.string(), sha256: z.string(), createdAt: z.string() }).nullable(),
+  /** A shape whose nominal changed since it was uploaded: since when, and the nominal it was made against (the current one is `nominal`). */
+  stale: z.object({ since: z.string(), nominalAtUpload: z.array(z.number()) }).nullable(),
 });
 export type EffectView = z.infer<typeof effectViewSchema>;
 

@@ -3,7 +3,7 @@
  * in the register. They do not block an upload; errors (wrong bin count, NaN, negatives…) do.
  */
 export type VariationWarning = { code: VariationWarningCode; message: string; bins?: number[] };
-export type VariationWarningCode = 'same-side' | 'over-100-percent' | 'zero-effect' | 'flat-shape' | 'empty-nominal' | 'within-noise';
+export type VariationWarningCode = 'same-side' | 'over-100-percent' | 'zero-effect' | 'flat-shape' | 'empty-nominal' | 'within-noise' | 'nominal-changed';
 
 /** Relative spread below which a shape effect counts as flat (common practice, no source). */
 const FLAT_TOLERANCE = 1e-3;

@@ -145,6 +145,25 @@ describe('the fits page', () => {
     expect(calls.find((c) => c.method === 'POST' && c.url === '/api/analyses/demo/versions')!.body).toEqual({ note: '', forApproval: true, overrideReason: 'Settled at the meeting.' });
   });
 
+  it('asks how to keep each variation whose nominal changed, and sends the choices with the freeze', async () => {
+    const calls = stubServer((method, url) => {
+      if (url === '/api/analyses/demo') return json(200, overview('analyst', 'blinded'));
+      if (url === '/api/analyses/demo/fits' && method === 'GET') return json(200, []);
+      if (url === '/api/analyses/demo/versions' && method === 'GET') return json(200, [version]);
+      if (url === '/api/analyses/demo/versions' && method === 'POST') return json(201, { ...version, number: 3 });
+      if (url === '/api/analyses/demo/versions/stale-effects') return json(200, [{ effectId: 41, entry: 'jes', region: 'SR', process: 'ttbar', since: '2026-03-01T09:00:00Z', bins: [2, 4] }]);
+      return undefined;
+    });
+    const user = userEvent.setup();
+    render();
+    const group = await screen.findByRole('group', { name: 'Variations made against a nominal that has changed since' });
+    expect(group.textContent).toContain('jes · ttbar in SR');
+    await user.click(within(group).getByLabelText('relative shift'));
+    await user.click(screen.getByRole('button', { name: 'Freeze model version' }));
+    expect(await screen.findByText('Version 3 frozen.')).toBeTruthy();
+    expect(calls.find((c) => c.method === 'POST' && c.url === '/api/analyses/demo/versions')!.body).toEqual({ note: '', forApproval: false, staleChoices: [{ effectId: 41, keep: 'relative' }] });
+  });
+
   it('shows live progress and a cancel button for a running fit', async () => {
     serve('analyst', 'blinded', [fitSummary({ state: 'running', progress: 0.25, stage: 'scan of μ', headline: null })]);
     render();

@@ -152,6 +152,7 @@ describe('pruning markers', () => {
       smoothing: null,
       pruned,
       upload: null,
+      stale: null,
     });
     const none = { edit: false, upload: false, submit: false, accept: false, sendBack: false, retire: false, reopen: false, reassign: false };
     const entry = {

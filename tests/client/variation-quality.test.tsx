@@ -41,6 +41,7 @@ function shape(overrides: Partial<Effect> = {}): Effect {
     smoothing: null,
     pruned: null,
     upload: { id: 4, filename: 'escale.csv', sha256: 'b'.repeat(64), createdAt: '2026-02-01T10:00:00Z' },
+    stale: null,
     ...overrides,
   };
 }

@@ -102,6 +102,8 @@ async function freshProcess(t: TestApp) {
   const [p] = await t.database.db.insert(processes).values({ analysisId: (await ids(t)).analysisId, key: `p${created}`, kind: 'background' }).returning();
   return p.key;
 }
+/** every member of the analysis asks and answers; an admin who is not a member only reads */
+const askers = (ok: number) => ({ ...members(ok), admin: 403 });
 const conveners = (ok: number) => ({ ...all(403), signedOut: 401, convener: ok });
 /** everyone who works on the analysis: readers only read */
 async function freshQuestion(t: TestApp, state: 'open' | 'resolved' = 'open') {
@@ -379,13 +381,14 @@ export const MATRIX: Record<string, Row> = {
   // the review loop: diagnosis, questions, blinding
   'GET /api/analyses/:slug/fits/:fitId/diagnosis/:parameter': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/diagnosis/flare_escale` }), expect: members(200) },
   'GET /api/analyses/:slug/questions': { call: () => ({ path: `${A}/questions?state=open` }), expect: members(200) },
-  'POST /api/analyses/:slug/questions': { call: () => ({ path: `${A}/questions`, body: { entry: 'flare_escale', title: 'Matrix question', body: 'Why so narrow?' } }), expect: members(201) },
+  'POST /api/analyses/:slug/questions': { call: () => ({ path: `${A}/questions`, body: { entry: 'flare_escale', title: 'Matrix question', body: 'Why so narrow?' } }), expect: askers(201) },
   'GET /api/analyses/:slug/questions/:questionId': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}` }), expect: members(200) },
-  'POST /api/analyses/:slug/questions/:questionId/answers': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}/answers`, body: { body: 'Because of the control region.' } }), expect: members(201) },
+  'POST /api/analyses/:slug/questions/:questionId/answers': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}/answers`, body: { body: 'Because of the control region.' } }), expect: askers(201) },
   'POST /api/analyses/:slug/questions/:questionId/resolve': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t)}/resolve`, body: {} }), expect: conveners(200) },
   'POST /api/analyses/:slug/questions/:questionId/reopen': { call: async (t) => ({ path: `${A}/questions/${await freshQuestion(t, 'resolved')}/reopen`, body: { note: 'Again.' } }), expect: conveners(200) },
   'GET /api/analyses/:slug/blinding/checklist': { call: () => ({ path: `${A}/blinding/checklist` }), expect: members(200) },
   'GET /api/analyses/:slug/versions/approval-checklist': { call: () => ({ path: `${A}/versions/approval-checklist` }), expect: members(200) },
+  'GET /api/analyses/:slug/versions/stale-effects': { call: () => ({ path: `${A}/versions/stale-effects` }), expect: members(200) },
   'GET /api/analyses/:slug/blinding': { call: () => ({ path: `${A}/blinding` }), expect: members(200) },
   'POST /api/analyses/:slug/blinding/request': {
     call: async (t) => {

@@ -66,6 +66,39 @@ function PrunedNote({ slug, as }: { slug: string; as: NonNullable<Effect['pruned
   );
 }
 
+/** A shape whose nominal changed since it was uploaded: when, and the old and new nominal of every bin that changed. */
+function StaleNote({ effect }: { effect: Effect }) {
+  const stale = effect.stale;
+  if (!stale) return null;
+  const changed = effect.nominal.map((n, i) => ({ bin: i + 1, before: stale.nominalAtUpload[i], after: n })).filter((b) => b.before !== b.after);
+  return (
+    <div className="rounded-md border border-amber/40 bg-amber-soft/60 px-2 py-1.5 text-xs text-amber-ink">
+      <p className="font-semibold">Nominal changed since upload ({formatDateTime(stale.since)})</p>
+      <p>Its yields were made against the old nominal. The next frozen version asks whether to keep it as a relative shift or as absolute yields; or upload it again.</p>
+      <table className="mt-1 tabular-nums">
+        <caption className="sr-only">Old and new nominal in the bins that changed</caption>
+        <thead>
+          <tr className="text-left">
+            <th className="pr-3 font-medium">Bin</th>
+            <th className="pr-3 text-right font-medium">Nominal at upload</th>
+            <th className="text-right font-medium">Nominal now</th>
+          </tr>
+        </thead>
+        <tbody>
+          {changed.slice(0, 12).map((b) => (
+            <tr key={b.bin}>
+              <td className="pr-3">{b.bin}</td>
+              <td className="pr-3 text-right">{b.before}</td>
+              <td className="text-right">{b.after}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+      {changed.length > 12 && <p>and {changed.length - 12} more bins</p>}
+    </div>
+  );
+}
+
 /** The entry's effects, per region × process, each with its preview, warnings and provenance. */
 export function EffectsList({ slug, entry, regions, processLabels }: { slug: string; entry: EntryDetail; regions: Map<string, RegionInfo>; processLabels: Map<string, string> }) {
   // The effect being smoothed: its card takes a whole row for the before-and-after charts.
@@ -91,6 +124,7 @@ export function EffectsList({ slug, entry, regions, processLabels }: { slug: str
             footer={
               <>
                 {e.pruned && <PrunedNote slug={slug} as={e.pruned} />}
+                <StaleNote effect={e} />
                 <Provenance upload={e.upload} />
                 {e.kind === 'shape' && entry.can.upload && (
                   <SmoothEffect slug={slug} entryKey={entry.key} effect={e} unit={regions.get(e.region)?.unit} open={smoothing === e.id} onOpen={(open) => setSmoothing(open ? e.id : null)} />

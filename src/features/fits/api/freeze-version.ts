@@ -1,5 +1,5 @@
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import type { ApprovalChecklist } from '@shared/schemas/approval';
+import type { ApprovalChecklist, StaleEffect } from '@shared/schemas/approval';
 import type { FreezeVersion, ModelVersion } from '@shared/schemas/fits';
 import { analysisPath, api } from '../../../lib/api-client';
 import { queryKeys } from '../../../lib/query-keys';
@@ -14,6 +14,7 @@ export function useFreezeVersion(slug: string) {
   return useMutation({
     mutationFn: (body: FreezeVersion) => freezeVersion(slug, body),
     onSuccess: () => {
+      // the versions, their checklist and the stale effects (resolved by the freeze)
       void queryClient.invalidateQueries({ queryKey: queryKeys.versions(slug) });
       void queryClient.invalidateQueries({ queryKey: queryKeys.overview(slug) });
     },
@@ -23,4 +24,9 @@ export function useFreezeVersion(slug: string) {
 /** The gates of a version frozen for approval, as they stand now (entries accepted, no open question). */
 export function useVersionChecklist(slug: string, enabled: boolean) {
   return useQuery({ queryKey: [...queryKeys.versions(slug), 'approval-checklist'], queryFn: () => api.get<ApprovalChecklist>(analysisPath(slug, 'versions', 'approval-checklist')), enabled });
+}
+
+/** Shape effects whose nominal changed since upload: the freeze asks how to keep each. */
+export function useStaleEffects(slug: string) {
+  return useQuery({ queryKey: [...queryKeys.versions(slug), 'stale-effects'], queryFn: () => api.get<StaleEffect[]>(analysisPath(slug, 'versions', 'stale-effects')) });
 }

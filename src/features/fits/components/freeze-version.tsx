@@ -6,7 +6,7 @@ import { FormError } from '../../../components/ui/error-notice';
 import { CheckboxField, TextAreaField } from '../../../components/ui/field';
 import { fieldError } from '../../../lib/form-issues';
 import { formatDateTime } from '../../../lib/format';
-import { useFreezeVersion, useVersionChecklist } from '../api/freeze-version';
+import { useFreezeVersion, useStaleEffects, useVersionChecklist } from '../api/freeze-version';
 import { ChecklistView } from '../../../components/status/approval-checklist';
 
 /** Freeze the working model into the next numbered version; a convener may mark it as put forward for approval. */
@@ -16,6 +16,8 @@ export function FreezeVersionForm({ slug, mayMarkForApproval, onFrozen }: { slug
   const [reason, setReason] = useState('');
   const freeze = useFreezeVersion(slug);
   const gates = useVersionChecklist(slug, mayMarkForApproval && forApproval);
+  const stale = useStaleEffects(slug);
+  const [keep, setKeep] = useState<Record<number, 'relative' | 'absolute'>>({});
   const open = gates.data && !gates.data.ready;
   return (
     <form
@@ -23,12 +25,18 @@ export function FreezeVersionForm({ slug, mayMarkForApproval, onFrozen }: { slug
       onSubmit={(e) => {
         e.preventDefault();
         freeze.mutate(
-          { note: note.trim(), forApproval: mayMarkForApproval && forApproval, ...(mayMarkForApproval && forApproval && open && reason.trim() ? { overrideReason: reason.trim() } : {}) },
+          {
+            note: note.trim(),
+            forApproval: mayMarkForApproval && forApproval,
+            ...(mayMarkForApproval && forApproval && open && reason.trim() ? { overrideReason: reason.trim() } : {}),
+            ...(stale.data?.length ? { staleChoices: stale.data.filter((e) => keep[e.effectId]).map((e) => ({ effectId: e.effectId, keep: keep[e.effectId] })) } : {}),
+          },
           {
             onSuccess: (v) => {
               setNote('');
               setForApproval(false);
               setReason('');
+              setKeep({});
               onFrozen?.(v);
             },
           },
@@ -46,6 +54,29 @@ export function FreezeVersionForm({ slug, mayMarkForApproval, onFrozen }: { slug
         error={fieldError({}, freeze.error, 'note')}
         hint="The version keeps the model exactly as it is now: regions, processes, templates, data and every register entry's effects."
       />
+      {stale.data && stale.data.length > 0 && (
+        <fieldset className="flex flex-col gap-1.5 rounded-md border border-amber/40 bg-amber-soft/40 px-3 py-2 text-sm">
+          <legend className="px-1 text-xs font-semibold text-amber-ink">Variations made against a nominal that has changed since</legend>
+          <p className="text-xs text-ink-soft">
+            Choose for each how this version keeps it: as a relative shift (its variation rescaled bin by bin by new/old nominal) or as the absolute yields uploaded. The choice is recorded in the revision.
+          </p>
+          {stale.data.map((e) => (
+            <div key={e.effectId} className="flex flex-wrap items-center gap-x-3 gap-y-1">
+              <span className="min-w-48 font-mono text-xs">
+                {e.entry} · {e.process} in {e.region}
+                <span className="ml-1 font-sans text-ink-muted">(bin{e.bins.length === 1 ? '' : 's'} {e.bins.slice(0, 6).join(', ')}{e.bins.length > 6 ? ', …' : ''})</span>
+              </span>
+              {(['relative', 'absolute'] as const).map((k) => (
+                <label key={k} className="flex items-center gap-1 text-xs">
+                  <input type="radio" name={`stale-${e.effectId}`} checked={keep[e.effectId] === k} onChange={() => setKeep((m) => ({ ...m, [e.effectId]: k }))} />
+                  {k === 'relative' ? 'relative shift' : 'absolute yields'}
+                </label>
+              ))}
+            </div>
+          ))}
+          {fieldError({}, freeze.error, 'staleChoices') && <p className="text-xs text-danger">{fieldError({}, freeze.error, 'staleChoices')}</p>}
+        </fieldset>
+      )}
       {mayMarkForApproval && (
         <CheckboxField
           label="Put this version forward for approval"
