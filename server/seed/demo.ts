@@ -33,7 +33,7 @@ async function writeDemo(db: Tx, scenario: ReturnType<typeof demoScenario>, pass
   for (const demo of scenario.analyses) {
     const [analysis] = await db
       .insert(analyses)
-      .values({ slug: demo.slug, name: demo.name, description: demo.description, blinding: demo.blinded ? 'blinded' : 'unblinded' })
+      .values({ slug: demo.slug, name: demo.name, description: demo.description, blinding: demo.blinded ? 'blinded' : 'unblinded', plotLabels: demo.plotLabels })
       .returning();
     await db.insert(memberships).values(demo.members.map((m) => ({ analysisId: analysis.id, userId: idOf.get(m.email)!, role: m.role })));
     const entryMeta = Object.fromEntries(Object.entries(demo.entries).map(([key, m]) => [key, { ...m, ownerId: idOf.get(m.owner) ?? null }]));

@@ -47,6 +47,8 @@ export type DemoAnalysis = {
   name: string;
   description: string;
   blinded: boolean;
+  /** What every chart of the analysis carries (analyses.plot_labels). */
+  plotLabels: { experiment: string; status: string; luminosity: string; energy: string };
   members: { email: string; role: MemberRole }[];
   model: ExchangeModelInput;
   entries: Record<string, DemoEntryMeta>;
@@ -303,6 +305,7 @@ function vireonAnalysis(): DemoAnalysis {
     name: 'Vireon search in flare pairs',
     description: 'Search for a narrow resonance in the flare-pair mass spectrum with the 2026 LANTERN data. Blinded: signal-region data stay hidden until a convener approves unblinding.',
     blinded: true,
+    plotLabels: { experiment: 'LANTERN', status: 'Internal', luminosity: '38 fb⁻¹', energy: '9 TeV' },
     members: [
       { email: 'mira@lantern.example', role: 'convener' },
       { email: 'otto@lantern.example', role: 'analyst' },
@@ -367,6 +370,7 @@ function cascadeAnalysis(): DemoAnalysis {
     name: 'Cascade production rate',
     description: 'Measurement of the cascade production rate relative to its prediction. Unblinded and under review.',
     blinded: false,
+    plotLabels: { experiment: 'LANTERN', status: 'Internal', luminosity: '38 fb⁻¹', energy: '9 TeV' },
     members: [
       { email: 'mira@lantern.example', role: 'convener' },
       { email: 'otto@lantern.example', role: 'analyst' },
@@ -459,6 +463,7 @@ function pilotAnalysis(): DemoAnalysis {
     name: 'Vireon search, 2025 pilot run',
     description: 'The first look for the vireon, on the 2025 pilot run: unblinded, with its scan over 25 masses and the global significance of its largest excess.',
     blinded: false,
+    plotLabels: { experiment: 'LANTERN', status: 'Preliminary', luminosity: '4.2 fb⁻¹', energy: '9 TeV' },
     members: [
       { email: 'mira@lantern.example', role: 'convener' },
       { email: 'otto@lantern.example', role: 'analyst' },
@@ -552,6 +557,7 @@ function cascadeModesAnalysis(): DemoAnalysis {
     name: 'Cascade production in two modes',
     description: 'Measurement of the direct and the associated cascade production strengths together, with their correlation and contour. Unblinded.',
     blinded: false,
+    plotLabels: { experiment: 'LANTERN', status: 'Internal', luminosity: '38 fb⁻¹', energy: '9 TeV' },
     members: [
       { email: 'mira@lantern.example', role: 'convener' },
       { email: otto, role: 'analyst' },

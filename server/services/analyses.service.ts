@@ -1,9 +1,10 @@
 import { allowedActions } from '@shared/permissions';
-import { createAnalysisSchema, type AnalysisOverview, type AnalysisSummary, type EntryState } from '@shared/schemas/api';
+import { createAnalysisSchema, plotLabelsSchema, type AnalysisOverview, type PlotLabels, type AnalysisSummary, type EntryState } from '@shared/schemas/api';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import { analysisBySlug, insertAnalysis, listAnalysesFor, overviewFacts } from '../db/analyses.repository';
 import { conflict } from '../errors';
+import { updatePlotLabels } from '../db/pack.repository';
 
 export async function listAnalyses(ctx: AppContext, user: Express.User): Promise<AnalysisSummary[]> {
   const rows = await listAnalysesFor(ctx.db, user.id, user.isAdmin);
@@ -45,6 +46,7 @@ export async function getOverview(ctx: AppContext, access: Access): Promise<Anal
       signalStrength: { start: a.muStart, min: a.muMin, max: a.muMax },
       overConstraintThreshold: a.overConstraintThreshold,
       createdAt: a.createdAt.toISOString(),
+      plotLabels: plotLabelsOf(a),
     },
     role: access.role,
     permissions: allowedActions(access.role, access.isAdmin),
@@ -59,4 +61,14 @@ export async function getOverview(ctx: AppContext, access: Access): Promise<Anal
     latestFit: fit ? { id: fit.id, state: fit.state, label: fit.label, createdAt: fit.createdAt.toISOString() } : null,
     openQuestions: facts.openQuestions,
   };
+}
+
+/** The plot labels as stored, each field present (a row written before they existed has the defaults). */
+export const plotLabelsOf = (a: { plotLabels: Partial<PlotLabels> | null }): PlotLabels => ({ experiment: '', status: '', luminosity: '', energy: '', ...(a.plotLabels ?? {}) });
+
+/** A convener sets the labels every chart carries: each a short text on one line; a bad field → 400 naming it, nothing saved. */
+export async function setPlotLabels(ctx: AppContext, access: Access, body: unknown): Promise<PlotLabels> {
+  const labels = plotLabelsSchema.parse(body);
+  await updatePlotLabels(ctx.db, access.analysis.id, labels);
+  return labels;
 }

@@ -73,6 +73,25 @@ export const createAnalysisSchema = z.strictObject({
 });
 export type CreateAnalysis = z.input<typeof createAnalysisSchema>;
 
+/**
+ * The labels every chart of an analysis carries, on screen and in the approval pack: the
+ * experiment, a status ("Internal", "Preliminary"), the integrated luminosity and the
+ * centre-of-mass energy, each a short text as it should read (e.g. "38 fb⁻¹", "9 TeV").
+ */
+const plotLabelText = (max: number) =>
+  z
+    .string()
+    .trim()
+    .max(max, `must be at most ${max} characters`)
+    .regex(/^[^\p{Cc}<>]*$/u, 'must be plain text on one line, without < or >');
+export const plotLabelsSchema = z.strictObject({
+  experiment: plotLabelText(40),
+  status: plotLabelText(40),
+  luminosity: plotLabelText(40),
+  energy: plotLabelText(40),
+});
+export type PlotLabels = z.infer<typeof plotLabelsSchema>;
+
 export const analysisOverviewSchema = z.object({
   analysis: z.object({
     slug: z.string(),
@@ -82,6 +101,8 @@ export const analysisOverviewSchema = z.object({
     signalStrength: z.object({ start: z.number(), min: z.number(), max: z.number() }),
     overConstraintThreshold: z.number(),
     createdAt: z.string(),
+    /** what every chart of the analysis carries (PUT …/plot-labels, conveners) */
+    plotLabels: plotLabelsSchema,
   }),
   role: memberRoleSchema.nullable(),
   /** what the caller may do here (from shared/permissions.ts) */

@@ -117,7 +117,7 @@ export function fitDetail(overrides: Partial<StoredFit> = {}): StoredFit {
 /** The overview of an analysis as a member of `role` sees it. */
 export function overview(role: MemberRole, blinding: AnalysisOverview['analysis']['blinding'] = 'blinded'): AnalysisOverview {
   return {
-    analysis: { slug: 'demo', name: 'Demo', description: '', blinding, signalStrength: { start: 1, min: -5, max: 10 }, overConstraintThreshold: 0.5, createdAt: '2026-01-01T00:00:00Z' },
+    analysis: { slug: 'demo', name: 'Demo', description: '', blinding, signalStrength: { start: 1, min: -5, max: 10 }, overConstraintThreshold: 0.5, createdAt: '2026-01-01T00:00:00Z', plotLabels: { experiment: 'LANTERN', status: 'Internal', luminosity: '38 fb⁻¹', energy: '9 TeV' } },
     role,
     permissions: allowedActions(role, false),
     counts: { regions: 2, processes: 2, members: 3, entries: 4, entriesByState: { draft: 0, submitted: 0, accepted: 4, sent_back: 0, retired: 0 } },
