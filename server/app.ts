@@ -25,6 +25,7 @@ import { toysRoutes } from './routes/toys.routes';
 import { hypothesisScansRoutes } from './routes/hypothesis-scans.routes';
 import { fitsRoutes } from './routes/fits.routes';
 import { reviewRoutes } from './routes/review.routes';
+import { packRoutes } from './routes/pack.routes';
 
 /** A JSON body must be UTF-8: other bytes would be decoded into replacement characters and saved. */
 function refuseNonUtf8(_req: unknown, _res: unknown, body: Buffer) {
@@ -72,6 +73,7 @@ export function createApp(database: Database, config: Config, deps: { mailer: Ma
     ...registerRoutes(ctx, auth),
     ...invitationsRoutes(ctx, auth),
     ...fitsRoutes(ctx, auth),
+    ...packRoutes(ctx, auth),
     ...toysRoutes(ctx, auth),
     ...hypothesisScansRoutes(ctx, auth),
     ...reviewRoutes(ctx, auth),
