@@ -12,6 +12,8 @@ import { answerQuestion, raiseQuestion, stepQuestion } from '../services/questio
 import { startReviewSet } from '../services/review-sets.service';
 import { freezeVersion } from '../services/versions.service';
 import { startHypothesisScan } from '../services/hypothesis-scans.service';
+import { getModel } from '../services/model.service';
+import { putTemplate } from '../services/model-edit.service';
 
 /**
  * The demo's story on its first start, told through the same services as a person's requests, so
@@ -31,6 +33,8 @@ import { startHypothesisScan } from '../services/hypothesis-scans.service';
  *   halo_norm is over-constrained; an open question on it with one answer, and a resolved one;
  *   once that fit is done, a revised continuum shape saved to its submitted entry, with what that
  *   upload does to the result (when the fits run in this process).
+ * - then (also only then) the pilot run's control-region continuum template is re-derived: its
+ *   accepted slope variation, made against the old template, is marked stale and goes back to review.
  */
 /** The story is told once: while the demo's search has no frozen version, it has not been. */
 export async function storyPending(ctx: Pick<AppContext, 'db'>) {
@@ -113,6 +117,12 @@ export async function seedStory(ctx: AppContext, baseUrl: string, options: { wai
     // a revised variation while its entry is under review: the entry shows what it does to the observed fit
     await reviseShape(ctx, ottoC, 'continuum_shape', 'continuum_shape_steeper_tail.csv', 0.04, baseUrl);
     await impactChecksIdle();
+    // the pilot's control-region continuum re-derived from a wider sideband (after its scan, which
+    // read the frozen version): the slope variation made against the old template goes stale
+    const model = await getModel(ctx, ottoP);
+    const cr = model.templates.find((t) => t.region === 'CR' && t.process === 'continuum')!;
+    const last = Math.max(1, cr.nominal.length - 1);
+    await putTemplate(ctx, ottoP, 'CR', 'continuum', { nominal: cr.nominal.map((v, i) => round(v * (1 + 0.03 * (i / last - 0.5)))), variance: cr.variance }, baseUrl);
   }
   await ctx.mailer.idle();
 }

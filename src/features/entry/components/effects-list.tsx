@@ -74,7 +74,6 @@ function StaleNote({ effect }: { effect: Effect }) {
   return (
     <div className="rounded-md border border-amber/40 bg-amber-soft/60 px-2 py-1.5 text-xs text-amber-ink">
       <p className="font-semibold">Nominal changed since upload ({formatDateTime(stale.since)})</p>
-      <p>Its yields were made against the old nominal. The next frozen version asks whether to keep it as a relative shift or as absolute yields; or upload it again.</p>
       <table className="mt-1 tabular-nums">
         <caption className="sr-only">Old and new nominal in the bins that changed</caption>
         <thead>
