@@ -377,6 +377,11 @@ export const MATRIX: Record<string, Row> = {
     expect: analystOnly(202),
   },
   'GET /api/analyses/:slug/fits/:fitId/export': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/export?format=csv&table=summary` }), expect: members(200) },
+  'GET /api/analyses/:slug/fits/:fitId/pack': { call: async (t, _who, n) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/pack?format=${n % 2 ? 'zip' : 'html'}` }), expect: members(200) },
+  'PUT /api/analyses/:slug/plot-labels': {
+    call: () => ({ path: `${A}/plot-labels`, body: { experiment: 'LANTERN', status: 'Internal', luminosity: '38 fb⁻¹', energy: '9 TeV' } }),
+    expect: conveners(200),
+  },
 
   // the review loop: diagnosis, questions, blinding
   'GET /api/analyses/:slug/fits/:fitId/diagnosis/:parameter': { call: async (t) => ({ path: `${A}/fits/${(await convergedFit(t)).fitId}/diagnosis/flare_escale` }), expect: members(200) },
