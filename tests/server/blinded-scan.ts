@@ -1,4 +1,5 @@
 import { expect } from 'vitest';
+import { strFromU8, unzipSync } from 'fflate';
 import { and, eq, inArray } from 'drizzle-orm';
 import { analyses, entries, fits, hypothesisScans, impactChecks, outbox, questions, regions, reviewSets, signalHypotheses, toyRuns } from '../../server/db/schema';
 import { fitPartNames } from '../../shared/schemas/fits';
@@ -76,7 +77,15 @@ function expand(template: string, values: Values): string[] {
 const VARIANTS: Record<string, string[]> = {
   '/api/analyses/:slug/fits/:fitId/export': ['?format=json', ...exportTableSchema.options.map((table) => `?format=csv&table=${table}`)],
   '/api/analyses/:slug/questions': ['?state=open', '?state=answered', '?state=resolved', ''],
+  '/api/analyses/:slug/fits/:fitId/pack': ['?format=html', '?format=zip'],
 };
+
+/** Every file of a zip as one text (the approval pack's zip: its HTML, JSON and CSVs). */
+function unzippedText(body: Buffer): string {
+  return Object.entries(unzipSync(new Uint8Array(body)))
+    .map(([name, bytes]) => `${name}\n${strFromU8(bytes)}`)
+    .join('\n');
+}
 
 /** Routes that never carry an analysis's data. */
 const SKIP = new Set(['/api/auth/csrf', '/api/invitations/:token']);
@@ -93,9 +102,10 @@ export async function scanForBlindedCounts(t: TestApp, slug: string, callers: Re
     const paths = expand(route.path, values).flatMap((p) => (VARIANTS[route.path] ?? ['']).map((q) => p + q));
     for (const path of paths)
       for (const [who, client] of Object.entries(callers)) {
-        const res = await client.get(path);
+        const zip = path.endsWith('format=zip');
+        const res = zip ? await client.get(path).responseType('blob') : await client.get(path);
         read += 1;
-        const text = res.text ?? JSON.stringify(res.body ?? null);
+        const text = zip ? (res.status === 200 ? unzippedText(res.body as Buffer) : Buffer.from((res.body as Buffer | undefined) ?? '').toString('utf8')) : (res.text ?? JSON.stringify(res.body ?? null));
         expect(MARK.test(text), `after ${label}: GET ${path} sent a blinded signal-region count to ${who} (status ${res.status})`).toBe(false);
       }
   }
