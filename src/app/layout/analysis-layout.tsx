@@ -1,5 +1,6 @@
 import { Link, NavLink, Outlet, useParams } from 'react-router';
 import { BlindingBadge } from '../../components/status/blinding-badge';
+import { PlotLabelsProvider } from '../../components/charts/plot-label';
 import { ErrorNotice } from '../../components/ui/error-notice';
 import { Loading } from '../../components/ui/loading';
 import { useAnalysis } from '../../features/analyses/api/get-analysis';
@@ -65,7 +66,9 @@ export function AnalysisLayout() {
               </Link>
             </div>
           ) : (
-            <Outlet />
+            <PlotLabelsProvider labels={overview?.analysis.plotLabels ?? null}>
+              <Outlet />
+            </PlotLabelsProvider>
           )}
         </main>
       </div>

@@ -12,7 +12,7 @@ export const ACTION_LABELS: Record<Action, string> = {
   'variation.upload': 'Upload up/down variations',
   'groups.edit': 'Move entries between groups',
   'version.freeze': 'Freeze a model version',
-  'version.approve': 'Freeze a version for approval',
+  'version.approve': 'Freeze a version for approval; set the plot labels',
   'fit.run': 'Run fits',
   'question.raise': 'Ask questions on parameters, regions, bins, fits and versions',
   'question.answer': 'Answer questions',
