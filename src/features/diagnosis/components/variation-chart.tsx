@@ -8,10 +8,11 @@ import { formatEdge } from '../../../lib/format';
 import { theme } from '../../../lib/palette';
 import { formatFixed, formatSigned } from '../../../lib/stats-format';
 import { formatShare } from './share-bars';
+import { PlotLabel } from '../../../components/charts/plot-label';
 
 const W = 560;
 const H = 210;
-const M = { left: 60, right: 12, top: 12, bottom: 30 };
+const M = { left: 60, right: 12, top: 28, bottom: 30 };
 
 /** How to say a ratio |variation| / √ν̂: above 1 the effect exceeds what the data can resolve in that bin. */
 export function ratioWords(ratio: number): string {
@@ -53,6 +54,7 @@ export function VariationChart({ region, parameter }: { region: DiagnosisRegion;
         role="img"
         aria-label={`${title}: ${bins.length} bins; the largest ratio of the change to √(expected) is ${formatFixed(Math.max(0, ...bins.map((b) => b.ratio)), 1)}. The numbers are in the table.`}
       >
+        <PlotLabel x={M.left} y={13} />
         <LeftAxis scale={y} x={M.left} title="change in events" />
         {bins.map((b) => {
           const x0 = x(b.bin) ?? 0;

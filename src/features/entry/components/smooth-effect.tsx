@@ -13,6 +13,7 @@ import { checkWith, fieldError, type FieldErrors } from '../../../lib/form-issue
 import { theme } from '../../../lib/palette';
 import { useSmoothEffect } from '../api/smooth-effect';
 import { Warnings } from './effect-card';
+import { PlotLabel } from '../../../components/charts/plot-label';
 
 type Effect = EntryDetail['effects'][number];
 type Method = 'median-hanning' | 'local-regression';
@@ -26,7 +27,7 @@ export function smoothingInWords(s: { method: string; params: Record<string, num
 
 const W = 320;
 const H = 132;
-const M = { left: 44, right: 18, top: 8, bottom: 20 };
+const M = { left: 44, right: 18, top: 24, bottom: 20 };
 
 /** One side's relative shift (ν − ν⁰)/ν⁰ per bin, as it is now (dashed) and smoothed (solid). */
 export function BeforeAfterChart({ nominal, edges, before, after, side, unit = '' }: { nominal: number[]; edges: number[]; before: number[]; after: number[]; side: 'up' | 'down'; unit?: string }) {
@@ -56,6 +57,7 @@ export function BeforeAfterChart({ nominal, edges, before, after, side, unit = '
       role="img"
       aria-label={`${name} shift relative to the nominal per bin, as it is now and smoothed: largest ${(largest(was) * 100).toFixed(2)} % now, ${(largest(now) * 100).toFixed(2)} % smoothed`}
     >
+      <PlotLabel x={M.left} y={13} />
       <line x1={M.left} x2={W - M.right} y1={y(0)} y2={y(0)} stroke={theme.inkMuted} strokeWidth={1} />
       <path d={step(was)} fill="none" stroke={theme.inkMuted} strokeWidth={1.4} strokeDasharray="4 3" />
       <path d={step(now)} fill="none" stroke={colour} strokeWidth={2} />

@@ -4,10 +4,11 @@ import type { ShiftPrecisionView } from '@shared/schemas/register';
 import { BottomAxis, LeftAxis } from '../../../components/charts/axes';
 import { formatCount, formatEdge } from '../../../lib/format';
 import { theme } from '../../../lib/palette';
+import { PlotLabel } from '../../../components/charts/plot-label';
 
 const W = 320;
 const H = 128;
-const M = { left: 44, right: 16, top: 8, bottom: 20 };
+const M = { left: 44, right: 16, top: 24, bottom: 20 };
 
 export type VariationShape = {
   kind: 'scale' | 'shape';
@@ -86,6 +87,7 @@ export function VariationChart({ v, unit = '', warnBins = [], label }: { v: Vari
   const largest = all.length ? Math.max(...all.map((r) => Math.abs(r - 1))) : 0;
   return (
     <svg viewBox={`0 0 ${W} ${H}`} className="h-auto w-full max-w-[22rem]" role="img" aria-label={`${label}: up and down over nominal per bin${v.precision && v.precision.up.source !== 'none' ? ', each shift with its error' : ''}; largest change ${(largest * 100).toFixed(1)} %`}>
+      <PlotLabel x={M.left} y={13} />
       {[...warned].map((b) =>
         b < bins ? <rect key={b} x={x(v.edges[b])} y={M.top} width={x(v.edges[b + 1]) - x(v.edges[b])} height={H - M.top - M.bottom} fill={theme.amber} opacity={0.18} /> : null,
       )}

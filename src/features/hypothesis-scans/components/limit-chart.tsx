@@ -7,10 +7,11 @@ import { ChartFigure } from '../../../components/charts/chart-figure';
 import { theme } from '../../../lib/palette';
 import { formatFixed } from '../../../lib/stats-format';
 import { valueLabel } from '../scan-words';
+import { PlotLabel } from '../../../components/charts/plot-label';
 
 const W = 560;
 const H = 280;
-const M = { left: 60, right: 40, top: 12, bottom: 42 };
+const M = { left: 60, right: 40, top: 28, bottom: 42 };
 
 type Bands = { minus2: number; minus1: number; median: number; plus1: number; plus2: number };
 
@@ -52,6 +53,7 @@ export function LimitChart({ result }: { result: HypothesisScanResult }) {
         role="img"
         aria-label={`${title}: ${withBands.length} expected limits with bands${observed.length ? `, ${observed.length} observed limits, ${excluded} of them below μ = 1` : ''}.`}
       >
+        <PlotLabel x={M.left} y={13} />
         <GridLines scale={y} x0={M.left} x1={W - M.right} />
         <path d={band('minus2', 'plus2')} fill={theme.amber} fillOpacity={0.16} />
         <path d={band('minus1', 'plus1')} fill={theme.amber} fillOpacity={0.34} />

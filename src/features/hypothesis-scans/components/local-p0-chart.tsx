@@ -8,10 +8,11 @@ import { pFromZ } from '../../../lib/normal';
 import { theme } from '../../../lib/palette';
 import { formatFixed, formatProbability } from '../../../lib/stats-format';
 import { valueLabel } from '../scan-words';
+import { PlotLabel } from '../../../components/charts/plot-label';
 
 const W = 560;
 const H = 280;
-const M = { left: 60, right: 40, top: 12, bottom: 42 };
+const M = { left: 60, right: 40, top: 28, bottom: 42 };
 
 /** Significance levels marked across the chart: 3σ and 5σ drawn firmly, 1σ, 2σ and 4σ faintly (common practice, no source). */
 const LEVELS = [1, 2, 3, 4, 5].map((z) => ({ z, p: pFromZ(z), strong: z === 3 || z === 5 }));
@@ -61,6 +62,7 @@ export function LocalP0Chart({ result }: { result: HypothesisScanResult }) {
         role="img"
         aria-label={`${title} over ${pts.length} hypotheses from ${formatFixed(pts[0].value, 0)} to ${formatFixed(pts[pts.length - 1].value, 0)}${lowest ? `; smallest observed p0 ${formatProbability(lowest.local!.p0)} at ${formatFixed(lowest.value, 1)}` : ''}.`}
       >
+        <PlotLabel x={M.left} y={13} />
         {LEVELS.filter((l) => l.p >= y.domain()[1]).map((l) => (
           <g key={l.z}>
             <line x1={M.left} x2={W - M.right} y1={y(l.p)} y2={y(l.p)} stroke={l.strong ? theme.plum : theme.rule} strokeWidth={l.strong ? 1 : 0.8} strokeDasharray={l.strong ? '6 3' : '2 3'} />

@@ -7,10 +7,11 @@ import { ChartFigure } from '../../../components/charts/chart-figure';
 import { formatCount, formatEdge } from '../../../lib/format';
 import { theme } from '../../../lib/palette';
 import { uniformBins } from '../toy-stats';
+import { PlotLabel } from '../../../components/charts/plot-label';
 
 const W = 520;
 const H = 250;
-const M = { left: 56, right: 16, top: 14, bottom: 40 };
+const M = { left: 56, right: 16, top: 30, bottom: 40 };
 const CURVE_POINTS = 161;
 
 export type ChartMarker = { value: number; label: string; title: string };
@@ -101,6 +102,7 @@ export function ToyHistogramChart({
         aria-label={`${title}: ${formatCount(total)} toys in ${bins} bins from ${formatEdge(edges[0])} to ${formatEdge(edges[bins])}${log ? ', counts on a log scale' : ''}.`}
         aria-describedby={descId}
       >
+        <PlotLabel x={M.left} y={13} />
         {log ? (
           <g aria-hidden>
             {decades.map((t) => (
