@@ -2,7 +2,7 @@ import type { ReactNode } from 'react';
 import { Link } from 'react-router';
 import type { FitDetail } from '@shared/schemas/fits';
 import { formatDateTime } from '../../../lib/format';
-import { EXPORT_TABLES, exportCsvUrl, exportJsonUrl } from '../api/export-links';
+import { EXPORT_TABLES, exportCsvUrl, exportJsonUrl, exportLatexUrl } from '../api/export-links';
 import { FitStateBadge } from '../../../components/status/fit-state';
 import { Badge } from '../../../components/ui/badge';
 import { datasetInWords, diagnosisPath, fitName, optionsInWords, variantInWords } from '../../../lib/fits';
@@ -20,11 +20,14 @@ export function ExportLinks({ slug, fit }: { slug: string; fit: FitDetail }) {
       </a>
       {converged &&
         // a fit with μ hidden has no summary or grouped impacts to export
-        EXPORT_TABLES.filter((t) => !(fit.options.hiddenMu && (t.table === 'summary' || t.table === 'groups'))).map((t) => (
+        EXPORT_TABLES.filter((t) => !(fit.options.hiddenMu && (t.table === 'summary' || t.table === 'groups'))).map((t) => [
           <a key={t.table} className={link} href={exportCsvUrl(slug, fit.id, t.table)} download title={`${t.title} (CSV)`}>
             {t.label} CSV
-          </a>
-        ))}
+          </a>,
+          <a key={`${t.table}-latex`} className={link} href={exportLatexUrl(slug, fit.id, t.table)} download title={`${t.title} (LaTeX table)`}>
+            {t.label} LaTeX
+          </a>,
+        ])}
     </nav>
   );
 }
