@@ -1,6 +1,6 @@
-import Papa from 'papaparse';
+import { z } from 'zod';
 import { fitOptionsSchema, type FitOptions, type FitResult } from '@shared/schemas/fit';
-import { exportTableSchema, startFitSchema, type FitComparison, type FitPartName, type FitResultHead, type FitSummary } from '@shared/schemas/fits';
+import { exportFormatSchema, exportTableSchema, startFitSchema, type ExportTable, type FitComparison, type FitPartName, type FitResultHead, type FitSummary } from '@shared/schemas/fits';
 import type { ExchangeModel } from '@shared/schemas/exchange';
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
@@ -13,6 +13,7 @@ import { isWithheld, withheldInFit, withheldResultMessage, type BlindingRule } f
 import { findVersion } from './versions.service';
 import { cancelJob, fitsTable } from '../runs/run-rows';
 import { untilStopped } from '../runs/local-runner';
+import { escapeLatex, plainTable, pullsTable, systematicsTable, toCsv, toLatex, yieldsTable, type NoteTable } from './note-tables';
 
 
 /**
@@ -231,25 +232,52 @@ export async function compareFits(ctx: AppContext, access: Access, aId: number, 
   };
 }
 
-const csv = (rows: (string | number | boolean | null)[][]) => Papa.unparse(rows, { newline: '\n' }) + '\n';
+const TABLE_TITLES: Record<ExportTable, string> = {
+  summary: 'Fit summary',
+  parameters: 'Fitted parameters',
+  nuisance: 'Nuisance parameters',
+  groups: 'Grouped impacts on $\\mu$',
+  correlation: 'Correlations of the fitted parameters',
+  yields: 'Yields per region and process, pre- and post-fit, summed over the bins of each region',
+  systematics: 'Systematic uncertainties: the range of each entry\'s effect on the yields per region, over its processes and bins, at $+1\\sigma$ (up) and $-1\\sigma$ (down)',
+  pulls: 'Pulls and constraints of the nuisance parameters, and their post-fit impacts on $\\mu$, ranked',
+};
 
-/** The result as JSON (a failed fit: its report), or one table as CSV (converged fits only). */
+/** What a table's caption adds, per table, about how its numbers were made or what is withheld. */
+function captionNotes(which: ExportTable, hiddenMu: boolean): string[] {
+  const notes: string[] = [];
+  if (which === 'yields') notes.push('Errors added in quadrature over bins, correlations between bins neglected');
+  if (which === 'yields' && hiddenMu) notes.push('post-fit yields of signal regions withheld');
+  if (which === 'pulls' && hiddenMu) notes.push('impacts on $\\mu$ withheld');
+  return notes;
+}
+
+/**
+ * The result as JSON (a failed fit: its report), or one table as CSV or LaTeX (converged fits
+ * only). Every table is built from the same redacted result as the fit's head (the blinding rule,
+ * and a hidden-μ fit's result as stored without μ), and the systematics from the fit's frozen version.
+ */
 export async function exportFit(ctx: AppContext, access: Access, id: number, format: unknown, table: unknown): Promise<{ type: string; filename: string; body: string }> {
   const stem = `${access.analysis.slug}-fit-${id}`;
-  if (format !== 'csv') {
+  const query = z.object({ format: exportFormatSchema.default('json') }).parse({ format });
+  if (query.format === 'json') {
     const row = await findFit(ctx, access, id);
     const summary = summaryOf(access.analysis, row.fit, row.version, row.by);
     const detail = { ...summary, result: summary.withheld ? null : blindResult(access, await storedResult(ctx.db, id)) };
     return { type: 'application/json', filename: `${stem}.json`, body: JSON.stringify(detail, null, 2) };
   }
-  const which = exportTableSchema.parse(table);
-  const { result } = await convergedResult(ctx, access, id);
+  const { table: which } = z.object({ table: exportTableSchema }).parse({ table });
+  const { row, result } = await convergedResult(ctx, access, id);
   if (!result.summary && (which === 'summary' || which === 'parameters'))
-    throw conflict(`Fit ${id} hides μ: its ${which} table would show what it hides. Its pulls (nuisance) and correlations are there.`);
+    throw conflict(`Fit ${id} hides μ: its ${which} table would show what it hides. Its pulls, yields, systematics and correlations are there.`);
+  const hiddenMu = Boolean((row.fit.options as { hiddenMu?: boolean }).hiddenMu);
+  const name = row.fit.label ? `fit ${escapeLatex(row.fit.label)} (id ${id})` : `fit ${id}`;
+  const caption = [`${TABLE_TITLES[which]}; ${name}, model version ${row.version}${hiddenMu ? ', $\\mu$ hidden' : ''}`, ...captionNotes(which, hiddenMu)].join('. ') + '.';
+  const label = `tab:${stem}-${which}`;
   const s = result.summary!;
-  const tables: Record<typeof which, () => string> = {
+  const tables: Record<ExportTable, () => NoteTable | Promise<NoteTable>> = {
     summary: () =>
-      csv([
+      plainTable(caption, label, [
         ['quantity', 'value', 'meaning'],
         ['mu', s.mu.value, 'best-fit signal strength'],
         ['mu_error', s.mu.error, 'sqrt(V_mumu)'],
@@ -271,18 +299,23 @@ export async function exportFit(ctx: AppContext, access: Access, id: number, for
         ['iterations', result.convergence.iterations, 'Newton iterations'],
         ['warnings', result.convergence.warnings.join(' | '), 'convergence warnings'],
       ]),
-    parameters: () => csv([['name', 'label', 'kind', 'group', 'value', 'error', 'fixed', 'at_bound'], ...result.parameters.map((p) => [p.name, p.label, p.kind, p.group, p.value, p.error, p.fixed, p.atBound])]),
+    parameters: () => plainTable(caption, label, [['name', 'label', 'kind', 'group', 'value', 'error', 'fixed', 'at_bound'], ...result.parameters.map((p) => [p.name, p.label, p.kind, p.group, p.value, p.error, p.fixed, p.atBound])]),
     nuisance: () =>
-      csv([
+      plainTable(caption, label, [
         ['name', 'group', 'pull', 'constraint', 'over_constrained', 'normalised_pull', 'quick_impact', 'postfit_up', 'postfit_down', 'prefit_up', 'prefit_down', 'rank'],
         ...result.nuisance.map((n) => [n.name, n.group, n.pull, n.constraint, n.overConstrained, n.normalisedPull, n.quickImpact, n.postfitImpact?.up ?? null, n.postfitImpact?.down ?? null, n.prefitImpact?.up ?? null, n.prefitImpact?.down ?? null, n.rank]),
       ]),
-    groups: () => csv([['group', 'impact', 'parameters'], ...result.groupedImpacts.map((g) => [g.group, g.impact, g.parameters.join(' ')])]),
+    groups: () => plainTable(caption, label, [['group', 'impact', 'parameters'], ...result.groupedImpacts.map((g) => [g.group, g.impact, g.parameters.join(' ')])]),
     correlation: () => {
       const c = result.correlation!;
       const n = c.names.length;
-      return csv([['', ...c.names], ...c.names.map((name, i) => [name, ...c.values.slice(i * n, (i + 1) * n)])]);
+      return plainTable(caption, label, [['', ...c.names], ...c.names.map((name, i) => [name, ...c.values.slice(i * n, (i + 1) * n)])]);
     },
+    yields: () => yieldsTable(result, caption, label),
+    systematics: async () => systematicsTable((await findVersion(ctx, access.analysis.id, row.version)).model as ExchangeModel, caption, label),
+    pulls: () => pullsTable(result, caption, label),
   };
-  return { type: 'text/csv; charset=utf-8', filename: `${stem}-${which}.csv`, body: tables[which]() };
+  const built = await tables[which]();
+  if (query.format === 'latex') return { type: 'application/x-latex; charset=utf-8', filename: `${stem}-${which}.tex`, body: toLatex(built) };
+  return { type: 'text/csv; charset=utf-8', filename: `${stem}-${which}.csv`, body: toCsv(built) };
 }

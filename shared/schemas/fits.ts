@@ -158,5 +158,6 @@ export const fitComparisonSchema = z.object({
 });
 export type FitComparison = z.infer<typeof fitComparisonSchema>;
 
-export const exportTableSchema = z.enum(['summary', 'parameters', 'nuisance', 'groups', 'correlation']);
+export const exportTableSchema = z.enum(['summary', 'parameters', 'nuisance', 'groups', 'correlation', 'yields', 'systematics', 'pulls']);
+export const exportFormatSchema = z.enum(['json', 'csv', 'latex']);
 export type ExportTable = z.infer<typeof exportTableSchema>;
