@@ -129,9 +129,10 @@ function correlationColour(r: number): string {
 export function correlationChart(names: string[], values: number[], labels: PlotLabels, title: string): string {
   const n = names.length;
   const cell = Math.max(9, Math.min(18, Math.floor(460 / Math.max(1, n))));
-  const L = 190;
-  const top = LABEL_BAND + 150;
-  const W = L + n * cell + 90;
+  const longest = Math.min(30, Math.max(4, ...names.map((nm) => nm.length)));
+  const L = 16 + longest * 6;
+  const top = LABEL_BAND + 16 + Math.min(24, longest) * 5.4;
+  const W = Math.max(360, L + n * cell + 90);
   const H = top + n * cell + 20;
   const cells: string[] = [];
   for (let i = 0; i < n; i++)
@@ -170,7 +171,7 @@ export function regionChart(d: RegionChartInput, labels: PlotLabels, id: string)
   const hatch = `hatch-${id}`;
   const W = 560;
   const L = 62;
-  const R = 150;
+  const R = 170;
   const top = LABEL_BAND + 12;
   const mainH = 190;
   const ratioTop = top + mainH + 12;
@@ -230,7 +231,7 @@ export function regionChart(d: RegionChartInput, labels: PlotLabels, id: string)
   legend.push({ swatch: `<line x1="0" x2="11" y1="6" y2="6" stroke="${COLOURS.ink}" stroke-width="1.4"/><rect y="2" width="11" height="8" fill="url(#${hatch})"/>`, text: `${d.stage} total ± 1σ` });
   if (d.data) legend.push({ swatch: `<circle cx="5.5" cy="6" r="3" fill="${COLOURS.ink}"/>`, text: `${d.dataLabel} ± √n` });
   const lx = W - R + 14;
-  parts.push(legend.map((l, i) => `<g transform="translate(${lx} ${top + i * 17})">${l.swatch}<text x="16" y="10" font-size="10.5" fill="${COLOURS.ink}">${esc(cut(l.text, 20))}</text></g>`).join(''));
+  parts.push(legend.map((l, i) => `<g transform="translate(${lx} ${top + i * 17})">${l.swatch}<text x="16" y="10" font-size="10.5" fill="${COLOURS.ink}">${esc(cut(l.text, 24))}</text></g>`).join(''));
   if (d.dataNote) parts.push(`<text x="${lx}" y="${top + legend.length * 17 + 14}" font-size="10" fill="${COLOURS.danger}">${esc(d.dataNote)}</text>`);
   const defs = `<defs><pattern id="${hatch}" width="5" height="5" patternUnits="userSpaceOnUse" patternTransform="rotate(45)"><line x1="0" y1="0" x2="0" y2="5" stroke="${COLOURS.ink}" stroke-width="1" opacity="0.45"/></pattern></defs>`;
   return svg(W, H, d.title, labels, `${defs}${parts.join('')}`);

@@ -41,6 +41,8 @@ p { margin: 6px 0; }
 .answer { background: ${COLOURS.raised}; border: 1px solid ${COLOURS.rule}; border-radius: 6px; padding: 8px 10px; }
 .answer b { display: block; font-size: 11px; text-transform: uppercase; letter-spacing: .06em; color: ${COLOURS.muted}; }
 .answer span { font-weight: 600; }
+.answer span.muted { font-weight: 400; }
+.key { font-family: ui-monospace, "SFMono-Regular", Menlo, Consolas, monospace; font-size: 12px; white-space: nowrap; }
 .state { display: inline-block; border-radius: 999px; padding: 1px 9px; font-size: 12px; font-weight: 600; border: 1px solid; }
 .ok { background: ${COLOURS.tealSoft}; color: #0a5c56; border-color: ${COLOURS.teal}; }
 .warn { background: ${COLOURS.amberSoft}; color: #7c4c05; border-color: ${COLOURS.amber}; }
@@ -255,11 +257,11 @@ function correlations(d: PackData, r: FitResult): string {
   pairs.sort((p, q) => Math.abs(q.r) - Math.abs(p.r));
   const strongest = table(
     ['parameter', 'parameter', 'ρ'],
-    pairs.slice(0, 20).map((p) => [esc(p.a), esc(p.b), signed(p.r, 3)]),
+    pairs.filter((p) => Math.abs(p.r) >= 0.05).slice(0, 20).map((p) => [esc(p.a), esc(p.b), signed(p.r, 3)]),
     [false, false, true],
   );
-  if (n > HEATMAP_LIMIT) return `<section><h2>Correlations</h2><p>${n} parameters: too many to draw legibly. The 20 strongest pairs:</p>${strongest}</section>`;
-  return `<section><h2>Correlations</h2>${figure(correlationChart(c.names, c.values, d.analysis.plotLabels, 'Correlation matrix of the fitted parameters'), 'Teal: anti-correlated; plum: correlated; white: none.')}<h3>The strongest pairs</h3>${strongest}</section>`;
+  if (n > HEATMAP_LIMIT) return `<section><h2>Correlations</h2><p>${n} parameters: too many to draw legibly. The strongest pairs (up to 20, |ρ| ≥ 0.05):</p>${strongest}</section>`;
+  return `<section><h2>Correlations</h2>${figure(correlationChart(c.names, c.values, d.analysis.plotLabels, 'Correlation matrix of the fitted parameters'), 'Teal: anti-correlated; plum: correlated; white: none.')}<h3>The strongest pairs (up to 20, |ρ| ≥ 0.05)</h3>${strongest}</section>`;
 }
 
 function distributions(d: PackData, r: FitResult): string {
@@ -294,7 +296,7 @@ function distributions(d: PackData, r: FitResult): string {
         d.analysis.plotLabels,
         id,
       );
-    const charts = `<div class="pair">${figure(chart('Pre-fit', pre, `pre-${k}`), 'Pre-fit expectation')}${post ? figure(chart('Post-fit', post, `post-${k}`), 'Post-fit expectation') : '<p class="muted">No post-fit expectation.</p>'}</div>`;
+    const charts = `<div class="pair">${figure(chart('Pre-fit', pre, `pre-${k}`), 'Pre-fit expectation')}${post ? figure(chart('Post-fit', post, `post-${k}`), 'Post-fit expectation') : `<p class="muted">No post-fit expectation${r.options.hiddenMu && pre.role === 'signal' ? ': with μ hidden none is kept for a signal region, since it would show μ̂' : ' in this result'}.</p>`}</div>`;
     return `<h3>${esc(pre.region)}${region?.label && region.label !== pre.region ? ` — ${esc(region.label)}` : ''} <span class="muted">(${esc(pre.role)} region${pre.inFit ? '' : ', not in the fit'}${withheld ? ', observed counts withheld while the analysis is blinded' : ''})</span></h3>${charts}`;
   });
   return `<section><h2>Distributions per region</h2><p class="muted">Processes stacked; the expectation’s ±1σ hatched; ${esc(dataLabel.toLowerCase())} as points with ±√n, and their ratio to the expectation below.</p>${warningsBeside(r)}${parts.join('')}</section>`;
@@ -327,7 +329,7 @@ function register(d: PackData): string {
   const rows = frozen.map((e) => {
     const w = d.warnings.get(e.key) ?? [];
     const text = w.length ? `<ul>${w.map((x) => `<li>${esc(x.region)} / ${esc(x.process)}: ${esc(x.messages.join('; '))}</li>`).join('')}</ul>` : '<span class="muted">none</span>';
-    return [`<span class="mono">${esc(e.key)}</span>`, esc(e.label), esc(e.state.replace('_', ' ')), String(e.revision), text];
+    return [`<span class="key">${esc(e.key)}</span>`, esc(e.label), esc(e.state.replace('_', ' ')), String(e.revision), text];
   });
   return `<section><h2>The register as frozen in version ${d.version.number}</h2><p>${Object.entries(counts)
     .map(([s, n]) => `${n} ${esc(s.replace('_', ' '))}`)
@@ -357,9 +359,11 @@ function questions(d: PackData): string {
 function blinding(d: PackData): string {
   const b = d.blinding;
   const rows = b.events.map((e) => [esc(when(e.at)), esc(e.action.replace(/_/g, ' ')), esc(e.by ?? '—'), esc(e.note) + (e.checklist ? `<br><span class="muted">Checklist then: ${e.checklist.items.map((i) => `${i.ok ? '✓' : '✗'} ${esc(i.label)}`).join('; ')}</span>` : '')]);
-  return `<section><h2>Blinding log</h2><p>The analysis is <b>${esc(b.state.replace('_', ' '))}</b>; unblinding needs ${b.approvalsRequired} convener approval${b.approvalsRequired === 1 ? '' : 's'}.${
-    d.analysis.blinding === 'unblinded' ? '' : ' Observed counts of blinded regions are not in this pack.'
-  }</p>${table(['when', 'what', 'by', 'note'], rows)}</section>`;
+  const state =
+    b.state === 'unblinded'
+      ? 'The analysis is <b>unblinded</b>.'
+      : `The analysis is <b>${esc(b.state.replace(/_/g, ' '))}</b>; unblinding needs ${b.approvalsRequired} convener approval${b.approvalsRequired === 1 ? '' : 's'}. Observed counts of blinded regions are not in this pack.`;
+  return `<section><h2>Blinding log</h2><p>${state}</p>${rows.length ? table(['when', 'what', 'by', 'note'], rows) : '<p class="muted">No blinding event has been logged.</p>'}</section>`;
 }
 
 export function renderPack(d: PackData): string {
