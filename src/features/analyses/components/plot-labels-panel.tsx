@@ -33,11 +33,12 @@ export function PlotLabelsPanel({ slug, labels, mayEdit }: { slug: string; label
   }
 
   return (
-    <Panel title="Plot labels">
+    <Panel title="Plot labels" className="mt-4">
       <p className="text-sm text-ink-soft">Every chart of this analysis carries them, on screen, in downloaded SVG and PNG files and in the approval pack.</p>
       <svg viewBox="0 0 420 22" className="my-2 h-6 w-full max-w-md rounded border border-rule bg-paper-raised" role="img" aria-label={`Plot labels as charts show them: ${text || 'none set'}`}>
         {text ? <PlotLabel x={8} y={15} labels={labels} fontSize={12} /> : <text x={8} y={15} fontSize={11} fill="currentColor">No labels set</text>}
       </svg>
+      {!mayEdit && <p className="text-xs text-ink-muted">A convener sets them.</p>}
       {mayEdit && (
         <form onSubmit={submit} aria-label="Plot labels" className="flex flex-col gap-3" noValidate>
           {save.error && <FormError error={save.error} />}
