@@ -309,13 +309,13 @@ export async function exportFit(ctx: AppContext, access: Access, id: number, for
     correlation: () => {
       const c = result.correlation!;
       const n = c.names.length;
-      return plainTable(caption, label, [['', ...c.names], ...c.names.map((name, i) => [name, ...c.values.slice(i * n, (i + 1) * n)])]);
+      return plainTable(caption, label, [['', ...c.names], ...c.names.map((name, i) => [name, ...c.values.slice(i * n, (i + 1) * n)])], 3);
     },
     yields: () => yieldsTable(result, caption, label),
     systematics: async () => systematicsTable((await findVersion(ctx, access.analysis.id, row.version)).model as ExchangeModel, caption, label),
     pulls: () => pullsTable(result, caption, label),
   };
   const built = await tables[which]();
-  if (query.format === 'latex') return { type: 'application/x-latex; charset=utf-8', filename: `${stem}-${which}.tex`, body: toLatex(built) };
+  if (query.format === 'latex') return { type: 'application/x-tex; charset=utf-8', filename: `${stem}-${which}.tex`, body: toLatex(built) };
   return { type: 'text/csv; charset=utf-8', filename: `${stem}-${which}.csv`, body: toCsv(built) };
 }

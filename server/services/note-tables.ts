@@ -9,7 +9,16 @@ import type { ExchangeModel } from '@shared/schemas/exchange';
  */
 
 /** A cell: text, a plain number, a value with its error, or nothing (a number withheld or not computed). */
-export type Cell = string | number | boolean | null | { value: number; error: number | null };
+export type Cell =
+  | string
+  | number
+  | boolean
+  | null
+  | { value: number; error: number | null }
+  /** a number printed with a fixed count of decimal places (correlations) */
+  | { value: number; places: number }
+  /** an uncertainty or a shift printed alone: two significant digits, with its sign */
+  | { value: number; signed: true };
 
 export type Column = {
   /** The CSV header(s): two for a column of value ± error (value, then error). */
@@ -79,6 +88,8 @@ function latexCell(cell: Cell): string {
   if (typeof cell === 'string') return escapeLatex(cell);
   if (typeof cell === 'boolean') return cell ? 'yes' : 'no';
   if (typeof cell === 'number') return latexNumber(cell);
+  if ('places' in cell) return Number.isFinite(cell.value) ? `$${(Math.abs(cell.value) < 0.5 * 10 ** -cell.places ? 0 : cell.value).toFixed(cell.places)}$` : '--';
+  if ('signed' in cell) return Number.isFinite(cell.value) ? `$${cell.value < 0 ? '-' : '+'}${Number(Math.abs(cell.value).toPrecision(2))}$` : '--';
   if (cell.error === null) return latexNumber(cell.value);
   const r = roundWithError(cell.value, cell.error);
   return `$${r.value} \\pm ${r.error}$`;
@@ -111,15 +122,25 @@ export function toLatex(t: NoteTable): string {
 
 export function toCsv(t: NoteTable): string {
   const header = t.columns.flatMap((c) => c.csv);
-  const rows = t.rows.map((r) => r.flatMap((cell, i) => (t.columns[i].csv.length === 2 ? (cell !== null && typeof cell === 'object' ? [cell.value, cell.error] : [cell, null]) : [cell !== null && typeof cell === 'object' ? cell.value : cell])));
+  const rows = t.rows.map((r) =>
+    r.flatMap((cell, i) => {
+      const raw = cell !== null && typeof cell === 'object' ? cell.value : cell;
+      if (t.columns[i].csv.length === 1) return [raw];
+      return [raw, cell !== null && typeof cell === 'object' && 'error' in cell ? cell.error : null];
+    }),
+  );
   return Papa.unparse([header, ...rows], { newline: '\n' }) + '\n';
 }
 
-/** A table given as CSV-like rows (first row the header): text columns left, the rest right. */
-export function plainTable(caption: string, label: string, rows: (string | number | boolean | null)[][]): NoteTable {
+/**
+ * A table given as CSV-like rows (first row the header): text columns left, the rest right; with
+ * `places`, every number is printed in LaTeX with that many decimals (correlations).
+ */
+export function plainTable(caption: string, label: string, rows: (string | number | boolean | null)[][], places?: number): NoteTable {
   const [header, ...body] = rows;
   const numeric = header.map((_, i) => body.length > 0 && body.every((r) => r[i] === null || typeof r[i] === 'number'));
-  return { caption, label, columns: header.map((h, i) => ({ csv: [String(h)], latex: escapeLatex(String(h)), align: numeric[i] ? 'r' : 'l' })), rows: body };
+  const cells = places === undefined ? body : body.map((r) => r.map((c): Cell => (typeof c === 'number' ? { value: c, places } : c)));
+  return { caption, label, columns: header.map((h, i) => ({ csv: [String(h)], latex: escapeLatex(String(h)), align: numeric[i] ? 'r' : 'l' })), rows: cells };
 }
 
 const text = (csv: string, latex = escapeLatex(csv), align: Column['align'] = 'l'): Column => ({ csv: [csv], latex, align });
@@ -206,6 +227,8 @@ export function systematicsTable(model: Pick<ExchangeModel, 'regions' | 'templat
   };
 }
 
+const shift = (x: number | null | undefined): Cell => (x === null || x === undefined ? null : { value: x, signed: true });
+
 /** Pulls (θ̂ ± σ̂), and the post-fit impacts on μ, ranked by impact (unranked ones after, as stored). */
 export function pullsTable(result: Pick<FitResult, 'nuisance'>, caption: string, label: string): NoteTable {
   const order = result.nuisance.map((n, i) => ({ n, i })).sort((a, b) => (a.n.rank ?? Infinity) - (b.n.rank ?? Infinity) || a.i - b.i);
@@ -213,6 +236,6 @@ export function pullsTable(result: Pick<FitResult, 'nuisance'>, caption: string,
     caption,
     label,
     columns: [text('rank', 'Rank', 'r'), text('parameter', 'Parameter'), text('group', 'Group'), pm('pull', 'Pull $\\hat\\theta \\pm \\sigma_{\\hat\\theta}$'), text('impact_up', '$\\Delta\\mu$ ($+\\sigma$)', 'r'), text('impact_down', '$\\Delta\\mu$ ($-\\sigma$)', 'r')],
-    rows: order.map(({ n }) => [n.rank, n.name, n.group ?? '', { value: n.pull, error: n.constraint }, n.postfitImpact?.up ?? null, n.postfitImpact?.down ?? null]),
+    rows: order.map(({ n }) => [n.rank, n.name, n.group ?? '', { value: n.pull, error: n.constraint }, shift(n.postfitImpact?.up), shift(n.postfitImpact?.down)]),
   };
 }
