@@ -76,6 +76,7 @@ const BODIES: Body[] = [
   { method: 'post', path: () => `${A}/floating-norms`, caller: 'analyst', body: () => ({ key: 'k_new', start: 1, min: 0, max: 5 }) },
   { method: 'put', path: () => `${A}/templates/VR-mid/halo`, caller: 'analyst', body: () => ({ nominal: [1, 2, 3, 4, 5, 6, 7, 8], variance: [0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8] }) },
   { method: 'put', path: () => `${A}/hypothesis-parameter`, caller: 'analyst', body: () => ({ name: 'mass', unit: 'GeV' }) },
+  { method: 'put', path: () => `${A}/plot-labels`, caller: 'convener', body: () => ({ experiment: 'LANTERN', status: 'Internal', luminosity: '38 fb⁻¹', energy: '9 TeV' }) },
   { method: 'post', path: () => `${A}/entries`, caller: 'analyst', body: () => ({ key: 'new_entry', label: 'New entry', description: 'What it covers.' }) },
   { method: 'patch', path: () => `${A}/entries/flare_id`, caller: 'analyst', body: () => ({ label: 'Changed', version: 1 }) },
   { method: 'post', path: () => `${A}/entries/flare_id/review`, caller: 'analyst', body: () => ({ action: 'submit', note: 'Ready.' }) },
