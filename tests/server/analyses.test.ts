@@ -29,7 +29,8 @@ describe('analyses and their members', () => {
 
   it('tells each role on the overview what it may do there', async () => {
     const perms = async (email: string) => (await (await signedIn(t.app, email)).get('/api/analyses/vireon-search')).body.permissions;
-    expect(await perms(DEMO.reader)).toEqual(['analysis.read']);
+    // a reader reads, and asks and answers questions (review committees read, and ask)
+    expect(await perms(DEMO.reader)).toEqual(['analysis.read', 'question.raise', 'question.answer']);
     expect(await perms(DEMO.contact)).toEqual(expect.arrayContaining(['entry.editOwn', 'variation.upload']));
     expect(await perms(DEMO.contact)).not.toContain('entry.review');
     expect(await perms(DEMO.convener)).toEqual(expect.arrayContaining(['entry.review', 'members.manage', 'blinding.decide']));
