@@ -43,7 +43,7 @@ p { margin: 6px 0; }
 .answer span { font-weight: 600; }
 .answer span.muted { font-weight: 400; }
 .key { font-family: ui-monospace, "SFMono-Regular", Menlo, Consolas, monospace; font-size: 12px; white-space: nowrap; }
-.state { display: inline-block; border-radius: 999px; padding: 1px 9px; font-size: 12px; font-weight: 600; border: 1px solid; }
+.state { display: inline-block; border-radius: 10px; padding: 1px 9px; font-size: 12px; font-weight: 600; border: 1px solid; }
 .ok { background: ${COLOURS.tealSoft}; color: #0a5c56; border-color: ${COLOURS.teal}; }
 .warn { background: ${COLOURS.amberSoft}; color: #7c4c05; border-color: ${COLOURS.amber}; }
 .bad { background: #f6dcd6; color: ${COLOURS.danger}; border-color: ${COLOURS.danger}; }
@@ -82,10 +82,10 @@ const figure = (svgText: string, caption: string) => `<figure>${svgText}<figcapt
 
 const facts = (pairs: [string, string][]) => `<dl class="facts">${pairs.map(([k, v]) => `<dt>${k}</dt><dd>${v}</dd>`).join('')}</dl>`;
 
-function approvalState(d: PackData): { text: string; tone: 'ok' | 'warn' | 'bad' } {
-  if (!d.version.forApproval) return { text: 'Not put forward for approval', tone: 'warn' };
-  if (d.version.override) return { text: 'For approval, frozen with open items (convener’s override)', tone: 'warn' };
-  return { text: 'For approval: every entry accepted, no open question', tone: 'ok' };
+function approvalState(d: PackData, short = false): { text: string; tone: 'ok' | 'warn' | 'bad' } {
+  if (!d.version.forApproval) return { text: short ? 'Not for approval' : 'Not put forward for approval', tone: 'warn' };
+  if (d.version.override) return { text: short ? 'For approval, with an override' : 'For approval, frozen with open items (convener’s override)', tone: 'warn' };
+  return { text: short ? 'For approval, gates held' : 'For approval: every entry accepted, no open question', tone: 'ok' };
 }
 
 function fitState(d: PackData): { text: string; tone: 'ok' | 'warn' | 'bad' } {
@@ -97,7 +97,7 @@ function fitState(d: PackData): { text: string; tone: 'ok' | 'warn' | 'bad' } {
 const pill = (s: { text: string; tone: string }) => `<span class="state ${s.tone}">${esc(s.text)}</span>`;
 
 function header(d: PackData): string {
-  const a = approvalState(d);
+  const a = approvalState(d, true);
   const f = fitState(d);
   const fitName = d.fit.label || `Fit ${d.fit.id}`;
   return `<header class="pack">
