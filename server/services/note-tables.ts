@@ -144,7 +144,7 @@ export function plainTable(caption: string, label: string, rows: (string | numbe
 }
 
 const text = (csv: string, latex = escapeLatex(csv), align: Column['align'] = 'l'): Column => ({ csv: [csv], latex, align });
-const pm = (csv: string, latex: string): Column => ({ csv: [csv, `${csv}_error`], latex, align: 'r' });
+const pm = (csv: string, latex: string, error = `${csv}_error`): Column => ({ csv: [csv, error], latex, align: 'r' });
 
 /**
  * The sum of a region's bins: the value, and an error from the per-bin errors added in quadrature.
@@ -169,7 +169,8 @@ export function yieldsTable(result: Pick<FitResult, 'yields'>, caption: string, 
     for (const p of region.processes) rows.push([region.region, region.role, p.process, sumOverBins(p), postOf(p.process)]);
     rows.push([region.region, region.role, 'total', sumOverBins(region.total), postOf(null)]);
   }
-  return { caption, label, columns: [text('region', 'Region'), text('role', 'Role'), text('process', 'Process'), pm('prefit', 'Pre-fit'), pm('postfit', 'Post-fit')], rows };
+  // CSV has no caption: the error columns' names say how they are made
+  return { caption, label, columns: [text('region', 'Region'), text('role', 'Role'), text('process', 'Process'), pm('prefit', 'Pre-fit', 'prefit_error_bins_in_quadrature'), pm('postfit', 'Post-fit', 'postfit_error_bins_in_quadrature')], rows };
 }
 
 /** Percent change of a yield from its nominal; null where the nominal is zero (no relative change). */
@@ -235,7 +236,7 @@ export function pullsTable(result: Pick<FitResult, 'nuisance'>, caption: string,
   return {
     caption,
     label,
-    columns: [text('rank', 'Rank', 'r'), text('parameter', 'Parameter'), text('group', 'Group'), pm('pull', 'Pull $\\hat\\theta \\pm \\sigma_{\\hat\\theta}$'), text('impact_up', '$\\Delta\\mu$ ($+\\sigma$)', 'r'), text('impact_down', '$\\Delta\\mu$ ($-\\sigma$)', 'r')],
+    columns: [text('rank', 'Rank', 'r'), text('parameter', 'Parameter'), text('group', 'Group'), pm('pull', 'Pull $\\hat\\theta \\pm \\sigma_{\\hat\\theta}$', 'constraint'), text('impact_up', '$\\Delta\\mu$ ($+\\sigma$)', 'r'), text('impact_down', '$\\Delta\\mu$ ($-\\sigma$)', 'r')],
     rows: order.map(({ n }) => [n.rank, n.name, n.group ?? '', { value: n.pull, error: n.constraint }, shift(n.postfitImpact?.up), shift(n.postfitImpact?.down)]),
   };
 }

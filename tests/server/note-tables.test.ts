@@ -105,7 +105,7 @@ describe('the LaTeX writer', () => {
       ['$1$', 'halo\\_norm', '', '$0.50 \\pm 0.41$', '$-0.069$', '$+0.065$'],
       ['--', 'held', '', '$0$', '--', '--'],
     ]);
-    expect(parseCsv(toCsv(pulls))[0]).toEqual({ rank: '1', parameter: 'halo_norm', group: '', pull: '0.5012', pull_error: '0.4137', impact_up: '-0.06901', impact_down: '0.06464' });
+    expect(parseCsv(toCsv(pulls))[0]).toEqual({ rank: '1', parameter: 'halo_norm', group: '', pull: '0.5012', constraint: '0.4137', impact_up: '-0.06901', impact_down: '0.06464' });
     const corr = plainTable('C', 'tab:c', [['', 'a', 'b'], ['a', 1, -0.61283], ['b', -0.61283, 1.2e-14]], 3);
     expect(latexRows(toLatex(corr)).slice(1)).toEqual([
       ['a', '$1.000$', '$-0.613$'],
@@ -160,7 +160,7 @@ describe('the LaTeX writer', () => {
       },
     };
     const csv = parseCsv(toCsv(yieldsTable(result, 'Yields', 'tab:y')));
-    expect(csv[0]).toEqual({ region: 'SR', role: 'signal', process: 's', prefit: '7', prefit_error: String(Math.sqrt(0.09 + 0.16)), postfit: '', postfit_error: '' });
+    expect(csv[0]).toEqual({ region: 'SR', role: 'signal', process: 's', prefit: '7', prefit_error_bins_in_quadrature: String(Math.sqrt(0.09 + 0.16)), postfit: '', postfit_error_bins_in_quadrature: '' });
     expect(latexRows(toLatex(yieldsTable(result, 'Yields', 'tab:y')))[1]).toEqual(['SR', 'signal', 's', '$7.00 \\pm 0.50$', '--']);
   });
 });
@@ -220,12 +220,12 @@ describe('the analysis-note tables of a fit', () => {
       for (const stage of ['prefit', 'postfit'] as const) {
         const s = series(stage, row.region, row.process);
         expect(Number(row[stage])).toBeCloseTo(sum(s.values), 9);
-        expect(Number(row[`${stage}_error`])).toBeCloseTo(Math.sqrt(sum(s.errors.map((e) => e * e))), 9);
+        expect(Number(row[`${stage}_error_bins_in_quadrature`])).toBeCloseTo(Math.sqrt(sum(s.errors.map((e) => e * e))), 9);
       }
     const tex = await get(C, fit.id, 'latex', 'yields');
     expect(tex).toContain('Errors added in quadrature over bins, correlations between bins neglected');
     const first = rows[0];
-    const rounded = roundWithError(Number(first.postfit), Number(first.postfit_error));
+    const rounded = roundWithError(Number(first.postfit), Number(first.postfit_error_bins_in_quadrature));
     expect(latexRows(tex)[1][4]).toBe(`$${rounded.value} \\pm ${rounded.error}$`);
   });
 
@@ -245,7 +245,7 @@ describe('the analysis-note tables of a fit', () => {
     expect(pulls.map((p) => Number(p.rank))).toEqual(pulls.map((_, i) => i + 1));
     for (const p of pulls) {
       const n = result.nuisance.find((x: { name: string }) => x.name === p.parameter);
-      expect([Number(p.pull), Number(p.pull_error), Number(p.impact_up), Number(p.impact_down)]).toEqual([n.pull, n.constraint, n.postfitImpact.up, n.postfitImpact.down]);
+      expect([Number(p.pull), Number(p.constraint), Number(p.impact_up), Number(p.impact_down)]).toEqual([n.pull, n.constraint, n.postfitImpact.up, n.postfitImpact.down]);
     }
     const tex = await get(C, fit.id, 'latex', 'pulls');
     expect(tex).toContain('$\\Delta\\mu$ ($+\\sigma$)');
@@ -268,7 +268,7 @@ describe('the analysis-note tables of a fit', () => {
 
     const yields = parseCsv(await get(C, hidden.id, 'csv', 'yields'));
     for (const r of yields) {
-      if (signal.includes(r.region)) expect([r.postfit, r.postfit_error], `${r.region} ${r.process}`).toEqual(['', '']);
+      if (signal.includes(r.region)) expect([r.postfit, r.postfit_error_bins_in_quadrature], `${r.region} ${r.process}`).toEqual(['', '']);
       else expect(Number(r.postfit), `${r.region} ${r.process}`).toBeGreaterThan(0);
     }
     const yieldsTex = await get(C, hidden.id, 'latex', 'yields');
