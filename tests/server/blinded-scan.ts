@@ -75,7 +75,7 @@ function expand(template: string, values: Values): string[] {
 
 /** Query strings that change what a route sends. */
 const VARIANTS: Record<string, string[]> = {
-  '/api/analyses/:slug/fits/:fitId/export': ['?format=json', ...exportTableSchema.options.map((table) => `?format=csv&table=${table}`)],
+  '/api/analyses/:slug/fits/:fitId/export': ['?format=json', ...exportTableSchema.options.flatMap((table) => [`?format=csv&table=${table}`, `?format=latex&table=${table}`])],
   '/api/analyses/:slug/questions': ['?state=open', '?state=answered', '?state=resolved', ''],
   '/api/analyses/:slug/fits/:fitId/pack': ['?format=html', '?format=zip'],
 };
