@@ -255,3 +255,44 @@ export function groupsChart(rows: { group: string; impact: number }[], labels: P
     .join('');
   return svg(W, H, title, labels, `${xAxis(x, bottom, top, 'impact on μ (σ_μ attributed to the group)')}${marks}`);
 }
+
+/** A profile-likelihood scan: q = −2 ln λ against the parameter, with q = 1 and q = 3.84 marked. */
+export function scanChart(points: { value: number; q: number }[], bestFit: number, labels: PlotLabels, title: string, parameter: string): string {
+  const W = 460;
+  const L = 56;
+  const R = 20;
+  const top = LABEL_BAND + 12;
+  const bottom = top + 200;
+  const H = bottom + 42;
+  const pts = [...points].sort((a, b) => a.value - b.value);
+  const x = scaleLinear().domain([pts[0].value, pts[pts.length - 1].value]).range([L, W - R]);
+  const y = scaleLinear().domain([0, Math.max(4.5, Math.min(12, ...pts.map((p) => p.q)))]).range([bottom, top]).nice();
+  const [, qMax] = y.domain();
+  const path = pts.map((p, i) => `${i ? 'L' : 'M'}${x(p.value).toFixed(2)},${y(Math.min(p.q, qMax)).toFixed(2)}`).join('');
+  const level = (q: number, text: string) => `<line x1="${L}" x2="${W - R}" y1="${y(q)}" y2="${y(q)}" stroke="${COLOURS.amber}" stroke-dasharray="4 3"/><text x="${W - R - 2}" y="${y(q) - 3}" font-size="10" fill="${COLOURS.amber}" text-anchor="end">${esc(text)}</text>`;
+  const body = `${yAxis(y, L, W - R, 'q = −2 ln λ')}${xAxis(x, bottom, top, parameter)}${level(1, 'q = 1 (68 %)')}${level(3.84, 'q = 3.84 (95 %)')}<path d="${path}" fill="none" stroke="${COLOURS.teal}" stroke-width="1.8"/>${pts.map((p) => `<circle cx="${x(p.value)}" cy="${y(Math.min(p.q, qMax))}" r="2" fill="${COLOURS.teal}"/>`).join('')}<line x1="${x(bestFit)}" x2="${x(bestFit)}" y1="${top}" y2="${bottom}" stroke="${COLOURS.ink}" stroke-width="0.8"/>`;
+  return svg(W, H, title, labels, body);
+}
+
+/** A two-parameter contour: the 68.27 % line solid, the 95 % line dashed, the best fit as a cross. */
+export function contourChart(c: { parameters: [string, string]; bestFit: [number, number]; a: number[]; b: number[]; levels: { cl: number; lines: [number, number][][] }[] }, labels: PlotLabels, title: string): string {
+  const W = 460;
+  const L = 62;
+  const R = 20;
+  const top = LABEL_BAND + 28;
+  const bottom = top + 260;
+  const H = bottom + 42;
+  const x = scaleLinear().domain([Math.min(...c.a), Math.max(...c.a)]).range([L, W - R]);
+  const y = scaleLinear().domain([Math.min(...c.b), Math.max(...c.b)]).range([bottom, top]);
+  const lines = c.levels
+    .map((lv, k) =>
+      lv.lines
+        .map((ln) => `<path d="${ln.map(([a, b], i) => `${i ? 'L' : 'M'}${x(a).toFixed(2)},${y(b).toFixed(2)}`).join('')}" fill="none" stroke="${k === 0 ? COLOURS.teal : COLOURS.plum}" stroke-width="1.6"${k === 0 ? '' : ' stroke-dasharray="5 3"'}/>`)
+        .join(''),
+    )
+    .join('');
+  const [bx, by] = c.bestFit;
+  const cross = `<path d="M${x(bx) - 5},${y(by)}h10M${x(bx)},${y(by) - 5}v10" stroke="${COLOURS.ink}" stroke-width="1.6"/>`;
+  const legend = c.levels.map((lv, k) => `<line x1="${L + k * 120}" x2="${L + k * 120 + 20}" y1="${LABEL_BAND + 12}" y2="${LABEL_BAND + 12}" stroke="${k === 0 ? COLOURS.teal : COLOURS.plum}" stroke-width="1.6"${k === 0 ? '' : ' stroke-dasharray="5 3"'}/><text x="${L + k * 120 + 24}" y="${LABEL_BAND + 15}" font-size="10.5" fill="${COLOURS.ink}">${esc(num(lv.cl * 100, 4))} % CL</text>`).join('');
+  return svg(W, H, title, labels, `${legend}${xAxis(x, bottom, top, c.parameters[0])}${yAxis(y, L, W - R, c.parameters[1])}${lines}${cross}`);
+}

@@ -1,5 +1,5 @@
 import type { FitResult } from '@shared/schemas/fit';
-import { COLOURS, correlationChart, groupsChart, impactsChart, processColour, pullsChart, regionChart, type ImpactRow } from './charts';
+import { COLOURS, contourChart, correlationChart, groupsChart, impactsChart, processColour, pullsChart, regionChart, scanChart, type ImpactRow } from './charts';
 import { datasetInWords, esc, num, optionsInWords, plotLabelText, signed, variantInWords, when } from './format';
 import type { PackData } from './types';
 
@@ -206,6 +206,18 @@ function summary(r: FitResult): string {
   return `<section><h2>Summary</h2>${warningsBeside(r)}${table(['quantity', 'value', 'meaning'], rows.map((x) => x.map(esc)), [false, true, false])}${poiTable}</section>`;
 }
 
+function scans(d: PackData, r: FitResult): string {
+  if (!r.summary) return '';
+  const labelOf = (name: string) => (name === 'mu' ? 'μ' : (r.poi?.list.find((p) => p.name === name)?.label ?? name));
+  const list = [r.scan, ...(r.poi?.list.filter((p) => p.name !== 'mu').map((p) => p.scan ?? null) ?? [])].filter((x): x is NonNullable<FitResult['scan']> => !!x && !x.failure && x.points.length > 1);
+  const figures = list.map((x) => figure(scanChart(x.points, x.bestFit, d.analysis.plotLabels, `Profile-likelihood scan of ${labelOf(x.parameter)}`, labelOf(x.parameter)), esc(`Scan of ${labelOf(x.parameter)}: ${x.points.length} points; crossings of q = 1 at ${num(x.crossings68.low)} and ${num(x.crossings68.high)}.`)));
+  const c = r.contour;
+  if (c && !c.failure && c.a.length > 1 && c.b.length > 1)
+    figures.push(figure(contourChart(c, d.analysis.plotLabels, `Contour of ${labelOf(c.parameters[0])} and ${labelOf(c.parameters[1])}`), esc(`68.27 % (solid) and 95 % (dashed) contours for two parameters; the cross is the best fit. ${c.points.failed} of ${c.points.converged + c.points.failed} grid points failed and are left out.`)));
+  if (!figures.length) return '';
+  return `<section><h2>Likelihood scans</h2>${warningsBeside(r)}<div class="pair">${figures.join('')}</div></section>`;
+}
+
 function pulls(d: PackData, r: FitResult): string {
   const rows = r.nuisance.filter((n) => !n.fixed);
   if (!rows.length) return `<section><h2>Pulls</h2><p class="muted">No free nuisance parameter.</p></section>`;
@@ -369,7 +381,7 @@ function blinding(d: PackData): string {
 export function renderPack(d: PackData): string {
   const r = d.result;
   const converged = d.fit.state === 'succeeded' && r && r.status === 'converged';
-  const numbers = converged ? [summary(r), pulls(d, r), impacts(d, r), correlations(d, r), distributions(d, r), breakdown(d, r)].join('\n') : '';
+  const numbers = converged ? [summary(r), scans(d, r), pulls(d, r), impacts(d, r), correlations(d, r), distributions(d, r), breakdown(d, r)].join('\n') : '';
   const title = `Approval pack: ${d.analysis.name}, ${d.fit.label || `fit ${d.fit.id}`}`;
   return `<!doctype html>
 <html lang="en">
