@@ -14,14 +14,13 @@ export function esc(value: unknown): string {
 /** A number as a reader wants it: four significant digits, a true minus sign, "—" for none. */
 export function num(x: number | null | undefined, digits = 4): string {
   if (x === null || x === undefined || !Number.isFinite(x)) return '—';
-  // a value at the engine's rounding noise (a parameter no datum moves) reads as 0
-  if (Math.abs(x) < 1e-10) return '0';
+  if (x === 0) return '0';
   const a = Math.abs(x);
   const text = a >= 1e6 || a < 1e-3 ? x.toExponential(digits - 1) : a >= 10 ** digits ? x.toFixed(0) : String(Number(x.toPrecision(digits)));
   return text.replace(/^-/, '−');
 }
 
-/** A signed number (+0.12, −0.34). */
+/** A signed shift, pull or coefficient (+0.12, −0.34); one at the engine's rounding noise (a parameter no datum moves) reads 0. */
 export const signed = (x: number | null | undefined, digits = 3) => (x === null || x === undefined || !Number.isFinite(x) ? '—' : Math.abs(x) < 1e-10 ? '0' : x > 0 ? `+${num(x, digits)}` : num(x, digits));
 
 /** The plot labels as one line: "LANTERN Internal · 38 fb⁻¹ · 9 TeV" (empty parts left out). */

@@ -101,6 +101,8 @@ describe('the approval pack', () => {
     expect(drawn.length).toBeGreaterThanOrEqual(8);
     for (const c of drawn) expect(c.label, c.svg.slice(0, 120)).toBe('LANTERN Internal · 12.5 fb⁻¹ · 9 TeV');
     expect(html).toContain(fit.result.summary.mu.value.toPrecision(4).replace(/0+$/, '').replace(/\.$/, ''));
+    // a p-value far below any rounding is written as it is, never as 0
+    expect(html).not.toMatch(/p₀ = 0\)/);
   });
 
   it('zips the page with the result as JSON and its tables as CSV, which unzip as they were', async () => {
