@@ -343,6 +343,7 @@ function register(d: PackData): string {
     const text = w.length ? `<ul>${w.map((x) => `<li>${esc(x.region)} / ${esc(x.process)}: ${esc(x.messages.join('; '))}</li>`).join('')}</ul>` : '<span class="muted">none</span>';
     return [`<span class="key">${esc(e.key)}</span>`, esc(e.label), esc(e.state.replace('_', ' ')), String(e.revision), text];
   });
+  if (!frozen.length) return `<section><h2>The register as frozen in version ${d.version.number}</h2><p class="muted">No register entry was active when version ${d.version.number} was frozen.</p></section>`;
   return `<section><h2>The register as frozen in version ${d.version.number}</h2><p>${Object.entries(counts)
     .map(([s, n]) => `${n} ${esc(s.replace('_', ' '))}`)
     .join(', ')}. Entry, review state and revision are as frozen; the warnings are those of each entry’s effects <b>now</b> (current, not frozen).</p>${table(['entry', 'label', 'state (frozen)', 'revision', 'current warnings of its effects'], rows, [false, false, false, true, false])}</section>`;
