@@ -6,10 +6,11 @@ import { BottomAxis, LeftAxis } from './axes';
 import { ChartFigure } from './chart-figure';
 import { theme } from '../../lib/palette';
 import { formatFixed } from '../../lib/stats-format';
+import { PlotLabel } from './plot-label';
 
 const W = 640;
 const H = 420;
-const M = { left: 60, right: 214, top: 14, bottom: 46 };
+const M = { left: 60, right: 214, top: 30, bottom: 46 };
 const LEGEND_X = W - M.right + 22;
 
 /** How each confidence level is drawn: solid for the inner region, dashed for the outer one, so they part without colour. */
@@ -85,6 +86,7 @@ export function ContourChart({ contour, axes }: { contour: ProfileContour; axes:
         role="img"
         aria-label={`${title}: best fit ${ax.symbol} = ${formatFixed(ba, 3)}, ${bx.symbol} = ${formatFixed(bb, 3)}; ${described}.`}
       >
+        <PlotLabel x={M.left} y={13} />
         <rect x={M.left} y={M.top} width={W - M.left - M.right} height={H - M.top - M.bottom} fill={theme.paperRaised} stroke={theme.rule} strokeWidth={0.75} />
         {x.ticks(6).map((t) => (
           <line key={`gx${t}`} x1={x(t)} x2={x(t)} y1={M.top} y2={H - M.bottom} stroke={theme.rule} strokeWidth={0.6} />

@@ -6,10 +6,11 @@ import { BottomAxis, GridLines, LeftAxis } from './axes';
 import { ChartFigure } from './chart-figure';
 import { theme } from '../../lib/palette';
 import { formatFixed } from '../../lib/stats-format';
+import { PlotLabel } from './plot-label';
 
 const W = 520;
 const H = 260;
-const M = { left: 52, right: 44, top: 12, bottom: 40 };
+const M = { left: 52, right: 44, top: 28, bottom: 40 };
 
 /** Wilks: q = 1 and q = 3.84 bound the 68.27 % and 95 % intervals of one parameter. */
 const LEVELS = [
@@ -46,6 +47,7 @@ export function ScanChart({ scan, parameterLabel = 'μ' }: { scan: ParameterScan
         role="img"
         aria-label={`${title}: q = 2ΔNLL over ${pts.length} points from ${formatFixed(pts[0].value, 2)} to ${formatFixed(pts[pts.length - 1].value, 2)}; best fit ${formatFixed(scan.bestFit, 3)}, 68 % interval ${formatFixed(lo68, 3)} to ${formatFixed(hi68, 3)}.`}
       >
+        <PlotLabel x={M.left} y={13} />
         <GridLines scale={y} x0={M.left} x1={W - M.right} />
         {LEVELS.map((l) => (
           <g key={l.q}>

@@ -5,9 +5,10 @@ import { formatCount, formatEdge, round1 } from '../../lib/format';
 import { theme } from '../../lib/palette';
 import { garwoodInterval } from '../../lib/poisson';
 import { BottomAxis, GridLines, LeftAxis } from './axes';
+import { PlotLabel } from './plot-label';
 
 const W = 560;
-const M = { left: 60, right: 22, top: 10 };
+const M = { left: 60, right: 22, top: 26 };
 const MAIN_H = 190;
 const GAP = 16;
 const RATIO_H = 72;
@@ -119,6 +120,7 @@ export function StackedChart({ d, svgRef, highlight }: { d: StackedChartData; sv
   return (
     <figure className="flex flex-col gap-2">
       <svg ref={svgRef} viewBox={`0 0 ${W} ${H}`} className="h-auto w-full max-w-[46rem]" role="img" aria-label={label}>
+        <PlotLabel x={M.left} y={13} />
         <defs>
           <pattern id={stippleId} width={4} height={4} patternUnits="userSpaceOnUse">
             <rect width={4} height={4} fill={theme.paperRaised} fillOpacity={0.35} />

@@ -147,13 +147,14 @@ export function drawCorrelation(canvas: HTMLCanvasElement, m: CorrelationMatrix,
 }
 
 /** The same picture as an SVG document: one rect per cell, the names as text. */
-export function correlationSvg(m: CorrelationMatrix, layout: MatrixLayout): string {
+export function correlationSvg(m: CorrelationMatrix, layout: MatrixLayout, plotLabel = ''): string {
   const { order, cell, labelW, labelH, width, height } = layout;
   const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;');
   const parts: string[] = [
     `<?xml version="1.0" encoding="UTF-8"?>`,
     `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}" font-family="'Public Sans', sans-serif" shape-rendering="crispEdges">`,
     `<rect width="100%" height="100%" fill="${theme.paperRaised}"/>`,
+    ...(plotLabel ? [`<text class="plot-label" x="4" y="14" font-size="11" font-weight="700" fill="${theme.ink}">${esc(plotLabel)}</text>`] : []),
   ];
   order.forEach((i, r) =>
     order.forEach((j, c) => {

@@ -12,6 +12,7 @@ import { keepCorrelated, orderByClustering, orderByGroup, rho, strongestPairs, t
 import { groupName } from '../../../lib/fits';
 import { labelsOf } from '../result-helpers';
 import { groupsOf } from './group-filter';
+import { PlotLabel, plotLabelText, usePlotLabels } from '../../../components/charts/plot-label';
 
 type Ordering = 'group' | 'cluster';
 type Cell = { r: number; c: number };
@@ -95,6 +96,7 @@ export function CorrelationView({ result, correlation, linkTo }: { result: FitRe
   const [cell, setCell] = useState<Cell | null>(null);
   const [drawMs, setDrawMs] = useState<number | null>(null);
   const canvasRef = useRef<HTMLCanvasElement>(null);
+  const plotLabels = usePlotLabels();
   const groups = useMemo(() => matrixGroups(result), [result]);
   const labels = useMemo(() => labelsOf(result), [result]);
 
@@ -184,14 +186,21 @@ export function CorrelationView({ result, correlation, linkTo }: { result: FitRe
       </div>
 
       <Panel
-        title={title}
+        title={
+          <span className="flex flex-wrap items-baseline gap-x-3">
+            {title}
+            <svg viewBox="0 0 320 16" className="h-4 w-80" aria-hidden>
+              <PlotLabel x={0} y={12} />
+            </svg>
+          </span>
+        }
         actions={
           <ExportButtons
             title={title}
             onPng={async () => {
               if (canvasRef.current) downloadBlob(await canvasToPng(canvasRef.current), chartFileName(title, 'png'));
             }}
-            onSvg={async () => downloadBlob(new Blob([correlationSvg(m, layout)], { type: 'image/svg+xml' }), chartFileName(title, 'svg'))}
+            onSvg={async () => downloadBlob(new Blob([correlationSvg(m, layout, plotLabels ? plotLabelText(plotLabels) : '')], { type: 'image/svg+xml' }), chartFileName(title, 'svg'))}
           />
         }
       >

@@ -6,6 +6,7 @@ import { ChartFigure } from '../../../components/charts/chart-figure';
 import { Panel } from '../../../components/ui/page';
 import { theme } from '../../../lib/palette';
 import { formatFixed } from '../../../lib/stats-format';
+import { PlotLabel } from '../../../components/charts/plot-label';
 
 export type GroupBar = { key: string; label: string; value: number; kind: 'total' | 'split' | 'group'; title: string };
 
@@ -36,7 +37,7 @@ export function groupBars(result: FitResultHead): GroupBar[] {
 
 const W = 600;
 const ROW = 22;
-const M = { left: 170, right: 70, top: 6, bottom: 36 };
+const M = { left: 170, right: 70, top: 22, bottom: 36 };
 
 /** Sorted horizontal bars: the parts of σ_μ first, then every group. */
 export function GroupsChart({ bars, title }: { bars: GroupBar[]; title: string }) {
@@ -55,6 +56,7 @@ export function GroupsChart({ bars, title }: { bars: GroupBar[]; title: string }
         role="img"
         aria-label={`${title}: ${bars.map((b) => `${b.label} ${formatFixed(b.value, 3)}`).join('; ')}`}
       >
+        <PlotLabel x={M.left} y={13} />
         {firstGroup > 0 && <line x1={8} x2={W - 8} y1={M.top + firstGroup * ROW} y2={M.top + firstGroup * ROW} stroke={theme.rule} strokeDasharray="3 3" />}
         {bars.map((b, i) => {
           const cy = M.top + i * ROW + ROW / 2;

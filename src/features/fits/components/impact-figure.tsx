@@ -9,6 +9,7 @@ import { formatFixed, formatSigned } from '../../../lib/stats-format';
 import type { Cut, CutLevel, ImpactMode } from '../result-helpers';
 import { MU_WORDS, type PoiWords } from '../poi';
 import type { ImpactRow } from './impact-ranking';
+import { PlotLabel } from '../../../components/charts/plot-label';
 
 const W = 820;
 const ROW = 20;
@@ -81,6 +82,7 @@ export function ImpactFigure({
         role="img"
         aria-label={`${title}: ${kept}. ${rows.map((r) => `${r.name} ${pct(r.share)}`).join('; ')}. The numbers are in the table above.`}
       >
+        <PlotLabel x={W - 4} y={13} anchor="end" />
         <text x={4} y={13} style={{ fontSize: 11, fill: theme.ink }}>
           {sigmaMu !== null && <tspan fontWeight={600}>{w.sigma} = ±{formatFixed(sigmaMu, 4)}</tspan>}
           <tspan dx={sigmaMu !== null ? 8 : 0}>Kept: {kept}</tspan>

@@ -15,6 +15,7 @@ import { QuestionMarker, type QuestionMark } from '../../../components/status/qu
 import { diagnosisPath, groupName, isStronglyPulled, STRONG_PULL } from '../../../lib/fits';
 import { labelsOf } from '../result-helpers';
 import { GroupFilter, groupsOf } from './group-filter';
+import { PlotLabel } from '../../../components/charts/plot-label';
 
 export type PullSort = 'group' | 'name' | 'pull' | 'absPull' | 'constraint' | 'normalisedPull';
 
@@ -45,7 +46,7 @@ export function sortPulls(list: NuisanceReport[], by: PullSort): NuisanceReport[
 
 const ROW = 17;
 const W = 640;
-const M = { left: 178, right: 96, top: 8, bottom: 36 };
+const M = { left: 178, right: 96, top: 24, bottom: 36 };
 
 /** A row of the pulls chart: a group's heading or one parameter. */
 type Line = { kind: 'group'; name: string } | { kind: 'parameter'; r: NuisanceReport };
@@ -132,6 +133,7 @@ export function PullsChart({
             : undefined
         }
       >
+        <PlotLabel x={M.left} y={13} />
         <rect x={x(-2)} y={y0} width={x(2) - x(-2)} height={plotH} fill={theme.teal} fillOpacity={0.07} />
         <rect x={x(-1)} y={y0} width={x(1) - x(-1)} height={plotH} fill={theme.teal} fillOpacity={0.18} />
         {[-2, -1, 0, 1, 2].map((v) => (
