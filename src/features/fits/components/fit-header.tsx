@@ -7,6 +7,7 @@ import { FitStateBadge } from '../../../components/status/fit-state';
 import { Badge } from '../../../components/ui/badge';
 import { datasetInWords, diagnosisPath, fitName, optionsInWords, variantInWords } from '../../../lib/fits';
 import { ConvergenceStrip } from './convergence';
+import { analysisPath } from '../../../lib/api-client';
 
 /** Downloads of a stored result: the whole result as JSON and every table as CSV. */
 export function ExportLinks({ slug, fit }: { slug: string; fit: FitDetail }) {
@@ -17,6 +18,12 @@ export function ExportLinks({ slug, fit }: { slug: string; fit: FitDetail }) {
       <span className="mr-1 text-ink-muted">Download</span>
       <a className={link} href={exportJsonUrl(slug, fit.id)} download title="The whole stored result, with the options and the model version, as JSON">
         JSON
+      </a>
+      <a className={link} href={`${analysisPath(slug, 'fits', fit.id, 'pack')}?format=html`} download title="The approval pack: one printable page with what was fitted, how, by which code, the approval state and every result (HTML, works offline)">
+        Approval pack (HTML)
+      </a>
+      <a className={link} href={`${analysisPath(slug, 'fits', fit.id, 'pack')}?format=zip`} download title="The approval pack with the result as JSON and its tables as CSV (zip)">
+        Approval pack (zip)
       </a>
       {converged &&
         // a fit with μ hidden has no summary or grouped impacts to export
