@@ -26,8 +26,8 @@ export function ExportLinks({ slug, fit }: { slug: string; fit: FitDetail }) {
         Approval pack (zip)
       </a>
       {converged &&
-        // a fit with μ hidden has no summary or grouped impacts to export
-        EXPORT_TABLES.filter((t) => !(fit.options.hiddenMu && (t.table === 'summary' || t.table === 'groups'))).map((t) => [
+        // a fit with μ hidden has no summary, parameter table (the server refuses both) or grouped impacts to export
+        EXPORT_TABLES.filter((t) => !(fit.options.hiddenMu && (t.table === 'summary' || t.table === 'parameters' || t.table === 'groups'))).map((t) => [
           <a key={t.table} className={link} href={exportCsvUrl(slug, fit.id, t.table)} download title={`${t.title} (CSV)`}>
             {t.label} CSV
           </a>,
