@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, inArray, ne } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, ne, sql } from 'drizzle-orm';
 import type { DbOrTx } from './revisions.repository';
 import { entries, fits, hypothesisScans, modelVersions, questions } from './schema';
 
@@ -25,9 +25,19 @@ export async function latestVersion(db: DbOrTx, analysisId: number) {
   return v;
 }
 
-/** The succeeded fits of a version, newest first, with their options and result. */
+/** The succeeded fits of a version, newest first, with their options and whether they converged (not their results, which can be megabytes). */
 export const succeededFitsOf = (db: DbOrTx, versionId: number) =>
-  db.select({ id: fits.id, options: fits.options, result: fits.result }).from(fits).where(and(eq(fits.modelVersionId, versionId), eq(fits.state, 'succeeded'))).orderBy(desc(fits.id));
+  db
+    .select({ id: fits.id, options: fits.options, converged: sql<boolean>`coalesce(${fits.result}->>'status' = 'converged', false)` })
+    .from(fits)
+    .where(and(eq(fits.modelVersionId, versionId), eq(fits.state, 'succeeded')))
+    .orderBy(desc(fits.id));
+
+/** One fit's nuisance rows (name, pull, held), read out of its stored result. */
+export async function nuisanceOf(db: DbOrTx, fitId: number) {
+  const [row] = await db.select({ nuisance: sql<{ name: string; pull: number; fixed: boolean }[] | null>`${fits.result}->'nuisance'` }).from(fits).where(eq(fits.id, fitId));
+  return row?.nuisance ?? [];
+}
 
 /** The succeeded scans over signal hypotheses of a version, with their options. */
 export const succeededScansOf = (db: DbOrTx, versionId: number) =>

@@ -2,7 +2,7 @@ import type { ApprovalChecklist, ChecklistItem } from '@shared/schemas/approval'
 import type { Access } from '../auth/authorize';
 import type { AppContext } from '../context';
 import type { DbOrTx } from '../db/revisions.repository';
-import { activeEntries, latestVersion, questionsWithEntry, succeededFitsOf, succeededScansOf } from '../db/approval.repository';
+import { activeEntries, latestVersion, nuisanceOf, questionsWithEntry, succeededFitsOf, succeededScansOf } from '../db/approval.repository';
 
 /** A pull beyond this many standard deviations needs a resolved question on its parameter before unblinding (common practice, no source). */
 export const PULL_TO_EXPLAIN = 2;
@@ -56,11 +56,10 @@ export async function unblindingChecklist(db: DbOrTx, analysisId: number): Promi
   const fitsOf = version ? await succeededFitsOf(db, version.id) : [];
   const scansOf = version ? await succeededScansOf(db, version.id) : [];
   const opts = (o: unknown) => (o ?? {}) as Options;
-  const converged = (r: unknown) => (r as { status?: string } | null)?.status === 'converged';
-  const control = fitsOf.find((f) => opts(f.options).dataset === 'observed' && opts(f.options).controlOnly && converged(f.result));
-  const expected = fitsOf.find((f) => opts(f.options).dataset === 'asimov' && converged(f.result));
+  const control = fitsOf.find((f) => opts(f.options).dataset === 'observed' && opts(f.options).controlOnly && f.converged);
+  const expected = fitsOf.find((f) => opts(f.options).dataset === 'asimov' && f.converged);
   const expectedScan = scansOf.find((s) => (s.options as { dataset?: string }).dataset === 'expected');
-  const hidden = fitsOf.find((f) => opts(f.options).hiddenMu && converged(f.result));
+  const hidden = fitsOf.find((f) => opts(f.options).hiddenMu && f.converged);
   const where = version ? `version ${version.number}` : 'no frozen version';
   const items: ChecklistItem[] = [
     entriesItem,
@@ -81,7 +80,7 @@ export async function unblindingChecklist(db: DbOrTx, analysisId: number): Promi
   ];
   if (hidden) {
     const resolved = new Set((await questionsWithEntry(db, analysisId)).filter((q) => q.state === 'resolved').map((q) => q.entry));
-    const pulls = ((hidden.result as { nuisance?: { name: string; pull: number; fixed: boolean }[] }).nuisance ?? []).filter((n) => !n.fixed && Math.abs(n.pull) > PULL_TO_EXPLAIN);
+    const pulls = (await nuisanceOf(db, hidden.id)).filter((n) => !n.fixed && Math.abs(n.pull) > PULL_TO_EXPLAIN);
     const unexplained = pulls.filter((n) => !resolved.has(n.name));
     items.push({
       key: 'pulls-explained',
