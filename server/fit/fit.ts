@@ -352,7 +352,7 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     data: dataSection(problem, options),
     variant: variantReport,
   };
-  if (poiJobs) result.poi = poiSection(ctx, poiJobs, results, warnings, impactJobs, nuisance);
+  if (poiJobs) result.poi = poiSection(ctx, poiJobs, results, warnings, impactJobs, nuisance, scan);
   if (options.contour) {
     progress(0.97, 'contour');
     result.contour = contourOf(ctx, options.contour, { signal });
@@ -494,6 +494,7 @@ function poiSection(
   warnings: string[],
   impactJobs: Map<number, { up: number; down: number }>,
   nuisance: NuisanceReport[],
+  muScan: ParameterScan | null,
 ): NonNullable<FitResult['poi']> {
   const m = ctx.problem.model;
   const P = m.nDense;
@@ -505,7 +506,8 @@ function poiSection(
     let interval68: { low: number | null; high: number | null } | null = null;
     let interval95: { low: number | null; high: number | null } | null = null;
     if (plan && plan.grid.length > 0) {
-      scan = assembleScan(ctx, i, plan.grid, results.slice(plan.first, plan.first + plan.grid.length + 4), i === 0 ? [] : warnings);
+      // μ's scan is the result's own (assembled once, with its warnings)
+      scan = i === 0 && muScan ? muScan : assembleScan(ctx, i, plan.grid, results.slice(plan.first, plan.first + plan.grid.length + 4), warnings);
       interval68 = scan.crossings68;
       interval95 = scan.crossings95;
     } else if (plan) {
