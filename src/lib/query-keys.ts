@@ -30,6 +30,8 @@ export const queryKeys = {
   overview: (slug: string) => [...analysis(slug), 'overview'] as const,
   members: (slug: string) => [...analysis(slug), 'members'] as const,
   blinding: (slug: string) => [...analysis(slug), 'blinding'] as const,
+  /** The server's checklist before unblinding: under the blinding key, so a blinding change refreshes it. */
+  blindingChecklist: (slug: string) => [...analysis(slug), 'blinding', 'checklist'] as const,
   /** The model; its signal hypotheses sit under it (a model change may change what they lack). */
   model,
   signalHypotheses: (slug: string) => [...model(slug), 'signal-hypotheses'] as const,
@@ -48,6 +50,9 @@ export const queryKeys = {
   hypothesisScan: (slug: string, id: number) => [...hypothesisScans(slug), id] as const,
 
   versions: (slug: string) => [...analysis(slug), 'versions'] as const,
+  /** The gates of a version for approval and the stale effects: under the versions key, so a freeze refreshes them. */
+  versionChecklist: (slug: string) => [...analysis(slug), 'versions', 'approval-checklist'] as const,
+  staleEffects: (slug: string) => [...analysis(slug), 'versions', 'stale-effects'] as const,
   /** The fits' list; every fit's key starts with it. */
   fits,
   fit,

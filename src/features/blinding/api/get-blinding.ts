@@ -17,5 +17,5 @@ export function useBlinding(slug: string) {
 
 /** What the server checks before unblinding, as it stands now (recomputed on every read). */
 export function useUnblindingChecklist(slug: string, enabled: boolean) {
-  return useQuery({ queryKey: [...queryKeys.blinding(slug), 'checklist'], queryFn: () => api.get<ApprovalChecklist>(analysisPath(slug, 'blinding', 'checklist')), enabled });
+  return useQuery({ queryKey: queryKeys.blindingChecklist(slug), queryFn: () => api.get<ApprovalChecklist>(analysisPath(slug, 'blinding', 'checklist')), enabled });
 }

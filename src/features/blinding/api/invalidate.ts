@@ -8,7 +8,7 @@ import { queryKeys } from '../../../lib/query-keys';
  */
 export function blindingChanged(queryClient: QueryClient, slug: string, log: BlindingLog) {
   queryClient.setQueryData(queryKeys.blinding(slug), log);
-  void queryClient.invalidateQueries({ queryKey: [...queryKeys.blinding(slug), 'checklist'] });
+  void queryClient.invalidateQueries({ queryKey: queryKeys.blindingChecklist(slug) });
   void queryClient.invalidateQueries({ queryKey: queryKeys.overview(slug) });
   void queryClient.invalidateQueries({ queryKey: queryKeys.fits(slug) });
   void queryClient.invalidateQueries({ queryKey: queryKeys.model(slug) });

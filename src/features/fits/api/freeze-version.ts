@@ -23,10 +23,10 @@ export function useFreezeVersion(slug: string) {
 
 /** The gates of a version frozen for approval, as they stand now (entries accepted, no open question). */
 export function useVersionChecklist(slug: string, enabled: boolean) {
-  return useQuery({ queryKey: [...queryKeys.versions(slug), 'approval-checklist'], queryFn: () => api.get<ApprovalChecklist>(analysisPath(slug, 'versions', 'approval-checklist')), enabled });
+  return useQuery({ queryKey: queryKeys.versionChecklist(slug), queryFn: () => api.get<ApprovalChecklist>(analysisPath(slug, 'versions', 'approval-checklist')), enabled });
 }
 
 /** Shape effects whose nominal changed since upload: the freeze asks how to keep each. */
 export function useStaleEffects(slug: string) {
-  return useQuery({ queryKey: [...queryKeys.versions(slug), 'stale-effects'], queryFn: () => api.get<StaleEffect[]>(analysisPath(slug, 'versions', 'stale-effects')) });
+  return useQuery({ queryKey: queryKeys.staleEffects(slug), queryFn: () => api.get<StaleEffect[]>(analysisPath(slug, 'versions', 'stale-effects')) });
 }
