@@ -275,7 +275,7 @@ export function scanChart(points: { value: number; q: number }[], bestFit: numbe
 }
 
 /** A two-parameter contour: the 68.27 % line solid, the 95 % line dashed, the best fit as a cross. */
-export function contourChart(c: { parameters: [string, string]; bestFit: [number, number]; a: number[]; b: number[]; levels: { cl: number; lines: [number, number][][] }[] }, labels: PlotLabels, title: string): string {
+export function contourChart(c: { parameters: [string, string]; bestFit: [number, number]; a: number[]; b: number[]; levels: { cl: number; lines: [number, number][][] }[] }, labels: PlotLabels, title: string, axes: [string, string] = c.parameters): string {
   const W = 460;
   const L = 62;
   const R = 20;
@@ -294,5 +294,5 @@ export function contourChart(c: { parameters: [string, string]; bestFit: [number
   const [bx, by] = c.bestFit;
   const cross = `<path d="M${x(bx) - 5},${y(by)}h10M${x(bx)},${y(by) - 5}v10" stroke="${COLOURS.ink}" stroke-width="1.6"/>`;
   const legend = c.levels.map((lv, k) => `<line x1="${L + k * 120}" x2="${L + k * 120 + 20}" y1="${LABEL_BAND + 12}" y2="${LABEL_BAND + 12}" stroke="${k === 0 ? COLOURS.teal : COLOURS.plum}" stroke-width="1.6"${k === 0 ? '' : ' stroke-dasharray="5 3"'}/><text x="${L + k * 120 + 24}" y="${LABEL_BAND + 15}" font-size="10.5" fill="${COLOURS.ink}">${esc(num(lv.cl * 100, 4))} % CL</text>`).join('');
-  return svg(W, H, title, labels, `${legend}${xAxis(x, bottom, top, c.parameters[0])}${yAxis(y, L, W - R, c.parameters[1])}${lines}${cross}`);
+  return svg(W, H, title, labels, `${legend}${xAxis(x, bottom, top, axes[0])}${yAxis(y, L, W - R, axes[1])}${lines}${cross}`);
 }

@@ -213,7 +213,7 @@ function scans(d: PackData, r: FitResult): string {
   const figures = list.map((x) => figure(scanChart(x.points, x.bestFit, d.analysis.plotLabels, `Profile-likelihood scan of ${labelOf(x.parameter)}`, labelOf(x.parameter)), esc(`Scan of ${labelOf(x.parameter)}: ${x.points.length} points; crossings of q = 1 at ${num(x.crossings68.low)} and ${num(x.crossings68.high)}.`)));
   const c = r.contour;
   if (c && !c.failure && c.a.length > 1 && c.b.length > 1)
-    figures.push(figure(contourChart(c, d.analysis.plotLabels, `Contour of ${labelOf(c.parameters[0])} and ${labelOf(c.parameters[1])}`), esc(`68.27 % (solid) and 95 % (dashed) contours for two parameters; the cross is the best fit. ${c.points.failed} of ${c.points.converged + c.points.failed} grid points failed and are left out.`)));
+    figures.push(figure(contourChart(c, d.analysis.plotLabels, `Contour of ${labelOf(c.parameters[0])} and ${labelOf(c.parameters[1])}`, [labelOf(c.parameters[0]), labelOf(c.parameters[1])]), esc(`68.27 % (solid) and 95 % (dashed) contours for two parameters; the cross is the best fit. ${c.points.failed} of ${c.points.converged + c.points.failed} grid points failed and are left out.`)));
   if (!figures.length) return '';
   return `<section><h2>Likelihood scans</h2>${warningsBeside(r)}<div class="pair">${figures.join('')}</div></section>`;
 }
