@@ -1,21 +1,30 @@
-import { eq } from 'drizzle-orm';
-import { exchangeModelSchema, type ExchangeModel } from '@shared/schemas/exchange';
-import { fitOptionsSchema, type FitOptions } from '@shared/schemas/fit';
+import { eq, sql } from 'drizzle-orm';
 import type { Db } from '../db/client';
 import { fits, modelVersions } from '../db/schema';
 import { dropFitParts, storeFitParts } from '../db/fits.repository';
 import type { StorableResult } from './fit-outcome';
 import { JobError } from './threads/fit-thread';
 import { jobRow } from './run-rows';
-import { engineIdentity, inputSha256 } from './engine-identity';
+import { engineIdentity } from './engine-identity';
+import type { FitInput } from './fit-input';
+
+export { readFitInput, type FitInput } from './fit-input';
 
 export const NOT_FINITE =
   'The fit ended with a number that is not finite (NaN or infinite), so none of its numbers are shown. Check the model for extreme yields or variations, and tell an admin.';
 
 export const INTERRUPTED = 'Interrupted: the server stopped while this fit was running. Start it again.';
 
-/** Runs the engine on a model; throws JobError (cancelled, input, numeric, internal). */
-export type ComputeFit = (model: ExchangeModel, options: FitOptions, onProgress: (fraction: number, stage: string) => void, signal: AbortSignal) => Promise<StorableResult>;
+/**
+ * Runs the engine on a fit's input: reads it (readFitInput), tells `onInput` the input's hash
+ * before fitting, then fits; throws JobError (cancelled, input, numeric, internal).
+ */
+export type ComputeFit = (
+  input: FitInput,
+  onInput: (inputSha256: string) => void,
+  onProgress: (fraction: number, stage: string) => void,
+  signal: AbortSignal,
+) => Promise<StorableResult>;
 
 /**
  * One fit job from its row to its stored result, wherever it runs (a thread of the server, or a
@@ -32,17 +41,31 @@ export async function executeFit(
   const { signal, log } = control;
   const [fit] = await db.select().from(fits).where(eq(fits.id, id));
   if (!fit || fit.state !== 'queued') return;
-  const [version] = await db.select().from(modelVersions).where(eq(modelVersions.id, fit.modelVersionId));
+  // the model as text: the database's own JSON, parsed where the fit runs
+  const [version] = await db
+    .select({ modelText: sql<string>`${modelVersions.model}::text` })
+    .from(modelVersions)
+    .where(eq(modelVersions.id, fit.modelVersionId));
   const row = jobRow(db, fits, id);
   if (!(await row.start({ stage: 'starting', coordinatedBy: control.coordinator ?? null }))) return;
   const finish = row.finish;
+  // the write of the input's hash, once the fit has read its input: its failure fails the fit
+  let identified: Promise<unknown> = Promise.resolve(null);
   try {
-    const model = exchangeModelSchema.parse(version.model);
-    const options = fitOptionsSchema.parse(fit.options);
     // what computes it, and from exactly what: so that it can be reproduced and checked
     const engine = engineIdentity();
-    await db.update(fits).set({ engineVersion: engine.version, engineHash: engine.hash, inputSha256: inputSha256(model, options) }).where(eq(fits.id, id));
-    const { result, parts } = await compute(model, options, row.progress, signal);
+    const onInput = (sha: string) =>
+      (identified = db
+        .update(fits)
+        .set({ engineVersion: engine.version, engineHash: engine.hash, inputSha256: sha })
+        .where(eq(fits.id, id))
+        .then(
+          () => null,
+          (e: unknown) => e,
+        ));
+    const { result, parts } = await compute({ modelText: version.modelText, options: fit.options }, onInput, row.progress, signal).finally(() => identified);
+    const unwritten = await identified;
+    if (unwritten) throw unwritten;
     // the large parts first, so that a fit readers see as ended has them; gone again if the row
     // was cancelled meanwhile by another process
     await storeFitParts(db, id, parts);

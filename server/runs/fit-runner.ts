@@ -41,7 +41,7 @@ export function createFitRunner(db: Db, log: (line: string) => void, options: { 
   const runner = localRunner(
     db,
     fits,
-    (id, signal, cancelledBy) => executeFit(db, id, (model, fitOptions, onProgress, s) => jobs().run(model, fitOptions, onProgress, s), { signal, log, cancelledBy }),
+    (id, signal, cancelledBy) => executeFit(db, id, (input, onInput, onProgress, s) => jobs().run(input, onInput, onProgress, s), { signal, log, cancelledBy }),
     { interrupted: INTERRUPTED, what: 'fit', log },
   );
 

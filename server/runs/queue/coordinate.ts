@@ -3,7 +3,7 @@ import { eq } from 'drizzle-orm';
 import type { Db } from '../../db/client';
 import { fits, hypothesisScans } from '../../db/schema';
 import { FitCancelledError } from '../../fit';
-import { executeFit } from '../execute-fit';
+import { executeFit, readFitInput } from '../execute-fit';
 import { abortWhenCancelled } from '../local-runner';
 import { JobError } from '../threads/fit-thread';
 import { fitOutcome } from '../fit-outcome';
@@ -25,7 +25,9 @@ export async function coordinateFit(db: Db, queue: Queue, fitId: number, log: (l
     await executeFit(
       db,
       fitId,
-      async (model, options, onProgress, signal) => {
+      async (input, onInput, onProgress, signal) => {
+        const { model, options, inputSha256 } = readFitInput(input);
+        onInput(inputSha256);
         const pool = queuedFitPool(db, queue, `fit:${fitId}:${randomUUID()}`, (worker) => (workers[worker] = (workers[worker] ?? 0) + 1));
         try {
           const outcome = await fitOutcome(model, options, { pool, onProgress, signal });

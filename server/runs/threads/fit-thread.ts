@@ -1,9 +1,8 @@
 import { MessageChannel } from 'node:worker_threads';
-import type { ExchangeModel } from '@shared/schemas/exchange';
-import type { FitOptions } from '@shared/schemas/fit';
 import { threadEntry, workerPool } from './pool';
-import type { JobOutcome } from './fit.worker';
+import type { JobMessage, JobOutcome, JobTask } from './fit.worker';
 import type { StorableResult } from '../fit-outcome';
+import type { ComputeFit } from '../execute-fit';
 
 export class JobError extends Error {
   constructor(
@@ -15,9 +14,9 @@ export class JobError extends Error {
   }
 }
 
-/** The job thread, seen from the server thread: run a fit there (cancellable), close the thread. */
+/** The job thread, seen from the server thread: run a fit there, from its input as stored (cancellable), close the thread. */
 export type JobThread = {
-  run: (model: ExchangeModel, options: FitOptions, onProgress: (fraction: number, stage: string) => void, signal: AbortSignal) => Promise<StorableResult>;
+  run: ComputeFit;
   close: () => Promise<void>;
 };
 
@@ -26,11 +25,11 @@ export function startJobThread(threads?: number, niceness = 0): JobThread {
   const piscina = workerPool(threadEntry('fit.worker'), { minThreads: 0, maxThreads: 1, idleTimeout: 10 * 60_000 });
 
   return {
-    run: async (model, options, onProgress, signal) => {
+    run: async (input, onInput, onProgress, signal): Promise<StorableResult> => {
       const { port1, port2 } = new MessageChannel();
-      port1.on('message', (m: { fraction: number; stage: string }) => onProgress(m.fraction, m.stage));
+      port1.on('message', (m: JobMessage) => ('inputSha256' in m ? onInput(m.inputSha256) : onProgress(m.fraction, m.stage)));
       try {
-        const outcome = (await piscina.run({ model, options, threads, niceness, progress: port2 }, { transferList: [port2], signal })) as JobOutcome;
+        const outcome = (await piscina.run({ ...input, threads, niceness, progress: port2 } satisfies JobTask, { transferList: [port2], signal })) as JobOutcome;
         if (!outcome.ok) throw new JobError(outcome.kind, outcome.message);
         return outcome.stored;
       } catch (e) {
