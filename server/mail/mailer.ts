@@ -70,7 +70,9 @@ export async function createMailer(record: OutboxStore, config: Config, log: (li
     capture.listen(0, '127.0.0.1');
     await once(capture.server, 'listening');
     const { port } = capture.server.address() as AddressInfo;
-    transport = nodemailer.createTransport({ host: '127.0.0.1', port, secure: false, ignoreTLS: true });
+    // a few connections kept open and reused: a notice to a whole team is many messages at once,
+    // and a connection per message would cost each its own handshake on this thread
+    transport = nodemailer.createTransport({ host: '127.0.0.1', port, secure: false, ignoreTLS: true, pool: true, maxConnections: 2, maxMessages: Infinity });
   }
 
   const deliver = async (to: string, mail: Mail) => {
