@@ -2,7 +2,7 @@ import { mkdtempSync, rmSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import request from 'supertest';
-import { count } from 'drizzle-orm';
+import { count, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp } from '../../server/app';
 import { testConfig } from '../../server/config';
@@ -68,6 +68,21 @@ describe('signing in', () => {
     // the old cookie, replayed as a thief would, signs no one in: the stored session is gone
     expect((await request(t.app).get('/api/auth/me').set('cookie', cookie)).status).toBe(401);
     expect(await sessions()).toBe(before - 1);
+  });
+
+  it('sees a change to the signed-in person at the next request: a new name, admin rights given and taken, the account gone', async () => {
+    const client = new Client(t.app);
+    await client.signIn(DEMO.reader);
+    const me = async () => (await client.get('/api/auth/me')).body.user;
+    const before = await me();
+    expect(before).toMatchObject({ email: DEMO.reader, isAdmin: false });
+    // written straight to the database, as another tool or a migration would
+    await t.database.db.update(users).set({ name: 'Renamed Reader', isAdmin: true }).where(eq(users.id, before.id));
+    expect(await me()).toMatchObject({ name: 'Renamed Reader', isAdmin: true });
+    expect((await client.get('/api/users')).status).toBe(200);
+    await t.database.db.update(users).set({ name: before.name, isAdmin: false }).where(eq(users.id, before.id));
+    expect(await me()).toMatchObject({ name: before.name, isAdmin: false });
+    expect((await client.get('/api/users')).status).toBe(403);
   });
 
   it('sends security headers', async () => {
