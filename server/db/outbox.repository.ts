@@ -12,8 +12,9 @@ export type OutboxStore = (row: OutboxRow) => Promise<void>;
  * only its own record.
  */
 export const outboxStore = (db: Db): OutboxStore => {
-  let batch: { row: OutboxRow; written: () => void; failed: (e: unknown) => void }[] | null = null;
-  const write = async (rows: NonNullable<typeof batch>) => {
+  type Pending = { row: OutboxRow; written: () => void; failed: (e: unknown) => void };
+  let batch: Pending[] | null = null;
+  const write = async (rows: Pending[]) => {
     try {
       await db.insert(outbox).values(rows.map((r) => r.row));
       for (const r of rows) r.written();
@@ -24,14 +25,15 @@ export const outboxStore = (db: Db): OutboxStore => {
   };
   return (row) =>
     new Promise<void>((written, failed) => {
-      if (!batch) {
-        const rows: NonNullable<typeof batch> = (batch = []);
+      let rows = batch;
+      if (!rows) {
+        const taken: Pending[] = (rows = batch = []);
         setImmediate(() => {
           batch = null;
-          void write(rows);
+          void write(taken);
         });
       }
-      batch.push({ row, written, failed });
+      rows.push({ row, written, failed });
     });
 };
 
