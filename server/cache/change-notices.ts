@@ -49,3 +49,40 @@ export function copiesUntilChanged(channel: string) {
 export const untilModelChanges = copiesUntilChanged('model_changed');
 /** Copies that depend on an analysis's register (entries, effects, groups, questions, owners' names). */
 export const untilRegisterChanges = copiesUntilChanged('register_changed');
+
+/**
+ * Copies of one entry's page, per analysis and name (the entry's key), kept until "entry_changed"
+ * announces a change to that entry ("<analysis>:<entry id>"), to every entry of its analysis
+ * ("<analysis>") or to anyone's name ("*"). A copy still being built when a change to its analysis
+ * is announced is dropped too, since which entry it holds is not known yet. Each copy is built once;
+ * a build that fails is not kept. Copies are shared: callers must not change them.
+ */
+export async function untilEntryChanges<T>(client: DbClient, analysisId: number, name: string, build: () => Promise<{ entryId: number; value: T }>): Promise<T> {
+  type Copy = { entryId: number | null; value: Promise<T> };
+  const analyses = await untilNotified(
+    client,
+    'entry_changed',
+    () => new Map<number, Map<string, Copy>>(),
+    (all, payload) => {
+      if (payload === '*') return all.clear();
+      const [analysis, entry] = payload.split(':');
+      const copies = all.get(Number(analysis));
+      if (!copies) return;
+      if (entry === undefined) return void all.delete(Number(analysis));
+      for (const [key, copy] of copies) if (copy.entryId === null || copy.entryId === Number(entry)) copies.delete(key);
+    },
+  );
+  let copies = analyses.get(analysisId);
+  if (!copies) analyses.set(analysisId, (copies = new Map()));
+  const kept = copies.get(name);
+  if (kept) return kept.value;
+  // kept before it is built, so that a change announced meanwhile drops it too
+  const built = build();
+  const copy: Copy = { entryId: null, value: built.then((b) => b.value) };
+  copies.set(name, copy);
+  built.then(
+    (b) => void (copy.entryId = b.entryId),
+    () => copies.get(name) === copy && copies.delete(name),
+  );
+  return copy.value;
+}

@@ -1,4 +1,4 @@
-import { untilModelChanges, untilRegisterChanges } from '../cache/change-notices';
+import { untilEntryChanges, untilModelChanges } from '../cache/change-notices';
 import { can } from '@shared/permissions';
 import {
   entryInputSchema,
@@ -117,12 +117,15 @@ export async function getEntryDetail(ctx: AppContext, access: Access, key: strin
   };
 }
 
-/** An entry's own fields, owner, group and history, shared by every reader until the register changes. */
+/**
+ * An entry's own fields, owner, group and history, shared by every reader until that entry changes
+ * (or its group, or someone's name): a write to another entry leaves this page as it is.
+ */
 function entryPage(ctx: AppContext, analysisId: number, key: string) {
-  return untilRegisterChanges(ctx.client, analysisId, `entry page ${key}`, async () => {
+  return untilEntryChanges(ctx.client, analysisId, key, async () => {
     const row = await entryForPage(ctx.db, analysisId, key);
     if (!row) throw notFound(`Register entry "${key}"`);
-    return { row, history: await entryRevisions(ctx.db, row.entry.id) };
+    return { entryId: row.entry.id, value: { row, history: await entryRevisions(ctx.db, row.entry.id) } };
   });
 }
 

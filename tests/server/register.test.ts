@@ -193,6 +193,52 @@ describe('the register copy kept in memory', () => {
   });
 });
 
+describe('the entry pages kept in memory', () => {
+  it('shows every change to an entry, its history, its group and the names on it, whichever path made it, and each page its own entry', async () => {
+    const t = await createTestApp();
+    try {
+      const reader = await signedIn(t.app, DEMO.reader);
+      const analyst = await signedIn(t.app, DEMO.analyst);
+      type Page = { key: string; label: string; group: string | null; owner: { name: string } | null; revisions: { summary: string; author: { name: string } | null }[] };
+      const page = async (key: string) => {
+        const res = await reader.get(`${A}/entries/${key}`);
+        return res.status === 200 ? (res.body as Page) : res.status;
+      };
+      const [first, other] = (await reader.get(`${A}/entries`)).body.map((e: { key: string }) => e.key) as string[];
+      const before = (await page(first)) as Page;
+      const otherBefore = (await page(other)) as Page;
+      // an edit through the API: its own page shows it and its new revision, the other page is unchanged
+      const v = (await analyst.get(`${A}/entries/${first}`)).body.version;
+      expect((await analyst.send('patch', `${A}/entries/${first}`, { label: 'Edited label', version: v })).status).toBe(200);
+      const edited = (await page(first)) as Page;
+      expect(edited.label).toBe('Edited label');
+      expect(edited.revisions.length).toBe(before.revisions.length + 1);
+      expect(await page(other)).toEqual(otherBefore);
+      // writes that bypass the services: the triggers announce them all the same
+      await t.database.client.query(`update entries set label = 'Renamed in the database' where key = $1`, [other]);
+      expect(((await page(other)) as Page).label).toBe('Renamed in the database');
+      await t.database.client.query(`insert into revisions (analysis_id, entry_id, action, summary) select analysis_id, id, 'edited', 'Written in the database.' from entries where key = $1`, [first]);
+      expect(((await page(first)) as Page).revisions[0].summary).toBe('Written in the database.');
+      await t.database.client.query(`update groups set name = 'renamed group' where id = (select group_id from entries where key = $1)`, [first]);
+      expect(((await page(first)) as Page).group).toBe('renamed group');
+      const author = edited.revisions[0].author!.name;
+      await t.database.client.query(`update users set name = 'Another Name' where name = $1`, [author]);
+      expect(((await page(first)) as Page).revisions[1].author!.name).toBe('Another Name');
+      if (otherBefore.owner) {
+        await t.database.client.query(`update users set name = 'Owner Renamed' where name = $1`, [otherBefore.owner.name]);
+        expect(((await page(other)) as Page).owner!.name).toBe('Owner Renamed');
+      }
+      await t.database.client.query(`update entries set key = 'moved_key' where key = $1`, [other]);
+      expect(await page(other)).toBe(404);
+      expect(((await page('moved_key')) as Page).label).toBe('Renamed in the database');
+      await t.database.client.query(`delete from entries where key = $1`, [first]);
+      expect(await page(first)).toBe(404);
+    } finally {
+      await t.close();
+    }
+  });
+});
+
 describe('the model copy kept in memory', () => {
   it('shows every change to regions, processes, floating normalisations, templates and effects, whichever path made it', async () => {
     const t = await createTestApp();
