@@ -13,15 +13,17 @@ import { buildOnce } from './results';
  */
 const listeners = new WeakMap<object, Map<string, Promise<unknown>>>();
 
-export function untilNotified<T>(client: DbClient, channel: string, create: () => T, onNotice: (state: T, payload: string) => void): Promise<T> {
+export function untilNotified<T>(client: DbClient, channel: string | string[], create: () => T, onNotice: (state: T, payload: string) => void): Promise<T> {
   if (!client.listen) return Promise.resolve(create());
   let channels = listeners.get(client);
   if (!channels) listeners.set(client, (channels = new Map()));
-  let state = channels.get(channel) as Promise<T> | undefined;
+  const names = [channel].flat();
+  const key = names.join(' ');
+  let state = channels.get(key) as Promise<T> | undefined;
   if (!state) {
     const value = create();
-    state = client.listen!(channel, (payload) => onNotice(value, payload)).then(() => value);
-    channels.set(channel, state);
+    state = Promise.all(names.map((name) => client.listen!(name, (payload) => onNotice(value, payload)))).then(() => value);
+    channels.set(key, state);
   }
   return state;
 }
@@ -31,7 +33,7 @@ export function untilNotified<T>(client: DbClient, channel: string, create: () =
  * the analysis id). Each copy is built once: readers arriving while it is built share it, and a
  * build that fails is not kept. Copies are shared: callers must not change them.
  */
-export function copiesUntilChanged(channel: string) {
+export function copiesUntilChanged(channel: string | string[]) {
   return async <T>(client: DbClient, analysisId: number, what: string, build: () => Promise<T>): Promise<T> => {
     const analyses = await untilNotified(
       client,
@@ -49,6 +51,8 @@ export function copiesUntilChanged(channel: string) {
 export const untilModelChanges = copiesUntilChanged('model_changed');
 /** Copies that depend on an analysis's register (entries, effects, groups, questions, owners' names). */
 export const untilRegisterChanges = copiesUntilChanged('register_changed');
+/** Copies that depend on the register and on the answers to its questions (the lists of questions). */
+export const untilQuestionsChange = copiesUntilChanged(['register_changed', 'answers_changed']);
 
 /**
  * Copies of one entry's page, per analysis and name (the entry's key), kept until "entry_changed"

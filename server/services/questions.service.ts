@@ -17,7 +17,7 @@ import { entryExists, findEntry } from '../db/entries.repository';
 import { badRequest, conflict, notFound } from '../errors';
 import { notifyQuestionAnswered, notifyQuestionRaised, notifyQuestionStep } from '../mail/notifications';
 import { audience, personal, withRoles } from './recipients.service';
-import { untilRegisterChanges } from '../cache/change-notices';
+import { untilQuestionsChange } from '../cache/change-notices';
 
 /**
  * Questions from every reviewer, on anything: any member (a reader too) raises one on a parameter
@@ -33,13 +33,13 @@ const person = (p: { id: number; name: string } | null) => (p ? { id: p.id, name
 
 /**
  * The questions a filter selects. The queue as most people open it (all, or one state) is shared
- * by every reader until the register (questions, answers, entries) changes; narrower filters, of
+ * by every reader until the register (questions, entries) or an answer changes; narrower filters, of
  * which there can be any number, are read each time.
  */
 function readQuestions(ctx: AppContext, access: Access, filter: QuestionFilter): Promise<(QuestionSummary & { body: string })[]> {
   const { state, ...narrower } = filter;
   if (Object.values(narrower).some((v) => v !== undefined)) return buildQuestions(ctx, access, filter);
-  return untilRegisterChanges(ctx.client, access.analysis.id, `questions ${state ?? 'all'}`, () => buildQuestions(ctx, access, filter));
+  return untilQuestionsChange(ctx.client, access.analysis.id, `questions ${state ?? 'all'}`, () => buildQuestions(ctx, access, filter));
 }
 
 async function buildQuestions(ctx: AppContext, access: Access, filter: QuestionFilter): Promise<(QuestionSummary & { body: string })[]> {

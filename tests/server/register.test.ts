@@ -193,6 +193,32 @@ describe('the register copy kept in memory', () => {
   });
 });
 
+describe('the lists of questions kept in memory', () => {
+  it('show every answer and every change of a question, whichever path made it', async () => {
+    const t = await createTestApp();
+    try {
+      const reader = await signedIn(t.app, DEMO.reader);
+      const convener = await signedIn(t.app, DEMO.convener);
+      const [key] = (await reader.get(`${A}/entries`)).body.map((e: { key: string }) => e.key) as string[];
+      const raised = await convener.send('post', `${A}/questions`, { entry: key, title: 'Why so narrow?', body: 'Show where it comes from.' });
+      expect(raised.status).toBe(201);
+      const listed = async () => ((await reader.get(`${A}/questions`)).body as { id: number; answers: number; state: string; title: string }[]).find((q) => q.id === raised.body.id)!;
+      expect(await listed()).toMatchObject({ answers: 0, state: 'open' });
+      expect((await convener.send('post', `${A}/questions/${raised.body.id}/answers`, { body: 'The control region.' })).status).toBe(201);
+      expect(await listed()).toMatchObject({ answers: 1, state: 'answered' });
+      // written in the database: an answer, then a question's title
+      await t.database.client.query(`insert into answers (question_id, author_id, body) select id, author_id, 'Another.' from questions where id = $1`, [raised.body.id]);
+      expect((await listed()).answers).toBe(2);
+      await t.database.client.query(`delete from answers where question_id = $1`, [raised.body.id]);
+      expect((await listed()).answers).toBe(0);
+      await t.database.client.query(`update questions set title = 'Retitled' where id = $1`, [raised.body.id]);
+      expect((await listed()).title).toBe('Retitled');
+    } finally {
+      await t.close();
+    }
+  });
+});
+
 describe('the entry pages kept in memory', () => {
   it('shows every change to an entry, its history, its group and the names on it, whichever path made it, and each page its own entry', async () => {
     const t = await createTestApp();
