@@ -36,7 +36,7 @@ import { readUpload } from '../uploads/upload';
 import { groupIdFor } from './groups.service';
 import { personal, withRoles } from './recipients.service';
 import { readVariationFile, shapePrecision } from './variation-files';
-import { checkUpload, uploadCheckOf } from './impact-checks.service';
+import { checkUpload, latestUploadCheck, uploadCheckView } from './impact-checks.service';
 
 
 /** What the caller may do with this entry: the permission table plus ownership and review state. */
@@ -84,10 +84,11 @@ async function assertOwnerIsMember(db: DbOrTx, analysisId: number, ownerId: numb
 /**
  * One entry as its page shows it. Its effects, drawn over the templates and binning they vary,
  * are the bulk of it and change only with the model: they are kept until the model changes
- * (`effectViews`); the entry's own fields, owner, group and history are read each time.
+ * (`effectViews`); the entry's own fields, owner, group, history and newest check until the entry
+ * changes (`entryPage`).
  */
 export async function getEntryDetail(ctx: AppContext, access: Access, key: string): Promise<EntryDetail> {
-  const { row, history } = await entryPage(ctx, access.analysis.id, key);
+  const { row, history, check } = await entryPage(ctx, access.analysis.id, key);
   const { entry } = row;
   const effectList = await effectViews(ctx, access.analysis.id, entry.id);
   return {
@@ -113,19 +114,21 @@ export async function getEntryDetail(ctx: AppContext, access: Access, key: strin
       after: r.after ?? undefined,
     })),
     can: entryPermissions(access, entry),
-    impactCheck: await uploadCheckOf(ctx, access, entry.id),
+    impactCheck: uploadCheckView(access, check),
   };
 }
 
 /**
- * An entry's own fields, owner, group and history, shared by every reader until that entry changes
- * (or its group, or someone's name): a write to another entry leaves this page as it is.
+ * An entry's own fields, owner, group, history and newest upload check, shared by every reader until
+ * that entry changes (or its group, its checks, or someone's name): a write to another entry leaves
+ * this page as it is.
  */
 function entryPage(ctx: AppContext, analysisId: number, key: string) {
   return untilEntryChanges(ctx.client, analysisId, key, async () => {
     const row = await entryForPage(ctx.db, analysisId, key);
     if (!row) throw notFound(`Register entry "${key}"`);
-    return { entryId: row.entry.id, value: { row, history: await entryRevisions(ctx.db, row.entry.id) } };
+    const [history, check] = [await entryRevisions(ctx.db, row.entry.id), await latestUploadCheck(ctx, row.entry.id)];
+    return { entryId: row.entry.id, value: { row, history, check } };
   });
 }
 

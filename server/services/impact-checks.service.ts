@@ -86,9 +86,11 @@ export const impactChecksIdle = async () => {
   while (pending.size) await Promise.all([...pending]);
 };
 
-/** The newest upload check of an entry, as its page shows it. */
-export async function uploadCheckOf(ctx: AppContext, access: Access, entryId: number): Promise<ImpactCheck | null> {
-  const found = await latestImpactCheck(ctx.db, entryId, 'upload');
+/** The newest upload check of an entry as stored (the entry's page keeps it with the page). */
+export const latestUploadCheck = (ctx: AppContext, entryId: number) => latestImpactCheck(ctx.db, entryId, 'upload');
+
+/** The newest upload check of an entry, as its page shows it to this caller. */
+export function uploadCheckView(access: Access, found: Awaited<ReturnType<typeof latestUploadCheck>>): ImpactCheck | null {
   if (!found) return null;
   const { focus, ...view } = checkView(access, found);
   return { ...view, focus: focus ?? [] };

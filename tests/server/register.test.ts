@@ -247,6 +247,15 @@ describe('the entry pages kept in memory', () => {
       expect(((await page(first)) as Page).revisions[0].summary).toBe('Written in the database.');
       await t.database.client.query(`update groups set name = 'renamed group' where id = (select group_id from entries where key = $1)`, [first]);
       expect(((await page(first)) as Page).group).toBe('renamed group');
+      // an impact check written and then finished shows on its entry's page
+      const fit = await t.database.client.query<{ id: number }>(`select id from fits order by id limit 1`);
+      await t.database.client.query(
+        `insert into impact_checks (analysis_id, entry_id, kind, fit_id, state) select analysis_id, id, 'upload', $2, 'running' from entries where key = $1`,
+        [first, fit.rows[0]?.id ?? null],
+      );
+      expect(((await page(first)) as Page & { impactCheck: { state: string } | null }).impactCheck?.state).toBe('running');
+      await t.database.client.query(`update impact_checks set state = 'failed', failure = 'Stopped.' where entry_id = (select id from entries where key = $1)`, [first]);
+      expect(((await page(first)) as Page & { impactCheck: { state: string; failure: string } | null }).impactCheck).toMatchObject({ state: 'failed', failure: 'Stopped.' });
       const author = edited.revisions[0].author!.name;
       await t.database.client.query(`update users set name = 'Another Name' where name = $1`, [author]);
       expect(((await page(first)) as Page).revisions[1].author!.name).toBe('Another Name');
