@@ -1,8 +1,7 @@
 import passport from 'passport';
 import { Strategy as LocalStrategy } from 'passport-local';
-import { untilNotified } from '../cache/change-notices';
 import type { Db } from '../db/client';
-import { findUserByEmail, findUserById } from '../db/users.repository';
+import { findUserByEmail, knownUser } from '../db/users.repository';
 import { DUMMY_HASH, verifyPassword } from './passwords';
 
 declare global {
@@ -45,35 +44,16 @@ export function createPassport(db: Db) {
 }
 
 /**
- * Every request asks who its session's user is. On the embedded database a copy of each user is
- * kept until the database announces a change to that user (a trigger in drizzle/0023, at commit,
- * before the writing query returns). With a PostgreSQL server other processes write too and notices
- * come after the commit, so a copy is trusted for a few seconds only.
+ * Who a session's user is: on the embedded database the copy users.repository keeps until that user
+ * changes; with a PostgreSQL server (where every read goes to the database) a copy of a few seconds
+ * spares a query per request.
  */
 function userCopies(db: Db): (id: number) => Promise<Express.User | false> {
   const read = async (id: number): Promise<Express.User | false> => {
-    const row = await findUserById(db, id);
-    return row ? { id: row.id, email: row.email, name: row.name, isAdmin: row.isAdmin } : false;
+    const user = await knownUser(db, id);
+    return user ? { id: user.id, email: user.email, name: user.name, isAdmin: user.isAdmin } : false;
   };
-  if (db.$client.listen) {
-    const notified = untilNotified(
-      db.$client,
-      'user_changed',
-      () => new Map<number, Promise<Express.User | false>>(),
-      (copies, id) => copies.delete(Number(id)),
-    );
-    return async (id) => {
-      const copies = await notified;
-      let copy = copies.get(id);
-      if (!copy) {
-        if (copies.size > 10_000) copies.clear();
-        // kept before it is read, so that a change announced meanwhile drops it too
-        copies.set(id, (copy = read(id)));
-        copy.catch(() => copies.get(id) === copy && copies.delete(id));
-      }
-      return copy;
-    };
-  }
+  if (db.$client.listen) return read;
   const recent = new Map<number, { user: Express.User | false; until: number }>();
   return async (id) => {
     const copy = recent.get(id);

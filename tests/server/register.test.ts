@@ -213,6 +213,13 @@ describe('the lists of questions kept in memory', () => {
       expect((await listed()).answers).toBe(0);
       await t.database.client.query(`update questions set title = 'Retitled' where id = $1`, [raised.body.id]);
       expect((await listed()).title).toBe('Retitled');
+      // the asker's new address, changed in the database, is where the next answer's notice goes
+      await t.database.client.query(`update users set email = 'asker-moved@lantern.example' where email = $1`, [DEMO.convener]);
+      expect((await reader.send('post', `${A}/questions/${raised.body.id}/answers`, { body: 'From a reader.' })).status).toBe(201);
+      await t.mailer.idle();
+      const sent = (await t.database.db.select().from(outbox)).map((m) => m.to);
+      expect(sent).toContain('asker-moved@lantern.example');
+      expect(sent).not.toContain(DEMO.convener);
     } finally {
       await t.close();
     }
