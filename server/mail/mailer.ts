@@ -1,10 +1,7 @@
-import { once } from 'node:events';
-import type { AddressInfo } from 'node:net';
-import nodemailer, { type Transporter } from 'nodemailer';
-import { simpleParser } from 'mailparser';
-import { SMTPServer } from 'smtp-server';
 import type { Config } from '../config';
 import type { OutboxStore } from '../db/outbox.repository';
+import { siblingWorker, workerPool } from '../runs/threads/pool';
+import type { MailRecord, MailTask } from './mail.worker';
 
 export type Mail = { to: string[]; subject: string; text: string; analysisId?: number | null };
 
@@ -22,74 +19,28 @@ export type Mailer = {
   close: () => Promise<void>;
 };
 
-const ANALYSIS_HEADER = 'x-plumbline-analysis';
-
 /**
- * Without SMTP_URL the server starts a local SMTP server on 127.0.0.1 (smtp-server); every message
- * it receives is parsed (mailparser) and written to the outbox, which admins read on the Outbox
- * screen. With SMTP_URL mail goes to that server and the outbox keeps a copy of what was sent.
+ * Without SMTP_URL a local SMTP server on 127.0.0.1 (smtp-server) receives every message; it is
+ * parsed (mailparser) and written to the outbox, which admins read on the Outbox screen. With
+ * SMTP_URL mail goes to that server and the outbox keeps a copy of what was sent. Writing, sending,
+ * receiving and parsing happen on the mail thread (mail.worker.ts); this thread only writes the
+ * outbox records it answers with.
  */
 export async function createMailer(record: OutboxStore, config: Config, log: (line: string) => void = console.log): Promise<Mailer> {
-  let capture: SMTPServer | null = null;
-  let transport: Transporter;
+  const thread = workerPool(siblingWorker(import.meta.url, 'mail.worker'), { minThreads: 0, maxThreads: 1, concurrentTasksPerWorker: 64, idleTimeout: 60_000 });
   const pending = new Set<Promise<unknown>>();
   const track = <T>(p: Promise<T>) => {
     pending.add(p);
     p.finally(() => pending.delete(p)).catch(() => {});
     return p;
   };
-
-  if (config.SMTP_URL) {
-    transport = nodemailer.createTransport(config.SMTP_URL);
-  } else {
-    capture = new SMTPServer({
-      authOptional: true,
-      // the package's bundled certificate has expired: plain SMTP on loopback only
-      disabledCommands: ['STARTTLS', 'AUTH'],
-      logger: false,
-      size: 5 * 1024 * 1024,
-      onData(stream, session, callback) {
-        track(
-          simpleParser(stream)
-            .then(async (parsed) => {
-              const analysis = parsed.headers.get(ANALYSIS_HEADER);
-              await record({
-                to: session.envelope.rcptTo.map((r) => r.address).join(', '),
-                subject: parsed.subject ?? '',
-                body: parsed.text ?? '',
-                messageId: parsed.messageId ?? null,
-                analysisId: analysis ? Number(analysis) : null,
-                delivered: true,
-              });
-              callback();
-            })
-            .catch((e: Error) => callback(e)),
-        );
-      },
-    });
-    capture.listen(0, '127.0.0.1');
-    await once(capture.server, 'listening');
-    const { port } = capture.server.address() as AddressInfo;
-    // a few connections kept open and reused: a notice to a whole team is many messages at once,
-    // and a connection per message would cost each its own handshake on this thread
-    transport = nodemailer.createTransport({ host: '127.0.0.1', port, secure: false, ignoreTLS: true, pool: true, maxConnections: 2, maxMessages: Infinity });
-  }
+  const failed = (task: MailTask, e: unknown): MailRecord => ({ to: task.to, subject: task.subject, body: task.text, analysisId: task.analysisId, delivered: false, error: e instanceof Error ? e.message : String(e) });
 
   const deliver = async (to: string, mail: Mail) => {
-    try {
-      const info = await transport.sendMail({
-        from: config.MAIL_FROM,
-        to,
-        subject: mail.subject,
-        text: mail.text,
-        headers: mail.analysisId ? { [ANALYSIS_HEADER]: String(mail.analysisId) } : {},
-      });
-      if (!capture) await record({ to, subject: mail.subject, body: mail.text, messageId: info.messageId, analysisId: mail.analysisId ?? null, delivered: true });
-    } catch (e) {
-      const reason = e instanceof Error ? e.message : String(e);
-      log(`[mail] could not send "${mail.subject}" to ${to}: ${reason}`);
-      await record({ to, subject: mail.subject, body: mail.text, analysisId: mail.analysisId ?? null, delivered: false, error: reason });
-    }
+    const task: MailTask = { to, subject: mail.subject, text: mail.text, analysisId: mail.analysisId ?? null, from: config.MAIL_FROM, smtpUrl: config.SMTP_URL ?? null };
+    const row = await (thread.run(task) as Promise<MailRecord>).catch((e: unknown) => failed(task, e));
+    if (!row.delivered) log(`[mail] could not send "${mail.subject}" to ${to}: ${row.error}`);
+    await record(row).catch((e: Error) => log(`[mail] could not record "${mail.subject}" to ${to}: ${e.message}`));
   };
 
   return {
@@ -100,12 +51,11 @@ export async function createMailer(record: OutboxStore, config: Config, log: (li
     idle: async () => {
       while (pending.size) await Promise.allSettled([...pending]);
     },
-    describe: () => (capture ? `captured locally and shown in the outbox` : `sent through ${new URL(config.SMTP_URL!).host}`),
+    describe: () => (config.SMTP_URL ? `sent through ${new URL(config.SMTP_URL).host}` : `captured locally and shown in the outbox`),
     close: async () => {
-      // what was handed over is delivered (or recorded as failed) before the transport closes
+      // what was handed over is delivered (or recorded as failed) before the thread ends
       while (pending.size) await Promise.allSettled([...pending]);
-      transport.close();
-      if (capture) await new Promise<void>((resolve) => capture!.close(() => resolve()));
+      await thread.destroy();
     },
   };
 }
