@@ -12,15 +12,15 @@ import { applyGammas, evaluateYields, type Workspace } from './yields';
  * clipped to the bounds:
  *  - m > 0 (the usual case): the larger root;
  *  - m < 0 (a signal template carrying the variance while μ < 0): the root where m γ + o > 0;
- *  - n = 0: the Poisson term is max(m γ + o, 0) (likelihood.ts), so the NLL is convex with a
- *    kink at γ_k = −o/m; its minimum is the median of g, γ_k and g − m σ² (the parabola's own
- *    minimum), which for m > 0 and o ≥ 0 is the larger root again;
+ *  - n = 0: the Poisson term is the yield m γ + o itself, whatever its sign (likelihood.ts), so
+ *    the NLL is a parabola in γ with its minimum at g − m σ², clipped to the bounds (for m > 0
+ *    and o ≥ 0 the larger root again);
  *  - m = 0: γ does not change the yield and the constraint alone decides: γ = g.
  */
 export function gammaRoot(m: number, o: number, n: number, sigma: number, centre = 1): number {
   if (m === 0 || !Number.isFinite(m)) return clipGamma(centre, 10, centre);
   const s2 = sigma * sigma;
-  if (n === 0) return clipGamma(median(centre, -o / m, centre - m * s2), 10, centre);
+  if (n === 0) return clipGamma(centre - m * s2, 10, centre);
   const b = o - centre * m + m * m * s2;
   const c = m * s2 * (o - n) - centre * o;
   const disc = Math.max(0, b * b - 4 * m * c);
@@ -36,10 +36,6 @@ export function gammaRoot(m: number, o: number, n: number, sigma: number, centre
 function clipGamma(x: number, hi: number, centre: number): number {
   const v = Number.isFinite(x) ? x : centre;
   return v < 0 ? 0 : v > hi ? hi : v;
-}
-
-function median(a: number, b: number, c: number): number {
-  return Math.max(Math.min(a, b), Math.min(Math.max(a, b), c));
 }
 
 /** Sets every free γ to its conditional minimum at φ and refreshes the yields in the workspace. */

@@ -8,10 +8,14 @@ import { evaluateYields, type Workspace } from './yields';
  * a line search can step back from it.
  */
 
-/** Poisson part of one bin (Baker & Cousins, NIM 221 (1984) 437: the saturated-model term). */
+/**
+ * Poisson part of one bin (Baker & Cousins, NIM 221 (1984) 437: the saturated-model term). With
+ * n = 0 it is ν itself, whatever its sign (a negative μ can take a bin's sum below zero): linear
+ * and smooth there, as its derivatives (derivatives.ts) take it, with no kink at ν = 0.
+ */
 export function poissonTerm(nu: number, n: number): number {
   if (n > 0) return nu > 0 ? nu - n + n * Math.log(n / nu) : Infinity;
-  return nu > 0 ? nu : 0;
+  return nu;
 }
 
 /** Σ over bins in the fit of the Poisson term at the yields held in the workspace. */

@@ -4,6 +4,7 @@ import { computeDerivatives, createDerivatives } from '../../server/fit/derivati
 import { negativeLogLikelihood } from '../../server/fit/likelihood';
 import { buildProblem, startPoint } from '../../server/fit/problem';
 import { createRandom, syntheticModel } from '../../server/fit/synthetic';
+import { stressModel } from '../../server/fit/synthetic-stress';
 import { createWorkspace } from '../../server/fit/yields';
 import { expectClose } from './helpers';
 import { referenceGammas, referenceNll, type ReferencePoint } from './reference-nll';
@@ -238,4 +239,55 @@ describe('the γ-reduced Hessian with clipped templates and some γ held', () =>
       }
     });
   }
+});
+
+describe('an empty bin whose expected yield a negative μ takes below zero', () => {
+  // docs/likelihood.md §4: with n = 0 the Poisson term is ν itself, whatever its sign. Its value
+  // and its derivatives must agree there: a term held at zero below ν = 0 while the gradient
+  // keeps slope 1 made Newton's line search stall at ν = 0 (the refit-agreement suite's μ < 0 crossings).
+  it('has the NLL of the reference (reference-nll.ts) and a gradient that matches finite differences', () => {
+    // the last bin of the first signal region: signal only, and no events
+    const model = stressModel('small', 3);
+    const region = model.regions.find((r) => r.role === 'signal')!;
+    const last = region.observed.length - 1;
+    region.observed[last] = 0;
+    for (const t of model.templates) if (t.region === region.key && t.process !== 'signal') t.nominal[last] = 0;
+    for (const syst of model.systematics)
+      for (const e of syst.effects)
+        if (e.region === region.key && e.process !== 'signal' && e.kind === 'shape') {
+          e.up[last] = 0;
+          e.down[last] = 0;
+        }
+    const problem = buildProblem(model, options);
+    const m = problem.model;
+    const rand = createRandom(17);
+    let negativeEmpty = 0;
+    for (let trial = 0; trial < 8; trial++) {
+      const { phi, gamma } = startPoint(m);
+      phi[0] = -0.2 - 0.5 * rand();
+      for (let i = m.thetaStart; i < m.nDense; i++) phi[i] = 0.6 * (rand() - 0.5);
+      const ws = createWorkspace(m);
+      const engine = negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws);
+      for (let b = 0; b < m.nBins; b++) if (m.binInFit[b] && problem.data[b] === 0 && ws.nu[b] < 0) negativeEmpty++;
+      const reference = referenceNll(model, byName(m, phi, gamma));
+      if (!Number.isFinite(reference)) {
+        expect(engine).toBe(Infinity);
+        continue;
+      }
+      expectClose(engine, reference, 1e-10, 1e-9);
+      const setup = { m, problem };
+      const x = new Float64Array([...phi, ...gamma]);
+      const g = gradientAt(setup, x);
+      const at = (v: Float64Array) => negativeLogLikelihood(m, problem.data, problem.gammaHeld, v.subarray(0, m.nDense), v.subarray(m.nDense), createWorkspace(m));
+      for (const i of [0, m.thetaStart, m.nDense - 1]) {
+        const h = 1e-6;
+        const xp = Float64Array.from(x);
+        const xm = Float64Array.from(x);
+        xp[i] += h;
+        xm[i] -= h;
+        expectClose(g[i], (at(xp) - at(xm)) / (2 * h), 1e-6, 1e-6);
+      }
+    }
+    expect(negativeEmpty).toBeGreaterThan(0);
+  });
 });
