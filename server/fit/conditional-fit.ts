@@ -145,6 +145,8 @@ function ladder(
   startF = NaN,
 ): ConditionalResult {
   const m = ctx.problem.model;
+  // The warm rung moves φ and γ in place; where it started is kept for the fallback below.
+  const started = { phi: Float64Array.from(phi), gamma: Float64Array.from(gamma) };
   const w = warmRefit(ctx, conditional, idx, index, phi, gamma, scratch, tolerance, maxSteps, startF);
   const work: RefitWork = { steps: w.steps, normalisationSteps: w.normalisationSteps, gradients: w.gradients, products: w.products, newtonIterations: 0 };
   const newton = (rung: Rung, phi0: Float64Array, gamma0: Float64Array): ConditionalResult | null => {
@@ -170,26 +172,37 @@ function ladder(
     return again.ok ? { ok: true, nll: again.nll, phi: start, gamma: g, rung: 'cold', decrement: again.decrement, work, message: null } : newton('cold', ctx.phi, ctx.gamma);
   };
   // Continuation from the context's minimum (Nocedal & Wright, §11.3): φ_i moved to the value in
-  // steps of at most 0.1, each a Newton fit from the previous minimum, so that the minimum is
-  // followed into the valley it reaches where a template's yield is clipped, or into the other
-  // basin of a same-side parameter, which neither the minimum nor the start values may lie in
-  // (the refit-agreement suite's edge models). Nuisance parameters only, and moves of at most 3:
-  // an impact's refit, not a far μ of a limit or q0.
-  const walkFromMinimum = (): ConditionalResult | null => {
-    if (index < m.thetaStart) return null;
+  // steps of at most 0.1 (of σ̂ for μ and the normalisations), each a Newton fit from the previous
+  // minimum, so that the minimum is followed into the valley it reaches where a template's yield
+  // is clipped, or into the other basin of a same-side parameter, which neither the minimum nor
+  // the start values may lie in (the refit-agreement suite's edge models). A step whose start
+  // empties a bin with events is halved, down to 1/64 of it. In the checks below: nuisance
+  // parameters only, and moves of at most 3 (an impact's refit); μ and the normalisations in
+  // steps of 0.1 σ̂ (q0, a crossing, a limit), at most 64 of them, as where every other start
+  // has failed.
+  const walkFromMinimum = (anyMove = false): ConditionalResult | null => {
     const from = ctx.phi[index];
-    if (Math.abs(value - from) > 3) return null;
-    const steps = Math.max(2, Math.ceil(Math.abs(value - from) / 0.1));
+    if (!anyMove && (index < m.thetaStart || Math.abs(value - from) > 3)) return null;
+    const unit = index < m.thetaStart ? Math.sqrt(ctx.V[index * m.nDense + index]) || 1 : 1;
+    const steps = Math.min(64, Math.max(2, Math.ceil(Math.abs(value - from) / (0.1 * unit))));
+    const stepTo = (at: { phi: Float64Array; gamma: Float64Array }, target: number, last: boolean, depth: number): ReturnType<typeof minimise> | null => {
+      const start = Float64Array.from(at.phi);
+      const was = start[index];
+      start[index] = target;
+      // the steps on the way need only follow the valley; the last meets the stop test
+      const r = minimise(conditional, start, at.gamma, scratch, { tolerance: last ? tolerance : Math.max(tolerance, 1e-6) });
+      work.newtonIterations += r.iterations;
+      work.gradients += r.iterations + 1;
+      if (r.status === 'converged' || r.status === 'edge') return r;
+      if (depth >= 6 || r.iterations > 0) return null;
+      const half = stepTo(at, (was + target) / 2, false, depth + 1);
+      return half ? stepTo({ phi: half.phi, gamma: half.gamma }, target, last, depth + 1) : null;
+    };
     let at: { phi: Float64Array; gamma: Float64Array } = { phi: Float64Array.from(ctx.phi), gamma: Float64Array.from(ctx.gamma) };
     let last: ConditionalResult | null = null;
     for (let k = 1; k <= steps; k++) {
-      const start = Float64Array.from(at.phi);
-      start[index] = k === steps ? value : from + (k / steps) * (value - from);
-      // the steps on the way need only follow the valley; the last meets the stop test
-      const r = minimise(conditional, start, at.gamma, scratch, { tolerance: k === steps ? tolerance : Math.max(tolerance, 1e-6) });
-      work.newtonIterations += r.iterations;
-      work.gradients += r.iterations + 1;
-      if (r.status !== 'converged' && r.status !== 'edge') return null;
+      const r = stepTo(at, k === steps ? value : from + (k / steps) * (value - from), k === steps, 0);
+      if (!r) return null;
       at = { phi: r.phi, gamma: r.gamma };
       if (k === steps) last = { ok: true, nll: r.nll, phi: r.phi, gamma: r.gamma, rung: 'cold', decrement: r.decrement, work, message: r.message };
     }
@@ -223,7 +236,7 @@ function ladder(
     if (moved || crossed) {
       best = lower(best, warmFromMinimum());
       best = lower(best, fromStartValues());
-      best = lower(best, walkFromMinimum());
+      best = lower(best, walkFromMinimum(index < m.thetaStart));
     } else if (hasSameSide(m)) {
       // A model with same-side effects can have a lower conditional minimum in a basin that
       // neither the path from φ̂ nor the linear response enters, though no parameter moved far:
@@ -263,7 +276,10 @@ function ladder(
       work.gradients += again.gradients;
       work.products += again.products;
       const found = again.ok ? { ...best, nll: again.nll, phi: start.phi, gamma: start.gamma, decrement: again.decrement } : newton(best.rung ?? 'newton', start.phi, start.gamma);
-      best = lower(best, found);
+      const kept = lower(best, found);
+      // A mirrored start that leads lower is polished by Newton from where its warm steps stopped:
+      // between the basins of a same-side parameter those can stop at a kink short of the minimum.
+      best = kept !== best && again.ok ? lower(kept, newton(best.rung ?? 'newton', kept.phi, kept.gamma)) : kept;
     }
     return best;
   };
@@ -271,11 +287,20 @@ function ladder(
 
   const fromHere = newton('newton', phi, gamma);
   if (fromHere) return checked(fromHere);
+  // Newton from where the warm rung started as well as from the context's minimum, keeping the
+  // lower: in a root search or a scan the start is the neighbouring conditional minimum, whose
+  // basin can be lower than the one the minimum leads to (a same-side parameter, a clipped
+  // template), and a fallback to the minimum alone would jump from one basin to the other
+  // between neighbouring values (the refit-agreement suite's edge models).
+  const fromStarted = newton('newton', started.phi, started.gamma);
   const fromMinimum = newton('cold', ctx.phi, ctx.gamma);
-  if (fromMinimum) return fromMinimum;
+  if (fromStarted || fromMinimum) return fromStarted && fromMinimum ? lower(fromMinimum, fromStarted) : (fromStarted ?? fromMinimum)!;
+  // Every start near the minimum empties a bin with events (the parameter moved alone): the
+  // minimum is followed to the value, and the start values tried too, keeping the lower.
   const s = startPoint(m);
   const fromStart = newton('cold', s.phi, s.gamma);
-  if (fromStart) return fromStart;
+  const walked = index >= 0 ? walkFromMinimum(true) : null;
+  if (fromStart || walked) return fromStart && walked ? lower(fromStart, walked) : (fromStart ?? walked)!;
   return { ok: false, nll: NaN, phi, gamma, rung: null, decrement: NaN, work, message: `no rung converged (warm: ${w.message ?? 'failed'})` };
 }
 

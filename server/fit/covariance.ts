@@ -4,7 +4,7 @@ import { computeDerivatives } from './derivatives';
 import { negativeLogLikelihood } from './likelihood';
 import { evenPart } from './interpolation';
 import type { Scratch } from './minimiser';
-import { edgeSampleBins, templateSize } from './newton';
+import { chooseEliminated, edgeSampleBins, templateSize } from './newton';
 
 /**
  * Covariance at the minimum, V = H⁻¹ (docs/likelihood.md §5). The Hessian is the γ-reduced one over the
@@ -49,25 +49,55 @@ export type CurvatureOutcome =
  * their information still counts), and the context keeps the minimum itself.
  */
 export function curvatureAt(problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch): CurvatureOutcome {
-  const first = curvatureAtPoint(problem, phi, gamma, phi, scratch, null);
+  const first = curvatureAtPoint(problem, phi, gamma, phi, scratch, null, null);
   if (first.ok) return first;
+  // A γ pressed against its bound (0, say: a template's bin emptied by the data) is where the
+  // minimiser held it, the gradient pointing outwards: its curvature is not that of a free
+  // parameter. The covariance then holds it there too, as a bound parameter is held.
+  const bound = gammaAtBound(problem, phi, gamma, scratch);
+  if (bound) {
+    const held = curvatureAtPoint(problem, phi, gamma, phi, scratch, null, bound);
+    if (held.ok) return held;
+  }
   const edge = besideTheEdge(problem, phi, gamma, scratch);
   if (!edge) return first;
-  const second = curvatureAtPoint(problem, edge.phi, gamma, phi, scratch, null);
+  const second = curvatureAtPoint(problem, edge.phi, gamma, phi, scratch, null, bound);
   if (second.ok) return second;
   // Still not positive definite: the edge supplies the curvature the likelihood lacks there.
-  // The covariance then holds it, V = (H + ρ JᵀJ)⁻¹ with J the templates' gradients and ρ = 1e8
-  // times the largest diagonal of H, the penalty form of the inverse with A_E = 0 held
-  // (Nocedal & Wright, Numerical Optimization, 2nd ed., §17.1); its error is of order 1/ρ.
-  const third = curvatureAtPoint(problem, edge.phi, gamma, phi, scratch, edge.J);
-  return third.ok ? third : first;
+  // The covariance then holds it: V = Z (Zᵀ H Z)⁻¹ Zᵀ with Z an orthonormal basis of the
+  // directions that keep A_E = 0 (J Z = 0, J the templates' gradients), the inverse of the
+  // Hessian restricted to the edge (Nocedal & Wright, Numerical Optimization, 2nd ed., §12.4
+  // and §17.1: the limit ρ → ∞ of the penalty form (H + ρ JᵀJ)⁻¹, taken without its rounding).
+  // On the edge the Hessian of the Lagrangian, restricted to it, is that of the likelihood with
+  // the edge templates taken as clipped (their second derivatives times the multiplier cancel,
+  // and their first derivatives vanish along the edge): taken 1e-4 of their size on the clipped
+  // side, then the same above the edge where that fails.
+  const below = besideTheEdge(problem, phi, gamma, scratch, -1);
+  const third = below ? curvatureAtPoint(problem, below.phi, gamma, phi, scratch, edge.J, bound) : null;
+  if (third?.ok) return third;
+  const fourth = curvatureAtPoint(problem, edge.phi, gamma, phi, scratch, edge.J, bound);
+  return fourth.ok ? fourth : first;
+}
+
+/** The γ the minimiser holds on a bound at this point (minimiser's active set), or null when none. */
+function gammaAtBound(problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch): Uint8Array | null {
+  const m = problem.model;
+  chooseEliminated(problem, phi, gamma, scratch);
+  const out = new Uint8Array(m.nGamma);
+  let any = false;
+  for (let g = 0; g < m.nGamma; g++)
+    if (!problem.gammaHeld[g] && !scratch.eliminate[g]) {
+      out[g] = 1;
+      any = true;
+    }
+  return any ? out : null;
 }
 
 /**
- * φ with every template on the clip edge moved 1e-4 of its size above zero along Jᵀ/|J|², and
- * those gradients J (rows of length nDense); null when no template is on the edge.
+ * φ with every template on the clip edge moved 1e-4 of its size above zero (side −1: below) along
+ * Jᵀ/|J|², and those gradients J (rows of length nDense); null when no template is on the edge.
  */
-function besideTheEdge(problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch): { phi: Float64Array; J: Float64Array[] } | null {
+function besideTheEdge(problem: FitProblem, phi: Float64Array, gamma: Float64Array, scratch: Scratch, side: 1 | -1 = 1): { phi: Float64Array; J: Float64Array[] } | null {
   const m = problem.model;
   negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, scratch.ws, problem.globals);
   const bins = edgeSampleBins(problem, scratch.ws);
@@ -85,7 +115,7 @@ function besideTheEdge(problem: FitProblem, phi: Float64Array, gamma: Float64Arr
     let norm = 0;
     for (const [p, x] of J) if (!problem.held[p]) norm += x * x;
     if (!(norm > 0)) continue;
-    const move = 1e-4 * templateSize(m, s, j) - scratch.ws.A[m.sampleBinStart[s] + j];
+    const move = side * 1e-4 * templateSize(m, s, j) - scratch.ws.A[m.sampleBinStart[s] + j];
     const row = new Float64Array(m.nDense);
     for (const [p, x] of J) {
       if (problem.held[p]) continue;
@@ -97,7 +127,7 @@ function besideTheEdge(problem: FitProblem, phi: Float64Array, gamma: Float64Arr
   return { phi: out, J: rows };
 }
 
-function curvatureAtPoint(problem: FitProblem, phi: Float64Array, gamma: Float64Array, minimum: Float64Array, scratch: Scratch, penalty: Float64Array[] | null): CurvatureOutcome {
+function curvatureAtPoint(problem: FitProblem, phi: Float64Array, gamma: Float64Array, minimum: Float64Array, scratch: Scratch, penalty: Float64Array[] | null, gammaBound: Uint8Array | null): CurvatureOutcome {
   const m = problem.model;
   const P = m.nDense;
   const { ws, d } = scratch;
@@ -105,7 +135,7 @@ function curvatureAtPoint(problem: FitProblem, phi: Float64Array, gamma: Float64
   const nll = negativeLogLikelihood(m, problem.data, problem.gammaHeld, minimum, gamma, ws, problem.globals);
   if (phi !== minimum) negativeLogLikelihood(m, problem.data, problem.gammaHeld, phi, gamma, ws, problem.globals);
   const eliminate = new Uint8Array(m.nGamma);
-  for (let g = 0; g < m.nGamma; g++) eliminate[g] = problem.gammaHeld[g] ? 0 : 1;
+  for (let g = 0; g < m.nGamma; g++) eliminate[g] = problem.gammaHeld[g] || gammaBound?.[g] ? 0 : 1;
   computeDerivatives(m, problem.data, phi, gamma, eliminate, ws, d, true, true, problem.globals);
   const freeList: number[] = [];
   for (let i = 0; i < P; i++) if (!problem.held[i]) freeList.push(i);
@@ -113,12 +143,8 @@ function curvatureAtPoint(problem: FitProblem, phi: Float64Array, gamma: Float64
   const n = free.length;
   const Hf = new Float64Array(n * n);
   for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) Hf[a * n + b] = d.H[free[a] * P + free[b]];
-  if (penalty) {
-    let largest = 0;
-    for (let a = 0; a < n; a++) largest = Math.max(largest, Math.abs(Hf[a * n + a]));
-    const rho = 1e8 * largest;
-    for (const row of penalty) for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) Hf[a * n + b] += rho * row[free[a]] * row[free[b]];
-  }
+  const edge = penalty ? onTheEdge(penalty, free) : null;
+  if (edge) edge.restrict(Hf);
   const { L, failedAt } = cholesky(Hf, n, 1e-10);
   if (failedAt >= 0) {
     const partners = degeneratePartners(Hf, L, n, failedAt).map((a) => free[a]);
@@ -133,6 +159,7 @@ function curvatureAtPoint(problem: FitProblem, phi: Float64Array, gamma: Float64
     };
   }
   const Vf = choleskyInverse(L, n);
+  edge?.unshift(Vf);
   const V = new Float64Array(P * P);
   for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) V[free[a] * P + free[b]] = Vf[a * n + b];
 
@@ -144,13 +171,14 @@ function curvatureAtPoint(problem: FitProblem, phi: Float64Array, gamma: Float64
   let varMuGammaFixed: number | null = null;
   if (!problem.held[0] && m.nGamma > 0) {
     const Hu = new Float64Array(n * n);
-    for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) Hu[a * n + b] = Hf[a * n + b] + schur[free[a] * P + free[b]];
+    for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) Hu[a * n + b] = d.H[free[a] * P + free[b]] + schur[free[a] * P + free[b]];
+    if (edge) edge.restrict(Hu);
     const cu = cholesky(Hu, n, 1e-10);
     if (cu.failedAt < 0) {
       const e = new Float64Array(n);
       e[0] = 1; // μ is free[0] when not held
       choleskySolve(cu.L, n, e);
-      varMuGammaFixed = e[0];
+      varMuGammaFixed = e[0] - (edge ? edge.shiftAt(0, 0) : 0);
     }
   }
   const context: FitContext = {
@@ -168,6 +196,68 @@ function curvatureAtPoint(problem: FitProblem, phi: Float64Array, gamma: Float64
     varMuGammaFixed,
   };
   return { ok: true, context, conditionNumber: conditionNumber(Hf, L, n) };
+}
+
+/**
+ * The directions along the clip edge, for the Hessian restricted to it. Q is an orthonormal
+ * basis of the edge gradients (rows of J over the free parameters; modified Gram–Schmidt) and
+ * P = I − QQᵀ the projection onto the edge. `restrict` turns H into P H P + s QQᵀ, whose
+ * inverse is Z (Zᵀ H Z)⁻¹ Zᵀ + QQᵀ/s exactly (the two parts act on orthogonal subspaces), with
+ * s the largest diagonal of P H P so that the factorisation stays well scaled; `unshift`
+ * removes QQᵀ/s from that inverse.
+ */
+function onTheEdge(rows: Float64Array[], free: Int32Array) {
+  const n = free.length;
+  const Q: Float64Array[] = [];
+  for (const row of rows) {
+    const q = Float64Array.from(free, (i) => row[i]);
+    let size = 0;
+    for (let a = 0; a < n; a++) size += q[a] * q[a];
+    for (let pass = 0; pass < 2; pass++)
+      for (const b of Q) {
+        let dot = 0;
+        for (let a = 0; a < n; a++) dot += q[a] * b[a];
+        for (let a = 0; a < n; a++) q[a] -= dot * b[a];
+      }
+    let norm = 0;
+    for (let a = 0; a < n; a++) norm += q[a] * q[a];
+    if (!(norm > 1e-20 * size) || !(norm > 0)) continue;
+    norm = Math.sqrt(norm);
+    for (let a = 0; a < n; a++) q[a] /= norm;
+    Q.push(q);
+  }
+  let shift = 1;
+  const project = (H: Float64Array) => {
+    // H ← P H P, with P = I − Σ q qᵀ applied one basis vector at a time on each side.
+    for (const q of Q) {
+      const Hq = new Float64Array(n);
+      for (let a = 0; a < n; a++) {
+        let acc = 0;
+        for (let b = 0; b < n; b++) acc += H[a * n + b] * q[b];
+        Hq[a] = acc;
+      }
+      let qHq = 0;
+      for (let a = 0; a < n; a++) qHq += q[a] * Hq[a];
+      for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) H[a * n + b] += -Hq[a] * q[b] - q[a] * Hq[b] + qHq * q[a] * q[b];
+    }
+  };
+  return {
+    restrict(H: Float64Array) {
+      project(H);
+      let largest = 0;
+      for (let a = 0; a < n; a++) largest = Math.max(largest, H[a * n + a]);
+      shift = largest > 0 ? largest : 1;
+      for (const q of Q) for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) H[a * n + b] += shift * q[a] * q[b];
+    },
+    shiftAt(a: number, b: number) {
+      let acc = 0;
+      for (const q of Q) acc += q[a] * q[b];
+      return acc / shift;
+    },
+    unshift(V: Float64Array) {
+      for (const q of Q) for (let a = 0; a < n; a++) for (let b = 0; b < n; b++) V[a * n + b] -= (q[a] * q[b]) / shift;
+    },
+  };
 }
 
 /**

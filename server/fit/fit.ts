@@ -291,7 +291,13 @@ export async function fitModel(model: ExchangeModel, optionsInput: FitOptionsInp
     ...parameters.filter((p) => p.atBound).map((p) => p.name),
     ...gammaList.filter((g) => g.atBound).map((g) => g.name),
   ];
-  for (const name of atBound) warnings.push(`${name} is at a bound of its range; its σ describes the curvature there only.`);
+  const heldOnBound = new Set(gammaList.filter((g) => g.atBound && g.error === null).map((g) => g.name));
+  for (const name of atBound)
+    warnings.push(
+      heldOnBound.has(name)
+        ? `${name} is at a bound of its range, where the minimum presses it; the covariance holds it there (no σ), as the curvature of a free parameter there is not positive.`
+        : `${name} is at a bound of its range; its σ describes the curvature there only.`,
+    );
 
   const breakdown = breakdownPlan ? assembleBreakdown(breakdownPlan, results, ctx, scan, groupedImpacts, syst) : null;
   const variantReport: VariantReport = {

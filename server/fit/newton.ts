@@ -87,6 +87,7 @@ export function newtonLoop(problem: FitProblem, phi0: Float64Array, gamma0: Floa
   const deltaPhi = new Float64Array(P);
   const deltaGamma = new Float64Array(G);
   let lastDec = Infinity;
+  let escapes = 0;
   // Trial point along the step (projected onto the bounds) and its NLL; the yields stay in ws.
   const trialAt = (alpha: number) => {
     for (let i = 0; i < P; i++) trialPhi[i] = phi[i] + alpha * deltaPhi[i];
@@ -134,6 +135,41 @@ export function newtonLoop(problem: FitProblem, phi0: Float64Array, gamma0: Floa
         gamma.set(trialGamma);
         nll = trial;
       } else nll = negativeLogLikelihood(m, data, gammaHeld, phi, gamma, ws, globals);
+      // A stationary point where the Hessian had to be damped has a direction of negative
+      // curvature: a saddle, not a minimum. Step along that direction (both ways, a few
+      // lengths); where the NLL falls, Newton goes on from there.
+      if (L.damped && escapes < MAX_SADDLE_ESCAPES && it < maxIt) {
+        const v = negativeCurvature(Hf, n);
+        if (v) {
+          deltaPhi.fill(0);
+          for (let a = 0; a < n; a++) deltaPhi[free[a]] = v[a];
+          deltaGamma.fill(0);
+          for (let g = 0; g < G; g++) {
+            if (!eliminate[g]) continue;
+            let s = 0;
+            for (let a = 0; a < n; a++) s += d.Bt[g * P + free[a]] * v[a];
+            deltaGamma[g] = -s / d.D[g];
+          }
+          let best = nll - 10 * roundingOf(problem, ws, nll) - 1e-12;
+          let bestAlpha = 0;
+          for (const alpha of SADDLE_STEPS) {
+            const t = trialAt(alpha);
+            if (Number.isFinite(t) && t < best) {
+              best = t;
+              bestAlpha = alpha;
+            }
+          }
+          if (bestAlpha !== 0) {
+            escapes++;
+            nll = trialAt(bestAlpha);
+            phi.set(trialPhi);
+            gamma.set(trialGamma);
+            crossing.record(ws);
+            continue;
+          }
+          nll = negativeLogLikelihood(m, data, gammaHeld, phi, gamma, ws, globals);
+        }
+      }
       return result('converged', it, dec, null);
     }
     if (it >= maxIt) return result('failed', it, dec, `no convergence after ${maxIt} Newton iterations (decrement ${dec.toExponential(2)})`);
@@ -175,6 +211,61 @@ export function newtonLoop(problem: FitProblem, phi0: Float64Array, gamma0: Floa
     // Newton are circling a kink: those templates are the edge.
     if (options.watchKinks !== false && crossing.stalled(ws, dec)) return edge(it + 1, dec);
   }
+}
+
+const MAX_SADDLE_ESCAPES = 5;
+
+/** Step lengths along a unit direction of negative curvature, both ways (θ is in units of its prior width). */
+const SADDLE_STEPS = [0.05, 0.1, 0.2, 0.5, 1, 2, 4].flatMap((t) => [t, -t]);
+
+/**
+ * A unit vector v with vᵀHv clearly below zero (below −1e-8 times the largest diagonal), or
+ * null: the eigenvector of H's lowest eigenvalue by power iteration on cI − H, with c
+ * Gershgorin's bound on the largest eigenvalue (common practice, no source). Used only where a
+ * stationary point needed damping, so its O(n²) per iteration is paid rarely.
+ */
+export function negativeCurvature(H: Float64Array, n: number): Float64Array | null {
+  if (n === 0) return null;
+  let c = 0;
+  let largestDiag = 0;
+  for (let a = 0; a < n; a++) {
+    let row = 0;
+    for (let b = 0; b < n; b++) row += Math.abs(H[a * n + b]);
+    c = Math.max(c, row);
+    largestDiag = Math.max(largestDiag, Math.abs(H[a * n + a]));
+  }
+  let v = new Float64Array(n);
+  // Start from the most negative diagonal, plus a little of everything.
+  let lowest = 0;
+  for (let a = 1; a < n; a++) if (H[a * n + a] < H[lowest * n + lowest]) lowest = a;
+  for (let a = 0; a < n; a++) v[a] = a === lowest ? 1 : 1e-3 * Math.sin(a + 1);
+  let w = new Float64Array(n);
+  let rayleigh = Infinity;
+  for (let it = 0; it < 500; it++) {
+    // w = (cI − H) v
+    let norm = 0;
+    for (let a = 0; a < n; a++) {
+      let acc = 0;
+      for (let b = 0; b < n; b++) acc += H[a * n + b] * v[b];
+      w[a] = c * v[a] - acc;
+      norm += w[a] * w[a];
+    }
+    norm = Math.sqrt(norm);
+    if (!(norm > 0)) return null;
+    for (let a = 0; a < n; a++) w[a] /= norm;
+    [v, w] = [w, v];
+    const next = c - norm; // Rayleigh quotient of H once converged
+    const settled = Math.abs(next - rayleigh) < 1e-7 * (c + 1e-300);
+    rayleigh = next;
+    if (settled && it > 10) break;
+  }
+  let vHv = 0;
+  for (let a = 0; a < n; a++) {
+    let acc = 0;
+    for (let b = 0; b < n; b++) acc += H[a * n + b] * v[b];
+    vHv += v[a] * acc;
+  }
+  return vHv < -1e-8 * Math.max(largestDiag, 1e-300) ? v : null;
 }
 
 /**

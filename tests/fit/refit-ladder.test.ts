@@ -7,7 +7,8 @@ import { curvatureAt, type FitContext } from '../../server/fit/covariance';
 import { gammaRoot } from '../../server/fit/gamma-profile';
 import { negativeLogLikelihood } from '../../server/fit/likelihood';
 import { createScratch, minimise } from '../../server/fit/minimiser';
-import { newtonLoop } from '../../server/fit/newton';
+import { negativeCurvature, newtonLoop } from '../../server/fit/newton';
+import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 import { buildProblem, startPoint } from '../../server/fit/problem';
 import { createRandom } from '../../server/fit/synthetic';
 import { EDGE_SIZES, stressModel } from '../../server/fit/synthetic-stress';
@@ -158,11 +159,11 @@ describe('a refit that takes a template across the clip edge', () => {
 });
 
 describe('γ profiled in closed form', () => {
-  /** The NLL of one bin in γ (likelihood.ts: max(ν, 0) when n = 0, +∞ for ν ≤ 0 when n > 0), minimised by golden section over [0, 10]. */
+  /** The NLL of one bin in γ (docs/likelihood.md §4: ν itself when n = 0, whatever its sign; +∞ for ν ≤ 0 when n > 0), minimised by golden section over [0, 10]. */
   function goldenSection(m: number, o: number, n: number, sigma: number, centre: number): number {
     const f = (g: number) => {
       const nu = m * g + o;
-      const poisson = n > 0 ? (nu > 0 ? nu - n * Math.log(nu) : Infinity) : Math.max(nu, 0);
+      const poisson = n > 0 ? (nu > 0 ? nu - n * Math.log(nu) : Infinity) : nu;
       return poisson + (g - centre) ** 2 / (2 * sigma * sigma);
     };
     let lo = m > 0 && n > 0 ? Math.max(0, -o / m) : 0;
@@ -186,7 +187,7 @@ describe('γ profiled in closed form', () => {
       const sigma = 0.01 + rand();
       const centre = 0.5 + rand();
       if (n > 0 && !(m * 10 + o > 0 || o > 0)) continue; // no γ in [0, 10] gives the bin a yield
-      const f = (g: number) => (n > 0 ? m * g + o - n * Math.log(m * g + o) : Math.max(m * g + o, 0)) + (g - centre) ** 2 / (2 * sigma * sigma);
+      const f = (g: number) => (n > 0 ? m * g + o - n * Math.log(m * g + o) : m * g + o) + (g - centre) ** 2 / (2 * sigma * sigma);
       const ours = gammaRoot(m, o, n, sigma, centre);
       const reference = goldenSection(m, o, n, sigma, centre);
       expect(f(ours)).toBeLessThanOrEqual(f(reference) + 1e-9 * (1 + Math.abs(f(reference))));
@@ -219,5 +220,43 @@ describe('the stress models of the suite', () => {
     expect(sameSide).toBeGreaterThan(0);
     expect(asymmetric).toBeGreaterThan(0);
     expect(counts('CR1')).toBeGreaterThan(5 * counts('SR0'));
+  });
+});
+
+describe('a minimum where the curvature is not that of a free interior point', () => {
+  it('finds the direction of negative curvature of a symmetric matrix: the eigenvector of its lowest eigenvalue (ml-matrix as the reference)', () => {
+    const rand = createRandom(5);
+    for (let t = 0; t < 20; t++) {
+      const n = 3 + Math.floor(8 * rand());
+      // Q diag(λ) Qᵀ with one eigenvalue below zero
+      const Q = new EigenvalueDecomposition(Matrix.rand(n, n, { random: rand }).add(Matrix.rand(n, n, { random: rand }).transpose()), { assumeSymmetric: true }).eigenvectorMatrix;
+      const lambda = Array.from({ length: n }, (_, k) => (k === 0 ? -0.05 - rand() : 0.5 + 3 * rand()));
+      const H = Q.mmul(Matrix.diag(lambda)).mmul(Q.transpose());
+      const flat = Float64Array.from(H.to1DArray());
+      const v = negativeCurvature(flat, n)!;
+      expect(v).not.toBeNull();
+      const lowest = Q.getColumn(0);
+      const cos = Math.abs(lowest.reduce((a, x, k) => a + x * v[k], 0));
+      expect(cos).toBeGreaterThan(1 - 1e-6);
+    }
+    // positive definite: none
+    expect(negativeCurvature(Float64Array.from([2, 1, 1, 3]), 2)).toBeNull();
+  });
+
+  it('converges where the clip edge is held and the Hessian is indefinite off it, with a σ for every free parameter (the inverse on the edge)', async () => {
+    for (const seed of [10, 13]) {
+      const r = await fitModel(stressModel(EDGE_SIZES.tiny, seed), { impacts: 'none', expected: false });
+      expect(r.status, r.convergence.failure ?? '').toBe('converged');
+      expect(r.convergence.clipEdge?.kept).toBe('held');
+      for (const p of r.parameters) if (!p.fixed) expect(p.error).toBeGreaterThan(0);
+    }
+  });
+
+  it('holds a γ pressed against zero for the covariance, and says so, where freeing it leaves the Hessian indefinite', async () => {
+    const r = await fitModel(stressModel(EDGE_SIZES.small, 10), { impacts: 'none', expected: false });
+    expect(r.status, r.convergence.failure ?? '').toBe('converged');
+    const held = r.gammas.list.filter((g) => g.atBound && g.error === null);
+    expect(held.length).toBeGreaterThan(0);
+    for (const g of held) expect(r.convergence.warnings.some((w) => w.startsWith(`${g.name} is at a bound`) && w.includes('holds it there'))).toBe(true);
   });
 });
