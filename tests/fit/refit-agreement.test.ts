@@ -54,6 +54,24 @@ describe('refits against cold fits', () => {
     expect(row.outOfTolerance).toBe(1);
     expect(row.details[0].what).toMatch(/68 % high/);
   }, 60_000);
+
+  it('on the low side too, and estimates the crossing where it was before the move (not mirrored)', async () => {
+    let before = 0;
+    const row = await checkRefitAgreement('stress tiny seed 1, low crossing moved', stressModel('tiny', 1), {
+      adjust: (result) => {
+        const muHat = result.summary!.mu.value;
+        const low = result.scan!.crossings68.low!;
+        before = low - muHat;
+        result.scan!.crossings68.low = low + 0.01 * (low - muHat);
+      },
+    });
+    expect(row.outOfTolerance).toBe(1);
+    const d = row.details[0];
+    expect(d.what).toMatch(/68 % low/);
+    expect(d.engine).toBeCloseTo(1.01 * before, 12);
+    // the first-order estimate lands back near the crossing as the engine had it (|offset| 1 % off)
+    expect(Math.abs(d.reference - before)).toBeLessThan(1e-3 * Math.abs(before));
+  }, 60_000);
 });
 
 /** A model's problem with the suite's options, its best fit from the start values and the context there. */
