@@ -157,6 +157,30 @@ export async function svgMarkupToPng(markup: string, width: number, height: numb
   return await canvasToPng(canvas);
 }
 
+/**
+ * A copy of a drawn canvas with a band on top carrying `label` (the analysis's plot labels),
+ * so that a PNG made from a canvas chart names its experiment and status as the SVG does.
+ * Without a label the canvas is returned as it is.
+ */
+export function withLabelBand(canvas: HTMLCanvasElement, label: string): HTMLCanvasElement {
+  if (!label) return canvas;
+  const scale = canvas.width / Math.max(1, canvas.clientWidth || canvas.width);
+  const band = Math.round(22 * scale);
+  const out = document.createElement('canvas');
+  out.width = canvas.width;
+  out.height = canvas.height + band;
+  const ctx = out.getContext('2d');
+  if (!ctx) throw new Error('This browser cannot draw on a canvas.');
+  ctx.fillStyle = theme.paperRaised;
+  ctx.fillRect(0, 0, out.width, out.height);
+  ctx.fillStyle = theme.ink;
+  ctx.font = `600 ${Math.round(12 * scale)}px "Public Sans", system-ui, sans-serif`;
+  ctx.textBaseline = 'middle';
+  ctx.fillText(label, Math.round(6 * scale), band / 2);
+  ctx.drawImage(canvas, 0, band);
+  return out;
+}
+
 export function canvasToPng(canvas: HTMLCanvasElement): Promise<Blob> {
   return new Promise((resolve, reject) => canvas.toBlob((b) => (b ? resolve(b) : reject(new Error('The image could not be made.'))), 'image/png'));
 }

@@ -51,6 +51,22 @@ describe('an analyst freezes a version, runs a fit and reads every review screen
     expect(body.result.status).toBe('converged');
     await page.goto(`${base}/summary`);
     await page.getByText(body.result.summary.mu.value.toFixed(2)).first().waitFor();
+
+    // the correlation matrix's PNG carries the plot labels in a band above the drawn matrix
+    await page.goto(`${base}/correlations`);
+    const canvas = page.locator('canvas').first();
+    await canvas.waitFor();
+    const drawn = await canvas.evaluate((c: HTMLCanvasElement) => ({ width: c.width, height: c.height }));
+    const download = page.waitForEvent('download');
+    await page.getByRole('button', { name: /^Download Post-fit correlation matrix.* as PNG$/ }).click();
+    const saved = await download;
+    await saved.saveAs(path.join(SCREENSHOTS, 'correlations-export.png'));
+    const png = readFileSync(await saved.path());
+    // PNG header: width and height are the big-endian words at bytes 16 and 20 (PNG specification, IHDR chunk)
+    expect(png.readUInt32BE(16)).toBe(drawn.width);
+    expect(png.readUInt32BE(20)).toBeGreaterThan(drawn.height);
+    await page.goto(`${base}/summary`);
+    await page.getByRole('navigation', { name: 'Fit result views' }).waitFor();
   });
 
   it('reads the impact ranking: shares of σ_μ², the cut and its running share, sorting, a diagnosis link, and the figure as PNG and SVG', async () => {

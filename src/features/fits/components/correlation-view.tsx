@@ -4,7 +4,7 @@ import type { FitResultHead } from '@shared/schemas/fits';
 import { ExportButtons } from '../../../components/charts/export-buttons';
 import { DataTable, dataColumns } from '../../../components/ui/data-table';
 import { Panel } from '../../../components/ui/page';
-import { canvasToPng, chartFileName, downloadBlob } from '../../../lib/chart-export';
+import { canvasToPng, chartFileName, downloadBlob, withLabelBand } from '../../../lib/chart-export';
 import { correlationColour, theme } from '../../../lib/palette';
 import { formatSigned } from '../../../lib/stats-format';
 import { correlationSvg, drawCorrelation, layoutMatrix } from '../correlation-draw';
@@ -198,7 +198,7 @@ export function CorrelationView({ result, correlation, linkTo }: { result: FitRe
           <ExportButtons
             title={title}
             onPng={async () => {
-              if (canvasRef.current) downloadBlob(await canvasToPng(canvasRef.current), chartFileName(title, 'png'));
+              if (canvasRef.current) downloadBlob(await canvasToPng(withLabelBand(canvasRef.current, plotLabels ? plotLabelText(plotLabels) : '')), chartFileName(title, 'png'));
             }}
             onSvg={async () => downloadBlob(new Blob([correlationSvg(m, layout, plotLabels ? plotLabelText(plotLabels) : '')], { type: 'image/svg+xml' }), chartFileName(title, 'svg'))}
           />
