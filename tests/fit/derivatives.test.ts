@@ -249,8 +249,9 @@ describe('an empty bin whose expected yield a negative μ takes below zero', () 
     // the last bin of the first signal region: signal only, and no events
     const model = stressModel('small', 3);
     const region = model.regions.find((r) => r.role === 'signal')!;
-    const last = region.observed.length - 1;
-    region.observed[last] = 0;
+    const observed = region.observed!;
+    const last = observed.length - 1;
+    observed[last] = 0;
     for (const t of model.templates) if (t.region === region.key && t.process !== 'signal') t.nominal[last] = 0;
     for (const syst of model.systematics)
       for (const e of syst.effects)
