@@ -408,7 +408,7 @@ export function ImpactRanking({
           <p className="pb-1.5 text-xs text-ink-muted">
             {on.poi === 'mu'
               ? `Each parameter of interest has its own ranking: the same refits, read for ${pois.length > 2 ? 'each one' : 'the other one'} instead of μ.`
-              : `${w.hat} = ${formatFixed(on.result.summary?.mu.value, 3)}: every Δ below is the change in ${w.sym}, and the shares are of ${w.sigma}². The grouped impacts and the statistical part are μ’s alone.`}
+              : `${w.hat} = ${formatFixed(on.result.summary?.mu.value, 3)}: every Δ below is the change in ${w.sym}, and the shares are of ${w.sigma}². The grouped impacts and the statistical part are μ’s alone, and so is the impact in the diagnosis a name opens.`}
           </p>
         </div>
       )}
